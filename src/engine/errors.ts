@@ -1,0 +1,27 @@
+/** Codes of the engine's input errors; the HTTP layer maps them to problem types. */
+export type EngineErrorCode =
+  | 'empty-series'
+  | 'non-finite-value'
+  | 'negative-value'
+  | 'series-too-short'
+  | 'invalid-option'
+  | 'invalid-period'
+  | 'not-positive'
+
+/** Bad input to the engine. Carries a code and, where known, the offending field. */
+export class EngineInputError extends Error {
+  override readonly name = 'EngineInputError'
+  constructor(
+    readonly code: EngineErrorCode,
+    message: string,
+    /** Field path relative to the series input, e.g. `values[3]` or `horizon`. */
+    readonly field?: string,
+  ) {
+    super(message)
+  }
+}
+
+/** One message form for short input, e.g. `holtWinters requires at least 24 data points`. */
+export function tooShort(method: string, minimum: number): EngineInputError {
+  return new EngineInputError('series-too-short', `${method} requires at least ${minimum} data points`)
+}

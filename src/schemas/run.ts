@@ -1,0 +1,60 @@
+import { z } from 'zod'
+import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES } from '../engine/index.js'
+
+/**
+ * The request contract shared by `POST /v1/forecast`, `POST /v1/runs` and the
+ * chunk job payloads. Run-level settings apply to every series; per-series
+ * `frequency`, `start` and `seasonLength` override them.
+ */
+
+export const MAX_POINTS_PER_SERIES = 10_000
+export const MAX_HORIZON = 1_000
+
+export const Sku = z
+  .string()
+  .min(1)
+  .max(200)
+  .regex(/^[^\u0000-\u001f\u007f]+$/, 'must not contain control characters')
+  .describe('Stock-keeping unit code, unique within the tenant')
+
+export const PeriodLabel = z
+  .string()
+  .regex(/^\d{4}(-(Q[1-4]|W\d{2}|\d{2}(-\d{2})?))?$/, 'must look like 2024, 2024-Q2, 2024-03, 2024-W09 or 2024-03-05')
+  .describe('Label of the first period')
+
+export const SeriesItem = z.object({
+  sku: Sku,
+  values: z
+    .array(z.number().nullable())
+    .min(1)
+    .max(MAX_POINTS_PER_SERIES)
+    .describe('Demand per period, oldest first; null marks a missing period'),
+  start: PeriodLabel.optional(),
+  frequency: z.enum(FREQUENCIES).optional(),
+  seasonLength: z.number().int().min(1).max(366).optional(),
+})
+export type SeriesItem = z.infer<typeof SeriesItem>
+
+export const RunSettings = z.object({
+  horizon: z.number().int().min(1).max(MAX_HORIZON).describe('Periods to forecast'),
+  frequency: z.enum(FREQUENCIES).default('month'),
+  seasonLength: z.number().int().min(1).max(366).optional(),
+  holdout: z.number().int().min(1).max(MAX_HORIZON).optional().describe('Periods held back for selection'),
+  metric: z.enum(METRIC_NAMES).default('mase').describe('Holdout error used to pick the model'),
+  models: z.array(z.enum(MODEL_NAMES)).min(1).optional().describe('Candidates; default all the history allows'),
+  intervals: z
+    .array(z.number().gt(0).lt(100))
+    .max(5)
+    .default([80, 95])
+    .describe('Prediction interval levels in percent'),
+  fillPolicy: z.enum(['zero', 'interpolate']).default('zero').describe('How missing periods are filled'),
+  allowNegative: z.boolean().default(false),
+  keepLeadingZeros: z.boolean().default(false),
+  origins: z.number().int().min(1).max(12).default(1).describe('Rolling forecast origins used in selection'),
+})
+export type RunSettings = z.infer<typeof RunSettings>
+
+export const RunRequest = RunSettings.extend({
+  series: z.array(SeriesItem).min(1),
+})
+export type RunRequest = z.infer<typeof RunRequest>

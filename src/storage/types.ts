@@ -1,0 +1,72 @@
+import type { ForecastResult, ModelName, MetricName } from '../engine/index.js'
+import type { RunSettings } from '../schemas/run.js'
+
+/** Contract between the HTTP layer and the run machinery (queue + storage). */
+
+export const RUN_STATUSES = ['queued', 'running', 'succeeded', 'failed', 'cancelled'] as const
+export type RunStatus = (typeof RUN_STATUSES)[number]
+
+export interface RunRecord {
+  readonly id: string
+  readonly tenant: string
+  readonly status: RunStatus
+  readonly progress: { readonly total: number; readonly done: number; readonly failed: number }
+  /** ISO-8601 timestamps. */
+  readonly createdAt: string
+  readonly startedAt: string | null
+  readonly finishedAt: string | null
+  readonly settings: RunSettings
+  /** Present once the run has finished. */
+  readonly summary: RunSummary | null
+  /** Why a run failed as a whole (single series failures are per item). */
+  readonly error: string | null
+}
+
+export interface RunSummary {
+  readonly metric: MetricName
+  /** How many SKUs each model won. */
+  readonly modelWins: Partial<Record<ModelName, number>>
+  /** Mean holdout error of the winners on `metric`, over SKUs where it is defined. */
+  readonly meanHoldoutError: number | null
+}
+
+/** One SKU's outcome in a run. */
+export type ResultItem =
+  | ({ readonly sku: string } & Pick<
+      ForecastResult,
+      'model' | 'family' | 'params' | 'metrics' | 'leaderboard' | 'forecast' | 'warnings' | 'selection' | 'intervals'
+    >)
+  | { readonly sku: string; readonly error: { readonly code: string; readonly message: string } }
+
+export interface ResultPage {
+  readonly items: readonly ResultItem[]
+  readonly nextCursor: string | null
+}
+
+export interface LatestForecast {
+  readonly runId: string
+  readonly producedAt: string
+  readonly item: ResultItem
+}
+
+/**
+ * What the HTTP layer needs from the run machinery. Every method is scoped to a
+ * tenant: another tenant's run or SKU is simply not found (null).
+ */
+export interface RunGateway {
+  /** Validated request in, queued run out. Splits the series into chunk jobs. */
+  submit(tenant: string, request: import('../schemas/run.js').RunRequest): Promise<RunRecord>
+  get(tenant: string, runId: string): Promise<RunRecord | null>
+  results(
+    tenant: string,
+    runId: string,
+    page: { readonly limit: number; readonly cursor?: string; readonly sku?: string },
+  ): Promise<ResultPage | null>
+  /** Cancel a queued or running run; a finished run is returned unchanged. */
+  cancel(tenant: string, runId: string): Promise<RunRecord | null>
+  latestForecast(tenant: string, sku: string): Promise<LatestForecast | null>
+  /** Throws when Redis or the queue is not usable (readiness). */
+  ping(): Promise<void>
+  /** Queue depth and runs by status, for /metrics. */
+  stats(): Promise<{ readonly waiting: number; readonly active: number; readonly delayed: number; readonly failed: number }>
+}

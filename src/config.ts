@@ -1,0 +1,145 @@
+import { z } from 'zod'
+
+/**
+ * Service configuration, parsed once from the environment. Everything else
+ * receives a `Config` as an argument; tests pass plain objects.
+ */
+const intFromEnv = (def: number, min: number, max: number) =>
+  z.coerce.number().int().min(min).max(max).default(def)
+
+const boolFromEnv = (def: boolean) =>
+  z
+    .enum(['true', 'false', '1', '0'])
+    .default(def ? 'true' : 'false')
+    .transform((v) => v === 'true' || v === '1')
+
+export const ConfigSchema = z.object({
+  PORT: intFromEnv(8080, 0, 65535),
+  /** Default depends on whether API keys are configured (see loadConfig). */
+  HOST: z.string().min(1).optional(),
+  REDIS_URL: z.string().url().default('redis://127.0.0.1:6379'),
+  /** Prefix of every Redis key this service writes (queue and storage). */
+  REDIS_PREFIX: z.string().min(1).max(64).regex(/^[A-Za-z0-9:_-]+$/).default('almanac'),
+  /** Comma-separated `tenant:key` pairs. */
+  API_KEYS: z.string().optional(),
+  /** File with one `tenant:key` pair per line (# comments allowed). */
+  API_KEYS_FILE: z.string().optional(),
+  /** Series per chunk job. */
+  CHUNK_SIZE: intFromEnv(500, 1, 100_000),
+  /** Chunk jobs processed at once per worker process (each on its own worker thread). */
+  WORKER_CONCURRENCY: intFromEnv(0, 0, 256),
+  /** Start an in-process worker with the API (npm start). */
+  RUN_WORKER: boolFromEnv(true),
+  /** How long run results are kept, in seconds. */
+  RESULT_RETENTION_SECONDS: intFromEnv(14 * 24 * 3600, 60, 366 * 24 * 3600),
+  /** Largest accepted request body, in bytes. */
+  BODY_LIMIT_BYTES: intFromEnv(64 * 1024 * 1024, 1024, 1024 * 1024 * 1024),
+  /** Most series accepted by the synchronous POST /v1/forecast. */
+  SYNC_MAX_SERIES: intFromEnv(100, 1, 10_000),
+  /** Requests per tenant per window. */
+  RATE_LIMIT_MAX: intFromEnv(600, 1, 1_000_000),
+  RATE_LIMIT_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
+  LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+})
+
+export interface Config {
+  readonly port: number
+  readonly host: string
+  readonly redisUrl: string
+  readonly redisPrefix: string
+  /** tenant -> list of SHA-256 hex digests of its keys; empty means auth is off. */
+  readonly apiKeys: ReadonlyMap<string, readonly string[]>
+  readonly chunkSize: number
+  /** 0 means one per core. */
+  readonly workerConcurrency: number
+  readonly runWorker: boolean
+  readonly resultRetentionSeconds: number
+  readonly bodyLimitBytes: number
+  readonly syncMaxSeries: number
+  readonly rateLimitMax: number
+  readonly rateLimitWindowMs: number
+  readonly logLevel: z.infer<typeof ConfigSchema>['LOG_LEVEL']
+}
+
+export class ConfigError extends Error {
+  override readonly name = 'ConfigError'
+  constructor(readonly problems: readonly string[]) {
+    super(`invalid configuration:\n  ${problems.join('\n  ')}`)
+  }
+}
+
+/**
+ * Parse `tenant:key` pairs. Keys are kept only as SHA-256 digests.
+ * @throws ConfigError listing every malformed entry.
+ */
+export function parseApiKeys(
+  text: string,
+  separator: RegExp,
+  hash: (key: string) => string,
+): Map<string, string[]> {
+  const keys = new Map<string, string[]>()
+  const problems: string[] = []
+  text
+    .split(separator)
+    .map((s) => s.trim())
+    .filter((s) => s.length > 0 && !s.startsWith('#'))
+    .forEach((entry, i) => {
+      const at = entry.indexOf(':')
+      const tenant = at > 0 ? entry.slice(0, at) : ''
+      const key = at > 0 ? entry.slice(at + 1) : ''
+      if (!/^[A-Za-z0-9_-]{1,64}$/.test(tenant) || key.length < 16) {
+        problems.push(`API key entry ${i + 1}: expected tenant:key with a tenant of [A-Za-z0-9_-] and a key of 16+ characters`)
+        return
+      }
+      keys.set(tenant, [...(keys.get(tenant) ?? []), hash(key)])
+    })
+  if (problems.length > 0) throw new ConfigError(problems)
+  return keys
+}
+
+/**
+ * Build a Config from an environment map and a file reader (injected so tests
+ * need neither process.env nor the file system).
+ * @throws ConfigError listing every problem.
+ */
+export function loadConfig(
+  env: Readonly<Record<string, string | undefined>>,
+  deps: { readFile: (path: string) => string; hash: (key: string) => string },
+): Config {
+  const parsed = ConfigSchema.safeParse(env)
+  if (!parsed.success) {
+    throw new ConfigError(parsed.error.issues.map((i) => `${i.path.join('.') || '(env)'}: ${i.message}`))
+  }
+  const e = parsed.data
+  const apiKeys = new Map<string, string[]>()
+  const merge = (m: Map<string, string[]>) => {
+    for (const [t, ks] of m) apiKeys.set(t, [...(apiKeys.get(t) ?? []), ...ks])
+  }
+  if (e.API_KEYS) merge(parseApiKeys(e.API_KEYS, /,/, deps.hash))
+  if (e.API_KEYS_FILE) {
+    let text: string
+    try {
+      text = deps.readFile(e.API_KEYS_FILE)
+    } catch (err) {
+      throw new ConfigError([`API_KEYS_FILE: cannot read (${(err as Error).message})`])
+    }
+    merge(parseApiKeys(text, /\r?\n/, deps.hash))
+  }
+  return {
+    port: e.PORT,
+    // Without keys the service is open, so it only listens on loopback unless told otherwise.
+    host: e.HOST ?? (apiKeys.size === 0 ? '127.0.0.1' : '0.0.0.0'),
+    redisUrl: e.REDIS_URL,
+    redisPrefix: e.REDIS_PREFIX,
+    apiKeys,
+    chunkSize: e.CHUNK_SIZE,
+    workerConcurrency: e.WORKER_CONCURRENCY,
+    runWorker: e.RUN_WORKER,
+    resultRetentionSeconds: e.RESULT_RETENTION_SECONDS,
+    bodyLimitBytes: e.BODY_LIMIT_BYTES,
+    syncMaxSeries: e.SYNC_MAX_SERIES,
+    rateLimitMax: e.RATE_LIMIT_MAX,
+    rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,
+    logLevel: e.LOG_LEVEL,
+  }
+}

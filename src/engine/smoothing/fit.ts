@@ -1,0 +1,169 @@
+/**
+ * Fitting an exponential-smoothing model: heuristic initial states (initial.ts),
+ * then the smoothing parameters minimise the in-sample sum of squared one-step
+ * errors with a bounded Nelder-Mead (optimise.ts). The series is divided by
+ * max|y| while optimising so tolerances are scale-free; results are on the
+ * original scale.
+ *
+ * Search box (internal coordinates; common practice, phi range as Hyndman and
+ * Athanasopoulos, FPP3 sec. 8.2, from memory):
+ *   alpha in [1e-4, 0.9999]; beta in [1e-4, 0.9999] (component form, i.e.
+ *   0 < betaE = alpha * beta < alpha); gamma = g * (1 - alpha), g in [1e-4, 0.9999]
+ *   (so 0 < gamma < 1 - alpha); phi in [0.8, 0.98].
+ */
+import { EngineInputError, tooShort } from '../errors.js'
+import { minimiseNelderMead } from '../optimise.js'
+import type { FitContext, ModelFit, ModelName, ModelParams } from '../types.js'
+import { initialLevel, initialLevelTrend, initialSeasonalStates } from './initial.js'
+import { sseLevel, sseSeasonalAdd, sseSeasonalMul, sseTrend } from './kernels.js'
+import { runSmoothing, type SeasonalKind } from './recursions.js'
+import { additiveErrorVariance } from './variance.js'
+
+export interface SmoothingShape {
+  readonly name: ModelName
+  /** Name used in error messages, e.g. `holtWinters`. */
+  readonly method: string
+  readonly trend: 'none' | 'linear' | 'damped'
+  readonly seasonal: SeasonalKind | null
+}
+
+const LO = 1e-4
+const HI = 0.9999
+const PHI_LO = 0.8
+const PHI_HI = 0.98
+/** Objective evaluations per fit (common practice for small problems; keeps fits cheap). */
+const MAX_EVALUATIONS = 150
+
+export function minLengthOf(shape: SmoothingShape, seasonLength: number): number {
+  if (shape.seasonal) return 2 * seasonLength
+  return shape.trend === 'none' ? 2 : 3
+}
+
+function readParam(p: ModelParams | undefined, key: string): number | undefined {
+  const v = p?.[key]
+  return typeof v === 'number' && Number.isFinite(v) ? v : undefined
+}
+
+export function fitSmoothing(shape: SmoothingShape, series: readonly number[], ctx: FitContext): ModelFit {
+  const n = series.length
+  const m = shape.seasonal ? ctx.seasonLength : 1
+  if (shape.seasonal && !(Number.isInteger(m) && m >= 2)) {
+    throw new EngineInputError('invalid-option', `${shape.method} needs a season length of at least 2`, 'seasonLength')
+  }
+  if (n === 0) throw new EngineInputError('empty-series', 'series is empty', 'values')
+  const minimum = minLengthOf(shape, m)
+  if (n < minimum) throw tooShort(shape.method, minimum)
+  let scale = 0
+  for (let t = 0; t < n; t++) {
+    const v = series[t]
+    if (!Number.isFinite(v)) throw new EngineInputError('non-finite-value', `values[${t}] is not a finite number`, `values[${t}]`)
+    if (shape.seasonal === 'mul' && !(v > 0)) {
+      throw new EngineInputError('not-positive', `${shape.method} with multiplicative seasonality needs values > 0 (values[${t}] is ${v})`, `values[${t}]`)
+    }
+    const a = Math.abs(v)
+    if (a > scale) scale = a
+  }
+  if (!(scale > 0)) scale = 1
+  const y = new Float64Array(n)
+  for (let t = 0; t < n; t++) y[t] = series[t] / scale
+
+  // Initial states on the scaled series.
+  let l0: number
+  let b0 = 0
+  let s0: Float64Array = new Float64Array(0)
+  if (shape.seasonal) {
+    const init = initialSeasonalStates(y, m, shape.seasonal)
+    l0 = init.level
+    b0 = init.trend
+    s0 = init.seasonal
+  } else if (shape.trend !== 'none') {
+    const init = initialLevelTrend(y)
+    l0 = init.level
+    b0 = init.trend
+  } else l0 = initialLevel(y)
+
+  // Internal coordinates: [alpha, beta?, g?, phi?].
+  const hasTrend = shape.trend !== 'none'
+  const damped = shape.trend === 'damped'
+  const lower: number[] = [LO]
+  const upper: number[] = [HI]
+  const given = ctx.initialParams
+  const a0 = readParam(given, 'alpha') ?? 0.3
+  const start: number[] = [a0]
+  if (hasTrend) {
+    lower.push(LO)
+    upper.push(HI)
+    start.push(readParam(given, 'beta') ?? 0.1)
+  }
+  if (shape.seasonal) {
+    lower.push(LO)
+    upper.push(HI)
+    const g = readParam(given, 'gamma')
+    start.push(g !== undefined && a0 < 1 ? g / (1 - Math.min(a0, HI)) : 0.1)
+  }
+  if (damped) {
+    lower.push(PHI_LO)
+    upper.push(PHI_HI)
+    start.push(readParam(given, 'phi') ?? 0.9)
+  }
+  const iB = hasTrend ? 1 : -1
+  const iG = shape.seasonal ? (hasTrend ? 2 : 1) : -1
+  const iP = damped ? start.length - 1 : -1
+  const scratch = new Float64Array(m)
+  const kind = shape.seasonal
+  const objective = (x: Float64Array): number => {
+    const alpha = x[0]
+    const beta = iB >= 0 ? x[iB] : 0
+    const gamma = iG >= 0 ? x[iG] * (1 - alpha) : 0
+    const phi = iP >= 0 ? x[iP] : 1
+    if (kind === 'add') return sseSeasonalAdd(y, alpha, beta, gamma, phi, l0, b0, s0, scratch)
+    if (kind === 'mul') return sseSeasonalMul(y, alpha, beta, gamma, phi, l0, b0, s0, scratch)
+    if (hasTrend) return sseTrend(y, alpha, beta, phi, l0, b0)
+    return sseLevel(y, alpha, l0, 1)
+  }
+  const best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: MAX_EVALUATIONS })
+  if (!Number.isFinite(best.value)) {
+    throw new EngineInputError('non-finite-value', `${shape.method} found no parameters with a finite error sum for this series`)
+  }
+  const alpha = best.x[0]
+  const beta = iB >= 0 ? best.x[iB] : 0
+  const gamma = iG >= 0 ? best.x[iG] * (1 - alpha) : 0
+  const phi = iP >= 0 ? best.x[iP] : 1
+  const level = l0 * scale
+  const trend = b0 * scale
+  const seasonal = kind === 'add' ? Array.from(s0, (v) => v * scale) : Array.from(s0)
+  const run = runSmoothing(series, {
+    alpha,
+    beta,
+    gamma,
+    phi,
+    seasonLength: m,
+    seasonal: kind ?? undefined,
+    initial: { level, trend, seasonal: kind ? seasonal : undefined },
+  })
+
+  // SES starts from level = y[0], so its first prediction is not a forecast.
+  const firstFitted = hasTrend || kind ? 0 : 1
+  const fitted = run.fitted.slice()
+  if (firstFitted === 1) fitted[0] = NaN
+  const params: Record<string, number | number[]> = { alpha, initialLevel: level }
+  if (hasTrend) {
+    params.beta = beta
+    params.initialTrend = trend
+  }
+  if (damped) params.phi = phi
+  if (kind) {
+    params.gamma = gamma
+    params.initialSeasonal = seasonal
+  }
+  const fit: ModelFit = { model: shape.name, params, fitted, forecast: (h) => run.forecast(h) }
+  if (kind === 'mul') return fit // no class-1 formula: the caller builds empirical intervals
+
+  // sigma^2 = SSE / (n - k), k = smoothing parameters + initial states (HKOS 2008, ch. 6).
+  const used = n - firstFitted
+  const k = 1 + (hasTrend ? 2 : 0) + (damped ? 1 : 0) + (kind ? m : 0) + 1
+  const sse = firstFitted === 1 ? run.sse - run.residuals[0] ** 2 : run.sse
+  const sigma2 = sse / Math.max(1, used - k)
+  const shapeForVariance = { alpha, beta, gamma, phi, seasonLength: m }
+  return { ...fit, forecastVariance: (h) => additiveErrorVariance(shapeForVariance, sigma2, h) }
+}

@@ -1,0 +1,39 @@
+/**
+ * The exponential-smoothing family as `ModelSpec`s:
+ *  - 'ses': simple exponential smoothing (Brown 1956; ETS ANN);
+ *  - 'holt': Holt's linear trend (Holt 1957; ETS AAN);
+ *  - 'damped-holt': additive damped trend (Gardner and McKenzie 1985; ETS AAdN);
+ *  - 'holt-winters-additive' / '-multiplicative' (Winters 1960) and their damped variants.
+ * Fitting: fit.ts. Fixed-parameter recursions: recursions.ts.
+ * Complexity counts smoothing parameters plus initial-state blocks (level, trend, seasonal).
+ */
+import type { ModelSpec } from '../types.js'
+import { fitSmoothing, minLengthOf, type SmoothingShape } from './fit.js'
+
+export { runSmoothing, runSimpleSmoothing, runHolt, runHoltWinters, forecastStates } from './recursions.js'
+export type { SeasonalKind, SmoothingRun, SmoothingSetup, SmoothingStates } from './recursions.js'
+export { additiveErrorVariance } from './variance.js'
+export { fitSmoothing } from './fit.js'
+
+function spec(shape: SmoothingShape, complexity: number): ModelSpec {
+  const seasonal = shape.seasonal !== null
+  return {
+    name: shape.name,
+    family: seasonal ? 'seasonal-trend' : shape.trend === 'none' ? 'level' : 'trend',
+    complexity,
+    seasonal,
+    requiresPositive: shape.seasonal === 'mul',
+    minLength: (m) => minLengthOf(shape, m),
+    fit: (series, ctx) => fitSmoothing(shape, series, ctx),
+  }
+}
+
+export const smoothingModels: readonly ModelSpec[] = [
+  spec({ name: 'ses', method: 'simpleSmoothing', trend: 'none', seasonal: null }, 2),
+  spec({ name: 'holt', method: 'holt', trend: 'linear', seasonal: null }, 4),
+  spec({ name: 'damped-holt', method: 'dampedHolt', trend: 'damped', seasonal: null }, 5),
+  spec({ name: 'holt-winters-additive', method: 'holtWinters', trend: 'linear', seasonal: 'add' }, 6),
+  spec({ name: 'holt-winters-multiplicative', method: 'holtWinters', trend: 'linear', seasonal: 'mul' }, 6),
+  spec({ name: 'holt-winters-additive-damped', method: 'holtWinters', trend: 'damped', seasonal: 'add' }, 7),
+  spec({ name: 'holt-winters-multiplicative-damped', method: 'holtWinters', trend: 'damped', seasonal: 'mul' }, 7),
+]

@@ -1,0 +1,86 @@
+/**
+ * Heuristic initial states (not optimised, to keep fitting cheap). All states are
+ * "at time -1", i.e. just before y[0]. Common practice; the trend line on the first
+ * points follows the heuristic described by Hyndman, Koehler, Ord and Snyder (2008),
+ * sec. 2.6.1 (from memory), simplified.
+ */
+import type { SeasonalKind } from './recursions.js'
+
+/** Level only: level = y[0] (as NIST/SEMATECH e-Handbook 6.4.3.1). */
+export function initialLevel(y: ArrayLike<number>): number {
+  return y[0]
+}
+
+/**
+ * Level and trend from an ordinary least-squares line a + b*t through the first
+ * min(n, 10) points (t = 0 at y[0]): trend = b, level = a - b, so that the first
+ * one-step prediction of an undamped model is the line's value at t = 0.
+ * With one point, trend = 0.
+ */
+export function initialLevelTrend(y: ArrayLike<number>): { level: number; trend: number } {
+  const k = Math.min(y.length, 10)
+  if (k < 2) return { level: y[0], trend: 0 }
+  const tMean = (k - 1) / 2
+  let yMean = 0
+  for (let t = 0; t < k; t++) yMean += y[t]
+  yMean /= k
+  let sxy = 0
+  let sxx = 0
+  for (let t = 0; t < k; t++) {
+    const dt = t - tMean
+    sxy += dt * (y[t] - yMean)
+    sxx += dt * dt
+  }
+  const slope = sxy / sxx
+  const intercept = yMean - slope * tMean
+  return { level: intercept - slope, trend: slope }
+}
+
+/**
+ * Seasonal start from the first two full seasons (needs n >= 2m), common practice:
+ *   A1, A2 = means of y[0..m-1] and y[m..2m-1];  trend = (A2 - A1) / m;
+ *   trend line T(t) = A1 + trend * (t - (m - 1) / 2);  level = T(-1);
+ *   seasonal[j] = mean over the two seasons of y[t] - T(t) (additive) or
+ *   y[t] / T(t) (multiplicative; ratio to the season mean when T(t) <= 0),
+ *   then normalised to sum 0 (additive) or mean 1 (multiplicative).
+ */
+export function initialSeasonalStates(
+  y: ArrayLike<number>,
+  m: number,
+  kind: SeasonalKind,
+): { level: number; trend: number; seasonal: Float64Array } {
+  let a1 = 0
+  let a2 = 0
+  for (let j = 0; j < m; j++) {
+    a1 += y[j]
+    a2 += y[m + j]
+  }
+  a1 /= m
+  a2 /= m
+  const trend = (a2 - a1) / m
+  const centre = (m - 1) / 2
+  const line = (t: number): number => a1 + trend * (t - centre)
+  const seasonal = new Float64Array(m)
+  let total = 0
+  for (let j = 0; j < m; j++) {
+    let v = 0
+    for (let k = 0; k < 2; k++) {
+      const t = k * m + j
+      if (kind === 'add') v += y[t] - line(t)
+      else {
+        const tl = line(t)
+        v += tl > 0 ? y[t] / tl : y[t] / (k === 0 ? a1 : a2)
+      }
+    }
+    seasonal[j] = v / 2
+    total += seasonal[j]
+  }
+  if (kind === 'add') {
+    const shift = total / m
+    for (let j = 0; j < m; j++) seasonal[j] -= shift
+  } else {
+    const factor = total / m
+    for (let j = 0; j < m; j++) seasonal[j] /= factor
+  }
+  return { level: line(-1), trend, seasonal }
+}

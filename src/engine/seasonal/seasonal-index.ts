@@ -1,0 +1,64 @@
+/**
+ * 'seasonal-index': multiplicative seasonal factors by ratio to the overall average
+ * (`seasonalPositionFactors`), simple exponential smoothing of the level on the
+ * de-seasonalised series d[t] = y[t] / factor(t), forecast = level * factor(n + h).
+ *
+ * level[0] = d[0], level[t] = alpha * d[t] + (1 - alpha) * level[t-1]; fitted[t] =
+ * level[t-1] * factor(t) for t >= 1, NaN at t = 0. alpha in [0.0001, 1] minimises
+ * the one-step squared errors on the original scale, sum of (y[t] - fitted[t])^2
+ * (grid plus golden-section search). Needs two full seasons (common practice).
+ */
+import { EngineInputError } from '../errors.js'
+import type { FitContext, ModelFit, ModelSpec } from '../types.js'
+import { checkFinite, checkHorizon, checkSeasonLength, checkSeries } from '../trend/guards.js'
+import { levels, levelSse, minimiseOnInterval } from '../trend/level-smoothing.js'
+import { seasonalPositionFactors } from './decompose.js'
+
+export const ALPHA_MIN = 0.0001
+
+/** @param alpha fixed smoothing weight in (0, 1]; omitted: estimated. */
+export function fitSeasonalIndex(series: readonly number[], seasonLength: number, alpha?: number): ModelFit {
+  const m = seasonLength
+  checkSeasonLength(m, 'seasonal-index')
+  checkSeries(series, 'seasonal-index', 2 * m)
+  if (alpha !== undefined && !(alpha > 0 && alpha <= 1)) {
+    throw new EngineInputError('invalid-option', 'alpha must be in (0, 1]', 'alpha')
+  }
+  const factors = seasonalPositionFactors(series, m)
+  const n = series.length
+  const adjusted = new Array<number>(n)
+  const weights = new Array<number>(n)
+  for (let t = 0; t < n; t++) {
+    weights[t] = factors[t % m]
+    adjusted[t] = series[t] / weights[t]
+  }
+  const a = alpha ?? minimiseOnInterval((x) => levelSse(adjusted, x, weights), ALPHA_MIN, 1)
+  const path = levels(adjusted, a)
+  const level = path[n - 1]
+  const fitted = new Array<number>(n)
+  fitted[0] = NaN
+  for (let t = 1; t < n; t++) fitted[t] = path[t - 1] * weights[t]
+  checkFinite([level], 'seasonal-index')
+  return {
+    model: 'seasonal-index',
+    params: { alpha: a, level, seasonalFactors: factors },
+    fitted,
+    forecast(horizon: number): number[] {
+      checkHorizon(horizon)
+      const out = new Array<number>(horizon)
+      for (let h = 1; h <= horizon; h++) out[h - 1] = level * factors[(n + h - 1) % m]
+      checkFinite(out, 'seasonal-index')
+      return out
+    },
+  }
+}
+
+export const seasonalIndex: ModelSpec = {
+  name: 'seasonal-index',
+  family: 'seasonal',
+  complexity: 3,
+  seasonal: true,
+  requiresPositive: true,
+  minLength: (m: number) => 2 * m,
+  fit: (series: readonly number[], ctx: FitContext) => fitSeasonalIndex(series, ctx.seasonLength),
+}

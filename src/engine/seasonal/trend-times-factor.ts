@@ -1,0 +1,75 @@
+/**
+ * 'decomposition' and 'decomposition-cma': multiplicative seasonal factors, the
+ * series de-seasonalised (value / factor), an OLS line on t = 1..n through the
+ * de-seasonalised values, and forecast = (slope * t + intercept) * factor(t).
+ *   'decomposition'     factors by ratio to the overall average (`seasonalPositionFactors`);
+ *   'decomposition-cma' factors by ratio to the centred moving average, as
+ *                       R `stats::decompose(type = "multiplicative")` (`decomposeClassical`).
+ * Fitted values are the in-sample line times the factor. Needs two full seasons
+ * (common practice) and data where no factor is zero.
+ */
+import type { FitContext, ModelFit, ModelName, ModelSpec } from '../types.js'
+import { checkFinite, checkHorizon, checkSeasonLength, checkSeries } from '../trend/guards.js'
+import { fitTrendOnIndex } from '../trend/linear-trend.js'
+import { decomposeClassical, seasonalPositionFactors } from './decompose.js'
+
+/** Trend-times-factor fit from given factors (position t mod m from the series start). */
+export function fitTrendTimesFactor(
+  series: readonly number[],
+  factors: readonly number[],
+  model: ModelName,
+): ModelFit {
+  const n = series.length
+  const m = factors.length
+  const adjusted = new Array<number>(n)
+  for (let t = 0; t < n; t++) adjusted[t] = series[t] / factors[t % m]
+  const { slope, intercept } = fitTrendOnIndex(adjusted)
+  const fitted = new Array<number>(n)
+  for (let t = 0; t < n; t++) fitted[t] = (intercept + slope * (t + 1)) * factors[t % m]
+  checkFinite(fitted, model)
+  return {
+    model,
+    params: { slope, intercept, seasonalFactors: factors.slice() },
+    fitted,
+    forecast(horizon: number): number[] {
+      checkHorizon(horizon)
+      const out = new Array<number>(horizon)
+      for (let h = 1; h <= horizon; h++) out[h - 1] = (intercept + slope * (n + h)) * factors[(n + h - 1) % m]
+      checkFinite(out, model)
+      return out
+    },
+  }
+}
+
+export function fitDecomposition(series: readonly number[], seasonLength: number): ModelFit {
+  checkSeasonLength(seasonLength, 'decomposition')
+  checkSeries(series, 'decomposition', 2 * seasonLength)
+  return fitTrendTimesFactor(series, seasonalPositionFactors(series, seasonLength), 'decomposition')
+}
+
+export function fitDecompositionCma(series: readonly number[], seasonLength: number): ModelFit {
+  checkSeasonLength(seasonLength, 'decomposition-cma')
+  checkSeries(series, 'decomposition-cma', 2 * seasonLength)
+  const { figure } = decomposeClassical(series, seasonLength, 'multiplicative')
+  return fitTrendTimesFactor(series, figure, 'decomposition-cma')
+}
+
+export const decomposition: ModelSpec = {
+  name: 'decomposition',
+  family: 'seasonal-trend',
+  complexity: 3,
+  seasonal: true,
+  requiresPositive: true,
+  minLength: (m: number) => 2 * m,
+  fit: (series: readonly number[], ctx: FitContext) => fitDecomposition(series, ctx.seasonLength),
+}
+
+export const decompositionCma: ModelSpec = {
+  name: 'decomposition-cma',
+  family: 'seasonal-trend',
+  complexity: 3,
+  seasonal: true,
+  requiresPositive: true,
+  minLength: (m: number) => 2 * m,
+  fit: (series: readonly number[], ctx: FitContext) => fitDecompositionCma(series, ctx.seasonLength),
+}

@@ -1,0 +1,211 @@
+/**
+ * Input validation and data preparation: the first step of `forecastSeries`.
+ *
+ * 1. Validate options and values (EngineInputError with a code and the field).
+ * 2. Fill missing (null) periods: 'zero' (default) or 'interpolate' (linear between the
+ *    nearest known neighbours; leading/trailing gaps take the nearest known value).
+ * 3. Trim zeros before the first non-zero period (unless keepLeadingZeros); the first
+ *    period label moves forward by the number trimmed. An all-zero history is kept whole.
+ * 4. Flag a constant (or all-zero) history: it gets a flat forecast without selection.
+ *
+ * Every action that changes the data is reported as an EngineWarning.
+ */
+import { EngineInputError } from './errors.js'
+import { isConstant } from './numeric.js'
+import { periodLabels } from './periods.js'
+import {
+  DEFAULT_SEASON_LENGTH,
+  FREQUENCIES,
+  METRIC_NAMES,
+  MODEL_NAMES,
+  type EngineWarning,
+  type Frequency,
+  type MetricName,
+  type ModelName,
+  type SeriesInput,
+} from './types.js'
+
+/** Limits the engine enforces itself (the HTTP schema may be stricter). */
+export const ENGINE_LIMITS = {
+  maxHorizon: 1000,
+  maxSeasonLength: 366,
+  maxHoldout: 1000,
+  maxOrigins: 12,
+  maxLevels: 10,
+} as const
+
+export const DEFAULT_LEVELS: readonly number[] = [80, 95]
+
+export interface PreparedSeries {
+  /** History after filling and trimming: finite, and non-negative unless allowNegative. */
+  readonly values: readonly number[]
+  readonly frequency: Frequency
+  readonly start?: string
+  readonly seasonLength: number
+  readonly horizon: number
+  /** As given; the default is chosen in select/holdout.ts. */
+  readonly holdout?: number
+  readonly metric: MetricName
+  /** As given (deduplicated); undefined means "all the history allows". */
+  readonly models?: readonly ModelName[]
+  /** Sorted ascending, deduplicated. */
+  readonly levels: readonly number[]
+  readonly allowNegative: boolean
+  readonly origins: number
+  /** Periods trimmed from the front: labels of `values[0]` = start + offset. */
+  readonly offset: number
+  /** 'all-zero' or 'constant' history: flat forecast, no selection. */
+  readonly flat: 'all-zero' | 'constant' | null
+  readonly history: {
+    readonly length: number
+    readonly used: number
+    readonly missing: number
+    readonly trimmedLeadingZeros: number
+    readonly firstPeriod: string
+  }
+  readonly warnings: readonly EngineWarning[]
+}
+
+function option(message: string, field: string): EngineInputError {
+  return new EngineInputError('invalid-option', message, field)
+}
+
+function intIn(value: number | undefined, lo: number, hi: number, field: string): void {
+  if (value === undefined) return
+  if (!Number.isInteger(value) || value < lo || value > hi) {
+    throw option(`${field} must be an integer from ${lo} to ${hi} (got ${value})`, field)
+  }
+}
+
+function validateOptions(input: SeriesInput): void {
+  if (!FREQUENCIES.includes(input.frequency)) {
+    throw option(`frequency must be one of ${FREQUENCIES.join(', ')}`, 'frequency')
+  }
+  if (input.horizon === undefined) throw option('horizon is required', 'horizon')
+  intIn(input.horizon, 1, ENGINE_LIMITS.maxHorizon, 'horizon')
+  intIn(input.seasonLength, 1, ENGINE_LIMITS.maxSeasonLength, 'seasonLength')
+  intIn(input.holdout, 1, ENGINE_LIMITS.maxHoldout, 'holdout')
+  intIn(input.origins, 1, ENGINE_LIMITS.maxOrigins, 'origins')
+  if (input.metric !== undefined && !METRIC_NAMES.includes(input.metric)) {
+    throw option(`metric must be one of ${METRIC_NAMES.join(', ')}`, 'metric')
+  }
+  if (input.fillPolicy !== undefined && input.fillPolicy !== 'zero' && input.fillPolicy !== 'interpolate') {
+    throw option(`fillPolicy must be 'zero' or 'interpolate'`, 'fillPolicy')
+  }
+  if (input.models !== undefined) {
+    if (input.models.length === 0) throw option('models must list at least one model', 'models')
+    input.models.forEach((m, i) => {
+      if (!MODEL_NAMES.includes(m)) throw option(`unknown model "${m}"`, `models[${i}]`)
+    })
+  }
+  if (input.intervals !== undefined) {
+    if (input.intervals.length > ENGINE_LIMITS.maxLevels) {
+      throw option(`intervals may list at most ${ENGINE_LIMITS.maxLevels} levels`, 'intervals')
+    }
+    input.intervals.forEach((level, i) => {
+      if (typeof level !== 'number' || !(level > 0 && level < 100)) {
+        throw option(`interval level must be a percentage strictly between 0 and 100 (got ${level})`, `intervals[${i}]`)
+      }
+    })
+  }
+}
+
+function validateValues(values: readonly (number | null)[], allowNegative: boolean): void {
+  if (!Array.isArray(values) || values.length === 0) {
+    throw new EngineInputError('empty-series', 'values must hold at least one period', 'values')
+  }
+  let known = 0
+  values.forEach((v, i) => {
+    if (v === null) return
+    if (typeof v !== 'number' || !Number.isFinite(v)) {
+      throw new EngineInputError('non-finite-value', `values[${i}] must be a finite number or null`, `values[${i}]`)
+    }
+    if (v < 0 && !allowNegative) {
+      throw new EngineInputError(
+        'negative-value',
+        `values[${i}] is negative (${v}); demand cannot be negative unless allowNegative is set`,
+        `values[${i}]`,
+      )
+    }
+    known++
+  })
+  if (known === 0) throw new EngineInputError('empty-series', 'values holds no known (non-null) period', 'values')
+}
+
+/** Fill nulls. Interpolation is linear between the nearest known neighbours. */
+export function fillMissing(values: readonly (number | null)[], policy: 'zero' | 'interpolate'): number[] {
+  const out = values.map((v) => (v === null ? NaN : v))
+  if (policy === 'zero') return out.map((v) => (Number.isNaN(v) ? 0 : v))
+  const known: number[] = []
+  out.forEach((v, i) => {
+    if (!Number.isNaN(v)) known.push(i)
+  })
+  let k = 0
+  for (let i = 0; i < out.length; i++) {
+    if (!Number.isNaN(out[i])) continue
+    while (k < known.length && known[k] < i) k++
+    const right = k < known.length ? known[k] : -1
+    const left = k > 0 ? known[k - 1] : -1
+    if (left < 0) out[i] = out[right]
+    else if (right < 0) out[i] = out[left]
+    else out[i] = out[left] + ((out[right] - out[left]) * (i - left)) / (right - left)
+  }
+  return out
+}
+
+/** Validate and prepare one series. @throws EngineInputError with a code and field. */
+export function prepareSeries(input: SeriesInput): PreparedSeries {
+  validateOptions(input)
+  const allowNegative = input.allowNegative === true
+  validateValues(input.values, allowNegative)
+  const warnings: EngineWarning[] = []
+  // Validates `start` against the frequency before any work is done.
+  const firstLabel = periodLabels(input.frequency, input.start, 1)[0]
+
+  const missing = input.values.filter((v) => v === null).length
+  const policy = input.fillPolicy ?? 'zero'
+  let values = fillMissing(input.values, policy)
+  if (missing > 0) {
+    warnings.push({
+      code: 'missing-filled',
+      message: `${missing} missing period(s) filled ${policy === 'zero' ? 'with zero' : 'by linear interpolation'}`,
+    })
+  }
+
+  let trimmed = 0
+  const firstSale = values.findIndex((v) => v !== 0)
+  if (!input.keepLeadingZeros && firstSale > 0) {
+    trimmed = firstSale
+    values = values.slice(firstSale)
+    warnings.push({
+      code: 'leading-zeros-trimmed',
+      message: `${trimmed} zero period(s) before the first non-zero period were dropped`,
+    })
+  }
+
+  const flat = !isConstant(values) ? null : values[0] === 0 ? 'all-zero' : 'constant'
+  const levels = [...new Set(input.intervals ?? DEFAULT_LEVELS)].sort((a, b) => a - b)
+  return {
+    values,
+    frequency: input.frequency,
+    start: input.start,
+    seasonLength: input.seasonLength ?? DEFAULT_SEASON_LENGTH[input.frequency],
+    horizon: input.horizon,
+    holdout: input.holdout,
+    metric: input.metric ?? 'mase',
+    models: input.models === undefined ? undefined : [...new Set(input.models)],
+    levels,
+    allowNegative,
+    origins: input.origins ?? 1,
+    offset: trimmed,
+    flat,
+    history: {
+      length: input.values.length,
+      used: values.length,
+      missing,
+      trimmedLeadingZeros: trimmed,
+      firstPeriod: trimmed === 0 ? firstLabel : periodLabels(input.frequency, input.start, 1, trimmed)[0],
+    },
+    warnings,
+  }
+}

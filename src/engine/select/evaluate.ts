@@ -1,0 +1,96 @@
+/**
+ * Scoring one candidate: on holdout(s) from rolling origins, or in-sample.
+ *
+ * Rolling origins: for k = 0..origins-1 the model is trained on y[0 .. n-holdout-k) and
+ * forecasts the next `holdout` periods y[n-holdout-k .. n-k); each metric is averaged
+ * over the origins where it is defined (metrics.averageMetrics). The MASE scale of
+ * each origin comes from that origin's training part.
+ */
+import { EngineInputError } from '../errors.js'
+import { averageMetrics, computeMetrics } from '../metrics.js'
+import type { LeaderboardEntry, MetricSet, ModelFit, ModelParams, ModelSpec } from '../types.js'
+import { lengthReason, structuralReason } from './candidates.js'
+
+export interface Evaluation {
+  readonly entry: LeaderboardEntry
+  readonly metrics?: MetricSet
+  /** Parameters of the fit at the latest origin (starting point for the refit). */
+  readonly params?: ModelParams
+}
+
+function failure(spec: ModelSpec, err: unknown): Evaluation {
+  // A fitter signals input it cannot fit with EngineInputError: that is a skip, not a failure.
+  const status = err instanceof EngineInputError ? 'skipped' : 'failed'
+  const reason = err instanceof Error ? err.message : String(err)
+  return { entry: { model: spec.name, family: spec.family, status, reason } }
+}
+
+function skipped(spec: ModelSpec, reason: string): Evaluation {
+  return { entry: { model: spec.name, family: spec.family, status: 'skipped', reason } }
+}
+
+/** Forecasts of a fit, checked for length and finiteness. */
+export function checkedForecast(fit: ModelFit, horizon: number): number[] {
+  const f = fit.forecast(horizon)
+  if (f.length !== horizon || !f.every(Number.isFinite)) {
+    throw new Error(`${fit.model} produced a non-finite or short forecast`)
+  }
+  return f
+}
+
+export function evaluateHoldout(
+  spec: ModelSpec,
+  values: readonly number[],
+  seasonLength: number,
+  holdout: number,
+  origins: number,
+): Evaluation {
+  const n = values.length
+  const why =
+    structuralReason(spec, seasonLength, values) ??
+    lengthReason(spec, seasonLength, n - holdout - (origins - 1), true)
+  if (why) return skipped(spec, why)
+  try {
+    const sets: MetricSet[] = []
+    let params: ModelParams | undefined
+    for (let k = 0; k < origins; k++) {
+      const end = n - holdout - k
+      const train = values.slice(0, end)
+      const fit = spec.fit(train, { seasonLength })
+      const forecast = checkedForecast(fit, holdout)
+      sets.push(computeMetrics(values.slice(end, end + holdout), forecast, train, seasonLength))
+      if (k === 0) params = fit.params
+    }
+    const metrics = averageMetrics(sets)
+    return { entry: { model: spec.name, family: spec.family, status: 'scored', metrics }, metrics, params }
+  } catch (err) {
+    return failure(spec, err)
+  }
+}
+
+/** In-sample one-step errors of a fit on the whole history (used when it is too short for a holdout). */
+export function evaluateInSample(spec: ModelSpec, values: readonly number[], seasonLength: number): Evaluation {
+  const why = structuralReason(spec, seasonLength, values) ?? lengthReason(spec, seasonLength, values.length, false)
+  if (why) return skipped(spec, why)
+  try {
+    const fit = spec.fit(values, { seasonLength })
+    checkedForecast(fit, 1)
+    const actual: number[] = []
+    const fitted: number[] = []
+    fit.fitted.forEach((f, t) => {
+      if (Number.isFinite(f)) {
+        actual.push(values[t])
+        fitted.push(f)
+      }
+    })
+    if (actual.length === 0) return skipped(spec, `${spec.name} has no in-sample fitted values on this history`)
+    const metrics = computeMetrics(actual, fitted, values, seasonLength)
+    return {
+      entry: { model: spec.name, family: spec.family, status: 'scored', metrics },
+      metrics,
+      params: fit.params,
+    }
+  } catch (err) {
+    return failure(spec, err)
+  }
+}

@@ -1,0 +1,167 @@
+/**
+ * forecastSeries: prepare, choose candidates, score them, refit the winner, forecast.
+ *
+ * Flat histories (constant or all zero) get the naive method's flat line with
+ * intervals of zero width (method 'none'), no selection (method 'none', holdout 0,
+ * origins 0) and an empty leaderboard: every candidate would forecast the same line.
+ *
+ * When the history is too short for a holdout (no candidate other than naive can be
+ * trained on the training part), candidates are ranked by in-sample one-step errors
+ * instead (method 'in-sample', with a warning): this favours flexible models, so it is
+ * a last resort.
+ */
+import { EngineInputError } from '../errors.js'
+import { MODEL_REGISTRY, classifyDemand, type DemandClassification } from '../models.js'
+import { prepareSeries, type PreparedSeries } from '../prepare.js'
+import type { EngineWarning, ForecastResult, ModelSpec, SeriesInput } from '../types.js'
+import { assembleResult, naiveWinner, type Winner } from './assemble.js'
+import { candidateModels, lengthReason, requiredLength, structuralReason } from './candidates.js'
+import { checkedForecast, evaluateHoldout, evaluateInSample, type Evaluation } from './evaluate.js'
+import { MIN_TRAINING, planHoldout } from './holdout.js'
+import { rankEvaluations } from './rank.js'
+
+export interface EngineModels {
+  readonly registry: readonly ModelSpec[]
+  readonly classify: ((series: readonly number[]) => DemandClassification) | null
+}
+
+const DEFAULT_MODELS: EngineModels = { registry: MODEL_REGISTRY, classify: classifyDemand }
+
+function flatResult(prep: PreparedSeries, warnings: EngineWarning[]): ForecastResult {
+  const v = prep.values[0]
+  warnings.push({
+    code: prep.flat === 'all-zero' ? 'all-zero-series' : 'constant-series',
+    message:
+      prep.flat === 'all-zero'
+        ? 'the history is all zero: forecasting zero, no model selection and no interval spread'
+        : `the history is constant (${v}): forecasting that value, no model selection and no interval spread`,
+  })
+  return assembleResult(
+    prep,
+    naiveWinner(prep.values, prep.horizon),
+    { method: 'none', metric: prep.metric, holdout: 0, origins: 0, metrics: null, leaderboard: [] },
+    warnings,
+    true,
+  )
+}
+
+/** Intermittent or lumpy demand: average inter-demand interval above 1.32 (Syntetos & Boylan 2005). */
+function isIntermittent(prep: PreparedSeries, models: EngineModels, warnings: EngineWarning[]): boolean {
+  if (!models.classify || prep.values.some((v) => v < 0)) return false
+  let c: DemandClassification
+  try {
+    c = models.classify(prep.values)
+  } catch {
+    return false // fewer than 2 demands: nothing to classify
+  }
+  if (c.demandClass !== 'intermittent' && c.demandClass !== 'lumpy') return false
+  warnings.push({
+    code: 'intermittent-demand',
+    message:
+      `demand is ${c.demandClass} (ADI ${c.adi.toFixed(2)}, CV² ${c.cv2.toFixed(2)})` +
+      (prep.models === undefined ? '; croston and sba added as candidates' : ''),
+  })
+  return true
+}
+
+/** Whether some candidate beyond naive (or naive, when it is the only one) can train on `length` points. */
+function canTrain(specs: readonly ModelSpec[], prep: PreparedSeries, length: number): boolean {
+  if (length < MIN_TRAINING) return false
+  return specs.some(
+    (s) =>
+      (s.name !== 'naive' || specs.length === 1) &&
+      structuralReason(s, prep.seasonLength, prep.values) === null &&
+      lengthReason(s, prep.seasonLength, length, true) === null,
+  )
+}
+
+export function forecastSeriesWith(input: SeriesInput, models: EngineModels): ForecastResult {
+  const prep = prepareSeries(input)
+  const warnings: EngineWarning[] = [...prep.warnings]
+  if (prep.flat) return flatResult(prep, warnings)
+
+  const n = prep.values.length
+  const m = prep.seasonLength
+  const intermittent = isIntermittent(prep, models, warnings)
+  const { specs, unavailable } = candidateModels(models.registry, prep.models, intermittent)
+  if (unavailable.length > 0) {
+    warnings.push({ code: 'model-unavailable', message: `not available in this build: ${unavailable.join(', ')}` })
+  }
+  if (specs.length === 0) throw new EngineInputError('invalid-option', 'none of the requested models is available', 'models')
+
+  const requirements = specs
+    .filter((s) => structuralReason(s, m, prep.values) === null)
+    .map((s) => requiredLength(s, m))
+  const plan = planHoldout(n, prep.horizon, m, prep.holdout, prep.origins, requirements)
+  if (plan.reduced) {
+    warnings.push({
+      code: 'holdout-reduced',
+      message: `holdout/origins reduced to ${plan.holdout}/${plan.origins} to leave at least ${MIN_TRAINING} training points`,
+    })
+  }
+  let method: 'holdout' | 'in-sample' = canTrain(specs, prep, n - plan.holdout - (plan.origins - 1)) ? 'holdout' : 'in-sample'
+  let evaluations: Evaluation[] =
+    method === 'holdout' ? specs.map((s) => evaluateHoldout(s, prep.values, m, plan.holdout, plan.origins)) : []
+  if (method === 'holdout' && evaluations.every((e) => e.metrics === undefined)) method = 'in-sample'
+  if (method === 'in-sample') {
+    evaluations = specs.map((s) => evaluateInSample(s, prep.values, m))
+    warnings.push({
+      code: 'in-sample-selection',
+      message: `history of ${n} periods is too short for a holdout; models were ranked by in-sample one-step errors`,
+    })
+  }
+  const ranking = rankEvaluations(specs, evaluations, prep.metric)
+  if (ranking.order.length === 0) {
+    const reason = evaluations.map((e) => e.entry.reason).find((r) => r !== undefined) ?? 'no model could be fitted'
+    throw new EngineInputError('series-too-short', reason, 'values')
+  }
+  if (ranking.fellBack) {
+    warnings.push({
+      code: 'metric-undefined',
+      message: `${prep.metric} is undefined for this history (e.g. zero scale); models were ranked by mae`,
+    })
+  }
+
+  let winner: Winner | undefined
+  let winnerEval: Evaluation | undefined
+  for (const i of ranking.order) {
+    const spec = specs[i]
+    try {
+      const fit = spec.fit(prep.values, { seasonLength: m, initialParams: evaluations[i].params })
+      const point = checkedForecast(fit, prep.horizon)
+      const variance = fit.forecastVariance?.(prep.horizon)
+      winner = { model: spec.name, family: spec.family, params: fit.params, fitted: fit.fitted, point, variance }
+      winnerEval = evaluations[i]
+      break
+    } catch (err) {
+      const why = err instanceof Error ? err.message : String(err)
+      warnings.push({ code: 'refit-failed', message: `${spec.name} failed on the full history (${why}); next candidate used` })
+    }
+  }
+  if (!winner) {
+    warnings.push({ code: 'fallback-naive', message: 'no candidate could be refitted on the full history; naive forecast used' })
+    winner = naiveWinner(prep.values, prep.horizon)
+  }
+  return assembleResult(
+    prep,
+    winner,
+    {
+      method,
+      metric: ranking.metric,
+      holdout: method === 'holdout' ? plan.holdout : 0,
+      origins: method === 'holdout' ? plan.origins : 0,
+      metrics: winnerEval?.metrics ?? null,
+      leaderboard: ranking.leaderboard,
+    },
+    warnings,
+  )
+}
+
+/**
+ * Forecast one series: validate and prepare it, select a model on a holdout, refit the
+ * winner on the whole history and forecast `horizon` periods with intervals.
+ * @throws EngineInputError on bad input (code and field set)
+ */
+export function forecastSeries(input: SeriesInput): ForecastResult {
+  return forecastSeriesWith(input, DEFAULT_MODELS)
+}

@@ -1,0 +1,42 @@
+/**
+ * Ranking scored candidates by the selection metric (lower is better).
+ * Scores within 1e-9 relative of each other tie; ties go to the lower complexity,
+ * then to registry order. If the chosen metric is undefined (null) for any scored
+ * candidate (e.g. MASE on a history whose in-sample differences are all zero), the
+ * ranking uses MAE for every candidate instead and says so.
+ */
+import { approxEqual } from '../numeric.js'
+import type { LeaderboardEntry, MetricName, ModelSpec } from '../types.js'
+import type { Evaluation } from './evaluate.js'
+
+export const TIE_TOLERANCE = 1e-9
+
+export interface Ranking {
+  /** Leaderboard: scored entries best first, then skipped and failed ones. */
+  readonly leaderboard: LeaderboardEntry[]
+  /** Indexes into the evaluations, best first (scored only). */
+  readonly order: number[]
+  readonly metric: MetricName
+  readonly fellBack: boolean
+}
+
+export function rankEvaluations(
+  specs: readonly ModelSpec[],
+  evaluations: readonly Evaluation[],
+  requested: MetricName,
+): Ranking {
+  const scored = evaluations.map((e, i) => i).filter((i) => evaluations[i].metrics !== undefined)
+  const fellBack = scored.some((i) => evaluations[i].metrics![requested] === null)
+  const metric: MetricName = fellBack ? 'mae' : requested
+  const score = (i: number): number => evaluations[i].metrics![metric] ?? Infinity
+  const order = [...scored].sort((a, b) => {
+    const sa = score(a)
+    const sb = score(b)
+    if (!approxEqual(sa, sb, TIE_TOLERANCE)) return sa - sb
+    if (specs[a].complexity !== specs[b].complexity) return specs[a].complexity - specs[b].complexity
+    return a - b
+  })
+  const leaderboard: LeaderboardEntry[] = order.map((i) => ({ ...evaluations[i].entry, score: score(i) }))
+  for (const e of evaluations) if (e.metrics === undefined) leaderboard.push(e.entry)
+  return { leaderboard, order, metric, fellBack }
+}

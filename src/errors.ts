@@ -1,0 +1,86 @@
+/**
+ * Catalogue of every problem type the API answers with (RFC 9457 problem
+ * details, `application/problem+json`). docs/problems.md lists the same types;
+ * test/errors.test.ts keeps the two in step.
+ */
+
+export const PROBLEM_BASE_URI = 'https://almanac.example/problems/'
+export const PROBLEM_CONTENT_TYPE = 'application/problem+json'
+
+export const PROBLEM_TYPES = {
+  'validation-failed': { status: 400, title: 'Validation failed' },
+  'malformed-json': { status: 400, title: 'Malformed JSON' },
+  'bad-request': { status: 400, title: 'Bad request' },
+  unauthorized: { status: 401, title: 'Unauthorized' },
+  'not-found': { status: 404, title: 'Not found' },
+  'payload-too-large': { status: 413, title: 'Payload too large' },
+  'too-many-series': { status: 413, title: 'Too many series for a synchronous forecast' },
+  'unsupported-media-type': { status: 415, title: 'Unsupported media type' },
+  'rate-limited': { status: 429, title: 'Too many requests' },
+  internal: { status: 500, title: 'Internal Server Error' },
+  'not-ready': { status: 503, title: 'Service not ready' },
+} as const satisfies Record<string, { status: number; title: string }>
+
+export type ProblemSlug = keyof typeof PROBLEM_TYPES
+
+/** One offending field: `series[3].values[2]` and what is wrong with it. */
+export interface FieldError {
+  readonly path: string
+  readonly message: string
+}
+
+export interface ProblemBody {
+  readonly type: string
+  readonly title: string
+  readonly status: number
+  readonly detail?: string
+  readonly errors?: readonly FieldError[]
+}
+
+export function problemTypeUri(slug: ProblemSlug): string {
+  return PROBLEM_BASE_URI + slug
+}
+
+export function problemBody(slug: ProblemSlug, detail?: string, errors?: readonly FieldError[]): ProblemBody {
+  const { status, title } = PROBLEM_TYPES[slug]
+  return {
+    type: problemTypeUri(slug),
+    title,
+    status,
+    ...(detail === undefined ? {} : { detail }),
+    ...(errors === undefined ? {} : { errors }),
+  }
+}
+
+/** Thrown by handlers and plugins; the error handler turns it into a problem response. */
+export class ProblemError extends Error {
+  override readonly name = 'ProblemError'
+  readonly statusCode: number
+  constructor(
+    readonly slug: ProblemSlug,
+    readonly detail?: string,
+    readonly errors?: readonly FieldError[],
+    /** Extra response headers, e.g. `WWW-Authenticate` or `Retry-After`. */
+    readonly headers: Readonly<Record<string, string>> = {},
+  ) {
+    super(detail ?? PROBLEM_TYPES[slug].title)
+    this.statusCode = PROBLEM_TYPES[slug].status
+  }
+
+  toBody(): ProblemBody {
+    return problemBody(this.slug, this.detail, this.errors)
+  }
+}
+
+/**
+ * Render a validation path the way a client writes it: `series[3].values[2]`.
+ * Numeric segments become indexes; an empty path names the request part.
+ */
+export function formatFieldPath(path: readonly PropertyKey[], root: string): string {
+  let out = ''
+  for (const seg of path) {
+    if (typeof seg === 'number') out += `[${seg}]`
+    else out += out === '' ? String(seg) : `.${String(seg)}`
+  }
+  return out === '' ? root : out
+}

@@ -1,0 +1,76 @@
+import { randomUUID } from 'node:crypto'
+import Fastify, { type FastifyBaseLogger, type FastifyInstance } from 'fastify'
+import { serializerCompiler } from 'fastify-type-provider-zod'
+import type { Redis } from 'ioredis'
+import type { Config } from '../config.js'
+import { forecastSeries } from '../engine/index.js'
+import { createLogger, type Logger } from '../logger.js'
+import type { RunGateway } from '../storage/types.js'
+import { createServiceMetrics, type ServiceMetrics } from './metrics.js'
+import authPlugin from './plugins/auth.js'
+import configPlugin from './plugins/config.js'
+import errorHandlerPlugin from './plugins/error-handler.js'
+import metricsPlugin from './plugins/metrics.js'
+import rateLimitPlugin from './plugins/rate-limit.js'
+import swaggerPlugin from './plugins/swagger.js'
+import { forecastRoutes, type ForecastFn } from './routes/forecast.js'
+import healthRoutes from './routes/health.js'
+import runRoutes from './routes/runs/index.js'
+import resultRoutes from './routes/runs/results.js'
+import skuRoutes from './routes/skus/forecast.js'
+import { validatorCompiler } from './validation.js'
+import './types.js'
+
+export interface AppDeps {
+  readonly config: Config
+  readonly gateway: RunGateway
+  /** Default: a silent logger. */
+  readonly logger?: Logger
+  /** Shared rate-limit counts; without it they stay in this process's memory. */
+  readonly rateLimitRedis?: Redis
+  /** Default: a fresh registry per app. */
+  readonly metrics?: ServiceMetrics
+  /** Default: the engine's forecastSeries. */
+  readonly forecast?: ForecastFn
+}
+
+const CLIENT_REQUEST_ID = /^[A-Za-z0-9._-]{1,64}$/
+
+/** The HTTP app, ready for inject() or listen(); never listens itself. */
+export async function build(deps: AppDeps): Promise<FastifyInstance> {
+  const { config } = deps
+  const app = Fastify({
+    loggerInstance: (deps.logger ?? createLogger({ level: 'silent' })) as FastifyBaseLogger,
+    bodyLimit: config.bodyLimitBytes,
+    // A client's X-Request-Id is kept when it is short and plain; otherwise a fresh one.
+    genReqId: (req) => {
+      const given = req.headers['x-request-id']
+      return typeof given === 'string' && CLIENT_REQUEST_ID.test(given) ? given : randomUUID()
+    },
+  })
+  app.setValidatorCompiler(validatorCompiler)
+  app.setSerializerCompiler(serializerCompiler)
+  // Only JSON bodies: anything else is 415 rather than a string the schema rejects.
+  app.removeContentTypeParser('text/plain')
+  app.addHook('onRequest', async (request, reply) => {
+    reply.header('x-request-id', request.id)
+  })
+
+  await app.register(configPlugin, {
+    config,
+    gateway: deps.gateway,
+    metrics: deps.metrics ?? createServiceMetrics(),
+  })
+  await app.register(errorHandlerPlugin)
+  await app.register(metricsPlugin)
+  await app.register(authPlugin)
+  await app.register(rateLimitPlugin, { redis: deps.rateLimitRedis })
+  await app.register(swaggerPlugin)
+
+  await app.register(healthRoutes)
+  await app.register(forecastRoutes(deps.forecast ?? forecastSeries))
+  await app.register(runRoutes, { prefix: '/v1/runs' })
+  await app.register(resultRoutes, { prefix: '/v1/runs' })
+  await app.register(skuRoutes, { prefix: '/v1/skus' })
+  return app
+}

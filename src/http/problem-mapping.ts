@@ -1,0 +1,55 @@
+import type { FastifyError } from 'fastify'
+import { formatFieldPath, ProblemError, type FieldError } from '../errors.js'
+import { RunInputError } from '../storage/types.js'
+import { isFieldIssue } from './validation.js'
+
+/** Most field errors listed in one response; the detail says how many there were. */
+export const MAX_FIELD_ERRORS = 100
+
+/**
+ * Turn anything a handler, hook or fastify itself threw into a ProblemError.
+ * Client mistakes map to 4xx types; anything unrecognised is `internal`.
+ */
+export function toProblem(err: unknown, ctx: { bodyLimitBytes: number }): ProblemError {
+  if (err instanceof ProblemError) return err
+  const e = err as Partial<FastifyError> & { validationContext?: string }
+  if (err instanceof RunInputError) {
+    return new ProblemError('validation-failed', err.message, [{ path: err.field, message: err.message }])
+  }
+  if (Array.isArray(e.validation)) return validationProblem(e.validation, e.validationContext ?? 'body')
+  switch (e.code) {
+    case 'FST_ERR_CTP_INVALID_JSON_BODY':
+      return new ProblemError('malformed-json', 'The request body is not valid JSON')
+    case 'FST_ERR_CTP_EMPTY_JSON_BODY':
+      return new ProblemError('malformed-json', 'The request body is empty but Content-Type says JSON')
+    case 'FST_ERR_CTP_BODY_TOO_LARGE':
+      return new ProblemError('payload-too-large', `The request body is larger than ${ctx.bodyLimitBytes} bytes`)
+    case 'FST_ERR_CTP_INVALID_MEDIA_TYPE':
+      return new ProblemError('unsupported-media-type', 'Send the body as application/json')
+  }
+  const status = typeof e.statusCode === 'number' ? e.statusCode : 500
+  if (status === 404) return new ProblemError('not-found')
+  if (status === 413) return new ProblemError('payload-too-large')
+  if (status === 415) return new ProblemError('unsupported-media-type', 'Send the body as application/json')
+  if (status >= 400 && status < 500) {
+    // Fastify's own client errors (bad content length, malformed header...): their messages are safe to show.
+    return new ProblemError('bad-request', typeof e.message === 'string' ? e.message : undefined)
+  }
+  return new ProblemError('internal')
+}
+
+function validationProblem(issues: readonly unknown[], part: string): ProblemError {
+  const errors: FieldError[] = issues.slice(0, MAX_FIELD_ERRORS).map((issue) => {
+    if (isFieldIssue(issue)) return { path: formatFieldPath(issue.fieldPath, part), message: issue.message ?? 'invalid' }
+    const v = issue as { instancePath?: string; message?: string }
+    const segments = (v.instancePath ?? '').split('/').filter((s) => s !== '')
+    return {
+      path: formatFieldPath(segments.map((s) => (/^\d+$/.test(s) ? Number(s) : s)), part),
+      message: v.message ?? 'invalid',
+    }
+  })
+  const where = part === 'querystring' ? 'query string' : part === 'params' ? 'path' : part
+  const more = issues.length > MAX_FIELD_ERRORS ? `; the first ${MAX_FIELD_ERRORS} are listed` : ''
+  const count = issues.length === 1 ? '1 invalid field' : `${issues.length} invalid fields`
+  return new ProblemError('validation-failed', `The request ${where} has ${count}${more}`, errors)
+}

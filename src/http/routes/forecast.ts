@@ -1,0 +1,61 @@
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import type { ForecastResult, SeriesInput } from '../../engine/index.js'
+import { ProblemError } from '../../errors.js'
+import { Problem } from '../../schemas/problem.js'
+import { ForecastResponse, type ForecastBody } from '../../schemas/results.js'
+import { RunRequest, type RunSettings, type SeriesItem } from '../../schemas/run.js'
+import { forecastItem } from '../../queue/processor.js'
+import type { ResultItem } from '../../storage/types.js'
+import type { ServiceMetrics } from '../metrics.js'
+import { BODY_PROBLEMS, COMMON_PROBLEMS } from './responses.js'
+
+export type ForecastFn = (input: SeriesInput) => ForecastResult
+
+/**
+ * Forecast one series with the same mapping the workers use (input the engine
+ * rejects becomes an item with `error`), timed into the fit metrics.
+ */
+export function timedForecastItem(fn: ForecastFn, settings: RunSettings, series: SeriesItem, metrics: ServiceMetrics): ResultItem {
+  const end = metrics.fitDuration.startTimer({ source: 'sync' })
+  try {
+    const item = forecastItem(fn, settings, series)
+    metrics.seriesFitted.inc({ source: 'sync', outcome: 'error' in item ? 'error' : 'ok' })
+    return item
+  } finally {
+    end()
+  }
+}
+
+/** POST /v1/forecast: a handful of series forecast in the request. */
+export function forecastRoutes(fn: ForecastFn): FastifyPluginAsyncZod {
+  return async (app) => {
+    app.post(
+      '/v1/forecast',
+      {
+        schema: {
+          tags: ['forecasts'],
+          summary: 'Forecast a few series now',
+          description:
+            'Selects and fits a model per series and answers with the forecasts. At most the configured ' +
+            'number of series (default 100; more gives 413 too-many-series): use POST /v1/runs for more. ' +
+            'A series the engine rejects (too short, negative values...) comes back as an item with `error`.',
+          body: RunRequest,
+          response: { 200: ForecastResponse, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
+        },
+      },
+      async (request) => {
+        const { series, ...settings } = request.body
+        const max = app.config.syncMaxSeries
+        if (series.length > max) {
+          throw new ProblemError(
+            'too-many-series',
+            `POST /v1/forecast takes at most ${max} series (got ${series.length}); submit a run with POST /v1/runs`,
+          )
+        }
+        const items = series.map((s) => timedForecastItem(fn, settings, s, app.metrics))
+        request.log.info({ series: series.length, failed: items.filter((i) => 'error' in i).length }, 'sync forecast')
+        return { items } as ForecastBody
+      },
+    )
+  }
+}

@@ -1,0 +1,29 @@
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import { ProblemError } from '../../../errors.js'
+import { SkuParams } from '../../../schemas/params.js'
+import { SkuForecast, type SkuForecastBody } from '../../../schemas/results.js'
+import { COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
+
+/** GET /v1/skus/{sku}/forecast: the latest successful forecast of a SKU. */
+const routes: FastifyPluginAsyncZod = async (app) => {
+  app.get(
+    '/:sku/forecast',
+    {
+      schema: {
+        tags: ['skus'],
+        summary: 'Latest successful forecast of a SKU',
+        description: 'URL-encode the SKU (e.g. / as %2F). 404 when no run has forecast it yet.',
+        params: SkuParams,
+        response: { 200: SkuForecast, ...COMMON_PROBLEMS, ...NOT_FOUND },
+      },
+    },
+    async (request) => {
+      const { sku } = request.params
+      const latest = await app.gateway.latestForecast(request.tenant, sku)
+      if (!latest || 'error' in latest.item) throw new ProblemError('not-found', `No forecast for SKU ${sku}`)
+      return { ...latest.item, sku, runId: latest.runId, producedAt: latest.producedAt } as SkuForecastBody
+    },
+  )
+}
+
+export default routes

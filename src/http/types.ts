@@ -1,0 +1,22 @@
+import type { Config } from '../config.js'
+import type { RunGateway } from '../storage/types.js'
+import type { ServiceMetrics } from './metrics.js'
+
+/** Decorations the plugins add to fastify's types. */
+declare module 'fastify' {
+  interface FastifyInstance {
+    config: Config
+    gateway: RunGateway
+    metrics: ServiceMetrics
+  }
+  interface FastifyRequest {
+    /** Tenant the API key belongs to (`default` when auth is off). */
+    tenant: string
+  }
+  interface FastifyContextConfig {
+    /** false: the route answers without an API key (health, metrics, docs). */
+    auth?: boolean
+  }
+}
+
+export {}

@@ -28,6 +28,10 @@ export const ConfigSchema = z.object({
   CHUNK_SIZE: intFromEnv(500, 1, 100_000),
   /** Chunk jobs processed at once per worker process (each on its own worker thread). */
   WORKER_CONCURRENCY: intFromEnv(0, 0, 256),
+  /** How long a worker holds a chunk's lock before another may take it over (renewed while alive). */
+  WORKER_LOCK_DURATION_MS: intFromEnv(30_000, 1000, 3_600_000),
+  /** How often workers look for chunks whose worker died (stalled) and requeue them. */
+  WORKER_STALLED_INTERVAL_MS: intFromEnv(30_000, 500, 3_600_000),
   /** Start an in-process worker with the API (npm start). */
   RUN_WORKER: boolFromEnv(true),
   /** How long run results are kept, in seconds. */
@@ -53,6 +57,10 @@ export interface Config {
   /** 0 means one per core. */
   readonly workerConcurrency: number
   readonly runWorker: boolean
+  /** Chunk lock duration; default 30000 when absent. */
+  readonly workerLockDurationMs?: number
+  /** Stalled-chunk check interval; default 30000 when absent. */
+  readonly workerStalledIntervalMs?: number
   readonly resultRetentionSeconds: number
   readonly bodyLimitBytes: number
   readonly syncMaxSeries: number
@@ -135,6 +143,8 @@ export function loadConfig(
     chunkSize: e.CHUNK_SIZE,
     workerConcurrency: e.WORKER_CONCURRENCY,
     runWorker: e.RUN_WORKER,
+    workerLockDurationMs: e.WORKER_LOCK_DURATION_MS,
+    workerStalledIntervalMs: e.WORKER_STALLED_INTERVAL_MS,
     resultRetentionSeconds: e.RESULT_RETENTION_SECONDS,
     bodyLimitBytes: e.BODY_LIMIT_BYTES,
     syncMaxSeries: e.SYNC_MAX_SERIES,

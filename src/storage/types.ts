@@ -10,6 +10,7 @@ export interface RunRecord {
   readonly id: string
   readonly tenant: string
   readonly status: RunStatus
+  /** Series in the run; series finished so far (including failed ones); series the engine rejected. */
   readonly progress: { readonly total: number; readonly done: number; readonly failed: number }
   /** ISO-8601 timestamps. */
   readonly createdAt: string
@@ -69,4 +70,19 @@ export interface RunGateway {
   ping(): Promise<void>
   /** Queue depth and runs by status, for /metrics. */
   stats(): Promise<{ readonly waiting: number; readonly active: number; readonly delayed: number; readonly failed: number }>
+}
+
+/**
+ * A request or page parameter the run machinery refuses (maps to HTTP 400).
+ * `field` is the offending path, e.g. `series[7].sku` or `cursor`.
+ */
+export class RunInputError extends Error {
+  override readonly name = 'RunInputError'
+  constructor(
+    readonly code: 'duplicate-sku' | 'invalid-cursor',
+    message: string,
+    readonly field: string,
+  ) {
+    super(message)
+  }
 }

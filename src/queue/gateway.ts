@@ -1,0 +1,90 @@
+import { randomUUID } from 'node:crypto'
+import { Queue } from 'bullmq'
+import type { Redis } from 'ioredis'
+import type { Config } from '../config.js'
+import type { RunRequest } from '../schemas/run.js'
+import { RunStore } from '../storage/run-store.js'
+import type { RunGateway, RunRecord } from '../storage/types.js'
+import { gatewayConnection } from './connection.js'
+import { CHUNK_JOB, CHUNK_JOB_OPTIONS, CHUNK_QUEUE, chunkJobId } from './names.js'
+import type { ChunkJob } from './payload.js'
+import { storeOptions } from './worker.js'
+
+export interface RunMachinery extends RunGateway {
+  /** Closes the queue and the Redis connection. */
+  close(): Promise<void>
+}
+
+const BATCH = 500
+
+/**
+ * The RunGateway over BullMQ and the Redis run store. `submit` stores the
+ * run record and the chunk inputs, then enqueues one small job per chunk.
+ */
+export function createRunGateway(config: Config, deps: { now?: () => Date } = {}): RunMachinery {
+  const now = deps.now ?? (() => new Date())
+  const redis: Redis = gatewayConnection(config.redisUrl)
+  redis.on('error', () => {}) // surfaced through ping() and failing calls
+  const store = new RunStore(redis, storeOptions(config))
+  const queue = new Queue<ChunkJob>(CHUNK_QUEUE, { connection: redis, prefix: config.redisPrefix })
+  queue.on('error', () => {})
+
+  const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
+
+  return {
+    async submit(tenant: string, request: RunRequest): Promise<RunRecord> {
+      const runId = randomUUID()
+      const { record, chunks } = await store.createRun(tenant, runId, request, config.chunkSize, now())
+      try {
+        for (let i = 0; i < chunks; i += BATCH) {
+          await queue.addBulk(
+            chunkIndexes(Math.min(BATCH, chunks - i)).map((j) => ({
+              name: CHUNK_JOB,
+              data: { tenant, runId, chunkIndex: i + j },
+              opts: { ...CHUNK_JOB_OPTIONS, jobId: chunkJobId(runId, i + j) },
+            })),
+          )
+        }
+      } catch (err) {
+        await store.endRun(tenant, runId, 'failed', 'could not enqueue the run', now()).catch(() => null)
+        throw err
+      }
+      return record
+    },
+
+    get: (tenant, runId) => store.getRun(tenant, runId),
+
+    results: (tenant, runId, page) => store.resultsPage(tenant, runId, page),
+
+    async cancel(tenant, runId) {
+      const before = await store.getRun(tenant, runId)
+      if (before === null || (before.status !== 'queued' && before.status !== 'running')) return before
+      const after = await store.endRun(tenant, runId, 'cancelled', null, now())
+      if (after?.status === 'cancelled') {
+        const all = chunkIndexes(await store.chunkCount(tenant, runId))
+        for (let i = 0; i < all.length; i += BATCH) {
+          // Active (locked) chunks cannot be removed; their workers see the cancelled status and skip them.
+          await Promise.allSettled(all.slice(i, i + BATCH).map((c) => queue.remove(chunkJobId(runId, c))))
+        }
+        await store.deleteChunkInputs(tenant, runId, all)
+      }
+      return after
+    },
+
+    latestForecast: (tenant, sku) => store.latest(tenant, sku),
+
+    async ping() {
+      await redis.ping()
+    },
+
+    async stats() {
+      const c = await queue.getJobCounts('waiting', 'active', 'delayed', 'failed')
+      return { waiting: c.waiting ?? 0, active: c.active ?? 0, delayed: c.delayed ?? 0, failed: c.failed ?? 0 }
+    },
+
+    async close() {
+      await queue.close()
+      await redis.quit().catch(() => undefined)
+    },
+  }
+}

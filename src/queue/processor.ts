@@ -1,0 +1,86 @@
+import { UnrecoverableError, type Job } from 'bullmq'
+import { EngineInputError, type ForecastResult, type SeriesInput } from '../engine/index.js'
+import type { Logger } from 'pino'
+import type { RunSettings, SeriesItem } from '../schemas/run.js'
+import { tallyItems, toResultItem } from '../storage/codec.js'
+import type { CommitOutcome, RunStore } from '../storage/run-store.js'
+import type { ResultItem } from '../storage/types.js'
+import { CHUNK_QUEUE } from './names.js'
+import { ChunkJob } from './payload.js'
+import { toSeriesInput } from './series-input.js'
+
+export interface ChunkProcessorDeps {
+  readonly store: RunStore
+  /** The engine's forecastSeries. */
+  readonly forecast: (input: SeriesInput) => ForecastResult
+  readonly logger: Logger
+  readonly now?: () => Date
+}
+
+export interface ChunkOutcome {
+  readonly outcome: CommitOutcome | 'skipped' | 'already-done'
+  readonly series: number
+  readonly failed: number
+}
+
+/**
+ * Forecasts one series. Input the engine rejects becomes an error item; any
+ * other error propagates so the whole chunk is retried.
+ */
+export function forecastItem(
+  forecast: ChunkProcessorDeps['forecast'],
+  settings: RunSettings,
+  series: SeriesItem,
+): ResultItem {
+  try {
+    return toResultItem(series.sku, forecast(toSeriesInput(settings, series)))
+  } catch (err) {
+    if (err instanceof EngineInputError) return { sku: series.sku, error: { code: err.code, message: err.message } }
+    throw err
+  }
+}
+
+/**
+ * The chunk job processor: reads the chunk's series, forecasts each, and
+ * commits items and counts in one atomic step (idempotent per chunk). Chunks of
+ * cancelled or failed runs are skipped. Steps after the commit (latest-forecast
+ * pointers, deleting the input) are idempotent, so a retry after a crash
+ * anywhere recomputes at most one chunk and never double-counts.
+ */
+export function createChunkProcessor(deps: ChunkProcessorDeps) {
+  const now = deps.now ?? (() => new Date())
+  return async (job: Job): Promise<ChunkOutcome> => {
+    const parsed = ChunkJob.safeParse(job.data)
+    if (!parsed.success) throw new UnrecoverableError(`invalid chunk job data: ${parsed.error.issues[0]?.message}`)
+    const { tenant, runId, chunkIndex } = parsed.data
+    const log = deps.logger.child({ queue: CHUNK_QUEUE, jobId: job.id, runId, tenant, chunkIndex })
+    const { store } = deps
+
+    const run = await store.startChunk(tenant, runId, now())
+    if (run === null || run.status !== 'running') {
+      await store.deleteChunkInputs(tenant, runId, [chunkIndex])
+      log.info({ status: run?.status ?? 'missing' }, 'run not active: chunk skipped')
+      return { outcome: 'skipped', series: 0, failed: 0 }
+    }
+    const series = await store.readChunkInput(tenant, runId, chunkIndex)
+    if (series === null) {
+      if (await store.isChunkCommitted(tenant, runId, chunkIndex)) return { outcome: 'already-done', series: 0, failed: 0 }
+      const current = await store.getRun(tenant, runId)
+      if (current !== null && current.status !== 'running') return { outcome: 'skipped', series: 0, failed: 0 }
+      throw new UnrecoverableError(`input of chunk ${chunkIndex} is missing (expired?)`)
+    }
+
+    const started = performance.now()
+    const items = series.map((s) => forecastItem(deps.forecast, run.settings, s))
+    const computeMs = Math.round(performance.now() - started)
+    const tally = tallyItems(items, run.settings.metric)
+    const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now())
+    if (outcome === 'committed' || outcome === 'finished' || outcome === 'duplicate') {
+      const ok = items.filter((i) => !('error' in i)).map((i) => i.sku)
+      await store.updateLatest(tenant, runId, run.createdAtMs, now(), ok)
+    }
+    await store.deleteChunkInputs(tenant, runId, [chunkIndex])
+    log.info({ outcome, series: items.length, failed: tally.failed, computeMs }, 'chunk processed')
+    return { outcome, series: items.length, failed: tally.failed }
+  }
+}

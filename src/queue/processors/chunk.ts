@@ -1,0 +1,34 @@
+import { workerData } from 'node:worker_threads'
+import { z } from 'zod'
+import { forecastSeries } from '../../engine/index.js'
+import { createLogger } from '../../logger.js'
+import { RunStore } from '../../storage/run-store.js'
+import { workerConnection } from '../connection.js'
+import { createChunkProcessor } from '../processor.js'
+
+/**
+ * The sandboxed chunk processor: BullMQ loads this module (through
+ * chunk-entry.mjs) on a worker thread of its pool, so CPU-heavy fitting never
+ * blocks the main thread that renews job locks. Each thread opens its own
+ * Redis connection; settings arrive as `workerData` (see worker.ts).
+ */
+export const SandboxContext = z.object({
+  redisUrl: z.string(),
+  prefix: z.string(),
+  resultTtlSeconds: z.number().int().positive(),
+  recordTtlSeconds: z.number().int().positive(),
+  logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
+})
+export type SandboxContext = z.infer<typeof SandboxContext>
+
+const ctx = SandboxContext.parse(workerData)
+const redis = workerConnection(ctx.redisUrl)
+const logger = createLogger({ level: ctx.logLevel })
+redis.on('error', (err) => logger.warn({ err }, 'redis connection error (sandboxed processor)'))
+const store = new RunStore(redis, {
+  prefix: ctx.prefix,
+  resultTtlSeconds: ctx.resultTtlSeconds,
+  recordTtlSeconds: ctx.recordTtlSeconds,
+})
+
+export default createChunkProcessor({ store, forecast: forecastSeries, logger })

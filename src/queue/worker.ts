@@ -1,0 +1,80 @@
+import { availableParallelism } from 'node:os'
+import { Worker } from 'bullmq'
+import type { Logger } from 'pino'
+import type { Config } from '../config.js'
+import { RunStore } from '../storage/run-store.js'
+import { workerConnection } from './connection.js'
+import { CHUNK_QUEUE, RECORD_TTL_FACTOR } from './names.js'
+import { ChunkJob } from './payload.js'
+import type { SandboxContext } from './processors/chunk.js'
+
+export interface RunWorkers {
+  readonly worker: Worker
+  readonly concurrency: number
+  /** Stops taking chunks, lets in-flight chunks finish, then closes Redis. */
+  close(): Promise<void>
+}
+
+/** Retention settings of the run store, derived from config. */
+export function storeOptions(config: Config) {
+  return {
+    prefix: config.redisPrefix,
+    resultTtlSeconds: config.resultRetentionSeconds,
+    recordTtlSeconds: config.resultRetentionSeconds * RECORD_TTL_FACTOR,
+  }
+}
+
+/**
+ * Starts a chunk worker. Chunks run sandboxed on a pool of worker threads
+ * (one per unit of concurrency, default one per core), so a process uses all
+ * cores and lock renewal on the main thread keeps up with CPU-heavy fitting.
+ * A chunk that fails its last attempt fails its whole run.
+ */
+export function startWorkers(config: Config, logger: Logger): RunWorkers {
+  const log = logger.child({ queue: CHUNK_QUEUE })
+  const connection = workerConnection(config.redisUrl)
+  const storeRedis = workerConnection(config.redisUrl)
+  const store = new RunStore(storeRedis, storeOptions(config))
+  const concurrency = config.workerConcurrency > 0 ? config.workerConcurrency : availableParallelism()
+  const sandbox: SandboxContext = { redisUrl: config.redisUrl, ...storeOptions(config), logLevel: config.logLevel }
+
+  const worker = new Worker(CHUNK_QUEUE, new URL('./processors/chunk-entry.mjs', import.meta.url), {
+    connection,
+    prefix: config.redisPrefix,
+    concurrency,
+    useWorkerThreads: true,
+    workerThreadsOptions: { workerData: sandbox },
+    lockDuration: config.workerLockDurationMs ?? 30_000,
+    stalledInterval: config.workerStalledIntervalMs ?? 30_000,
+    // A chunk whose worker died twice is given up (and its run failed) rather than retried forever.
+    maxStalledCount: 2,
+  })
+
+  worker.on('error', (err) => log.error({ err }, 'worker error'))
+  worker.on('failed', (job, err) => {
+    if (!job) return
+    const jlog = log.child({ jobId: job.id, runId: job.data?.runId, tenant: job.data?.tenant })
+    void (async () => {
+      if (!(await job.isFailed())) {
+        jlog.warn({ err, attemptsMade: job.attemptsMade }, 'chunk attempt failed; will retry')
+        return
+      }
+      const data = ChunkJob.safeParse(job.data)
+      if (!data.success) return jlog.error({ err }, 'chunk with invalid data failed')
+      const { tenant, runId, chunkIndex } = data.data
+      await store.endRun(tenant, runId, 'failed', `chunk ${chunkIndex} failed: ${err.message}`, new Date())
+      jlog.error({ err, attemptsMade: job.attemptsMade }, 'chunk failed for good: run failed')
+    })().catch((e) => jlog.error({ err: e }, 'could not record failed chunk'))
+  })
+  log.info({ concurrency, prefix: config.redisPrefix }, 'chunk worker started')
+
+  return {
+    worker,
+    concurrency,
+    close: async () => {
+      await worker.close()
+      await Promise.allSettled([connection.quit(), storeRedis.quit()])
+      log.info('chunk worker stopped')
+    },
+  }
+}

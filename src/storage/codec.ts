@@ -1,0 +1,138 @@
+import { METRIC_NAMES, MODEL_NAMES, type ForecastResult, type ModelName } from '../engine/index.js'
+import { RunSettings } from '../schemas/run.js'
+import { RUN_STATUSES, type RunRecord, type RunStatus, type ResultItem, type RunSummary } from './types.js'
+
+/** Conversions between stored strings and the contract types. */
+
+/** Fields of the run hash written at submit time. */
+export function newRunFields(run: {
+  id: string
+  tenant: string
+  createdAt: string
+  total: number
+  chunks: number
+  settings: RunSettings
+}): Record<string, string> {
+  return {
+    id: run.id,
+    tenant: run.tenant,
+    status: 'queued',
+    total: String(run.total),
+    done: '0',
+    failed: '0',
+    chunks: String(run.chunks),
+    chunksRemaining: String(run.chunks),
+    createdAt: run.createdAt,
+    settings: JSON.stringify(run.settings),
+    errSum: '0',
+    errCount: '0',
+  }
+}
+
+const isStatus = (s: string | undefined): s is RunStatus => RUN_STATUSES.includes(s as RunStatus)
+const isModel = (s: string): s is ModelName => (MODEL_NAMES as readonly string[]).includes(s)
+
+/** Run hash (HGETALL) to RunRecord; null for an empty hash (no such run). */
+export function decodeRunRecord(hash: Record<string, string>): RunRecord | null {
+  if (!hash.id || !isStatus(hash.status)) return null
+  const settings = RunSettings.parse(JSON.parse(hash.settings ?? '{}'))
+  return {
+    id: hash.id,
+    tenant: hash.tenant ?? '',
+    status: hash.status,
+    progress: { total: Number(hash.total ?? 0), done: Number(hash.done ?? 0), failed: Number(hash.failed ?? 0) },
+    createdAt: hash.createdAt ?? '',
+    startedAt: hash.startedAt ?? null,
+    finishedAt: hash.finishedAt ?? null,
+    settings,
+    summary: hash.status === 'succeeded' ? decodeSummary(hash, settings) : null,
+    error: hash.error ?? null,
+  }
+}
+
+function decodeSummary(hash: Record<string, string>, settings: RunSettings): RunSummary {
+  const modelWins: Partial<Record<ModelName, number>> = {}
+  for (const [field, value] of Object.entries(hash)) {
+    const model = field.startsWith('win:') ? field.slice(4) : ''
+    if (isModel(model)) modelWins[model] = Number(value)
+  }
+  const errCount = Number(hash.errCount ?? 0)
+  const errSum = Number(hash.errSum ?? 0)
+  return {
+    metric: settings.metric,
+    modelWins,
+    meanHoldoutError: errCount > 0 && Number.isFinite(errSum) ? errSum / errCount : null,
+  }
+}
+
+/** Summary contributions of one chunk. */
+export interface ChunkTally {
+  readonly done: number
+  readonly failed: number
+  readonly wins: ReadonlyMap<ModelName, number>
+  /** Sum and count of the winners' holdout errors on the run's metric, where defined. */
+  readonly errSum: number
+  readonly errCount: number
+}
+
+/**
+ * Tally of a chunk's items: every item is done, error items are also failed.
+ * Holdout error counts only where selection used a holdout and the value is finite.
+ */
+export function tallyItems(items: readonly ResultItem[], metric: (typeof METRIC_NAMES)[number]): ChunkTally {
+  const wins = new Map<ModelName, number>()
+  let failed = 0
+  let errSum = 0
+  let errCount = 0
+  for (const item of items) {
+    if ('error' in item) {
+      failed++
+      continue
+    }
+    wins.set(item.model, (wins.get(item.model) ?? 0) + 1)
+    const value = item.selection.method === 'holdout' ? item.metrics?.[metric] : null
+    if (typeof value === 'number' && Number.isFinite(value)) {
+      errSum += value
+      errCount++
+    }
+  }
+  return { done: items.length, failed, wins, errSum, errCount }
+}
+
+/** The stored part of a successful engine result (no fitted values, no history). */
+export function toResultItem(sku: string, r: ForecastResult): ResultItem {
+  return {
+    sku,
+    model: r.model,
+    family: r.family,
+    params: r.params,
+    selection: r.selection,
+    metrics: r.metrics,
+    leaderboard: r.leaderboard,
+    forecast: r.forecast,
+    intervals: r.intervals,
+    warnings: r.warnings,
+  }
+}
+
+/** Compact JSON of an item without its sku (the sku is the hash field). */
+export function encodeItem(item: ResultItem): string {
+  const { sku: _sku, ...rest } = item
+  return JSON.stringify(rest)
+}
+
+export function decodeItem(sku: string, json: string): ResultItem {
+  return { sku, ...(JSON.parse(json) as object) } as ResultItem
+}
+
+/** Opaque page cursor: the last SKU of the previous page, base64url. */
+export function encodeCursor(sku: string): string {
+  return Buffer.from(sku, 'utf8').toString('base64url')
+}
+
+/** @returns the SKU, or null when the cursor is malformed. */
+export function decodeCursor(cursor: string): string | null {
+  if (!/^[A-Za-z0-9_-]+$/.test(cursor)) return null
+  const sku = Buffer.from(cursor, 'base64url').toString('utf8')
+  return sku.length > 0 && encodeCursor(sku) === cursor ? sku : null
+}

@@ -1,0 +1,61 @@
+/**
+ * Redis key layout of the run machinery. Every key starts with
+ * `${prefix}:t:${tenant}:` so tenants never share a key.
+ *
+ *   run:{R}            hash   the run record, progress counters and summary accumulators
+ *   run:{R}:chunks     set    indexes of chunks whose results are committed (idempotence)
+ *   run:{R}:in:<i>     string chunk i's input series (JSON), deleted once the chunk is done
+ *   run:{R}:skus       zset   every SKU with a result, all score 0 (ordered by ZRANGEBYLEX)
+ *   run:{R}:items      hash   sku -> compact JSON result item (without the sku)
+ *   latest             hash   sku -> `${createdAtMs}|${runId}|${producedAt}` of the newest run
+ *                             with a successful forecast for that SKU
+ *
+ * Redis Cluster: the run id sits in a hash tag (`{R}`), so every key of one run
+ * hashes to one slot and the Lua scripts that touch several of them are legal.
+ * `latest` is only ever used alone (single-key script). The prefix and tenant
+ * must not contain braces (enforced here and by config), or they would become
+ * the hash tag. BullMQ on a cluster additionally needs its own prefix in braces,
+ * which this layout does not cover (single Redis or Sentinel today).
+ */
+
+const TENANT = /^[A-Za-z0-9_-]{1,64}$/
+const RUN_ID = /^[A-Za-z0-9-]{1,64}$/
+
+/** True when `tenant` can be used in a key (same rule as API key tenants). */
+export function isValidTenant(tenant: string): boolean {
+  return TENANT.test(tenant)
+}
+
+/** True when `runId` has the shape of the ids this service issues. */
+export function isValidRunId(runId: string): boolean {
+  return RUN_ID.test(runId)
+}
+
+export interface RunKeys {
+  readonly run: string
+  readonly chunks: string
+  readonly skus: string
+  readonly items: string
+  input(chunkIndex: number): string
+}
+
+function tenantBase(prefix: string, tenant: string): string {
+  if (!isValidTenant(tenant)) throw new Error(`invalid tenant for a Redis key: ${JSON.stringify(tenant)}`)
+  return `${prefix}:t:${tenant}`
+}
+
+export function runKeys(prefix: string, tenant: string, runId: string): RunKeys {
+  if (!isValidRunId(runId)) throw new Error(`invalid run id for a Redis key: ${JSON.stringify(runId)}`)
+  const run = `${tenantBase(prefix, tenant)}:run:{${runId}}`
+  return {
+    run,
+    chunks: `${run}:chunks`,
+    skus: `${run}:skus`,
+    items: `${run}:items`,
+    input: (chunkIndex) => `${run}:in:${chunkIndex}`,
+  }
+}
+
+export function latestKey(prefix: string, tenant: string): string {
+  return `${tenantBase(prefix, tenant)}:latest`
+}

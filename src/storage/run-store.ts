@@ -1,0 +1,215 @@
+import type { Redis } from 'ioredis'
+import { RunSettings, SeriesItem, type RunRequest } from '../schemas/run.js'
+import { z } from 'zod'
+import {
+  decodeCursor,
+  decodeItem,
+  decodeRunRecord,
+  encodeCursor,
+  encodeItem,
+  newRunFields,
+  type ChunkTally,
+} from './codec.js'
+import { latestKey, runKeys, isValidRunId, isValidTenant } from './keys.js'
+import { defineRunScripts, type RunScripts } from './scripts.js'
+import { RunInputError, type LatestForecast, type ResultItem, type ResultPage, type RunRecord } from './types.js'
+
+export interface RunStoreOptions {
+  readonly prefix: string
+  /** TTL of results, chunk inputs and the latest-forecast index. */
+  readonly resultTtlSeconds: number
+  /** TTL of the run record (status, progress, summary); at least resultTtlSeconds. */
+  readonly recordTtlSeconds: number
+}
+
+export type CommitOutcome = 'committed' | 'finished' | 'duplicate' | 'missing' | 'cancelled' | 'failed' | 'succeeded'
+
+export interface ChunkStart {
+  readonly status: string
+  readonly settings: RunSettings
+  readonly createdAtMs: number
+}
+
+const ChunkInput = z.array(SeriesItem)
+
+/** Run records, chunk inputs and results in Redis (layout in keys.ts, scripts in scripts.ts). */
+export class RunStore {
+  private readonly scripts: RunScripts
+
+  constructor(
+    private readonly redis: Redis,
+    private readonly opts: RunStoreOptions,
+  ) {
+    this.scripts = defineRunScripts(redis)
+  }
+
+  private keys(tenant: string, runId: string) {
+    return runKeys(this.opts.prefix, tenant, runId)
+  }
+
+  /**
+   * Writes the run record and one input key per chunk in one transaction.
+   * @throws RunInputError when two series share a SKU.
+   */
+  async createRun(
+    tenant: string,
+    runId: string,
+    request: RunRequest,
+    chunkSize: number,
+    now: Date,
+  ): Promise<{ record: RunRecord; chunks: number }> {
+    const seen = new Set<string>()
+    request.series.forEach((s, i) => {
+      if (seen.has(s.sku)) throw new RunInputError('duplicate-sku', `SKU ${JSON.stringify(s.sku)} appears more than once`, `series[${i}].sku`)
+      seen.add(s.sku)
+    })
+    const { series, ...settings } = request
+    const chunks = Math.ceil(series.length / chunkSize)
+    const k = this.keys(tenant, runId)
+    const tx = this.redis.multi()
+    const fields = newRunFields({ id: runId, tenant, createdAt: now.toISOString(), total: series.length, chunks, settings })
+    tx.hset(k.run, fields)
+    tx.expire(k.run, this.opts.recordTtlSeconds)
+    for (let c = 0; c < chunks; c++) {
+      tx.set(k.input(c), JSON.stringify(series.slice(c * chunkSize, (c + 1) * chunkSize)), 'EX', this.opts.resultTtlSeconds)
+    }
+    await execOrThrow(tx)
+    return { record: decodeRunRecord(fields)!, chunks }
+  }
+
+  async getRun(tenant: string, runId: string): Promise<RunRecord | null> {
+    if (!isValidTenant(tenant) || !isValidRunId(runId)) return null
+    return decodeRunRecord(await this.redis.hgetall(this.keys(tenant, runId).run))
+  }
+
+  /** How many chunks the run was split into (0 when the run is unknown). */
+  async chunkCount(tenant: string, runId: string): Promise<number> {
+    return Number((await this.redis.hget(this.keys(tenant, runId).run, 'chunks')) ?? 0)
+  }
+
+  /** Marks the run running if it was queued; null when the run is gone. */
+  async startChunk(tenant: string, runId: string, now: Date): Promise<ChunkStart | null> {
+    const r = await this.scripts.startChunk(this.keys(tenant, runId).run, now.toISOString())
+    if (r === null) return null
+    const [status, settings, createdAt] = r
+    return { status, settings: RunSettings.parse(JSON.parse(settings)), createdAtMs: Date.parse(createdAt) }
+  }
+
+  /** The chunk's series, or null when the key is gone (chunk done, run cancelled, or expired). */
+  async readChunkInput(tenant: string, runId: string, chunkIndex: number): Promise<SeriesItem[] | null> {
+    const json = await this.redis.get(this.keys(tenant, runId).input(chunkIndex))
+    return json === null ? null : ChunkInput.parse(JSON.parse(json))
+  }
+
+  async isChunkCommitted(tenant: string, runId: string, chunkIndex: number): Promise<boolean> {
+    return (await this.redis.sismember(this.keys(tenant, runId).chunks, String(chunkIndex))) === 1
+  }
+
+  async deleteChunkInputs(tenant: string, runId: string, chunkIndexes: readonly number[]): Promise<void> {
+    const k = this.keys(tenant, runId)
+    for (let i = 0; i < chunkIndexes.length; i += 1000) {
+      await this.redis.unlink(...chunkIndexes.slice(i, i + 1000).map((c) => k.input(c)))
+    }
+  }
+
+  /** Stores a chunk's items and counts atomically; idempotent per chunk index. */
+  async commitChunk(
+    tenant: string,
+    runId: string,
+    chunkIndex: number,
+    items: readonly ResultItem[],
+    tally: ChunkTally,
+    now: Date,
+  ): Promise<CommitOutcome> {
+    const k = this.keys(tenant, runId)
+    const args: (string | number)[] = [
+      chunkIndex,
+      now.toISOString(),
+      this.opts.resultTtlSeconds,
+      this.opts.recordTtlSeconds,
+      tally.done,
+      tally.failed,
+      String(tally.errSum),
+      tally.errCount,
+      tally.wins.size,
+    ]
+    for (const [model, n] of tally.wins) args.push(model, n)
+    for (const item of items) args.push(item.sku, encodeItem(item))
+    return (await this.scripts.commitChunk([k.run, k.chunks, k.skus, k.items], args)) as CommitOutcome
+  }
+
+  /** Ends a queued or running run; returns the record afterwards (null if unknown). */
+  async endRun(tenant: string, runId: string, status: 'cancelled' | 'failed', error: string | null, now: Date): Promise<RunRecord | null> {
+    if (!isValidTenant(tenant) || !isValidRunId(runId)) return null
+    const k = this.keys(tenant, runId)
+    const r = await this.scripts.endRun(
+      [k.run, k.chunks, k.skus, k.items],
+      [status, now.toISOString(), error ?? '', this.opts.resultTtlSeconds, this.opts.recordTtlSeconds],
+    )
+    return r === null ? null : this.getRun(tenant, runId)
+  }
+
+  /** Points the SKUs' latest forecast at this run unless a newer run already holds them. */
+  async updateLatest(tenant: string, runId: string, createdAtMs: number, producedAt: Date, skus: readonly string[]): Promise<number> {
+    if (skus.length === 0) return 0
+    return this.scripts.updateLatest(latestKey(this.opts.prefix, tenant), [
+      createdAtMs,
+      runId,
+      producedAt.toISOString(),
+      this.opts.resultTtlSeconds,
+      ...skus,
+    ])
+  }
+
+  /**
+   * One page of a run's results ordered by SKU (byte order), or null when the run does not exist.
+   * @throws RunInputError on a malformed cursor.
+   */
+  async resultsPage(
+    tenant: string,
+    runId: string,
+    page: { readonly limit: number; readonly cursor?: string; readonly sku?: string },
+  ): Promise<ResultPage | null> {
+    if (!isValidTenant(tenant) || !isValidRunId(runId)) return null
+    const k = this.keys(tenant, runId)
+    if (!(await this.redis.exists(k.run))) return null
+    if (page.sku !== undefined) {
+      const json = await this.redis.hget(k.items, page.sku)
+      return { items: json === null ? [] : [decodeItem(page.sku, json)], nextCursor: null }
+    }
+    let from = '-'
+    if (page.cursor !== undefined) {
+      const after = decodeCursor(page.cursor)
+      if (after === null) throw new RunInputError('invalid-cursor', 'cursor is not one this service issued', 'cursor')
+      from = `(${after}`
+    }
+    const limit = Math.max(1, Math.floor(page.limit))
+    const skus = await this.redis.zrangebylex(k.skus, from, '+', 'LIMIT', 0, limit + 1)
+    const pageSkus = skus.slice(0, limit)
+    const jsons = pageSkus.length > 0 ? await this.redis.hmget(k.items, ...pageSkus) : []
+    const items: ResultItem[] = []
+    pageSkus.forEach((sku, i) => {
+      const json = jsons[i]
+      if (json != null) items.push(decodeItem(sku, json))
+    })
+    const last = pageSkus[pageSkus.length - 1]
+    return { items, nextCursor: skus.length > limit && last !== undefined ? encodeCursor(last) : null }
+  }
+
+  /** The newest successful forecast of a SKU still within retention, or null. */
+  async latest(tenant: string, sku: string): Promise<LatestForecast | null> {
+    if (!isValidTenant(tenant)) return null
+    const pointer = await this.redis.hget(latestKey(this.opts.prefix, tenant), sku)
+    if (pointer === null) return null
+    const [, runId, producedAt] = pointer.split('|')
+    if (!runId || !producedAt || !isValidRunId(runId)) return null
+    const json = await this.redis.hget(this.keys(tenant, runId).items, sku)
+    return json === null ? null : { runId, producedAt, item: decodeItem(sku, json) }
+  }
+}
+
+async function execOrThrow(tx: ReturnType<Redis['multi']>): Promise<void> {
+  const results = await tx.exec()
+  if (results === null) throw new Error('Redis transaction was aborted')
+  for (const [err] of results) if (err) throw err
+}

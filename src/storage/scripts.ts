@@ -1,0 +1,150 @@
+import type { Redis } from 'ioredis'
+
+/**
+ * Lua scripts of the run store. Each runs atomically on one Redis node; the
+ * keys of one script share a run's hash tag (see keys.ts), so they also work on
+ * a cluster. Statuses that may still change: 'queued' and 'running'.
+ */
+
+/**
+ * startChunk. KEYS: run. ARGV: nowIso.
+ * Moves a queued run to running (first chunk started). Returns
+ * {status, settingsJson, createdAt}, or nil when the run does not exist.
+ */
+const START_CHUNK = `
+local st = redis.call('HGET', KEYS[1], 'status')
+if not st then return nil end
+if st == 'queued' then
+  redis.call('HSET', KEYS[1], 'status', 'running', 'startedAt', ARGV[1])
+  st = 'running'
+end
+return {st, redis.call('HGET', KEYS[1], 'settings'), redis.call('HGET', KEYS[1], 'createdAt')}
+`
+
+/**
+ * commitChunk. KEYS: run, chunks, skus, items.
+ * ARGV: chunkIndex, nowIso, resultTtl, recordTtl, done, failed, errSum, errCount,
+ *       nWins, then nWins pairs (model, count), then pairs (sku, itemJson).
+ * In one atomic step: skip unless the run is queued/running, skip a chunk
+ * already committed (a retry never double-counts), store the items, add the
+ * counts and summary accumulators, decrement the chunks remaining, and finish
+ * the run when that reaches zero.
+ * Returns 'committed' | 'finished' | 'duplicate' | 'missing' | the run's terminal status.
+ */
+const COMMIT_CHUNK = `
+local st = redis.call('HGET', KEYS[1], 'status')
+if not st then return 'missing' end
+if st ~= 'queued' and st ~= 'running' then return st end
+if redis.call('SADD', KEYS[2], ARGV[1]) == 0 then return 'duplicate' end
+local resultTtl = tonumber(ARGV[3])
+local nWins = tonumber(ARGV[9])
+local i = 10
+for _ = 1, nWins do
+  redis.call('HINCRBY', KEYS[1], 'win:' .. ARGV[i], tonumber(ARGV[i + 1]))
+  i = i + 2
+end
+while i < #ARGV do
+  redis.call('ZADD', KEYS[3], 0, ARGV[i])
+  redis.call('HSET', KEYS[4], ARGV[i], ARGV[i + 1])
+  i = i + 2
+end
+redis.call('HINCRBY', KEYS[1], 'done', tonumber(ARGV[5]))
+redis.call('HINCRBY', KEYS[1], 'failed', tonumber(ARGV[6]))
+redis.call('HINCRBYFLOAT', KEYS[1], 'errSum', ARGV[7])
+redis.call('HINCRBY', KEYS[1], 'errCount', tonumber(ARGV[8]))
+if st == 'queued' then redis.call('HSET', KEYS[1], 'status', 'running', 'startedAt', ARGV[2]) end
+for k = 2, 4 do redis.call('EXPIRE', KEYS[k], resultTtl) end
+local remaining = redis.call('HINCRBY', KEYS[1], 'chunksRemaining', -1)
+if remaining <= 0 then
+  redis.call('HSET', KEYS[1], 'status', 'succeeded', 'finishedAt', ARGV[2])
+  redis.call('EXPIRE', KEYS[1], tonumber(ARGV[4]))
+  return 'finished'
+end
+return 'committed'
+`
+
+/**
+ * endRun. KEYS: run, chunks, skus, items. ARGV: status ('cancelled'|'failed'),
+ * nowIso, error ('' for none), resultTtl, recordTtl.
+ * Ends a queued or running run; returns the status the run has afterwards, or
+ * nil when it does not exist. A finished run is left unchanged.
+ */
+const END_RUN = `
+local st = redis.call('HGET', KEYS[1], 'status')
+if not st then return nil end
+if st ~= 'queued' and st ~= 'running' then return st end
+redis.call('HSET', KEYS[1], 'status', ARGV[1], 'finishedAt', ARGV[2])
+if ARGV[3] ~= '' then redis.call('HSET', KEYS[1], 'error', ARGV[3]) end
+redis.call('EXPIRE', KEYS[1], tonumber(ARGV[5]))
+for k = 2, 4 do
+  if redis.call('EXISTS', KEYS[k]) == 1 then redis.call('EXPIRE', KEYS[k], tonumber(ARGV[4])) end
+end
+return ARGV[1]
+`
+
+/**
+ * updateLatest. KEYS: latest. ARGV: createdAtMs, runId, producedAt, ttl, then skus.
+ * Points each SKU at this run unless a run created later already holds it
+ * (a run finishing late never overwrites a newer one). Ties go to the larger run id.
+ * Returns how many pointers changed.
+ */
+const UPDATE_LATEST = `
+local created = tonumber(ARGV[1])
+local value = ARGV[1] .. '|' .. ARGV[2] .. '|' .. ARGV[3]
+local changed = 0
+for i = 5, #ARGV do
+  local cur = redis.call('HGET', KEYS[1], ARGV[i])
+  local take = true
+  if cur then
+    local sep = string.find(cur, '|', 1, true)
+    local curCreated = tonumber(string.sub(cur, 1, sep - 1))
+    local rest = string.sub(cur, sep + 1)
+    local curRun = string.sub(rest, 1, (string.find(rest, '|', 1, true) or 0) - 1)
+    take = curCreated < created or (curCreated == created and curRun <= ARGV[2])
+  end
+  if take then
+    redis.call('HSET', KEYS[1], ARGV[i], value)
+    changed = changed + 1
+  end
+end
+redis.call('EXPIRE', KEYS[1], tonumber(ARGV[4]))
+return changed
+`
+
+export interface RunScripts {
+  startChunk(run: string, nowIso: string): Promise<[string, string, string] | null>
+  commitChunk(keys: readonly [string, string, string, string], args: readonly (string | number)[]): Promise<string>
+  endRun(keys: readonly [string, string, string, string], args: readonly (string | number)[]): Promise<string | null>
+  updateLatest(key: string, args: readonly (string | number)[]): Promise<number>
+}
+
+type Call = (...args: (string | number)[]) => Promise<unknown>
+
+/**
+ * Registers the scripts on a connection (ioredis sends EVALSHA and falls back
+ * to EVAL when the script cache is empty) and returns typed callers.
+ */
+export function defineRunScripts(redis: Redis): RunScripts {
+  const scripts = {
+    almanacStartChunk: [1, START_CHUNK],
+    almanacCommitChunk: [4, COMMIT_CHUNK],
+    almanacEndRun: [4, END_RUN],
+    almanacUpdateLatest: [1, UPDATE_LATEST],
+  } as const
+  for (const [name, [numberOfKeys, lua]] of Object.entries(scripts)) {
+    if (!(name in redis)) redis.defineCommand(name, { numberOfKeys, lua })
+  }
+  const cmd = (name: keyof typeof scripts): Call => {
+    const fn = (redis as unknown as Record<string, Call>)[name]
+    return fn.bind(redis)
+  }
+  return {
+    startChunk: async (run, nowIso) => (await cmd('almanacStartChunk')(run, nowIso)) as [string, string, string] | null,
+    commitChunk: async (keys, args) => String(await cmd('almanacCommitChunk')(...keys, ...args)),
+    endRun: async (keys, args) => {
+      const r = await cmd('almanacEndRun')(...keys, ...args)
+      return r === null ? null : String(r)
+    },
+    updateLatest: async (key, args) => Number(await cmd('almanacUpdateLatest')(key, ...args)),
+  }
+}

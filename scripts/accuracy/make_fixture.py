@@ -14,7 +14,9 @@ Reference forecasts on the train part:
     multiplicative error or season only for strictly positive training data,
     seasonal only when m > 1 and the train part has at least 2 full seasons.
     Additive error with multiplicative season is left out (the restricted model
-    set of Hyndman et al. 2008, from memory: numerically unstable).
+    set of Hyndman et al. 2008, from memory: numerically unstable). A fit with a
+    multiplicative part whose fitted values or forecasts are not all positive is
+    rejected as inadmissible (such models assume positive states).
     Point forecast = the model's mean forecast; 80% and 95% intervals from
     get_prediction(...).summary_frame(alpha): analytical ("exact") for the
     linear models ANN, AAN, AAdN, ANA, AAA, AAdA, simulated (5,000 sample
@@ -145,6 +147,13 @@ def auto_ets(train, m, h):
             fc = np.asarray(fit.forecast(h), dtype=float)
             if not math.isfinite(aicc) or not np.all(np.isfinite(fc)):
                 tried.append({"model": name, "aicc": None, "note": "non-finite"})
+                continue
+            multiplicative = error == "mul" or seasonal == "mul"
+            fitted = np.asarray(fit.fittedvalues, dtype=float)
+            if multiplicative and (np.any(fitted <= 0) or np.any(fc <= 0)):
+                # Multiplicative models are defined for positive states only; a fit
+                # whose fitted values or forecasts turn non-positive is inadmissible.
+                tried.append({"model": name, "aicc": round(aicc, 6), "note": "inadmissible: non-positive fitted or forecast"})
                 continue
         except Exception as err:  # a failing candidate is skipped, as in auto selection
             tried.append({"model": name, "aicc": None, "note": type(err).__name__})

@@ -1,0 +1,41 @@
+import { describe, expect, it } from 'vitest'
+import { fitMovingAverage } from '../../../src/engine/trend/index.js'
+import { movingAverage } from '../../../src/engine/trend/moving-average.js'
+import { expectEngineError, expectInputGuards, expectSane } from './spec-checks.js'
+
+describe('moving-average', () => {
+  it('rejects empty, non-finite and too-short input', () => {
+    expectInputGuards(movingAverage, 1)
+    expectEngineError(() => fitMovingAverage([1, 2, 3]), 'series-too-short', 'moving-average requires at least 4 data points')
+    expectEngineError(() => fitMovingAverage([1, 2, 3, 4], 5), 'invalid-option')
+  })
+
+  it('forecasts a constant and an all-zero series flat', () => {
+    expect(expectSane(fitMovingAverage([8, 8, 8, 8, 8]), 5)).toEqual(new Array(12).fill(8))
+    expect(expectSane(fitMovingAverage([0, 0, 0, 0]), 4)).toEqual(new Array(12).fill(0))
+  })
+
+  // Hand computation: a repeating 10, 14, 6 pattern. Windows 3, 6 and 9 average
+  // whole cycles (fitted 10, errors 0, 4, -4: MSE 32/3); window 2 has errors -6, 0, 6
+  // (MSE 24), window 4 errors 4, -5, 1 (MSE 14). Ties go to the shorter window.
+  it('chooses the window with the smallest one-step error', () => {
+    const series = [10, 14, 6, 10, 14, 6, 10, 14, 6, 10, 14, 6, 10, 14, 6, 10, 14, 6]
+    const fit = fitMovingAverage(series)
+    expect(fit.params.window).toBe(3)
+    expect(fit.forecast(2)).toEqual([10, 10])
+    expect(fit.fitted.slice(0, 4)).toEqual([NaN, NaN, NaN, 10])
+  })
+
+  it('follows a level shift with the shortest window', () => {
+    const series = [0, 0, 0, 0, 0, 0, 10, 10, 10, 10, 10, 10, 10, 10, 10, 10]
+    const fit = fitMovingAverage(series)
+    expect(fit.params.window).toBe(2)
+    expect(fit.forecast(1)).toEqual([10])
+  })
+
+  it('uses a fixed window when given: mean of the last k values', () => {
+    const fit = fitMovingAverage([1, 2, 3, 4, 5, 6], 4)
+    expect(fit.forecast(1)).toEqual([(3 + 4 + 5 + 6) / 4])
+    expect(fit.fitted[4]).toBe((1 + 2 + 3 + 4) / 4)
+  })
+})

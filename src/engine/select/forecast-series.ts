@@ -59,7 +59,7 @@ function isIntermittent(prep: PreparedSeries, models: EngineModels, warnings: En
     code: 'intermittent-demand',
     message:
       `demand is ${c.demandClass} (ADI ${c.adi.toFixed(2)}, CV² ${c.cv2.toFixed(2)})` +
-      (prep.models === undefined ? '; croston and sba added as candidates' : ''),
+      (prep.models === undefined ? '; candidates limited to the intermittent-demand methods (croston, sba)' : ''),
   })
   return true
 }

@@ -1,0 +1,179 @@
+import { describe, expect, it } from 'vitest'
+import { EngineInputError } from '../../../src/engine/errors.js'
+import { computeMetrics } from '../../../src/engine/metrics.js'
+import { approxEqual } from '../../../src/engine/numeric.js'
+import { forecastSeriesWith, type EngineModels } from '../../../src/engine/select/index.js'
+import type { FitContext, ModelSpec, SeriesInput } from '../../../src/engine/types.js'
+import { fakeBroken, fakeConstant, fakeLast, fakeMean, fakeRefusing, fakeSpec } from './fakes.js'
+
+const withFakes = (...registry: ModelSpec[]): EngineModels => ({ registry, classify: null })
+const series: SeriesInput = {
+  values: [10, 12, 11, 13, 12, 14, 13, 15, 14, 16, 15, 17],
+  frequency: 'quarter',
+  start: '2021-Q1',
+  horizon: 4,
+}
+
+describe('forecastSeries with test doubles: flat histories', () => {
+  it('forecasts a constant history flat, without selection', () => {
+    const r = forecastSeriesWith({ ...series, values: [7, 7, 7] }, withFakes(fakeBroken('ses')))
+    expect(r.model).toBe('naive')
+    expect(r.selection).toEqual({ method: 'none', metric: 'mase', holdout: 0, origins: 0 })
+    expect(r.forecast.map((p) => p.value)).toEqual([7, 7, 7, 7])
+    expect(r.forecast[0]).toEqual({ period: '2021-Q4', value: 7, lower: { 80: 7, 95: 7 }, upper: { 80: 7, 95: 7 } })
+    expect(r.intervals.method).toBe('none')
+    expect(r.leaderboard).toEqual([])
+    expect(r.warnings.map((w) => w.code)).toEqual(['constant-series'])
+    expect(r.fitted).toEqual([null, 7, 7])
+  })
+
+  it('forecasts zero for an all-zero history', () => {
+    const r = forecastSeriesWith({ ...series, values: [0, null, 0] }, withFakes(fakeMean()))
+    expect(r.forecast.every((p) => p.value === 0 && p.lower['95'] === 0 && p.upper['95'] === 0)).toBe(true)
+    expect(r.warnings.map((w) => w.code)).toEqual(['missing-filled', 'all-zero-series'])
+  })
+})
+
+describe('forecastSeries with test doubles: the leaderboard', () => {
+  it('scores, skips and fails candidates with reasons', () => {
+    const models = withFakes(
+      fakeMean('ses'),
+      fakeLast('naive'),
+      fakeSpec({ name: 'seasonal-naive', seasonal: true, minLength: (m) => 2 * m, forecast: (s, h) => new Array(h).fill(s[0]) }),
+      fakeSpec({ name: 'holt-winters-multiplicative', requiresPositive: true, forecast: (s, h) => new Array(h).fill(1) }),
+      fakeSpec({ name: 'holt-winters-additive', seasonal: true, minLength: () => 20, forecast: (s, h) => new Array(h).fill(1) }),
+      fakeBroken('theta'),
+      fakeRefusing('holt'),
+    )
+    const r = forecastSeriesWith({ ...series, values: [0, ...series.values], keepLeadingZeros: true, seasonLength: 4 }, models)
+    const byName = Object.fromEntries(r.leaderboard.map((e) => [e.model, e]))
+    expect(byName['holt-winters-multiplicative']).toMatchObject({ status: 'skipped', reason: 'holt-winters-multiplicative needs positive data' })
+    expect(byName['holt-winters-additive']).toMatchObject({ status: 'skipped' })
+    expect(byName['holt-winters-additive'].reason).toMatch(/^holt-winters-additive requires at least 20 data points/)
+    expect(byName['theta']).toMatchObject({ status: 'failed', reason: 'boom' })
+    expect(byName['holt']).toMatchObject({ status: 'skipped', reason: 'holt cannot fit this' })
+    expect(byName['seasonal-naive'].status).toBe('scored')
+    // Scored entries come first, best first, each with every metric.
+    const scored = r.leaderboard.filter((e) => e.status === 'scored')
+    expect(r.leaderboard.slice(0, scored.length)).toEqual(scored)
+    for (let i = 1; i < scored.length; i++) expect(scored[i].score!).toBeGreaterThanOrEqual(scored[i - 1].score!)
+    for (const e of scored) expect(Object.keys(e.metrics!).sort()).toEqual(['mae', 'mape', 'mase', 'rmse', 'smape', 'wape'])
+    expect(r.model).toBe(scored[0].model)
+  })
+
+  it('says a seasonal model needs seasonLength >= 2', () => {
+    const models = withFakes(fakeMean('ses'), fakeSpec({ name: 'seasonal-index', seasonal: true, forecast: (s, h) => new Array(h).fill(1) }))
+    const r = forecastSeriesWith({ ...series, seasonLength: 1 }, models)
+    expect(r.leaderboard.find((e) => e.model === 'seasonal-index')?.reason).toBe('seasonal-index needs seasonLength >= 2')
+  })
+
+  it('picks the lowest score and breaks ties by complexity', () => {
+    // Both forecast 14 -> identical scores; the simpler one wins whatever the order.
+    const a = fakeConstant('holt', 14, 4)
+    const b = fakeConstant('linear-trend', 14, 2)
+    expect(forecastSeriesWith(series, withFakes(a, b)).model).toBe('linear-trend')
+    expect(forecastSeriesWith(series, withFakes(b, a)).model).toBe('linear-trend')
+    // A strictly better score beats lower complexity.
+    const c = fakeConstant('theta', 16, 9)
+    expect(forecastSeriesWith(series, withFakes(a, b, c)).model).toBe('theta')
+  })
+
+  it('scores on the holdout with the metric asked for', () => {
+    const r = forecastSeriesWith({ ...series, holdout: 3, metric: 'rmse' }, withFakes(fakeMean('ses')))
+    const v = series.values
+    const train = v.slice(0, 9)
+    const expected = computeMetrics(v.slice(9), new Array(3).fill(train.reduce((a, b) => a + b) / 9), train, 4)
+    expect(r.selection).toEqual({ method: 'holdout', metric: 'rmse', holdout: 3, origins: 1 })
+    expect(r.metrics).toEqual(expected)
+    expect(r.leaderboard[0].score).toBe(expected.rmse)
+  })
+
+  it('averages metrics over rolling origins ending at n - holdout - k', () => {
+    const v = series.values
+    const r = forecastSeriesWith({ ...series, holdout: 2, origins: 3 }, withFakes(fakeLast('naive')))
+    const sets = [0, 1, 2].map((k) => {
+      const end = v.length - 2 - k
+      return computeMetrics(v.slice(end, end + 2), [v[end - 1], v[end - 1]], v.slice(0, end), 4)
+    })
+    expect(approxEqual(r.metrics!.mae!, (sets[0].mae! + sets[1].mae! + sets[2].mae!) / 3, 1e-14)).toBe(true)
+    expect(r.selection.origins).toBe(3)
+  })
+
+  it('refits the winner on the full history starting from the training parameters', () => {
+    const calls: { length: number; ctx: FitContext }[] = []
+    const spy = fakeSpec({
+      name: 'ses',
+      forecast: (s, h) => new Array(h).fill(s[s.length - 1]),
+      onFit: (s, ctx) => calls.push({ length: s.length, ctx }),
+      params: (s) => ({ trainedOn: s.length }),
+    })
+    const r = forecastSeriesWith({ ...series, holdout: 4 }, withFakes(spy))
+    expect(calls.map((c) => c.length)).toEqual([8, 12])
+    expect(calls[1].ctx.initialParams).toEqual({ trainedOn: 8 })
+    expect(r.params).toEqual({ trainedOn: 12 })
+  })
+
+  it('falls back to the mae ranking when the chosen metric is undefined', () => {
+    // In-sample differences at lag 4 and 1 are zero in the training part: MASE has no scale.
+    const v = [5, 5, 5, 5, 5, 5, 9, 9]
+    const r = forecastSeriesWith({ ...series, values: v, holdout: 2 }, withFakes(fakeLast('naive'), fakeMean('ses')))
+    expect(r.selection.metric).toBe('mae')
+    expect(r.warnings.map((w) => w.code)).toContain('metric-undefined')
+  })
+
+  it('ranks in-sample when no model beyond naive can be trained on a holdout', () => {
+    const long = fakeSpec({ name: 'holt', minLength: () => 3, forecast: (s, h) => new Array(h).fill(s[s.length - 1] + 1) })
+    const r = forecastSeriesWith({ ...series, values: [4, 6, 5] }, withFakes(fakeLast('naive'), long))
+    expect(r.selection.method).toBe('in-sample')
+    expect(r.selection.holdout).toBe(0)
+    expect(r.warnings.map((w) => w.code)).toContain('in-sample-selection')
+    expect(r.leaderboard.every((e) => e.status === 'scored')).toBe(true)
+  })
+
+  it('throws series-too-short when no candidate can be fitted at all', () => {
+    const needy = fakeSpec({ name: 'holt-winters-additive', minLength: () => 50, forecast: (s, h) => new Array(h).fill(1) })
+    try {
+      forecastSeriesWith(series, withFakes(needy))
+      expect.unreachable()
+    } catch (err) {
+      expect(err).toBeInstanceOf(EngineInputError)
+      expect((err as EngineInputError).code).toBe('series-too-short')
+      expect((err as EngineInputError).message).toBe('holt-winters-additive requires at least 50 data points')
+    }
+  })
+})
+
+describe('forecastSeries with test doubles: output', () => {
+  it('labels forecasts after the trimmed history and reports it', () => {
+    const r = forecastSeriesWith({ ...series, values: [0, 0, ...series.values] }, withFakes(fakeLast()))
+    expect(r.history).toEqual({ length: 14, used: 12, missing: 0, trimmedLeadingZeros: 2, firstPeriod: '2021-Q3' })
+    expect(r.forecast.map((p) => p.period)).toEqual(['2024-Q3', '2024-Q4', '2025-Q1', '2025-Q2'])
+  })
+
+  it('raises negative forecasts and lower bounds to zero unless negatives are allowed', () => {
+    const down = fakeSpec({ name: 'linear-trend', forecast: (s, h) => Array.from({ length: h }, (_, i) => s[s.length - 1] - 8 * (i + 1)) })
+    const r = forecastSeriesWith({ ...series, values: [40, 32, 24, 16, 8], horizon: 3, holdout: 1 }, withFakes(down))
+    expect(r.forecast.map((p) => p.value)).toEqual([0, 0, 0])
+    expect(r.intervals.clamped).toBe(false) // residuals are all zero: a linear series
+    expect(r.warnings.map((w) => w.code)).toContain('forecast-clamped')
+    const free = forecastSeriesWith({ ...series, values: [40, 32, 24, 16, 8], horizon: 3, holdout: 1, allowNegative: true }, withFakes(down))
+    expect(free.forecast.map((p) => p.value)).toEqual([0, -8, -16])
+  })
+
+  it('uses analytical variances when the winner has them', () => {
+    const withVar = fakeSpec({ name: 'ses', forecast: (s, h) => new Array(h).fill(100), variance: (h) => new Array(h).fill(4) })
+    const r = forecastSeriesWith({ ...series, values: [100, 102, 98, 101, 99, 100] }, withFakes(withVar))
+    expect(r.intervals.method).toBe('analytical')
+    expect(approxEqual(r.forecast[0].upper['95'], 100 + 1.959963984540054 * 2, 1e-15)).toBe(true)
+  })
+
+  it('summarises residuals and reports fitted values with null where undefined', () => {
+    const r = forecastSeriesWith({ ...series, values: [1, 3, 2, 4] }, withFakes(fakeLast()))
+    expect(r.fitted).toEqual([null, 1, 3, 2])
+    // residuals 2, -1, 2: mean 1, sample sd sqrt(3), mae 5/3
+    expect(r.residuals.count).toBe(3)
+    expect(r.residuals.mean).toBe(1)
+    expect(approxEqual(r.residuals.sd, Math.sqrt(3), 1e-15)).toBe(true)
+    expect(approxEqual(r.residuals.mae, 5 / 3, 1e-15)).toBe(true)
+  })
+})

@@ -1,0 +1,60 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { Redis } from 'ioredis'
+import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
+import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import { createLogger } from '../../src/logger.js'
+import { runKeys } from '../../src/storage/keys.js'
+import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
+import { runRequest, runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+import { startWorkerProcess } from '../queue/worker-process.js'
+
+let url: string
+let prefix: string
+let gateway: RunMachinery
+let workers: RunWorkers | undefined
+let redis: Redis
+
+beforeAll(async () => {
+  url = await redisUrlForTests()
+  prefix = uniquePrefix('runs-failure')
+  gateway = createRunGateway(runsTestConfig(url, prefix))
+  redis = new Redis(url)
+})
+
+afterAll(async () => {
+  await workers?.close()
+  await gateway?.close()
+  redis?.disconnect()
+  if (url && prefix) await deleteKeys(url, prefix)
+})
+
+describe('run failure', () => {
+  it('fails the run when a chunk cannot be processed (its input expired)', async () => {
+    const run = await gateway.submit('acme', runRequest(syntheticSeries(30)))
+    await redis.del(runKeys(prefix, 'acme', run.id).input(1))
+    workers = startWorkers(runsTestConfig(url, prefix), createLogger({ level: 'silent' }))
+    const r = await waitFor(async () => {
+      const x = await gateway.get('acme', run.id)
+      return x?.status === 'failed' ? x : undefined
+    }, 30_000, 'run to fail')
+    expect(r.error).toBe('chunk 1 failed: input of chunk 1 is missing (expired?)')
+    expect(r.summary).toBeNull()
+    expect(r.finishedAt).not.toBeNull()
+  })
+})
+
+describe('worker-main', () => {
+  it('exits with one line saying what to start when Redis is unreachable', async () => {
+    const w = startWorkerProcess({ REDIS_URL: 'redis://127.0.0.1:1', REDIS_PREFIX: prefix })
+    expect(await w.exited).toBe(1)
+    expect(w.stderr.join('')).toBe(
+      'Redis is not reachable at redis://127.0.0.1:1: start it (redis-server) or set REDIS_URL\n',
+    )
+  })
+
+  it('exits listing the problem on invalid configuration', async () => {
+    const w = startWorkerProcess({ REDIS_URL: url, CHUNK_SIZE: 'many' })
+    expect(await w.exited).toBe(1)
+    expect(w.stderr.join('')).toContain('CHUNK_SIZE')
+  })
+})

@@ -1,0 +1,32 @@
+import { describe, expect, it } from 'vitest'
+import { forecastSeries } from '../../src/engine/index.js'
+import { forecastItem } from '../../src/queue/processor.js'
+import { RunSettings } from '../../src/schemas/run.js'
+import { syntheticSeries } from './fixtures.js'
+
+const settings = RunSettings.parse({ horizon: 4 })
+
+describe('forecastItem', () => {
+  it('keeps what the contract stores and drops fitted values', () => {
+    const item = forecastItem(forecastSeries, settings, syntheticSeries(1)[0]!)
+    expect(item.sku).toBe('SKU-00000')
+    expect('error' in item).toBe(false)
+    if ('error' in item) return
+    expect(item.forecast).toHaveLength(4)
+    expect(Object.keys(item).sort()).toEqual(
+      ['family', 'forecast', 'intervals', 'leaderboard', 'metrics', 'model', 'params', 'selection', 'sku', 'warnings'].sort(),
+    )
+  })
+
+  it('turns input the engine rejects into an error item with its code', () => {
+    const item = forecastItem(forecastSeries, settings, { sku: 'GAP', values: [null, null, null] })
+    expect(item).toEqual({ sku: 'GAP', error: { code: 'empty-series', message: expect.any(String) } })
+  })
+
+  it('lets any other error through so the chunk is retried', () => {
+    const broken = () => {
+      throw new TypeError('engine bug')
+    }
+    expect(() => forecastItem(broken, settings, { sku: 'X', values: [1, 2, 3] })).toThrow(TypeError)
+  })
+})

@@ -1,0 +1,82 @@
+import { describe, expect, it } from 'vitest'
+import { decodeCursor, decodeItem, decodeRunRecord, encodeCursor, encodeItem, newRunFields, tallyItems } from '../../src/storage/codec.js'
+import type { ResultItem } from '../../src/storage/types.js'
+import { runRequest } from '../queue/fixtures.js'
+
+const metrics = (mase: number | null) => ({ mae: 1, rmse: 1, mape: null, smape: 1, mase, wape: 1 })
+const ok = (sku: string, model: 'ses' | 'holt', mase: number | null, method: 'holdout' | 'in-sample' = 'holdout'): ResultItem => ({
+  sku,
+  model,
+  family: model === 'ses' ? 'level' : 'trend',
+  params: { alpha: 0.5 },
+  selection: { method, metric: 'mase', holdout: 3, origins: 1 },
+  metrics: metrics(mase),
+  leaderboard: [],
+  forecast: [{ period: '1', value: 2, lower: {}, upper: {} }],
+  intervals: { method: 'none', levels: [], clamped: false },
+  warnings: [],
+})
+const bad = (sku: string): ResultItem => ({ sku, error: { code: 'empty-series', message: 'no data' } })
+
+describe('tallyItems', () => {
+  it('counts every item as done and error items as failed', () => {
+    const t = tallyItems([ok('a', 'ses', 1), bad('b'), ok('c', 'holt', 2), ok('d', 'ses', 3)], 'mase')
+    expect(t.done).toBe(4)
+    expect(t.failed).toBe(1)
+    expect([...t.wins]).toEqual([['ses', 2], ['holt', 1]])
+    expect(t.errSum).toBe(6)
+    expect(t.errCount).toBe(3)
+  })
+
+  it('leaves undefined and in-sample errors out of the holdout mean', () => {
+    const t = tallyItems([ok('a', 'ses', null), ok('b', 'ses', 5, 'in-sample'), ok('c', 'ses', 2)], 'mase')
+    expect(t.errSum).toBe(2)
+    expect(t.errCount).toBe(1)
+  })
+
+  it('handles an empty chunk', () => {
+    expect(tallyItems([], 'mase')).toMatchObject({ done: 0, failed: 0, errSum: 0, errCount: 0 })
+  })
+})
+
+describe('item encoding', () => {
+  it('stores an item without its sku and restores it', () => {
+    const item = ok('SKU-1', 'holt', 0.8)
+    const json = encodeItem(item)
+    expect(json).not.toContain('SKU-1')
+    expect(decodeItem('SKU-1', json)).toEqual(item)
+  })
+})
+
+describe('cursors', () => {
+  it('round-trip any SKU, including unicode and separators', () => {
+    for (const sku of ['A', 'x|y:z', 'Gießkanne 10 l', '(]-+']) expect(decodeCursor(encodeCursor(sku))).toBe(sku)
+  })
+
+  it('reject strings this service did not issue', () => {
+    for (const c of ['', '***', 'a b', 'QQ==']) expect(decodeCursor(c)).toBeNull()
+  })
+})
+
+describe('decodeRunRecord', () => {
+  const { series: _s, ...settings } = runRequest([])
+  const fields = newRunFields({ id: 'r1', tenant: 't', createdAt: '2026-01-01T00:00:00.000Z', total: 3, chunks: 1, settings })
+
+  it('returns null for a missing run', () => {
+    expect(decodeRunRecord({})).toBeNull()
+  })
+
+  it('gives no summary before the run succeeds', () => {
+    expect(decodeRunRecord(fields)).toMatchObject({ status: 'queued', summary: null, progress: { total: 3, done: 0, failed: 0 } })
+  })
+
+  it('builds the summary from the accumulators once succeeded', () => {
+    const r = decodeRunRecord({ ...fields, status: 'succeeded', 'win:ses': '2', 'win:holt': '1', errSum: '3', errCount: '2' })
+    expect(r?.summary).toEqual({ metric: 'mase', modelWins: { ses: 2, holt: 1 }, meanHoldoutError: 1.5 })
+  })
+
+  it('reports no mean when no winner had a defined holdout error', () => {
+    const r = decodeRunRecord({ ...fields, status: 'succeeded', 'win:ses': '1' })
+    expect(r?.summary?.meanHoldoutError).toBeNull()
+  })
+})

@@ -7,8 +7,9 @@ import type { FitContext, ModelSpec, SeriesInput } from '../../../src/engine/typ
 import { fakeBroken, fakeConstant, fakeLast, fakeMean, fakeRefusing, fakeSpec } from './fakes.js'
 
 const withFakes = (...registry: ModelSpec[]): EngineModels => ({ registry, classify: null })
+const history = [10, 12, 11, 13, 12, 14, 13, 15, 14, 16, 15, 17]
 const series: SeriesInput = {
-  values: [10, 12, 11, 13, 12, 14, 13, 15, 14, 16, 15, 17],
+  values: history,
   frequency: 'quarter',
   start: '2021-Q1',
   horizon: 4,
@@ -45,7 +46,7 @@ describe('forecastSeries with test doubles: the leaderboard', () => {
       fakeBroken('theta'),
       fakeRefusing('holt'),
     )
-    const r = forecastSeriesWith({ ...series, values: [0, ...series.values], keepLeadingZeros: true, seasonLength: 4 }, models)
+    const r = forecastSeriesWith({ ...series, values: [0, ...history], keepLeadingZeros: true, seasonLength: 4 }, models)
     const byName = Object.fromEntries(r.leaderboard.map((e) => [e.model, e]))
     expect(byName['holt-winters-multiplicative']).toMatchObject({ status: 'skipped', reason: 'holt-winters-multiplicative needs positive data' })
     expect(byName['holt-winters-additive']).toMatchObject({ status: 'skipped' })
@@ -80,7 +81,7 @@ describe('forecastSeries with test doubles: the leaderboard', () => {
 
   it('scores on the holdout with the metric asked for', () => {
     const r = forecastSeriesWith({ ...series, holdout: 3, metric: 'rmse' }, withFakes(fakeMean('ses')))
-    const v = series.values
+    const v = history
     const train = v.slice(0, 9)
     const expected = computeMetrics(v.slice(9), new Array(3).fill(train.reduce((a, b) => a + b) / 9), train, 4)
     expect(r.selection).toEqual({ method: 'holdout', metric: 'rmse', holdout: 3, origins: 1 })
@@ -89,7 +90,7 @@ describe('forecastSeries with test doubles: the leaderboard', () => {
   })
 
   it('averages metrics over rolling origins ending at n - holdout - k', () => {
-    const v = series.values
+    const v = history
     const r = forecastSeriesWith({ ...series, holdout: 2, origins: 3 }, withFakes(fakeLast('naive')))
     const sets = [0, 1, 2].map((k) => {
       const end = v.length - 2 - k
@@ -145,7 +146,7 @@ describe('forecastSeries with test doubles: the leaderboard', () => {
 
 describe('forecastSeries with test doubles: output', () => {
   it('labels forecasts after the trimmed history and reports it', () => {
-    const r = forecastSeriesWith({ ...series, values: [0, 0, ...series.values] }, withFakes(fakeLast()))
+    const r = forecastSeriesWith({ ...series, values: [0, 0, ...history] }, withFakes(fakeLast()))
     expect(r.history).toEqual({ length: 14, used: 12, missing: 0, trimmedLeadingZeros: 2, firstPeriod: '2021-Q3' })
     expect(r.forecast.map((p) => p.period)).toEqual(['2024-Q3', '2024-Q4', '2025-Q1', '2025-Q2'])
   })

@@ -20,7 +20,8 @@ export default fp(
     })
 
     app.setNotFoundHandler((request, reply) => {
-      const problem = new ProblemError('not-found', `No route ${request.method} ${request.url.split('?')[0]}`)
+      const path = request.url.split('?')[0].slice(0, 200)
+      const problem = new ProblemError('not-found', `No route ${request.method} ${path}`)
       reply.code(404).type(PROBLEM_CONTENT_TYPE)
       return problem.toBody()
     })

@@ -53,6 +53,33 @@ function problemContentType(doc: OpenApiDoc): OpenApiDoc {
 }
 
 /**
+ * Keep only referenced component schemas (the zod registry yields an input and
+ * an output variant of each) and drop their `$schema`/`$id` keys.
+ */
+function pruneComponents(doc: OpenApiDoc): OpenApiDoc {
+  const schemas = (doc as { components?: { schemas?: Record<string, Record<string, unknown>> } }).components?.schemas
+  if (!schemas) return doc
+  const used = new Set<string>()
+  const collect = (v: unknown) => {
+    for (const m of JSON.stringify(v).matchAll(/"#\/components\/schemas\/([^"]+)"/g)) used.add(m[1])
+  }
+  collect((doc as { paths?: unknown }).paths)
+  // Components may reference each other; repeat until nothing new appears.
+  for (let size = -1; size !== used.size; ) {
+    size = used.size
+    for (const name of [...used]) collect(schemas[name])
+  }
+  for (const name of Object.keys(schemas)) {
+    if (!used.has(name)) delete schemas[name]
+    else {
+      delete schemas[name].$schema
+      delete schemas[name].$id
+    }
+  }
+  return doc
+}
+
+/**
  * OpenAPI 3.1 document generated from the zod route schemas, served at
  * /openapi.json, and the interactive page at /docs.
  */
@@ -76,7 +103,7 @@ export default fp(
         security: [{ apiKey: [] }],
       },
       transform: createJsonSchemaTransform({ skipList: [] }),
-      transformObject: (input) => problemContentType(jsonSchemaTransformObject(input)),
+      transformObject: (input) => pruneComponents(problemContentType(jsonSchemaTransformObject(input))),
     })
     await app.register(swaggerUi, { routePrefix: '/docs' })
     app.get(

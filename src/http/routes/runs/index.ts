@@ -19,7 +19,7 @@ export function runNotFound(runId: string): ProblemError {
 /** /v1/runs: submit, read and cancel asynchronous runs. */
 const routes: FastifyPluginAsyncZod = async (app) => {
   app.post(
-    '/',
+    '',
     {
       schema: {
         tags: ['runs'],

@@ -1,0 +1,119 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { FastifyInstance } from 'fastify'
+import { build } from '../../../src/http/app.js'
+import { InMemoryGatewayDouble, KEY_GARDEN, auth, testConfig } from '../gateway-double.js'
+
+// Source: R `datasets::AirPassengers`, January 1949 to December 1951 (36 monthly
+// values, printed with `Rscript -e 'cat(head(AirPassengers, 36))'`, R base-core).
+const AIR_PASSENGERS_1949_1951 = [
+  112, 118, 132, 129, 121, 135, 148, 148, 136, 119, 104, 118, 115, 126, 141, 135, 125, 149, 170, 170, 158, 133, 114,
+  140, 145, 150, 178, 163, 172, 178, 199, 199, 184, 162, 146, 166,
+]
+
+describe('POST /v1/forecast (real engine)', () => {
+  let app: FastifyInstance
+  beforeAll(async () => {
+    app = await build({ config: testConfig({ syncMaxSeries: 3 }), gateway: new InMemoryGatewayDouble() })
+  })
+  afterAll(() => app.close())
+
+  const post = (payload: unknown) =>
+    app.inject({ method: 'POST', url: '/v1/forecast', headers: auth(KEY_GARDEN), payload: payload as object })
+
+  it('forecasts a 36-point monthly seasonal series 12 periods ahead with 80/95 bounds', async () => {
+    const res = await post({
+      horizon: 12,
+      series: [{ sku: 'AIR-1949', values: AIR_PASSENGERS_1949_1951, start: '1949-01' }],
+    })
+    expect(res.statusCode).toBe(200)
+    const { items } = res.json()
+    expect(items).toHaveLength(1)
+    const item = items[0]
+    expect(item.sku).toBe('AIR-1949')
+    expect(item.error).toBeUndefined()
+    expect(item.forecast).toHaveLength(12)
+    expect(item.forecast[0].period).toBe('1952-01')
+    expect(item.forecast[11].period).toBe('1952-12')
+    expect(item.intervals.levels).toEqual([80, 95])
+    for (const p of item.forecast) {
+      expect(Number.isFinite(p.value)).toBe(true)
+      expect(p.lower['95']).toBeLessThanOrEqual(p.lower['80'])
+      expect(p.lower['80']).toBeLessThanOrEqual(p.value)
+      expect(p.value).toBeLessThanOrEqual(p.upper['80'])
+      expect(p.upper['80']).toBeLessThanOrEqual(p.upper['95'])
+    }
+    // Summer peak of the data (July/August) stays above the November trough in the forecast.
+    expect(item.forecast[6].value).toBeGreaterThan(item.forecast[10].value)
+    expect(item.leaderboard.length).toBeGreaterThan(1)
+  })
+
+  it('returns a series the engine rejects as an item with error, the others forecast', async () => {
+    const res = await post({
+      horizon: 3,
+      series: [
+        { sku: 'OK', values: AIR_PASSENGERS_1949_1951 },
+        { sku: 'NEG', values: [5, -2, 7, 4] },
+      ],
+    })
+    expect(res.statusCode).toBe(200)
+    const [ok, bad] = res.json().items
+    expect(ok.forecast).toHaveLength(3)
+    expect(bad.sku).toBe('NEG')
+    expect(bad.error.code).toBe('negative-value')
+    expect(typeof bad.error.message).toBe('string')
+  })
+
+  it('answers 413 too-many-series above the synchronous limit', async () => {
+    const series = Array.from({ length: 4 }, (_, i) => ({ sku: `S${i}`, values: [1, 2, 3] }))
+    const res = await post({ horizon: 1, series })
+    expect(res.statusCode).toBe(413)
+    expect(res.headers['content-type']).toBe('application/problem+json; charset=utf-8')
+    expect(res.json()).toMatchInlineSnapshot(`
+      {
+        "detail": "POST /v1/forecast takes at most 3 series (got 4); submit a run with POST /v1/runs",
+        "status": 413,
+        "title": "Too many series for a synchronous forecast",
+        "type": "https://almanac.example/problems/too-many-series",
+      }
+    `)
+  })
+
+  it('names every invalid field in a 400', async () => {
+    const res = await post({
+      horizon: 0,
+      intervals: [80, 120],
+      series: [{ sku: 'A', values: [1, 2] }, { sku: '', values: [1, 'two', null] }],
+    })
+    expect(res.statusCode).toBe(400)
+    expect(res.json()).toMatchInlineSnapshot(`
+      {
+        "detail": "The request body has 5 invalid fields",
+        "errors": [
+          {
+            "message": "Too small: expected number to be >=1",
+            "path": "horizon",
+          },
+          {
+            "message": "Too big: expected number to be <100",
+            "path": "intervals[1]",
+          },
+          {
+            "message": "Too small: expected string to have >=1 characters",
+            "path": "series[1].sku",
+          },
+          {
+            "message": "must not contain control characters",
+            "path": "series[1].sku",
+          },
+          {
+            "message": "Invalid input: expected number, received string",
+            "path": "series[1].values[1]",
+          },
+        ],
+        "status": 400,
+        "title": "Validation failed",
+        "type": "https://almanac.example/problems/validation-failed",
+      }
+    `)
+  })
+})

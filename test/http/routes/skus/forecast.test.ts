@@ -1,0 +1,60 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { FastifyInstance } from 'fastify'
+import { build } from '../../../../src/http/app.js'
+import { InMemoryGatewayDouble, KEY_GARDEN, KEY_HEATING, auth, forecastItemFixture, testConfig } from '../../gateway-double.js'
+
+describe('GET /v1/skus/{sku}/forecast', () => {
+  let app: FastifyInstance
+  let runId: string
+  beforeAll(async () => {
+    const gateway = new InMemoryGatewayDouble()
+    app = await build({ config: testConfig(), gateway })
+    const run = await gateway.submit('garden', {
+      horizon: 1,
+      frequency: 'month',
+      metric: 'mase',
+      intervals: [80, 95],
+      fillPolicy: 'zero',
+      allowNegative: false,
+      keepLeadingZeros: false,
+      origins: 1,
+      series: [],
+    })
+    runId = run.id
+    gateway.complete(runId, [forecastItemFixture('SEED/TOMATO 50G'), { sku: 'BAD', error: { code: 'empty-series', message: 'x' } }])
+  })
+  afterAll(() => app.close())
+
+  it('returns the latest successful forecast with its run and time (SKU URL-encoded)', async () => {
+    const res = await app.inject({ url: `/v1/skus/${encodeURIComponent('SEED/TOMATO 50G')}/forecast`, headers: auth(KEY_GARDEN) })
+    expect(res.statusCode).toBe(200)
+    expect(res.json()).toEqual({
+      ...forecastItemFixture('SEED/TOMATO 50G'),
+      runId,
+      producedAt: '2026-01-05T08:00:02.000Z',
+    })
+  })
+
+  it('404 for a SKU never forecast, for a failed one, and for another tenant', async () => {
+    const never = await app.inject({ url: '/v1/skus/NOPE/forecast', headers: auth(KEY_GARDEN) })
+    expect(never.statusCode).toBe(404)
+    expect(never.json()).toMatchInlineSnapshot(`
+      {
+        "detail": "No forecast for SKU NOPE",
+        "status": 404,
+        "title": "Not found",
+        "type": "https://almanac.example/problems/not-found",
+      }
+    `)
+    const failed = await app.inject({ url: '/v1/skus/BAD/forecast', headers: auth(KEY_GARDEN) })
+    expect(failed.statusCode).toBe(404)
+    const other = await app.inject({ url: `/v1/skus/${encodeURIComponent('SEED/TOMATO 50G')}/forecast`, headers: auth(KEY_HEATING) })
+    expect(other.statusCode).toBe(404)
+  })
+
+  it('rejects a SKU with control characters', async () => {
+    const res = await app.inject({ url: '/v1/skus/A%01B/forecast', headers: auth(KEY_GARDEN) })
+    expect(res.statusCode).toBe(400)
+    expect(res.json().errors).toEqual([{ path: 'sku', message: 'must not contain control characters' }])
+  })
+})

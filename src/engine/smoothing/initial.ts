@@ -36,11 +36,16 @@ export function initialLevelTrend(y: ArrayLike<number>): { level: number; trend:
   return { level: intercept - slope, trend: slope }
 }
 
+/** Full seasons used by `initialSeasonalStates` at most (common practice: a few years). */
+export const INITIAL_SEASONS = 4
+
 /**
- * Seasonal start from the first two full seasons (needs n >= 2m), common practice:
- *   A1, A2 = means of y[0..m-1] and y[m..2m-1];  trend = (A2 - A1) / m;
- *   trend line T(t) = A1 + trend * (t - (m - 1) / 2);  level = T(-1);
- *   seasonal[j] = mean over the two seasons of y[t] - T(t) (additive) or
+ * Seasonal start from the first K = min(floor(n / m), 4) full seasons (needs n >= 2m),
+ * a simplified classical decomposition (common practice):
+ *   A_k = mean of season k (k = 0..K-1); slope = least-squares slope of A_k on k;
+ *   trend = slope / m; trend line T(t) = Abar + trend * (t - (Km - 1) / 2);
+ *   level = T(-1);
+ *   seasonal[j] = mean over the K seasons of y[t] - T(t) (additive) or
  *   y[t] / T(t) (multiplicative; ratio to the season mean when T(t) <= 0),
  *   then normalised to sum 0 (additive) or mean 1 (multiplicative).
  */
@@ -48,31 +53,41 @@ export function initialSeasonalStates(
   y: ArrayLike<number>,
   m: number,
   kind: SeasonalKind,
+  maxSeasons = INITIAL_SEASONS,
 ): { level: number; trend: number; seasonal: Float64Array } {
-  let a1 = 0
-  let a2 = 0
-  for (let j = 0; j < m; j++) {
-    a1 += y[j]
-    a2 += y[m + j]
+  const seasons = Math.max(2, Math.min(Math.floor(y.length / m), maxSeasons))
+  const means = new Float64Array(seasons)
+  let grand = 0
+  for (let k = 0; k < seasons; k++) {
+    let a = 0
+    for (let j = 0; j < m; j++) a += y[k * m + j]
+    means[k] = a / m
+    grand += means[k]
   }
-  a1 /= m
-  a2 /= m
-  const trend = (a2 - a1) / m
-  const centre = (m - 1) / 2
-  const line = (t: number): number => a1 + trend * (t - centre)
+  grand /= seasons
+  const kMean = (seasons - 1) / 2
+  let sxy = 0
+  let sxx = 0
+  for (let k = 0; k < seasons; k++) {
+    sxy += (k - kMean) * (means[k] - grand)
+    sxx += (k - kMean) * (k - kMean)
+  }
+  const trend = sxy / sxx / m
+  const centre = (seasons * m - 1) / 2
+  const line = (t: number): number => grand + trend * (t - centre)
   const seasonal = new Float64Array(m)
   let total = 0
   for (let j = 0; j < m; j++) {
     let v = 0
-    for (let k = 0; k < 2; k++) {
+    for (let k = 0; k < seasons; k++) {
       const t = k * m + j
       if (kind === 'add') v += y[t] - line(t)
       else {
         const tl = line(t)
-        v += tl > 0 ? y[t] / tl : y[t] / (k === 0 ? a1 : a2)
+        v += tl > 0 ? y[t] / tl : y[t] / means[k]
       }
     }
-    seasonal[j] = v / 2
+    seasonal[j] = v / seasons
     total += seasonal[j]
   }
   if (kind === 'add') {

@@ -18,7 +18,7 @@
  */
 import { EngineInputError } from '../errors.js'
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'
-import { checkFinite, checkHorizon, checkNonNegative, checkSeries } from '../trend/guards.js'
+import { checkFinite, checkFitted, checkHorizon, checkNonNegative, checkSeries } from '../trend/guards.js'
 
 export type CrostonVariant = 'croston' | 'sba'
 export const CROSTON_ALPHAS: readonly number[] = [0.05, 0.1, 0.15, 0.2, 0.25, 0.3]
@@ -92,6 +92,7 @@ export function fitCroston(series: readonly number[], options: CrostonOptions = 
   const { size, interval } = run(series, first, alpha, factor, fitted)
   const rate = (factor * size) / interval
   checkFinite([size, interval, rate], variant)
+  checkFitted(fitted, first + 1, variant)
   const params: Record<string, number> = { alpha, size, interval }
   if (variant === 'sba') params.biasFactor = factor
   return {

@@ -13,7 +13,7 @@
  * mean of each season position divided by the mean of those means.
  */
 import { EngineInputError } from '../errors.js'
-import { checkSeasonLength, checkSeries } from '../trend/guards.js'
+import { checkFinite, checkSeasonLength, checkSeries } from '../trend/guards.js'
 
 export type DecompositionType = 'multiplicative' | 'additive'
 
@@ -89,6 +89,7 @@ export function decomposeClassical(
       throw new EngineInputError('not-positive', `multiplicative decomposition found a seasonal factor of zero at position ${j + 1}`)
     }
   }
+  checkFinite(figure, 'decompose')
   const seasonal = new Array<number>(n)
   const random = new Array<number>(n)
   for (let t = 0; t < n; t++) {

@@ -10,7 +10,7 @@
  */
 import { EngineInputError } from '../errors.js'
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'
-import { checkFinite, checkHorizon, checkSeasonLength, checkSeries } from '../trend/guards.js'
+import { checkFinite, checkFitted, checkHorizon, checkSeasonLength, checkSeries } from '../trend/guards.js'
 import { levels, levelSse, minimiseOnInterval } from '../trend/level-smoothing.js'
 import { seasonalPositionFactors } from './decompose.js'
 
@@ -39,6 +39,7 @@ export function fitSeasonalIndex(series: readonly number[], seasonLength: number
   fitted[0] = NaN
   for (let t = 1; t < n; t++) fitted[t] = path[t - 1] * weights[t]
   checkFinite([level], 'seasonal-index')
+  checkFitted(fitted, 1, 'seasonal-index')
   return {
     model: 'seasonal-index',
     params: { alpha: a, level, seasonalFactors: factors },

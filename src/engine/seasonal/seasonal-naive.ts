@@ -5,7 +5,7 @@
  * Practice", 3rd ed., section 5.5 (from memory). Needs two full seasons (common practice).
  */
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'
-import { checkFinite, checkHorizon, checkSeasonLength, checkSeries } from '../trend/guards.js'
+import { checkFinite, checkFitted, checkHorizon, checkSeasonLength, checkSeries } from '../trend/guards.js'
 
 export function fitSeasonalNaive(series: readonly number[], seasonLength: number): ModelFit {
   const m = seasonLength
@@ -25,6 +25,7 @@ export function fitSeasonalNaive(series: readonly number[], seasonLength: number
   }
   const sigma2 = sse / (n - m)
   checkFinite([sigma2], 'seasonal-naive')
+  checkFitted(fitted, m, 'seasonal-naive')
   const lastSeason = series.slice(n - m)
   return {
     model: 'seasonal-naive',

@@ -55,3 +55,16 @@ export function checkFinite(values: ArrayLike<number>, method: string): void {
     }
   }
 }
+
+/**
+ * Fitted values are NaN only where the model has none (before index `from`);
+ * from there on they must be finite.
+ * @throws EngineInputError 'non-finite-value'
+ */
+export function checkFitted(fitted: readonly number[], from: number, method: string): void {
+  for (let t = Math.max(0, from); t < fitted.length; t++) {
+    if (!Number.isFinite(fitted[t])) {
+      throw new EngineInputError('non-finite-value', `${method} produced a non-finite value; the data are out of range`)
+    }
+  }
+}

@@ -7,7 +7,7 @@
  */
 import { EngineInputError } from '../errors.js'
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'
-import { checkFinite, checkHorizon, checkSeries } from './guards.js'
+import { checkFinite, checkFitted, checkHorizon, checkSeries } from './guards.js'
 
 export interface LinearTrendFit {
   readonly slope: number
@@ -93,6 +93,8 @@ export function fitLinearTrendModel(series: readonly number[]): ModelFit {
   const sigma2 = sse / (n - 2)
   const fitted = new Array<number>(n)
   for (let t = 0; t < n; t++) fitted[t] = intercept + slope * (t + 1)
+  checkFitted(fitted, 0, 'linear-trend')
+  checkFinite([sigma2], 'linear-trend')
   return {
     model: 'linear-trend',
     params: { slope, intercept, residualVariance: sigma2 },

@@ -11,7 +11,7 @@
  */
 import { EngineInputError } from '../errors.js'
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'
-import { checkFinite, checkHorizon, checkSeries } from './guards.js'
+import { checkFinite, checkFitted, checkHorizon, checkSeries } from './guards.js'
 
 const MIN_LENGTH = 4
 const MAX_WINDOW = 12
@@ -60,6 +60,7 @@ export function fitMovingAverage(series: readonly number[], window?: number): Mo
   for (let t = 0; t < n; t++) fitted[t] = t < k ? NaN : windowMean(series, t, k)
   const level = windowMean(series, n, k)
   checkFinite([level], 'moving-average')
+  checkFitted(fitted, k, 'moving-average')
   return {
     model: 'moving-average',
     params: { window: k, level },

@@ -5,7 +5,7 @@
  * "Forecasting: Principles and Practice", 3rd ed., section 5.5 (from memory).
  */
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'
-import { checkFinite, checkHorizon, checkSeries } from './guards.js'
+import { checkFinite, checkFitted, checkHorizon, checkSeries } from './guards.js'
 
 export function fitNaive(series: readonly number[]): ModelFit {
   checkSeries(series, 'naive', 1)
@@ -20,6 +20,7 @@ export function fitNaive(series: readonly number[]): ModelFit {
     sse += e * e
   }
   const sigma2 = n > 1 ? sse / (n - 1) : NaN
+  checkFitted(fitted, 1, 'naive')
   const fit: ModelFit = {
     model: 'naive',
     params: { level: last },

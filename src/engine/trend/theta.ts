@@ -21,7 +21,7 @@
 import { EngineInputError } from '../errors.js'
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'
 import { decomposeClassical } from '../seasonal/decompose.js'
-import { checkFinite, checkHorizon, checkSeries } from './guards.js'
+import { checkFinite, checkFitted, checkHorizon, checkSeries } from './guards.js'
 import { levels, levelSse, minimiseOnInterval } from './level-smoothing.js'
 import { fitTrendOnIndex } from './linear-trend.js'
 
@@ -98,6 +98,7 @@ export function fitTheta(series: readonly number[], seasonLength: number, option
   }
   const tail = (1 - Math.pow(1 - alpha, n)) / alpha
   checkFinite([slope, alpha, level, tail], 'theta')
+  checkFitted(fitted, 1, 'theta')
   const params: Record<string, number | number[]> = { alpha, slope, drift, level }
   if (figure.length > 0) params[multiplicative ? 'seasonalFactors' : 'seasonalTerms'] = figure
   return {

@@ -1,0 +1,90 @@
+/**
+ * Run machinery benchmark: one run of N synthetic monthly series through the
+ * gateway, the queue and in-process sandboxed workers against a real Redis.
+ * Prints wall time, throughput and stored bytes per SKU result, then deletes
+ * its keys. Invented data, for timing only.
+ *
+ *   REDIS_URL=redis://127.0.0.1:6379 npm run bench:runs -- 5000
+ *   (env WORKER_CONCURRENCY, CHUNK_SIZE; defaults: one thread per core, 500)
+ */
+import { randomBytes } from 'node:crypto'
+import { availableParallelism } from 'node:os'
+import { Redis } from 'ioredis'
+import type { Config } from '../src/config.js'
+import { createLogger } from '../src/logger.js'
+import { createRunGateway } from '../src/queue/gateway.js'
+import { startWorkers } from '../src/queue/worker.js'
+import { runKeys } from '../src/storage/keys.js'
+import { RunSettings, type SeriesItem } from '../src/schemas/run.js'
+import { SHAPES, createRandom, syntheticSeries } from './synthetic.js'
+
+const count = Number(process.argv[2] ?? 5000)
+const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'
+const prefix = `bench-runs-${randomBytes(4).toString('hex')}`
+const config: Config = {
+  port: 0,
+  host: '127.0.0.1',
+  redisUrl,
+  redisPrefix: prefix,
+  apiKeys: new Map(),
+  chunkSize: Number(process.env.CHUNK_SIZE ?? 500),
+  workerConcurrency: Number(process.env.WORKER_CONCURRENCY ?? 0),
+  runWorker: false,
+  resultRetentionSeconds: 3600,
+  bodyLimitBytes: 64 * 1024 * 1024,
+  syncMaxSeries: 100,
+  rateLimitMax: 1000,
+  rateLimitWindowMs: 60_000,
+  logLevel: 'warn',
+}
+
+const random = createRandom(20260301)
+const series: SeriesItem[] = Array.from({ length: count }, (_, i) => ({
+  sku: `B-${String(i).padStart(6, '0')}`,
+  values: syntheticSeries(random, SHAPES[i % SHAPES.length]!, 36 + (i % 25)),
+}))
+
+const gateway = createRunGateway(config)
+const workers = startWorkers(config, createLogger({ level: 'warn' }))
+const redis = new Redis(redisUrl)
+try {
+  const t0 = performance.now()
+  const run = await gateway.submit('bench', { ...RunSettings.parse({ horizon: 12 }), series })
+  const submitMs = performance.now() - t0
+  let record = run
+  while (record.status === 'queued' || record.status === 'running') {
+    await new Promise((r) => setTimeout(r, 50))
+    record = (await gateway.get('bench', run.id))!
+  }
+  const totalS = (performance.now() - t0) / 1000
+  const k = runKeys(prefix, 'bench', run.id)
+  const itemsBytes = Number(await redis.memory('USAGE', k.items, 'SAMPLES', 0))
+  const skusBytes = Number(await redis.memory('USAGE', k.skus, 'SAMPLES', 0))
+  const sample = await redis.hrandfield(k.items, 200)
+  const lens = await Promise.all((sample as string[]).map((f) => redis.hstrlen(k.items, f)))
+  const sorted = [...lens].sort((a, b) => a - b)
+  const out = {
+    series: count,
+    chunks: Math.ceil(count / config.chunkSize),
+    threads: workers.concurrency,
+    cores: availableParallelism(),
+    status: record.status,
+    progress: record.progress,
+    submitMs: Math.round(submitMs),
+    totalSeconds: Number(totalS.toFixed(2)),
+    seriesPerSecond: Math.round(count / totalS),
+    redisBytesPerSku: Math.round((itemsBytes + skusBytes) / count),
+    itemJsonBytesMedian: sorted[Math.floor(sorted.length / 2)],
+  }
+  process.stdout.write(`${JSON.stringify(out, null, 2)}\n`)
+} finally {
+  await workers.close()
+  await gateway.close()
+  let cursor = '0'
+  do {
+    const [next, keys] = await redis.scan(cursor, 'MATCH', `${prefix}*`, 'COUNT', 1000)
+    cursor = next
+    if (keys.length > 0) await redis.unlink(...keys)
+  } while (cursor !== '0')
+  redis.disconnect()
+}

@@ -34,6 +34,11 @@ const PHI_HI = 0.98
 /** Objective evaluations per fit (common practice for small problems; keeps fits cheap). */
 const MAX_EVALUATIONS = 150
 
+/** Keeps results inside double range: +-Infinity becomes +-Number.MAX_VALUE (NaN cannot occur here). */
+function finite(v: number): number {
+  return v > Number.MAX_VALUE ? Number.MAX_VALUE : v < -Number.MAX_VALUE ? -Number.MAX_VALUE : v
+}
+
 export function minLengthOf(shape: SmoothingShape, seasonLength: number): number {
   if (shape.seasonal) return 2 * seasonLength
   return shape.trend === 'none' ? 2 : 3
@@ -129,22 +134,24 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   const beta = iB >= 0 ? best.x[iB] : 0
   const gamma = iG >= 0 ? best.x[iG] * (1 - alpha) : 0
   const phi = iP >= 0 ? best.x[iP] : 1
-  const level = l0 * scale
-  const trend = b0 * scale
-  const seasonal = kind === 'add' ? Array.from(s0, (v) => v * scale) : Array.from(s0)
-  const run = runSmoothing(series, {
+  // Run on the scaled series (no overflow for huge values), then rescale.
+  const run = runSmoothing(y, {
     alpha,
     beta,
     gamma,
     phi,
     seasonLength: m,
     seasonal: kind ?? undefined,
-    initial: { level, trend, seasonal: kind ? seasonal : undefined },
+    initial: { level: l0, trend: b0, seasonal: kind ? Array.from(s0) : undefined },
   })
+  const level = l0 * scale
+  const trend = b0 * scale
+  const seasonal = kind === 'add' ? Array.from(s0, (v) => v * scale) : Array.from(s0)
+  const forecast = (h: number): number[] => run.forecast(h).map((v) => finite(v * scale))
 
   // SES starts from level = y[0], so its first prediction is not a forecast.
   const firstFitted = hasTrend || kind ? 0 : 1
-  const fitted = run.fitted.slice()
+  const fitted = run.fitted.map((v) => v * scale)
   if (firstFitted === 1) fitted[0] = NaN
   const params: Record<string, number | number[]> = { alpha, initialLevel: level }
   if (hasTrend) {
@@ -156,14 +163,15 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     params.gamma = gamma
     params.initialSeasonal = seasonal
   }
-  const fit: ModelFit = { model: shape.name, params, fitted, forecast: (h) => run.forecast(h) }
+  const fit: ModelFit = { model: shape.name, params, fitted, forecast }
   if (kind === 'mul') return fit // no class-1 formula: the caller builds empirical intervals
 
   // sigma^2 = SSE / (n - k), k = smoothing parameters + initial states (HKOS 2008, ch. 6).
   const used = n - firstFitted
   const k = 1 + (hasTrend ? 2 : 0) + (damped ? 1 : 0) + (kind ? m : 0) + 1
   const sse = firstFitted === 1 ? run.sse - run.residuals[0] ** 2 : run.sse
-  const sigma2 = sse / Math.max(1, used - k)
+  const sigma2 = (sse / Math.max(1, used - k)) * scale * scale
+  if (!Number.isFinite(sigma2)) return fit // beyond double range: leave intervals to the caller
   const shapeForVariance = { alpha, beta, gamma, phi, seasonLength: m }
-  return { ...fit, forecastVariance: (h) => additiveErrorVariance(shapeForVariance, sigma2, h) }
+  return { ...fit, forecastVariance: (h) => additiveErrorVariance(shapeForVariance, sigma2, h).map(finite) }
 }

@@ -64,7 +64,7 @@ function checkUnit(name: string, v: number, lo: number, hi: number): void {
  * @throws EngineInputError on empty or non-finite input, bad parameters, or if a
  *   state becomes non-finite (e.g. multiplicative seasonality with a level near zero)
  */
-export function runSmoothing(series: readonly number[], setup: SmoothingSetup): SmoothingRun {
+export function runSmoothing(series: ArrayLike<number>, setup: SmoothingSetup): SmoothingRun {
   const n = series.length
   if (n === 0) throw new EngineInputError('empty-series', 'series is empty', 'values')
   const alpha = setup.alpha

@@ -2,8 +2,8 @@
  * Linear trend: ordinary least squares of the series on t = 1..n, extrapolated.
  * Forecast-error variance is the OLS prediction variance for a new observation,
  *   sigma^2 * (1 + 1/n + (t - tMean)^2 / Sxx),  sigma^2 = SSE / (n - 2)
- * (any regression text, e.g. Montgomery, Peck and Vining, "Introduction to Linear
- * Regression Analysis", section 2.4.2; checked against R `predict.lm` in the tests).
+ * (the standard prediction interval of simple linear regression, from memory; checked
+ * against R `predict.lm`: se.fit^2 + sigma^2, in the tests).
  */
 import { EngineInputError } from '../errors.js'
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'

@@ -49,6 +49,7 @@ describe('theta', () => {
   const cases = [
     { name: 'Nile', seasonLength: 1 },
     { name: 'AirPassengers', seasonLength: 12 },
+    { name: 'AirPassengersShifted', seasonLength: 12 },
   ] as const
   for (const { name, seasonLength } of cases) {
     it(`matches statsmodels ThetaModel on ${name} with its alpha`, () => {
@@ -56,7 +57,10 @@ describe('theta', () => {
       const fit = fitTheta(ref.series, seasonLength, { alpha: ref.alpha })
       expect(approxEqual(fit.params.slope as number, ref.b0, 1e-12)).toBe(true)
       close(fit.forecast(sm.horizon), ref.forecast, 1e-12)
-      expect(Boolean(fit.params.seasonalFactors)).toBe(ref.deseasonalized)
+      const multiplicative = Boolean(fit.params.seasonalFactors)
+      const additive = Boolean(fit.params.seasonalTerms)
+      expect(multiplicative || additive).toBe(ref.deseasonalized)
+      if (ref.deseasonalized) expect(multiplicative ? 'mul' : 'add').toBe(ref.method)
     })
 
     it(`estimates alpha as well as statsmodels on ${name}`, () => {
@@ -64,9 +68,16 @@ describe('theta', () => {
       const fit = expectSane(fitTheta(ref.series, seasonLength), ref.series.length)
       const ours = theta.fit(ref.series, { seasonLength })
       const alpha = ours.params.alpha as number
-      expect(Math.abs(alpha - ref.alpha)).toBeLessThan(1e-4)
+      // 1e-3: on the shifted series the optimum is at the upper bound; statsmodels stops
+      // at 0.99986, we may reach 1 (measured differences 2e-5, 3e-6, 1.4e-4).
+      expect(Math.abs(alpha - ref.alpha)).toBeLessThan(1e-3)
       const factors = ours.params.seasonalFactors as number[] | undefined
-      const adjusted = factors ? ref.series.map((v, t) => v / factors[t % seasonLength]) : ref.series
+      const terms = ours.params.seasonalTerms as number[] | undefined
+      const adjusted = factors
+        ? ref.series.map((v, t) => v / factors[t % seasonLength])
+        : terms
+          ? ref.series.map((v, t) => v - terms[t % seasonLength])
+          : ref.series
       expect(levelSse(adjusted, alpha)).toBeLessThanOrEqual(levelSse(adjusted, ref.alpha) * (1 + 1e-12))
       close(fit, ref.forecast.slice(0, 12), 1e-4)
     })

@@ -25,7 +25,7 @@ function failure(spec: ModelSpec, err: unknown): Evaluation {
   return { entry: { model: spec.name, family: spec.family, status, reason } }
 }
 
-function skipped(spec: ModelSpec, reason: string): Evaluation {
+export function skipped(spec: ModelSpec, reason: string): Evaluation {
   return { entry: { model: spec.name, family: spec.family, status: 'skipped', reason } }
 }
 

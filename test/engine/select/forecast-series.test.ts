@@ -6,7 +6,7 @@ import { forecastSeriesWith, type EngineModels } from '../../../src/engine/selec
 import type { FitContext, ModelSpec, SeriesInput } from '../../../src/engine/types.js'
 import { fakeBroken, fakeConstant, fakeLast, fakeMean, fakeRefusing, fakeSpec } from './fakes.js'
 
-const withFakes = (...registry: ModelSpec[]): EngineModels => ({ registry, classify: null })
+const withFakes = (...registry: ModelSpec[]): EngineModels => ({ registry, classify: null, seasonalityTest: null })
 const history = [10, 12, 11, 13, 12, 14, 13, 15, 14, 16, 15, 17]
 const series: SeriesInput = {
   values: history,

@@ -40,6 +40,8 @@ describe('theta', () => {
     expect(isSeasonal(air, 12)).toBe(true)
     expect(theta.fit(air, { seasonLength: 12 }).params.seasonalFactors).toHaveLength(12)
     expect(theta.fit(sm.Nile.series, { seasonLength: 12 }).params.seasonalFactors).toBeUndefined()
+    // fewer than two full seasons: no adjustment even on seasonal data
+    expect(theta.fit(air.slice(0, 23), { seasonLength: 12 }).params.seasonalFactors).toBeUndefined()
   })
 
   // Source: statsmodels 0.13.5 ThetaModel (fixture from scripts/fixtures/statsmodels_theta.py).

@@ -133,6 +133,11 @@ export function loadConfig(
     }
     merge(parseApiKeys(text, /\r?\n/, deps.hash))
   }
+  if (apiKeys.size === 0 && e.HOST !== undefined && !isLoopback(e.HOST)) {
+    throw new ConfigError([
+      `HOST: ${e.HOST} would open the service to the network without authentication; set API_KEYS or API_KEYS_FILE, or listen on 127.0.0.1`,
+    ])
+  }
   return {
     port: e.PORT,
     // Without keys the service is open, so it only listens on loopback unless told otherwise.
@@ -152,4 +157,9 @@ export function loadConfig(
     rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,
     logLevel: e.LOG_LEVEL,
   }
+}
+
+/** 127.0.0.0/8, ::1 and localhost: addresses only this machine can reach. */
+export function isLoopback(host: string): boolean {
+  return host === 'localhost' || host === '::1' || /^127(\.\d{1,3}){3}$/.test(host)
 }

@@ -24,6 +24,8 @@ describe('logging', () => {
     expect(res.headers['x-request-id']).toBe('client-req-42')
     const submitted = parsed().find((l) => l.msg === 'run submitted')
     expect(submitted).toMatchObject({ reqId: 'client-req-42', tenant: 'garden', runId: res.json().id, series: 1 })
+    const completed = parsed().find((l) => l.msg === 'request completed')
+    expect(completed).toMatchObject({ reqId: 'client-req-42', tenant: 'garden', res: { statusCode: 202 } })
     expect(lines.join('\n')).not.toContain(KEY_GARDEN)
   })
 

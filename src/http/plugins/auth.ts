@@ -32,10 +32,11 @@ export default fp(
     const authOff = entries.length === 0
 
     app.decorateRequest('tenant', '')
-    app.addHook('onRequest', async (request) => {
+    app.addHook('onRequest', async (request, reply) => {
       if (authOff) {
         request.tenant = DEFAULT_TENANT
         request.log = request.log.child({ tenant: DEFAULT_TENANT })
+        reply.log = request.log
         return
       }
       if (isPublic(request)) return
@@ -58,6 +59,7 @@ export default fp(
       }
       request.tenant = tenant
       request.log = request.log.child({ tenant })
+      reply.log = request.log
     })
   },
   { name: 'auth', dependencies: ['config'] },

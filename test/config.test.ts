@@ -1,0 +1,68 @@
+import { createHash } from 'node:crypto'
+import { describe, expect, it } from 'vitest'
+import { ConfigError, isLoopback, loadConfig } from '../src/config.js'
+
+const sha256 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex')
+const noFile = (path: string): string => {
+  throw new Error(`ENOENT: ${path}`)
+}
+const load = (env: Record<string, string>, readFile = noFile) => loadConfig(env, { readFile, hash: sha256 })
+
+function problemsOf(fn: () => unknown): readonly string[] {
+  try {
+    fn()
+  } catch (err) {
+    if (err instanceof ConfigError) return err.problems
+    throw err
+  }
+  throw new Error('expected a ConfigError')
+}
+
+describe('loadConfig', () => {
+  it('defaults: loopback without keys, documented limits', () => {
+    const c = load({})
+    expect(c.host).toBe('127.0.0.1')
+    expect(c.port).toBe(8080)
+    expect(c.apiKeys.size).toBe(0)
+    expect(c.bodyLimitBytes).toBe(64 * 1024 * 1024)
+    expect(c.syncMaxSeries).toBe(100)
+    expect(c.rateLimitMax).toBe(600)
+    expect(c.rateLimitWindowMs).toBe(60_000)
+    expect(c.runWorker).toBe(true)
+  })
+
+  it('keeps API keys only as SHA-256 digests per tenant, from env and file', () => {
+    const file = '# tenants\nheating:heating-key-0123456789\n\ngarden:second-garden-key-0123\n'
+    const c = load({ API_KEYS: 'garden:garden-key-0123456789', API_KEYS_FILE: '/keys' }, () => file)
+    expect(c.apiKeys.get('garden')).toEqual([sha256('garden-key-0123456789'), sha256('second-garden-key-0123')])
+    expect(c.apiKeys.get('heating')).toEqual([sha256('heating-key-0123456789')])
+    expect(JSON.stringify([...c.apiKeys])).not.toContain('garden-key-0123456789')
+    expect(c.host).toBe('0.0.0.0')
+  })
+
+  it('lists every problem at once', () => {
+    const problems = problemsOf(() => load({ PORT: 'eighty', SYNC_MAX_SERIES: '0', LOG_LEVEL: 'loud' }))
+    expect(problems).toHaveLength(3)
+    expect(problems.map((p) => p.split(':')[0]).sort()).toEqual(['LOG_LEVEL', 'PORT', 'SYNC_MAX_SERIES'])
+  })
+
+  it('rejects malformed key entries and short keys', () => {
+    const problems = problemsOf(() => load({ API_KEYS: 'garden:short,no-colon-here-0123456789' }))
+    expect(problems).toHaveLength(2)
+  })
+
+  it('says when the key file cannot be read', () => {
+    expect(problemsOf(() => load({ API_KEYS_FILE: '/missing' }))[0]).toMatch(/^API_KEYS_FILE: cannot read/)
+  })
+
+  it('refuses a non-loopback HOST without API keys, allows it with keys', () => {
+    expect(problemsOf(() => load({ HOST: '0.0.0.0' }))[0]).toMatch(/^HOST: 0\.0\.0\.0 would open the service/)
+    expect(load({ HOST: '127.0.0.1' }).host).toBe('127.0.0.1')
+    expect(load({ HOST: '0.0.0.0', API_KEYS: 'garden:garden-key-0123456789' }).host).toBe('0.0.0.0')
+  })
+
+  it('recognises loopback addresses', () => {
+    expect(['127.0.0.1', '127.1.2.3', '::1', 'localhost'].every(isLoopback)).toBe(true)
+    expect(['0.0.0.0', '::', '10.0.0.1', '127.0.0.1.evil'].some(isLoopback)).toBe(false)
+  })
+})

@@ -6,7 +6,8 @@
  * Deterministic: fixed start simplex (start plus `step` along each axis, turned
  * back inwards when it would leave the box), no randomness, evaluation cap.
  * A non-finite objective value is treated as +Infinity.
- * Pure; allocates only at the start of a call, never per evaluation.
+ * Pure; allocates only at the start of a call (small plain arrays, which V8
+ * creates faster than typed arrays), never per evaluation.
  */
 
 export interface NelderMeadOptions {
@@ -28,10 +29,10 @@ export interface NelderMeadResult {
 
 /**
  * Minimise `objective` over the box [lower, upper].
- * The objective receives a scratch Float64Array it must not keep.
+ * The objective receives a scratch array it must not keep.
  */
 export function minimiseNelderMead(
-  objective: (x: Float64Array) => number,
+  objective: (x: readonly number[]) => number,
   start: ArrayLike<number>,
   lower: ArrayLike<number>,
   upper: ArrayLike<number>,
@@ -43,23 +44,24 @@ export function minimiseNelderMead(
   const absTol = options.absTol ?? 1e-12
   const stepFraction = options.step ?? 0.1
 
-  const clampInto = (x: Float64Array): void => {
+  const clampInto = (x: number[]): void => {
     for (let j = 0; j < d; j++) {
       const v = x[j]
       x[j] = v >= lower[j] ? (v <= upper[j] ? v : upper[j]) : lower[j]
     }
   }
   let evaluations = 0
-  const evaluate = (x: Float64Array): number => {
+  const evaluate = (x: number[]): number => {
     evaluations++
     const v = objective(x)
     return Number.isFinite(v) ? v : Infinity
   }
 
-  const pts: Float64Array[] = []
-  const vals = new Float64Array(d + 1)
+  const pts: number[][] = []
+  const vals: number[] = []
   for (let i = 0; i <= d; i++) {
-    const p = Float64Array.from(start)
+    const p: number[] = []
+    for (let j = 0; j < d; j++) p.push(start[j])
     clampInto(p)
     if (i > 0) {
       const j = i - 1
@@ -69,16 +71,26 @@ export function minimiseNelderMead(
       clampInto(p)
     }
     pts.push(p)
-    vals[i] = evaluate(p)
+    vals.push(evaluate(p))
   }
-  const order = new Int32Array(d + 1)
-  const centroid = new Float64Array(d)
-  const xr = new Float64Array(d)
-  const xe = new Float64Array(d)
-  const xc = new Float64Array(d)
+  const order: number[] = []
+  const centroid: number[] = []
+  const xr: number[] = []
+  const xe: number[] = []
+  const xc: number[] = []
+  for (let i = 0; i <= d; i++) order.push(i)
+  for (let j = 0; j < d; j++) {
+    centroid.push(0)
+    xr.push(0)
+    xe.push(0)
+    xc.push(0)
+  }
+  const copy = (to: number[], from: readonly number[]): void => {
+    for (let j = 0; j < d; j++) to[j] = from[j]
+  }
   let converged = false
 
-  const along = (out: Float64Array, coef: number, worst: Float64Array): void => {
+  const along = (out: number[], coef: number, worst: readonly number[]): void => {
     // out = centroid + coef * (centroid - worst)
     for (let j = 0; j < d; j++) out[j] = centroid[j] + coef * (centroid[j] - worst[j])
     clampInto(out)
@@ -105,7 +117,7 @@ export function minimiseNelderMead(
     }
     if (evaluations >= maxEval) break
 
-    centroid.fill(0)
+    for (let j = 0; j < d; j++) centroid[j] = 0
     for (let i = 0; i <= d; i++) {
       if (i === worst) continue
       const p = pts[i]
@@ -120,16 +132,16 @@ export function minimiseNelderMead(
       along(xe, 2, pw)
       const fe = evaluate(xe)
       if (fe < fr) {
-        pw.set(xe)
+        copy(pw, xe)
         vals[worst] = fe
       } else {
-        pw.set(xr)
+        copy(pw, xr)
         vals[worst] = fr
       }
       continue
     }
     if (fr < vals[second]) {
-      pw.set(xr)
+      copy(pw, xr)
       vals[worst] = fr
       continue
     }
@@ -138,7 +150,7 @@ export function minimiseNelderMead(
     along(xc, outside ? 0.5 : -0.5, pw)
     const fc = evaluate(xc)
     if (fc < (outside ? fr : fw)) {
-      pw.set(xc)
+      copy(pw, xc)
       vals[worst] = fc
       continue
     }
@@ -154,5 +166,5 @@ export function minimiseNelderMead(
 
   let bestIndex = 0
   for (let i = 1; i <= d; i++) if (vals[i] < vals[bestIndex]) bestIndex = i
-  return { x: Array.from(pts[bestIndex]), value: vals[bestIndex], evaluations, converged }
+  return { x: pts[bestIndex].slice(), value: vals[bestIndex], evaluations, converged }
 }

@@ -116,7 +116,7 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   const iP = damped ? start.length - 1 : -1
   const scratch = new Float64Array(m)
   const kind = shape.seasonal
-  const objective = (x: Float64Array): number => {
+  const objective = (x: readonly number[]): number => {
     const alpha = x[0]
     const beta = iB >= 0 ? x[iB] : 0
     const gamma = iG >= 0 ? x[iG] * (1 - alpha) : 0
@@ -146,12 +146,18 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   })
   const level = l0 * scale
   const trend = b0 * scale
-  const seasonal = kind === 'add' ? Array.from(s0, (v) => v * scale) : Array.from(s0)
-  const forecast = (h: number): number[] => run.forecast(h).map((v) => finite(v * scale))
+  const seasonal: number[] = []
+  for (let j = 0; j < s0.length; j++) seasonal.push(kind === 'add' ? s0[j] * scale : s0[j])
+  const forecast = (h: number): number[] => {
+    const out = run.forecast(h)
+    for (let i = 0; i < out.length; i++) out[i] = finite(out[i] * scale)
+    return out
+  }
 
   // SES starts from level = y[0], so its first prediction is not a forecast.
   const firstFitted = hasTrend || kind ? 0 : 1
-  const fitted = run.fitted.map((v) => v * scale)
+  const fitted = run.fitted
+  for (let t = 0; t < n; t++) fitted[t] *= scale
   if (firstFitted === 1) fitted[0] = NaN
   const params: Record<string, number | number[]> = { alpha, initialLevel: level }
   if (hasTrend) {
@@ -163,15 +169,19 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     params.gamma = gamma
     params.initialSeasonal = seasonal
   }
-  const fit: ModelFit = { model: shape.name, params, fitted, forecast }
-  if (kind === 'mul') return fit // no class-1 formula: the caller builds empirical intervals
+  if (kind === 'mul') return { model: shape.name, params, fitted, forecast } // no class-1 formula: empirical intervals
 
   // sigma^2 = SSE / (n - k), k = smoothing parameters + initial states (HKOS 2008, ch. 6).
   const used = n - firstFitted
   const k = 1 + (hasTrend ? 2 : 0) + (damped ? 1 : 0) + (kind ? m : 0) + 1
   const sse = firstFitted === 1 ? run.sse - run.residuals[0] ** 2 : run.sse
   const sigma2 = (sse / Math.max(1, used - k)) * scale * scale
-  if (!Number.isFinite(sigma2)) return fit // beyond double range: leave intervals to the caller
+  if (!Number.isFinite(sigma2)) return { model: shape.name, params, fitted, forecast } // beyond double range
   const shapeForVariance = { alpha, beta, gamma, phi, seasonLength: m }
-  return { ...fit, forecastVariance: (h) => additiveErrorVariance(shapeForVariance, sigma2, h).map(finite) }
+  const forecastVariance = (h: number): number[] => {
+    const out = additiveErrorVariance(shapeForVariance, sigma2, h)
+    for (let i = 0; i < out.length; i++) out[i] = finite(out[i])
+    return out
+  }
+  return { model: shape.name, params, fitted, forecast, forecastVariance }
 }

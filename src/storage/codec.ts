@@ -115,15 +115,7 @@ export function toResultItem(sku: string, r: ForecastResult): ResultItem {
   }
 }
 
-/** Compact JSON of an item without its sku (the sku is the hash field). */
-export function encodeItem(item: ResultItem): string {
-  const { sku: _sku, ...rest } = item
-  return JSON.stringify(rest)
-}
-
-export function decodeItem(sku: string, json: string): ResultItem {
-  return { sku, ...(JSON.parse(json) as object) } as ResultItem
-}
+export { encodeItem, decodeItem } from './item-codec.js'
 
 /** Opaque page cursor: the last SKU of the previous page, base64url. */
 export function encodeCursor(sku: string): string {

@@ -1,0 +1,72 @@
+import { describe, expect, it } from 'vitest'
+import { forecastSeries } from '../../src/engine/index.js'
+import { decodeItem, encodeItem } from '../../src/storage/item-codec.js'
+import { toResultItem } from '../../src/storage/codec.js'
+import type { ResultItem } from '../../src/storage/types.js'
+import { syntheticSeries } from '../queue/fixtures.js'
+
+/** Same shape, equal strings and booleans, numbers within `relTol`. */
+function expectClose(actual: unknown, expected: unknown, relTol: number, path = 'item'): void {
+  if (typeof expected === 'number') {
+    expect(typeof actual, path).toBe('number')
+    const scale = Math.max(Math.abs(expected), 1e-12)
+    expect(Math.abs((actual as number) - expected) / scale, path).toBeLessThanOrEqual(relTol)
+    return
+  }
+  if (expected === null || typeof expected !== 'object') return void expect(actual, path).toEqual(expected)
+  expect(Object.keys(actual as object).sort(), path).toEqual(Object.keys(expected).sort())
+  for (const [k, v] of Object.entries(expected)) expectClose((actual as Record<string, unknown>)[k], v, relTol, `${path}.${k}`)
+}
+
+const engineItems = (): ResultItem[] =>
+  syntheticSeries(6, 48).map((s, i) =>
+    toResultItem(s.sku, forecastSeries({ values: s.values, frequency: 'month', horizon: 12, origins: 1 + (i % 3), start: '2022-01' })),
+  )
+
+describe('stored result items', () => {
+  it('restore engine results: forecasts and parameters to 7 digits, error measures to 4', () => {
+    for (const item of engineItems()) {
+      const back = decodeItem(item.sku, encodeItem(item))
+      expectClose(back, item, 5e-4)
+      if ('error' in item || 'error' in back) throw new Error('expected forecasts')
+      expectClose(back.forecast, item.forecast, 5e-7)
+      expectClose(back.params, item.params, 5e-7)
+      expect(back.leaderboard.map((e) => [e.model, e.family, e.status])).toEqual(item.leaderboard.map((e) => [e.model, e.family, e.status]))
+    }
+  })
+
+  it('restore error items exactly', () => {
+    const item: ResultItem = { sku: 'A', error: { code: 'negative-value', message: 'values[0] is negative' } }
+    expect(decodeItem('A', encodeItem(item))).toEqual(item)
+  })
+
+  it('keep zero, null and missing fields as they were', () => {
+    const item: ResultItem = {
+      sku: 'Z',
+      model: 'naive',
+      family: 'level',
+      params: {},
+      selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
+      metrics: null,
+      leaderboard: [
+        { model: 'naive', family: 'level', status: 'scored', metrics: { mae: 0, rmse: 0, mape: null, smape: 0, mase: 0, wape: 0 }, score: 0 },
+        { model: 'holt', family: 'trend', status: 'skipped', reason: 'holt requires at least 4 data points' },
+      ],
+      forecast: [{ period: '2024-01', value: 0, lower: {}, upper: {} }],
+      intervals: { method: 'none', levels: [], clamped: false },
+      warnings: [{ code: 'all-zero', message: 'every value is zero' }],
+    }
+    expect(decodeItem('Z', encodeItem(item))).toEqual(item)
+  })
+
+  it('take well under half the bytes of plain JSON', () => {
+    for (const item of engineItems()) {
+      const { sku: _sku, ...rest } = item
+      expect(encodeItem(item).length).toBeLessThan(JSON.stringify(rest).length / 2)
+    }
+  })
+
+  it('refuse a format they do not know', () => {
+    expect(() => decodeItem('A', '[1,"ses"]')).toThrow(/unknown format 1/)
+  })
+})

@@ -180,6 +180,8 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
 /**
  * Forecast one series: validate and prepare it, select a model on a holdout, refit the
  * winner on the whole history and forecast `horizon` periods with intervals.
+ * The result is an estimate, not a guarantee: intervals assume the past error pattern
+ * continues, and a planner should review it before ordering.
  * @throws EngineInputError on bad input (code and field set)
  */
 export function forecastSeries(input: SeriesInput): ForecastResult {

@@ -32,7 +32,7 @@ afterAll(async () => {
   if (url && prefix) await deleteKeys(url, prefix)
 })
 
-describe('cancel', () => {
+describe('cancel', { timeout: 120_000 }, () => {
   it('cancels a queued run: its chunk jobs and inputs are removed', async () => {
     const run = await gateway.submit('acme', runRequest(syntheticSeries(35)))
     expect(await queue.getWaitingCount()).toBe(4)

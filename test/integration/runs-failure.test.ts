@@ -28,7 +28,7 @@ afterAll(async () => {
   if (url && prefix) await deleteKeys(url, prefix)
 })
 
-describe('run failure', () => {
+describe('run failure', { timeout: 120_000 }, () => {
   it('fails the run when a chunk cannot be processed (its input expired)', async () => {
     const run = await gateway.submit('acme', runRequest(syntheticSeries(30)))
     await redis.del(runKeys(prefix, 'acme', run.id).input(1))
@@ -43,7 +43,7 @@ describe('run failure', () => {
   })
 })
 
-describe('worker-main', () => {
+describe('worker-main', { timeout: 120_000 }, () => {
   it('exits with one line saying what to start when Redis is unreachable', async () => {
     const w = startWorkerProcess({ REDIS_URL: 'redis://127.0.0.1:1', REDIS_PREFIX: prefix })
     expect(await w.exited).toBe(1)

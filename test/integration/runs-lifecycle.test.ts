@@ -36,7 +36,7 @@ afterAll(async () => {
   if (url && prefix) await deleteKeys(url, prefix)
 })
 
-describe('run lifecycle through the gateway and a sandboxed worker', () => {
+describe('run lifecycle through the gateway and a sandboxed worker', { timeout: 120_000 }, () => {
   let run: RunRecord
   const series = syntheticSeries(45)
   // The engine rejects negative demand (EngineInputError 'negative-value'); it becomes an error item.
@@ -130,7 +130,7 @@ describe('run lifecycle through the gateway and a sandboxed worker', () => {
   })
 })
 
-describe('a later run owns the latest forecast', () => {
+describe('a later run owns the latest forecast', { timeout: 120_000 }, () => {
   it('is not overwritten by an earlier run finishing late', async () => {
     const series = syntheticSeries(3, 36, 'LATE')
     const first = await gateway.submit('acme', runRequest(series))

@@ -66,7 +66,7 @@ afterAll(async () => {
   if (url && prefix) await deleteKeys(url, prefix)
 })
 
-describe('worker processes', () => {
+describe('worker processes', { timeout: 120_000 }, () => {
   it('share one run: both commit chunks, every series exactly once', async () => {
     const a = spawnWorker()
     const b = spawnWorker()
@@ -109,5 +109,30 @@ describe('worker processes', () => {
     const orphanIndex = Number(String(orphaned[0]).split('.').pop())
     expect(rescuer.chunksOf(run.id)).toContain(orphanIndex)
     expect(victim.chunksOf(run.id)).not.toContain(orphanIndex)
+    expect(await stopWorkerProcess(rescuer)).toBe(0)
+  })
+
+  it('finish the chunk in flight on SIGTERM, then exit 0', async () => {
+    const w = spawnWorker()
+    await w.waitForLog('chunk worker started')
+    const series = syntheticSeries(250, 144, 'TERM')
+    const run = await gateway.submit('acme', runRequest(series, { origins: 4, horizon: 12 }))
+    await w.waitForLog('chunk processed', 60_000)
+    await waitFor(async () => ((await queue.getActiveCount()) > 0 ? true : undefined), 10_000, 'an active chunk')
+    w.child.kill('SIGTERM')
+    expect(await w.exited).toBe(0)
+    // Nothing was abandoned: no chunk is left active, and every chunk it started was committed.
+    expect(await queue.getActiveCount()).toBe(0)
+    const committed = w.chunksOf(run.id)
+    expect(committed.length).toBeGreaterThanOrEqual(2)
+    const r = await gateway.get('acme', run.id)
+    expect(r?.progress.done).toBe(committed.length * 25)
+    expect(w.logs.some((l) => l.msg === 'chunk worker stopped')).toBe(true)
+
+    // The rest waits for the next worker.
+    const next = spawnWorker()
+    expect((await finished(run.id)).progress).toEqual({ total: 250, done: 250, failed: 0 })
+    await expectEachSkuOnce(run.id, series.map((s) => s.sku))
+    expect(await stopWorkerProcess(next)).toBe(0)
   })
 })

@@ -7,3 +7,15 @@ export { periodLabels, nextPeriods, parsePeriod, formatPeriod, isoWeeksInYear } 
 export { computeMetrics, maseScale } from './metrics.js'
 export { normalQuantile } from './intervals.js'
 export { MODEL_REGISTRY, findModel, type DemandClassification } from './models.js'
+export {
+  computeReplenishment,
+  replenishmentFor,
+  checkReplenishmentOptions,
+  oneStepRms,
+  SERVICE_LEVEL_MIN,
+  SERVICE_LEVEL_MAX,
+  REPLENISHMENT_FORMULA,
+  type ReplenishmentOptions,
+  type ReplenishmentFigures,
+} from './replenishment.js'
+export { summariseAccuracy, TRACKING_SIGNAL_LIMIT, type ScoredPeriod, type AccuracySummary, type TrackingOptions } from './tracking.js'

@@ -2,9 +2,20 @@ import fp from 'fastify-plugin'
 import swagger from '@fastify/swagger'
 import swaggerUi from '@fastify/swagger-ui'
 import { createJsonSchemaTransform, jsonSchemaTransformObject } from 'fastify-type-provider-zod'
-import { PROBLEM_BASE_URI, PROBLEM_CONTENT_TYPE, PROBLEM_TYPES } from '../../errors.js'
+import { z } from 'zod'
+import { PROBLEM_BASE_URI, PROBLEM_CONTENT_TYPE } from '../../errors.js'
+import { finishDocument } from '../openapi-transform.js'
+import { RunRequest } from '../../schemas/run.js'
 
 export const API_VERSION = '1.0.0'
+
+// The request body of both forecast routes becomes one named component (RunRequestInput).
+if (!z.globalRegistry.has(RunRequest)) {
+  z.globalRegistry.add(RunRequest, {
+    id: 'RunRequest',
+    description: 'Run-level settings plus the series; per-series frequency, start and seasonLength override the run\'s',
+  })
+}
 
 const DESCRIPTION = `Reforecasts demand for many SKUs at once.
 
@@ -19,65 +30,6 @@ Small batches: \`POST /v1/forecast\` answers at once. Large batches:
 Errors are RFC 9457 problem details (\`${PROBLEM_CONTENT_TYPE}\`) with a
 \`type\` under ${PROBLEM_BASE_URI}; validation failures list each offending
 field as \`series[3].values[2]\`.`
-
-type OpenApiDoc = ReturnType<typeof jsonSchemaTransformObject>
-interface OpenApiResponse {
-  description?: string
-  content?: Record<string, unknown>
-}
-
-const STATUS_DESCRIPTIONS: Record<string, string> = {
-  '200': 'OK',
-  '202': 'Accepted; poll the run at the Location header',
-}
-
-/** Error responses are problem details: say so in the document, and describe each status. */
-function problemContentType(doc: OpenApiDoc): OpenApiDoc {
-  const paths = (doc as { paths?: Record<string, Record<string, { responses?: Record<string, OpenApiResponse> }>> }).paths
-  for (const item of Object.values(paths ?? {})) {
-    for (const op of Object.values(item)) {
-      for (const [status, response] of Object.entries(op.responses ?? {})) {
-        if (Number(status) >= 400 && response.content?.['application/json']) {
-          response.content = { [PROBLEM_CONTENT_TYPE]: response.content['application/json'] }
-          const titles = Object.values(PROBLEM_TYPES)
-            .filter((p) => String(p.status) === status)
-            .map((p) => p.title)
-          response.description = titles.join(' / ')
-        } else if (STATUS_DESCRIPTIONS[status] && response.description === 'Default Response') {
-          response.description = STATUS_DESCRIPTIONS[status]
-        }
-      }
-    }
-  }
-  return doc
-}
-
-/**
- * Keep only referenced component schemas (the zod registry yields an input and
- * an output variant of each) and drop their `$schema`/`$id` keys.
- */
-function pruneComponents(doc: OpenApiDoc): OpenApiDoc {
-  const schemas = (doc as { components?: { schemas?: Record<string, Record<string, unknown>> } }).components?.schemas
-  if (!schemas) return doc
-  const used = new Set<string>()
-  const collect = (v: unknown) => {
-    for (const m of JSON.stringify(v).matchAll(/"#\/components\/schemas\/([^"]+)"/g)) used.add(m[1])
-  }
-  collect((doc as { paths?: unknown }).paths)
-  // Components may reference each other; repeat until nothing new appears.
-  for (let size = -1; size !== used.size; ) {
-    size = used.size
-    for (const name of [...used]) collect(schemas[name])
-  }
-  for (const name of Object.keys(schemas)) {
-    if (!used.has(name)) delete schemas[name]
-    else {
-      delete schemas[name].$schema
-      delete schemas[name].$id
-    }
-  }
-  return doc
-}
 
 /**
  * OpenAPI 3.1 document generated from the zod route schemas, served at
@@ -103,7 +55,7 @@ export default fp(
         security: [{ apiKey: [] }],
       },
       transform: createJsonSchemaTransform({ skipList: [] }),
-      transformObject: (input) => pruneComponents(problemContentType(jsonSchemaTransformObject(input))),
+      transformObject: (input) => finishDocument(jsonSchemaTransformObject(input)),
     })
     await app.register(swaggerUi, { routePrefix: '/docs' })
     app.get(

@@ -13,13 +13,13 @@
 import { EngineInputError } from '../errors.js'
 import { MODEL_REGISTRY, classifyDemand, type DemandClassification } from '../models.js'
 import { prepareSeries, type PreparedSeries } from '../prepare.js'
-import { isSeasonal } from '../trend/index.js'
 import type { EngineWarning, ForecastResult, ModelSpec, SeriesInput } from '../types.js'
 import { assembleResult, naiveWinner, type Winner } from './assemble.js'
 import { candidateModels, lengthReason, requiredLength, structuralReason } from './candidates.js'
 import { checkedForecast, evaluateHoldout, evaluateInSample, skipped, type Evaluation } from './evaluate.js'
 import { MIN_TRAINING, planHoldout } from './holdout.js'
 import { rankEvaluations } from './rank.js'
+import { hasSeasonality } from './seasonality.js'
 
 export interface EngineModels {
   readonly registry: readonly ModelSpec[]
@@ -28,14 +28,13 @@ export interface EngineModels {
   readonly seasonalityTest: ((series: readonly number[], seasonLength: number) => boolean) | null
 }
 
-const DEFAULT_MODELS: EngineModels = { registry: MODEL_REGISTRY, classify: classifyDemand, seasonalityTest: isSeasonal }
+const DEFAULT_MODELS: EngineModels = { registry: MODEL_REGISTRY, classify: classifyDemand, seasonalityTest: hasSeasonality }
 
 /**
- * Seasonal models join the default pool only if the history shows seasonality at lag m:
- * |r_m| > 1.645 * sqrt((1 + 2 * sum_{k<m} r_k^2) / n), the 90% autocorrelation test also
- * used by the Theta fitter (common practice in forecasting competitions' benchmarks).
- * Without it, on a plain trend the seasonal models fit the noise and win about a quarter of
- * the holdout comparisons in our seeded trials. Listing `models` skips the test.
+ * Seasonal models join the default pool only if the history shows seasonality at lag m
+ * (seasonality.ts). Without the test, on a plain trend the seasonal models fit the noise and
+ * win about a quarter of the holdout comparisons in our seeded trials. Listing `models`
+ * skips the test.
  */
 function seasonalExclusion(prep: PreparedSeries, models: EngineModels): string | null {
   const m = prep.seasonLength

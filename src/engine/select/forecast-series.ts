@@ -131,8 +131,11 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
   }
   const ranking = rankEvaluations(specs, evaluations, prep.metric)
   if (ranking.order.length === 0) {
-    const reason = evaluations.map((e) => e.entry.reason).find((r) => r !== undefined) ?? 'no model could be fitted'
-    throw new EngineInputError('series-too-short', reason, 'values')
+    // Report a length problem if there is one (more data helps); else the first reason.
+    const reasons = evaluations.map((e) => e.entry.reason ?? 'no model could be fitted')
+    const short = reasons.find((r) => r.includes('requires at least'))
+    if (short) throw new EngineInputError('series-too-short', reasons.length > 1 ? `no model fits: ${short}` : short, 'values')
+    throw new EngineInputError('invalid-option', `no requested model fits this series: ${reasons.join('; ')}`, 'models')
   }
   if (ranking.fellBack) {
     warnings.push({

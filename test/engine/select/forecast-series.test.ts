@@ -142,6 +142,19 @@ describe('forecastSeries with test doubles: the leaderboard', () => {
       expect((err as EngineInputError).message).toBe('holt-winters-additive requires at least 50 data points')
     }
   })
+
+  it('throws invalid-option on models when every listed model is unfit for other reasons', () => {
+    const seasonal = fakeSpec({ name: 'seasonal-index', seasonal: true, forecast: (s, h) => new Array(h).fill(1) })
+    try {
+      forecastSeriesWith({ ...series, seasonLength: 1, models: ['seasonal-index'] }, withFakes(seasonal))
+      expect.unreachable()
+    } catch (err) {
+      expect(err).toBeInstanceOf(EngineInputError)
+      expect((err as EngineInputError).code).toBe('invalid-option')
+      expect((err as EngineInputError).field).toBe('models')
+      expect((err as EngineInputError).message).toMatch(/seasonal-index needs seasonLength >= 2/)
+    }
+  })
 })
 
 describe('forecastSeries with test doubles: output', () => {

@@ -1,9 +1,12 @@
 /**
  * Fitting an exponential-smoothing model: heuristic initial states (initial.ts),
  * then the smoothing parameters minimise the in-sample sum of squared one-step
- * errors with a bounded Nelder-Mead (optimise.ts). The series is divided by
- * max|y| while optimising so tolerances are scale-free; results are on the
- * original scale.
+ * errors with a bounded Nelder-Mead (optimise.ts). For the additive trend models
+ * (Holt, damped Holt, additive Holt-Winters) the initial states are then re-solved
+ * by least squares for the parameters found (least-squares-states.ts), followed by
+ * a short second search and a final re-solve. Multiplicative models keep the
+ * heuristic states. The series is divided by max|y| while optimising so
+ * tolerances are scale-free; results are on the original scale.
  *
  * Search box (internal coordinates; common practice, phi range as Hyndman and
  * Athanasopoulos, FPP3 sec. 8.2, from memory):
@@ -16,6 +19,7 @@ import { minimiseNelderMead } from '../optimise.js'
 import type { FitContext, ModelFit, ModelName, ModelParams } from '../types.js'
 import { initialLevel, initialLevelTrend, initialSeasonalStates } from './initial.js'
 import { sseLevel, sseSeasonalAdd, sseSeasonalMul, sseTrend } from './kernels.js'
+import { leastSquaresStates } from './least-squares-states.js'
 import { runSmoothing, type SeasonalKind } from './recursions.js'
 import { additiveErrorVariance } from './variance.js'
 
@@ -33,6 +37,8 @@ const PHI_LO = 0.8
 const PHI_HI = 0.98
 /** Objective evaluations per fit (common practice for small problems; keeps fits cheap). */
 const MAX_EVALUATIONS = 150
+/** Evaluations of the second search after least-squares initial states (additive models). */
+const REFINE_EVALUATIONS = 40
 
 /** Keeps results inside double range: +-Infinity becomes +-Number.MAX_VALUE (NaN cannot occur here). */
 function finite(v: number): number {
@@ -126,7 +132,28 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     if (hasTrend) return sseTrend(y, alpha, beta, phi, l0, b0)
     return sseLevel(y, alpha, l0, 1)
   }
-  const best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: MAX_EVALUATIONS })
+  let best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: MAX_EVALUATIONS })
+  if (kind !== 'mul' && hasTrend && Number.isFinite(best.value)) {
+    // Additive models: replace the heuristic start by least-squares states for the
+    // parameters found, search again from there, and re-solve the states once more.
+    const refine = (x: readonly number[]): boolean => {
+      const a = x[0]
+      const states = leastSquaresStates(y, a, iB >= 0 ? x[iB] : 0, iG >= 0 ? x[iG] * (1 - a) : 0, iP >= 0 ? x[iP] : 1, true, m)
+      if (!states) return false
+      const keep = [l0, b0, s0] as const
+      l0 = states.level
+      b0 = states.trend
+      s0 = states.seasonal
+      if (objective(x) < best.value) return true
+      ;[l0, b0, s0] = keep
+      return false
+    }
+    if (refine(best.x)) {
+      // The search starts at best.x, so it cannot end worse than the refined start.
+      best = minimiseNelderMead(objective, best.x, lower, upper, { maxEvaluations: REFINE_EVALUATIONS, step: 0.05 })
+      refine(best.x)
+    }
+  }
   if (!Number.isFinite(best.value)) {
     throw new EngineInputError('non-finite-value', `${shape.method} found no parameters with a finite error sum for this series`)
   }

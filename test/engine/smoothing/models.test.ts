@@ -190,9 +190,10 @@ describe('smoothingModels: hand-checkable cases', () => {
   })
 })
 
-// Sanity check, not a certified value: our SSE (heuristic initial states, bounded search,
-// phi <= 0.98) against statsmodels 0.13.5's own optimised fit (which also estimates the
-// initial states) on R `datasets` series. Ratios measured and listed in the report.
+// Sanity check, not a certified value: our SSE (bounded search, phi <= 0.98, heuristic
+// states for multiplicative models) against statsmodels 0.13.5's own optimised fit (which
+// estimates all initial states) on R `datasets` series. Measured ratios 0.946 to 1.049;
+// the 1.05 bound is the brief's "no worse than 1.05x".
 describe('smoothingModels: in-sample SSE near statsmodels optimised fits', () => {
   for (const c of smoothingFixture.optimised) {
     it(`${c.data} ${c.model}`, () => {
@@ -201,7 +202,7 @@ describe('smoothingModels: in-sample SSE near statsmodels optimised fits', () =>
       fit.fitted.forEach((v, t) => {
         if (!Number.isNaN(v)) sse += (c.series[t] - v) ** 2
       })
-      expect(sse / c.sse).toBeLessThan(1.3)
+      expect(sse / c.sse).toBeLessThan(1.05)
     })
   }
 })

@@ -17,6 +17,12 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         querystring: ResultsQuery,
         response: { 200: ResultPageSchema, ...COMMON_PROBLEMS, ...NOT_FOUND },
       },
+      // Pages of up to 1000 stored items: parsing each through zod tripled the
+      // time of plain JSON (measured: 6.5 MB page, ~330 ms vs ~100 ms). Items
+      // come from the run store, written by the same code that defines the
+      // schema, so this route serializes them directly; the schema still
+      // documents them.
+      serializerCompiler: () => (data) => JSON.stringify(data),
     },
     async (request) => {
       const { runId } = request.params

@@ -4,7 +4,8 @@ import type { Redis } from 'ioredis'
 import type { Config } from '../config.js'
 import type { RunRequest } from '../schemas/run.js'
 import { RunStore } from '../storage/run-store.js'
-import type { RunGateway, RunRecord } from '../storage/types.js'
+import { RunInputError, type RunGateway, type RunRecord } from '../storage/types.js'
+import { checkReplenishmentOptions, EngineInputError } from '../engine/index.js'
 import { gatewayConnection } from './connection.js'
 import { CHUNK_JOB, CHUNK_JOB_OPTIONS, CHUNK_QUEUE, chunkJobId } from './names.js'
 import type { ChunkJob } from './payload.js'
@@ -16,6 +17,20 @@ export interface RunMachinery extends RunGateway {
 }
 
 const BATCH = 500
+
+/**
+ * Cross-field checks the schema cannot express.
+ * @throws RunInputError when the replenishment lead time exceeds the horizon.
+ */
+export function checkRunOptions(settings: Pick<RunRequest, 'horizon' | 'replenishment'>): void {
+  if (!settings.replenishment) return
+  try {
+    checkReplenishmentOptions(settings.replenishment, settings.horizon)
+  } catch (err) {
+    if (err instanceof EngineInputError) throw new RunInputError('invalid-option', err.message, err.field ?? 'replenishment')
+    throw err
+  }
+}
 
 /**
  * The RunGateway over BullMQ and the Redis run store. `submit` stores the
@@ -33,6 +48,7 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
 
   return {
     async submit(tenant: string, request: RunRequest): Promise<RunRecord> {
+      checkRunOptions(request)
       const runId = randomUUID()
       const { record, chunks } = await store.createRun(tenant, runId, request, config.chunkSize, now())
       try {

@@ -1,5 +1,5 @@
 import { UnrecoverableError, type Job } from 'bullmq'
-import { EngineInputError, type ForecastResult, type SeriesInput } from '../engine/index.js'
+import { EngineInputError, replenishmentFor, type ForecastResult, type SeriesInput } from '../engine/index.js'
 import type { Logger } from 'pino'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 import { tallyItems, toResultItem } from '../storage/codec.js'
@@ -33,10 +33,26 @@ export function forecastItem(
   series: SeriesItem,
 ): ResultItem {
   try {
-    return toResultItem(series.sku, forecast(toSeriesInput(settings, series)))
+    const result = forecast(toSeriesInput(settings, series))
+    return withReplenishment(toResultItem(series.sku, result), result, settings)
   } catch (err) {
     if (err instanceof EngineInputError) return { sku: series.sku, error: { code: err.code, message: err.message } }
     throw err
+  }
+}
+
+/**
+ * Adds replenishment figures when the settings ask for them. Options the
+ * engine refuses (the gateway checks them before a run is queued) leave the
+ * forecast as it is, with a warning.
+ */
+function withReplenishment(item: ResultItem, result: ForecastResult, settings: RunSettings): ResultItem {
+  if (!settings.replenishment || 'error' in item) return item
+  try {
+    return { ...item, replenishment: replenishmentFor(result, settings.replenishment) }
+  } catch (err) {
+    if (!(err instanceof EngineInputError)) throw err
+    return { ...item, warnings: [...item.warnings, { code: 'replenishment-skipped', message: err.message }] }
   }
 }
 

@@ -41,6 +41,27 @@ const LeaderboardEntry = z.object({
 
 const Warning = z.object({ code: z.string(), message: z.string() })
 
+export const ReplenishmentSchema = z
+  .object({
+    leadTime: z.number().int().describe('Lead time L in periods'),
+    serviceLevel: z.number().describe('Target cycle service level'),
+    leadTimeDemand: z.number().describe('Sum of the point forecasts for steps 1..L'),
+    sigma: z
+      .number()
+      .nullable()
+      .describe('sigma_L = sigma_1 * sqrt(L), sigma_1 the RMS of one-step in-sample errors; null when unknown'),
+    z: z.number().describe('Standard normal quantile at serviceLevel'),
+    safetyStock: z.number().nullable().describe('z * sigma_L'),
+    reorderPoint: z.number().nullable().describe('leadTimeDemand + safetyStock'),
+    formula: z.literal('sigma1-sqrt-lead-time'),
+  })
+  .meta({
+    id: 'Replenishment',
+    description:
+      'Textbook estimate (independent one-step errors, fixed lead time): review before ordering. ' +
+      'Errors of smoothing models are correlated across steps, so sigma_L is often understated for trending series.',
+  })
+
 export const ForecastItem = z
   .object({
     sku: z.string(),
@@ -62,6 +83,7 @@ export const ForecastItem = z
       clamped: z.boolean().describe('Some lower bound was raised to zero'),
     }),
     warnings: z.array(Warning),
+    replenishment: ReplenishmentSchema.optional(),
   })
   .meta({ id: 'ForecastItem' })
 

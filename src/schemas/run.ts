@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES } from '../engine/index.js'
+import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES, SERVICE_LEVEL_MAX, SERVICE_LEVEL_MIN } from '../engine/index.js'
 
 /**
  * The request contract shared by `POST /v1/forecast`, `POST /v1/runs` and the
@@ -35,6 +35,32 @@ export const SeriesItem = z.object({
 })
 export type SeriesItem = z.infer<typeof SeriesItem>
 
+export const ReplenishmentSettings = z
+  .object({
+    leadTime: z.number().int().min(1).max(MAX_HORIZON).describe('Lead time in periods (1..horizon)'),
+    serviceLevel: z
+      .number()
+      .gt(SERVICE_LEVEL_MIN)
+      .lt(SERVICE_LEVEL_MAX)
+      .describe('Target cycle service level, e.g. 0.95 (in (0.5, 0.9999))'),
+  })
+  .describe('Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review)')
+
+export const CallbackUrl = z
+  .string()
+  .max(2048)
+  .url()
+  .refine((u) => /^https?:\/\//i.test(u), 'must be an http or https URL')
+  .refine((u) => {
+    try {
+      const url = new URL(u)
+      return url.username === '' && url.password === ''
+    } catch {
+      return false
+    }
+  }, 'must not contain credentials')
+  .describe('Called (signed POST) when the run ends; see /v1/callbacks for the signature')
+
 export const RunSettings = z.object({
   horizon: z.number().int().min(1).max(MAX_HORIZON).describe('Periods to forecast'),
   frequency: z.enum(FREQUENCIES).default('month'),
@@ -51,6 +77,8 @@ export const RunSettings = z.object({
   allowNegative: z.boolean().default(false),
   keepLeadingZeros: z.boolean().default(false),
   origins: z.number().int().min(1).max(12).default(1).describe('Rolling forecast origins used in selection'),
+  replenishment: ReplenishmentSettings.optional(),
+  callbackUrl: CallbackUrl.optional(),
 })
 export type RunSettings = z.infer<typeof RunSettings>
 

@@ -1,4 +1,12 @@
-import { METRIC_NAMES, findModel, type ForecastPoint, type LeaderboardEntry, type MetricSet, type ModelParams } from '../engine/index.js'
+import {
+  METRIC_NAMES,
+  findModel,
+  type ForecastPoint,
+  type LeaderboardEntry,
+  type MetricSet,
+  type ModelParams,
+  type ReplenishmentFigures,
+} from '../engine/index.js'
 import type { ResultItem } from './types.js'
 
 /**
@@ -9,6 +17,8 @@ import type { ResultItem } from './types.js'
  * compare models). The sku is not stored: it is the hash field.
  *
  *   [2, model, family, params, selection, metrics, leaderboard, forecast, intervals, warnings]
+ *   [2, ..., warnings, replenishment?]               replenishment: [leadTime, serviceLevel, leadTimeDemand,
+ *                                                    sigma, z, safetyStock, reorderPoint, formula] when asked for
  *   [2, 'error', code, message]                     for a series the engine rejected
  *   forecast:    [periods[], values[], {level: lower[]}, {level: upper[]}]
  *   leaderboard: [[model, family|0, status, metrics|null, score|null|'m', reason|null], ...]
@@ -69,7 +79,27 @@ export function encodeItem(item: ResultItem): string {
     [item.forecast.map((p) => p.period), item.forecast.map((p) => r7(p.value)), mapBounds(item.forecast, 'lower'), mapBounds(item.forecast, 'upper')],
     [item.intervals.method, item.intervals.levels, item.intervals.clamped],
     item.warnings.map((w) => [w.code, w.message]),
+    // Optional 11th element (absent in items stored before replenishment figures existed).
+    ...(item.replenishment ? [packReplenishment(item.replenishment)] : []),
   ])
+}
+
+const REPLENISHMENT_FIELDS = ['leadTime', 'serviceLevel', 'leadTimeDemand', 'sigma', 'z', 'safetyStock', 'reorderPoint'] as const
+
+/** Options and z kept exactly; the figures to 7 significant digits like forecasts. */
+const EXACT = new Set<string>(['leadTime', 'serviceLevel', 'z'])
+
+function packReplenishment(r: ReplenishmentFigures): (number | string | null)[] {
+  const packed = REPLENISHMENT_FIELDS.map((k) => {
+    const v = r[k]
+    return v === null || EXACT.has(k) ? v : r7(v)
+  })
+  return [...packed, r.formula]
+}
+
+function unpackReplenishment(a: readonly (number | string | null)[]): ReplenishmentFigures {
+  const o = Object.fromEntries(REPLENISHMENT_FIELDS.map((k, i) => [k, a[i]]))
+  return { ...o, formula: a[REPLENISHMENT_FIELDS.length] } as unknown as ReplenishmentFigures
 }
 
 
@@ -77,7 +107,7 @@ export function decodeItem(sku: string, json: string): ResultItem {
   const a = JSON.parse(json) as any[]
   if (a[0] !== VERSION) throw new Error(`stored result of ${sku} has unknown format ${String(a[0])}`)
   if (a[1] === 'error') return { sku, error: { code: a[2], message: a[3] } }
-  const [, model, family, params, sel, metrics, board, fc, iv, warnings] = a
+  const [, model, family, params, sel, metrics, board, fc, iv, warnings, repl] = a
   const [periods, values, lower, upper] = fc as [string[], number[], Record<string, number[]>, Record<string, number[]>]
   const bound = (side: Record<string, number[]>, i: number) => Object.fromEntries(Object.entries(side).map(([l, v]) => [l, v[i]!]))
   return {
@@ -91,5 +121,6 @@ export function decodeItem(sku: string, json: string): ResultItem {
     forecast: periods.map((period, i) => ({ period, value: values[i]!, lower: bound(lower, i), upper: bound(upper, i) })),
     intervals: { method: iv[0], levels: iv[1], clamped: iv[2] },
     warnings: (warnings as [string, string][]).map(([code, message]) => ({ code, message })),
+    ...(Array.isArray(repl) ? { replenishment: unpackReplenishment(repl) } : {}),
   }
 }

@@ -1,4 +1,4 @@
-import type { ForecastResult, ModelName, MetricName } from '../engine/index.js'
+import type { ForecastResult, ModelName, MetricName, ReplenishmentFigures } from '../engine/index.js'
 import type { RunSettings } from '../schemas/run.js'
 
 /** Contract between the HTTP layer and the run machinery (queue + storage). */
@@ -36,7 +36,10 @@ export type ResultItem =
   | ({ readonly sku: string } & Pick<
       ForecastResult,
       'model' | 'family' | 'params' | 'metrics' | 'leaderboard' | 'forecast' | 'warnings' | 'selection' | 'intervals'
-    >)
+    > & {
+      /** Present when the run asked for replenishment figures. */
+      readonly replenishment?: ReplenishmentFigures
+    })
   | { readonly sku: string; readonly error: { readonly code: string; readonly message: string } }
 
 export interface ResultPage {
@@ -79,7 +82,7 @@ export interface RunGateway {
 export class RunInputError extends Error {
   override readonly name = 'RunInputError'
   constructor(
-    readonly code: 'duplicate-sku' | 'invalid-cursor',
+    readonly code: 'duplicate-sku' | 'invalid-cursor' | 'invalid-option',
     message: string,
     readonly field: string,
   ) {

@@ -1,0 +1,135 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { FastifyInstance } from 'fastify'
+import { build } from '../../src/http/app.js'
+import { createLogger } from '../../src/logger.js'
+import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
+import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import { decodeItem, encodeItem } from '../../src/storage/codec.js'
+import type { ResultItem } from '../../src/storage/types.js'
+import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
+import { runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+
+// Replenishment figures through the real app, queue and sandboxed worker (Redis at REDIS_URL).
+let url: string
+let prefix: string
+let app: FastifyInstance
+let gateway: RunMachinery
+let workers: RunWorkers
+
+beforeAll(async () => {
+  url = await redisUrlForTests()
+  prefix = uniquePrefix('erp-replenishment')
+  const config = runsTestConfig(url, prefix, { chunkSize: 5, workerConcurrency: 1 })
+  const logger = createLogger({ level: 'silent' })
+  gateway = createRunGateway(config)
+  workers = startWorkers(config, logger)
+  app = await build({ config, gateway, logger })
+})
+
+afterAll(async () => {
+  await app?.close()
+  await workers?.close()
+  await gateway?.close()
+  if (url && prefix) await deleteKeys(url, prefix)
+})
+
+type Forecast = Exclude<ResultItem, { error: unknown }>
+
+describe('replenishment figures in run results', { timeout: 120_000 }, () => {
+  it('adds lead-time demand, safety stock and reorder point to every forecast item', async () => {
+    const series = syntheticSeries(8, 36, 'MULCH')
+    const res = await app.inject({
+      method: 'POST',
+      url: '/v1/runs',
+      payload: { horizon: 6, series, replenishment: { leadTime: 3, serviceLevel: 0.95 } },
+    })
+    expect(res.statusCode).toBe(202)
+    const id = res.json().id as string
+    expect(res.json().settings.replenishment).toEqual({ leadTime: 3, serviceLevel: 0.95 })
+    await waitFor(async () => {
+      const run = await gateway.get('default', id)
+      return run?.status === 'succeeded' ? run : undefined
+    }, 90_000, 'run to succeed')
+    const page = (await app.inject({ url: `/v1/runs/${id}/results?limit=100` })).json()
+    expect(page.items).toHaveLength(8)
+    for (const item of page.items as Forecast[]) {
+      const r = item.replenishment!
+      const ltd = item.forecast.slice(0, 3).reduce((a, p) => a + p.value, 0)
+      // Stored figures keep 7 significant digits.
+      expect(r.leadTimeDemand).toBeCloseTo(ltd, 3)
+      expect(r.z).toBeCloseTo(1.6449, 4) // standard normal table, 95 %
+      expect(r.sigma).toBeGreaterThan(0)
+      expect(r.safetyStock!).toBeCloseTo(r.z * r.sigma!, 3)
+      expect(r.reorderPoint!).toBeCloseTo(r.leadTimeDemand + r.safetyStock!, 3)
+      expect(r.formula).toBe('sigma1-sqrt-lead-time')
+    }
+    const latest = (await app.inject({ url: '/v1/skus/MULCH-00003/forecast' })).json()
+    expect(latest.replenishment.leadTime).toBe(3)
+  })
+
+  it('leaves runs without the option unchanged', async () => {
+    const res = await app.inject({ method: 'POST', url: '/v1/forecast', payload: { horizon: 3, series: syntheticSeries(1) } })
+    expect(res.statusCode).toBe(200)
+    expect(res.json().items[0]).not.toHaveProperty('replenishment')
+  })
+
+  it('refuses a lead time beyond the horizon with the field named', async () => {
+    const res = await app.inject({
+      method: 'POST',
+      url: '/v1/runs',
+      payload: { horizon: 2, series: syntheticSeries(1), replenishment: { leadTime: 3, serviceLevel: 0.95 } },
+    })
+    expect(res.statusCode).toBe(400)
+    expect(res.json().errors).toEqual([
+      {
+        path: 'replenishment.leadTime',
+        message: 'leadTime (3) must not exceed the horizon (2): lead-time demand needs a forecast for every period of the lead time',
+      },
+    ])
+  })
+
+  it('refuses a service level outside (0.5, 0.9999)', async () => {
+    const res = await app.inject({
+      method: 'POST',
+      url: '/v1/runs',
+      payload: { horizon: 2, series: syntheticSeries(1), replenishment: { leadTime: 1, serviceLevel: 1 } },
+    })
+    expect(res.statusCode).toBe(400)
+    expect(res.json().errors[0].path).toBe('replenishment.serviceLevel')
+  })
+
+  it('the sync forecast computes the figures too', async () => {
+    const res = await app.inject({
+      method: 'POST',
+      url: '/v1/forecast',
+      payload: { horizon: 4, series: syntheticSeries(1), replenishment: { leadTime: 2, serviceLevel: 0.9 } },
+    })
+    const item = res.json().items[0]
+    expect(item.replenishment.z).toBeCloseTo(1.2816, 4)
+    expect(item.replenishment.leadTimeDemand).toBeCloseTo(item.forecast[0].value + item.forecast[1].value, 9)
+  })
+})
+
+describe('stored item codec keeps the figures', () => {
+  it('round-trips replenishment and still reads items without it', () => {
+    const base = {
+      sku: 'RAKE-1',
+      model: 'naive',
+      family: 'level',
+      params: {},
+      selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
+      metrics: null,
+      leaderboard: [],
+      forecast: [{ period: '2026-01', value: 10, lower: {}, upper: {} }],
+      intervals: { method: 'none', levels: [], clamped: false },
+      warnings: [],
+    } as Forecast
+    const replenishment = {
+      leadTime: 1, serviceLevel: 0.95, leadTimeDemand: 10, sigma: 2.123456789, z: 1.6448536269514715,
+      safetyStock: 3.4927512345, reorderPoint: 13.4927512345, formula: 'sigma1-sqrt-lead-time',
+    } as const
+    const back = decodeItem('RAKE-1', encodeItem({ ...base, replenishment })) as Forecast
+    expect(back.replenishment).toEqual({ ...replenishment, sigma: 2.123457, safetyStock: 3.492751, reorderPoint: 13.49275 })
+    expect(decodeItem('RAKE-1', encodeItem(base))).not.toHaveProperty('replenishment')
+  })
+})

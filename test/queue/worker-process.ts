@@ -10,6 +10,8 @@ export interface WorkerProcess {
   readonly stderr: string[]
   /** Chunk indexes this process committed, by run id. */
   chunksOf(runId: string): number[]
+  /** Chunk indexes this process finished with any outcome (including 'duplicate'), by run id. */
+  processedOf(runId: string): number[]
   waitForLog(msg: string, timeoutMs?: number): Promise<Record<string, unknown>>
   /** Resolves with the exit code (or signal) once the process has exited. */
   exited: Promise<number | string>
@@ -58,6 +60,8 @@ export function startWorkerProcess(env: Record<string, string>): WorkerProcess {
       logs
         .filter((l) => l.msg === 'chunk processed' && l.runId === runId && l.outcome !== 'duplicate')
         .map((l) => Number(l.chunkIndex)),
+    processedOf: (runId) =>
+      logs.filter((l) => l.msg === 'chunk processed' && l.runId === runId).map((l) => Number(l.chunkIndex)),
     waitForLog: (msg, timeoutMs = 30_000) => {
       const seen = logs.find((l) => l.msg === msg)
       if (seen) return Promise.resolve(seen)

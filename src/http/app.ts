@@ -52,6 +52,14 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   app.setSerializerCompiler(serializerCompiler)
   // Only JSON bodies: anything else is 415 rather than a string the schema rejects.
   app.removeContentTypeParser('text/plain')
+  // An empty JSON body counts as no body (some clients send DELETE with a JSON
+  // content type and nothing else); routes that need a body reject it by schema.
+  const parseJson = app.getDefaultJsonParser('error', 'error')
+  app.removeContentTypeParser('application/json')
+  app.addContentTypeParser('application/json', { parseAs: 'string' }, (request, body, done) => {
+    if (body === '') done(null, undefined)
+    else parseJson(request, body.toString(), done)
+  })
   app.addHook('onRequest', async (request, reply) => {
     reply.header('x-request-id', request.id)
   })

@@ -33,10 +33,29 @@ describe('problem responses for bad input (never a 500)', () => {
     `)
   })
 
-  it('an empty JSON body is malformed-json too', async () => {
+  it('an empty JSON body is no body: a 400 where one is needed, fine where not', async () => {
     const res = await post('')
     expect(res.statusCode).toBe(400)
+    expect(res.json().errors).toEqual([{ path: 'body', message: 'Invalid input: expected object, received null' }])
+    const del = await app.inject({
+      method: 'DELETE',
+      url: '/v1/runs/run-1',
+      headers: { ...auth(KEY_GARDEN), 'content-type': 'application/json' },
+      payload: '',
+    })
+    expect(del.statusCode).toBe(404)
+  })
+
+  it('a prototype-poisoning body is malformed-json', async () => {
+    const res = await post('{"__proto__": {"admin": true}, "horizon": 1, "series": []}')
+    expect(res.statusCode).toBe(400)
     expect(res.json().type).toBe('https://almanac.example/problems/malformed-json')
+  })
+
+  it('numbers that overflow to Infinity are rejected by field', async () => {
+    const res = await post('{"horizon": 1, "series": [{"sku": "A", "values": [1e400, 2]}]}')
+    expect(res.statusCode).toBe(400)
+    expect(res.json().errors).toEqual([{ path: 'series[0].values[0]', message: 'Invalid input: expected number, received Infinity' }])
   })
 
   it('a body that is not JSON is 415', async () => {

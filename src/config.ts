@@ -44,6 +44,10 @@ export const ConfigSchema = z.object({
   RATE_LIMIT_MAX: intFromEnv(600, 1, 1_000_000),
   RATE_LIMIT_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  /** Webhook delivery: attempts in all, first retry delay (doubling after), per-request timeout. */
+  WEBHOOK_ATTEMPTS: intFromEnv(5, 1, 20),
+  WEBHOOK_BACKOFF_MS: intFromEnv(30_000, 10, 3_600_000),
+  WEBHOOK_TIMEOUT_MS: intFromEnv(10_000, 100, 120_000),
 })
 
 export interface Config {
@@ -67,6 +71,12 @@ export interface Config {
   readonly rateLimitMax: number
   readonly rateLimitWindowMs: number
   readonly logLevel: z.infer<typeof ConfigSchema>['LOG_LEVEL']
+  /** Webhook delivery attempts; default 5 when absent. */
+  readonly webhookAttempts?: number
+  /** Delay before the first webhook retry, doubling after; default 30000 when absent. */
+  readonly webhookBackoffMs?: number
+  /** Timeout of one webhook request; default 10000 when absent. */
+  readonly webhookTimeoutMs?: number
 }
 
 export class ConfigError extends Error {
@@ -156,6 +166,9 @@ export function loadConfig(
     rateLimitMax: e.RATE_LIMIT_MAX,
     rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,
     logLevel: e.LOG_LEVEL,
+    webhookAttempts: e.WEBHOOK_ATTEMPTS,
+    webhookBackoffMs: e.WEBHOOK_BACKOFF_MS,
+    webhookTimeoutMs: e.WEBHOOK_TIMEOUT_MS,
   }
 }
 

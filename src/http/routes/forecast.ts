@@ -4,6 +4,7 @@ import { ProblemError } from '../../errors.js'
 import { Problem } from '../../schemas/problem.js'
 import { ForecastResponse, type ForecastBody } from '../../schemas/results.js'
 import { RunRequest, type RunSettings, type SeriesItem } from '../../schemas/run.js'
+import { checkRunOptions } from '../../queue/gateway.js'
 import { forecastItem } from '../../queue/processor.js'
 import type { ResultItem } from '../../storage/types.js'
 import type { ServiceMetrics } from '../metrics.js'
@@ -52,6 +53,11 @@ export function forecastRoutes(fn: ForecastFn): FastifyPluginAsyncZod {
             `POST /v1/forecast takes at most ${max} series (got ${series.length}); submit a run with POST /v1/runs`,
           )
         }
+        if (settings.callbackUrl !== undefined) {
+          const message = 'only runs call back; POST /v1/forecast answers in the response'
+          throw new ProblemError('validation-failed', message, [{ path: 'callbackUrl', message }])
+        }
+        checkRunOptions(settings) // same option checks as a run: RunInputError -> 400
         const items = series.map((s) => timedForecastItem(fn, settings, s, app.metrics))
         request.log.info({ series: series.length, failed: items.filter((i) => 'error' in i).length }, 'sync forecast')
         return { items } as ForecastBody

@@ -63,6 +63,35 @@ describe('POST /v1/forecast (real engine)', () => {
     expect(typeof bad.error.message).toBe('string')
   })
 
+  it('adds replenishment figures when asked, and checks the lead time against the horizon like a run', async () => {
+    const res = await post({
+      horizon: 6,
+      replenishment: { leadTime: 2, serviceLevel: 0.95 },
+      series: [{ sku: 'AIR-1949', values: AIR_PASSENGERS_1949_1951 }],
+    })
+    expect(res.statusCode).toBe(200)
+    const item = res.json().items[0]
+    expect(item.replenishment.leadTime).toBe(2)
+    // Lead-time demand is the sum of the first two point forecasts (its documented definition).
+    expect(item.replenishment.leadTimeDemand).toBeCloseTo(item.forecast[0].value + item.forecast[1].value, 6)
+
+    const tooLong = await post({
+      horizon: 3,
+      replenishment: { leadTime: 4, serviceLevel: 0.95 },
+      series: [{ sku: 'A', values: [1, 2, 3, 4] }],
+    })
+    expect(tooLong.statusCode).toBe(400)
+    expect(tooLong.json().errors[0].path).toBe('replenishment.leadTime')
+  })
+
+  it('refuses a callbackUrl: only runs call back', async () => {
+    const res = await post({ horizon: 1, callbackUrl: 'https://erp.example/hook', series: [{ sku: 'A', values: [1, 2] }] })
+    expect(res.statusCode).toBe(400)
+    expect(res.json().errors).toEqual([
+      { path: 'callbackUrl', message: 'only runs call back; POST /v1/forecast answers in the response' },
+    ])
+  })
+
   it('answers 413 too-many-series above the synchronous limit', async () => {
     const series = Array.from({ length: 4 }, (_, i) => ({ sku: `S${i}`, values: [1, 2, 3] }))
     const res = await post({ horizon: 1, series })

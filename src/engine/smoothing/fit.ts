@@ -19,7 +19,7 @@ import { minimiseNelderMead } from '../optimise.js'
 import type { FitContext, ModelFit, ModelName, ModelParams } from '../types.js'
 import { initialLevel, initialLevelTrend, initialSeasonalStates } from './initial.js'
 import { sseLevel, sseSeasonalAdd, sseSeasonalMul, sseTrend } from './kernels.js'
-import { leastSquaresStates } from './least-squares-states.js'
+import { leastSquaresStates, leastSquaresWorkspace } from './least-squares-states.js'
 import { runSmoothing, type SeasonalKind } from './recursions.js'
 import { additiveErrorVariance } from './variance.js'
 
@@ -75,18 +75,27 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     if (a > scale) scale = a
   }
   if (!(scale > 0)) scale = 1
-  const y = new Float64Array(n)
+  // One allocation for every buffer of this fit (V8 allocates Float64Arrays longer than
+  // 8 elements off-heap, at a cost comparable to a whole SSE evaluation).
+  // Layout: y (n) | seasonal scratch (m) | states [l, b, s...] (2 + m) | LS states (2 + m) | LS workspace.
+  const additiveTrend = shape.seasonal !== 'mul' && shape.trend !== 'none'
+  const ms = shape.seasonal ? m : 0
+  const lsSize = additiveTrend ? leastSquaresWorkspace(n, m) : 0
+  const work = new Float64Array(n + m + 2 * (2 + ms) + lsSize)
+  const y = work.subarray(0, n)
+  const scratch = work.subarray(n, n + ms)
+  const lsStates = work.subarray(n + m + 2 + ms, n + m + 2 * (2 + ms))
+  const lsWork = work.subarray(n + m + 2 * (2 + ms))
   for (let t = 0; t < n; t++) y[t] = series[t] / scale
 
   // Initial states on the scaled series.
   let l0: number
   let b0 = 0
-  let s0: Float64Array = new Float64Array(0)
+  const s0 = work.subarray(n + m + 2, n + m + 2 + ms)
   if (shape.seasonal) {
-    const init = initialSeasonalStates(y, m, shape.seasonal)
+    const init = initialSeasonalStates(y, m, shape.seasonal, s0)
     l0 = init.level
     b0 = init.trend
-    s0 = init.seasonal
   } else if (shape.trend !== 'none') {
     const init = initialLevelTrend(y)
     l0 = init.level
@@ -120,7 +129,6 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   const iB = hasTrend ? 1 : -1
   const iG = shape.seasonal ? (hasTrend ? 2 : 1) : -1
   const iP = damped ? start.length - 1 : -1
-  const scratch = new Float64Array(m)
   const kind = shape.seasonal
   const objective = (x: readonly number[]): number => {
     const alpha = x[0]
@@ -133,19 +141,24 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     return sseLevel(y, alpha, l0, 1)
   }
   let best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: MAX_EVALUATIONS })
-  if (kind !== 'mul' && hasTrend && Number.isFinite(best.value)) {
+  // Skipped when the fit is already exact (RMS error below 1e-10 of max|y|).
+  if (additiveTrend && Number.isFinite(best.value) && best.value > 1e-20 * n) {
     // Additive models: replace the heuristic start by least-squares states for the
     // parameters found, search again from there, and re-solve the states once more.
     const refine = (x: readonly number[]): boolean => {
       const a = x[0]
-      const states = leastSquaresStates(y, a, iB >= 0 ? x[iB] : 0, iG >= 0 ? x[iG] * (1 - a) : 0, iP >= 0 ? x[iP] : 1, true, m)
-      if (!states) return false
-      const keep = [l0, b0, s0] as const
-      l0 = states.level
-      b0 = states.trend
-      s0 = states.seasonal
+      const ok = leastSquaresStates(y, a, iB >= 0 ? x[iB] : 0, iG >= 0 ? x[iG] * (1 - a) : 0, iP >= 0 ? x[iP] : 1, true, m, lsWork, lsStates)
+      if (!ok) return false
+      const keepL = l0
+      const keepB = b0
+      l0 = lsStates[0]
+      b0 = lsStates[1]
+      scratch.set(s0) // scratch is free between evaluations
+      s0.set(lsStates.subarray(2))
       if (objective(x) < best.value) return true
-      ;[l0, b0, s0] = keep
+      l0 = keepL
+      b0 = keepB
+      s0.set(scratch)
       return false
     }
     if (refine(best.x)) {

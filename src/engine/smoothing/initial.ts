@@ -53,16 +53,18 @@ export function initialSeasonalStates(
   y: ArrayLike<number>,
   m: number,
   kind: SeasonalKind,
+  /** Receives the m seasonal states (allocated when not given). */
+  seasonal: Float64Array = new Float64Array(m),
   maxSeasons = INITIAL_SEASONS,
 ): { level: number; trend: number; seasonal: Float64Array } {
   const seasons = Math.max(2, Math.min(Math.floor(y.length / m), maxSeasons))
-  const means = new Float64Array(seasons)
+  const means: number[] = []
   let grand = 0
   for (let k = 0; k < seasons; k++) {
     let a = 0
     for (let j = 0; j < m; j++) a += y[k * m + j]
-    means[k] = a / m
-    grand += means[k]
+    means.push(a / m)
+    grand += a / m
   }
   grand /= seasons
   const kMean = (seasons - 1) / 2
@@ -75,7 +77,6 @@ export function initialSeasonalStates(
   const trend = sxy / sxx / m
   const centre = (seasons * m - 1) / 2
   const line = (t: number): number => grand + trend * (t - centre)
-  const seasonal = new Float64Array(m)
   let total = 0
   for (let j = 0; j < m; j++) {
     let v = 0

@@ -58,7 +58,16 @@ export function forecastRoutes(fn: ForecastFn): FastifyPluginAsyncZod {
           throw new ProblemError('validation-failed', message, [{ path: 'callbackUrl', message }])
         }
         checkRunOptions(settings) // same option checks as a run: RunInputError -> 400
-        const items = series.map((s) => timedForecastItem(fn, settings, s, app.metrics))
+        // Fitting is CPU work on the event loop: yield every ~20 ms so health checks and other requests keep flowing.
+        const items: ResultItem[] = []
+        let slice = performance.now()
+        for (const s of series) {
+          items.push(timedForecastItem(fn, settings, s, app.metrics))
+          if (performance.now() - slice > 20) {
+            await new Promise((resolve) => setImmediate(resolve))
+            slice = performance.now()
+          }
+        }
         request.log.info({ series: series.length, failed: items.filter((i) => 'error' in i).length }, 'sync forecast')
         return { items } as ForecastBody
       },

@@ -5,19 +5,27 @@ import type { Redis } from 'ioredis'
 import type { Config } from '../config.js'
 import { forecastSeries } from '../engine/index.js'
 import { createLogger, type Logger } from '../logger.js'
+import type { HistoryStore } from '../storage/history-store.js'
+import type { IdempotencyStore } from '../storage/idempotency-store.js'
 import type { RunGateway } from '../storage/types.js'
 import { createServiceMetrics, type ServiceMetrics } from './metrics.js'
 import authPlugin from './plugins/auth.js'
 import configPlugin from './plugins/config.js'
 import errorHandlerPlugin from './plugins/error-handler.js'
+import etagPlugin from './plugins/etag.js'
+import historyPlugin from './plugins/history.js'
+import idempotencyPlugin from './plugins/idempotency.js'
 import metricsPlugin from './plugins/metrics.js'
 import rateLimitPlugin from './plugins/rate-limit.js'
 import swaggerPlugin from './plugins/swagger.js'
 import { forecastRoutes, type ForecastFn } from './routes/forecast.js'
 import healthRoutes from './routes/health.js'
+import historyRoutes from './routes/history.js'
 import runRoutes from './routes/runs/index.js'
 import resultRoutes from './routes/runs/results.js'
 import skuRoutes from './routes/skus/forecast.js'
+import skuHistoryRoutes from './routes/skus/history.js'
+import skuListRoutes from './routes/skus/list.js'
 import { validatorCompiler } from './validation.js'
 import './types.js'
 
@@ -32,6 +40,10 @@ export interface AppDeps {
   readonly metrics?: ServiceMetrics
   /** Default: the engine's forecastSeries. */
   readonly forecast?: ForecastFn
+  /** Stored demand histories; without it the history routes answer 503. */
+  readonly histories?: HistoryStore
+  /** Idempotency-Key answers; without it a request carrying the header gets 503. */
+  readonly idempotency?: IdempotencyStore
 }
 
 const CLIENT_REQUEST_ID = /^[A-Za-z0-9._-]{1,64}$/
@@ -74,11 +86,17 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(authPlugin)
   await app.register(rateLimitPlugin, { redis: deps.rateLimitRedis })
   await app.register(swaggerPlugin)
+  await app.register(historyPlugin, { histories: deps.histories })
+  await app.register(idempotencyPlugin, { store: deps.idempotency })
+  await app.register(etagPlugin)
 
   await app.register(healthRoutes)
   await app.register(forecastRoutes(deps.forecast ?? forecastSeries))
   await app.register(runRoutes, { prefix: '/v1/runs' })
   await app.register(resultRoutes, { prefix: '/v1/runs' })
   await app.register(skuRoutes, { prefix: '/v1/skus' })
+  await app.register(skuHistoryRoutes, { prefix: '/v1/skus' })
+  await app.register(skuListRoutes, { prefix: '/v1/skus' })
+  await app.register(historyRoutes, { prefix: '/v1/history' })
   return app
 }

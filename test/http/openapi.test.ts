@@ -17,10 +17,13 @@ describe('OpenAPI document', () => {
       '/healthz',
       '/readyz',
       '/v1/forecast',
+      '/v1/history',
       '/v1/runs',
       '/v1/runs/{runId}',
       '/v1/runs/{runId}/results',
+      '/v1/skus',
       '/v1/skus/{sku}/forecast',
+      '/v1/skus/{sku}/history',
     ])
     expect(doc.paths['/v1/runs'].post.responses['202']).toBeDefined()
     expect(doc.paths['/v1/runs/{runId}'].delete.responses['404'].content['application/problem+json']).toBeDefined()

@@ -1,0 +1,114 @@
+import { MAX_POINTS_PER_SERIES } from '../schemas/run.js'
+import type { Frequency } from '../engine/index.js'
+import { ErrorCollector } from './errors.js'
+import type { DuplicatePolicy, IncomingHistory, Origin } from './types.js'
+
+interface RowGroup {
+  /** Bucket ordinal -> quantity so far. */
+  readonly cells: Map<number, number>
+  rows: number
+  readonly firstLine: number | undefined
+}
+
+interface SeriesEntry {
+  readonly incoming: IncomingHistory
+  readonly origin: Origin
+}
+
+/** What one SKU of an upload brings, ready to merge with the stored history. */
+export interface PendingHistory {
+  readonly sku: string
+  readonly incoming: IncomingHistory
+  /** Input rows behind it (for accepted/rejected counts). */
+  readonly rows: number
+  readonly origin: Origin
+}
+
+/**
+ * Gathers an upload per SKU. Long-layout rows (sku, period, quantity) are
+ * summed into buckets of one frequency (`duplicates: 'sum'`) or the last row of
+ * a bucket wins (`'last'`); whole series are kept as given. Memory grows with
+ * the distinct SKU-buckets of the upload, not with its size in bytes.
+ * A SKU comes either as one series or as rows; a conflicting later item is rejected.
+ */
+export class HistoryAccumulator {
+  private readonly rowGroups = new Map<string, RowGroup>()
+  private readonly seriesBySku = new Map<string, SeriesEntry>()
+
+  constructor(
+    private readonly opts: { readonly frequency: Frequency; readonly duplicates: DuplicatePolicy },
+    readonly errors: ErrorCollector = new ErrorCollector(),
+  ) {}
+
+  get frequency(): Frequency {
+    return this.opts.frequency
+  }
+
+  addRow(sku: string, ordinal: number, quantity: number, origin: Origin): void {
+    const series = this.seriesBySku.get(sku)
+    if (series) {
+      this.errors.add({ ...origin, sku, reason: `SKU was already given as a whole series${where(series.origin)}` })
+      return
+    }
+    let group = this.rowGroups.get(sku)
+    if (!group) {
+      group = { cells: new Map(), rows: 0, firstLine: origin.line }
+      this.rowGroups.set(sku, group)
+    }
+    const before = group.cells.get(ordinal)
+    group.cells.set(ordinal, this.opts.duplicates === 'sum' && before !== undefined ? before + quantity : quantity)
+    group.rows++
+  }
+
+  addSeries(sku: string, incoming: IncomingHistory, origin: Origin): void {
+    const earlier = this.seriesBySku.get(sku)
+    if (earlier || this.rowGroups.has(sku)) {
+      const reason = earlier ? `SKU was already given as a series${where(earlier.origin)}` : 'SKU was already given as rows'
+      this.errors.add({ ...origin, sku, reason })
+      return
+    }
+    this.seriesBySku.set(sku, { incoming, origin })
+  }
+
+  /** SKUs gathered so far. */
+  get size(): number {
+    return this.rowGroups.size + this.seriesBySku.size
+  }
+
+  /**
+   * Every SKU's incoming data. Buckets between a SKU's first and last row
+   * without rows become 0 (no recorded demand). A SKU whose rows span more
+   * than MAX_POINTS_PER_SERIES buckets is rejected (its rows counted as rejected).
+   */
+  *drain(): Generator<PendingHistory> {
+    for (const [sku, entry] of this.seriesBySku) yield { sku, incoming: entry.incoming, rows: 1, origin: entry.origin }
+    for (const [sku, group] of this.rowGroups) {
+      let lo = Infinity
+      let hi = -Infinity
+      for (const ordinal of group.cells.keys()) {
+        if (ordinal < lo) lo = ordinal
+        if (ordinal > hi) hi = ordinal
+      }
+      const span = hi - lo + 1
+      const origin: Origin = group.firstLine === undefined ? {} : { line: group.firstLine }
+      if (span > MAX_POINTS_PER_SERIES) {
+        this.errors.add(
+          { ...origin, sku, reason: `rows span ${span} ${this.opts.frequency} periods; a history holds at most ${MAX_POINTS_PER_SERIES}` },
+          group.rows,
+        )
+        continue
+      }
+      const values = new Array<number>(span).fill(0)
+      for (const [ordinal, quantity] of group.cells) values[ordinal - lo] = quantity
+      yield { sku, incoming: { frequency: this.opts.frequency, startOrdinal: lo, values }, rows: group.rows, origin }
+    }
+    this.rowGroups.clear()
+    this.seriesBySku.clear()
+  }
+}
+
+function where(origin: Origin): string {
+  if (origin.line !== undefined) return ` on line ${origin.line}`
+  if (origin.item !== undefined) return ` as series[${origin.item}]`
+  return ''
+}

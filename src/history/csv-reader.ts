@@ -1,0 +1,102 @@
+import type { Readable } from 'node:stream'
+import { parse } from 'csv-parse'
+import type { HistoryAccumulator } from './accumulator.js'
+import { bucketOf } from './buckets.js'
+import { parseQuantity, parseSku } from './quantity.js'
+
+export interface CsvLayout {
+  /** One character: `,`, `;` or a tab. */
+  readonly delimiter: string
+  /** Header names of the three columns (matched ignoring case and surrounding blanks). */
+  readonly skuColumn: string
+  readonly periodColumn: string
+  readonly quantityColumn: string
+}
+
+/** The upload as a whole cannot be read (e.g. a required column is missing). */
+export class UploadFormatError extends Error {
+  override readonly name = 'UploadFormatError'
+  constructor(
+    message: string,
+    /** The query parameter or part at fault, e.g. `skuColumn`. */
+    readonly field: string,
+  ) {
+    super(message)
+  }
+}
+
+/** Longest accepted CSV record in characters: guards against a wrong delimiter swallowing a file. */
+const MAX_RECORD_CHARS = 64 * 1024
+
+/**
+ * Read a long-layout CSV (a header row, then one `sku, period, quantity` row
+ * per line; other columns are ignored) into the accumulator, incrementally:
+ * records are parsed and aggregated as the bytes arrive (RFC 4180 quoting by csv-parse).
+ * Each bad row is recorded with its line number, column and reason; good rows are kept.
+ * @throws UploadFormatError when the header lacks a required column or the file is empty
+ */
+export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: HistoryAccumulator): Promise<void> {
+  const parser = parse({
+    delimiter: layout.delimiter,
+    bom: true,
+    relax_column_count: true,
+    skip_empty_lines: true,
+    skip_records_with_error: true,
+    max_record_size: MAX_RECORD_CHARS,
+    info: true,
+  })
+  parser.on('skip', (err: Error & { lines?: number }) => {
+    acc.errors.add({ ...(err.lines === undefined ? {} : { line: err.lines }), reason: `unreadable CSV record: ${err.message}` })
+  })
+  source.on('error', (err) => parser.destroy(err))
+  source.pipe(parser)
+
+  let columns: { sku: number; period: number; quantity: number } | null = null
+  let names: readonly string[] = []
+  for await (const entry of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
+    const { record, info } = entry
+    const line = info.lines
+    if (columns === null) {
+      names = record.map((c) => c.trim())
+      columns = {
+        sku: findColumn(names, layout.skuColumn, 'skuColumn'),
+        period: findColumn(names, layout.periodColumn, 'periodColumn'),
+        quantity: findColumn(names, layout.quantityColumn, 'quantityColumn'),
+      }
+      continue
+    }
+    const need = Math.max(columns.sku, columns.period, columns.quantity)
+    if (record.length <= need) {
+      acc.errors.add({ line, column: names[need], reason: `the row has ${record.length} fields; column ${names[need]} is missing` })
+      continue
+    }
+    const sku = parseSku(record[columns.sku]!)
+    if ('reason' in sku) {
+      acc.errors.add({ line, column: names[columns.sku], reason: sku.reason })
+      continue
+    }
+    const bucket = bucketOf(record[columns.period]!, acc.frequency)
+    if ('reason' in bucket) {
+      acc.errors.add({ line, column: names[columns.period], sku: sku.sku, reason: bucket.reason })
+      continue
+    }
+    const quantity = parseQuantity(record[columns.quantity]!)
+    if ('reason' in quantity) {
+      acc.errors.add({ line, column: names[columns.quantity], sku: sku.sku, reason: quantity.reason })
+      continue
+    }
+    acc.addRow(sku.sku, bucket.ordinal, quantity.value, { line })
+  }
+  if (columns === null) throw new UploadFormatError('the CSV upload is empty: expected a header row', 'body')
+}
+
+function findColumn(names: readonly string[], wanted: string, param: string): number {
+  const i = names.findIndex((n) => n.toLowerCase() === wanted.trim().toLowerCase())
+  if (i < 0) {
+    throw new UploadFormatError(
+      `the CSV header has no column ${JSON.stringify(wanted)} (found ${names.map((n) => JSON.stringify(n)).join(', ')}); name it with ${param}`,
+      param,
+    )
+  }
+  return i
+}

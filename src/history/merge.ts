@@ -1,0 +1,60 @@
+import { formatPeriod, parsePeriod } from '../engine/index.js'
+import { MAX_POINTS_PER_SERIES } from '../schemas/run.js'
+import type { HistoryData, IncomingHistory, UploadMode } from './types.js'
+
+/**
+ * The history to store for one SKU, from what is stored and what arrived.
+ *
+ *  - replace: the incoming periods become the whole history (its frequency may change).
+ *  - append: the stored and incoming periods are combined; where both have a
+ *    period the incoming value wins, except an incoming null (missing), which
+ *    leaves the stored value. Periods between the two ranges become 0.
+ *    The frequencies must match.
+ *
+ * Tags: incoming tags replace the stored ones; absent, the stored tags stay.
+ * @returns the merged history, or why the SKU is refused (the stored history then stays as it was)
+ */
+export function mergeHistory(
+  current: HistoryData | null,
+  incoming: IncomingHistory,
+  mode: UploadMode,
+): { data: HistoryData } | { reason: string } {
+  const tags = incoming.tags ?? current?.tags ?? []
+  try {
+    if (mode === 'replace' || current === null) {
+      if (incoming.values.length > MAX_POINTS_PER_SERIES) return tooLong(incoming.values.length)
+      return {
+        data: {
+          frequency: incoming.frequency,
+          start: formatPeriod(incoming.startOrdinal, incoming.frequency),
+          values: incoming.values,
+          tags,
+        },
+      }
+    }
+    if (current.frequency !== incoming.frequency) {
+      return {
+        reason: `stored history is by ${current.frequency}, this upload by ${incoming.frequency}; use mode=replace to change the frequency`,
+      }
+    }
+    const frequency = current.frequency
+    const currentStart = parsePeriod(current.start, frequency)
+    const lo = Math.min(currentStart, incoming.startOrdinal)
+    const hi = Math.max(currentStart + current.values.length, incoming.startOrdinal + incoming.values.length) - 1
+    if (hi - lo + 1 > MAX_POINTS_PER_SERIES) return tooLong(hi - lo + 1)
+    const values = new Array<number | null>(hi - lo + 1).fill(0)
+    current.values.forEach((v, i) => {
+      values[currentStart - lo + i] = v
+    })
+    incoming.values.forEach((v, i) => {
+      if (v !== null) values[incoming.startOrdinal - lo + i] = v
+    })
+    return { data: { frequency, start: formatPeriod(lo, frequency), values, tags } }
+  } catch (err) {
+    return { reason: (err as Error).message }
+  }
+}
+
+function tooLong(n: number): { reason: string } {
+  return { reason: `the history would hold ${n} periods; at most ${MAX_POINTS_PER_SERIES}` }
+}

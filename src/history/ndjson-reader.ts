@@ -1,0 +1,73 @@
+import { StringDecoder } from 'node:string_decoder'
+import type { Readable } from 'node:stream'
+import type { HistoryAccumulator } from './accumulator.js'
+import { bucketOf } from './buckets.js'
+import { parseQuantity, parseSku } from './quantity.js'
+import { parseUploadSeries } from './series-item.js'
+import { UploadFormatError } from './csv-reader.js'
+
+/** Longest accepted NDJSON line (a series of 10,000 values fits easily). */
+const MAX_LINE_CHARS = 4 * 1024 * 1024
+
+/**
+ * Read NDJSON (one JSON object per line) into the accumulator, line by line as
+ * bytes arrive. A line is either a whole series `{ sku, frequency?, start,
+ * values, tags? }` or one row `{ sku, period, quantity }` (period as in CSV:
+ * a date or a period label). Blank lines are skipped; bad lines are recorded.
+ * @throws UploadFormatError on a line longer than 4 MiB
+ */
+export async function readNdjsonUpload(source: Readable, acc: HistoryAccumulator): Promise<void> {
+  const decoder = new StringDecoder('utf8')
+  let pending = ''
+  let line = 0
+  for await (const chunk of source) {
+    pending += typeof chunk === 'string' ? chunk : decoder.write(chunk as Buffer)
+    let nl: number
+    while ((nl = pending.indexOf('\n')) >= 0) {
+      handleLine(pending.slice(0, nl), ++line, acc)
+      pending = pending.slice(nl + 1)
+    }
+    if (pending.length > MAX_LINE_CHARS) throw new UploadFormatError(`line ${line + 1} is longer than ${MAX_LINE_CHARS} characters`, 'body')
+  }
+  pending += decoder.end()
+  if (pending.length > 0) handleLine(pending, ++line, acc)
+}
+
+function handleLine(raw: string, line: number, acc: HistoryAccumulator): void {
+  const text = raw.endsWith('\r') ? raw.slice(0, -1) : raw
+  if (text.trim() === '') return
+  let value: unknown
+  try {
+    value = JSON.parse(text)
+  } catch {
+    acc.errors.add({ line, reason: 'the line is not valid JSON' })
+    return
+  }
+  if (typeof value !== 'object' || value === null || Array.isArray(value)) {
+    acc.errors.add({ line, reason: 'expected a JSON object' })
+    return
+  }
+  if ('values' in value) {
+    const s = parseUploadSeries(value, acc.frequency)
+    if ('reason' in s) acc.errors.add({ line, ...s })
+    else acc.addSeries(s.sku, s.incoming, { line })
+    return
+  }
+  const row = value as { sku?: unknown; period?: unknown; quantity?: unknown }
+  if (typeof row.sku !== 'string') return acc.errors.add({ line, column: 'sku', reason: 'sku must be a string' })
+  const sku = parseSku(row.sku)
+  if ('reason' in sku) return acc.errors.add({ line, column: 'sku', reason: sku.reason })
+  if (typeof row.period !== 'string') return acc.errors.add({ line, column: 'period', sku: sku.sku, reason: 'period must be a string' })
+  const bucket = bucketOf(row.period, acc.frequency)
+  if ('reason' in bucket) return acc.errors.add({ line, column: 'period', sku: sku.sku, reason: bucket.reason })
+  const quantity =
+    typeof row.quantity === 'number'
+      ? Number.isFinite(row.quantity)
+        ? { value: row.quantity }
+        : { reason: 'quantity must be finite' }
+      : typeof row.quantity === 'string'
+        ? parseQuantity(row.quantity)
+        : { reason: 'quantity must be a number' }
+  if ('reason' in quantity) return acc.errors.add({ line, column: 'quantity', sku: sku.sku, reason: quantity.reason })
+  acc.addRow(sku.sku, bucket.ordinal, quantity.value, { line })
+}

@@ -1,0 +1,52 @@
+import { z } from 'zod'
+import { FREQUENCIES, parsePeriod, type Frequency } from '../engine/index.js'
+import { MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from '../schemas/run.js'
+import { normaliseTags } from './tags.js'
+import type { IncomingHistory } from './types.js'
+
+/** One whole series of a JSON or NDJSON upload: `{ sku, frequency?, start, values, tags? }`. */
+export const UploadSeries = z.object({
+  sku: Sku,
+  frequency: z.enum(FREQUENCIES).optional(),
+  start: PeriodLabel,
+  values: z.array(z.number().nullable()).min(1).max(MAX_POINTS_PER_SERIES),
+  tags: z.array(z.string()).optional(),
+})
+
+/**
+ * Validate one series object. `frequency` defaults to the upload's.
+ * @returns the SKU and its incoming history, or the first offending field and why
+ */
+export function parseUploadSeries(
+  value: unknown,
+  defaultFrequency: Frequency,
+): { sku: string; incoming: IncomingHistory } | { sku?: string; column: string; reason: string } {
+  const parsed = UploadSeries.safeParse(value)
+  const sku = typeof (value as { sku?: unknown })?.sku === 'string' ? (value as { sku: string }).sku : undefined
+  if (!parsed.success) {
+    const issue = parsed.error.issues[0]!
+    return { ...(sku === undefined ? {} : { sku }), column: fieldPath(issue.path), reason: issue.message }
+  }
+  const s = parsed.data
+  const frequency = s.frequency ?? defaultFrequency
+  let startOrdinal: number
+  try {
+    startOrdinal = parsePeriod(s.start, frequency)
+  } catch (err) {
+    return { sku: s.sku, column: 'start', reason: (err as Error).message }
+  }
+  let tags: string[] | undefined
+  if (s.tags !== undefined) {
+    const t = normaliseTags(s.tags)
+    if ('reason' in t) return { sku: s.sku, column: 'tags', reason: t.reason }
+    tags = t.tags
+  }
+  return { sku: s.sku, incoming: { frequency, startOrdinal, values: s.values, ...(tags === undefined ? {} : { tags }) } }
+}
+
+/** `values[3]`, `tags[0]`; the root is `(item)`. */
+export function fieldPath(path: readonly PropertyKey[]): string {
+  let out = ''
+  for (const seg of path) out += typeof seg === 'number' ? `[${seg}]` : out === '' ? String(seg) : `.${String(seg)}`
+  return out === '' ? '(item)' : out
+}

@@ -1,0 +1,56 @@
+import type { Frequency } from '../engine/index.js'
+
+/** Shared shapes of history parsing and ingest. Pure data. */
+
+export const UPLOAD_MODES = ['append', 'replace'] as const
+export type UploadMode = (typeof UPLOAD_MODES)[number]
+
+export const DUPLICATE_POLICIES = ['sum', 'last'] as const
+export type DuplicatePolicy = (typeof DUPLICATE_POLICIES)[number]
+
+/** Most row errors listed in one upload report; the rest are only counted. */
+export const MAX_LISTED_ERRORS = 1000
+
+/** Most tags on one SKU. */
+export const MAX_TAGS = 32
+
+/** A tag: category or location code such as `category:garden` or `site:north`. */
+export const TAG_PATTERN = /^[A-Za-z0-9][A-Za-z0-9._:/=-]{0,63}$/
+
+/** One rejected row, series or SKU. `line` is the 1-based physical line of the upload. */
+export interface UploadError {
+  readonly line?: number
+  /** Index in the JSON `series` array. */
+  readonly item?: number
+  /** CSV column name, or the JSON field path (`values[3]`). */
+  readonly column?: string
+  readonly sku?: string
+  readonly reason: string
+}
+
+/**
+ * New data for one SKU, as a dense run of periods from `startOrdinal`
+ * (engine period ordinals of `frequency`). `null` marks a missing period.
+ * `tags` absent: the stored tags are kept.
+ */
+export interface IncomingHistory {
+  readonly frequency: Frequency
+  readonly startOrdinal: number
+  readonly values: readonly (number | null)[]
+  readonly tags?: readonly string[]
+}
+
+/** A history as stored for one SKU. */
+export interface HistoryData {
+  readonly frequency: Frequency
+  /** Label of the first period, e.g. `2024-03`. */
+  readonly start: string
+  readonly values: readonly (number | null)[]
+  readonly tags: readonly string[]
+}
+
+/** Where a row or series came from, for error reports. */
+export interface Origin {
+  readonly line?: number
+  readonly item?: number
+}

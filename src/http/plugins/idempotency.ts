@@ -1,0 +1,148 @@
+import { createHash, type Hash } from 'node:crypto'
+import { Readable, Transform } from 'node:stream'
+import fp from 'fastify-plugin'
+import type { FastifyReply, FastifyRequest } from 'fastify'
+import { ProblemError } from '../../errors.js'
+import type { IdempotencyStore } from '../../storage/idempotency-store.js'
+
+declare module 'fastify' {
+  interface FastifyContextConfig {
+    /** The route honours the Idempotency-Key header. */
+    idempotency?: boolean
+  }
+  interface FastifyRequest {
+    idempotency?: IdempotencyState
+  }
+}
+
+interface IdempotencyState {
+  readonly key: string
+  /** Known up front for JSON bodies; for streamed bodies once the stream ended. */
+  hash: string | null
+  settled: boolean
+}
+
+/** Visible ASCII, 1-255 characters. */
+const KEY_PATTERN = /^[\x21-\x7e]{1,255}$/
+
+export const REPLAYED_HEADER = 'idempotent-replayed'
+
+/**
+ * `Idempotency-Key` on routes with `config.idempotency`. The first request
+ * with a key runs and its answer (status < 500) is kept 24 h with a hash of
+ * method, URL (with query), content type and body; a later request with the
+ * same key and hash gets that answer again with `Idempotent-Replayed: true`,
+ * one with another hash a 422 `idempotency-key-reused`, and one arriving while
+ * the first is still in flight a 409 `idempotency-key-in-use`. A 5xx answer
+ * frees the key. JSON bodies are hashed as parsed (JSON.stringify, so
+ * whitespace does not matter but key order does); streamed CSV/NDJSON bodies
+ * are hashed as their bytes pass to the parser.
+ */
+export default fp<{ store?: IdempotencyStore }>(
+  async (app, opts) => {
+    const store = opts.store ?? null
+
+    app.addHook('preValidation', async (request, reply) => {
+      if (request.routeOptions.config?.idempotency !== true) return
+      const key = request.headers['idempotency-key']
+      if (key === undefined) return
+      if (typeof key !== 'string' || !KEY_PATTERN.test(key)) {
+        throw new ProblemError('validation-failed', 'The Idempotency-Key header is not valid', [
+          { path: 'Idempotency-Key', message: 'must be 1-255 visible ASCII characters' },
+        ])
+      }
+      if (store === null) throw new ProblemError('not-ready', 'Idempotency keys are not configured on this server')
+      const streamed = request.body instanceof Readable
+      const hash = createHash('sha256').update(`${request.method} ${request.url}\n${request.headers['content-type'] ?? ''}\n`)
+      const existing = await store.get(request.tenant, key)
+      if (existing?.state === 'pending') throw inUse()
+      if (existing?.state === 'done') {
+        const digest = streamed
+          ? await drainInto(hash, request.body as Readable, app.config.bodyLimitBytes)
+          : hash.update(JSON.stringify(request.body ?? null)).digest('hex')
+        if (digest !== existing.hash) throw reused()
+        return replay(reply, existing)
+      }
+      if (!(await store.claim(request.tenant, key))) throw inUse()
+      const state: IdempotencyState = { key, hash: null, settled: false }
+      request.idempotency = state
+      if (!streamed) {
+        state.hash = hash.update(JSON.stringify(request.body ?? null)).digest('hex')
+        return
+      }
+      const source = request.body as Readable
+      const tap = new Transform({
+        transform(chunk: Buffer, _enc, done) {
+          hash.update(chunk)
+          done(null, chunk)
+        },
+        flush(done) {
+          state.hash = hash.digest('hex')
+          done()
+        },
+      })
+      source.on('error', (err) => tap.destroy(err))
+      request.body = source.pipe(tap)
+    })
+
+    app.addHook('onSend', async (request, reply, payload) => {
+      const state = request.idempotency
+      if (!state || state.settled || store === null) return payload
+      state.settled = true
+      try {
+        if (reply.statusCode >= 500 || state.hash === null || typeof payload !== 'string') {
+          await store.release(request.tenant, state.key)
+        } else {
+          await store.complete(request.tenant, state.key, {
+            hash: state.hash,
+            status: reply.statusCode,
+            contentType: headerText(reply.getHeader('content-type')),
+            location: headerText(reply.getHeader('location')),
+            body: payload,
+          })
+        }
+      } catch (err) {
+        request.log.error({ err }, 'could not record the idempotency key')
+      }
+      return payload
+    })
+
+    // A request that ended without an answer (client went away) frees its key.
+    app.addHook('onResponse', async (request) => {
+      const state = request.idempotency
+      if (!state || state.settled || store === null) return
+      state.settled = true
+      await store.release(request.tenant, state.key).catch((err) => request.log.error({ err }, 'could not free the idempotency key'))
+    })
+  },
+  { name: 'idempotency', dependencies: ['config', 'auth'] },
+)
+
+function replay(reply: FastifyReply, answer: { status: number; contentType: string | null; location: string | null; body: string }) {
+  reply.code(answer.status).header(REPLAYED_HEADER, 'true')
+  if (answer.contentType) reply.header('content-type', answer.contentType)
+  if (answer.location) reply.header('location', answer.location)
+  return reply.send(answer.body)
+}
+
+async function drainInto(hash: Hash, source: Readable, max: number): Promise<string> {
+  let seen = 0
+  for await (const chunk of source) {
+    seen += (chunk as Buffer).length
+    if (seen > max) throw new ProblemError('payload-too-large', `The upload is larger than ${max} bytes`)
+    hash.update(chunk as Buffer)
+  }
+  return hash.digest('hex')
+}
+
+function headerText(v: ReturnType<FastifyReply['getHeader']>): string | null {
+  if (v === undefined) return null
+  return Array.isArray(v) ? v.join(', ') : String(v)
+}
+
+const inUse = () =>
+  new ProblemError('idempotency-key-in-use', 'A request with this Idempotency-Key is still being processed; retry after it has answered')
+const reused = () =>
+  new ProblemError('idempotency-key-reused', 'This Idempotency-Key was used with a different request (method, URL or body)')
+
+export type { FastifyRequest }

@@ -1,0 +1,106 @@
+import { Transform, type Readable } from 'node:stream'
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import { ProblemError } from '../../errors.js'
+import { HistoryAccumulator } from '../../history/accumulator.js'
+import { readCsvUpload, UploadFormatError } from '../../history/csv-reader.js'
+import { commitUpload } from '../../history/ingest.js'
+import { readNdjsonUpload } from '../../history/ndjson-reader.js'
+import { fieldPath, parseUploadSeries } from '../../history/series-item.js'
+import { JsonUpload, UploadQuery, UploadReportSchema } from '../../schemas/history.js'
+import { requireHistories } from '../plugins/history.js'
+import { BODY_PROBLEMS, COMMON_PROBLEMS } from './responses.js'
+
+const STREAMED_TYPES = ['text/csv', 'application/x-ndjson', 'application/ndjson']
+const DELIMITERS = { comma: ',', semicolon: ';', tab: '\t' } as const
+
+/**
+ * Counts bytes on their way through and fails the stream with a 413 problem
+ * once more than `max` have passed: a streamed upload is never held whole in
+ * memory, so fastify's body limit does not see it.
+ */
+export function limitBytes(source: Readable, max: number): Readable {
+  let seen = 0
+  const counter = new Transform({
+    transform(chunk: Buffer, _enc, done) {
+      seen += chunk.length
+      if (seen > max) done(new ProblemError('payload-too-large', `The upload is larger than ${max} bytes`))
+      else done(null, chunk)
+    },
+  })
+  source.on('error', (err) => counter.destroy(err))
+  return source.pipe(counter)
+}
+
+/** POST /v1/history: bulk upsert of stored histories from JSON, NDJSON or CSV. */
+const routes: FastifyPluginAsyncZod = async (app) => {
+  // Only in this plugin's scope: CSV and NDJSON bodies reach the handler as the raw stream.
+  app.addContentTypeParser(STREAMED_TYPES, (_request, payload, done) => done(null, payload))
+
+  app.post(
+    '',
+    {
+      schema: {
+        tags: ['history'],
+        summary: 'Upload demand histories in bulk (JSON, NDJSON or CSV)',
+        description: [
+          'Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "start", "values", "tags"? }] }`;',
+          'application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "quantity" }`;',
+          'text/csv, long layout: a header row, then one `sku,period,quantity` row per line (names set by skuColumn,',
+          'periodColumn, quantityColumn; other columns ignored). CSV and NDJSON are read as a stream.',
+          'A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label',
+          '(2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU\'s first and last row without rows become 0.',
+          'Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written',
+          'atomically, and a SKU without good rows keeps its stored history. Idempotency-Key is honoured.',
+        ].join(' '),
+        querystring: UploadQuery,
+        response: { 200: UploadReportSchema, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
+      },
+      config: { idempotency: true },
+    },
+    async (request) => {
+      const store = requireHistories(app)
+      const q = request.query
+      const acc = new HistoryAccumulator({ frequency: q.frequency, duplicates: q.duplicates })
+      const type = (request.headers['content-type'] ?? '').split(';')[0]!.trim().toLowerCase()
+      let mode = q.mode
+      if (STREAMED_TYPES.includes(type)) {
+        const source = limitBytes(request.body as Readable, app.config.bodyLimitBytes)
+        try {
+          if (type === 'text/csv') {
+            const { skuColumn, periodColumn, quantityColumn } = q
+            await readCsvUpload(source, { delimiter: DELIMITERS[q.delimiter], skuColumn, periodColumn, quantityColumn }, acc)
+          } else {
+            await readNdjsonUpload(source, acc)
+          }
+        } catch (err) {
+          if (err instanceof UploadFormatError) {
+            throw new ProblemError('validation-failed', err.message, [{ path: err.field, message: err.message }])
+          }
+          throw err
+        }
+      } else {
+        const body = JsonUpload.safeParse(request.body)
+        if (!body.success) {
+          const errors = body.error.issues.slice(0, 100).map((i) => ({ path: fieldPath(i.path), message: i.message }))
+          throw new ProblemError('validation-failed', `The request body has ${body.error.issues.length} invalid field(s)`, errors)
+        }
+        if (mode !== undefined && body.data.mode !== undefined && mode !== body.data.mode) {
+          throw new ProblemError('validation-failed', 'mode differs between the query string and the body', [
+            { path: 'mode', message: `query says ${mode}, body says ${body.data.mode}` },
+          ])
+        }
+        mode = body.data.mode ?? mode
+        body.data.series.forEach((value, item) => {
+          const s = parseUploadSeries(value, q.frequency)
+          if ('reason' in s) acc.errors.add({ item, ...s, column: `series[${item}].${s.column}` })
+          else acc.addSeries(s.sku, s.incoming, { item })
+        })
+      }
+      const report = await commitUpload(acc, store, request.tenant, mode ?? 'append')
+      request.log.info({ type, mode: report.mode, rows: report.rows, skus: report.skus }, 'history upload')
+      return { ...report, errors: [...report.errors] }
+    },
+  )
+}
+
+export default routes

@@ -1,0 +1,80 @@
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import { formatPeriod, parsePeriod } from '../../../engine/index.js'
+import { ProblemError } from '../../../errors.js'
+import { normaliseTags } from '../../../history/tags.js'
+import { HistoryBody, HistoryResource } from '../../../schemas/history.js'
+import { SkuParams } from '../../../schemas/params.js'
+import type { StoredHistory } from '../../../storage/history-store.js'
+import { requireHistories } from '../../plugins/history.js'
+import { BODY_PROBLEMS, COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
+
+/** A stored history as clients see it. */
+export function toHistoryResource(h: StoredHistory) {
+  return {
+    sku: h.sku,
+    frequency: h.frequency,
+    start: h.start,
+    lastPeriod: formatPeriod(parsePeriod(h.start, h.frequency) + h.values.length - 1, h.frequency),
+    length: h.values.length,
+    values: [...h.values],
+    tags: [...h.tags],
+    updatedAt: h.updatedAt,
+  }
+}
+
+/** PUT and GET /v1/skus/{sku}/history: one SKU's stored demand history. */
+const routes: FastifyPluginAsyncZod = async (app) => {
+  app.put(
+    '/:sku/history',
+    {
+      schema: {
+        tags: ['history'],
+        summary: "Replace a SKU's stored demand history",
+        description:
+          'Stores the whole history (values and tags) of one SKU, replacing what was stored. 201 when the SKU ' +
+          'had no history, 200 otherwise. Runs can then forecast it with { "skus": [...] }, { "tags": [...] } or { "all": true }.',
+        params: SkuParams,
+        body: HistoryBody,
+        response: { 200: HistoryResource, 201: HistoryResource, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
+      },
+    },
+    async (request, reply) => {
+      const store = requireHistories(app)
+      const { sku } = request.params
+      const { frequency, start, values, tags } = request.body
+      try {
+        parsePeriod(start, frequency)
+      } catch (err) {
+        throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'start', message: (err as Error).message }])
+      }
+      const normalised = normaliseTags(tags ?? [])
+      if ('reason' in normalised) {
+        throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'tags', message: normalised.reason }])
+      }
+      const { outcome, history } = await store.put(request.tenant, sku, { frequency, start, values, tags: normalised.tags })
+      request.log.info({ sku, length: values.length, outcome }, 'history stored')
+      reply.code(outcome === 'created' ? 201 : 200)
+      return toHistoryResource(history)
+    },
+  )
+
+  app.get(
+    '/:sku/history',
+    {
+      schema: {
+        tags: ['history'],
+        summary: "Read a SKU's stored demand history",
+        params: SkuParams,
+        response: { 200: HistoryResource, ...COMMON_PROBLEMS, ...NOT_FOUND },
+      },
+      config: { etag: true },
+    },
+    async (request) => {
+      const history = await requireHistories(app).get(request.tenant, request.params.sku)
+      if (!history) throw new ProblemError('not-found', `No stored history for SKU ${request.params.sku}`)
+      return toHistoryResource(history)
+    },
+  )
+}
+
+export default routes

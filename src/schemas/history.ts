@@ -1,0 +1,99 @@
+import { z } from 'zod'
+import { FREQUENCIES } from '../engine/index.js'
+import { DUPLICATE_POLICIES, MAX_TAGS, TAG_PATTERN, UPLOAD_MODES } from '../history/types.js'
+import { MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from './run.js'
+
+/** Request and response shapes of the stored-history routes. */
+
+export const Tag = z
+  .string()
+  .regex(TAG_PATTERN, 'must be 1-64 characters of letters, digits and . _ : / = -, starting with a letter or digit')
+  .describe('Tag such as category:garden or site:north')
+
+export const HistoryBody = z.object({
+  frequency: z.enum(FREQUENCIES),
+  start: PeriodLabel.describe('Label of the first period (same frequency)'),
+  values: z
+    .array(z.number().nullable())
+    .min(1)
+    .max(MAX_POINTS_PER_SERIES)
+    .describe('Demand per period, oldest first; null marks a missing period'),
+  tags: z.array(Tag).max(MAX_TAGS).optional().describe('Replaces the stored tags; absent means no tags'),
+})
+
+export const HistoryResource = z
+  .object({
+    sku: z.string(),
+    frequency: z.enum(FREQUENCIES),
+    start: z.string(),
+    lastPeriod: z.string(),
+    length: z.number().int(),
+    values: z.array(z.number().nullable()),
+    tags: z.array(z.string()),
+    updatedAt: z.string().describe('ISO-8601'),
+  })
+  .meta({ id: 'History' })
+
+export const HistorySummarySchema = z.object({
+  sku: z.string(),
+  frequency: z.enum(FREQUENCIES),
+  start: z.string(),
+  length: z.number().int(),
+  lastPeriod: z.string(),
+  tags: z.array(z.string()),
+  updatedAt: z.string(),
+})
+
+export const SkuListQuery = z.object({
+  limit: z.coerce.number().int().min(1).max(1000).default(100).describe('Items per page (1..1000)'),
+  cursor: z.string().min(1).max(512).optional().describe('nextCursor of the previous page'),
+  tag: Tag.optional().describe('Only SKUs carrying this tag'),
+  prefix: z.string().min(1).max(200).optional().describe('Only SKUs starting with this text'),
+})
+
+export const SkuListPage = z.object({
+  items: z.array(HistorySummarySchema),
+  nextCursor: z.string().nullable().describe('null on the last page'),
+})
+
+const ColumnName = z.string().min(1).max(100)
+
+export const UploadQuery = z.object({
+  mode: z
+    .enum(UPLOAD_MODES)
+    .optional()
+    .describe('append (default): new periods added, overlapping periods overwritten, others kept; replace: the upload is the whole history'),
+  frequency: z.enum(FREQUENCIES).default('month').describe('Bucket of stored histories; dated rows are summed into it (week = ISO week)'),
+  duplicates: z
+    .enum(DUPLICATE_POLICIES)
+    .default('sum')
+    .describe('Several rows for one SKU and bucket: sum them (default) or keep the last'),
+  skuColumn: ColumnName.default('sku').describe('CSV header of the SKU column'),
+  periodColumn: ColumnName.default('period').describe('CSV header of the date or period column'),
+  quantityColumn: ColumnName.default('quantity').describe('CSV header of the quantity column'),
+  delimiter: z.enum(['comma', 'semicolon', 'tab']).default('comma').describe('CSV field separator'),
+})
+
+export const JsonUpload = z.object({
+  mode: z.enum(UPLOAD_MODES).optional(),
+  series: z.array(z.unknown()).min(1),
+})
+
+export const UploadErrorSchema = z.object({
+  line: z.number().int().optional().describe('1-based line of a CSV or NDJSON upload'),
+  item: z.number().int().optional().describe('Index in the JSON series array'),
+  column: z.string().optional().describe('CSV column or JSON field'),
+  sku: z.string().optional(),
+  reason: z.string(),
+})
+
+export const UploadReportSchema = z
+  .object({
+    mode: z.enum(UPLOAD_MODES),
+    frequency: z.enum(FREQUENCIES),
+    rows: z.object({ accepted: z.number().int(), rejected: z.number().int() }),
+    skus: z.object({ created: z.number().int(), updated: z.number().int(), rejected: z.number().int() }),
+    errors: z.array(UploadErrorSchema).describe('The first 1000 rejections'),
+    errorsNotListed: z.number().int().describe('Rejections beyond the listed ones'),
+  })
+  .meta({ id: 'UploadReport' })

@@ -10,6 +10,7 @@ import { gatewayConnection } from './connection.js'
 import { CHUNK_JOB, CHUNK_JOB_OPTIONS, CHUNK_QUEUE, chunkJobId } from './names.js'
 import type { ChunkJob } from './payload.js'
 import { storeOptions } from './worker.js'
+import { createRunEventEmitter } from '../webhooks/emitter.js'
 
 export interface RunMachinery extends RunGateway {
   /** Closes the queue and the Redis connection. */
@@ -43,6 +44,7 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
   const store = new RunStore(redis, storeOptions(config))
   const queue = new Queue<ChunkJob>(CHUNK_QUEUE, { connection: redis, prefix: config.redisPrefix })
   queue.on('error', () => {})
+  const events = createRunEventEmitter(redis, config.redisPrefix)
 
   const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
 
@@ -83,6 +85,7 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
           await Promise.allSettled(all.slice(i, i + BATCH).map((c) => queue.remove(chunkJobId(runId, c))))
         }
         await store.deleteChunkInputs(tenant, runId, all)
+        await events.runEnded(tenant, runId)
       }
       return after
     },
@@ -99,6 +102,7 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
     },
 
     async close() {
+      await events.close()
       await queue.close()
       await redis.quit().catch(() => undefined)
     },

@@ -15,6 +15,8 @@ export interface ChunkProcessorDeps {
   readonly forecast: (input: SeriesInput) => ForecastResult
   readonly logger: Logger
   readonly now?: () => Date
+  /** Called when this chunk finished its run (webhooks); must be idempotent per run. */
+  readonly onRunEnded?: (tenant: string, runId: string) => Promise<void>
 }
 
 export interface ChunkOutcome {
@@ -72,6 +74,7 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     const log = deps.logger.child({ queue: CHUNK_QUEUE, jobId: job.id, runId, tenant, chunkIndex })
     const { store } = deps
 
+    const jobStarted = performance.now()
     const run = await store.startChunk(tenant, runId, now())
     if (run === null || run.status !== 'running') {
       await store.deleteChunkInputs(tenant, runId, [chunkIndex])
@@ -95,8 +98,11 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
       const ok = items.filter((i) => !('error' in i)).map((i) => i.sku)
       await store.updateLatest(tenant, runId, run.createdAtMs, now(), ok)
     }
+    // Before the input is deleted, so a failed emit retries the chunk (the commit is then a no-op).
+    if (outcome === 'finished' || outcome === 'succeeded') await deps.onRunEnded?.(tenant, runId)
     await store.deleteChunkInputs(tenant, runId, [chunkIndex])
-    log.info({ outcome, series: items.length, failed: tally.failed, computeMs }, 'chunk processed')
+    const totalMs = Math.round(performance.now() - jobStarted)
+    log.info({ outcome, series: items.length, failed: tally.failed, computeMs, totalMs }, 'chunk processed')
     return { outcome, series: items.length, failed: tally.failed }
   }
 }

@@ -7,6 +7,8 @@ import { workerConnection } from './connection.js'
 import { CHUNK_QUEUE, RECORD_TTL_FACTOR } from './names.js'
 import { ChunkJob } from './payload.js'
 import type { SandboxContext } from './processors/chunk.js'
+import { createRunEventEmitter } from '../webhooks/emitter.js'
+import { startWebhookWorker } from '../webhooks/worker.js'
 
 export interface RunWorkers {
   readonly worker: Worker
@@ -36,6 +38,8 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
   const storeRedis = workerConnection(config.redisUrl)
   const store = new RunStore(storeRedis, storeOptions(config))
   const concurrency = config.workerConcurrency > 0 ? config.workerConcurrency : availableParallelism()
+  const events = createRunEventEmitter(storeRedis, config.redisPrefix)
+  const webhooks = startWebhookWorker(config, logger, storeOptions(config))
   const sandbox: SandboxContext = { redisUrl: config.redisUrl, ...storeOptions(config), logLevel: config.logLevel }
 
   const worker = new Worker(CHUNK_QUEUE, new URL('./processors/chunk-entry.mjs', import.meta.url), {
@@ -62,7 +66,8 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
       const data = ChunkJob.safeParse(job.data)
       if (!data.success) return jlog.error({ err }, 'chunk with invalid data failed')
       const { tenant, runId, chunkIndex } = data.data
-      await store.endRun(tenant, runId, 'failed', `chunk ${chunkIndex} failed: ${err.message}`, new Date())
+      const ended = await store.endRun(tenant, runId, 'failed', `chunk ${chunkIndex} failed: ${err.message}`, new Date())
+      if (ended?.status === 'failed') await events.runEnded(tenant, runId)
       jlog.error({ err, attemptsMade: job.attemptsMade }, 'chunk failed for good: run failed')
     })().catch((e) => jlog.error({ err: e }, 'could not record failed chunk'))
   })
@@ -73,6 +78,8 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
     concurrency,
     close: async () => {
       await worker.close()
+      await webhooks.close()
+      await events.close()
       await Promise.allSettled([connection.quit(), storeRedis.quit()])
       log.info('chunk worker stopped')
     },

@@ -5,6 +5,7 @@ import { createLogger } from '../../logger.js'
 import { RunStore } from '../../storage/run-store.js'
 import { workerConnection } from '../connection.js'
 import { createChunkProcessor } from '../processor.js'
+import { createRunEventEmitter } from '../../webhooks/emitter.js'
 
 /**
  * The sandboxed chunk processor: BullMQ loads this module (through
@@ -31,4 +32,6 @@ const store = new RunStore(redis, {
   recordTtlSeconds: ctx.recordTtlSeconds,
 })
 
-export default createChunkProcessor({ store, forecast: forecastSeries, logger })
+const events = createRunEventEmitter(redis, ctx.prefix)
+
+export default createChunkProcessor({ store, forecast: forecastSeries, logger, onRunEnded: events.runEnded })

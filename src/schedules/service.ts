@@ -1,0 +1,101 @@
+import type { Queue } from 'bullmq'
+import type { FieldError } from '../errors.js'
+import { checkRunOptions } from '../queue/gateway.js'
+import type { RunSettings } from '../schemas/run.js'
+import type { Schedule, ScheduleDefinition, ScheduleSelection, ScheduleStore } from '../storage/schedule-store.js'
+import { RunInputError } from '../storage/types.js'
+import { checkTiming, nextFiring } from './cron.js'
+import { FIRE_JOB, schedulerId } from './names.js'
+import type { FireJob } from './fire.js'
+
+export interface ScheduleInput {
+  readonly name?: string
+  readonly cron: string
+  readonly timeZone: string
+  readonly selection: ScheduleSelection
+  readonly settings: RunSettings
+}
+
+export type ScheduleView = Schedule & { readonly nextFireAt: string | null }
+
+/** Refused input: one entry per offending field, paths relative to the body. */
+export class ScheduleInputError extends Error {
+  override readonly name = 'ScheduleInputError'
+  constructor(readonly errors: readonly FieldError[]) {
+    super(errors.map((e) => `${e.path} ${e.message}`).join('; '))
+  }
+}
+
+/**
+ * Schedules as the HTTP layer sees them: the stored definition plus its
+ * BullMQ job scheduler (`upsertJobScheduler` with the cron pattern and time
+ * zone; each firing is a `fire` job on the schedules queue).
+ */
+export class ScheduleService {
+  constructor(
+    private readonly store: ScheduleStore,
+    private readonly queue: () => Queue<FireJob>,
+    private readonly opts: { readonly minIntervalSeconds: number; readonly now?: () => Date },
+  ) {}
+
+  private now(): Date {
+    return this.opts.now?.() ?? new Date()
+  }
+
+  /**
+   * @throws ScheduleInputError on a bad pattern, time zone or settings;
+   * returns null when the tenant has the most schedules allowed.
+   */
+  async create(tenant: string, input: ScheduleInput): Promise<ScheduleView | null> {
+    const errors = checkTiming(input.cron, input.timeZone, this.opts.minIntervalSeconds, this.now())
+    try {
+      checkRunOptions(input.settings)
+    } catch (err) {
+      if (!(err instanceof RunInputError)) throw err
+      errors.push({ path: `settings.${err.field}`, message: err.message })
+    }
+    if (errors.length > 0) throw new ScheduleInputError(errors)
+    const def = await this.store.create(
+      tenant,
+      { name: input.name ?? null, cron: input.cron.trim(), timeZone: input.timeZone, selection: input.selection, settings: input.settings },
+      this.now(),
+    )
+    if (def === null) return null
+    try {
+      await this.queue().upsertJobScheduler(
+        schedulerId(tenant, def.id),
+        { pattern: def.cron, tz: def.timeZone },
+        { name: FIRE_JOB, data: { tenant, scheduleId: def.id }, opts: { removeOnComplete: 100, removeOnFail: 100, attempts: 1 } },
+      )
+    } catch (err) {
+      await this.store.remove(tenant, def.id)
+      throw err
+    }
+    return this.view({ ...def, state: emptyState() })
+  }
+
+  async get(tenant: string, id: string): Promise<ScheduleView | null> {
+    const s = await this.store.get(tenant, id)
+    return s === null ? null : this.view(s)
+  }
+
+  async list(tenant: string, limit: number, cursor?: string): Promise<{ items: ScheduleView[]; nextCursor: string | null }> {
+    const page = await this.store.list(tenant, limit, cursor)
+    return { items: page.items.map((s) => this.view(s)), nextCursor: page.nextCursor }
+  }
+
+  /** Deletes the schedule and its job scheduler; a run it started keeps going. */
+  async remove(tenant: string, id: string): Promise<boolean> {
+    const removed = await this.store.remove(tenant, id)
+    if (removed) await this.queue().removeJobScheduler(schedulerId(tenant, id))
+    return removed
+  }
+
+  private view(s: Schedule | (ScheduleDefinition & { state: Schedule['state'] })): ScheduleView {
+    return { ...s, nextFireAt: nextFiring(s.cron, s.timeZone, this.now()) }
+  }
+}
+
+function emptyState(): Schedule['state'] {
+  return { currentRunId: null, lastFiredAt: null, fired: 0, skipped: 0, failed: 0, lastError: null }
+}

@@ -1,0 +1,178 @@
+import type { Redis } from 'ioredis'
+import { parsePeriod, summariseAccuracy, type AccuracySummary, type Frequency } from '../engine/index.js'
+import { decodeCursor, encodeCursor } from './codec.js'
+import { isValidTenant } from './keys.js'
+import type { RunStore } from './run-store.js'
+import { RunInputError } from './types.js'
+
+/**
+ * Realised accuracy per SKU: each forecast period, once its actual arrives,
+ * scored against the SKU's latest successful forecast at that time.
+ *
+ *   acc:p:<b64url(sku)>   hash  period -> `${runId}|${forecast}|${actual}` (one record per period)
+ *   acc:summary           hash  sku -> JSON AccuracySummary + updatedAt
+ *   acc:exceptions        zset  SKUs whose |tracking signal| exceeds the limit, score 0 (lex order)
+ *
+ * under `${prefix}:t:${tenant}:`, no TTL. A period is scored once: a repeated
+ * upload with the same value changes nothing; a corrected value replaces the
+ * actual and keeps the forecast it was first scored against (so one period
+ * never counts twice, even when a newer run forecast it as well).
+ */
+
+/**
+ * KEYS: periods. ARGV: runId, then triples (period, forecast, actual).
+ * Returns {added, corrected}.
+ */
+const RECORD = `
+local added, corrected = 0, 0
+for i = 2, #ARGV, 3 do
+  local cur = redis.call('HGET', KEYS[1], ARGV[i])
+  if not cur then
+    redis.call('HSET', KEYS[1], ARGV[i], ARGV[1] .. '|' .. ARGV[i + 1] .. '|' .. ARGV[i + 2])
+    added = added + 1
+  else
+    local a = string.find(cur, '|', 1, true)
+    local b = string.find(cur, '|', a + 1, true)
+    if string.sub(cur, b + 1) ~= ARGV[i + 2] then
+      redis.call('HSET', KEYS[1], ARGV[i], string.sub(cur, 1, b) .. ARGV[i + 2])
+      corrected = corrected + 1
+    end
+  end
+end
+return {added, corrected}
+`
+const COMMAND = 'almanacRecordActuals'
+
+export interface ScoredRecord {
+  readonly period: string
+  readonly runId: string
+  readonly forecast: number
+  readonly actual: number
+  /** actual − forecast */
+  readonly error: number
+}
+
+export type SkuAccuracy = AccuracySummary & { readonly sku: string; readonly updatedAt: string }
+
+export interface RecordOutcome {
+  /** Periods scored for the first time, and periods whose actual was corrected. */
+  readonly added: number
+  readonly corrected: number
+  /** Why nothing could be compared, if so. */
+  readonly reason?: 'no-forecast' | 'no-overlap'
+  readonly summary: SkuAccuracy | null
+}
+
+export class AccuracyStore {
+  constructor(
+    private readonly redis: Redis,
+    private readonly runs: Pick<RunStore, 'latest'>,
+    private readonly opts: { readonly prefix: string; readonly limit?: number; readonly now?: () => Date },
+  ) {
+    if (!(COMMAND in redis)) redis.defineCommand(COMMAND, { numberOfKeys: 1, lua: RECORD })
+  }
+
+  private base(tenant: string): string {
+    if (!isValidTenant(tenant)) throw new Error(`invalid tenant for a Redis key: ${JSON.stringify(tenant)}`)
+    return `${this.opts.prefix}:t:${tenant}:acc`
+  }
+
+  private periodsKey(tenant: string, sku: string): string {
+    return `${this.base(tenant)}:p:${Buffer.from(sku, 'utf8').toString('base64url')}`
+  }
+
+  /**
+   * New actuals of a SKU: compares them with the SKU's latest successful
+   * forecast for the periods both have, records the errors (idempotent per
+   * SKU and period) and refreshes the SKU's summary and the exception list.
+   * Missing values (null) and periods of another frequency are ignored.
+   */
+  async recordActuals(
+    tenant: string,
+    sku: string,
+    frequency: Frequency,
+    periodValues: readonly { readonly period: string; readonly value: number | null }[],
+  ): Promise<RecordOutcome> {
+    const latest = await this.runs.latest(tenant, sku)
+    if (latest === null || 'error' in latest.item) return { added: 0, corrected: 0, reason: 'no-forecast', summary: await this.get(tenant, sku) }
+    const forecast = new Map<string, number>()
+    for (const p of latest.item.forecast) if (sameFrequency(p.period, frequency)) forecast.set(p.period, p.value)
+    const args: string[] = [latest.runId]
+    for (const { period, value } of periodValues) {
+      const f = forecast.get(period)
+      if (f === undefined || value === null || !Number.isFinite(value)) continue
+      args.push(period, String(f), String(value))
+    }
+    if (args.length === 1) return { added: 0, corrected: 0, reason: 'no-overlap', summary: await this.get(tenant, sku) }
+    const run = (this.redis as unknown as Record<string, (...a: string[]) => Promise<[number, number]>>)[COMMAND]!
+    const [added, corrected] = await run.call(this.redis, this.periodsKey(tenant, sku), ...args)
+    const summary = added + corrected > 0 ? await this.refresh(tenant, sku) : await this.get(tenant, sku)
+    return { added, corrected, summary }
+  }
+
+  /** Every scored period of a SKU, oldest period first. */
+  async periods(tenant: string, sku: string, frequency?: Frequency): Promise<ScoredRecord[]> {
+    if (!isValidTenant(tenant)) return []
+    const h = await this.redis.hgetall(this.periodsKey(tenant, sku))
+    const out = Object.entries(h).map(([period, v]) => {
+      const [runId, f, a] = v.split('|')
+      const forecast = Number(f)
+      const actual = Number(a)
+      return { period, runId: runId ?? '', forecast, actual, error: actual - forecast }
+    })
+    const order = (p: string) => (frequency ? safeOrdinal(p, frequency) : 0)
+    return out.sort((x, y) => order(x.period) - order(y.period) || x.period.localeCompare(y.period))
+  }
+
+  async get(tenant: string, sku: string): Promise<SkuAccuracy | null> {
+    if (!isValidTenant(tenant)) return null
+    const json = await this.redis.hget(`${this.base(tenant)}:summary`, sku)
+    return json === null ? null : (JSON.parse(json) as SkuAccuracy)
+  }
+
+  /**
+   * SKUs whose tracking signal is beyond the limit, by SKU (byte order).
+   * @throws RunInputError on a malformed cursor.
+   */
+  async exceptions(tenant: string, limit: number, cursor?: string): Promise<{ items: SkuAccuracy[]; nextCursor: string | null }> {
+    if (!isValidTenant(tenant)) return { items: [], nextCursor: null }
+    let from = '-'
+    if (cursor !== undefined) {
+      const after = decodeCursor(cursor)
+      if (after === null) throw new RunInputError('invalid-cursor', 'cursor is not one this service issued', 'cursor')
+      from = `(${after}`
+    }
+    const n = Math.max(1, Math.floor(limit))
+    const skus = await this.redis.zrangebylex(`${this.base(tenant)}:exceptions`, from, '+', 'LIMIT', 0, n + 1)
+    const page = skus.slice(0, n)
+    const jsons = page.length > 0 ? await this.redis.hmget(`${this.base(tenant)}:summary`, ...page) : []
+    const items = jsons.filter((j): j is string => j !== null).map((j) => JSON.parse(j) as SkuAccuracy)
+    const last = page[page.length - 1]
+    return { items, nextCursor: skus.length > n && last !== undefined ? encodeCursor(last) : null }
+  }
+
+  /** Recomputes the SKU's summary from its scored periods (the engine's summariseAccuracy). */
+  private async refresh(tenant: string, sku: string): Promise<SkuAccuracy> {
+    const records = await this.periods(tenant, sku)
+    const s = summariseAccuracy(records, this.opts.limit === undefined ? {} : { limit: this.opts.limit })
+    const summary: SkuAccuracy = { sku, ...s, updatedAt: (this.opts.now?.() ?? new Date()).toISOString() }
+    const base = this.base(tenant)
+    const tx = this.redis.multi().hset(`${base}:summary`, sku, JSON.stringify(summary))
+    if (s.flagged) tx.zadd(`${base}:exceptions`, 0, sku)
+    else tx.zrem(`${base}:exceptions`, sku)
+    await tx.exec()
+    return summary
+  }
+}
+
+function safeOrdinal(label: string, frequency: Frequency): number {
+  try {
+    return parsePeriod(label, frequency)
+  } catch {
+    return Number.MAX_SAFE_INTEGER
+  }
+}
+
+function sameFrequency(label: string, frequency: Frequency): boolean {
+  return safeOrdinal(label, frequency) !== Number.MAX_SAFE_INTEGER
+}

@@ -5,9 +5,11 @@
  * Hyndman, Koehler, Ord and Snyder 2008, ch. 3; from memory), so the x0 that minimises
  * the SSE solves a small linear least-squares problem:
  *   e(x0) = e(0) + J x0,  J[:, i] = errors of the recursion run on y = 0 from x0 = unit i.
+ * Valid only for the additive recursions; multiplicative seasonality is not linear in x0.
  * Unknowns: level, trend (if any), s_0..s_{m-2}; s_{m-1} = -(s_0 + ... + s_{m-2}) keeps
  * the seasonal states summing to zero (otherwise level and seasonal are not identified).
- * Normal equations solved by Cholesky with a tiny ridge. Allocation-free: the caller passes
+ * Normal equations solved by Cholesky with a tiny ridge (1e-10 of the mean diagonal).
+ * Allocation-free: the caller passes
  * a workspace of `leastSquaresWorkspace(n, m)` doubles (a Float64Array longer than 8
  * elements costs V8 an off-heap allocation, which dominated this step).
  */
@@ -48,12 +50,19 @@ function errors(
 export function leastSquaresWorkspace(n: number, m: number): number {
   const ms = m > 1 ? m : 0
   const p = 2 + (ms > 0 ? ms - 1 : 0)
-  return (p + 2) * n + p * p + p + ms
+  return 4 * n + ms * ms + 3 * ms + p * p + p + ms
 }
 
 /**
  * Writes the SSE-minimising initial states for these parameters into `out`
  * as [level, trend, s_0, ..., s_{m-1}].
+ *
+ * The seasonal columns are built from one response r (to a unit s_0 on y = 0):
+ * the system is time-invariant and starts at rest, so a unit s_j gives r delayed by j
+ * steps, R_j. The column of unknown s_j (j < m - 1) is R_j - R_{m-1} (the sum-to-zero
+ * substitution), and every inner product reduces to lagged sums of r:
+ *   <R_j, R_k> = sum_{u=0}^{n-1-max(j,k)} r[u] r[u + |j-k|],  <R_j, v> = sum_{t>=j} r[t-j] v[t].
+ * That is about m n + 3 m n products instead of (m + 1)^2 n / 2 for the full Gram matrix.
  * @param m season length, or 1 for no seasonality
  * @returns false (and `out` untouched) when the problem is singular or too small
  */
@@ -70,77 +79,121 @@ export function leastSquaresStates(
 ): boolean {
   const n = y.length
   const ms = m > 1 ? m : 0
-  const p = 1 + (hasTrend ? 1 : 0) + (ms > 0 ? ms - 1 : 0)
-  if (n <= p) return false
-  // Workspace layout: columns (p + 1) * n | r: n | a: p * p | rhs: p | s: ms.
-  const cols = work
-  const rAt = (p + 1) * n
-  const aAt = rAt + n
+  const first = 1 + (hasTrend ? 1 : 0)
+  const p = first + (ms > 0 ? ms - 1 : 0)
+  if (n <= p || n < ms) return false
+  // Workspace layout: E | L | T | r (n each) | P (ms * ms) | X (3 * ms) | a (p * p) | rhs (p) | s (ms).
+  const eAt = 0
+  const lAt = n
+  const tAt = 2 * n
+  const rAt = 3 * n
+  const pAt = 4 * n
+  const xAt = pAt + ms * ms
+  const aAt = xAt + 3 * ms
   const rhsAt = aAt + p * p
   const sAt = rhsAt + p
   const s = work.subarray(sAt, sAt + ms)
-  // Column p: the data with x0 = 0. Level and trend columns: unit starts on y = 0.
   s.fill(0)
-  errors(y, n, alpha, beta, gamma, phi, 0, 0, s, cols, p * n)
+  errors(y, n, alpha, beta, gamma, phi, 0, 0, s, work, eAt)
   s.fill(0)
-  errors(null, n, alpha, beta, gamma, phi, 1, 0, s, cols, 0)
-  const first = 1 + (hasTrend ? 1 : 0)
+  errors(null, n, alpha, beta, gamma, phi, 1, 0, s, work, lAt)
   if (hasTrend) {
     s.fill(0)
-    errors(null, n, alpha, beta, gamma, phi, 0, 1, s, cols, n)
+    errors(null, n, alpha, beta, gamma, phi, 0, 1, s, work, tAt)
+  }
+  const a = (i: number, k: number): number => aAt + i * p + k
+  // Level and trend block, and their right-hand sides: A x = -J' e(0).
+  let ll = 0
+  let le = 0
+  let lt = 0
+  let tt = 0
+  let te = 0
+  for (let t = 0; t < n; t++) {
+    const l = work[lAt + t]
+    const e = work[eAt + t]
+    ll += l * l
+    le += l * e
+    if (hasTrend) {
+      const tr = work[tAt + t]
+      lt += l * tr
+      tt += tr * tr
+      te += tr * e
+    }
+  }
+  work[a(0, 0)] = ll
+  work[rhsAt] = -le
+  if (hasTrend) {
+    work[a(1, 0)] = lt
+    work[a(1, 1)] = tt
+    work[rhsAt + 1] = -te
   }
   if (ms > 0) {
-    // The system is time-invariant and all states start at zero, so the response to a
-    // unit s_j is the response r to a unit s_0 delayed by j steps. Column for unknown
-    // s_j (j < m - 1): r delayed j minus r delayed m - 1 (the sum-to-zero substitution).
     s.fill(0)
     s[0] = 1
     errors(null, n, alpha, beta, gamma, phi, 0, 0, s, work, rAt)
     const last = ms - 1
-    for (let j = 0; j < last; j++) {
-      const c = (first + j) * n
-      for (let t = 0; t < n; t++) {
-        cols[c + t] = (t >= j ? work[rAt + t - j] : 0) - (t >= last ? work[rAt + t - last] : 0)
+    // P[c][q] = sum_{u=0}^{n-1-q} r[u] r[u+c] for c <= q < ms.
+    for (let c = 0; c < ms; c++) {
+      let acc = 0
+      const bulk = n - ms // terms u < bulk have q = n - 1 - u >= ms: nothing to record
+      for (let u = 0; u < bulk; u++) acc += work[rAt + u] * work[rAt + u + c]
+      for (let u = bulk; u + c < n; u++) {
+        acc += work[rAt + u] * work[rAt + u + c]
+        work[pAt + c * ms + (n - 1 - u)] = acc
       }
     }
-  }
-  // Normal equations A x = -J' e(0), lower triangle of A.
-  for (let i = 0; i < p; i++) {
-    const ci = i * n
-    for (let k = 0; k <= i; k++) {
-      const ck = k * n
-      let acc = 0
-      for (let t = 0; t < n; t++) acc += cols[ci + t] * cols[ck + t]
-      work[aAt + i * p + k] = acc
+    // X_v[j] = sum_{t=j}^{n-1} r[t-j] v[t] for v = e(0), level column, trend column.
+    // (Without a trend the trend column stays zero: errors() is not run for it.)
+    if (!hasTrend) work.fill(0, tAt, tAt + n)
+    for (let j = 0; j < ms; j++) {
+      let xe = 0
+      let xl = 0
+      let xt = 0
+      for (let t = j; t < n; t++) {
+        const rv = work[rAt + t - j]
+        xe += rv * work[eAt + t]
+        xl += rv * work[lAt + t]
+        xt += rv * work[tAt + t]
+      }
+      work[xAt + j] = xe
+      work[xAt + ms + j] = xl
+      work[xAt + 2 * ms + j] = xt
     }
-    let r = 0
-    for (let t = 0; t < n; t++) r += cols[ci + t] * cols[p * n + t]
-    work[rhsAt + i] = -r
+    const rr = (j: number, k: number): number => work[pAt + Math.abs(j - k) * ms + Math.max(j, k)]
+    const rLastLast = rr(last, last)
+    for (let j = 0; j < last; j++) {
+      const i = first + j
+      work[a(i, 0)] = work[xAt + ms + j] - work[xAt + ms + last]
+      if (hasTrend) work[a(i, 1)] = work[xAt + 2 * ms + j] - work[xAt + 2 * ms + last]
+      const rjLast = rr(j, last)
+      for (let k = 0; k <= j; k++) work[a(i, first + k)] = rr(j, k) - rjLast - rr(last, k) + rLastLast
+      work[rhsAt + i] = -(work[xAt + j] - work[xAt + last])
+    }
   }
   let trace = 0
-  for (let i = 0; i < p; i++) trace += work[aAt + i * p + i]
+  for (let i = 0; i < p; i++) trace += work[a(i, i)]
   const ridge = 1e-10 * (trace / p) + 1e-300
-  for (let i = 0; i < p; i++) work[aAt + i * p + i] += ridge
+  for (let i = 0; i < p; i++) work[a(i, i)] += ridge
   // Cholesky (lower triangle in place), then two triangular solves.
   for (let i = 0; i < p; i++) {
     for (let k = 0; k <= i; k++) {
-      let v = work[aAt + i * p + k]
-      for (let q = 0; q < k; q++) v -= work[aAt + i * p + q] * work[aAt + k * p + q]
+      let v = work[a(i, k)]
+      for (let q = 0; q < k; q++) v -= work[a(i, q)] * work[a(k, q)]
       if (i === k) {
         if (!(v > 0)) return false
-        work[aAt + i * p + i] = Math.sqrt(v)
-      } else work[aAt + i * p + k] = v / work[aAt + k * p + k]
+        work[a(i, i)] = Math.sqrt(v)
+      } else work[a(i, k)] = v / work[a(k, k)]
     }
   }
   for (let i = 0; i < p; i++) {
     let v = work[rhsAt + i]
-    for (let q = 0; q < i; q++) v -= work[aAt + i * p + q] * work[rhsAt + q]
-    work[rhsAt + i] = v / work[aAt + i * p + i]
+    for (let q = 0; q < i; q++) v -= work[a(i, q)] * work[rhsAt + q]
+    work[rhsAt + i] = v / work[a(i, i)]
   }
   for (let i = p - 1; i >= 0; i--) {
     let v = work[rhsAt + i]
-    for (let q = i + 1; q < p; q++) v -= work[aAt + q * p + i] * work[rhsAt + q]
-    work[rhsAt + i] = v / work[aAt + i * p + i]
+    for (let q = i + 1; q < p; q++) v -= work[a(q, i)] * work[rhsAt + q]
+    work[rhsAt + i] = v / work[a(i, i)]
   }
   for (let i = 0; i < p; i++) if (!Number.isFinite(work[rhsAt + i])) return false
   out[0] = work[rhsAt]

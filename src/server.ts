@@ -8,6 +8,8 @@ import { createLogger } from './logger.js'
 import { assertRedisReachable, gatewayConnection } from './queue/connection.js'
 import { createRunGateway } from './queue/gateway.js'
 import { startWorkers, type RunWorkers } from './queue/worker.js'
+import { HistoryStore } from './storage/history-store.js'
+import { IdempotencyStore } from './storage/idempotency-store.js'
 
 /**
  * `npm start`: the HTTP API, plus in-process chunk workers unless
@@ -47,12 +49,15 @@ async function main(): Promise<void> {
   }
 
   const gateway = createRunGateway(config)
-  const rateLimitRedis = gatewayConnection(config.redisUrl)
-  rateLimitRedis.on('error', (err) => logger.warn({ err }, 'rate-limit Redis connection error'))
+  // One connection for the API's own keys: rate-limit counters, stored histories, idempotency answers.
+  const apiRedis = gatewayConnection(config.redisUrl)
+  apiRedis.on('error', (err) => logger.warn({ err }, 'API Redis connection error'))
+  const histories = new HistoryStore(apiRedis, { prefix: config.redisPrefix })
+  const idempotency = new IdempotencyStore(apiRedis, { prefix: config.redisPrefix })
   const metrics = createServiceMetrics()
   collectDefaultMetrics({ register: metrics.registry, prefix: 'almanac_process_' })
 
-  const app = await build({ config, gateway, logger, rateLimitRedis, metrics })
+  const app = await build({ config, gateway, logger, rateLimitRedis: apiRedis, metrics, histories, idempotency })
   const workers: RunWorkers | null = config.runWorker ? startWorkers(config, logger) : null
 
   let stopping = false
@@ -64,7 +69,7 @@ async function main(): Promise<void> {
       await app.close()
       await workers?.close()
       await gateway.close()
-      await rateLimitRedis.quit().catch(() => undefined)
+      await apiRedis.quit().catch(() => undefined)
     }
     closeAll()
       .then(() => process.exit(0))

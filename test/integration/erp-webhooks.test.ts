@@ -1,0 +1,131 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { Redis } from 'ioredis'
+import { createLogger } from '../../src/logger.js'
+import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
+import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import { DeliveryStore, type Delivery } from '../../src/storage/delivery-store.js'
+import { CallbackStore } from '../../src/webhooks/callback-store.js'
+import { verifySignature } from '../../src/webhooks/signing.js'
+import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
+import { runRequest, runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+import { deadUrl, startReceiver } from '../webhooks/receiver.js'
+
+// Webhooks end to end: real gateway, chunk and webhook workers, Redis, and a receiver on 127.0.0.1.
+let url: string
+let prefix: string
+let gateway: RunMachinery
+let workers: RunWorkers
+let redis: Redis
+let deliveries: DeliveryStore
+let callbacks: CallbackStore
+let receiver: Awaited<ReturnType<typeof startReceiver>>
+let secret: string
+
+const ATTEMPTS = 4
+
+beforeAll(async () => {
+  url = await redisUrlForTests()
+  prefix = uniquePrefix('erp-webhooks')
+  const config = runsTestConfig(url, prefix, { webhookAttempts: ATTEMPTS, webhookBackoffMs: 50, webhookTimeoutMs: 2000 })
+  gateway = createRunGateway(config)
+  workers = startWorkers(config, createLogger({ level: 'silent' }))
+  redis = new Redis(url)
+  deliveries = new DeliveryStore(redis, { prefix, ttlSeconds: 3600 })
+  callbacks = new CallbackStore(redis, prefix)
+  secret = await callbacks.rotateSecret('garden')
+  receiver = await startReceiver((r, nth) => (r.path === '/flaky' && nth <= 2 ? 500 : r.path === '/moved' ? 302 : 200))
+})
+
+afterAll(async () => {
+  await workers?.close()
+  await gateway?.close()
+  await receiver?.close()
+  redis?.disconnect()
+  if (url && prefix) await deleteKeys(url, prefix)
+})
+
+const settled = (tenant: string, runId: string, n = 1) =>
+  waitFor(async () => {
+    const list = await deliveries.list(tenant, runId)
+    return list.length >= n && list.every((d) => d.state === 'delivered' || d.state === 'dead') ? list : undefined
+  }, 60_000, `deliveries of ${runId}`)
+
+describe('run webhooks', { timeout: 120_000 }, () => {
+  it('delivers a signed run.succeeded event the receiver can verify', async () => {
+    const run = await gateway.submit('garden', runRequest(syntheticSeries(3), { callbackUrl: `${receiver.url}/ok` }))
+    const [d] = (await settled('garden', run.id)) as [Delivery]
+    expect(d).toMatchObject({ state: 'delivered', event: 'run.succeeded', source: 'run', url: `${receiver.url}/ok` })
+    expect(d.attempts).toHaveLength(1)
+    expect(d.attempts[0]).toMatchObject({ attempt: 1, statusCode: 200, error: null })
+
+    const got = receiver.received.filter((r) => r.path === '/ok')
+    expect(got).toHaveLength(1)
+    const req = got[0]!
+    const body = JSON.parse(req.body)
+    expect(body).toMatchObject({ type: 'run.succeeded', run: { id: run.id, status: 'succeeded', progress: { total: 3, done: 3 } } })
+    expect(body.run).not.toHaveProperty('settings')
+    expect(req.headers['almanac-event']).toBe('run.succeeded')
+    expect(req.headers['almanac-signature']).toMatch(/^v1=[0-9a-f]{64}$/)
+    const headers = { signature: req.headers['almanac-signature'] as string, timestamp: req.headers['almanac-timestamp'] as string }
+    const now = Math.floor(Date.now() / 1000)
+    expect(verifySignature(secret, headers, req.body, now)).toBe(true)
+    // A tampered body, another secret or a stale timestamp fail verification.
+    expect(verifySignature(secret, headers, req.body.replace('succeeded', 'failed'), now)).toBe(false)
+    expect(verifySignature('0'.repeat(64), headers, req.body, now)).toBe(false)
+    expect(verifySignature(secret, headers, req.body, now + 301)).toBe(false)
+  })
+
+  it('retries a receiver that fails twice: three attempts logged, delivered', async () => {
+    const run = await gateway.submit('garden', runRequest(syntheticSeries(2), { callbackUrl: `${receiver.url}/flaky` }))
+    const [d] = (await settled('garden', run.id)) as [Delivery]
+    expect(d.state).toBe('delivered')
+    expect(d.attempts.map((a) => [a.attempt, a.statusCode, a.error])).toEqual([
+      [1, 500, 'HTTP 500'],
+      [2, 500, 'HTTP 500'],
+      [3, 200, null],
+    ])
+    // Exponential backoff: the second wait (100 ms) is at least the first (50 ms).
+    const t = d.attempts.map((a) => Date.parse(a.at))
+    expect(t[1]! - t[0]!).toBeGreaterThanOrEqual(40)
+    expect(t[2]! - t[1]!).toBeGreaterThanOrEqual(90)
+  })
+
+  it('gives up on a receiver that is down: dead after the last attempt', async () => {
+    const down = await deadUrl()
+    const run = await gateway.submit('garden', runRequest(syntheticSeries(2), { callbackUrl: `${down}/hook` }))
+    const [d] = (await settled('garden', run.id)) as [Delivery]
+    expect(d.state).toBe('dead')
+    expect(d.attempts).toHaveLength(ATTEMPTS)
+    for (const a of d.attempts) {
+      expect(a.statusCode).toBeNull()
+      expect(a.error).toBe('ECONNREFUSED')
+    }
+  })
+
+  it('does not follow redirects: a 302 is a failed attempt', async () => {
+    const run = await gateway.submit('garden', runRequest(syntheticSeries(1), { callbackUrl: `${receiver.url}/moved` }))
+    const [d] = (await settled('garden', run.id)) as [Delivery]
+    expect(d.state).toBe('dead')
+    expect(d.attempts[0]).toMatchObject({ statusCode: 302, error: 'HTTP 302' })
+  })
+
+  it('calls standing callbacks subscribed to the event (run.cancelled), not others', async () => {
+    await callbacks.add('garden', `${receiver.url}/cancelled`, ['run.cancelled'], new Date())
+    await callbacks.add('garden', `${receiver.url}/failed-only`, ['run.failed'], new Date())
+    const run = await gateway.submit('garden', runRequest(syntheticSeries(400)))
+    await gateway.cancel('garden', run.id)
+    const list = await settled('garden', run.id)
+    expect(list.map((d) => [d.url, d.event, d.source, d.state])).toEqual([
+      [`${receiver.url}/cancelled`, 'run.cancelled', 'standing', 'delivered'],
+    ])
+    expect(receiver.received.filter((r) => r.path === '/failed-only')).toHaveLength(0)
+  })
+
+  it('keeps tenants apart: another tenant sees no deliveries', async () => {
+    const run = await gateway.submit('garden', runRequest(syntheticSeries(1), { callbackUrl: `${receiver.url}/ok` }))
+    const own = await settled('garden', run.id)
+    // The standing callbacks listen to run.cancelled and run.failed only: one delivery, the run's own.
+    expect(own.map((d) => d.source)).toEqual(['run'])
+    expect(await deliveries.list('heating', run.id)).toEqual([])
+  })
+})

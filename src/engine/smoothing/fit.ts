@@ -14,22 +14,15 @@
  *   0 < betaE = alpha * beta < alpha); gamma = g * (1 - alpha), g in [1e-4, 0.9999]
  *   (so 0 < gamma < 1 - alpha); phi in [0.8, 0.98].
  */
-import { EngineInputError, tooShort } from '../errors.js'
+import { EngineInputError } from '../errors.js'
 import { minimiseNelderMead } from '../optimise.js'
-import type { FitContext, ModelFit, ModelName, ModelParams } from '../types.js'
+import type { FitContext, ModelFit } from '../types.js'
 import { initialLevel, initialLevelTrend, initialSeasonalStates } from './initial.js'
+import { checkedScale, finite, readParam, type SmoothingShape } from './input.js'
 import { sseLevel, sseSeasonalAdd, sseSeasonalMul, sseTrend } from './kernels.js'
 import { leastSquaresStates, leastSquaresWorkspace } from './least-squares-states.js'
-import { runSmoothing, type SeasonalKind } from './recursions.js'
+import { runSmoothing } from './recursions.js'
 import { additiveErrorVariance } from './variance.js'
-
-export interface SmoothingShape {
-  readonly name: ModelName
-  /** Name used in error messages, e.g. `holtWinters`. */
-  readonly method: string
-  readonly trend: 'none' | 'linear' | 'damped'
-  readonly seasonal: SeasonalKind | null
-}
 
 const LO = 1e-4
 const HI = 0.9999
@@ -40,41 +33,20 @@ const MAX_EVALUATIONS = 150
 /** Evaluations of the second search after least-squares initial states (additive models). */
 const REFINE_EVALUATIONS = 40
 
-/** Keeps results inside double range: +-Infinity becomes +-Number.MAX_VALUE (NaN cannot occur here). */
-function finite(v: number): number {
-  return v > Number.MAX_VALUE ? Number.MAX_VALUE : v < -Number.MAX_VALUE ? -Number.MAX_VALUE : v
-}
-
-export function minLengthOf(shape: SmoothingShape, seasonLength: number): number {
-  if (shape.seasonal) return 2 * seasonLength
-  return shape.trend === 'none' ? 2 : 3
-}
-
-function readParam(p: ModelParams | undefined, key: string): number | undefined {
-  const v = p?.[key]
-  return typeof v === 'number' && Number.isFinite(v) ? v : undefined
-}
-
+/**
+ * Fit one smoothing model. `ctx.initialParams` (alpha, beta, gamma, phi), when given,
+ * is the optimiser's starting point. Returned params: alpha, beta (component form, as
+ * statsmodels' smoothing_trend), gamma, phi (damped models), initialLevel, initialTrend,
+ * initialSeasonal (m values; entry j applies to the first y[j]).
+ * `fitted` is NaN only at index 0 of SES (its level starts at y[0]). `forecastVariance`
+ * exists for the additive models only (class 1 of HKOS 2008), with sigma^2 = SSE / (n - k).
+ * @throws EngineInputError on bad or short input (see checkedScale in input.ts), or when
+ *   no parameters give a finite error sum
+ */
 export function fitSmoothing(shape: SmoothingShape, series: readonly number[], ctx: FitContext): ModelFit {
   const n = series.length
   const m = shape.seasonal ? ctx.seasonLength : 1
-  if (shape.seasonal && !(Number.isInteger(m) && m >= 2)) {
-    throw new EngineInputError('invalid-option', `${shape.method} needs a season length of at least 2`, 'seasonLength')
-  }
-  if (n === 0) throw new EngineInputError('empty-series', 'series is empty', 'values')
-  const minimum = minLengthOf(shape, m)
-  if (n < minimum) throw tooShort(shape.method, minimum)
-  let scale = 0
-  for (let t = 0; t < n; t++) {
-    const v = series[t]
-    if (!Number.isFinite(v)) throw new EngineInputError('non-finite-value', `values[${t}] is not a finite number`, `values[${t}]`)
-    if (shape.seasonal === 'mul' && !(v > 0)) {
-      throw new EngineInputError('not-positive', `${shape.method} with multiplicative seasonality needs values > 0 (values[${t}] is ${v})`, `values[${t}]`)
-    }
-    const a = Math.abs(v)
-    if (a > scale) scale = a
-  }
-  if (!(scale > 0)) scale = 1
+  const scale = checkedScale(shape, series, m)
   // One allocation for every buffer of this fit (V8 allocates Float64Arrays longer than
   // 8 elements off-heap, at a cost comparable to a whole SSE evaluation).
   // Layout: y (n) | seasonal scratch (m) | states [l, b, s...] (2 + m) | LS states (2 + m) | LS workspace.

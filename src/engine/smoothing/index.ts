@@ -8,7 +8,8 @@
  * Complexity counts smoothing parameters plus initial-state blocks (level, trend, seasonal).
  */
 import type { ModelSpec } from '../types.js'
-import { fitSmoothing, minLengthOf, type SmoothingShape } from './fit.js'
+import { fitSmoothing } from './fit.js'
+import { minLengthOf, type SmoothingShape } from './input.js'
 
 export { runSmoothing, runSimpleSmoothing, runHolt, runHoltWinters, forecastStates } from './recursions.js'
 export type { SeasonalKind, SmoothingRun, SmoothingSetup, SmoothingStates } from './recursions.js'

@@ -1,0 +1,54 @@
+/** Input checks and small helpers shared by the smoothing fitters. Pure. */
+import { EngineInputError, tooShort } from '../errors.js'
+import type { ModelName, ModelParams } from '../types.js'
+import type { SeasonalKind } from './recursions.js'
+
+export interface SmoothingShape {
+  readonly name: ModelName
+  /** Name used in error messages, e.g. `holtWinters`. */
+  readonly method: string
+  readonly trend: 'none' | 'linear' | 'damped'
+  readonly seasonal: SeasonalKind | null
+}
+
+/** Minimum training length: two full seasons for seasonal models (common practice), else 3 or 2. */
+export function minLengthOf(shape: SmoothingShape, seasonLength: number): number {
+  if (shape.seasonal) return 2 * seasonLength
+  return shape.trend === 'none' ? 2 : 3
+}
+
+/**
+ * Checks the series for this model and returns max|y| (1 for an all-zero series).
+ * @throws EngineInputError: invalid-option (season length), empty-series,
+ *   series-too-short, non-finite-value, not-positive (multiplicative models)
+ */
+export function checkedScale(shape: SmoothingShape, series: readonly number[], m: number): number {
+  const n = series.length
+  if (shape.seasonal && !(Number.isInteger(m) && m >= 2)) {
+    throw new EngineInputError('invalid-option', `${shape.method} needs a season length of at least 2`, 'seasonLength')
+  }
+  if (n === 0) throw new EngineInputError('empty-series', 'series is empty', 'values')
+  const minimum = minLengthOf(shape, m)
+  if (n < minimum) throw tooShort(shape.method, minimum)
+  let scale = 0
+  for (let t = 0; t < n; t++) {
+    const v = series[t]
+    if (!Number.isFinite(v)) throw new EngineInputError('non-finite-value', `values[${t}] is not a finite number`, `values[${t}]`)
+    if (shape.seasonal === 'mul' && !(v > 0)) {
+      throw new EngineInputError('not-positive', `${shape.method} with multiplicative seasonality needs values > 0 (values[${t}] is ${v})`, `values[${t}]`)
+    }
+    const a = Math.abs(v)
+    if (a > scale) scale = a
+  }
+  return scale > 0 ? scale : 1
+}
+
+/** Keeps results inside double range: +-Infinity becomes +-Number.MAX_VALUE (NaN cannot occur here). */
+export function finite(v: number): number {
+  return v > Number.MAX_VALUE ? Number.MAX_VALUE : v < -Number.MAX_VALUE ? -Number.MAX_VALUE : v
+}
+
+export function readParam(p: ModelParams | undefined, key: string): number | undefined {
+  const v = p?.[key]
+  return typeof v === 'number' && Number.isFinite(v) ? v : undefined
+}

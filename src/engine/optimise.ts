@@ -13,7 +13,7 @@
 export interface NelderMeadOptions {
   /** Objective evaluations allowed (default 200). */
   readonly maxEvaluations?: number
-  /** Stop when f(worst) - f(best) <= relTol * |f(best)| + absTol (defaults 1e-5, 1e-12). */
+  /** Stop when f(worst) - f(best) <= relTol * |f(best)| + absTol (defaults 1e-4, 1e-12). */
   readonly relTol?: number
   readonly absTol?: number
   /** Start-simplex edge as a fraction of each box width (default 0.1). */
@@ -40,7 +40,7 @@ export function minimiseNelderMead(
 ): NelderMeadResult {
   const d = start.length
   const maxEval = options.maxEvaluations ?? 200
-  const relTol = options.relTol ?? 1e-5
+  const relTol = options.relTol ?? 1e-4
   const absTol = options.absTol ?? 1e-12
   const stepFraction = options.step ?? 0.1
 

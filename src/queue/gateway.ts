@@ -4,6 +4,8 @@ import type { Redis } from 'ioredis'
 import type { Config } from '../config.js'
 import type { RunRequest } from '../schemas/run.js'
 import { RunStore } from '../storage/run-store.js'
+import { HistoryStore } from '../storage/history-store.js'
+import { createRunFromHistories } from '../storage/history-runs.js'
 import { RunInputError, type RunGateway, type RunRecord } from '../storage/types.js'
 import { checkReplenishmentOptions, EngineInputError } from '../engine/index.js'
 import { gatewayConnection } from './connection.js'
@@ -47,12 +49,41 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
   const events = createRunEventEmitter(redis, config.redisPrefix)
 
   const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
+  const histories = new HistoryStore(redis, { prefix: config.redisPrefix })
 
   return {
     async submit(tenant: string, request: RunRequest): Promise<RunRecord> {
       checkRunOptions(request)
       const runId = randomUUID()
       const { record, chunks } = await store.createRun(tenant, runId, request, config.chunkSize, now())
+      try {
+        for (let i = 0; i < chunks; i += BATCH) {
+          await queue.addBulk(
+            chunkIndexes(Math.min(BATCH, chunks - i)).map((j) => ({
+              name: CHUNK_JOB,
+              data: { tenant, runId, chunkIndex: i + j },
+              opts: { ...CHUNK_JOB_OPTIONS, jobId: chunkJobId(runId, i + j) },
+            })),
+          )
+        }
+      } catch (err) {
+        await store.endRun(tenant, runId, 'failed', 'could not enqueue the run', now()).catch(() => null)
+        throw err
+      }
+      return record
+    },
+
+    async submitSelection(tenant, settings, selection) {
+      checkRunOptions(settings)
+      const runId = randomUUID()
+      const { record, chunks } = await createRunFromHistories(redis, storeOptions(config), histories, {
+        tenant,
+        runId,
+        settings,
+        selection,
+        chunkSize: config.chunkSize,
+        now: now(),
+      })
       try {
         for (let i = 0; i < chunks; i += BATCH) {
           await queue.addBulk(

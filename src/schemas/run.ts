@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES, SERVICE_LEVEL_MAX, SERVICE_LEVEL_MIN } from '../engine/index.js'
+import { TAG_PATTERN } from '../history/types.js'
 
 /**
  * The request contract shared by `POST /v1/forecast`, `POST /v1/runs` and the
@@ -86,3 +87,37 @@ export const RunRequest = RunSettings.extend({
   series: z.array(SeriesItem).min(1),
 })
 export type RunRequest = z.infer<typeof RunRequest>
+
+/** Most SKUs a run may name in `skus`. */
+export const MAX_SELECTED_SKUS = 100_000
+
+/**
+ * `POST /v1/runs`: the settings plus exactly one source of series: inline
+ * `series`, or stored histories selected by `skus`, by `tags` (SKUs carrying
+ * every listed tag) or `all`.
+ */
+export const RunSubmission = RunSettings.extend({
+  series: z.array(SeriesItem).min(1).optional().describe('Series given inline'),
+  skus: z
+    .array(Sku)
+    .min(1)
+    .max(MAX_SELECTED_SKUS)
+    .optional()
+    .describe('Forecast these SKUs from their stored histories; unknown SKUs are a 400 listing them'),
+  tags: z
+    .array(z.string().regex(TAG_PATTERN, 'is not a valid tag'))
+    .min(1)
+    .max(10)
+    .optional()
+    .describe('Forecast the stored histories of SKUs carrying every listed tag'),
+  all: z.literal(true).optional().describe('Forecast every stored history of the tenant'),
+}).superRefine((body, ctx) => {
+  const given = (['series', 'skus', 'tags', 'all'] as const).filter((f) => body[f] !== undefined)
+  if (given.length === 0) {
+    ctx.addIssue({ code: 'custom', path: ['series'], message: 'give series, or select stored histories with skus, tags or all' })
+  }
+  for (const extra of given.slice(1)) {
+    ctx.addIssue({ code: 'custom', path: [extra], message: `give exactly one of series, skus, tags or all (got ${given.join(', ')})` })
+  }
+})
+export type RunSubmission = z.infer<typeof RunSubmission>

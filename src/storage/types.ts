@@ -60,6 +60,16 @@ export interface LatestForecast {
 export interface RunGateway {
   /** Validated request in, queued run out. Splits the series into chunk jobs. */
   submit(tenant: string, request: import('../schemas/run.js').RunRequest): Promise<RunRecord>
+  /**
+   * Queue a run over stored histories, read in batches straight into chunk inputs.
+   * Optional: gateways without stored histories leave it out (the route answers 503).
+   * @throws RunInputError('empty-selection') when the selection matches no history.
+   */
+  submitSelection?(
+    tenant: string,
+    settings: RunSettings,
+    selection: import('./history-store.js').HistorySelection,
+  ): Promise<RunRecord>
   get(tenant: string, runId: string): Promise<RunRecord | null>
   results(
     tenant: string,
@@ -82,7 +92,7 @@ export interface RunGateway {
 export class RunInputError extends Error {
   override readonly name = 'RunInputError'
   constructor(
-    readonly code: 'duplicate-sku' | 'invalid-cursor' | 'invalid-option',
+    readonly code: 'duplicate-sku' | 'invalid-cursor' | 'invalid-option' | 'empty-selection',
     message: string,
     readonly field: string,
   ) {

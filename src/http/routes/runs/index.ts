@@ -2,9 +2,10 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../../errors.js'
 import { RunIdParams } from '../../../schemas/params.js'
 import { RunResource } from '../../../schemas/results.js'
-import { RunRequest } from '../../../schemas/run.js'
+import { RunSubmission } from '../../../schemas/run.js'
 import type { RunRecord } from '../../../storage/types.js'
 import { BODY_PROBLEMS, COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
+import { submitStoredSelection } from '../../run-selection.js'
 
 /** The run as clients see it: the record without its tenant. */
 export function toRunResource(run: RunRecord): Omit<RunRecord, 'tenant'> {
@@ -26,14 +27,21 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         summary: 'Submit a forecast run',
         description:
           'Queues every series for forecasting and answers at once with the run; poll it at the Location header. ' +
-          'Bodies up to the configured limit (default 64 MiB) are accepted; larger ones get 413.',
-        body: RunRequest,
+          'Bodies up to the configured limit (default 64 MiB) are accepted; larger ones get 413. ' +
+          'Instead of inline series, a run may forecast stored histories: { "skus": [...] } (unknown SKUs are a 400 ' +
+          'listing them), { "tags": [...] } (SKUs carrying every tag) or { "all": true }. Honours Idempotency-Key.',
+        body: RunSubmission,
         response: { 202: RunResource, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
       },
+      config: { idempotency: true },
     },
     async (request, reply) => {
-      const run = await app.gateway.submit(request.tenant, request.body)
-      request.log.info({ runId: run.id, series: request.body.series.length }, 'run submitted')
+      const { series, skus, tags, all: _all, ...settings } = request.body
+      // The schema lets exactly one of series, skus, tags and all through.
+      const run = series
+        ? await app.gateway.submit(request.tenant, { ...settings, series })
+        : await submitStoredSelection(app, request.tenant, settings, skus ? { skus } : tags ? { tags } : { all: true })
+      request.log.info({ runId: run.id, series: run.progress.total, stored: series === undefined }, 'run submitted')
       reply.code(202).header('location', `/v1/runs/${encodeURIComponent(run.id)}`)
       return toRunResource(run)
     },
@@ -45,9 +53,11 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       schema: {
         tags: ['runs'],
         summary: 'Read a run: status, progress, summary',
+        description: 'Carries a strong ETag; send it back in If-None-Match to get 304 while nothing changed.',
         params: RunIdParams,
         response: { 200: RunResource, ...COMMON_PROBLEMS, ...NOT_FOUND },
       },
+      config: { etag: true },
     },
     async (request) => {
       const run = await app.gateway.get(request.tenant, request.params.runId)

@@ -16,6 +16,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         params: SkuParams,
         response: { 200: SkuForecast, ...COMMON_PROBLEMS, ...NOT_FOUND },
       },
+      config: { etag: true },
     },
     async (request) => {
       const { sku } = request.params

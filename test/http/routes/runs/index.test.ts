@@ -132,6 +132,6 @@ describe('/v1/runs', () => {
   it('POST without series is a validation failure', async () => {
     const res = await app.inject({ method: 'POST', url: '/v1/runs', headers: auth(KEY_GARDEN), payload: { horizon: 3 } })
     expect(res.statusCode).toBe(400)
-    expect(res.json().errors).toEqual([{ path: 'series', message: 'Invalid input: expected array, received undefined' }])
+    expect(res.json().errors).toEqual([{ path: 'series', message: 'give series, or select stored histories with skus, tags or all' }])
   })
 })

@@ -1,0 +1,58 @@
+import type { Redis } from 'ioredis'
+import type { RunSettings, SeriesItem } from '../schemas/run.js'
+import { decodeRunRecord, newRunFields } from './codec.js'
+import type { HistorySelection, HistoryStore } from './history-store.js'
+import { runKeys } from './keys.js'
+import type { RunStoreOptions } from './run-store.js'
+import { RunInputError, type RunRecord } from './types.js'
+
+/**
+ * Create a run over stored histories: the selection is read page by page
+ * (at most `chunkSize` histories at a time) and each full chunk is written as
+ * a chunk input at once, so memory holds one chunk, never the whole
+ * selection. The run record goes last, when the total is known; inputs of a
+ * run that never got its record expire with the result TTL.
+ * Each stored history becomes the series `{ sku, values, start, frequency }`,
+ * exactly as if it had been sent inline.
+ * @throws RunInputError('empty-selection') when nothing matched
+ */
+export async function createRunFromHistories(
+  redis: Redis,
+  opts: RunStoreOptions,
+  histories: HistoryStore,
+  args: {
+    readonly tenant: string
+    readonly runId: string
+    readonly settings: RunSettings
+    readonly selection: HistorySelection
+    readonly chunkSize: number
+    readonly now: Date
+  },
+): Promise<{ record: RunRecord; chunks: number }> {
+  const { tenant, runId, settings, selection, chunkSize } = args
+  const k = runKeys(opts.prefix, tenant, runId)
+  let chunks = 0
+  let total = 0
+  let chunk: SeriesItem[] = []
+  const flush = async () => {
+    await redis.set(k.input(chunks), JSON.stringify(chunk), 'EX', opts.resultTtlSeconds)
+    chunks++
+    total += chunk.length
+    chunk = []
+  }
+  for await (const batch of histories.select(tenant, selection, chunkSize)) {
+    for (const h of batch) {
+      chunk.push({ sku: h.sku, values: [...h.values], start: h.start, frequency: h.frequency })
+      if (chunk.length >= chunkSize) await flush()
+    }
+  }
+  if (chunk.length > 0) await flush()
+  if (total === 0) {
+    const field = 'skus' in selection ? 'skus' : 'tags' in selection ? 'tags' : 'all'
+    throw new RunInputError('empty-selection', 'the selection matches no stored history', field)
+  }
+  const fields = newRunFields({ id: runId, tenant, createdAt: args.now.toISOString(), total, chunks, settings })
+  const results = await redis.multi().hset(k.run, fields).expire(k.run, opts.recordTtlSeconds).exec()
+  for (const [err] of results ?? []) if (err) throw err
+  return { record: decodeRunRecord(fields)!, chunks }
+}

@@ -27,6 +27,13 @@ import skuRoutes from './routes/skus/forecast.js'
 import skuHistoryRoutes from './routes/skus/history.js'
 import skuListRoutes from './routes/skus/list.js'
 import { validatorCompiler } from './validation.js'
+import type { ErpServices } from '../webhooks/services.js'
+import erpPlugin from './plugins/erp.js'
+import accuracyRoutes from './routes/accuracy.js'
+import callbackRoutes from './routes/callbacks.js'
+import deliveryRoutes from './routes/runs/deliveries.js'
+import scheduleRoutes from './routes/schedules.js'
+import skuAccuracyRoutes from './routes/skus/accuracy.js'
 import './types.js'
 
 export interface AppDeps {
@@ -44,6 +51,8 @@ export interface AppDeps {
   readonly histories?: HistoryStore
   /** Idempotency-Key answers; without it a request carrying the header gets 503. */
   readonly idempotency?: IdempotencyStore
+  /** Callbacks, deliveries, schedules and accuracy; without them those routes answer 503. */
+  readonly erp?: ErpServices
 }
 
 const CLIENT_REQUEST_ID = /^[A-Za-z0-9._-]{1,64}$/
@@ -89,6 +98,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(historyPlugin, { histories: deps.histories })
   await app.register(idempotencyPlugin, { store: deps.idempotency })
   await app.register(etagPlugin)
+  await app.register(erpPlugin, { erp: deps.erp })
 
   await app.register(healthRoutes)
   await app.register(forecastRoutes(deps.forecast ?? forecastSeries))
@@ -98,5 +108,10 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(skuHistoryRoutes, { prefix: '/v1/skus' })
   await app.register(skuListRoutes, { prefix: '/v1/skus' })
   await app.register(historyRoutes, { prefix: '/v1/history' })
+  await app.register(deliveryRoutes, { prefix: '/v1/runs' })
+  await app.register(callbackRoutes, { prefix: '/v1/callbacks' })
+  await app.register(scheduleRoutes, { prefix: '/v1/schedules' })
+  await app.register(skuAccuracyRoutes, { prefix: '/v1/skus' })
+  await app.register(accuracyRoutes)
   return app
 }

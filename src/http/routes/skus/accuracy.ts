@@ -1,0 +1,59 @@
+import { z } from 'zod'
+import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import { ProblemError } from '../../../errors.js'
+import { SkuParams } from '../../../schemas/params.js'
+import { requireErp } from '../../plugins/erp.js'
+import { COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
+
+export const AccuracySummarySchema = z
+  .object({
+    sku: z.string(),
+    count: z.number().int().describe('Forecast periods scored against their actuals'),
+    mae: z.number().nullable().describe('Mean absolute error'),
+    bias: z.number().nullable().describe('Mean error, actual − forecast: positive means demand above the forecast'),
+    mape: z.number().nullable().describe('Mean absolute percentage error over non-zero actuals; null if none'),
+    trackingSignal: z.number().nullable().describe('Sum of errors / MAE'),
+    flagged: z.boolean().describe('|trackingSignal| > limit with at least 4 periods scored'),
+    limit: z.number().describe('Tracking-signal limit (4, common practice)'),
+    updatedAt: z.string(),
+  })
+  .meta({ id: 'AccuracySummary' })
+
+const SkuAccuracy = AccuracySummarySchema.extend({
+  periods: z.array(
+    z.object({
+      period: z.string(),
+      runId: z.string().describe('Run whose forecast was scored'),
+      forecast: z.number(),
+      actual: z.number(),
+      error: z.number().describe('actual − forecast'),
+    }),
+  ),
+})
+
+/** GET /v1/skus/{sku}/accuracy: how the forecasts of a SKU did once actuals arrived. */
+const routes: FastifyPluginAsyncZod = async (app) => {
+  app.get(
+    '/:sku/accuracy',
+    {
+      schema: {
+        tags: ['skus', 'accuracy'],
+        summary: 'Realised forecast accuracy of a SKU',
+        description:
+          "When a SKU's stored history gets actuals for periods its latest forecast covered, each such period is " +
+          'scored once. 404 until a period has been scored.',
+        params: SkuParams,
+        response: { 200: SkuAccuracy, ...COMMON_PROBLEMS, ...NOT_FOUND },
+      },
+    },
+    async (request) => {
+      const erp = requireErp(app)
+      const { sku } = request.params
+      const summary = await erp.accuracy.get(request.tenant, sku)
+      if (!summary) throw new ProblemError('not-found', `No scored forecast for SKU ${sku}`)
+      return { ...summary, periods: await erp.accuracy.periods(request.tenant, sku) }
+    },
+  )
+}
+
+export default routes

@@ -1,0 +1,59 @@
+import { Queue } from 'bullmq'
+import type { Redis } from 'ioredis'
+import type { Config } from '../config.js'
+import { RECORD_TTL_FACTOR } from '../queue/names.js'
+import { SCHEDULE_QUEUE, DEFAULT_MIN_INTERVAL_SECONDS } from '../schedules/names.js'
+import type { FireJob } from '../schedules/fire.js'
+import { ScheduleService } from '../schedules/service.js'
+import { AccuracyStore } from '../storage/accuracy-store.js'
+import { DeliveryStore } from '../storage/delivery-store.js'
+import { RunStore } from '../storage/run-store.js'
+import { ScheduleStore } from '../storage/schedule-store.js'
+import { CallbackStore } from './callback-store.js'
+
+/** What the HTTP routes of the ERP features (callbacks, deliveries, schedules, accuracy) use. */
+export interface ErpServices {
+  readonly callbacks: CallbackStore
+  readonly deliveries: DeliveryStore
+  readonly schedules: ScheduleService
+  readonly accuracy: AccuracyStore
+}
+
+/**
+ * Builds the services over one Redis connection. The schedules queue is
+ * opened on first use, so building an app (e.g. for the OpenAPI document)
+ * touches nothing. `close` closes the queue, not the connection.
+ */
+export function createErpServices(
+  config: Config,
+  redis: Redis,
+  opts: { readonly minIntervalSeconds?: number } = {},
+): { services: ErpServices; close(): Promise<void> } {
+  const prefix = config.redisPrefix
+  const runs = new RunStore(redis, {
+    prefix,
+    resultTtlSeconds: config.resultRetentionSeconds,
+    recordTtlSeconds: config.resultRetentionSeconds * RECORD_TTL_FACTOR,
+  })
+  let queue: Queue<FireJob> | null = null
+  const scheduleQueue = () => {
+    if (queue === null) {
+      queue = new Queue<FireJob>(SCHEDULE_QUEUE, { connection: redis, prefix })
+      queue.on('error', () => {}) // surfaced by the failing call
+    }
+    return queue
+  }
+  return {
+    services: {
+      callbacks: new CallbackStore(redis, prefix),
+      deliveries: new DeliveryStore(redis, { prefix, ttlSeconds: config.resultRetentionSeconds }),
+      schedules: new ScheduleService(new ScheduleStore(redis, prefix), scheduleQueue, {
+        minIntervalSeconds: opts.minIntervalSeconds ?? config.scheduleMinIntervalSeconds ?? DEFAULT_MIN_INTERVAL_SECONDS,
+      }),
+      accuracy: new AccuracyStore(redis, runs, { prefix }),
+    },
+    close: async () => {
+      await (queue as Queue<FireJob> | null)?.close()
+    },
+  }
+}

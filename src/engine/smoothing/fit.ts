@@ -113,6 +113,15 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     return sseLevel(y, alpha, l0, 1)
   }
   let best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: MAX_EVALUATIONS })
+  if (!Number.isFinite(best.value) && kind === 'mul') {
+    // A steep heuristic trend (e.g. after an outlier in the first season) can drive the
+    // multiplicative base below zero for every parameter: retry from a flat trend.
+    let first = 0
+    for (let j = 0; j < m; j++) first += y[j]
+    l0 = l0 > 0 ? l0 : first / m
+    b0 = 0
+    best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: MAX_EVALUATIONS })
+  }
   // Skipped when the fit is already exact (RMS error below 1e-10 of max|y|).
   if (additiveTrend && Number.isFinite(best.value) && best.value > 1e-20 * n) {
     // Additive models: replace the heuristic start by least-squares states for the

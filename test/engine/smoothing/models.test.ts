@@ -121,6 +121,14 @@ describe('smoothingModels: special cases', () => {
       expect(fit.fitted.length).toBe(y.length)
     }
   })
+  // Found by fuzzing: an outlier in the first season gave a steep negative start trend
+  // that made every multiplicative fit non-finite; the fitter now retries from a flat trend.
+  it('multiplicative models survive an outlier at the start', () => {
+    const y = [1054, 96, 96, 99, 100, 99, 104, 96, 104, 96, 103, 101, 101, 870, 98, 99, 104, 105, 105, 100]
+    for (const name of ['holt-winters-multiplicative', 'holt-winters-multiplicative-damped']) {
+      expectFinite(byName(name).fit(y, { seasonLength: 2 }), 4)
+    }
+  })
   it('fitting is deterministic', () => {
     const y = noise(48, 11).map((e, t) => 20 + t + 4 * e)
     for (const s of smoothingModels) {

@@ -93,6 +93,12 @@ describe('run lifecycle through the gateway and a sandboxed worker', { timeout: 
     expect(seen).toEqual(series.map((s) => s.sku).sort())
   })
 
+  it('filters by SKU: one item, or none for a SKU not in the run', async () => {
+    const hit = await gateway.results('acme', run.id, { limit: 5, sku: 'SKU-00044' })
+    expect(hit).toMatchObject({ items: [{ sku: 'SKU-00044' }], nextCursor: null })
+    expect(await gateway.results('acme', run.id, { limit: 5, sku: 'NOT-IN-RUN' })).toEqual({ items: [], nextCursor: null })
+  })
+
   it('rejects a cursor it did not issue', async () => {
     await expect(gateway.results('acme', run.id, { limit: 5, cursor: '***' })).rejects.toMatchObject({
       code: 'invalid-cursor',

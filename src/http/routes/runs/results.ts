@@ -1,4 +1,6 @@
+import { Readable } from 'node:stream'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import { CSV_PAGE_SIZE, prefersCsv, runResultsCsv } from '../../csv-export.js'
 import { RunIdParams, ResultsQuery } from '../../../schemas/params.js'
 import { ResultPageSchema, type ResultPageBody } from '../../../schemas/results.js'
 import { COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
@@ -12,7 +14,11 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       schema: {
         tags: ['runs'],
         summary: 'Page through the results of a run',
-        description: 'Pass nextCursor back as cursor for the next page; nextCursor is null on the last page.',
+        description:
+          'Pass nextCursor back as cursor for the next page; nextCursor is null on the last page. ' +
+          'With Accept: text/csv the whole run (or the one `sku`) streams as CSV instead, one row per SKU and ' +
+          'forecast period: sku, period, value, lower_<level>, upper_<level>, model, metric, holdout_error, error ' +
+          '(limit and cursor are then ignored). Text cells starting with = + - @ are prefixed with \'.',
         params: RunIdParams,
         querystring: ResultsQuery,
         response: { 200: ResultPageSchema, ...COMMON_PROBLEMS, ...NOT_FOUND },
@@ -24,9 +30,17 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       // documents them.
       serializerCompiler: () => (data) => JSON.stringify(data),
     },
-    async (request) => {
+    async (request, reply) => {
       const { runId } = request.params
       const { limit, cursor, sku } = request.query
+      if (prefersCsv(request.headers.accept)) {
+        const run = await app.gateway.get(request.tenant, runId)
+        if (!run) throw runNotFound(runId)
+        const pages = (next: string | undefined) => app.gateway.results(request.tenant, runId, { limit: CSV_PAGE_SIZE, cursor: next, sku })
+        reply.type('text/csv; charset=utf-8').header('content-disposition', `attachment; filename="run-${runId}.csv"`)
+        // A stream bypasses the JSON serializer; the cast only satisfies the typed reply.
+        return reply.send(Readable.from(runResultsCsv(run, pages)) as unknown as ResultPageBody)
+      }
       const page = await app.gateway.results(request.tenant, runId, { limit, cursor, sku })
       if (!page) throw runNotFound(runId)
       return page as ResultPageBody

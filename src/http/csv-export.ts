@@ -1,0 +1,101 @@
+import type { ResultItem, ResultPage, RunRecord } from '../storage/types.js'
+
+/**
+ * Run results as CSV (RFC 4180, CRLF line ends, a header row): one row per
+ * SKU and forecast period with
+ *
+ *   sku, period, value, lower_<L>, upper_<L> (per interval level L of the run),
+ *   model, metric, holdout_error, error
+ *
+ * `holdout_error` is the winner's error on the run's selection metric when
+ * selection used a holdout (empty otherwise or where undefined). A SKU the
+ * engine could not forecast gets one row with only sku and error
+ * (`code: message`).
+ *
+ * Spreadsheet formula injection (OWASP "CSV Injection"; common practice): a
+ * text cell (sku, model, error) starting with `=`, `+`, `-`, `@`, tab or CR is
+ * prefixed with `'`. Numeric cells are written as numbers and never changed,
+ * so `-3.5` stays a negative number.
+ */
+
+/** Results read per round trip while streaming. */
+export const CSV_PAGE_SIZE = 500
+
+/** True when the Accept header ranks text/csv above (or equal to) an explicit application/json. */
+export function prefersCsv(accept: string | undefined): boolean {
+  if (!accept) return false
+  let csv = 0
+  let json = 0
+  for (const part of accept.split(',')) {
+    const [type, ...params] = part.trim().toLowerCase().split(';')
+    const qParam = params.map((p) => p.trim()).find((p) => p.startsWith('q='))
+    const q = qParam === undefined ? 1 : Number(qParam.slice(2))
+    const weight = Number.isFinite(q) ? q : 0
+    if (type === 'text/csv') csv = Math.max(csv, weight)
+    if (type === 'application/json') json = Math.max(json, weight)
+  }
+  return csv > 0 && csv >= json
+}
+
+const FORMULA_START = /^[=+\-@\t\r]/
+
+/** A text cell: neutralised against formula injection, quoted when needed. */
+export function textCell(value: string): string {
+  const safe = FORMULA_START.test(value) ? `'${value}` : value
+  return /[",\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe
+}
+
+/** A numeric cell; empty for null or a non-finite value. */
+export function numberCell(value: number | null | undefined): string {
+  return typeof value === 'number' && Number.isFinite(value) ? String(value) : ''
+}
+
+/** Interval column suffixes of a run, e.g. ['80', '95']. */
+function levelKeys(run: RunRecord): string[] {
+  return [...run.settings.intervals].sort((a, b) => a - b).map(String)
+}
+
+export function csvHeader(run: RunRecord): string {
+  const bounds = levelKeys(run).flatMap((l) => [`lower_${l}`, `upper_${l}`])
+  return ['sku', 'period', 'value', ...bounds, 'model', 'metric', 'holdout_error', 'error'].join(',') + '\r\n'
+}
+
+/** The CSV rows of one result item. */
+export function itemRows(item: ResultItem, run: RunRecord): string {
+  const levels = levelKeys(run)
+  const metric = run.settings.metric
+  if ('error' in item) {
+    const empty = new Array(2 + levels.length * 2 + 3).fill('')
+    return [textCell(item.sku), ...empty, textCell(`${item.error.code}: ${item.error.message}`)].join(',') + '\r\n'
+  }
+  const holdout = item.selection.method === 'holdout' ? numberCell(item.metrics?.[metric]) : ''
+  let out = ''
+  for (const point of item.forecast) {
+    const bounds = levels.flatMap((l) => [numberCell(point.lower[l]), numberCell(point.upper[l])])
+    out +=
+      [textCell(item.sku), textCell(point.period), numberCell(point.value), ...bounds, textCell(item.model), metric, holdout, ''].join(',') +
+      '\r\n'
+  }
+  return out
+}
+
+/**
+ * The whole run as CSV text chunks, one page of results at a time (never the
+ * whole run in memory). `page(cursor)` reads the next page.
+ */
+export async function* runResultsCsv(
+  run: RunRecord,
+  page: (cursor: string | undefined) => Promise<ResultPage | null>,
+): AsyncGenerator<string> {
+  yield csvHeader(run)
+  let cursor: string | undefined
+  for (;;) {
+    const p = await page(cursor)
+    if (p === null) return
+    let chunk = ''
+    for (const item of p.items) chunk += itemRows(item, run)
+    if (chunk !== '') yield chunk
+    if (p.nextCursor === null) return
+    cursor = p.nextCursor
+  }
+}

@@ -1,0 +1,109 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { parse } from 'csv-parse/sync'
+import type { FastifyInstance } from 'fastify'
+import { build } from '../../src/http/app.js'
+import { prefersCsv, textCell } from '../../src/http/csv-export.js'
+import type { ResultItem } from '../../src/storage/types.js'
+import { InMemoryGatewayDouble, KEY_GARDEN, KEY_HEATING, auth, forecastItemFixture, testConfig } from './gateway-double.js'
+
+const REQUEST = { horizon: 2, frequency: 'month', series: [{ sku: 'X', values: [1, 2, 3] }] }
+
+function items(): ResultItem[] {
+  const base = forecastItemFixture('HOSE-25M') as Extract<ResultItem, { model: string }>
+  const two = {
+    ...base,
+    forecast: [
+      { period: '2026-01', value: 10.25, lower: { '80': 8, '95': 7 }, upper: { '80': 12, '95': 13 } },
+      { period: '2026-02', value: -3.5, lower: { '80': -6, '95': -7.125 }, upper: { '80': -1, '95': 0 } },
+    ],
+  }
+  return [
+    two,
+    { ...base, sku: '=HYPERLINK("http://x.example","click")' },
+    { sku: '-SHOVEL, "steel"', error: { code: 'series-too-short', message: 'ses requires at least 2 data points' } },
+  ]
+}
+
+describe('GET /v1/runs/{runId}/results as CSV', () => {
+  let app: FastifyInstance
+  let gateway: InMemoryGatewayDouble
+  let runId: string
+  beforeAll(async () => {
+    gateway = new InMemoryGatewayDouble()
+    app = await build({ config: testConfig(), gateway })
+    runId = (await app.inject({ method: 'POST', url: '/v1/runs', headers: auth(KEY_GARDEN), payload: REQUEST })).json().id
+    gateway.complete(runId, items())
+  })
+  afterAll(() => app.close())
+
+  const csv = (query = '', key = KEY_GARDEN) =>
+    app.inject({ url: `/v1/runs/${runId}/results${query}`, headers: { ...auth(key), accept: 'text/csv' } })
+
+  it('round-trips: parsed back, the values equal the JSON results', async () => {
+    const res = await csv()
+    expect(res.statusCode).toBe(200)
+    expect(res.headers['content-type']).toBe('text/csv; charset=utf-8')
+    const rows = parse(res.body, { columns: true }) as Record<string, string>[]
+    expect(Object.keys(rows[0]!)).toEqual([
+      'sku', 'period', 'value', 'lower_80', 'upper_80', 'lower_95', 'upper_95', 'model', 'metric', 'holdout_error', 'error',
+    ])
+    const json = (await app.inject({ url: `/v1/runs/${runId}/results`, headers: auth(KEY_GARDEN) })).json()
+    const hose = json.items[0]
+    const hoseRows = rows.filter((r) => r.sku === 'HOSE-25M')
+    expect(hoseRows).toHaveLength(hose.forecast.length)
+    hose.forecast.forEach((p: { period: string; value: number; lower: Record<string, number>; upper: Record<string, number> }, i: number) => {
+      const r = hoseRows[i]!
+      expect(r.period).toBe(p.period)
+      expect(Number(r.value)).toBe(p.value)
+      expect(Number(r.lower_80)).toBe(p.lower['80'])
+      expect(Number(r.upper_95)).toBe(p.upper['95'])
+      expect(r.model).toBe(hose.model)
+      expect(r.metric).toBe('mase')
+      expect(Number(r.holdout_error)).toBe(hose.metrics.mase)
+    })
+    // A negative forecast is a number, not a formula: written as is.
+    expect(hoseRows[1]!.value).toBe('-3.5')
+  })
+
+  it('neutralises text cells that a spreadsheet would run as a formula, and writes an error row', async () => {
+    const rows = parse((await csv()).body, { columns: true }) as Record<string, string>[]
+    expect(rows.map((r) => r.sku)).toEqual([
+      'HOSE-25M',
+      'HOSE-25M',
+      `'=HYPERLINK("http://x.example","click")`,
+      `'-SHOVEL, "steel"`,
+    ])
+    expect(rows[3]).toMatchObject({ period: '', value: '', model: '', error: 'series-too-short: ses requires at least 2 data points' })
+  })
+
+  it('honours sku, 404s another tenant, and keeps JSON without Accept: text/csv', async () => {
+    const one = parse((await csv('?sku=HOSE-25M')).body, { columns: true }) as unknown[]
+    expect(one).toHaveLength(2)
+    expect((await csv('', KEY_HEATING)).statusCode).toBe(404)
+    const json = await app.inject({ url: `/v1/runs/${runId}/results`, headers: { ...auth(KEY_GARDEN), accept: 'application/json, text/csv;q=0.5' } })
+    expect(json.headers['content-type']).toMatch(/application\/json/)
+  })
+})
+
+describe('CSV helpers', () => {
+  it('prefersCsv follows q-values', () => {
+    expect(prefersCsv('text/csv')).toBe(true)
+    expect(prefersCsv('application/json;q=0.9, text/csv')).toBe(true)
+    expect(prefersCsv('application/json, text/csv;q=0.5')).toBe(false)
+    expect(prefersCsv('*/*')).toBe(false)
+    expect(prefersCsv(undefined)).toBe(false)
+  })
+
+  it('textCell prefixes formula starts (=, +, -, @, tab, CR) and quotes per RFC 4180', () => {
+    expect(['=1+1', '+1', '-1', '@SUM(A1)', '\tx', '\rx'].map(textCell)).toEqual([
+      "'=1+1",
+      "'+1",
+      "'-1",
+      "'@SUM(A1)",
+      "'\tx",
+      `"'\rx"`,
+    ])
+    expect(textCell('a,"b"')).toBe('"a,""b"""')
+    expect(textCell('HOSE-25M')).toBe('HOSE-25M')
+  })
+})

@@ -77,14 +77,12 @@ export function runSmoothing(series: ArrayLike<number>, setup: SmoothingSetup): 
   if (!(phi > 0 && phi <= 1)) throw new EngineInputError('invalid-option', 'phi must be in (0, 1]', 'phi')
   const kind = setup.seasonal ?? null
   const m = kind ? (setup.seasonLength ?? 0) : 1
+  const init = setup.initial.seasonal
+  if (kind && (!Number.isInteger(m) || m < 2 || !init || init.length !== m)) {
+    throw new EngineInputError('invalid-option', 'seasonal models need seasonLength >= 2 and that many initial seasonal states', 'seasonLength')
+  }
   const s = new Float64Array(m)
-  if (kind) {
-    const init = setup.initial.seasonal
-    if (!Number.isInteger(m) || m < 2 || !init || init.length !== m) {
-      throw new EngineInputError('invalid-option', 'seasonal models need seasonLength >= 2 and that many initial seasonal states', 'seasonLength')
-    }
-    for (let j = 0; j < m; j++) s[j] = init[j]
-  } else s[0] = 0
+  if (kind && init) for (let j = 0; j < m; j++) s[j] = init[j]
   let l = setup.initial.level
   let b = setup.initial.trend ?? 0
   const fitted = new Array<number>(n)

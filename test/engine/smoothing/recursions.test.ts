@@ -53,6 +53,12 @@ describe('runSmoothing: special cases', () => {
         initial: { level: 1, trend: 0, seasonal: [0] },
       }),
     ).toThrow(EngineInputError)
+    expect(() =>
+      runHoltWinters([1, 2, 3, 4], {
+        alpha: 0.5, beta: 0.1, gamma: 0.1, seasonLength: 2.5, seasonal: 'add',
+        initial: { level: 1, trend: 0, seasonal: [0, 0] },
+      }),
+    ).toThrow(EngineInputError)
   })
   it('throws instead of returning non-finite states (multiplicative, zero base)', () => {
     expect(() =>

@@ -30,6 +30,8 @@ const PHI_LO = 0.8
 const PHI_HI = 0.98
 /** Objective evaluations per fit (common practice for small problems; keeps fits cheap). */
 const MAX_EVALUATIONS = 150
+/** First search of the additive trend models, which a second search refines (measured: same SSE). */
+const FIRST_SEARCH_EVALUATIONS_ADDITIVE = 80
 /** Evaluations of the second search after least-squares initial states (additive models). */
 const REFINE_EVALUATIONS = 40
 
@@ -112,7 +114,8 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     if (hasTrend) return sseTrend(y, alpha, beta, phi, l0, b0)
     return sseLevel(y, alpha, l0, 1)
   }
-  let best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: MAX_EVALUATIONS })
+  const firstCap = additiveTrend ? FIRST_SEARCH_EVALUATIONS_ADDITIVE : MAX_EVALUATIONS
+  let best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: firstCap })
   if (!Number.isFinite(best.value) && kind === 'mul') {
     // A steep heuristic trend (e.g. after an outlier in the first season) can drive the
     // multiplicative base below zero for every parameter: retry from a flat trend.

@@ -1,0 +1,156 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { createHash } from 'node:crypto'
+import type { FastifyInstance } from 'fastify'
+import { Redis } from 'ioredis'
+import { build } from '../../src/http/app.js'
+import { createLogger } from '../../src/logger.js'
+import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
+import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import { HistoryStore } from '../../src/storage/history-store.js'
+import { IdempotencyStore } from '../../src/storage/idempotency-store.js'
+import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
+import { runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+
+// Stored histories through the real app, gateway, queue and sandboxed worker against a real Redis.
+const sha256 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex')
+const GARDEN = 'garden-erp-key-0123456789abcdef'
+const HEATING = 'heating-erp-key-0123456789abcdef'
+const as = (key: string) => ({ authorization: `Bearer ${key}` })
+
+let url: string
+let prefix: string
+let app: FastifyInstance
+let gateway: RunMachinery
+let workers: RunWorkers
+let redis: Redis
+
+beforeAll(async () => {
+  url = await redisUrlForTests()
+  prefix = uniquePrefix('erp-history')
+  const config = runsTestConfig(url, prefix, {
+    apiKeys: new Map([
+      ['garden', [sha256(GARDEN)]],
+      ['heating', [sha256(HEATING)]],
+    ]),
+    chunkSize: 4,
+    workerConcurrency: 1,
+  })
+  const logger = createLogger({ level: 'silent' })
+  gateway = createRunGateway(config)
+  workers = startWorkers(config, logger)
+  redis = new Redis(url, { maxRetriesPerRequest: 2 })
+  const histories = new HistoryStore(redis, { prefix })
+  const idempotency = new IdempotencyStore(redis, { prefix })
+  app = await build({ config, gateway, logger, histories, idempotency })
+})
+
+afterAll(async () => {
+  await app?.close()
+  await workers?.close()
+  await gateway?.close()
+  redis?.disconnect()
+  if (url && prefix) await deleteKeys(url, prefix)
+})
+
+const submit = async (payload: object, key = GARDEN, headers: Record<string, string> = {}) =>
+  app.inject({ method: 'POST', url: '/v1/runs', headers: { ...as(key), ...headers }, payload })
+
+async function finishedResults(runId: string, key = GARDEN): Promise<Map<string, Record<string, unknown>>> {
+  const run = await waitFor(async () => {
+    const r = (await app.inject({ url: `/v1/runs/${runId}`, headers: as(key) })).json()
+    return r.status === 'queued' || r.status === 'running' ? undefined : r
+  }, 90_000, `run ${runId}`)
+  expect(run.status).toBe('succeeded')
+  const items = new Map<string, Record<string, unknown>>()
+  let cursor: string | null = null
+  do {
+    const q: string = cursor ? `?limit=100&cursor=${encodeURIComponent(cursor)}` : '?limit=100'
+    const page = (await app.inject({ url: `/v1/runs/${runId}/results${q}`, headers: as(key) })).json()
+    for (const item of page.items) items.set(item.sku, item)
+    cursor = page.nextCursor
+  } while (cursor !== null)
+  return items
+}
+
+const series = syntheticSeries(10, 30, 'SEED').map((s) => ({ ...s, start: '2023-01', frequency: 'month' as const }))
+const tagOf = (i: number) => (i % 2 === 0 ? ['category:garden', 'site:north'] : ['category:garden', 'site:south'])
+
+describe('runs over stored histories', () => {
+  beforeAll(async () => {
+    // Bulk JSON upload of every series, then tags by PUT for a known split.
+    const res = await app.inject({ method: 'POST', url: '/v1/history?mode=replace', headers: as(GARDEN), payload: { series } })
+    expect(res.json().skus).toEqual({ created: 10, updated: 0, rejected: 0 })
+    for (const [i, s] of series.entries()) {
+      const put = await app.inject({
+        method: 'PUT',
+        url: `/v1/skus/${s.sku}/history`,
+        headers: as(GARDEN),
+        payload: { frequency: 'month', start: s.start, values: s.values, tags: tagOf(i) },
+      })
+      expect(put.statusCode).toBe(200)
+    }
+  })
+
+  it('a run by skus gives the same results as the same series inline', async () => {
+    const skus = series.slice(0, 5).map((s) => s.sku)
+    const inline = await submit({ horizon: 4, series: series.slice(0, 5) })
+    const stored = await submit({ horizon: 4, skus })
+    expect(inline.statusCode).toBe(202)
+    expect(stored.statusCode).toBe(202)
+    expect(stored.json().progress.total).toBe(5)
+    const a = await finishedResults(inline.json().id)
+    const b = await finishedResults(stored.json().id)
+    expect([...b.keys()].sort()).toEqual([...skus].sort())
+    for (const sku of skus) expect(b.get(sku)).toEqual(a.get(sku))
+  })
+
+  it('selects by tags (every tag must match) and all, across several chunks', async () => {
+    const north = await finishedResults((await submit({ horizon: 2, tags: ['site:north', 'category:garden'] })).json().id)
+    expect([...north.keys()].sort()).toEqual(series.filter((_, i) => i % 2 === 0).map((s) => s.sku))
+    const all = await finishedResults((await submit({ horizon: 2, all: true })).json().id)
+    expect(all.size).toBe(10)
+  })
+
+  it('refuses unknown SKUs with one error each, an empty selection, and two sources at once', async () => {
+    const unknown = await submit({ horizon: 2, skus: [series[0]!.sku, 'NO-SUCH', 'ALSO-NOT'] })
+    expect(unknown.statusCode).toBe(400)
+    expect(unknown.json().errors).toEqual([
+      { path: 'skus[1]', message: 'no stored history for SKU "NO-SUCH"' },
+      { path: 'skus[2]', message: 'no stored history for SKU "ALSO-NOT"' },
+    ])
+    const empty = await submit({ horizon: 2, tags: ['site:east'] })
+    expect(empty.statusCode).toBe(400)
+    expect(empty.json().errors).toEqual([{ path: 'tags', message: 'the selection matches no stored history' }])
+    const both = await submit({ horizon: 2, all: true, skus: [series[0]!.sku] })
+    expect(both.statusCode).toBe(400)
+    expect(both.json().errors).toEqual([{ path: 'all', message: 'give exactly one of series, skus, tags or all (got skus, all)' }])
+  })
+
+  it('keeps tenants apart: another tenant cannot select these SKUs and has nothing under all', async () => {
+    const res = await submit({ horizon: 2, skus: [series[0]!.sku] }, HEATING)
+    expect(res.statusCode).toBe(400)
+    expect((await submit({ horizon: 2, all: true }, HEATING)).statusCode).toBe(400)
+    expect((await app.inject({ url: `/v1/skus/${series[0]!.sku}/history`, headers: as(HEATING) })).statusCode).toBe(404)
+  })
+
+  it('a run after appending new actuals sees them (the naive forecast repeats the last appended value)', async () => {
+    const sku = series[1]!.sku
+    // The stored history ends 2025-06 (30 months from 2023-01); append July and August 2025 as daily rows.
+    const csv = `sku,period,quantity\n${sku},2025-07-03,40\n${sku},2025-07-21,2\n${sku},2025-08-11,17.5\n`
+    const up = await app.inject({ method: 'POST', url: '/v1/history?mode=append', headers: { ...as(GARDEN), 'content-type': 'text/csv' }, payload: csv })
+    expect(up.json().rows).toEqual({ accepted: 3, rejected: 0 })
+    const items = await finishedResults((await submit({ horizon: 2, skus: [sku], models: ['naive'] })).json().id)
+    const item = items.get(sku) as { forecast: { period: string; value: number }[] }
+    expect(item.forecast.map((p) => p.period)).toEqual(['2025-09', '2025-10'])
+    expect(item.forecast[0]!.value).toBe(17.5)
+  })
+
+  it('replays a run submitted twice with one Idempotency-Key: same run, no second one', async () => {
+    const first = await submit({ horizon: 2, tags: ['site:south'] }, GARDEN, { 'idempotency-key': 'nightly-2025-08-31' })
+    const again = await submit({ horizon: 2, tags: ['site:south'] }, GARDEN, { 'idempotency-key': 'nightly-2025-08-31' })
+    expect(again.headers['idempotent-replayed']).toBe('true')
+    expect(again.json().id).toBe(first.json().id)
+    const changed = await submit({ horizon: 3, tags: ['site:south'] }, GARDEN, { 'idempotency-key': 'nightly-2025-08-31' })
+    expect(changed.statusCode).toBe(422)
+  })
+})

@@ -8,7 +8,8 @@ import { createLogger } from './logger.js'
 import { assertRedisReachable, gatewayConnection } from './queue/connection.js'
 import { createRunGateway } from './queue/gateway.js'
 import { startWorkers, type RunWorkers } from './queue/worker.js'
-import { HistoryStore } from './storage/history-store.js'
+import { AccuracyTrackingHistoryStore } from './storage/accuracy-hook.js'
+import { createErpServices } from './webhooks/services.js'
 import { IdempotencyStore } from './storage/idempotency-store.js'
 
 /**
@@ -52,12 +53,16 @@ async function main(): Promise<void> {
   // One connection for the API's own keys: rate-limit counters, stored histories, idempotency answers.
   const apiRedis = gatewayConnection(config.redisUrl)
   apiRedis.on('error', (err) => logger.warn({ err }, 'API Redis connection error'))
-  const histories = new HistoryStore(apiRedis, { prefix: config.redisPrefix })
+  const erp = createErpServices(config, apiRedis)
+  // Uploads score earlier forecasts against the actuals they bring (GET /v1/skus/{sku}/accuracy).
+  const histories = new AccuracyTrackingHistoryStore(apiRedis, { prefix: config.redisPrefix }, erp.services.accuracy, (err, tenant, sku) =>
+    logger.warn({ err, tenant, skuLength: sku.length }, 'could not score actuals against the latest forecast'),
+  )
   const idempotency = new IdempotencyStore(apiRedis, { prefix: config.redisPrefix })
   const metrics = createServiceMetrics()
   collectDefaultMetrics({ register: metrics.registry, prefix: 'almanac_process_' })
 
-  const app = await build({ config, gateway, logger, rateLimitRedis: apiRedis, metrics, histories, idempotency })
+  const app = await build({ config, gateway, logger, rateLimitRedis: apiRedis, metrics, histories, idempotency, erp: erp.services })
   const workers: RunWorkers | null = config.runWorker ? startWorkers(config, logger) : null
 
   let stopping = false
@@ -69,6 +74,7 @@ async function main(): Promise<void> {
       await app.close()
       await workers?.close()
       await gateway.close()
+      await erp.close()
       await apiRedis.quit().catch(() => undefined)
     }
     closeAll()

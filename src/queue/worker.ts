@@ -9,6 +9,9 @@ import { ChunkJob } from './payload.js'
 import type { SandboxContext } from './processors/chunk.js'
 import { createRunEventEmitter } from '../webhooks/emitter.js'
 import { startWebhookWorker } from '../webhooks/worker.js'
+import { startScheduleWorker } from '../schedules/worker.js'
+import { submitViaGateway } from '../schedules/submit.js'
+import { createRunGateway } from './gateway.js'
 
 export interface RunWorkers {
   readonly worker: Worker
@@ -40,6 +43,12 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
   const concurrency = config.workerConcurrency > 0 ? config.workerConcurrency : availableParallelism()
   const events = createRunEventEmitter(storeRedis, config.redisPrefix)
   const webhooks = startWebhookWorker(config, logger, storeOptions(config))
+  // Schedule firings submit runs over stored histories through a gateway of their own.
+  const scheduleGateway = createRunGateway(config)
+  const schedules = startScheduleWorker(config, logger, {
+    submit: submitViaGateway(scheduleGateway),
+    getRun: (tenant, runId) => store.getRun(tenant, runId),
+  })
   const sandbox: SandboxContext = { redisUrl: config.redisUrl, ...storeOptions(config), logLevel: config.logLevel }
 
   const worker = new Worker(CHUNK_QUEUE, new URL('./processors/chunk-entry.mjs', import.meta.url), {
@@ -78,6 +87,8 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
     concurrency,
     close: async () => {
       await worker.close()
+      await schedules.close()
+      await scheduleGateway.close()
       await webhooks.close()
       await events.close()
       await Promise.allSettled([connection.quit(), storeRedis.quit()])

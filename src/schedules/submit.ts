@@ -1,24 +1,14 @@
-import type { RunRequest, SeriesItem } from '../schemas/run.js'
-import type { HistoryStore } from '../storage/history-store.js'
-import { RunInputError, type RunGateway } from '../storage/types.js'
+import type { RunGateway } from '../storage/types.js'
 import type { SubmitScheduled } from './fire.js'
 
-/** Histories read per batch while collecting a selection. */
-const BATCH = 1000
-
 /**
- * Submits a scheduled run over stored histories: the selection's histories
- * become the run's series (with their own frequency and first period).
- * @throws RunInputError when the selection matches no stored history.
+ * Submits a scheduled run over stored histories through the gateway (the
+ * same path as POST /v1/runs with skus, tags or all).
+ * @throws RunInputError('empty-selection') when the selection matches no history.
  */
-export function submitFromHistories(histories: Pick<HistoryStore, 'select'>, gateway: Pick<RunGateway, 'submit'>): SubmitScheduled {
-  return async (tenant, settings, selection) => {
-    const series: SeriesItem[] = []
-    for await (const batch of histories.select(tenant, selection, BATCH)) {
-      for (const h of batch) series.push({ sku: h.sku, values: [...h.values], start: h.start, frequency: h.frequency })
-    }
-    if (series.length === 0) throw new RunInputError('invalid-option', 'the selection matches no stored history', 'selection')
-    const request: RunRequest = { ...settings, series }
-    return gateway.submit(tenant, request)
+export function submitViaGateway(gateway: Pick<RunGateway, 'submitSelection'>): SubmitScheduled {
+  return (tenant, settings, selection) => {
+    if (!gateway.submitSelection) throw new Error('this gateway cannot run over stored histories')
+    return gateway.submitSelection(tenant, settings, selection)
   }
 }

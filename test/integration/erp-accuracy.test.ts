@@ -1,0 +1,132 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { FastifyInstance } from 'fastify'
+import { Redis } from 'ioredis'
+import { build } from '../../src/http/app.js'
+import { createLogger } from '../../src/logger.js'
+import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
+import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import { AccuracyTrackingHistoryStore } from '../../src/storage/accuracy-hook.js'
+import { createErpServices } from '../../src/webhooks/services.js'
+import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
+import { runsTestConfig, waitFor } from '../queue/fixtures.js'
+
+// Accuracy tracking end to end: stored histories -> run -> new actuals uploaded -> scored.
+let url: string
+let prefix: string
+let app: FastifyInstance
+let gateway: RunMachinery
+let workers: RunWorkers
+let redis: Redis
+let erp: ReturnType<typeof createErpServices>
+const hookErrors: unknown[] = []
+
+beforeAll(async () => {
+  url = await redisUrlForTests()
+  prefix = uniquePrefix('erp-accuracy')
+  const config = runsTestConfig(url, prefix, { chunkSize: 5, workerConcurrency: 1 })
+  const logger = createLogger({ level: 'silent' })
+  redis = new Redis(url, { maxRetriesPerRequest: 2 })
+  gateway = createRunGateway(config)
+  workers = startWorkers(config, logger)
+  erp = createErpServices(config, redis)
+  const histories = new AccuracyTrackingHistoryStore(redis, { prefix }, erp.services.accuracy, (err) => hookErrors.push(err))
+  app = await build({ config, gateway, logger, histories, erp: erp.services })
+})
+
+afterAll(async () => {
+  await app?.close()
+  await workers?.close()
+  await gateway?.close()
+  await erp?.close()
+  redis?.disconnect()
+  if (url && prefix) await deleteKeys(url, prefix)
+})
+
+const put = (sku: string, values: (number | null)[]) =>
+  app.inject({ method: 'PUT', url: `/v1/skus/${sku}/history`, payload: { frequency: 'month', start: '2024-01', values } })
+
+const flat = (level: number) => Array.from({ length: 24 }, () => level)
+
+describe('accuracy tracking', { timeout: 120_000 }, () => {
+  beforeAll(async () => {
+    // Constant histories: every candidate gives the same flat line, so the forecast is the level
+    // (2026-01 .. 2026-06 after 24 months from 2024-01).
+    expect((await put('HOSE-BIASED', flat(100))).statusCode).toBe(201)
+    expect((await put('HOSE-STEADY', flat(50))).statusCode).toBe(201)
+    const res = await app.inject({ method: 'POST', url: '/v1/runs', payload: { horizon: 6, skus: ['HOSE-BIASED', 'HOSE-STEADY'] } })
+    expect(res.statusCode).toBe(202)
+    await waitFor(async () => {
+      const r = await gateway.get('default', res.json().id)
+      return r?.status === 'succeeded' ? r : undefined
+    }, 60_000, 'the run')
+  })
+
+  it('nothing is scored before actuals arrive', async () => {
+    const f = (await app.inject({ url: '/v1/skus/HOSE-BIASED/forecast' })).json()
+    expect(f.forecast.map((p: { period: string; value: number }) => [p.period, p.value])).toEqual(
+      ['2026-01', '2026-02', '2026-03', '2026-04', '2026-05', '2026-06'].map((p) => [p, 100]),
+    )
+    expect((await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).statusCode).toBe(404)
+  })
+
+  // Hand-computed: forecast 100 for each month; actuals 130, 125, 140, 135, 120 give errors
+  // (actual - forecast) +30, +25, +40, +35, +20: sum 150, MAE 30, bias +30, TS = 150 / 30 = 5 > 4.
+  // MAPE = 100 * (0.230769 + 0.2 + 0.285714 + 0.259259 + 0.166667) / 5 = 22.848 %.
+  it('scores new actuals against the latest forecast and flags a biased SKU', async () => {
+    expect((await put('HOSE-BIASED', [...flat(100), 130, 125, 140, 135, 120])).statusCode).toBe(200)
+    const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
+    expect(acc).toMatchObject({ sku: 'HOSE-BIASED', count: 5, mae: 30, bias: 30, trackingSignal: 5, flagged: true, limit: 4 })
+    expect(acc.mape).toBeCloseTo(22.848, 3)
+    expect(acc.periods.map((p: { period: string; error: number }) => [p.period, p.error])).toEqual([
+      ['2026-01', 30],
+      ['2026-02', 25],
+      ['2026-03', 40],
+      ['2026-04', 35],
+      ['2026-05', 20],
+    ])
+    expect(hookErrors).toEqual([])
+  })
+
+  // Errors +2, -2, +1, -1, 0: sum 0, TS 0.
+  it('leaves an unbiased SKU off the exception list', async () => {
+    await put('HOSE-STEADY', [...flat(50), 52, 48, 51, 49, 50])
+    const acc = (await app.inject({ url: '/v1/skus/HOSE-STEADY/accuracy' })).json()
+    expect(acc).toMatchObject({ count: 5, bias: 0, trackingSignal: 0, flagged: false })
+    expect(acc.mae).toBeCloseTo(1.2, 12)
+    const ex = (await app.inject({ url: '/v1/accuracy/exceptions' })).json()
+    expect(ex.items.map((i: { sku: string }) => i.sku)).toEqual(['HOSE-BIASED'])
+    expect(ex.nextCursor).toBeNull()
+  })
+
+  it('does not count a period twice when the same actuals are uploaded again', async () => {
+    await put('HOSE-BIASED', [...flat(100), 130, 125, 140, 135, 120])
+    await app.inject({
+      method: 'POST',
+      url: '/v1/history?frequency=month',
+      payload: { mode: 'append', series: [{ sku: 'HOSE-BIASED', start: '2026-01', values: [130, 125, 140, 135, 120] }] },
+    })
+    const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
+    expect(acc).toMatchObject({ count: 5, trackingSignal: 5 })
+  })
+
+  // Correcting 2026-05 from 120 to 80: errors +30, +25, +40, +35, -20: sum 110, MAE 30, TS 3.67, no longer flagged.
+  it('a corrected actual replaces the old one and the SKU leaves the list', async () => {
+    await app.inject({
+      method: 'POST',
+      url: '/v1/history?frequency=month',
+      payload: { mode: 'append', series: [{ sku: 'HOSE-BIASED', start: '2026-05', values: [80] }] },
+    })
+    const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
+    expect(acc.count).toBe(5)
+    expect(acc.trackingSignal).toBeCloseTo(110 / 30, 12)
+    expect(acc.flagged).toBe(false)
+    expect((await app.inject({ url: '/v1/accuracy/exceptions' })).json().items).toEqual([])
+  })
+
+  it('records nothing for a SKU without a forecast, and pages the list with a cursor', async () => {
+    const out = await erp.services.accuracy.recordActuals('default', 'NO-RUN', 'month', [{ period: '2026-01', value: 3 }])
+    expect(out).toEqual({ added: 0, corrected: 0, reason: 'no-forecast', summary: null })
+    const bad = await app.inject({ url: '/v1/accuracy/exceptions?cursor=not-ours!' })
+    expect(bad.statusCode).toBe(400)
+  })
+})

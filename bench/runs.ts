@@ -108,7 +108,7 @@ try {
     // > 1 means the run beat one thread running the engine alone.
     speedupOverOneThread: Number(((engineMsPerSeries * count) / 1000 / totalS).toFixed(2)),
     redisBytesPerSku: Math.round((itemsBytes + skusBytes) / count),
-    itemJsonBytesMedian: sorted[Math.floor(sorted.length / 2)],
+    storedItemBytesMedian: sorted[Math.floor(sorted.length / 2)],
   }
   process.stdout.write(`${JSON.stringify(out, null, 2)}\n`)
 } finally {

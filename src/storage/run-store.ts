@@ -3,13 +3,12 @@ import { RunSettings, SeriesItem, type RunRequest } from '../schemas/run.js'
 import { z } from 'zod'
 import {
   decodeCursor,
-  decodeItem,
   decodeRunRecord,
   encodeCursor,
-  encodeItem,
   newRunFields,
   type ChunkTally,
 } from './codec.js'
+import { loadItem, storeItem } from './item-codec.js'
 import { latestKey, runKeys, isValidRunId, isValidTenant } from './keys.js'
 import { defineRunScripts, type RunScripts } from './scripts.js'
 import { RunInputError, type LatestForecast, type ResultItem, type ResultPage, type RunRecord } from './types.js'
@@ -122,7 +121,7 @@ export class RunStore {
     now: Date,
   ): Promise<CommitOutcome> {
     const k = this.keys(tenant, runId)
-    const args: (string | number)[] = [
+    const args: (string | number | Buffer)[] = [
       chunkIndex,
       now.toISOString(),
       this.opts.resultTtlSeconds,
@@ -134,7 +133,7 @@ export class RunStore {
       tally.wins.size,
     ]
     for (const [model, n] of tally.wins) args.push(model, n)
-    for (const item of items) args.push(item.sku, encodeItem(item))
+    for (const item of items) args.push(item.sku, storeItem(item))
     return (await this.scripts.commitChunk([k.run, k.chunks, k.skus, k.items], args)) as CommitOutcome
   }
 
@@ -174,8 +173,8 @@ export class RunStore {
     const k = this.keys(tenant, runId)
     if (!(await this.redis.exists(k.run))) return null
     if (page.sku !== undefined) {
-      const json = await this.redis.hget(k.items, page.sku)
-      return { items: json === null ? [] : [decodeItem(page.sku, json)], nextCursor: null }
+      const stored = await this.redis.hgetBuffer(k.items, page.sku)
+      return { items: stored === null ? [] : [loadItem(page.sku, stored)], nextCursor: null }
     }
     let from = '-'
     if (page.cursor !== undefined) {
@@ -186,11 +185,11 @@ export class RunStore {
     const limit = Math.max(1, Math.floor(page.limit))
     const skus = await this.redis.zrangebylex(k.skus, from, '+', 'LIMIT', 0, limit + 1)
     const pageSkus = skus.slice(0, limit)
-    const jsons = pageSkus.length > 0 ? await this.redis.hmget(k.items, ...pageSkus) : []
+    const stored = pageSkus.length > 0 ? await this.redis.hmgetBuffer(k.items, ...pageSkus) : []
     const items: ResultItem[] = []
     pageSkus.forEach((sku, i) => {
-      const json = jsons[i]
-      if (json != null) items.push(decodeItem(sku, json))
+      const value = stored[i]
+      if (value != null) items.push(loadItem(sku, value))
     })
     const last = pageSkus[pageSkus.length - 1]
     return { items, nextCursor: skus.length > limit && last !== undefined ? encodeCursor(last) : null }
@@ -203,8 +202,8 @@ export class RunStore {
     if (pointer === null) return null
     const [, runId, producedAt] = pointer.split('|')
     if (!runId || !producedAt || !isValidRunId(runId)) return null
-    const json = await this.redis.hget(this.keys(tenant, runId).items, sku)
-    return json === null ? null : { runId, producedAt, item: decodeItem(sku, json) }
+    const stored = await this.redis.hgetBuffer(this.keys(tenant, runId).items, sku)
+    return stored === null ? null : { runId, producedAt, item: loadItem(sku, stored) }
   }
 }
 

@@ -113,12 +113,12 @@ return changed
 
 export interface RunScripts {
   startChunk(run: string, nowIso: string): Promise<[string, string, string] | null>
-  commitChunk(keys: readonly [string, string, string, string], args: readonly (string | number)[]): Promise<string>
+  commitChunk(keys: readonly [string, string, string, string], args: readonly (string | number | Buffer)[]): Promise<string>
   endRun(keys: readonly [string, string, string, string], args: readonly (string | number)[]): Promise<string | null>
   updateLatest(key: string, args: readonly (string | number)[]): Promise<number>
 }
 
-type Call = (...args: (string | number)[]) => Promise<unknown>
+type Call = (...args: (string | number | Buffer)[]) => Promise<unknown>
 
 /**
  * Registers the scripts on a connection (ioredis sends EVALSHA and falls back

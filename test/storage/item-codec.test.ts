@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { forecastSeries } from '../../src/engine/index.js'
-import { decodeItem, encodeItem } from '../../src/storage/item-codec.js'
+import { decodeItem, encodeItem, loadItem, storeItem } from '../../src/storage/item-codec.js'
 import { toResultItem } from '../../src/storage/codec.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import { syntheticSeries } from '../queue/fixtures.js'
@@ -64,6 +64,20 @@ describe('stored result items', () => {
       const { sku: _sku, ...rest } = item
       expect(encodeItem(item).length).toBeLessThan(JSON.stringify(rest).length / 2)
     }
+  })
+
+  it('are stored deflated, about a third of their JSON, and load back unchanged', () => {
+    for (const item of engineItems()) {
+      const stored = storeItem(item)
+      expect(stored[0]).toBe(0x01)
+      expect(stored.length).toBeLessThan(encodeItem(item).length / 2)
+      expect(loadItem(item.sku, stored)).toEqual(decodeItem(item.sku, encodeItem(item)))
+    }
+  })
+
+  it('load plain JSON values too', () => {
+    const item: ResultItem = { sku: 'A', error: { code: 'empty-series', message: 'no data' } }
+    expect(loadItem('A', Buffer.from(encodeItem(item)))).toEqual(item)
   })
 
   it('refuse a format they do not know', () => {

@@ -16,7 +16,7 @@ import { covered, mase, mean, median, seasonalNaiveScale, smape } from './accura
 import { perModel, type GroupScore } from './accuracy-per-model.js'
 
 interface MethodScore { mase: number; smape: number; in80?: number; in95?: number; n: number }
-interface SeriesRow { name: string; model: string; etsModel: string; ms: number; scores: Record<Method, MethodScore> }
+interface SeriesRow { name: string; group: string; model: string; etsModel: string; ms: number; scores: Record<Method, MethodScore> }
 type Method = 'almanac' | 'seasonalNaive' | 'ets'
 const METHODS: readonly Method[] = ['almanac', 'seasonalNaive', 'ets']
 const LABEL: Record<Method, string> = { almanac: 'Almanac (auto)', seasonalNaive: 'seasonal naive', ets: 'statsmodels auto-ETS' }
@@ -72,7 +72,7 @@ for (const s of fixture.series) {
     l95: points.map((p) => p.lower['95']), u95: points.map((p) => p.upper['95']),
   })
   rows.push({
-    name: s.name, model: result.model, etsModel: s.ets.model, ms,
+    name: s.name, group: s.seasonLength === 12 ? 'monthly' : s.seasonLength === 4 ? 'quarterly' : 'non-seasonal', model: result.model, etsModel: s.ets.model, ms,
     scores: {
       almanac,
       seasonalNaive: score(s, scale, s.seasonalNaive),
@@ -130,6 +130,12 @@ if (asJson) {
       `${r.scores.ets.mase.toFixed(3).padStart(8)} | ${r.ms.toFixed(1).padStart(4)} |`)
   }
   for (const f of failures) out(`FAILED ${f.name}: ${f.error}`)
+  out()
+  for (const group of ['monthly', 'quarterly', 'non-seasonal']) {
+    const g = rows.filter((r) => r.group === group)
+    out(`${group.padEnd(12)} (${String(g.length).padStart(2)} series): mean MASE Almanac ${mean(g.map((r) => r.scores.almanac.mase)).toFixed(3)}, ` +
+      `seasonal naive ${mean(g.map((r) => r.scores.seasonalNaive.mase)).toFixed(3)}, auto-ETS ${mean(g.map((r) => r.scores.ets.mase)).toFixed(3)}`)
+  }
   out()
   out(`Almanac beats auto-ETS on MASE in ${wins} of ${rows.length} series; ` +
     `AvgRelMAE Almanac/ETS (geometric mean of per-series ratios) ${avgRelMae.toFixed(3)}.`)

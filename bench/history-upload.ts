@@ -1,0 +1,100 @@
+/**
+ * History upload benchmark: streamed CSV uploads of growing size through
+ * POST /v1/history (app.inject, real Redis). Prints rows per second of a
+ * plain upload, then repeats it measuring the live heap: every 50 ms a forced
+ * full GC, then heapUsed, so garbage does not count. If the upload were
+ * buffered, the live-heap peak would rise with the upload size; streamed, it
+ * stays near the per-SKU aggregates (500 SKUs x months here).
+ * Invented data (daily rows of 500 SKUs summed into months), for measuring only.
+ *
+ *   REDIS_URL=redis://127.0.0.1:6379 npm run bench:history -- 200000 800000 1600000
+ */
+import { randomBytes } from 'node:crypto'
+import { Readable } from 'node:stream'
+import { Redis } from 'ioredis'
+import type { Config } from '../src/config.js'
+import { build } from '../src/http/app.js'
+import { HistoryStore } from '../src/storage/history-store.js'
+import type { RunGateway } from '../src/storage/types.js'
+
+const sizes = process.argv.slice(2).map(Number).filter((n) => n > 0)
+const rowCounts = sizes.length > 0 ? sizes : [200_000, 800_000, 1_600_000]
+const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'
+const prefix = `bench-history-${randomBytes(4).toString('hex')}`
+const SKUS = 500
+
+const config: Config = {
+  port: 0,
+  host: '127.0.0.1',
+  redisUrl,
+  redisPrefix: prefix,
+  apiKeys: new Map(),
+  chunkSize: 500,
+  workerConcurrency: 1,
+  runWorker: false,
+  resultRetentionSeconds: 3600,
+  bodyLimitBytes: 1024 * 1024 * 1024,
+  syncMaxSeries: 100,
+  rateLimitMax: 1_000_000,
+  rateLimitWindowMs: 60_000,
+  logLevel: 'silent',
+}
+const unused = (): never => {
+  throw new Error('the history benchmark never calls the run gateway')
+}
+const gateway: RunGateway = { submit: unused, get: unused, results: unused, cancel: unused, latestForecast: unused, ping: unused, stats: unused }
+
+function* csv(rows: number): Generator<string> {
+  yield 'sku,period,quantity\n'
+  const days = Math.ceil(rows / SKUS)
+  for (let d = 0; d < days; d++) {
+    const date = new Date(Date.UTC(2000, 0, 1) + d * 86_400_000).toISOString().slice(0, 10)
+    let chunk = ''
+    for (let i = 0; i < SKUS && d * SKUS + i < rows; i++) chunk += `B-${i},${date},${(i + d) % 7}\n`
+    yield chunk
+  }
+}
+
+const gc = (globalThis as { gc?: () => void }).gc
+const redis = new Redis(redisUrl, { maxRetriesPerRequest: 2 })
+const app = await build({ config, gateway, histories: new HistoryStore(redis, { prefix }) })
+try {
+  if (!gc) throw new Error('run with node --expose-gc (npm run bench:history does)')
+  process.stdout.write('rows        MB     ms  rows/s   peak live heap growth MB\n')
+  for (const rows of rowCounts) {
+    let bytes = 0
+    for (const c of csv(rows)) bytes += Buffer.byteLength(c)
+    const upload = () =>
+      app.inject({
+        method: 'POST',
+        url: '/v1/history?mode=replace',
+        headers: { 'content-type': 'text/csv' },
+        payload: Readable.from(csv(rows)),
+      })
+    const started = performance.now()
+    const res = await upload()
+    const ms = performance.now() - started
+    if (res.statusCode !== 200) throw new Error(`upload failed: ${res.statusCode} ${res.body.slice(0, 200)}`)
+    gc()
+    const base = process.memoryUsage().heapUsed
+    let peak = 0
+    const sampler = setInterval(() => {
+      gc()
+      peak = Math.max(peak, process.memoryUsage().heapUsed - base)
+    }, 50)
+    await upload()
+    clearInterval(sampler)
+    process.stdout.write(
+      `${String(rows).padEnd(10)} ${(bytes / 1e6).toFixed(1).padStart(5)} ${ms.toFixed(0).padStart(6)} ${(rows / (ms / 1000)).toFixed(0).padStart(7)}   ${(peak / 1e6).toFixed(1).padStart(8)}\n`,
+    )
+  }
+} finally {
+  await app.close()
+  let cursor = '0'
+  do {
+    const [next, keys] = await redis.scan(cursor, 'MATCH', `${prefix}*`, 'COUNT', 1000)
+    cursor = next
+    if (keys.length > 0) await redis.unlink(...keys)
+  } while (cursor !== '0')
+  redis.disconnect()
+}

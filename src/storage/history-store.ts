@@ -65,7 +65,8 @@ for i = 1, nNew do redis.call('ZADD', KEYS[3 + i], 0, ARGV[1]) end
 return 1
 `
 const PUT_COMMAND = 'almanacPutHistory'
-const MAX_ATTEMPTS = 5
+/** Rounds of read-merge-write per SKU before a SKU is reported as contended (with a short random pause between). */
+const MAX_ATTEMPTS = 10
 
 export class HistoryStore implements HistoryWriter {
   constructor(
@@ -128,6 +129,7 @@ export class HistoryStore implements HistoryWriter {
     const results: ({ outcome: 'created' | 'updated' } | { reason: string })[] = new Array(batch.length)
     let todo = batch.map((_, i) => i)
     for (let attempt = 0; attempt < MAX_ATTEMPTS && todo.length > 0; attempt++) {
+      if (attempt > 0) await new Promise((r) => setTimeout(r, Math.random() * 5 * attempt))
       const skus = todo.map((i) => batch[i]!.sku)
       const [metas, datas] = await Promise.all([this.redis.hmget(k.meta, ...skus), this.redis.hmget(k.data, ...skus)])
       const pipe = this.redis.pipeline()

@@ -17,6 +17,9 @@ export function toProblem(err: unknown, ctx: { bodyLimitBytes: number }): Proble
     return new ProblemError('validation-failed', err.message, [{ path: err.field, message: err.message }])
   }
   if (Array.isArray(e.validation)) return validationProblem(e.validation, e.validationContext ?? 'body')
+  if (isStoreUnavailable(err)) {
+    return new ProblemError('not-ready', 'The run store is not reachable; retry shortly', undefined, { 'retry-after': '5' })
+  }
   switch (e.code) {
     case 'FST_ERR_CTP_INVALID_JSON_BODY':
       return new ProblemError('malformed-json', 'The request body is not valid JSON')
@@ -36,6 +39,24 @@ export function toProblem(err: unknown, ctx: { bodyLimitBytes: number }): Proble
     return new ProblemError('bad-request', typeof e.message === 'string' ? e.message : undefined)
   }
   return new ProblemError('internal')
+}
+
+const CONNECTION_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'EHOSTUNREACH', 'ENOTFOUND'])
+
+/**
+ * True for errors of a Redis connection that is down or reconnecting (ioredis
+ * gives up a command after maxRetriesPerRequest, or refuses it when offline):
+ * a 503 the client may retry, not a 500.
+ */
+export function isStoreUnavailable(err: unknown): boolean {
+  if (!(err instanceof Error)) return false
+  const code = (err as { code?: unknown }).code
+  return (
+    err.name === 'MaxRetriesPerRequestError' ||
+    err.message === 'Connection is closed.' ||
+    err.message.startsWith("Stream isn't writeable") ||
+    (typeof code === 'string' && CONNECTION_CODES.has(code))
+  )
 }
 
 function validationProblem(issues: readonly unknown[], part: string): ProblemError {

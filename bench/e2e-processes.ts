@@ -1,0 +1,80 @@
+/**
+ * Service processes for the end-to-end benchmarks: the API (src/server.ts with
+ * RUN_WORKER=false) and chunk worker processes (src/worker-main.ts), started as
+ * children with a benchmark-only Redis prefix, their peak memory read from
+ * /proc/<pid>/status (VmHWM; worker threads share their process's figure).
+ */
+import { spawn, type ChildProcess } from 'node:child_process'
+import { readFileSync } from 'node:fs'
+import { fileURLToPath } from 'node:url'
+
+const ROOT = fileURLToPath(new URL('..', import.meta.url))
+
+export interface ServiceProcess {
+  readonly name: string
+  readonly child: ChildProcess
+  /** Last lines of stderr and stdout, for the message when the process dies. */
+  readonly tail: string[]
+}
+
+/**
+ * Starts `node --import tsx <entry>` (node itself, not the tsx wrapper, so the
+ * pid is the process that does the work).
+ */
+export function startService(name: string, entry: string, env: Record<string, string>, extraNodeArgs: string[] = []): ServiceProcess {
+  const child = spawn(process.execPath, [...extraNodeArgs, '--import', 'tsx', entry], {
+    cwd: ROOT,
+    env: { ...process.env, ...env },
+    stdio: ['ignore', 'pipe', 'pipe'],
+  })
+  const tail: string[] = []
+  const keep = (chunk: Buffer) => {
+    tail.push(...chunk.toString('utf8').split('\n').filter((l) => l.length > 0))
+    if (tail.length > 40) tail.splice(0, tail.length - 40)
+  }
+  child.stdout?.on('data', keep)
+  child.stderr?.on('data', keep)
+  return { name, child, tail }
+}
+
+/** Resolves once GET /readyz answers 200; rejects when the process exits first or after `timeoutMs`. */
+export async function waitReady(api: ServiceProcess, baseUrl: string, timeoutMs = 60_000): Promise<void> {
+  const deadline = Date.now() + timeoutMs
+  while (Date.now() < deadline) {
+    if (api.child.exitCode !== null) throw new Error(`${api.name} exited (${api.child.exitCode}): ${api.tail.join('\n')}`)
+    try {
+      const res = await fetch(`${baseUrl}/readyz`)
+      if (res.ok) return
+    } catch {
+      // not listening yet
+    }
+    await sleep(200)
+  }
+  throw new Error(`${api.name} not ready after ${timeoutMs} ms: ${api.tail.join('\n')}`)
+}
+
+/** Peak resident set size (VmHWM) of a live process in MiB, or null when it cannot be read. */
+export function peakRssMiB(pid: number | undefined): number | null {
+  if (pid === undefined) return null
+  try {
+    const status = readFileSync(`/proc/${pid}/status`, 'utf8')
+    const kb = /VmHWM:\s+(\d+) kB/.exec(status)?.[1]
+    return kb === undefined ? null : Number(kb) / 1024
+  } catch {
+    return null
+  }
+}
+
+/** SIGTERM, then SIGKILL after `graceMs`; resolves when the process has exited. */
+export async function stopService(p: ServiceProcess, graceMs = 15_000): Promise<void> {
+  if (p.child.exitCode !== null || p.child.signalCode !== null) return
+  const exited = new Promise<void>((resolve) => p.child.once('exit', () => resolve()))
+  p.child.kill('SIGTERM')
+  const timer = setTimeout(() => p.child.kill('SIGKILL'), graceMs)
+  await exited
+  clearTimeout(timer)
+}
+
+export function sleep(ms: number): Promise<void> {
+  return new Promise((resolve) => setTimeout(resolve, ms))
+}

@@ -1,0 +1,147 @@
+/**
+ * End-to-end scale benchmark through the real HTTP API, queue and Redis: starts
+ * the API (src/server.ts, RUN_WORKER=false) and chunk worker process(es)
+ * (src/worker-main.ts) as child processes under a benchmark-only Redis prefix,
+ * submits N synthetic 60-point monthly SKUs as several POST /v1/runs, polls each
+ * run and pages through all its results (limit 1000) as soon as it ends. Prints
+ * submit, fit and total wall time, SKUs per second, peak RSS of every process
+ * and Redis memory per stored SKU result, then stops the processes and deletes
+ * every key under its prefix. A small warm-up run first loads the worker
+ * threads (tsx, engine, JIT), as a long-lived worker would have them.
+ *
+ *   npm run bench:e2e -- --skus 100000 [--batch 20000 --workers 1 --seed 5 --cpu-prof]
+ *   env: REDIS_URL (default redis://127.0.0.1:6379), CHUNK_SIZE, WORKER_CONCURRENCY
+ * Targets (from the product issue, 2-core machine): 100,000 SKUs end to end
+ * <= 40 s; 1,000,000 < 6 min; worker RSS < 500 MB; <= 1.5 KB Redis per SKU result.
+ * The machine is shared and noisy: repeat and read the spread.
+ */
+import { randomBytes } from 'node:crypto'
+import { mkdirSync } from 'node:fs'
+import { availableParallelism, loadavg, tmpdir } from 'node:os'
+import { join } from 'node:path'
+import { Redis } from 'ioredis'
+import { pageResults, runBody, submitRun, waitForRun, type Client, type PagedResults, type RunView } from './e2e-client.js'
+import { freePort } from './e2e-port.js'
+import { peakRssMiB, startService, stopService, waitReady, type ServiceProcess } from './e2e-processes.js'
+import { deletePrefix, latestIndexBytes, medianItemBytes, runResultBytes, usedMemory } from './e2e-redis.js'
+
+function option(name: string, fallback: number): number {
+  const at = process.argv.indexOf(`--${name}`)
+  const value = at >= 0 ? Number(process.argv[at + 1]) : fallback
+  if (!Number.isInteger(value) || value < 1) throw new Error(`--${name} must be a positive integer`)
+  return value
+}
+
+const SKUS = option('skus', 100_000)
+const BATCH = Math.min(SKUS, option('batch', 20_000))
+const WORKERS = option('workers', 1)
+const SEED = option('seed', 5)
+const PAGE_LIMIT = option('page-limit', 1000)
+const CPU_PROF = process.argv.includes('--cpu-prof')
+const TENANT = 'default' // no API keys: every request is the default tenant (loopback only)
+const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'
+const prefix = `bench-e2e-${randomBytes(4).toString('hex')}`
+const out = (line = ''): void => {
+  process.stdout.write(line + '\n')
+}
+const f = (v: number, d = 0): string => v.toLocaleString('en-US', { maximumFractionDigits: d, minimumFractionDigits: d })
+
+const port = await freePort()
+const baseUrl = `http://127.0.0.1:${port}`
+const env: Record<string, string> = {
+  REDIS_URL: redisUrl,
+  REDIS_PREFIX: prefix,
+  HOST: '127.0.0.1',
+  PORT: String(port),
+  RUN_WORKER: 'false',
+  LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn',
+  RATE_LIMIT_MAX: '1000000',
+  RESULT_RETENTION_SECONDS: '3600',
+  API_KEYS: '',
+}
+for (const name of ['CHUNK_SIZE', 'WORKER_CONCURRENCY']) if (process.env[name]) env[name] = process.env[name]!
+const profDir = join(tmpdir(), `almanac-e2e-prof-${prefix}`)
+if (CPU_PROF) mkdirSync(profDir, { recursive: true })
+const profArgs = (name: string) => (CPU_PROF ? ['--cpu-prof', '--cpu-prof-dir', profDir, '--cpu-prof-name', `${name}.cpuprofile`] : [])
+
+const redis = new Redis(redisUrl)
+const client: Client = { baseUrl, headers: {} }
+const processes: ServiceProcess[] = []
+
+try {
+  const api = startService('api', 'src/server.ts', env, profArgs('api'))
+  processes.push(api)
+  for (let w = 0; w < WORKERS; w++) processes.push(startService(`worker-${w + 1}`, 'src/worker-main.ts', env, profArgs(`worker-${w + 1}`)))
+  await waitReady(api, baseUrl)
+
+  // Warm-up: the worker threads load tsx and the engine and JIT-compile during this run.
+  const warmId = await submitRun(client, runBody(SEED + 1_000_000_007, 9_000_000, 2000))
+  const warm = await waitForRun(client, warmId, 100)
+  if (warm.status !== 'succeeded') throw new Error(`warm-up run ${warm.status}`)
+
+  const memoryBefore = await usedMemory(redis)
+  const t0 = performance.now()
+  const runs: { id: string; submittedMs: number; ended?: RunView; endedMs?: number; paged?: PagedResults; pagedMs?: number }[] = []
+  const follow: Promise<void>[] = []
+  for (let first = 0; first < SKUS; first += BATCH) {
+    const id = await submitRun(client, runBody(SEED, first, Math.min(BATCH, SKUS - first)))
+    const run: (typeof runs)[number] = { id, submittedMs: performance.now() - t0 }
+    runs.push(run)
+    follow.push(
+      (async () => {
+        run.ended = await waitForRun(client, id)
+        run.endedMs = performance.now() - t0
+        if (run.ended.status !== 'succeeded') throw new Error(`run ${id} ${run.ended.status}: ${JSON.stringify(run.ended)}`)
+        run.paged = await pageResults(client, id, PAGE_LIMIT)
+        run.pagedMs = performance.now() - t0
+      })(),
+    )
+  }
+  const submitMs = performance.now() - t0
+  await Promise.all(follow)
+  const totalMs = performance.now() - t0
+
+  const memoryAfter = await usedMemory(redis)
+  let storedBytes = 0
+  for (const r of runs) storedBytes += await runResultBytes(redis, prefix, TENANT, r.id)
+  const latestBytes = await latestIndexBytes(redis, prefix, TENANT)
+  const itemMedian = await medianItemBytes(redis, prefix, TENANT, runs[0]!.id)
+  const rss = processes.map((p) => ({ name: p.name, peakMiB: peakRssMiB(p.child.pid) }))
+
+  const fitEndMs = Math.max(...runs.map((r) => r.endedMs!))
+  const started = Math.min(...runs.map((r) => Date.parse(r.ended!.startedAt!)))
+  const finished = Math.max(...runs.map((r) => Date.parse(r.ended!.finishedAt!)))
+  const items = runs.reduce((a, r) => a + r.paged!.items, 0)
+  const errors = runs.reduce((a, r) => a + r.paged!.errors, 0)
+  const pages = runs.reduce((a, r) => a + r.paged!.pages, 0)
+  const pageBytes = runs.reduce((a, r) => a + r.paged!.bytes, 0)
+  const done = runs.reduce((a, r) => a + r.ended!.progress.done, 0)
+  const perSku = (memoryAfter - memoryBefore) / SKUS
+  const workerPeak = Math.max(...rss.filter((r) => r.name.startsWith('worker')).map((r) => r.peakMiB ?? Infinity))
+
+  out(`End-to-end benchmark: ${f(SKUS)} SKUs x ${60} monthly points, horizon 12, ${runs.length} runs of up to ${f(BATCH)}`)
+  out(`machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(2)} at the end; ` +
+    `${WORKERS} worker process(es), CHUNK_SIZE ${env.CHUNK_SIZE ?? 'default'}, WORKER_CONCURRENCY ${env.WORKER_CONCURRENCY ?? 'default (one per core)'}`)
+  out(`results: ${f(items)} items read in ${f(pages)} pages (${f(pageBytes / 2 ** 20, 1)} MiB of JSON), ${f(errors)} error items; ` +
+    `runs report ${f(done)} done`)
+  out()
+  out(`submit (first POST to last 202):          ${f(submitMs / 1000, 2)} s`)
+  out(`fit (first POST to last run succeeded):    ${f(fitEndMs / 1000, 2)} s   (server: first chunk started to last run finished ${f((finished - started) / 1000, 2)} s)`)
+  out(`total wall (first POST to last page read): ${f(totalMs / 1000, 2)} s`)
+  out(`SKUs per second end to end:                ${f(SKUS / (totalMs / 1000))}`)
+  for (const r of rss) out(`peak RSS ${r.name.padEnd(10)} (VmHWM):           ${r.peakMiB === null ? 'n/a' : `${f(r.peakMiB, 1)} MiB`}`)
+  out(`Redis used_memory delta per SKU:           ${f(perSku)} B   (MEMORY USAGE: results ${f(storedBytes / SKUS)} B + latest index ` +
+    `${f(latestBytes / SKUS)} B per SKU; stored item median ${f(itemMedian)} B)`)
+  out()
+  const targetSeconds = SKUS <= 100_000 ? 40 * (SKUS / 100_000) : 360 * (SKUS / 1_000_000)
+  const verdict = (ok: boolean) => (ok ? 'MET' : 'NOT MET')
+  out(`target total <= ${f(targetSeconds, 0)} s for ${f(SKUS)} SKUs (40 s per 100,000; 6 min per 1,000,000): ${verdict(totalMs / 1000 <= targetSeconds)}`)
+  out(`target worker RSS < 500 MB: ${verdict(workerPeak * 2 ** 20 < 500e6)} (${f(workerPeak, 1)} MiB)`)
+  out(`target Redis <= 1.5 KB per stored SKU result: ${verdict(perSku <= 1536)} (${f(perSku)} B)`)
+  if (CPU_PROF) out(`CPU profiles (written when the processes exit): ${profDir}`)
+} finally {
+  for (const p of processes) await stopService(p)
+  const removed = await deletePrefix(redis, prefix)
+  out(`cleanup: stopped ${processes.length} processes, deleted ${f(removed)} keys under ${prefix}:`)
+  redis.disconnect()
+}

@@ -48,6 +48,8 @@ export const ConfigSchema = z.object({
   WEBHOOK_ATTEMPTS: intFromEnv(5, 1, 20),
   WEBHOOK_BACKOFF_MS: intFromEnv(30_000, 10, 3_600_000),
   WEBHOOK_TIMEOUT_MS: intFromEnv(10_000, 100, 120_000),
+  /** Let webhooks reach loopback and private addresses (off: SSRF protection). */
+  WEBHOOK_ALLOW_PRIVATE_NETWORKS: boolFromEnv(false),
   /** Closest two firings of one schedule may be, in seconds. */
   SCHEDULE_MIN_INTERVAL_SECONDS: intFromEnv(300, 1, 86_400),
 })
@@ -79,6 +81,8 @@ export interface Config {
   readonly webhookBackoffMs?: number
   /** Timeout of one webhook request; default 10000 when absent. */
   readonly webhookTimeoutMs?: number
+  /** Webhooks may call loopback and private addresses; default false when absent. */
+  readonly webhookAllowPrivateNetworks?: boolean
   /** Closest two firings of a schedule may be; default 300 when absent. */
   readonly scheduleMinIntervalSeconds?: number
 }
@@ -173,6 +177,7 @@ export function loadConfig(
     webhookAttempts: e.WEBHOOK_ATTEMPTS,
     webhookBackoffMs: e.WEBHOOK_BACKOFF_MS,
     webhookTimeoutMs: e.WEBHOOK_TIMEOUT_MS,
+    webhookAllowPrivateNetworks: e.WEBHOOK_ALLOW_PRIVATE_NETWORKS,
     scheduleMinIntervalSeconds: e.SCHEDULE_MIN_INTERVAL_SECONDS,
   }
 }

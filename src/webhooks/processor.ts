@@ -5,12 +5,15 @@ import type { RunStore } from '../storage/run-store.js'
 import type { CallbackStore } from './callback-store.js'
 import { DELIVERY_JOB, RUN_EVENT_JOB, WEBHOOK_QUEUE, deliveryJobId } from './names.js'
 import { DeliveryJob, RunEventJob, deliveryIdFor, eventBody, eventOf } from './payload.js'
+import { postJson } from './http-post.js'
 import { signatureHeaders } from './signing.js'
 
 export interface WebhookSettings {
   readonly attempts: number
   readonly backoffMs: number
   readonly timeoutMs: number
+  /** Allow loopback and private addresses (tests, receivers inside the same network). */
+  readonly allowPrivateNetworks: boolean
 }
 
 export interface WebhookProcessorDeps {
@@ -29,11 +32,11 @@ class AttemptFailed extends Error {
   override readonly name = 'AttemptFailed'
 }
 
-/** Short reason for a failed request, without the URL's query string. */
-function describeError(err: unknown, timeoutMs: number): string {
-  const e = err as { name?: string; message?: string; cause?: { code?: string; message?: string } }
-  if (e?.name === 'TimeoutError' || e?.name === 'AbortError') return `timed out after ${timeoutMs} ms`
-  return (e?.cause?.code ?? e?.cause?.message ?? e?.message ?? 'request failed').slice(0, 200)
+/** Short reason for a failed request: the system error code, or the message of ours (timeout, blocked). */
+function describeError(err: unknown): string {
+  const e = err as { code?: string; message?: string }
+  if (e?.code === 'ETIMEDOUT' || e?.code === 'EBLOCKED') return (e.message ?? e.code).slice(0, 200)
+  return (e?.code ?? e?.message ?? 'request failed').slice(0, 200)
 }
 
 /**
@@ -42,7 +45,8 @@ function describeError(err: unknown, timeoutMs: number): string {
  *    target (the run's callbackUrl, then standing callbacks subscribed to the
  *    event) and enqueues a job for each;
  *  - `delivery`: one signed POST; any answer but 2xx (redirects included, they
- *    are not followed), a timeout or a network error is a failed attempt.
+ *    are not followed), a timeout, a network error or a private address (unless
+ *    allowed) is a failed attempt.
  * Every attempt is logged on the run (GET /v1/runs/{id}/deliveries); after the
  * last one the delivery is `dead`.
  */
@@ -105,24 +109,21 @@ export function createWebhookProcessor(deps: WebhookProcessorDeps) {
     let statusCode: number | null = null
     let error: string | null = null
     try {
-      const res = await fetch(url, {
-        method: 'POST',
+      statusCode = await postJson(
+        url,
         body,
-        redirect: 'manual',
-        signal: AbortSignal.timeout(settings.timeoutMs),
-        headers: {
+        {
           'content-type': 'application/json',
           'user-agent': 'almanac-webhooks/1',
           'almanac-event': event,
           'almanac-delivery': deliveryId,
           ...signatureHeaders(secret, Math.floor(started.getTime() / 1000), body),
         },
-      })
-      statusCode = res.status
-      await res.body?.cancel().catch(() => undefined)
-      if (res.status < 200 || res.status > 299) error = `HTTP ${res.status}`
+        { timeoutMs: settings.timeoutMs, allowPrivateNetworks: settings.allowPrivateNetworks },
+      )
+      if (statusCode < 200 || statusCode > 299) error = `HTTP ${statusCode}`
     } catch (err) {
-      error = describeError(err, settings.timeoutMs)
+      error = describeError(err)
     }
     const durationMs = Math.round(performance.now() - t0)
     const state: DeliveryState = error === null ? 'delivered' : attempt >= maxAttempts ? 'dead' : 'retrying'

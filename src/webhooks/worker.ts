@@ -19,6 +19,7 @@ export function webhookSettings(config: Config): WebhookSettings {
     attempts: config.webhookAttempts ?? WEBHOOK_DEFAULTS.attempts,
     backoffMs: config.webhookBackoffMs ?? WEBHOOK_DEFAULTS.backoffMs,
     timeoutMs: config.webhookTimeoutMs ?? WEBHOOK_DEFAULTS.timeoutMs,
+    allowPrivateNetworks: config.webhookAllowPrivateNetworks ?? false,
   }
 }
 

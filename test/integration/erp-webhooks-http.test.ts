@@ -24,7 +24,7 @@ let receiver: Awaited<ReturnType<typeof startReceiver>>
 beforeAll(async () => {
   url = await redisUrlForTests()
   prefix = uniquePrefix('erp-webhooks-http')
-  const config = runsTestConfig(url, prefix, { webhookAttempts: 2, webhookBackoffMs: 20 })
+  const config = runsTestConfig(url, prefix, { webhookAttempts: 2, webhookBackoffMs: 20, webhookAllowPrivateNetworks: true })
   const logger = createLogger({ level: 'silent' })
   redis = new Redis(url, { maxRetriesPerRequest: 2 })
   gateway = createRunGateway(config)

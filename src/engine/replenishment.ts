@@ -116,17 +116,23 @@ export function computeReplenishment(
   }
 }
 
-/** Figures for an engine result: its point forecasts and the RMS of its one-step residuals. */
+/**
+ * Figures for an engine result: its point forecasts and the RMS of its one-step
+ * residuals. When the engine gave no intervals (a constant history, or too few
+ * residuals) the spread is unknown: a flat past is no evidence of a certain
+ * future, so sigma, safety stock and reorder point are null rather than 0.
+ */
 export function replenishmentFor(
   result: {
     readonly forecast: readonly { readonly value: number }[]
     readonly residuals: { readonly count: number; readonly mean: number; readonly sd: number }
+    readonly intervals?: { readonly method: 'analytical' | 'empirical' | 'none' }
   },
   options: ReplenishmentOptions,
 ): ReplenishmentFigures {
   return computeReplenishment(
     result.forecast.map((p) => p.value),
-    oneStepRms(result.residuals),
+    result.intervals?.method === 'none' ? null : oneStepRms(result.residuals),
     options,
   )
 }

@@ -72,6 +72,14 @@ describe('computeReplenishment: special cases', () => {
     expect(() => computeReplenishment([Number.NaN, 1], 1, { leadTime: 1, serviceLevel: 0.9 })).toThrow(EngineInputError)
   })
 
+  it('leaves the spread unknown when the engine gave no intervals (constant history)', () => {
+    const r = replenishmentFor(
+      { forecast: [{ value: 10 }, { value: 10 }], residuals: { count: 23, mean: 0, sd: 0 }, intervals: { method: 'none' } },
+      { leadTime: 2, serviceLevel: 0.95 },
+    )
+    expect(r).toMatchObject({ leadTimeDemand: 20, sigma: null, safetyStock: null, reorderPoint: null })
+  })
+
   it('oneStepRms needs two residuals', () => {
     expect(oneStepRms({ count: 1, mean: 3, sd: 0 })).toBeNull()
     expect(oneStepRms({ count: 0, mean: 0, sd: 0 })).toBeNull()

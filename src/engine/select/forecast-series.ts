@@ -18,8 +18,9 @@ import { assembleResult, naiveWinner, type Winner } from './assemble.js'
 import { candidateModels, lengthReason, requiredLength, structuralReason } from './candidates.js'
 import { checkedForecast, evaluateHoldout, evaluateInSample, skipped, type Evaluation } from './evaluate.js'
 import { MIN_TRAINING, planHoldout } from './holdout.js'
-import { rankEvaluations } from './rank.js'
+import { rankEvaluations, shortlistFirst } from './rank.js'
 import { hasSeasonality } from './seasonality.js'
+import { orderByCriterion, parameterCount, SHORTLIST_SIZE } from './shortlist.js'
 
 export interface EngineModels {
   readonly registry: readonly ModelSpec[]
@@ -144,22 +145,32 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
     })
   }
 
-  let winner: Winner | undefined
-  let winnerEval: Evaluation | undefined
+  // Refit the best candidates on the whole history: the first SHORTLIST_SIZE that refit
+  // (holdout selection), or only the first (in-sample selection); then pick by AICc.
+  const want = method === 'holdout' ? SHORTLIST_SIZE : 1
+  const refits: { index: number; winner: Winner; complexity: number }[] = []
   for (const i of ranking.order) {
+    if (refits.length >= want) break
     const spec = specs[i]
     try {
       const fit = spec.fit(prep.values, { seasonLength: m, initialParams: evaluations[i].params })
       const point = checkedForecast(fit, prep.horizon)
       const variance = fit.forecastVariance?.(prep.horizon)
-      winner = { model: spec.name, family: spec.family, params: fit.params, fitted: fit.fitted, point, variance }
-      winnerEval = evaluations[i]
-      break
+      refits.push({
+        index: i,
+        complexity: parameterCount(spec, fit.params, m),
+        winner: { model: spec.name, family: spec.family, params: fit.params, fitted: fit.fitted, point, variance },
+      })
     } catch (err) {
       const why = err instanceof Error ? err.message : String(err)
       warnings.push({ code: 'refit-failed', message: `${spec.name} failed on the full history (${why}); next candidate used` })
     }
   }
+  const finalOrder = orderByCriterion(prep.values, refits.map((r) => ({ fitted: r.winner.fitted, complexity: r.complexity })))
+  const chosen = refits.length > 0 ? refits[finalOrder[0]] : undefined
+  let winner: Winner | undefined = chosen?.winner
+  const winnerEval: Evaluation | undefined = chosen ? evaluations[chosen.index] : undefined
+  const leaderboard = shortlistFirst(ranking.leaderboard, finalOrder.map((k) => specs[refits[k].index].name))
   if (!winner) {
     warnings.push({ code: 'fallback-naive', message: 'no candidate could be refitted on the full history; naive forecast used' })
     winner = naiveWinner(prep.values, prep.horizon)
@@ -173,7 +184,7 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
       holdout: method === 'holdout' ? plan.holdout : 0,
       origins: method === 'holdout' ? plan.origins : 0,
       metrics: winnerEval?.metrics ?? null,
-      leaderboard: ranking.leaderboard,
+      leaderboard,
     },
     warnings,
   )

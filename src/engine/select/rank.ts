@@ -6,7 +6,7 @@
  * ranking uses MAE for every candidate instead and says so.
  */
 import { approxEqual } from '../numeric.js'
-import type { LeaderboardEntry, MetricName, ModelSpec } from '../types.js'
+import type { LeaderboardEntry, MetricName, ModelName, ModelSpec } from '../types.js'
 import type { Evaluation } from './evaluate.js'
 
 export const TIE_TOLERANCE = 1e-9
@@ -39,4 +39,13 @@ export function rankEvaluations(
   const leaderboard: LeaderboardEntry[] = order.map((i) => ({ ...evaluations[i].entry, score: score(i) }))
   for (const e of evaluations) if (e.metrics === undefined) leaderboard.push(e.entry)
   return { leaderboard, order, metric, fellBack }
+}
+
+/**
+ * The leaderboard in final order: the refitted shortlist (select/shortlist.ts) first, in
+ * the order of `names` (best first), then every other entry as ranked.
+ */
+export function shortlistFirst(leaderboard: readonly LeaderboardEntry[], names: readonly ModelName[]): LeaderboardEntry[] {
+  const front = names.map((name) => leaderboard.find((e) => e.model === name)).filter((e): e is LeaderboardEntry => e !== undefined)
+  return [...front, ...leaderboard.filter((e) => !names.includes(e.model))]
 }

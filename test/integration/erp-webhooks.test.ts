@@ -4,6 +4,7 @@ import { createLogger } from '../../src/logger.js'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
 import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
 import { DeliveryStore, type Delivery } from '../../src/storage/delivery-store.js'
+import { runKeys } from '../../src/storage/keys.js'
 import { CallbackStore } from '../../src/webhooks/callback-store.js'
 import { verifySignature } from '../../src/webhooks/signing.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
@@ -119,6 +120,17 @@ describe('run webhooks', { timeout: 120_000 }, () => {
       [`${receiver.url}/cancelled`, 'run.cancelled', 'standing', 'delivered'],
     ])
     expect(receiver.received.filter((r) => r.path === '/failed-only')).toHaveLength(0)
+  })
+
+  it('announces a failed run (run.failed) to its callbackUrl', async () => {
+    // 400 series in chunks of 10: the last chunk's input is deleted long before a worker reaches it,
+    // so that chunk fails for good and fails the run.
+    const run = await gateway.submit('garden', runRequest(syntheticSeries(400), { callbackUrl: `${receiver.url}/failed` }))
+    await redis.del(runKeys(prefix, 'garden', run.id).input(39))
+    const [d] = (await settled('garden', run.id)) as [Delivery]
+    expect(d).toMatchObject({ event: 'run.failed', state: 'delivered' })
+    const body = JSON.parse(receiver.received.find((r) => r.path === '/failed')!.body)
+    expect(body).toMatchObject({ type: 'run.failed', run: { id: run.id, status: 'failed', error: 'chunk 39 failed: input of chunk 39 is missing (expired?)' } })
   })
 
   it('keeps tenants apart: another tenant sees no deliveries', async () => {

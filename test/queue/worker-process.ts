@@ -13,7 +13,7 @@ export interface WorkerProcess {
   /** Chunk indexes this process finished with any outcome (including 'duplicate'), by run id. */
   processedOf(runId: string): number[]
   waitForLog(msg: string, timeoutMs?: number): Promise<Record<string, unknown>>
-  /** Resolves with the exit code (or signal) once the process has exited. */
+  /** Resolves with the exit code (or signal) once the process has exited and its output is read. */
   exited: Promise<number | string>
 }
 
@@ -48,8 +48,9 @@ export function startWorkerProcess(env: Record<string, string>): WorkerProcess {
     }
   })
   child.stderr!.setEncoding('utf8').on('data', (chunk: string) => stderr.push(chunk))
+  // 'close' rather than 'exit': it comes after the last output has been read.
   const exited = new Promise<number | string>((resolve) =>
-    child.once('exit', (code, signal) => resolve(code ?? signal ?? 'unknown')),
+    child.once('close', (code, signal) => resolve(code ?? signal ?? 'unknown')),
   )
   return {
     child,

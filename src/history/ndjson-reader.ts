@@ -60,14 +60,11 @@ function handleLine(raw: string, line: number, acc: HistoryAccumulator): void {
   if (typeof row.period !== 'string') return acc.errors.add({ line, column: 'period', sku: sku.sku, reason: 'period must be a string' })
   const bucket = bucketOf(row.period, acc.frequency)
   if ('reason' in bucket) return acc.errors.add({ line, column: 'period', sku: sku.sku, reason: bucket.reason })
+  // Numbers take the same checks as CSV cells (range included).
   const quantity =
-    typeof row.quantity === 'number'
-      ? Number.isFinite(row.quantity)
-        ? { value: row.quantity }
-        : { reason: 'quantity must be finite' }
-      : typeof row.quantity === 'string'
-        ? parseQuantity(row.quantity)
-        : { reason: 'quantity must be a number' }
+    typeof row.quantity === 'number' || typeof row.quantity === 'string'
+      ? parseQuantity(String(row.quantity))
+      : { reason: 'quantity must be a number' }
   if ('reason' in quantity) return acc.errors.add({ line, column: 'quantity', sku: sku.sku, reason: quantity.reason })
   acc.addRow(sku.sku, bucket.ordinal, quantity.value, { line })
 }

@@ -43,6 +43,7 @@ describe('GET /v1/runs/{runId}/results as CSV', () => {
     const res = await csv()
     expect(res.statusCode).toBe(200)
     expect(res.headers['content-type']).toBe('text/csv; charset=utf-8')
+    expect(res.headers.vary).toBe('accept')
     const rows = parse(res.body, { columns: true }) as Record<string, string>[]
     expect(Object.keys(rows[0]!)).toEqual([
       'sku', 'period', 'value', 'lower_80', 'upper_80', 'lower_95', 'upper_95', 'model', 'metric', 'holdout_error', 'error',

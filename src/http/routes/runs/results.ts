@@ -33,6 +33,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     async (request, reply) => {
       const { runId } = request.params
       const { limit, cursor, sku } = request.query
+      reply.header('vary', 'accept') // JSON or CSV by the Accept header
       if (prefersCsv(request.headers.accept)) {
         const run = await app.gateway.get(request.tenant, runId)
         if (!run) throw runNotFound(runId)

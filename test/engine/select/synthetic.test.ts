@@ -71,6 +71,39 @@ describe('selection on clear synthetic series (real registry)', () => {
   })
 })
 
+describe('selection on short histories (two to three seasons)', () => {
+  // Invented example: 28 months of a product with a clear summer peak. The lag-12
+  // autocorrelation test alone rejected its seasonality, and linear-trend won the holdout
+  // with MASE 5.6; the rank test used below three seasons admits the seasonal models.
+  const summerPeak = [47, 57, 54, 36, 36, 56, 111, 167, 245, 202, 167, 98, 87, 66, 41, 42, 36, 52, 93, 162, 212, 199, 137, 100, 79, 68, 40, 41]
+
+  it('picks a seasonal model for 28 months with a clear summer peak', () => {
+    const r = forecastSeries({ values: summerPeak, frequency: 'month', start: '2024-01', horizon: 12 })
+    expect(isSeasonalForecast(r), r.model).toBe(true)
+    expect(r.leaderboard.filter((e) => e.status === 'skipped')).toEqual([])
+    expect(r.metrics!.mase!).toBeLessThan(1)
+    // The forecast peaks in the summer months (July to September 2026).
+    const peak = r.forecast.reduce((best, p) => (p.value > best.value ? p : best))
+    expect(['2026-07', '2026-08', '2026-09']).toContain(peak.period)
+  })
+
+  const short = (kind: 'trend' | 'seasonal', seed: number): ForecastResult => {
+    const values = generators[kind](mulberry32(seed)).slice(0, 28)
+    return forecastSeries({ values, frequency: 'month', horizon: 12 })
+  }
+
+  it.each(SEEDS)('28 months of a seasonal pattern pick a seasonal model (seed %i)', (seed) => {
+    expect(isSeasonalForecast(short('seasonal', seed)), short('seasonal', seed).model).toBe(true)
+  })
+
+  it('28 months of a straight trend rarely pick a seasonal model', () => {
+    const seeds = Array.from({ length: 40 }, (_, i) => i + 1)
+    const seasonal = seeds.filter((seed) => isSeasonalForecast(short('trend', seed)))
+    // At most about the test's 10% level; seasonal winners also have to beat the trend models.
+    expect(seasonal.length).toBeLessThanOrEqual(4)
+  })
+})
+
 describe('selection on a public series', () => {
   // Source: R datasets::AirPassengers (Box, Jenkins & Reinsel series G) and the seasonal naive
   // MASE of 1960 computed by base R 4.2.2 (fixtures/r-front/make.R).

@@ -1,5 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { Queue } from 'bullmq'
 import { Redis } from 'ioredis'
+import { CHUNK_QUEUE, chunkJobId } from '../../src/queue/names.js'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
 import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
 import { createLogger } from '../../src/logger.js'
@@ -40,6 +42,37 @@ describe('run failure', { timeout: 120_000 }, () => {
     expect(r.error).toBe('chunk 1 failed: input of chunk 1 is missing (expired?)')
     expect(r.summary).toBeNull()
     expect(r.finishedAt).not.toBeNull()
+  })
+})
+
+describe('retries', { timeout: 120_000 }, () => {
+  it('retries a chunk that failed for a reason other than its data, with backoff, and the run succeeds', async () => {
+    const queue = new Queue(CHUNK_QUEUE, { connection: { url }, prefix })
+    try {
+      workers ??= startWorkers(runsTestConfig(url, prefix), createLogger({ level: 'silent' }))
+      await workers.worker.pause()
+      const run = await gateway.submit('acme', runRequest(syntheticSeries(15)))
+      // Break chunk 0's stored input so the first attempt throws (a SyntaxError, not an engine error).
+      const key = runKeys(prefix, 'acme', run.id).input(0)
+      const original = await redis.get(key)
+      await redis.set(key, '{not json', 'KEEPTTL')
+      workers.worker.resume()
+      const job = await waitFor(async () => {
+        const j = await queue.getJob(chunkJobId(run.id, 0))
+        return j && j.attemptsMade >= 1 ? j : undefined
+      }, 30_000, 'a failed first attempt')
+      expect(job.failedReason).toMatch(/JSON/)
+      // Repair it during the backoff: the next attempt succeeds.
+      await redis.set(key, original!, 'KEEPTTL')
+      const r = await waitFor(async () => {
+        const x = await gateway.get('acme', run.id)
+        return x?.status === 'succeeded' ? x : undefined
+      }, 60_000, 'run to succeed')
+      expect(r.progress).toEqual({ total: 15, done: 15, failed: 0 })
+      expect(r.error).toBeNull()
+    } finally {
+      await queue.close()
+    }
   })
 })
 

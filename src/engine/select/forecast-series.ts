@@ -1,5 +1,8 @@
 /**
- * forecastSeries: prepare, choose candidates, score them, refit the winner, forecast.
+ * forecastSeries: prepare, choose candidates, score them on a holdout, refit the best
+ * three on the whole history, keep the one with the lowest AICc (shortlist.ts), forecast.
+ * The leaderboard lists the refitted shortlist first, in that final order, then the
+ * other candidates by holdout score.
  *
  * Flat histories (constant or all zero) get the naive method's flat line with
  * intervals of zero width (method 'none'), no selection (method 'none', holdout 0,
@@ -33,14 +36,14 @@ const DEFAULT_MODELS: EngineModels = { registry: MODEL_REGISTRY, classify: class
 
 /**
  * Seasonal models join the default pool only if the history shows seasonality at lag m
- * (seasonality.ts). Without the test, on a plain trend the seasonal models fit the noise and
+ * (seasonality.ts: an autocorrelation test from three seasons on, a rank test below). Without the test, on a plain trend the seasonal models fit the noise and
  * win about a quarter of the holdout comparisons in our seeded trials. Listing `models`
  * skips the test.
  */
 function seasonalExclusion(prep: PreparedSeries, models: EngineModels): string | null {
   const m = prep.seasonLength
   if (prep.models !== undefined || m < 2 || !models.seasonalityTest) return null
-  return models.seasonalityTest(prep.values, m) ? null : `no significant seasonality at lag ${m} (90% autocorrelation test)`
+  return models.seasonalityTest(prep.values, m) ? null : `no significant seasonality at lag ${m} (${prep.values.length >= 3 * m ? 'autocorrelation' : 'Kruskal-Wallis'} test at the 10% level)`
 }
 
 function flatResult(prep: PreparedSeries, warnings: EngineWarning[]): ForecastResult {
@@ -191,8 +194,9 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
 }
 
 /**
- * Forecast one series: validate and prepare it, select a model on a holdout, refit the
- * winner on the whole history and forecast `horizon` periods with intervals.
+ * Forecast one series: validate and prepare it, shortlist models on a holdout, refit the
+ * shortlist on the whole history, keep the one with the lowest AICc and forecast
+ * `horizon` periods with intervals.
  * The result is an estimate, not a guarantee: intervals assume the past error pattern
  * continues, and a planner should review it before ordering.
  * @throws EngineInputError on bad input (code and field set)

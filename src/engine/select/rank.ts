@@ -3,7 +3,8 @@
  * Scores within 1e-9 relative of each other tie; ties go to the lower complexity,
  * then to registry order. If the chosen metric is undefined (null) for any scored
  * candidate (e.g. MASE on a history whose in-sample differences are all zero), the
- * ranking uses MAE for every candidate instead and says so.
+ * ranking uses MAE for every candidate instead and says so. This ranking shortlists;
+ * the final choice among the first three is by AICc (shortlist.ts, shortlistFirst).
  */
 import { approxEqual } from '../numeric.js'
 import type { LeaderboardEntry, MetricName, ModelName, ModelSpec } from '../types.js'

@@ -15,6 +15,8 @@ export interface ChunkProcessorDeps {
   readonly forecast: (input: SeriesInput) => ForecastResult
   readonly logger: Logger
   readonly now?: () => Date
+  /** Keeps the chunk's forecasts for accuracy scoring; must be idempotent. */
+  readonly rememberForecasts?: (tenant: string, runId: string, createdAtMs: number, items: readonly ResultItem[]) => Promise<unknown>
   /** Called when this chunk finished its run (webhooks); must be idempotent per run. */
   readonly onRunEnded?: (tenant: string, runId: string) => Promise<void>
 }
@@ -62,8 +64,10 @@ function withReplenishment(item: ResultItem, result: ForecastResult, settings: R
  * The chunk job processor: reads the chunk's series, forecasts each, and
  * commits items and counts in one atomic step (idempotent per chunk). Chunks of
  * cancelled or failed runs are skipped. Steps after the commit (latest-forecast
- * pointers, deleting the input) are idempotent, so a retry after a crash
- * anywhere recomputes at most one chunk and never double-counts.
+ * pointers, run-ended event, deleting the input) are idempotent and the input
+ * goes last, so a retry after a crash anywhere recomputes at most one chunk,
+ * never double-counts, and still completes those steps (also when the crashed
+ * chunk was the run's last: the commit then answers 'succeeded').
  */
 export function createChunkProcessor(deps: ChunkProcessorDeps) {
   const now = deps.now ?? (() => new Date())
@@ -76,7 +80,7 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
 
     const jobStarted = performance.now()
     const run = await store.startChunk(tenant, runId, now())
-    if (run === null || run.status !== 'running') {
+    if (run === null || (run.status !== 'running' && run.status !== 'succeeded')) {
       await store.deleteChunkInputs(tenant, runId, [chunkIndex])
       log.info({ status: run?.status ?? 'missing' }, 'run not active: chunk skipped')
       return { outcome: 'skipped', series: 0, failed: 0 }
@@ -85,7 +89,9 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     if (series === null) {
       if (await store.isChunkCommitted(tenant, runId, chunkIndex)) return { outcome: 'already-done', series: 0, failed: 0 }
       const current = await store.getRun(tenant, runId)
-      if (current !== null && current.status !== 'running') return { outcome: 'skipped', series: 0, failed: 0 }
+      if (current !== null && current.status !== 'running' && current.status !== 'succeeded') {
+        return { outcome: 'skipped', series: 0, failed: 0 }
+      }
       throw new UnrecoverableError(`input of chunk ${chunkIndex} is missing (expired?)`)
     }
 
@@ -94,9 +100,11 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     const computeMs = Math.round(performance.now() - started)
     const tally = tallyItems(items, run.settings.metric)
     const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now())
-    if (outcome === 'committed' || outcome === 'finished' || outcome === 'duplicate') {
+    // 'succeeded': the run finished, so every chunk (this one too) was committed before.
+    if (outcome === 'committed' || outcome === 'finished' || outcome === 'duplicate' || outcome === 'succeeded') {
       const ok = items.filter((i) => !('error' in i)).map((i) => i.sku)
       await store.updateLatest(tenant, runId, run.createdAtMs, now(), ok)
+      await deps.rememberForecasts?.(tenant, runId, run.createdAtMs, items)
     }
     // Before the input is deleted, so a failed emit retries the chunk (the commit is then a no-op).
     if (outcome === 'finished' || outcome === 'succeeded') await deps.onRunEnded?.(tenant, runId)

@@ -3,12 +3,14 @@ import { parsePeriod, summariseAccuracy, type AccuracySummary, type Frequency } 
 import { decodeCursor, encodeCursor } from './codec.js'
 import { isValidTenant } from './keys.js'
 import type { RunStore } from './run-store.js'
+import { ForecastSnapshots } from './forecast-snapshots.js'
 import { RunInputError } from './types.js'
 
 /**
  * Realised accuracy per SKU: each forecast period, once its actual arrives,
  * scored against the SKU's latest successful forecast at that time.
  *
+ *   acc:fc                hash  each SKU's latest successful forecast (forecast-snapshots.ts)
  *   acc:p:<b64url(sku)>   hash  period -> `${runId}|${forecast}|${actual}` (one record per period)
  *   acc:summary           hash  sku -> JSON AccuracySummary + updatedAt
  *   acc:exceptions        zset  SKUs whose |tracking signal| exceeds the limit, score 0 (lex order)
@@ -43,6 +45,7 @@ return {added, corrected}
 `
 const COMMAND = 'almanacRecordActuals'
 
+
 export interface ScoredRecord {
   readonly period: string
   readonly runId: string
@@ -64,12 +67,16 @@ export interface RecordOutcome {
 }
 
 export class AccuracyStore {
+  /** Each SKU's latest successful forecast, as scoring reads it. */
+  readonly forecasts: ForecastSnapshots
+
   constructor(
     private readonly redis: Redis,
     private readonly runs: Pick<RunStore, 'latest'>,
     private readonly opts: { readonly prefix: string; readonly limit?: number; readonly now?: () => Date },
   ) {
     if (!(COMMAND in redis)) redis.defineCommand(COMMAND, { numberOfKeys: 1, lua: RECORD })
+    this.forecasts = new ForecastSnapshots(redis, runs, opts.prefix)
   }
 
   private base(tenant: string): string {
@@ -93,10 +100,10 @@ export class AccuracyStore {
     frequency: Frequency,
     periodValues: readonly { readonly period: string; readonly value: number | null }[],
   ): Promise<RecordOutcome> {
-    const latest = await this.runs.latest(tenant, sku)
-    if (latest === null || 'error' in latest.item) return { added: 0, corrected: 0, reason: 'no-forecast', summary: await this.get(tenant, sku) }
+    const latest = await this.forecasts.latest(tenant, sku)
+    if (latest === null) return { added: 0, corrected: 0, reason: 'no-forecast', summary: await this.get(tenant, sku) }
     const forecast = new Map<string, number>()
-    for (const p of latest.item.forecast) if (sameFrequency(p.period, frequency)) forecast.set(p.period, p.value)
+    for (const [period, value] of latest.points) if (sameFrequency(period, frequency)) forecast.set(period, value)
     const args: string[] = [latest.runId]
     for (const { period, value } of periodValues) {
       const f = forecast.get(period)

@@ -7,6 +7,7 @@ import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
 import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
 import { AccuracyTrackingHistoryStore } from '../../src/storage/accuracy-hook.js'
 import { createErpServices } from '../../src/webhooks/services.js'
+import { latestKey, runKeys } from '../../src/storage/keys.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runsTestConfig, waitFor } from '../queue/fixtures.js'
 
@@ -48,6 +49,7 @@ const put = (sku: string, values: (number | null)[]) =>
 const flat = (level: number) => Array.from({ length: 24 }, () => level)
 
 describe('accuracy tracking', { timeout: 120_000 }, () => {
+  let runId: string
   beforeAll(async () => {
     // Constant histories: every candidate gives the same flat line, so the forecast is the level
     // (2026-01 .. 2026-06 after 24 months from 2024-01).
@@ -55,6 +57,7 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     expect((await put('HOSE-STEADY', flat(50))).statusCode).toBe(201)
     const res = await app.inject({ method: 'POST', url: '/v1/runs', payload: { horizon: 6, skus: ['HOSE-BIASED', 'HOSE-STEADY'] } })
     expect(res.statusCode).toBe(202)
+    runId = res.json().id
     await waitFor(async () => {
       const r = await gateway.get('default', res.json().id)
       return r?.status === 'succeeded' ? r : undefined
@@ -73,6 +76,9 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
   // (actual - forecast) +30, +25, +40, +35, +20: sum 150, MAE 30, bias +30, TS = 150 / 30 = 5 > 4.
   // MAPE = 100 * (0.230769 + 0.2 + 0.285714 + 0.259259 + 0.166667) / 5 = 22.848 %.
   it('scores new actuals against the latest forecast and flags a biased SKU', async () => {
+    // The run's results expire long before monthly actuals arrive: scoring uses the forecast kept for it.
+    await redis.unlink(runKeys(prefix, 'default', runId).items, latestKey(prefix, 'default'))
+    expect((await app.inject({ url: '/v1/skus/HOSE-BIASED/forecast' })).statusCode).toBe(404)
     expect((await put('HOSE-BIASED', [...flat(100), 130, 125, 140, 135, 120])).statusCode).toBe(200)
     const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
     expect(acc).toMatchObject({ sku: 'HOSE-BIASED', count: 5, mae: 30, bias: 30, trackingSignal: 5, flagged: true, limit: 4 })
@@ -84,6 +90,7 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
       ['2026-04', 35],
       ['2026-05', 20],
     ])
+    expect(acc.periods.every((p: { runId: string }) => p.runId === runId)).toBe(true)
     expect(hookErrors).toEqual([])
   })
 
@@ -121,6 +128,22 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     expect(acc.trackingSignal).toBeCloseTo(110 / 30, 12)
     expect(acc.flagged).toBe(false)
     expect((await app.inject({ url: '/v1/accuracy/exceptions' })).json().items).toEqual([])
+  })
+
+  it('keeps the forecast of the run created last, whichever finishes last', async () => {
+    const item = (value: number) => ({
+      sku: 'RAKE', model: 'naive', family: 'level', params: {}, metrics: null, leaderboard: [], warnings: [],
+      selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
+      forecast: [{ period: '2027-01', value, lower: {}, upper: {} }],
+      intervals: { method: 'none', levels: [], clamped: false },
+    }) as const
+    const snapshots = erp.services.accuracy.forecasts
+    expect(await snapshots.remember('default', 'run-new', 2000, [item(7)])).toBe(1)
+    expect(await snapshots.remember('default', 'run-old', 1000, [item(3)])).toBe(0)
+    expect(await snapshots.remember('default', 'run-err', 3000, [{ sku: 'RAKE', error: { code: 'series-too-short', message: 'x' } }])).toBe(0)
+    const latest = await snapshots.latest('default', 'RAKE')
+    expect(latest?.runId).toBe('run-new')
+    expect([...latest!.points]).toEqual([['2027-01', 7]])
   })
 
   it('records nothing for a SKU without a forecast, and pages the list with a cursor', async () => {

@@ -3,6 +3,7 @@ import { z } from 'zod'
 import { forecastSeries } from '../../engine/index.js'
 import { createLogger } from '../../logger.js'
 import { RunStore } from '../../storage/run-store.js'
+import { AccuracyStore } from '../../storage/accuracy-store.js'
 import { workerConnection } from '../connection.js'
 import { createChunkProcessor } from '../processor.js'
 import { createRunEventEmitter } from '../../webhooks/emitter.js'
@@ -34,4 +35,12 @@ const store = new RunStore(redis, {
 
 const events = createRunEventEmitter(redis, ctx.prefix)
 
-export default createChunkProcessor({ store, forecast: forecastSeries, logger, onRunEnded: events.runEnded })
+const accuracy = new AccuracyStore(redis, store, { prefix: ctx.prefix })
+
+export default createChunkProcessor({
+  store,
+  forecast: forecastSeries,
+  logger,
+  onRunEnded: events.runEnded,
+  rememberForecasts: (tenant, runId, createdAtMs, items) => accuracy.forecasts.remember(tenant, runId, createdAtMs, items),
+})

@@ -65,6 +65,23 @@ export function peakRssMiB(pid: number | undefined): number | null {
   }
 }
 
+/**
+ * CPU time (user + system, every thread) a live process has used so far, in
+ * seconds, from /proc/<pid>/stat; null when it cannot be read. Clock ticks are
+ * taken as 100 per second (USER_HZ on Linux).
+ */
+export function cpuSeconds(pid: number | undefined): number | null {
+  if (pid === undefined) return null
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8')
+    // Fields after the command name (which may hold spaces) start at state, field 3.
+    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ')
+    return (Number(fields[11]) + Number(fields[12])) / 100
+  } catch {
+    return null
+  }
+}
+
 /** SIGTERM, then SIGKILL after `graceMs`; resolves when the process has exited. */
 export async function stopService(p: ServiceProcess, graceMs = 15_000): Promise<void> {
   if (p.child.exitCode !== null || p.child.signalCode !== null) return

@@ -13,6 +13,14 @@ export async function usedMemory(redis: Redis): Promise<number> {
   return Number(value)
 }
 
+/** INFO cpu used_cpu_user + used_cpu_sys of the Redis server, in seconds. */
+export async function redisCpuSeconds(redis: Redis): Promise<number> {
+  const info = await redis.info('cpu')
+  const user = Number(/used_cpu_user:([\d.]+)/.exec(info)?.[1] ?? NaN)
+  const sys = Number(/used_cpu_sys:([\d.]+)/.exec(info)?.[1] ?? NaN)
+  return user + sys
+}
+
 /** MEMORY USAGE (all samples) of a run's stored results: the items hash and the SKU index. */
 export async function runResultBytes(redis: Redis, prefix: string, tenant: string, runId: string): Promise<number> {
   const k = runKeys(prefix, tenant, runId)

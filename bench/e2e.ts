@@ -22,8 +22,8 @@ import { join } from 'node:path'
 import { Redis } from 'ioredis'
 import { pageResults, runBody, submitRun, waitForRun, type Client, type PagedResults, type RunView } from './e2e-client.js'
 import { freePort } from './e2e-port.js'
-import { peakRssMiB, startService, stopService, waitReady, type ServiceProcess } from './e2e-processes.js'
-import { deletePrefix, latestIndexBytes, medianItemBytes, runResultBytes, usedMemory } from './e2e-redis.js'
+import { cpuSeconds, peakRssMiB, startService, stopService, waitReady, type ServiceProcess } from './e2e-processes.js'
+import { deletePrefix, latestIndexBytes, medianItemBytes, redisCpuSeconds, runResultBytes, usedMemory } from './e2e-redis.js'
 
 function option(name: string, fallback: number): number {
   const at = process.argv.indexOf(`--${name}`)
@@ -62,7 +62,8 @@ const env: Record<string, string> = {
 for (const name of ['CHUNK_SIZE', 'WORKER_CONCURRENCY']) if (process.env[name]) env[name] = process.env[name]!
 const profDir = join(tmpdir(), `almanac-e2e-prof-${prefix}`)
 if (CPU_PROF) mkdirSync(profDir, { recursive: true })
-const profArgs = (name: string) => (CPU_PROF ? ['--cpu-prof', '--cpu-prof-dir', profDir, '--cpu-prof-name', `${name}.cpuprofile`] : [])
+// Default file names carry the pid and thread id, so worker threads get profiles of their own.
+const profArgs = (name: string) => (CPU_PROF ? ['--cpu-prof', '--cpu-prof-dir', join(profDir, name)] : [])
 
 const redis = new Redis(redisUrl)
 const client: Client = { baseUrl, headers: {} }
@@ -80,6 +81,9 @@ try {
   if (warm.status !== 'succeeded') throw new Error(`warm-up run ${warm.status}`)
 
   const memoryBefore = await usedMemory(redis)
+  const cpuBefore = processes.map((p) => cpuSeconds(p.child.pid) ?? 0)
+  const redisCpuBefore = await redisCpuSeconds(redis)
+  const clientCpuBefore = process.cpuUsage()
   const t0 = performance.now()
   const runs: { id: string; submittedMs: number; ended?: RunView; endedMs?: number; paged?: PagedResults; pagedMs?: number }[] = []
   const follow: Promise<void>[] = []
@@ -100,6 +104,9 @@ try {
   const submitMs = performance.now() - t0
   await Promise.all(follow)
   const totalMs = performance.now() - t0
+  const cpu = processes.map((p, i) => (cpuSeconds(p.child.pid) ?? 0) - cpuBefore[i]!)
+  const clientCpu = process.cpuUsage(clientCpuBefore)
+  const redisCpu = (await redisCpuSeconds(redis)) - redisCpuBefore
 
   const memoryAfter = await usedMemory(redis)
   let storedBytes = 0
@@ -129,6 +136,12 @@ try {
   out(`fit (first POST to last run succeeded):    ${f(fitEndMs / 1000, 2)} s   (server: first chunk started to last run finished ${f((finished - started) / 1000, 2)} s)`)
   out(`total wall (first POST to last page read): ${f(totalMs / 1000, 2)} s`)
   out(`SKUs per second end to end:                ${f(SKUS / (totalMs / 1000))}`)
+  const cpuTotal = cpu.reduce((a, c) => a + c, 0) + (clientCpu.user + clientCpu.system) / 1e6 + redisCpu
+  out(`CPU seconds in the measured part: ${processes.map((p, i) => `${p.name} ${f(cpu[i]!, 1)}`).join(', ')}, ` +
+    `bench client ${f((clientCpu.user + clientCpu.system) / 1e6, 1)}, Redis ${f(redisCpu, 1)} (shared server: includes other users); ` +
+    `total ${f(cpuTotal, 1)} = ${f((cpuTotal * 1000) / SKUS, 2)} ms per SKU`)
+  out(`if the ${availableParallelism()} cores were ours alone (CPU-bound estimate): ${f(SKUS / (cpuTotal / availableParallelism()))} SKUs/s, ` +
+    `${f(cpuTotal / availableParallelism(), 1)} s for this run`)
   for (const r of rss) out(`peak RSS ${r.name.padEnd(10)} (VmHWM):           ${r.peakMiB === null ? 'n/a' : `${f(r.peakMiB, 1)} MiB`}`)
   out(`Redis used_memory delta per SKU:           ${f(perSku)} B   (MEMORY USAGE: results ${f(storedBytes / SKUS)} B + latest index ` +
     `${f(latestBytes / SKUS)} B per SKU; stored item median ${f(itemMedian)} B)`)

@@ -13,6 +13,8 @@ export interface HistoryWriter {
     tenant: string,
     batch: readonly PendingHistory[],
     merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
+    /** readValues false: `current.values` may be empty (the merge replaces them). */
+    opts?: { readonly readValues?: boolean },
   ): Promise<readonly ({ outcome: 'created' | 'updated' } | { reason: string })[]>
 }
 
@@ -44,7 +46,7 @@ export async function commitUpload(
   const merge = (current: HistoryData | null, p: PendingHistory) => mergeHistory(current, p.incoming, mode)
   let batch: PendingHistory[] = []
   const flush = async () => {
-    const results = await writer.apply(tenant, batch, merge)
+    const results = await writer.apply(tenant, batch, merge, { readValues: mode === 'append' })
     results.forEach((r, i) => {
       const p = batch[i]!
       if ('reason' in r) {

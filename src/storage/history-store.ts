@@ -115,7 +115,7 @@ export class HistoryStore implements HistoryWriter {
   /** Replace one SKU's history; says whether it was created. */
   async put(tenant: string, sku: string, data: HistoryData): Promise<{ outcome: 'created' | 'updated'; history: StoredHistory }> {
     const pending = { sku, incoming: { frequency: data.frequency, startOrdinal: 0, values: [] }, rows: 0, origin: {} }
-    const [r] = await this.apply(tenant, [pending], () => ({ data }))
+    const [r] = await this.apply(tenant, [pending], () => ({ data }), { readValues: false })
     if (!r || 'reason' in r) throw new Error(r ? r.reason : 'history not written')
     return { outcome: r.outcome, history: (await this.get(tenant, sku))! }
   }
@@ -124,14 +124,20 @@ export class HistoryStore implements HistoryWriter {
     tenant: string,
     batch: readonly PendingHistory[],
     merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
+    opts: { readonly readValues?: boolean } = {},
   ): Promise<({ outcome: 'created' | 'updated' } | { reason: string })[]> {
     const k = this.keys(tenant)
+    // A merge that replaces values needs only the metadata (tags, revision): skip reading the values.
+    const readValues = opts.readValues ?? true
     const results: ({ outcome: 'created' | 'updated' } | { reason: string })[] = new Array(batch.length)
     let todo = batch.map((_, i) => i)
     for (let attempt = 0; attempt < MAX_ATTEMPTS && todo.length > 0; attempt++) {
       if (attempt > 0) await new Promise((r) => setTimeout(r, Math.random() * 5 * attempt))
       const skus = todo.map((i) => batch[i]!.sku)
-      const [metas, datas] = await Promise.all([this.redis.hmget(k.meta, ...skus), this.redis.hmget(k.data, ...skus)])
+      const [metas, datas] = await Promise.all([
+        this.redis.hmget(k.meta, ...skus),
+        readValues ? this.redis.hmget(k.data, ...skus) : skus.map(() => '[]'),
+      ])
       const pipe = this.redis.pipeline()
       const sent: number[] = []
       const updatedAt = (this.opts.now?.() ?? new Date()).toISOString()

@@ -98,6 +98,15 @@ describe('POST /v1/history with CSV', () => {
     expect(await history('NEVER')).toBeNull()
   })
 
+  it('lists the first 1000 errors and counts the rest; reads a UTF-8 BOM and CRLF line ends', async () => {
+    const bad = Array.from({ length: 1005 }, () => 'CAPPED,2025-01-01,x').join('\r\n')
+    const res = await upload('', 'text/csv', `\ufeffsku,period,quantity\r\nCAPPED,2025-01-01,1\r\n${bad}\r\n`)
+    expect(res.json()).toMatchObject({ rows: { accepted: 1, rejected: 1005 }, errorsNotListed: 5 })
+    expect(res.json().errors).toHaveLength(1000)
+    expect(res.json().errors[999].line).toBe(1002)
+    expect(await history('CAPPED')).toMatchObject({ values: [1] })
+  })
+
   it('an upload over the body limit is a 413 and stores nothing', async () => {
     const line = 'BIG,2025-01-01,1\n'
     const body = 'sku,period,quantity\n' + line.repeat(Math.ceil((1.2 * 1024 * 1024) / line.length))

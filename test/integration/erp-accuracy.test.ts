@@ -146,6 +146,28 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     expect([...latest!.points]).toEqual([['2027-01', 7]])
   })
 
+  it('pages the exception list by SKU with a cursor', async () => {
+    const snapshots = erp.services.accuracy.forecasts
+    const periods = ['2027-01', '2027-02', '2027-03', '2027-04', '2027-05']
+    for (const sku of ['PAGE-C', 'PAGE-A', 'PAGE-B']) {
+      await snapshots.remember('paging', `run-${sku}`, 1, [
+        {
+          sku, model: 'naive', family: 'level', params: {}, metrics: null, leaderboard: [], warnings: [],
+          selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
+          forecast: periods.map((period) => ({ period, value: 10, lower: {}, upper: {} })),
+          intervals: { method: 'none', levels: [], clamped: false },
+        },
+      ])
+      // Errors +5 in each of 5 periods: TS = 25 / 5 = 5.
+      await erp.services.accuracy.recordActuals('paging', sku, 'month', periods.map((period) => ({ period, value: 15 })))
+    }
+    const first = await erp.services.accuracy.exceptions('paging', 2)
+    expect(first.items.map((i) => [i.sku, i.trackingSignal])).toEqual([['PAGE-A', 5], ['PAGE-B', 5]])
+    const second = await erp.services.accuracy.exceptions('paging', 2, first.nextCursor!)
+    expect(second.items.map((i) => i.sku)).toEqual(['PAGE-C'])
+    expect(second.nextCursor).toBeNull()
+  })
+
   it('records nothing for a SKU without a forecast, and pages the list with a cursor', async () => {
     const out = await erp.services.accuracy.recordActuals('default', 'NO-RUN', 'month', [{ period: '2026-01', value: 3 }])
     expect(out).toEqual({ added: 0, corrected: 0, reason: 'no-forecast', summary: null })

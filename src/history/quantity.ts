@@ -1,3 +1,5 @@
+import { MAX_ABS_VALUE } from '../schemas/run.js'
+
 /** A plain decimal number: optional sign, digits, optional fraction and exponent. No hex, no Infinity. */
 const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/
 
@@ -10,7 +12,9 @@ export function parseQuantity(cell: string): { value: number } | { reason: strin
   if (text === '') return { reason: 'quantity is empty' }
   if (!DECIMAL.test(text)) return { reason: `quantity ${JSON.stringify(cell.slice(0, 40))} is not a number (use . as decimal point)` }
   const value = Number(text)
-  if (!Number.isFinite(value)) return { reason: `quantity ${JSON.stringify(cell.slice(0, 40))} is out of range` }
+  if (!Number.isFinite(value) || Math.abs(value) > MAX_ABS_VALUE) {
+    return { reason: `quantity ${JSON.stringify(cell.slice(0, 40))} is out of range (at most 1e15 in size)` }
+  }
   return { value }
 }
 

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { FREQUENCIES, parsePeriod, type Frequency } from '../engine/index.js'
-import { MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from '../schemas/run.js'
+import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from '../schemas/run.js'
 import { normaliseTags } from './tags.js'
 import type { IncomingHistory } from './types.js'
 
@@ -9,7 +9,7 @@ export const UploadSeries = z.object({
   sku: Sku,
   frequency: z.enum(FREQUENCIES).optional(),
   start: PeriodLabel,
-  values: z.array(z.number().nullable()).min(1).max(MAX_POINTS_PER_SERIES),
+  values: z.array(DemandValue).min(1).max(MAX_POINTS_PER_SERIES),
   tags: z.array(z.string()).optional(),
 })
 

@@ -1,7 +1,7 @@
 import { z } from 'zod'
 import { FREQUENCIES } from '../engine/index.js'
 import { DUPLICATE_POLICIES, MAX_TAGS, TAG_PATTERN, UPLOAD_MODES } from '../history/types.js'
-import { MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from './run.js'
+import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from './run.js'
 
 /** Request and response shapes of the stored-history routes. */
 
@@ -14,7 +14,7 @@ export const HistoryBody = z.object({
   frequency: z.enum(FREQUENCIES),
   start: PeriodLabel.describe('Label of the first period (same frequency)'),
   values: z
-    .array(z.number().nullable())
+    .array(DemandValue)
     .min(1)
     .max(MAX_POINTS_PER_SERIES)
     .describe('Demand per period, oldest first; null marks a missing period'),

@@ -11,6 +11,21 @@ import { TAG_PATTERN } from '../history/types.js'
 export const MAX_POINTS_PER_SERIES = 10_000
 export const MAX_HORIZON = 1_000
 
+/**
+ * Largest magnitude of a demand value. Far beyond any real quantity, and small
+ * enough that sums of squares over a whole series stay finite in doubles
+ * (values near 1e308 overflowed error metrics to Infinity). Common practice:
+ * stay well under 2^53 ~ 9e15, where doubles still count whole units.
+ */
+export const MAX_ABS_VALUE = 1e15
+
+/** One period's demand: a finite number within +-MAX_ABS_VALUE, or null for a missing period. */
+export const DemandValue = z
+  .number()
+  .min(-MAX_ABS_VALUE, 'must be between -1e15 and 1e15')
+  .max(MAX_ABS_VALUE, 'must be between -1e15 and 1e15')
+  .nullable()
+
 export const Sku = z
   .string()
   .min(1)
@@ -26,7 +41,7 @@ export const PeriodLabel = z
 export const SeriesItem = z.object({
   sku: Sku,
   values: z
-    .array(z.number().nullable())
+    .array(DemandValue)
     .min(1)
     .max(MAX_POINTS_PER_SERIES)
     .describe('Demand per period, oldest first; null marks a missing period'),

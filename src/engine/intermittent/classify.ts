@@ -45,11 +45,13 @@ export function classifyDemand(series: readonly number[]): DemandClassification 
     throw new EngineInputError('series-too-short', 'demand classification requires at least 2 non-zero demands')
   }
   const mean = total / demands
+  // Sum of (x / mean - 1)^2: the same ratio as variance / mean^2, but scale-free,
+  // so tiny sizes (mean^2 underflowing to 0) cannot make it 0 / 0 = NaN.
   let ss = 0
   for (let t = 0; t < series.length; t++) {
-    if (series[t] > 0) ss += (series[t] - mean) * (series[t] - mean)
+    if (series[t] > 0) ss += (series[t] / mean - 1) * (series[t] / mean - 1)
   }
-  const cv2 = ss / demands / (mean * mean)
+  const cv2 = ss / demands
   const adi = (last + 1) / demands
   const intermittentSide = adi > ADI_CUTOFF
   const variableSide = cv2 > CV2_CUTOFF

@@ -1,0 +1,131 @@
+/**
+ * Read latency under load while a large run is fitting: starts the API and a
+ * worker process (as bench/e2e.ts does, own Redis prefix), forecasts a first set
+ * of SKUs, submits a large run, and while it fits sends GET /v1/skus/{sku}/forecast
+ * (random SKUs of the first set) and GET /v1/runs/{runId} (the fitting run) from
+ * a loopback load generator (autocannon) at a fixed overall rate, bounded in
+ * count and time. Prints p50/p99 latency and the achieved rate per route, and
+ * the run's progress at the start and end of the load (so the load overlapped
+ * fitting). Stops the processes and deletes its keys afterwards.
+ *
+ *   npm run bench:poll [-- --rate 1000 --seconds 20 --skus 60000 --connections 20]
+ * Target (from the product issue): p99 < 50 ms at 1,000 requests/s.
+ */
+import { randomBytes } from 'node:crypto'
+import { availableParallelism, loadavg } from 'node:os'
+import autocannon from 'autocannon'
+import { Redis } from 'ioredis'
+import { getRun, pageResults, runBody, skuName, submitRun, waitForRun, type Client } from './e2e-client.js'
+import { freePort } from './e2e-port.js'
+import { startService, stopService, waitReady, type ServiceProcess } from './e2e-processes.js'
+import { deletePrefix } from './e2e-redis.js'
+
+function option(name: string, fallback: number): number {
+  const at = process.argv.indexOf(`--${name}`)
+  const value = at >= 0 ? Number(process.argv[at + 1]) : fallback
+  if (!Number.isInteger(value) || value < 1) throw new Error(`--${name} must be a positive integer`)
+  return value
+}
+
+const RATE = option('rate', 1000)
+const SECONDS = Math.min(option('seconds', 20), 120)
+const SKUS = option('skus', 60_000)
+const CONNECTIONS = option('connections', 20)
+const KNOWN = 2000 // SKUs forecast before the load starts
+const BATCH = 20_000
+const SEED = 17
+const P99_TARGET_MS = 50
+const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'
+const prefix = `bench-poll-${randomBytes(4).toString('hex')}`
+const out = (line = ''): void => {
+  process.stdout.write(line + '\n')
+}
+const f = (v: number, d = 0): string => v.toLocaleString('en-US', { maximumFractionDigits: d, minimumFractionDigits: d })
+
+const port = await freePort()
+const baseUrl = `http://127.0.0.1:${port}`
+const env: Record<string, string> = {
+  REDIS_URL: redisUrl,
+  REDIS_PREFIX: prefix,
+  HOST: '127.0.0.1',
+  PORT: String(port),
+  RUN_WORKER: 'false',
+  LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn',
+  // The bench's own budget: far above the requests it sends, so no answer is a 429.
+  RATE_LIMIT_MAX: '1000000',
+  RESULT_RETENTION_SECONDS: '3600',
+  API_KEYS: '',
+}
+const redis = new Redis(redisUrl)
+const client: Client = { baseUrl, headers: {} }
+const processes: ServiceProcess[] = []
+
+/** One autocannon load on loopback, `rate` requests/s, at most rate * SECONDS requests or SECONDS s. */
+function load(title: string, rate: number, path: () => string): Promise<autocannon.Result> {
+  return new Promise((resolve, reject) => {
+    autocannon(
+      {
+        title,
+        url: baseUrl,
+        connections: Math.max(1, Math.round((CONNECTIONS * rate) / RATE)),
+        overallRate: rate,
+        amount: rate * SECONDS,
+        duration: SECONDS + 5,
+        timeout: 10,
+        requests: [{ method: 'GET', setupRequest: (req) => ({ ...req, path: path() }) }],
+      },
+      (err, result) => (err ? reject(err) : resolve(result)),
+    )
+  })
+}
+
+try {
+  processes.push(startService('api', 'src/server.ts', env), startService('worker-1', 'src/worker-main.ts', env))
+  await waitReady(processes[0]!, baseUrl)
+  const known = await waitForRun(client, await submitRun(client, runBody(SEED, 0, KNOWN)), 100)
+  if (known.status !== 'succeeded') throw new Error(`first run ${known.status}`)
+
+  // The large run, in batches; the load polls the last one (it ends last).
+  const runIds: string[] = []
+  for (let first = KNOWN; first < KNOWN + SKUS; first += BATCH) {
+    runIds.push(await submitRun(client, runBody(SEED, first, Math.min(BATCH, KNOWN + SKUS - first))))
+  }
+  const polled = runIds[runIds.length - 1]!
+  const before = await getRun(client, polled)
+  const skuPath = () => `/v1/skus/${skuName(Math.floor(Math.random() * KNOWN))}/forecast`
+  const [forecasts, runs] = await Promise.all([
+    load('GET /v1/skus/{sku}/forecast', RATE / 2, skuPath),
+    load('GET /v1/runs/{runId}', RATE / 2, () => `/v1/runs/${polled}`),
+  ])
+  const after = await getRun(client, polled)
+  const allDone = await Promise.all(runIds.map((id) => getRun(client, id)))
+  const sample = await pageResults(client, known.id, 10)
+
+  out(`Poll benchmark: ${f(RATE)} requests/s for up to ${SECONDS} s (half each route), ${CONNECTIONS} connections, loopback`)
+  out(`machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(2)}; while fitting ${f(SKUS)} SKUs in ${runIds.length} runs ` +
+    `(1 worker process, one thread per core)`)
+  out(`polled run progress: ${before.status} ${f(before.progress.done)}/${f(before.progress.total)} at the start, ` +
+    `${after.status} ${f(after.progress.done)}/${f(after.progress.total)} at the end; ` +
+    `all runs done at the end: ${f(allDone.reduce((a, r) => a + r.progress.done, 0))}/${f(SKUS)}`)
+  out(`forecast SKUs known: ${f(sample.items)} sampled OK before the load`)
+  out()
+  out('| route                          | requests | achieved req/s | p50 ms | p99 ms | max ms | non-2xx | errors |')
+  out('|--------------------------------|----------|----------------|--------|--------|--------|---------|--------|')
+  let worstP99 = 0
+  for (const r of [forecasts, runs]) {
+    const total = r['2xx'] + r.non2xx
+    worstP99 = Math.max(worstP99, r.latency.p99)
+    out(`| ${String(r.title).padEnd(30)} | ${f(total).padStart(8)} | ${f(total / r.duration, 0).padStart(14)} | ` +
+      `${f(r.latency.p50).padStart(6)} | ${f(r.latency.p99).padStart(6)} | ${f(r.latency.max).padStart(6)} | ${f(r.non2xx).padStart(7)} | ${f(r.errors + r.timeouts).padStart(6)} |`)
+  }
+  const achieved = (forecasts['2xx'] + forecasts.non2xx) / forecasts.duration + (runs['2xx'] + runs.non2xx) / runs.duration
+  out()
+  out(`achieved overall: ${f(achieved)} requests/s of ${f(RATE)} asked`)
+  out(`target p99 < ${P99_TARGET_MS} ms: ${worstP99 < P99_TARGET_MS ? 'MET' : 'NOT MET'} (worst route p99 ${f(worstP99)} ms)`)
+  if (before.status !== 'running' && before.status !== 'queued') out('note: the polled run was not fitting when the load started')
+} finally {
+  for (const p of processes) await stopService(p)
+  const removed = await deletePrefix(redis, prefix)
+  out(`cleanup: stopped ${processes.length} processes, deleted ${f(removed)} keys under ${prefix}:`)
+  redis.disconnect()
+}

@@ -269,11 +269,14 @@ describe('fixed hostile bodies', () => {
     }
   })
 
-  it('a SKU twice in one run is refused, naming the second occurrence', async () => {
+  it('a SKU twice in one run or sync forecast is refused, naming the second occurrence', async () => {
     const body = { horizon: 3, series: [{ sku: 'DUP', values: [1, 2] }, { sku: 'OTHER', values: [1] }, { sku: 'DUP', values: [3] }] }
     const res = await send('POST', '/v1/runs', JSON.stringify(body))
     expect(res.statusCode).toBe(400)
     expect(res.json().errors).toEqual([{ path: 'series[2].sku', message: 'SKU "DUP" appears more than once' }])
+    const sync = await send('POST', '/v1/forecast', JSON.stringify(body))
+    expect(sync.statusCode).toBe(400)
+    expect(sync.json().errors).toEqual([{ path: 'series[2].sku', message: 'SKU "DUP" appears more than once' }])
   })
 
   it('leaves Object.prototype as it found it', () => {

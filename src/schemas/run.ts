@@ -98,9 +98,22 @@ export const RunSettings = z.object({
 })
 export type RunSettings = z.infer<typeof RunSettings>
 
+/**
+ * A SKU appears at most once per request: a second occurrence is a 400 naming
+ * it (`series[i].sku`) rather than a silent "later one wins".
+ */
+function refuseDuplicateSkus(series: readonly { sku: string }[] | undefined, ctx: z.RefinementCtx): void {
+  if (series === undefined) return
+  const seen = new Set<string>()
+  series.forEach((s, i) => {
+    if (seen.has(s.sku)) ctx.addIssue({ code: 'custom', path: ['series', i, 'sku'], message: `SKU ${JSON.stringify(s.sku)} appears more than once` })
+    seen.add(s.sku)
+  })
+}
+
 export const RunRequest = RunSettings.extend({
   series: z.array(SeriesItem).min(1),
-})
+}).superRefine((body, ctx) => refuseDuplicateSkus(body.series, ctx))
 export type RunRequest = z.infer<typeof RunRequest>
 
 /** Most SKUs a run may name in `skus`. */
@@ -127,6 +140,7 @@ export const RunSubmission = RunSettings.extend({
     .describe('Forecast the stored histories of SKUs carrying every listed tag'),
   all: z.literal(true).optional().describe('Forecast every stored history of the tenant'),
 }).superRefine((body, ctx) => {
+  refuseDuplicateSkus(body.series, ctx)
   const given = (['series', 'skus', 'tags', 'all'] as const).filter((f) => body[f] !== undefined)
   if (given.length === 0) {
     ctx.addIssue({ code: 'custom', path: ['series'], message: 'give series, or select stored histories with skus, tags or all' })

@@ -1,4 +1,4 @@
-import { MAX_POINTS_PER_SERIES } from '../schemas/run.js'
+import { MAX_ABS_VALUE, MAX_POINTS_PER_SERIES } from '../schemas/run.js'
 import type { Frequency } from '../engine/index.js'
 import { ErrorCollector } from './errors.js'
 import type { DuplicatePolicy, IncomingHistory, Origin } from './types.js'
@@ -78,7 +78,8 @@ export class HistoryAccumulator {
   /**
    * Every SKU's incoming data. Buckets between a SKU's first and last row
    * without rows become 0 (no recorded demand). A SKU whose rows span more
-   * than MAX_POINTS_PER_SERIES buckets is rejected (its rows counted as rejected).
+   * than MAX_POINTS_PER_SERIES buckets, or whose bucket total exceeds
+   * MAX_ABS_VALUE in size, is rejected (its rows counted as rejected).
    */
   *drain(): Generator<PendingHistory> {
     for (const [sku, entry] of this.seriesBySku) yield { sku, incoming: entry.incoming, rows: 1, origin: entry.origin }
@@ -99,7 +100,16 @@ export class HistoryAccumulator {
         continue
       }
       const values = new Array<number>(span).fill(0)
-      for (const [ordinal, quantity] of group.cells) values[ordinal - lo] = quantity
+      let tooLarge = false
+      for (const [ordinal, quantity] of group.cells) {
+        values[ordinal - lo] = quantity
+        if (Math.abs(quantity) > MAX_ABS_VALUE) tooLarge = true
+      }
+      if (tooLarge) {
+        // Each row is within range, but their sum in a bucket is not: runs would refuse the stored history.
+        this.errors.add({ ...origin, sku, reason: `a ${this.opts.frequency} total is larger than ${MAX_ABS_VALUE} in size` }, group.rows)
+        continue
+      }
       yield { sku, incoming: { frequency: this.opts.frequency, startOrdinal: lo, values }, rows: group.rows, origin }
     }
     this.rowGroups.clear()

@@ -42,3 +42,15 @@ describe('readCsvUpload', () => {
     await expect(readCsvUpload(Readable.from(['']), layout, acc)).rejects.toThrow(UploadFormatError)
   })
 })
+
+describe('HistoryAccumulator limits', () => {
+  it('refuses a SKU whose bucket total leaves the demand range, keeping the others', () => {
+    const acc = new HistoryAccumulator({ frequency: 'month', duplicates: 'sum' })
+    acc.addRow('HUGE', 10, 9e14, { line: 2 })
+    acc.addRow('HUGE', 10, 9e14, { line: 3 })
+    acc.addRow('OK', 10, 1, { line: 4 })
+    expect(drained(acc)).toEqual([{ sku: 'OK', values: [1], rows: 1 }])
+    expect(acc.errors.listed).toEqual([{ line: 2, sku: 'HUGE', reason: 'a month total is larger than 1000000000000000 in size' }])
+    expect(acc.errors.rejectedRows).toBe(2)
+  })
+})

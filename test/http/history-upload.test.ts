@@ -78,9 +78,9 @@ describe('POST /v1/history with CSV', () => {
     expect(await history('STOVE')).toMatchObject({ frequency: 'week', start: '2020-W53', values: [3, 4, 8], lastPeriod: '2021-W02' })
   })
 
-  it('duplicates=last keeps the last row of a bucket', async () => {
+  it('duplicates=last keeps the last row of a bucket (content type with a charset)', async () => {
     const body = 'sku,period,quantity\nTWINE,2025-01,5\nTWINE,2025-01,7\nTWINE,2025-02,1\n'
-    await upload('?duplicates=last', 'text/csv', body)
+    expect((await upload('?duplicates=last', 'text/csv; charset=utf-8', body)).statusCode).toBe(200)
     expect(await history('TWINE')).toMatchObject({ values: [7, 1] })
   })
 
@@ -89,6 +89,10 @@ describe('POST /v1/history with CSV', () => {
     const res = await upload('?mode=append', 'text/csv', 'sku,period,quantity\nSEED-MIX,2025-03,6\nSEED-MIX,2025-04,7\n')
     expect(res.json().skus).toEqual({ created: 0, updated: 1, rejected: 0 })
     expect(await history('SEED-MIX')).toMatchObject({ start: '2025-01', values: [3, 4, 6, 7], tags: ['category:garden'] })
+  })
+
+  it('refuses other content types with 415', async () => {
+    expect((await upload('', 'application/xml', '<rows/>')).statusCode).toBe(415)
   })
 
   it('a header without the named column is a 400 problem naming the parameter, and stores nothing', async () => {

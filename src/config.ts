@@ -38,6 +38,8 @@ export const ConfigSchema = z.object({
   RESULT_RETENTION_SECONDS: intFromEnv(14 * 24 * 3600, 60, 366 * 24 * 3600),
   /** Largest accepted request body, in bytes. */
   BODY_LIMIT_BYTES: intFromEnv(64 * 1024 * 1024, 1024, 1024 * 1024 * 1024),
+  /** Longest a client may take to send a whole request (headers and body) before a 408; slow clients are cut off. */
+  REQUEST_TIMEOUT_MS: intFromEnv(120_000, 1000, 3_600_000),
   /** Most series accepted by the synchronous POST /v1/forecast. */
   SYNC_MAX_SERIES: intFromEnv(100, 1, 10_000),
   /** Requests per tenant per window. */
@@ -71,6 +73,8 @@ export interface Config {
   readonly workerStalledIntervalMs?: number
   readonly resultRetentionSeconds: number
   readonly bodyLimitBytes: number
+  /** Time to receive a whole request before a 408; default 120000 when absent. */
+  readonly requestTimeoutMs?: number
   readonly syncMaxSeries: number
   readonly rateLimitMax: number
   readonly rateLimitWindowMs: number
@@ -170,6 +174,7 @@ export function loadConfig(
     workerStalledIntervalMs: e.WORKER_STALLED_INTERVAL_MS,
     resultRetentionSeconds: e.RESULT_RETENTION_SECONDS,
     bodyLimitBytes: e.BODY_LIMIT_BYTES,
+    requestTimeoutMs: e.REQUEST_TIMEOUT_MS,
     syncMaxSeries: e.SYNC_MAX_SERIES,
     rateLimitMax: e.RATE_LIMIT_MAX,
     rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,

@@ -55,14 +55,25 @@ export interface AppDeps {
   readonly erp?: ErpServices
 }
 
+/** Time to receive a whole request when the config does not say (REQUEST_TIMEOUT_MS). */
+export const DEFAULT_REQUEST_TIMEOUT_MS = 120_000
+
 const CLIENT_REQUEST_ID = /^[A-Za-z0-9._-]{1,64}$/
 
 /** The HTTP app, ready for inject() or listen(); never listens itself. */
 export async function build(deps: AppDeps): Promise<FastifyInstance> {
   const { config } = deps
+  const requestTimeoutMs = config.requestTimeoutMs ?? DEFAULT_REQUEST_TIMEOUT_MS
   const app = Fastify({
     loggerInstance: (deps.logger ?? createLogger({ level: 'silent' })) as FastifyBaseLogger,
     bodyLimit: config.bodyLimitBytes,
+    // Slow clients (a trickled body, half-sent headers) get a 408 and are cut off.
+    requestTimeout: requestTimeoutMs,
+    http: {
+      headersTimeout: Math.min(60_000, requestTimeoutMs),
+      // Node checks the timeouts this often (its default, 30 s, would let short timeouts overrun).
+      connectionsCheckingInterval: Math.max(100, Math.min(30_000, Math.floor(requestTimeoutMs / 4))),
+    },
     // A client's X-Request-Id is kept when it is short and plain; otherwise a fresh one.
     genReqId: (req) => {
       const given = req.headers['x-request-id']

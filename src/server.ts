@@ -55,8 +55,8 @@ async function main(): Promise<void> {
   apiRedis.on('error', (err) => logger.warn({ err }, 'API Redis connection error'))
   const erp = createErpServices(config, apiRedis)
   // Uploads score earlier forecasts against the actuals they bring (GET /v1/skus/{sku}/accuracy).
-  const histories = new AccuracyTrackingHistoryStore(apiRedis, { prefix: config.redisPrefix }, erp.services.accuracy, (err, tenant, sku) =>
-    logger.warn({ err, tenant, skuLength: sku.length }, 'could not score actuals against the latest forecast'),
+  const histories = new AccuracyTrackingHistoryStore(apiRedis, { prefix: config.redisPrefix }, erp.services.accuracy, (err, tenant) =>
+    logger.warn({ err, tenant }, 'could not score actuals against the latest forecast'),
   )
   const idempotency = new IdempotencyStore(apiRedis, { prefix: config.redisPrefix })
   const metrics = createServiceMetrics()

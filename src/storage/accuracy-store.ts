@@ -3,7 +3,7 @@ import { parsePeriod, summariseAccuracy, type AccuracySummary, type Frequency } 
 import { decodeCursor, encodeCursor } from './codec.js'
 import { isValidTenant } from './keys.js'
 import type { RunStore } from './run-store.js'
-import { ForecastSnapshots } from './forecast-snapshots.js'
+import { ForecastSnapshots, type Snapshot } from './forecast-snapshots.js'
 import { RunInputError } from './types.js'
 
 /**
@@ -57,6 +57,18 @@ export interface ScoredRecord {
 
 export type SkuAccuracy = AccuracySummary & { readonly sku: string; readonly updatedAt: string }
 
+export interface PeriodValue {
+  readonly period: string
+  readonly value: number | null
+}
+
+/** New actuals of one SKU: its periods in the given frequency. */
+export interface ActualsEntry {
+  readonly sku: string
+  readonly frequency: Frequency
+  readonly periodValues: readonly PeriodValue[]
+}
+
 export interface RecordOutcome {
   /** Periods scored for the first time, and periods whose actual was corrected. */
   readonly added: number
@@ -98,23 +110,57 @@ export class AccuracyStore {
     tenant: string,
     sku: string,
     frequency: Frequency,
-    periodValues: readonly { readonly period: string; readonly value: number | null }[],
+    periodValues: readonly PeriodValue[],
   ): Promise<RecordOutcome> {
-    const latest = await this.forecasts.latest(tenant, sku)
-    if (latest === null) return { added: 0, corrected: 0, reason: 'no-forecast', summary: await this.get(tenant, sku) }
+    const out = await this.score(tenant, { sku, frequency, periodValues }, await this.forecasts.latest(tenant, sku))
+    return { ...out, summary: out.summary === undefined ? await this.get(tenant, sku) : out.summary }
+  }
+
+  /**
+   * recordActuals for many SKUs of one tenant (a bulk upload): one round trip
+   * finds the SKUs that have a forecast; only those cost more.
+   */
+  async recordActualsMany(
+    tenant: string,
+    entries: readonly ActualsEntry[],
+    parallel = 16,
+  ): Promise<{ readonly scored: number; readonly added: number; readonly corrected: number }> {
+    const latest = await this.forecasts.latestMany(
+      tenant,
+      entries.map((e) => e.sku),
+    )
+    const todo = entries.flatMap((e, i) => (latest[i] ? [{ e, f: latest[i]! }] : []))
+    let added = 0
+    let corrected = 0
+    for (let i = 0; i < todo.length; i += parallel) {
+      const outs = await Promise.all(todo.slice(i, i + parallel).map(({ e, f }) => this.score(tenant, e, f)))
+      for (const o of outs) {
+        added += o.added
+        corrected += o.corrected
+      }
+    }
+    return { scored: todo.length, added, corrected }
+  }
+
+  /** Scores one SKU's actuals against a forecast; `summary` undefined when it was not read. */
+  private async score(
+    tenant: string,
+    entry: ActualsEntry,
+    latest: Snapshot | null,
+  ): Promise<Omit<RecordOutcome, 'summary'> & { summary?: SkuAccuracy | null }> {
+    if (latest === null) return { added: 0, corrected: 0, reason: 'no-forecast' }
     const forecast = new Map<string, number>()
-    for (const [period, value] of latest.points) if (sameFrequency(period, frequency)) forecast.set(period, value)
+    for (const [period, value] of latest.points) if (sameFrequency(period, entry.frequency)) forecast.set(period, value)
     const args: string[] = [latest.runId]
-    for (const { period, value } of periodValues) {
+    for (const { period, value } of entry.periodValues) {
       const f = forecast.get(period)
       if (f === undefined || value === null || !Number.isFinite(value)) continue
       args.push(period, String(f), String(value))
     }
-    if (args.length === 1) return { added: 0, corrected: 0, reason: 'no-overlap', summary: await this.get(tenant, sku) }
+    if (args.length === 1) return { added: 0, corrected: 0, reason: 'no-overlap' }
     const run = (this.redis as unknown as Record<string, (...a: string[]) => Promise<[number, number]>>)[COMMAND]!
-    const [added, corrected] = await run.call(this.redis, this.periodsKey(tenant, sku), ...args)
-    const summary = added + corrected > 0 ? await this.refresh(tenant, sku) : await this.get(tenant, sku)
-    return { added, corrected, summary }
+    const [added, corrected] = await run.call(this.redis, this.periodsKey(tenant, entry.sku), ...args)
+    return added + corrected > 0 ? { added, corrected, summary: await this.refresh(tenant, entry.sku) } : { added, corrected }
   }
 
   /** Every scored period of a SKU, oldest period first. */

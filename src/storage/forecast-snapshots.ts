@@ -1,5 +1,5 @@
 import type { Redis } from 'ioredis'
-import { isValidTenant } from './keys.js'
+import { isValidTenant, latestKey } from './keys.js'
 import type { RunStore } from './run-store.js'
 import type { ResultItem } from './types.js'
 
@@ -40,6 +40,12 @@ return changed
 `
 const REMEMBER_COMMAND = 'almanacRememberForecasts'
 
+/** A SKU's latest successful forecast: its run and the point forecast per period label. */
+export interface Snapshot {
+  readonly runId: string
+  readonly points: ReadonlyMap<string, number>
+}
+
 export class ForecastSnapshots {
   constructor(
     private readonly redis: Redis,
@@ -70,16 +76,35 @@ export class ForecastSnapshots {
   }
 
   /** The forecast scoring uses: the remembered one, else the run store's latest. */
-  async latest(tenant: string, sku: string): Promise<{ runId: string; points: Map<string, number> } | null> {
-    const kept = await this.redis.hget(this.key(tenant), sku)
-    if (kept !== null) {
-      const a = kept.indexOf('|')
-      const b = kept.indexOf('|', a + 1)
-      const [periods, values] = JSON.parse(kept.slice(b + 1)) as [string[], number[]]
-      return { runId: kept.slice(a + 1, b), points: new Map(periods.map((p, i) => [p, values[i]!])) }
-    }
-    const latest = await this.runs.latest(tenant, sku)
-    if (latest === null || 'error' in latest.item) return null
-    return { runId: latest.runId, points: new Map(latest.item.forecast.map((p) => [p.period, p.value])) }
+  async latest(tenant: string, sku: string): Promise<Snapshot | null> {
+    return (await this.latestMany(tenant, [sku]))[0] ?? null
   }
+
+  /**
+   * `latest` for many SKUs in the order given: one HMGET of the kept forecasts, one of the
+   * run store's latest pointers for the misses, and a read per SKU found only there.
+   */
+  async latestMany(tenant: string, skus: readonly string[]): Promise<(Snapshot | null)[]> {
+    if (skus.length === 0) return []
+    const kept = await this.redis.hmget(this.key(tenant), ...skus)
+    const out: (Snapshot | null)[] = kept.map((v) => (v === null ? null : decode(v)))
+    const misses = skus.flatMap((sku, i) => (out[i] === null ? [i] : []))
+    if (misses.length === 0) return out
+    const pointers = await this.redis.hmget(latestKey(this.prefix, tenant), ...misses.map((i) => skus[i]!))
+    for (const [j, i] of misses.entries()) {
+      if (pointers[j] === null) continue
+      const latest = await this.runs.latest(tenant, skus[i]!)
+      if (latest !== null && !('error' in latest.item)) {
+        out[i] = { runId: latest.runId, points: new Map(latest.item.forecast.map((p) => [p.period, p.value])) }
+      }
+    }
+    return out
+  }
+}
+
+function decode(kept: string): Snapshot {
+  const a = kept.indexOf('|')
+  const b = kept.indexOf('|', a + 1)
+  const [periods, values] = JSON.parse(kept.slice(b + 1)) as [string[], number[]]
+  return { runId: kept.slice(a + 1, b), points: new Map(periods.map((p, i) => [p, values[i]!])) }
 }

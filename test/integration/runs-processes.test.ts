@@ -86,14 +86,15 @@ describe('worker processes', { timeout: 120_000 }, () => {
     const r = await finished(run.id)
     expect(r.status).toBe('succeeded')
     expect(r.progress).toEqual({ total: 400, done: 400, failed: 0 })
+    await expectEachSkuOnce(run.id, series.map((s) => s.sku))
+    // Stopped first, so every log line (the last commit's too) has been read.
+    expect(await stopWorkerProcess(a)).toBe(0)
+    expect(await stopWorkerProcess(b)).toBe(0)
     const ca = a.chunksOf(run.id)
     const cb = b.chunksOf(run.id)
     expect(ca.length).toBeGreaterThan(0)
     expect(cb.length).toBeGreaterThan(0)
     expect([...ca, ...cb].sort((x, y) => x - y)).toEqual(Array.from({ length: 16 }, (_, i) => i))
-    await expectEachSkuOnce(run.id, series.map((s) => s.sku))
-    expect(await stopWorkerProcess(a)).toBe(0)
-    expect(await stopWorkerProcess(b)).toBe(0)
   })
 
   it('recover the chunk of a worker killed with SIGKILL mid-run', async () => {
@@ -114,19 +115,22 @@ describe('worker processes', { timeout: 120_000 }, () => {
     const orphanIndex = Number(orphaned[0]!.split('.').pop())
 
     const rescuer = spawnWorker()
+    let rescuerExit: number | string = 'not stopped'
     try {
       const r = await finished(run.id)
       expect(r.status).toBe('succeeded')
       expect(r.progress).toEqual({ total: 250, done: 250, failed: 0 })
       await expectEachSkuOnce(run.id, series.map((s) => s.sku))
-      // The orphaned chunk was moved back by the stalled check and finished by the rescuer
-      // (committed by it, or found already committed if the victim died right after its commit).
-      expect(rescuer.processedOf(run.id)).toContain(orphanIndex)
-      const handled = new Set([...victim.chunksOf(run.id), ...rescuer.processedOf(run.id)])
-      expect([...handled].sort((x, y) => x - y)).toEqual(Array.from({ length: 10 }, (_, i) => i))
     } finally {
-      expect(await stopWorkerProcess(rescuer)).toBe(0)
+      // Stopped before reading its logs, so every line has been read.
+      rescuerExit = await stopWorkerProcess(rescuer)
     }
+    expect(rescuerExit).toBe(0)
+    // The orphaned chunk was moved back by the stalled check and finished by the rescuer
+    // (committed by it, or found already committed if the victim died right after its commit).
+    expect(rescuer.processedOf(run.id)).toContain(orphanIndex)
+    const handled = new Set([...victim.chunksOf(run.id), ...rescuer.processedOf(run.id)])
+    expect([...handled].sort((x, y) => x - y)).toEqual(Array.from({ length: 10 }, (_, i) => i))
   })
 
   it('finish the chunk in flight on SIGTERM, then exit 0', async () => {

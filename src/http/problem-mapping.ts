@@ -36,7 +36,9 @@ export function toProblem(err: unknown, ctx: { bodyLimitBytes: number }): Proble
   if (status === 415) return new ProblemError('unsupported-media-type', 'Send the body as application/json')
   if (status >= 400 && status < 500) {
     // Fastify's own client errors (bad content length, malformed header...): their messages are safe to show.
-    return new ProblemError('bad-request', typeof e.message === 'string' ? e.message : undefined)
+    // Any other error that happens to carry a 4xx status may hold internal detail: status only.
+    const own = typeof e.code === 'string' && e.code.startsWith('FST_')
+    return new ProblemError('bad-request', own && typeof e.message === 'string' ? e.message : undefined)
   }
   return new ProblemError('internal')
 }

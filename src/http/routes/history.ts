@@ -23,7 +23,8 @@ export function limitBytes(source: Readable, max: number): Readable {
   const counter = new Transform({
     transform(chunk: Buffer, _enc, done) {
       seen += chunk.length
-      if (seen > max) done(new ProblemError('payload-too-large', `The upload is larger than ${max} bytes`))
+      // Connection: close, so the server does not go on reading (draining) the rest of a huge body.
+      if (seen > max) done(new ProblemError('payload-too-large', `The upload is larger than ${max} bytes`, undefined, { connection: 'close' }))
       else done(null, chunk)
     },
   })

@@ -39,35 +39,46 @@ afterAll(async () => {
 
 const pause = (ms: number) => new Promise((r) => setTimeout(r, ms))
 
+/** Sends a CSV header line then endless chunked rows; returns what came back and how much was sent. */
+async function endlessUpload(header: string): Promise<{ received: string; sent: number }> {
+  const socket = connect(port, '127.0.0.1')
+  sockets.push(socket)
+  let received = ''
+  const closed = new Promise<void>((done) => {
+    socket.on('data', (d) => (received += d.toString('latin1')))
+    socket.on('close', () => done())
+    socket.on('error', () => done())
+  })
+  await new Promise((r) => socket.once('connect', r))
+  socket.write(
+    `POST /v1/history HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer ${KEY_GARDEN}\r\n` +
+      'Content-Type: text/csv\r\nTransfer-Encoding: chunked\r\nConnection: keep-alive\r\n\r\n',
+  )
+  socket.write(`${header.length.toString(16)}\r\n${header}\r\n`)
+  const piece = 'ENDLESS,2025-01-01,1\n'.repeat(200)
+  let sent = 0
+  // 100x the limit if the server read it all.
+  while (sent < LIMIT * 100 && received === '' && !socket.destroyed) {
+    const flushed = socket.write(`${piece.length.toString(16)}\r\n${piece}\r\n`)
+    sent += piece.length
+    await pause(flushed ? 1 : 10)
+  }
+  await closed
+  return { received, sent }
+}
+
 describe('POST /v1/history on a real socket', () => {
   it('cuts off an endless chunked CSV body near the limit with 413 and stores nothing', async () => {
-    const socket = connect(port, '127.0.0.1')
-    sockets.push(socket)
-    let received = ''
-    const closed = new Promise<void>((done) => {
-      socket.on('data', (d) => (received += d.toString('latin1')))
-      socket.on('close', () => done())
-      socket.on('error', () => done())
-    })
-    await new Promise((r) => socket.once('connect', r))
-    socket.write(
-      `POST /v1/history HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer ${KEY_GARDEN}\r\n` +
-        'Content-Type: text/csv\r\nTransfer-Encoding: chunked\r\nConnection: keep-alive\r\n\r\n',
-    )
-    const header = 'sku,period,quantity\n'
-    socket.write(`${header.length.toString(16)}\r\n${header}\r\n`)
-    const piece = 'ENDLESS,2025-01-01,1\n'.repeat(200)
-    let sent = 0
-    // 100x the limit if the server read it all.
-    while (sent < LIMIT * 100 && received === '' && !socket.destroyed) {
-      const flushed = socket.write(`${piece.length.toString(16)}\r\n${piece}\r\n`)
-      sent += piece.length
-      await pause(flushed ? 1 : 10)
-    }
-    await closed
+    const { received, sent } = await endlessUpload('sku,period,quantity\n')
     // The 413 may be lost to the reset the client provokes by writing on; the connection is closed either way.
     if (received !== '') expect(Number(/^HTTP\/1\.1 (\d{3})/.exec(received)?.[1])).toBe(413)
     expect(sent).toBeLessThan(LIMIT * 20)
     expect(await new HistoryStore(redis, { prefix }).get('garden', 'ENDLESS')).toBeNull()
+  })
+
+  it('closes the connection after refusing a bad header instead of draining an endless body', async () => {
+    const { received, sent } = await endlessUpload('article,date,qty\n')
+    if (received !== '') expect(Number(/^HTTP\/1\.1 (\d{3})/.exec(received)?.[1])).toBe(400)
+    expect(sent).toBeLessThan(LIMIT * 20)
   })
 })

@@ -129,7 +129,7 @@ async function drainInto(hash: Hash, source: Readable, max: number): Promise<str
   let seen = 0
   for await (const chunk of source) {
     seen += (chunk as Buffer).length
-    if (seen > max) throw new ProblemError('payload-too-large', `The upload is larger than ${max} bytes`)
+    if (seen > max) throw new ProblemError('payload-too-large', `The upload is larger than ${max} bytes`, undefined, { connection: 'close' })
     hash.update(chunk as Buffer)
   }
   return hash.digest('hex')

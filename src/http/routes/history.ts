@@ -58,7 +58,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       },
       config: { idempotency: true },
     },
-    async (request) => {
+    async (request, reply) => {
       const store = requireHistories(app)
       const q = request.query
       const acc = new HistoryAccumulator({ frequency: q.frequency, duplicates: q.duplicates })
@@ -74,6 +74,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
             await readNdjsonUpload(source, acc)
           }
         } catch (err) {
+          // The rest of the body was not read: close rather than let the server drain it.
+          reply.header('connection', 'close')
           if (err instanceof UploadFormatError) {
             throw new ProblemError('validation-failed', err.message, [{ path: err.field, message: err.message }])
           }

@@ -55,7 +55,9 @@ export default fp<{ store?: IdempotencyStore }>(
       const streamed = request.body instanceof Readable
       const hash = createHash('sha256').update(`${request.method} ${request.url}\n${request.headers['content-type'] ?? ''}\n`)
       const existing = await store.get(request.tenant, key)
-      if (existing?.state === 'pending') throw inUse()
+      // A streamed body left unread: close the connection rather than drain it.
+      const unread = streamed ? { connection: 'close' } : {}
+      if (existing?.state === 'pending') throw inUse(unread)
       if (existing?.state === 'done') {
         const digest = streamed
           ? await drainInto(hash, request.body as Readable, app.config.bodyLimitBytes)
@@ -63,7 +65,7 @@ export default fp<{ store?: IdempotencyStore }>(
         if (digest !== existing.hash) throw reused()
         return replay(reply, existing)
       }
-      if (!(await store.claim(request.tenant, key))) throw inUse()
+      if (!(await store.claim(request.tenant, key))) throw inUse(unread)
       const state: IdempotencyState = { key, hash: null, settled: false }
       request.idempotency = state
       if (!streamed) {
@@ -140,8 +142,13 @@ function headerText(v: ReturnType<FastifyReply['getHeader']>): string | null {
   return Array.isArray(v) ? v.join(', ') : String(v)
 }
 
-const inUse = () =>
-  new ProblemError('idempotency-key-in-use', 'A request with this Idempotency-Key is still being processed; retry after it has answered')
+const inUse = (headers: Record<string, string>) =>
+  new ProblemError(
+    'idempotency-key-in-use',
+    'A request with this Idempotency-Key is still being processed; retry after it has answered',
+    undefined,
+    headers,
+  )
 const reused = () =>
   new ProblemError('idempotency-key-reused', 'This Idempotency-Key was used with a different request (method, URL or body)')
 

@@ -56,7 +56,7 @@ export default fp<{ store?: IdempotencyStore }>(
       const hash = createHash('sha256').update(`${request.method} ${request.url}\n${request.headers['content-type'] ?? ''}\n`)
       const existing = await store.get(request.tenant, key)
       // A streamed body left unread: close the connection rather than drain it.
-      const unread = streamed ? { connection: 'close' } : {}
+      const unread: Record<string, string> = streamed ? { connection: 'close' } : {}
       if (existing?.state === 'pending') throw inUse(unread)
       if (existing?.state === 'done') {
         const digest = streamed

@@ -1,5 +1,5 @@
 import { randomUUID } from 'node:crypto'
-import Fastify, { type FastifyBaseLogger, type FastifyInstance } from 'fastify'
+import Fastify, { type FastifyBaseLogger, type FastifyInstance, type FastifyReply } from 'fastify'
 import { serializerCompiler } from 'fastify-type-provider-zod'
 import type { Redis } from 'ioredis'
 import type { Config } from '../config.js'
@@ -27,6 +27,8 @@ import skuRoutes from './routes/skus/forecast.js'
 import skuHistoryRoutes from './routes/skus/history.js'
 import skuListRoutes from './routes/skus/list.js'
 import { validatorCompiler } from './validation.js'
+import { toProblem } from './problem-mapping.js'
+import { PROBLEM_CONTENT_TYPE } from '../errors.js'
 import type { ErpServices } from '../webhooks/services.js'
 import erpPlugin from './plugins/erp.js'
 import accuracyRoutes from './routes/accuracy.js'
@@ -73,6 +75,12 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
       headersTimeout: Math.min(60_000, requestTimeoutMs),
       // Node checks the timeouts this often (its default, 30 s, would let short timeouts overrun).
       connectionsCheckingInterval: Math.max(100, Math.min(30_000, Math.floor(requestTimeoutMs / 4))),
+    },
+    // Errors fastify raises before routing (a malformed percent-encoding in the URL) are problems too.
+    frameworkErrors: (err, _request, reply) => {
+      const problem = toProblem(err, { bodyLimitBytes: config.bodyLimitBytes })
+      const r = reply as FastifyReply
+      r.code(problem.statusCode).type(PROBLEM_CONTENT_TYPE).send(problem.toBody())
     },
     // A client's X-Request-Id is kept when it is short and plain; otherwise a fresh one.
     genReqId: (req) => {

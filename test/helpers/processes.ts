@@ -183,6 +183,17 @@ export class PrivateRedis {
     this.proc = null
   }
 
+  /** Asks the server to exit without a snapshot (SHUTDOWN NOSAVE); the append-only file stays as written. */
+  async shutdownNoSave(): Promise<void> {
+    if (!this.proc) return
+    const client = new Redis(this.url, { retryStrategy: () => null, maxRetriesPerRequest: 0 })
+    client.on('error', () => undefined)
+    await client.call('SHUTDOWN', 'NOSAVE').catch(() => undefined) // the connection drops as the server exits
+    client.disconnect()
+    await this.exited
+    this.proc = null
+  }
+
   /** Stops the server and removes its data directory. */
   async destroy(): Promise<void> {
     await this.kill()

@@ -150,7 +150,10 @@ try {
   const verdict = (ok: boolean) => (ok ? 'MET' : 'NOT MET')
   out(`target total <= ${f(targetSeconds, 0)} s for ${f(SKUS)} SKUs (40 s per 100,000; 6 min per 1,000,000): ${verdict(totalMs / 1000 <= targetSeconds)}`)
   out(`target worker RSS < 500 MB: ${verdict(workerPeak * 2 ** 20 < 500e6)} (${f(workerPeak, 1)} MiB)`)
-  out(`target Redis <= 1.5 KB per stored SKU result: ${verdict(perSku <= 1536)} (${f(perSku)} B)`)
+  // The shared Redis serves other clients too, so used_memory moves with their keys;
+  // the verdict uses MEMORY USAGE of this benchmark's own result keys and latest index.
+  const keyedPerSku = (storedBytes + latestBytes) / SKUS
+  out(`target Redis <= 1.5 KB per stored SKU result: ${verdict(keyedPerSku <= 1536)} (${f(keyedPerSku)} B by MEMORY USAGE; used_memory delta ${f(perSku)} B)`)
   if (CPU_PROF) out(`CPU profiles (written when the processes exit): ${profDir}`)
 } finally {
   for (const p of processes) await stopService(p)

@@ -145,7 +145,12 @@ describe('Redis restarted mid-run (append-only file, fsync always)', { timeout: 
     expect(resultsBefore.length).toBeLessThan(400) // the outage hits the run mid-way
 
     await redis.shutdownNoSave()
-    await new Promise((r) => setTimeout(r, 6000))
+    const down = Date.now()
+    // A run submitted during the outage is refused with a 503 to retry, not half stored.
+    const refused = await call('/v1/runs', { method: 'POST', body: JSON.stringify({ horizon: 3, series: series.slice(0, 2) }) })
+    expect(refused.status).toBe(503)
+    expect(refused.body.title).toBe('Service not ready')
+    await new Promise((r) => setTimeout(r, Math.max(0, 6000 - (Date.now() - down))))
     await redis.restart()
 
     const ended = await until(async () => {

@@ -56,6 +56,8 @@ export function initialSeasonalStates(
   /** Receives the m seasonal states (allocated when not given). */
   seasonal: Float64Array = new Float64Array(m),
   maxSeasons = INITIAL_SEASONS,
+  /** false: no trend (trend 0, line = mean of the seasons used). */
+  withTrend = true,
 ): { level: number; trend: number; seasonal: Float64Array } {
   const seasons = Math.max(2, Math.min(Math.floor(y.length / m), maxSeasons))
   const means: number[] = []
@@ -74,7 +76,7 @@ export function initialSeasonalStates(
     sxy += (k - kMean) * (means[k] - grand)
     sxx += (k - kMean) * (k - kMean)
   }
-  const trend = sxy / sxx / m
+  const trend = withTrend ? sxy / sxx / m : 0
   const centre = (seasons * m - 1) / 2
   const line = (t: number): number => grand + trend * (t - centre)
   let total = 0

@@ -76,6 +76,23 @@ describe('POST /v1/history on a real socket', () => {
     expect(await new HistoryStore(redis, { prefix }).get('garden', 'ENDLESS')).toBeNull()
   })
 
+  it('refuses a Content-Length over the limit with 413 before the body is sent', async () => {
+    const socket = connect(port, '127.0.0.1')
+    sockets.push(socket)
+    let received = ''
+    const closed = new Promise<void>((done) => {
+      socket.on('data', (d) => (received += d.toString('latin1')))
+      socket.on('close', () => done())
+    })
+    await new Promise((r) => socket.once('connect', r))
+    socket.write(
+      `POST /v1/history HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer ${KEY_GARDEN}\r\n` +
+        `Content-Type: text/csv\r\nContent-Length: ${LIMIT * 100}\r\n\r\nsku,period,quantity\n`,
+    )
+    await closed
+    expect(Number(/^HTTP\/1\.1 (\d{3})/.exec(received)?.[1])).toBe(413)
+  })
+
   it('closes the connection after refusing a bad header instead of draining an endless body', async () => {
     const { received, sent } = await endlessUpload('article,date,qty\n')
     if (received !== '') expect(Number(/^HTTP\/1\.1 (\d{3})/.exec(received)?.[1])).toBe(400)

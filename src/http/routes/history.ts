@@ -65,6 +65,12 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       const type = (request.headers['content-type'] ?? '').split(';')[0]!.trim().toLowerCase()
       let mode = q.mode
       if (STREAMED_TYPES.includes(type)) {
+        const declared = Number(request.headers['content-length'] ?? 0)
+        if (declared > app.config.bodyLimitBytes) {
+          throw new ProblemError('payload-too-large', `The upload is larger than ${app.config.bodyLimitBytes} bytes`, undefined, {
+            connection: 'close',
+          })
+        }
         const source = limitBytes(request.body as Readable, app.config.bodyLimitBytes)
         try {
           if (type === 'text/csv') {

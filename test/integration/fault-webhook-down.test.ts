@@ -1,0 +1,89 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import type { FastifyInstance } from 'fastify'
+import { Redis } from 'ioredis'
+import { build } from '../../src/http/app.js'
+import { createLogger } from '../../src/logger.js'
+import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
+import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import { createErpServices } from '../../src/webhooks/services.js'
+import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
+import { runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+import { deadUrl } from '../webhooks/receiver.js'
+
+/**
+ * A webhook receiver that is down for good, seen through the API: the run
+ * still succeeds, the delivery is retried with growing pauses and ends dead,
+ * and GET /v1/runs/{id}/deliveries shows every attempt and why it failed.
+ * (test/integration/erp-webhooks.test.ts covers the same at the store level,
+ * plus flaky receivers and redirects.)
+ */
+
+const ATTEMPTS = 3
+const BACKOFF_MS = 200
+let url: string
+let prefix: string
+let app: FastifyInstance
+let gateway: RunMachinery
+let workers: RunWorkers
+let redis: Redis
+let erp: ReturnType<typeof createErpServices>
+
+beforeAll(async () => {
+  url = await redisUrlForTests()
+  prefix = uniquePrefix('fault-webhook-down')
+  const config = runsTestConfig(url, prefix, {
+    webhookAttempts: ATTEMPTS,
+    webhookBackoffMs: BACKOFF_MS,
+    webhookTimeoutMs: 2000,
+    webhookAllowPrivateNetworks: true,
+  })
+  const logger = createLogger({ level: 'silent' })
+  gateway = createRunGateway(config)
+  workers = startWorkers(config, logger)
+  redis = new Redis(url, { maxRetriesPerRequest: 2 })
+  erp = createErpServices(config, redis)
+  app = await build({ config, gateway, logger, erp: erp.services })
+})
+
+afterAll(async () => {
+  await app?.close()
+  await workers?.close()
+  await erp?.close()
+  await gateway?.close()
+  redis?.disconnect()
+  if (url && prefix) await deleteKeys(url, prefix)
+})
+
+describe('webhook receiver down', { timeout: 60_000 }, () => {
+  it('retries with backoff, ends dead, and the API shows each attempt; the run is unaffected', async () => {
+    const down = await deadUrl()
+    const submitted = await app.inject({
+      method: 'POST',
+      url: '/v1/runs',
+      payload: { horizon: 3, callbackUrl: `${down}/almanac-hook`, series: syntheticSeries(3) },
+    })
+    expect(submitted.statusCode).toBe(202)
+    const runId = submitted.json().id as string
+
+    const delivery = await waitFor(async () => {
+      const res = await app.inject({ url: `/v1/runs/${runId}/deliveries` })
+      const d = res.json().items?.[0]
+      return d && d.state === 'dead' ? d : undefined
+    }, 45_000, 'the delivery to end dead')
+
+    expect(delivery).toMatchObject({ url: `${down}/almanac-hook`, event: 'run.succeeded', source: 'run', maxAttempts: ATTEMPTS })
+    expect(delivery.attempts.map((a: { attempt: number }) => a.attempt)).toEqual([1, 2, 3])
+    for (const a of delivery.attempts) {
+      expect(a.statusCode).toBeNull()
+      expect(a.error).toBe('ECONNREFUSED')
+    }
+    // Backoff doubles from WEBHOOK_BACKOFF_MS: at least 200 ms, then 400 ms between attempts.
+    const at = delivery.attempts.map((a: { at: string }) => Date.parse(a.at))
+    expect(at[1] - at[0]).toBeGreaterThanOrEqual(BACKOFF_MS - 20)
+    expect(at[2] - at[1]).toBeGreaterThanOrEqual(2 * BACKOFF_MS - 20)
+
+    const run = (await app.inject({ url: `/v1/runs/${runId}` })).json()
+    expect(run.status).toBe('succeeded')
+    expect(run.progress).toEqual({ total: 3, done: 3, failed: 0 })
+  })
+})

@@ -238,6 +238,30 @@ describe('fixed hostile bodies', () => {
     expect(res.json().items.map((i: { sku: string }) => i.sku)).toEqual(['BIG', 'SWING', 'TINY'])
   })
 
+  it('generated valid series within the bounds: always 200, never NaN or Infinity in the answer', async () => {
+    const value = fc.oneof(
+      fc.double({ min: -1e15, max: 1e15, noNaN: true }),
+      fc.constantFrom(0, 0, 1, 1e15, -1e15, 5e-324, null),
+      fc.integer({ min: 0, max: 50 }),
+    )
+    await fc.assert(
+      fc.asyncProperty(
+        fc.array(value, { minLength: 1, maxLength: 60 }),
+        fc.integer({ min: 1, max: 24 }),
+        fc.boolean(),
+        fc.constantFrom('mase', 'mae', 'rmse', 'mape', 'smape', 'wape'),
+        fc.constantFrom('zero', 'interpolate'),
+        async (values, horizon, allowNegative, metric, fillPolicy) => {
+          const body = { horizon, allowNegative, metric, fillPolicy, series: [{ sku: 'GEN', values }] }
+          const res = await send('POST', '/v1/forecast', JSON.stringify(body))
+          expect(res.statusCode, JSON.stringify(body)).toBe(200)
+          expect(res.body, JSON.stringify(body)).not.toMatch(/NaN|Infinity/)
+        },
+      ),
+      { numRuns: 150 },
+    )
+  }, 120_000)
+
   it('100,000-element arrays are answered (within limits) or refused by field', async () => {
     const long = Array.from({ length: 100_000 }, (_, i) => i % 97)
     const values = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku: 'LONG', values: long }] }))

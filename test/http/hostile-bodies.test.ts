@@ -303,6 +303,41 @@ describe('fixed hostile bodies', () => {
     expect(sync.json().errors).toEqual([{ path: 'series[2].sku', message: 'SKU "DUP" appears more than once' }])
   })
 
+  it('streamed uploads (NDJSON, CSV) with hostile lines report bad rows and keep the good ones', async () => {
+    const upload = (type: string, payload: string) =>
+      injectWithin(h.app, { method: 'POST', url: '/v1/history', headers: { ...auth(KEY_GARDEN), 'content-type': type }, payload }).then(
+        (res) => (expectWellFormed(res, `upload ${type}`), res),
+      )
+    const ndjson = [
+      '{"sku": "__proto__", "period": "2024-01", "quantity": 3}',
+      '{"sku": "constructor", "period": "2024-01", "quantity": 4}',
+      '{"__proto__": {"polluted": "yes"}, "sku": "PROTO-ROW", "period": "2024-01", "quantity": 5}',
+      '{"sku": "DEEP", "period": "2024-01", "quantity": ' + '['.repeat(10_000) + ']'.repeat(10_000) + '}',
+      '[' .repeat(10_000) + ']'.repeat(10_000),
+      `{"sku": "${'x'.repeat(10_240)}", "period": "2024-01", "quantity": 1}`,
+      '{"sku": "NAN", "period": "2024-01", "quantity": "NaN"}',
+      '{"sku": "INF", "period": "2024-01", "quantity": "Infinity"}',
+      '{"sku": "\ud800", "period": "2024-01", "quantity": 1}',
+      '{"sku": "GOOD-NDJSON", "period": "2024-01", "quantity": 7}',
+    ].join('\n')
+    const nd = await upload('application/x-ndjson', ndjson)
+    expect(nd.statusCode).toBe(200)
+    const csv = await upload(
+      'text/csv',
+      'sku,period,quantity\n__proto__,2024-01,1\nGOOD-CSV,2024-01,2\n"=cmd|x",2024-01,NaN\nBAD,2024-13,1\n,2024-01,1\n',
+    )
+    expect(csv.statusCode).toBe(200)
+    for (const sku of ['GOOD-NDJSON', 'GOOD-CSV', '__proto__', 'constructor']) {
+      const res = await injectWithin(h.app, { url: `/v1/skus/${encodeURIComponent(sku)}/history`, headers: auth(KEY_GARDEN) })
+      expectWellFormed(res, sku)
+      expect(res.statusCode, sku).toBe(200)
+      expect(res.json().sku).toBe(sku)
+    }
+    const list = await injectWithin(h.app, { url: '/v1/skus?limit=1000', headers: auth(KEY_GARDEN) })
+    expectWellFormed(list, 'list')
+    expect(({} as Record<string, unknown>).polluted).toBeUndefined()
+  })
+
   it('leaves Object.prototype as it found it', () => {
     expect(prototypeSnapshot()).toEqual(protoBefore)
     expect(({} as Record<string, unknown>).polluted).toBeUndefined()

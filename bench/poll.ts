@@ -8,16 +8,17 @@
  * the run's progress at the start and end of the load (so the load overlapped
  * fitting). Stops the processes and deletes its keys afterwards.
  *
- *   npm run bench:poll [-- --rate 1000 --seconds 20 --skus 60000 --connections 20]
+ *   npm run bench:poll [-- --rate 1000 --seconds 20 --skus 60000 --connections 20 --cpu-prof]
  * Target (from the product issue): p99 < 50 ms at 1,000 requests/s.
  */
 import { randomBytes } from 'node:crypto'
-import { availableParallelism, loadavg } from 'node:os'
+import { availableParallelism, loadavg, tmpdir } from 'node:os'
+import { join } from 'node:path'
 import autocannon from 'autocannon'
 import { Redis } from 'ioredis'
 import { getRun, pageResults, runBody, skuName, submitRun, waitForRun, type Client } from './e2e-client.js'
 import { freePort } from './e2e-port.js'
-import { startService, stopService, waitReady, type ServiceProcess } from './e2e-processes.js'
+import { cpuSeconds, startService, stopService, waitReady, type ServiceProcess } from './e2e-processes.js'
 import { deletePrefix } from './e2e-redis.js'
 
 function option(name: string, fallback: number): number {
@@ -80,7 +81,10 @@ function load(title: string, rate: number, path: () => string): Promise<autocann
 }
 
 try {
-  processes.push(startService('api', 'src/server.ts', env), startService('worker-1', 'src/worker-main.ts', env))
+  // --cpu-prof: a CPU profile of the API process (to find what a request costs).
+  const prof = process.argv.includes('--cpu-prof') ? ['--cpu-prof', '--cpu-prof-dir', join(tmpdir(), `almanac-poll-prof-${prefix}`)] : []
+  if (prof.length > 0) out(`API CPU profile (written when it exits): ${prof[2]}`)
+  processes.push(startService('api', 'src/server.ts', env, prof), startService('worker-1', 'src/worker-main.ts', env))
   await waitReady(processes[0]!, baseUrl)
   const known = await waitForRun(client, await submitRun(client, runBody(SEED, 0, KNOWN)), 100)
   if (known.status !== 'succeeded') throw new Error(`first run ${known.status}`)
@@ -92,11 +96,17 @@ try {
   }
   const polled = runIds[runIds.length - 1]!
   const before = await getRun(client, polled)
+  const apiCpuBefore = cpuSeconds(processes[0]!.child.pid) ?? 0
+  const workerCpuBefore = cpuSeconds(processes[1]!.child.pid) ?? 0
+  const clientCpuBefore = process.cpuUsage()
   const skuPath = () => `/v1/skus/${skuName(Math.floor(Math.random() * KNOWN))}/forecast`
   const [forecasts, runs] = await Promise.all([
     load('GET /v1/skus/{sku}/forecast', RATE / 2, skuPath),
     load('GET /v1/runs/{runId}', RATE / 2, () => `/v1/runs/${polled}`),
   ])
+  const apiCpu = (cpuSeconds(processes[0]!.child.pid) ?? 0) - apiCpuBefore
+  const workerCpu = (cpuSeconds(processes[1]!.child.pid) ?? 0) - workerCpuBefore
+  const clientCpu = process.cpuUsage(clientCpuBefore)
   const after = await getRun(client, polled)
   const allDone = await Promise.all(runIds.map((id) => getRun(client, id)))
   const sample = await pageResults(client, known.id, 10)
@@ -121,6 +131,9 @@ try {
   const achieved = (forecasts['2xx'] + forecasts.non2xx) / forecasts.duration + (runs['2xx'] + runs.non2xx) / runs.duration
   out()
   out(`achieved overall: ${f(achieved)} requests/s of ${f(RATE)} asked`)
+  const served = forecasts['2xx'] + forecasts.non2xx + runs['2xx'] + runs.non2xx
+  out(`CPU during the load: API ${f(apiCpu, 1)} s (${f((apiCpu * 1000) / served, 2)} ms per request), worker ${f(workerCpu, 1)} s, ` +
+    `load generator ${f((clientCpu.user + clientCpu.system) / 1e6, 1)} s, over ${f(Math.max(forecasts.duration, runs.duration), 1)} s of wall time`)
   out(`target p99 < ${P99_TARGET_MS} ms: ${worstP99 < P99_TARGET_MS ? 'MET' : 'NOT MET'} (worst route p99 ${f(worstP99)} ms)`)
   if (before.status !== 'running' && before.status !== 'queued') out('note: the polled run was not fitting when the load started')
 } finally {

@@ -3,6 +3,7 @@ import { connect, type Socket } from 'node:net'
 import type { FastifyInstance } from 'fastify'
 import { build } from '../../src/http/app.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, testConfig } from './gateway-double.js'
+import { buildHostileApp, type HostileApp } from './hostile-helpers.js'
 
 /**
  * Limits that only show on a real socket: bodies over the limit are refused
@@ -13,14 +14,14 @@ import { InMemoryGatewayDouble, KEY_GARDEN, testConfig } from './gateway-double.
 
 const LIMIT = 64 * 1024
 const REQUEST_TIMEOUT_MS = 1500
+let h: HostileApp
 let app: FastifyInstance
 let port: number
 
 beforeAll(async () => {
-  app = await build({
-    config: testConfig({ bodyLimitBytes: LIMIT, requestTimeoutMs: REQUEST_TIMEOUT_MS, rateLimitMax: 5 }),
-    gateway: new InMemoryGatewayDouble(),
-  })
+  // Real Redis stores behind the app, so streamed history uploads are read for real.
+  h = await buildHostileApp('hostile-limits', { bodyLimitBytes: LIMIT, requestTimeoutMs: REQUEST_TIMEOUT_MS })
+  app = h.app
   await app.listen({ port: 0, host: '127.0.0.1' })
   port = (app.server.address() as { port: number }).port
 })
@@ -29,7 +30,7 @@ const sockets: Socket[] = []
 
 afterAll(async () => {
   for (const s of sockets) s.destroy()
-  await app?.close()
+  await h?.close()
 })
 
 interface Exchange {
@@ -106,6 +107,38 @@ describe('request limits on a real socket', () => {
     expect(sent).toBeLessThan(LIMIT * 20)
   })
 
+  it('a streamed upload (CSV, NDJSON) declaring a Content-Length over the limit is 413 at once', async () => {
+    for (const type of ['text/csv', 'application/x-ndjson']) {
+      const x = await open()
+      const started = Date.now()
+      x.socket.write(
+        `POST /v1/history HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer ${KEY_GARDEN}\r\n` +
+          `Content-Type: ${type}\r\nContent-Length: ${LIMIT * 100}\r\nConnection: close\r\n\r\nsku,period,quantity\n`,
+      )
+      const raw = await x.response
+      expect(statusOf(raw), type).toBe(413)
+      expect(Date.now() - started, type).toBeLessThan(REQUEST_TIMEOUT_MS)
+    }
+  })
+
+  it('a streamed CSV upload sent chunked is cut off with 413 past the limit', async () => {
+    const x = await open()
+    x.socket.write(
+      `POST /v1/history HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer ${KEY_GARDEN}\r\n` +
+        'Content-Type: text/csv\r\nTransfer-Encoding: chunked\r\nConnection: close\r\n\r\n',
+    )
+    const rows = 'sku,period,quantity\n' + 'SPADE,2024-01,1\n'.repeat(1000)
+    let sent = 0
+    while (sent < LIMIT * 100 && !x.answered() && !x.socket.destroyed) {
+      const flushed = x.socket.write(`${rows.length.toString(16)}\r\n${rows}\r\n`)
+      sent += rows.length
+      await pause(flushed ? 1 : 10)
+    }
+    const raw = await x.response
+    if (raw !== '') expect(statusOf(raw)).toBe(413)
+    expect(sent).toBeLessThan(LIMIT * 20)
+  })
+
   it('a client that trickles its body is answered 408 and cut off after the request timeout', async () => {
     const x = await open()
     const started = Date.now()
@@ -131,11 +164,15 @@ describe('request limits on a real socket', () => {
   })
 
   it('the rate limit answers 429 with Retry-After over the wire', async () => {
+    const limited = await build({ config: testConfig({ rateLimitMax: 5 }), gateway: new InMemoryGatewayDouble() })
+    await limited.listen({ port: 0, host: '127.0.0.1' })
+    const limitedPort = (limited.server.address() as { port: number }).port
     let last: Response | undefined
     for (let i = 0; i < 6; i++) {
-      last = await fetch(`http://127.0.0.1:${port}/v1/runs/run-1`, { headers: { authorization: `Bearer ${KEY_GARDEN}` } })
+      last = await fetch(`http://127.0.0.1:${limitedPort}/v1/runs/run-1`, { headers: { authorization: `Bearer ${KEY_GARDEN}` } })
       await last.arrayBuffer()
     }
+    await limited.close()
     expect(last!.status).toBe(429)
     expect(Number(last!.headers.get('retry-after'))).toBeGreaterThan(0)
     expect(last!.headers.get('content-type')).toMatch(/^application\/problem\+json/)

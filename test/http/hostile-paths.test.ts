@@ -112,6 +112,31 @@ describe('hostile path parameters and query strings', () => {
     }
   })
 
+  it('hostile header values: Idempotency-Key, If-None-Match, Accept, Content-Type, X-Request-Id', async () => {
+    const headerText = fc.oneof(
+      fc.constantFrom('', ' ', 'x'.repeat(10_240), '__proto__', '*', 'W/"x"', '"', 'text/csv;q=NaN', 'application/json; charset=utf-16'),
+      fc.stringMatching(/^[\x20-\x7e]{0,80}$/),
+    )
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('idempotency-key', 'if-none-match', 'accept', 'content-type', 'x-request-id'),
+        headerText,
+        fc.constantFrom('/v1/runs', '/v1/runs/run-1', '/v1/runs/run-1/results', '/v1/skus/RAKE/history', '/v1/history'),
+        async (name, value, url) => {
+          const post = url === '/v1/runs' || url === '/v1/history'
+          const res = await injectWithin(h.app, {
+            method: post ? 'POST' : 'GET',
+            url,
+            headers: { ...auth(KEY_GARDEN), 'content-type': 'application/json', [name]: value },
+            ...(post ? { payload: JSON.stringify({ horizon: 3, series: [{ sku: 'RAKE', values: [1, 2, 3] }] }) } : {}),
+          })
+          expectWellFormed(res, `${name}: ${value.slice(0, 60)} ${url}`)
+        },
+      ),
+      { numRuns: 200 },
+    )
+  }, 60_000)
+
   it('repeated query parameters and arrays in the query string', async () => {
     for (const q of ['limit=1&limit=2', 'limit[]=1', 'limit[__proto__]=1', 'sku=a&sku=b', 'cursor=&cursor=x', 'tag=a&tag=b']) {
       for (const url of [`/v1/runs/run-1/results?${q}`, `/v1/skus?${q}`]) {

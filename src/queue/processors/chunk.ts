@@ -7,6 +7,7 @@ import { AccuracyStore } from '../../storage/accuracy-store.js'
 import { workerConnection } from '../connection.js'
 import { createChunkProcessor } from '../processor.js'
 import { createRunEventEmitter } from '../../webhooks/emitter.js'
+import { lowerThreadPriority } from '../thread-priority.js'
 
 /**
  * The sandboxed chunk processor: BullMQ loads this module (through
@@ -24,6 +25,8 @@ export const SandboxContext = z.object({
 export type SandboxContext = z.infer<typeof SandboxContext>
 
 const ctx = SandboxContext.parse(workerData)
+// Fitting yields the cores to request handling and lock renewals (thread-priority.ts).
+lowerThreadPriority()
 const redis = workerConnection(ctx.redisUrl)
 const logger = createLogger({ level: ctx.logLevel })
 redis.on('error', (err) => logger.warn({ err }, 'redis connection error (sandboxed processor)'))

@@ -2,26 +2,25 @@
  * Initial states of the multiplicative Holt-Winters models by Gauss-Newton steps with
  * the smoothing parameters fixed. Unlike the additive models (least-squares-states.ts),
  * the one-step errors are not affine in the initial states, so each step linearises
- * them with a forward-difference Jacobian, solves the small least-squares problem for
- * the step, and halves it until the error sum falls (Gauss-Newton with step halving;
- * Nocedal and Wright 2006, sec. 10.3, from memory).
- * Unknowns: level, trend (fixed at 0 without a trend), s_0..s_{m-2};
+ * them, solves the small least-squares problem for the step, and halves it until the
+ * error sum falls (Gauss-Newton with step halving; Nocedal and Wright 2006, sec. 10.3,
+ * from memory). The Jacobian comes from derivatives carried through the recursion
+ * (forward mode), and J'J and J'e are accumulated in the same pass, so no n-by-p matrix
+ * is stored.
+ * Unknowns x = [level, trend, s_0..s_{m-2}] (the trend fixed at 0 without a trend);
  * s_{m-1} = m - (s_0 + ... + s_{m-2}) keeps the seasonal states averaging one
  * (otherwise level and seasonal are not identified).
- * Allocation-free: the caller passes `multiplicativeWorkspace(n, m)` doubles.
+ * Allocation-free: the caller passes `multiplicativeWorkspace(m)` doubles.
  */
 
-/** Doubles of workspace `multiplicativeStates` needs for n points and season length m. */
-export function multiplicativeWorkspace(n: number, m: number): number {
+/** Doubles of workspace `multiplicativeStates` needs for season length m. */
+export function multiplicativeWorkspace(m: number): number {
   const p = m + 1
-  return (p + 1) * n + p * p + 4 * p + m
+  return p * p + (m + 9) * p + m
 }
 
-/** Errors of the multiplicative recursion for states x = [l, b, s_0..s_{m-2}] into out[offset..]; their sum of squares, Infinity if not finite or a base <= 0. */
-function residuals(
-  y: Float64Array, alpha: number, beta: number, gamma: number, phi: number,
-  x: Float64Array, s: Float64Array, out: Float64Array, offset: number,
-): number {
+/** Error sum of the multiplicative recursion from states x; Infinity if not finite or a base <= 0. */
+function errorSum(y: Float64Array, alpha: number, beta: number, gamma: number, phi: number, x: Float64Array, s: Float64Array): number {
   const m = s.length
   let sum = 0
   for (let j = 0; j + 1 < m; j++) {
@@ -39,7 +38,6 @@ function residuals(
     if (!(base > 0) || !(sj > 0)) return Infinity
     const yt = y[t]
     const e = yt - base * sj
-    out[offset + t] = e
     sse += e * e
     const lNew = (alpha * yt) / sj + (1 - alpha) * base
     b = beta * (lNew - l) + (1 - beta) * phi * b
@@ -48,6 +46,83 @@ function residuals(
     if (++j === m) j = 0
   }
   return Number.isFinite(sse) ? sse : Infinity
+}
+
+/**
+ * Fills A = J'J (lower triangle, p x p at aAt) and g = -J'e (at gAt) for states x, with
+ * J the derivative of the errors with respect to x. Returns false if a state is invalid.
+ */
+function normalEquations(
+  y: Float64Array, alpha: number, beta: number, gamma: number, phi: number, hasTrend: boolean,
+  x: Float64Array, s: Float64Array, w: Float64Array, aAt: number, gAt: number, tAt: number,
+): boolean {
+  const m = s.length
+  const p = m + 1
+  // Tangents: dl (p) | db (p) | ds (m * p, row j for state s_j) | de (p), from tAt.
+  const dl = w.subarray(tAt, tAt + p)
+  const db = w.subarray(tAt + p, tAt + 2 * p)
+  const ds = w.subarray(tAt + 2 * p, tAt + (2 + m) * p)
+  const de = w.subarray(tAt + (2 + m) * p, tAt + (3 + m) * p)
+  const A = w.subarray(aAt, aAt + p * p)
+  const g = w.subarray(gAt, gAt + p)
+  A.fill(0)
+  g.fill(0)
+  dl.fill(0)
+  db.fill(0)
+  ds.fill(0)
+  dl[0] = 1
+  if (hasTrend) db[1] = 1
+  let sum = 0
+  for (let j = 0; j + 1 < m; j++) {
+    s[j] = x[2 + j]
+    sum += s[j]
+    ds[j * p + 2 + j] = 1
+    ds[(m - 1) * p + 2 + j] = -1
+  }
+  s[m - 1] = m - sum
+  let l = x[0]
+  let b = x[1]
+  let j = 0
+  const a1 = 1 - alpha
+  const g1 = 1 - gamma
+  const pb1 = (1 - beta) * phi
+  // Columns 2..p-1 stay zero until their seasonal state is first used (t = column - 2);
+  // the last state depends on all of them, so from t = m - 1 every column is live.
+  let live = 2
+  for (let t = 0; t < y.length; t++) {
+    const base = l + phi * b
+    const sj = s[j]
+    if (!(base > 0) || !(sj > 0)) return false
+    const yt = y[t]
+    const e = yt - base * sj
+    const cs = (alpha * yt) / (sj * sj) // -d lNew / d s_j
+    const cb = (gamma * yt) / (base * base) // -d sNew / d base
+    const row = j * p
+    if (live < p) live = t + 1 >= m - 1 ? p : Math.max(live, Math.min(p, t + 3))
+    for (let i = 0; i < live; i++) {
+      const dli = dl[i]
+      const dbi = db[i]
+      const dbase = dli + phi * dbi
+      const dsj = ds[row + i]
+      de[i] = -(dbase * sj + base * dsj)
+      const dlNew = a1 * dbase - cs * dsj
+      db[i] = beta * (dlNew - dli) + pb1 * dbi
+      dl[i] = dlNew
+      ds[row + i] = g1 * dsj - cb * dbase
+    }
+    for (let i = 0; i < live; i++) {
+      const di = de[i]
+      const at = i * p
+      for (let k = 0; k <= i; k++) A[at + k] += di * de[k]
+      g[i] -= di * e
+    }
+    const lNew = (alpha * yt) / sj + a1 * base
+    b = beta * (lNew - l) + pb1 * b
+    l = lNew
+    s[j] = (gamma * yt) / base + g1 * sj
+    if (++j === m) j = 0
+  }
+  return true
 }
 
 /**
@@ -60,92 +135,68 @@ export function multiplicativeStates(
   y: Float64Array, alpha: number, beta: number, gamma: number, phi: number,
   hasTrend: boolean, steps: number, work: Float64Array, out: Float64Array,
 ): number {
-  const n = y.length
   const m = out.length - 2
   const p = m + 1
-  // Workspace layout: e (n) | Jacobian columns (p * n) | A (p * p) | g, x, trial, d (p each) | s (m).
-  const jAt = n
-  const aAt = (p + 1) * n
-  const gAt = aAt + p * p
-  const x = work.subarray(gAt + p, gAt + 2 * p)
-  const trial = work.subarray(gAt + 2 * p, gAt + 3 * p)
-  const d = work.subarray(gAt + 3 * p, gAt + 4 * p)
-  const s = work.subarray(gAt + 4 * p, gAt + 4 * p + m)
+  // Workspace: A (p * p) | g, x, trial, d (p each) | tangents ((m + 3) * p) | s (m).
+  const aAt = 0
+  const gAt = p * p
+  const xAt = gAt + p
+  const trialAt = xAt + p
+  const dAt = trialAt + p
+  const tAt = dAt + p
+  const s = work.subarray(tAt + (m + 3) * p, tAt + (m + 3) * p + m)
+  const x = work.subarray(xAt, xAt + p)
+  const trial = work.subarray(trialAt, trialAt + p)
   for (let i = 0; i < p; i++) x[i] = out[i]
-  let current = residuals(y, alpha, beta, gamma, phi, x, s, work, 0)
+  let current = errorSum(y, alpha, beta, gamma, phi, x, s)
   if (!Number.isFinite(current)) return current
-  const a = (i: number, k: number): number => aAt + i * p + k
   for (let step = 0; step < steps; step++) {
-    // Forward-difference Jacobian; column i at jAt + i * n.
-    for (let i = 0; i < p; i++) {
-      const col = jAt + i * n
-      if (i === 1 && !hasTrend) {
-        work.fill(0, col, col + n) // no trend: its step solves to zero
-        continue
-      }
-      trial.set(x)
-      const h = 1e-7 * Math.max(Math.abs(x[i]), i === 1 ? Math.abs(x[0]) : 1e-3)
-      trial[i] += h
-      if (!Number.isFinite(residuals(y, alpha, beta, gamma, phi, trial, s, work, col))) return finish()
-      for (let t = 0; t < n; t++) work[col + t] = (work[col + t] - work[t]) / h
-    }
-    // Normal equations (J'J + ridge) d = -J'e, solved by Cholesky.
+    if (!normalEquations(y, alpha, beta, gamma, phi, hasTrend, x, s, work, aAt, gAt, tAt)) break
+    // (J'J + ridge) d = -J'e by Cholesky (lower triangle in place).
     let trace = 0
-    for (let i = 0; i < p; i++) {
-      const ci = jAt + i * n
-      for (let k = 0; k <= i; k++) {
-        const ck = jAt + k * n
-        let v = 0
-        for (let t = 0; t < n; t++) v += work[ci + t] * work[ck + t]
-        work[a(i, k)] = v
-      }
-      let g = 0
-      for (let t = 0; t < n; t++) g += work[ci + t] * work[t]
-      work[gAt + i] = -g
-      trace += work[a(i, i)]
-    }
+    for (let i = 0; i < p; i++) trace += work[aAt + i * p + i]
     const ridge = 1e-10 * (trace / p) + 1e-300
-    for (let i = 0; i < p; i++) work[a(i, i)] += ridge
-    for (let i = 0; i < p; i++) {
+    for (let i = 0; i < p; i++) work[aAt + i * p + i] += ridge
+    let ok = true
+    for (let i = 0; i < p && ok; i++) {
       for (let k = 0; k <= i; k++) {
-        let v = work[a(i, k)]
-        for (let q = 0; q < k; q++) v -= work[a(i, q)] * work[a(k, q)]
+        let v = work[aAt + i * p + k]
+        for (let q = 0; q < k; q++) v -= work[aAt + i * p + q] * work[aAt + k * p + q]
         if (i === k) {
-          if (!(v > 0)) return finish()
-          work[a(i, i)] = Math.sqrt(v)
-        } else work[a(i, k)] = v / work[a(k, k)]
+          if (!(v > 0)) {
+            ok = false
+            break
+          }
+          work[aAt + i * p + i] = Math.sqrt(v)
+        } else work[aAt + i * p + k] = v / work[aAt + k * p + k]
       }
     }
+    if (!ok) break
     for (let i = 0; i < p; i++) {
       let v = work[gAt + i]
-      for (let q = 0; q < i; q++) v -= work[a(i, q)] * d[q]
-      d[i] = v / work[a(i, i)]
+      for (let q = 0; q < i; q++) v -= work[aAt + i * p + q] * work[dAt + q]
+      work[dAt + i] = v / work[aAt + i * p + i]
     }
     for (let i = p - 1; i >= 0; i--) {
-      let v = d[i]
-      for (let q = i + 1; q < p; q++) v -= work[a(q, i)] * d[q]
-      d[i] = v / work[a(i, i)]
+      let v = work[dAt + i]
+      for (let q = i + 1; q < p; q++) v -= work[aAt + q * p + i] * work[dAt + q]
+      work[dAt + i] = v / work[aAt + i * p + i]
     }
     let accepted = false
     for (let f = 1; f >= 1 / 16 && !accepted; f /= 2) {
-      for (let i = 0; i < p; i++) trial[i] = x[i] + f * d[i]
-      const v = residuals(y, alpha, beta, gamma, phi, trial, s, work, 0)
+      for (let i = 0; i < p; i++) trial[i] = x[i] + f * work[dAt + i]
+      const v = errorSum(y, alpha, beta, gamma, phi, trial, s)
       if (v < current) {
         x.set(trial)
         current = v
         accepted = true
       }
     }
-    // An accepted trial was evaluated last, so e holds its errors; otherwise stop here.
     if (!accepted) break
   }
-  return finish()
-
-  function finish(): number {
-    let sum = 0
-    for (let i = 0; i < p; i++) out[i] = x[i]
-    for (let j = 0; j + 1 < m; j++) sum += x[2 + j]
-    out[1 + m] = m - sum
-    return current
-  }
+  let sum = 0
+  for (let i = 0; i < p; i++) out[i] = x[i]
+  for (let j = 0; j + 1 < m; j++) sum += x[2 + j]
+  out[1 + m] = m - sum
+  return current
 }

@@ -8,7 +8,7 @@ import { smoothingFixture } from './fixture.js'
 /** Runs `steps` Gauss-Newton steps from [level, trend, ...seasonal]; returns the error sum and the states. */
 function refine(y: number[], p: { alpha: number; beta: number; gamma: number; phi: number }, start: number[], steps: number, hasTrend = true) {
   const out = Float64Array.from(start)
-  const work = new Float64Array(multiplicativeWorkspace(y.length, start.length - 2))
+  const work = new Float64Array(multiplicativeWorkspace(start.length - 2))
   const sse = multiplicativeStates(Float64Array.from(y), p.alpha, p.beta, p.gamma, p.phi, hasTrend, steps, work, out)
   return { sse, level: out[0], trend: out[1], seasonal: Array.from(out.subarray(2)) }
 }

@@ -38,6 +38,8 @@ export const MODEL_NAMES = [
   'holt-winters-multiplicative',
   'holt-winters-additive-damped',
   'holt-winters-multiplicative-damped',
+  'seasonal-smoothing-additive',
+  'seasonal-smoothing-multiplicative',
   'croston',
   'sba',
   'theta',

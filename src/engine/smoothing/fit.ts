@@ -60,7 +60,7 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   // Initial states are re-estimated for every model but SES (whose level starts at y[0]).
   const refinable = shape.seasonal !== null || shape.trend !== 'none'
   const ms = shape.seasonal ? m : 0
-  const lsSize = !refinable ? 0 : shape.seasonal === 'mul' ? multiplicativeWorkspace(n, m) : leastSquaresWorkspace(n, m)
+  const lsSize = !refinable ? 0 : shape.seasonal === 'mul' ? multiplicativeWorkspace(m) : leastSquaresWorkspace(n, m)
   const work = new Float64Array(n + m + 2 * (2 + ms) + lsSize)
   const y = work.subarray(0, n)
   const scratch = work.subarray(n, n + ms)
@@ -122,7 +122,9 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   }
   // Multiplicative models keep the full first search: 80 evaluations left AirPassengers'
   // damped fit 8% above statsmodels' SSE (test/engine/smoothing/models.test.ts).
-  const firstCap = refinable && kind !== 'mul' ? FIRST_SEARCH_EVALUATIONS : MAX_EVALUATIONS
+  // Seasonal models without trend search two parameters: half the evaluations.
+  const twoParameters = !hasTrend && kind !== null
+  const firstCap = twoParameters ? FIRST_SEARCH_EVALUATIONS / 2 : refinable && kind !== 'mul' ? FIRST_SEARCH_EVALUATIONS : MAX_EVALUATIONS
   let best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: firstCap })
   if (!Number.isFinite(best.value) && kind === 'mul') {
     // A steep heuristic trend (e.g. after an outlier in the first season) can drive the
@@ -164,7 +166,7 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     }
     if (refine(best.x)) {
       // The search starts at best.x, so it cannot end worse than the refined start.
-      best = minimiseNelderMead(objective, best.x, lower, upper, { maxEvaluations: REFINE_EVALUATIONS, step: 0.05 })
+      best = minimiseNelderMead(objective, best.x, lower, upper, { maxEvaluations: twoParameters ? REFINE_EVALUATIONS / 2 : REFINE_EVALUATIONS, step: 0.05 })
       refine(best.x)
     }
   }

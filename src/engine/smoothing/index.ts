@@ -3,7 +3,10 @@
  *  - 'ses': simple exponential smoothing (Brown 1956; ETS ANN);
  *  - 'holt': Holt's linear trend (Holt 1957; ETS AAN);
  *  - 'damped-holt': additive damped trend (Gardner and McKenzie 1985; ETS AAdN);
- *  - 'holt-winters-additive' / '-multiplicative' (Winters 1960) and their damped variants.
+ *  - 'holt-winters-additive' / '-multiplicative' (Winters 1960) and their damped variants;
+ *  - 'seasonal-smoothing-additive' / '-multiplicative': the same seasonal recursions
+ *    without a trend (ETS ANA and ANM in the taxonomy of Hyndman,
+ *    Koehler, Ord and Snyder 2008; from memory).
  * Fitting: fit.ts. Fixed-parameter recursions: recursions.ts.
  * Complexity counts smoothing parameters plus initial-state blocks (level, trend, seasonal).
  */
@@ -20,7 +23,7 @@ function spec(shape: SmoothingShape, complexity: number): ModelSpec {
   const seasonal = shape.seasonal !== null
   return {
     name: shape.name,
-    family: seasonal ? 'seasonal-trend' : shape.trend === 'none' ? 'level' : 'trend',
+    family: seasonal ? (shape.trend === 'none' ? 'seasonal' : 'seasonal-trend') : shape.trend === 'none' ? 'level' : 'trend',
     complexity,
     seasonal,
     requiresPositive: shape.seasonal === 'mul',
@@ -37,4 +40,6 @@ export const smoothingModels: readonly ModelSpec[] = [
   spec({ name: 'holt-winters-multiplicative', method: 'holtWinters', trend: 'linear', seasonal: 'mul' }, 6),
   spec({ name: 'holt-winters-additive-damped', method: 'holtWinters', trend: 'damped', seasonal: 'add' }, 7),
   spec({ name: 'holt-winters-multiplicative-damped', method: 'holtWinters', trend: 'damped', seasonal: 'mul' }, 7),
+  spec({ name: 'seasonal-smoothing-additive', method: 'seasonalSmoothing', trend: 'none', seasonal: 'add' }, 4),
+  spec({ name: 'seasonal-smoothing-multiplicative', method: 'seasonalSmoothing', trend: 'none', seasonal: 'mul' }, 4),
 ]

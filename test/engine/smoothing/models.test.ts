@@ -36,15 +36,18 @@ function expectFinite(fit: ModelFit, horizon: number): void {
 }
 
 describe('smoothingModels: registry', () => {
-  it('lists the seven smoothing models with their flags', () => {
+  it('lists the nine smoothing models with their flags', () => {
     expect(smoothingModels.map((s) => s.name)).toEqual([
       'ses', 'holt', 'damped-holt', 'holt-winters-additive', 'holt-winters-multiplicative',
       'holt-winters-additive-damped', 'holt-winters-multiplicative-damped',
+      'seasonal-smoothing-additive', 'seasonal-smoothing-multiplicative',
     ])
     expect(smoothingModels.filter((s) => s.requiresPositive).map((s) => s.name)).toEqual([
-      'holt-winters-multiplicative', 'holt-winters-multiplicative-damped',
+      'holt-winters-multiplicative', 'holt-winters-multiplicative-damped', 'seasonal-smoothing-multiplicative',
     ])
-    expect(smoothingModels.filter((s) => s.seasonal).length).toBe(4)
+    expect(smoothingModels.filter((s) => s.seasonal).length).toBe(6)
+    expect(byName('seasonal-smoothing-additive').family).toBe('seasonal')
+    expect(byName('seasonal-smoothing-additive').minLength(4)).toBe(8)
     // Two full seasons for seasonal models (common practice).
     expect(byName('holt-winters-additive').minLength(12)).toBe(24)
     expect(byName('holt').minLength(12)).toBe(3)
@@ -73,7 +76,7 @@ describe('smoothingModels: special cases', () => {
     }
   })
   it('multiplicative models reject zero and negative values', () => {
-    for (const name of ['holt-winters-multiplicative', 'holt-winters-multiplicative-damped']) {
+    for (const name of ['holt-winters-multiplicative', 'holt-winters-multiplicative-damped', 'seasonal-smoothing-multiplicative']) {
       const y = Array.from({ length: 12 }, (_, i) => 10 + i)
       y[3] = 0
       expect(errorOf(() => byName(name).fit(y, quarterly)).code).toBe('not-positive')

@@ -91,15 +91,17 @@ try {
     const id = await submitRun(client, runBody(SEED, first, Math.min(BATCH, SKUS - first)))
     const run: (typeof runs)[number] = { id, submittedMs: performance.now() - t0 }
     runs.push(run)
-    follow.push(
-      (async () => {
-        run.ended = await waitForRun(client, id)
-        run.endedMs = performance.now() - t0
-        if (run.ended.status !== 'succeeded') throw new Error(`run ${id} ${run.ended.status}: ${JSON.stringify(run.ended)}`)
-        run.paged = await pageResults(client, id, PAGE_LIMIT)
-        run.pagedMs = performance.now() - t0
-      })(),
-    )
+    // Marked handled at once: a failure while later batches are still being submitted must
+    // reach the finally block below (stop the processes, delete the keys), not crash the bench.
+    const task = (async () => {
+      run.ended = await waitForRun(client, id)
+      run.endedMs = performance.now() - t0
+      if (run.ended.status !== 'succeeded') throw new Error(`run ${id} ${run.ended.status}: ${JSON.stringify(run.ended)}`)
+      run.paged = await pageResults(client, id, PAGE_LIMIT)
+      run.pagedMs = performance.now() - t0
+    })()
+    task.catch(() => undefined)
+    follow.push(task)
   }
   const submitMs = performance.now() - t0
   await Promise.all(follow)
@@ -155,6 +157,9 @@ try {
   const keyedPerSku = (storedBytes + latestBytes) / SKUS
   out(`target Redis <= 1.5 KB per stored SKU result: ${verdict(keyedPerSku <= 1536)} (${f(keyedPerSku)} B by MEMORY USAGE; used_memory delta ${f(perSku)} B)`)
   if (CPU_PROF) out(`CPU profiles (written when the processes exit): ${profDir}`)
+} catch (err) {
+  for (const p of processes) process.stderr.write(`--- last output of ${p.name}:\n${p.tail.join('\n')}\n`)
+  throw err
 } finally {
   for (const p of processes) await stopService(p)
   const removed = await deletePrefix(redis, prefix)

@@ -29,10 +29,11 @@ export function freePort(): Promise<number> {
 /** Polls `check` until it returns something other than undefined. */
 export async function until<T>(check: () => Promise<T | undefined>, timeoutMs: number, what: string): Promise<T> {
   const deadline = Date.now() + timeoutMs
+  let lastError = ''
   for (;;) {
-    const v = await check().catch(() => undefined)
+    const v = await check().catch((err: Error) => ((lastError = `; last error: ${err.message}`), undefined))
     if (v !== undefined) return v
-    if (Date.now() > deadline) throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}`)
+    if (Date.now() > deadline) throw new Error(`timed out after ${timeoutMs} ms waiting for ${what}${lastError}`)
     await new Promise((r) => setTimeout(r, 100))
   }
 }
@@ -105,14 +106,18 @@ export interface ApiProcess extends ChildLogs {
  */
 export async function startApiProcess(env: Record<string, string>, port?: number): Promise<ApiProcess> {
   const p = port ?? (await freePort())
-  const api = spawnTs('src/server.ts', { RUN_WORKER: 'false', HOST: '127.0.0.1', ...env, PORT: String(p) })
-  await Promise.race([
-    api.waitForLog('almanac API listening', 30_000),
-    api.exited.then((code) => {
-      throw new Error(`API exited (${code}) before listening: ${api.stderr.join('')}`)
-    }),
-  ])
-  return { ...api, baseUrl: `http://127.0.0.1:${p}` }
+  // A port just released may still be held for a moment: a given port is tried a few times.
+  for (let attempt = 1; ; attempt++) {
+    const api = spawnTs('src/server.ts', { RUN_WORKER: 'false', HOST: '127.0.0.1', ...env, PORT: String(p) })
+    const outcome = await Promise.race([
+      api.waitForLog('almanac API listening', 30_000).then(() => 'listening' as const),
+      api.exited.then((code) => `exited (${code})`),
+    ])
+    if (outcome === 'listening') return { ...api, baseUrl: `http://127.0.0.1:${p}` }
+    const why = `${outcome}; log: ${JSON.stringify(api.logs.slice(-3))}; stderr: ${api.stderr.join('')}`
+    if (port === undefined || attempt >= 5) throw new Error(`API did not start on port ${p}: ${why}`)
+    await new Promise((r) => setTimeout(r, 500))
+  }
 }
 
 /** SIGTERM, then wait for the exit (SIGKILL after `graceMs`). */

@@ -35,6 +35,9 @@ const startApi = async (port?: number) => {
   return api
 }
 
+/** Error answers (4xx, 5xx) seen anywhere in the test: there should be none. */
+const serverErrors: string[] = []
+
 const call = async (api: ApiProcess, path: string, init: RequestInit = {}) => {
   const res = await fetch(`${api.baseUrl}${path}`, {
     ...init,
@@ -42,7 +45,9 @@ const call = async (api: ApiProcess, path: string, init: RequestInit = {}) => {
     signal: AbortSignal.timeout(15_000),
   })
   // eslint-disable-next-line @typescript-eslint/no-explicit-any -- response bodies are read field by field
-  return { status: res.status, body: (await res.json()) as any }
+  const body = (await res.json()) as any
+  if (res.status >= 400) serverErrors.push(`${path}: ${res.status} ${JSON.stringify(body)}`)
+  return { status: res.status, body }
 }
 
 describe('API process restarted mid-run', { timeout: 120_000 }, () => {
@@ -75,7 +80,7 @@ describe('API process restarted mid-run', { timeout: 120_000 }, () => {
 
     const ended = await until(async () => {
       const r = await call(second, `/v1/runs/${runId}`)
-      return r.body.status !== 'queued' && r.body.status !== 'running' ? r.body : undefined
+      return r.status === 200 && r.body.status !== 'queued' && r.body.status !== 'running' ? r.body : undefined
     }, 90_000, 'the run to finish')
     expect(ended.status).toBe('succeeded')
     expect(ended.progress).toEqual({ total: 200, done: 200, failed: 0 })
@@ -88,5 +93,6 @@ describe('API process restarted mid-run', { timeout: 120_000 }, () => {
     expect([...skus].sort()).toEqual(series.map((s) => s.sku).sort())
     // The latest forecast of a SKU is served by the new process too.
     expect((await call(second, `/v1/skus/${series[0].sku}/forecast`)).body.runId).toBe(runId)
+    expect(serverErrors).toEqual([])
   })
 })

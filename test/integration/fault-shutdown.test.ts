@@ -35,6 +35,9 @@ afterAll(async () => {
   if (url) await deleteKeys(url, prefix)
 })
 
+/** Error answers (4xx, 5xx) seen anywhere in the test: there should be none. */
+const serverErrors: string[] = []
+
 const call = async (api: ApiProcess, path: string, init: RequestInit = {}) => {
   const res = await fetch(`${api.baseUrl}${path}`, {
     ...init,
@@ -42,7 +45,9 @@ const call = async (api: ApiProcess, path: string, init: RequestInit = {}) => {
     signal: AbortSignal.timeout(15_000),
   })
   // eslint-disable-next-line @typescript-eslint/no-explicit-any -- response bodies are read field by field
-  return { status: res.status, body: (await res.json()) as any }
+  const body = (await res.json()) as any
+  if (res.status >= 400) serverErrors.push(`${path}: ${res.status} ${JSON.stringify(body)}`)
+  return { status: res.status, body }
 }
 
 describe('graceful shutdown of the API with its in-process worker', { timeout: 120_000 }, () => {
@@ -84,7 +89,7 @@ describe('graceful shutdown of the API with its in-process worker', { timeout: 1
     children.push(rest)
     const run = await until(async () => {
       const r = await call(reader, `/v1/runs/${runId}`)
-      return r.body.status !== 'queued' && r.body.status !== 'running' ? r.body : undefined
+      return r.status === 200 && r.body.status !== 'queued' && r.body.status !== 'running' ? r.body : undefined
     }, 45_000, 'the rest of the run on a new worker (well under the 60 s stalled interval)')
     expect(run.status).toBe('succeeded')
     expect(run.progress).toEqual({ total: 250, done: 250, failed: 0 })
@@ -96,5 +101,6 @@ describe('graceful shutdown of the API with its in-process worker', { timeout: 1
     expect(page.body.nextCursor).toBeNull()
     const skus = page.body.items.map((i: { sku: string }) => i.sku)
     expect([...skus].sort()).toEqual(series.map((s) => s.sku).sort())
+    expect(serverErrors).toEqual([])
   })
 })

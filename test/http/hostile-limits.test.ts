@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connect, type Socket } from 'node:net'
 import type { FastifyInstance } from 'fastify'
+import { ConfigError, loadConfig } from '../../src/config.js'
 import { build } from '../../src/http/app.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, testConfig } from './gateway-double.js'
 import { buildHostileApp, type HostileApp } from './hostile-helpers.js'
@@ -176,5 +177,12 @@ describe('request limits on a real socket', () => {
     expect(last!.status).toBe(429)
     expect(Number(last!.headers.get('retry-after'))).toBeGreaterThan(0)
     expect(last!.headers.get('content-type')).toMatch(/^application\/problem\+json/)
+  })
+
+  it('REQUEST_TIMEOUT_MS defaults to 120 s and refuses values under 1 s', () => {
+    const deps = { readFile: () => '', hash: (k: string) => k }
+    expect(loadConfig({}, deps).requestTimeoutMs).toBe(120_000)
+    expect(loadConfig({ REQUEST_TIMEOUT_MS: '5000' }, deps).requestTimeoutMs).toBe(5000)
+    expect(() => loadConfig({ REQUEST_TIMEOUT_MS: '500' }, deps)).toThrow(ConfigError)
   })
 })

@@ -1,14 +1,19 @@
 /**
  * Fitting an exponential-smoothing model: heuristic initial states (initial.ts),
  * then the smoothing parameters minimise the in-sample sum of squared one-step
- * errors with a bounded Nelder-Mead (optimise.ts). Except for SES, the initial states
- * are then re-estimated for the parameters found: exactly by least squares for the
- * additive models (least-squares-states.ts), by Gauss-Newton steps for multiplicative
- * seasonality (multiplicative-states.ts); a short second search and a final
- * re-estimate follow. So parameters and initial states are estimated together, as in
- * the state-space approach of Hyndman, Koehler, Ord and Snyder (2008, ch. 5; from
- * memory), by alternating between the two. The series is divided by max|y| while
- * optimising so tolerances are scale-free; results are on the original scale.
+ * errors with a bounded Nelder-Mead (optimise.ts), with the initial states estimated
+ * too, as in the state-space approach of Hyndman, Koehler, Ord and Snyder (2008, ch. 5;
+ * from memory):
+ *  - Holt and damped Holt: the initial level and trend are profiled out of every
+ *    evaluation (kernels.ts, sseTrendProfiled: exact least squares in one pass), so the
+ *    search is over the joint optimum; a restarted short search follows;
+ *  - seasonal models alternate: after the first search the states are re-estimated for
+ *    the parameters found, exactly by least squares for additive seasonality
+ *    (least-squares-states.ts), by a Gauss-Newton step for multiplicative seasonality
+ *    (multiplicative-states.ts); then a short second search and a final re-estimate;
+ *  - SES keeps level = y[0].
+ * The series is divided by max|y| while optimising so tolerances are scale-free;
+ * results are on the original scale.
  *
  * Search box (internal coordinates; common practice, phi range as Hyndman and
  * Athanasopoulos, FPP3 sec. 8.2, from memory):
@@ -21,7 +26,7 @@ import { minimiseNelderMead } from '../optimise.js'
 import type { FitContext, ModelFit } from '../types.js'
 import { initialLevel, initialLevelTrend, initialSeasonalStates } from './initial.js'
 import { checkedScale, finite, readParam, type SmoothingShape } from './input.js'
-import { sseLevel, sseSeasonalAdd, sseSeasonalMul, sseTrend } from './kernels.js'
+import { sseLevel, sseSeasonalAdd, sseSeasonalMul, sseTrendProfiled } from './kernels.js'
 import { leastSquaresStates, leastSquaresWorkspace } from './least-squares-states.js'
 import { multiplicativeStates, multiplicativeWorkspace } from './multiplicative-states.js'
 import { runSmoothing } from './recursions.js'
@@ -57,8 +62,9 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   // One allocation for every buffer of this fit (V8 allocates Float64Arrays longer than
   // 8 elements off-heap, at a cost comparable to a whole SSE evaluation).
   // Layout: y (n) | seasonal scratch (m) | states [l, b, s...] (2 + m) | LS states (2 + m) | LS workspace.
-  // Initial states are re-estimated for every model but SES (whose level starts at y[0]).
-  const refinable = shape.seasonal !== null || shape.trend !== 'none'
+  // Seasonal models re-estimate their initial states after the first search; the trend
+  // models profile them out of every evaluation (sseTrendProfiled); SES starts at y[0].
+  const refinable = shape.seasonal !== null
   const ms = shape.seasonal ? m : 0
   const lsSize = !refinable ? 0 : shape.seasonal === 'mul' ? multiplicativeWorkspace(m) : leastSquaresWorkspace(n, m)
   const work = new Float64Array(n + m + 2 * (2 + ms) + lsSize)
@@ -117,14 +123,16 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     const phi = iP >= 0 ? x[iP] : 1
     if (kind === 'add') return sseSeasonalAdd(y, alpha, beta, gamma, phi, l0, b0, s0, scratch)
     if (kind === 'mul') return sseSeasonalMul(y, alpha, beta, gamma, phi, l0, b0, s0, scratch)
-    if (hasTrend) return sseTrend(y, alpha, beta, phi, l0, b0)
+    if (hasTrend) return sseTrendProfiled(y, alpha, beta, phi)
     return sseLevel(y, alpha, l0, 1)
   }
   // Multiplicative models keep the full first search: 80 evaluations left AirPassengers'
   // damped fit 8% above statsmodels' SSE (test/engine/smoothing/models.test.ts).
   // Seasonal models without trend search two parameters: half the evaluations.
   const twoParameters = !hasTrend && kind !== null
-  const firstCap = twoParameters ? FIRST_SEARCH_EVALUATIONS / 2 : refinable && kind !== 'mul' ? FIRST_SEARCH_EVALUATIONS : MAX_EVALUATIONS
+  const firstCap = twoParameters
+    ? FIRST_SEARCH_EVALUATIONS / 2
+    : kind === 'add' || (kind === null && hasTrend) ? FIRST_SEARCH_EVALUATIONS : MAX_EVALUATIONS
   let best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: firstCap })
   if (!Number.isFinite(best.value) && kind === 'mul') {
     // A steep heuristic trend (e.g. after an outlier in the first season) can drive the
@@ -169,6 +177,13 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
       best = minimiseNelderMead(objective, best.x, lower, upper, { maxEvaluations: twoParameters ? REFINE_EVALUATIONS / 2 : REFINE_EVALUATIONS, step: 0.05 })
       refine(best.x)
     }
+  }
+  if (hasTrend && !kind && Number.isFinite(best.value)) {
+    // A restarted search with a fresh small simplex (the first can stall along a bound).
+    best = minimiseNelderMead(objective, best.x, lower, upper, { maxEvaluations: REFINE_EVALUATIONS, step: 0.05 })
+    sseTrendProfiled(y, best.x[0], iB >= 0 ? best.x[iB] : 0, iP >= 0 ? best.x[iP] : 1, lsStates)
+    l0 = lsStates[0]
+    b0 = lsStates[1]
   }
   if (!Number.isFinite(best.value)) {
     throw new EngineInputError('non-finite-value', `${shape.method} found no parameters with a finite error sum for this series`)

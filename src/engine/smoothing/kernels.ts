@@ -116,3 +116,61 @@ export function sseSeasonalMul(
   }
   return Number.isFinite(sse) ? sse : Infinity
 }
+
+/**
+ * Level and (damped) trend with the initial states profiled out: the smallest error sum
+ * over all initial level and trend for these parameters. The errors are affine in the
+ * initial states (e = e_y + level * e_l + trend * e_b, with e_y the errors from zero
+ * states and e_l, e_b the responses to a unit level and trend on y = 0), so the minimum
+ * is e_y'e_y - g'A^{-1}g with A = J'J, g = J'e_y, J = [e_l e_b]; all three recursions run
+ * in one pass. Writes the minimising [level, trend] into `states` when given.
+ * A singular A (e.g. a very short series) falls back to the level alone.
+ */
+export function sseTrendProfiled(y: Float64Array, alpha: number, beta: number, phi: number, states?: Float64Array): number {
+  const k = phi * alpha * beta
+  let ly = 0
+  let py = 0
+  let l1 = 1
+  let p1 = 0
+  let l2 = 0
+  let p2 = phi
+  let yy = 0
+  let a11 = 0
+  let a12 = 0
+  let a22 = 0
+  let g1 = 0
+  let g2 = 0
+  for (let t = 0; t < y.length; t++) {
+    const ey = y[t] - ly - py
+    const e1 = -l1 - p1
+    const e2 = -l2 - p2
+    yy += ey * ey
+    a11 += e1 * e1
+    a12 += e1 * e2
+    a22 += e2 * e2
+    g1 += e1 * ey
+    g2 += e2 * ey
+    ly += py + alpha * ey
+    py = phi * py + k * ey
+    l1 += p1 + alpha * e1
+    p1 = phi * p1 + k * e1
+    l2 += p2 + alpha * e2
+    p2 = phi * p2 + k * e2
+  }
+  const det = a11 * a22 - a12 * a12
+  let level: number
+  let trend: number
+  if (det > 1e-12 * a11 * a22) {
+    level = -(a22 * g1 - a12 * g2) / det
+    trend = -(a11 * g2 - a12 * g1) / det
+  } else {
+    level = a11 > 0 ? -g1 / a11 : 0
+    trend = 0
+  }
+  if (states) {
+    states[0] = level
+    states[1] = trend
+  }
+  const sse = yy + level * g1 + trend * g2
+  return Number.isFinite(sse) ? Math.max(0, sse) : Infinity
+}

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest'
 import { approxEqual } from '../../../src/engine/numeric.js'
-import { sseLevel, sseSeasonalAdd, sseSeasonalMul, sseTrend } from '../../../src/engine/smoothing/kernels.js'
+import { sseLevel, sseSeasonalAdd, sseSeasonalMul, sseTrend, sseTrendProfiled } from '../../../src/engine/smoothing/kernels.js'
+import { leastSquaresStates, leastSquaresWorkspace } from '../../../src/engine/smoothing/least-squares-states.js'
 import { runSmoothing } from '../../../src/engine/smoothing/recursions.js'
 import { smoothingFixture } from './fixture.js'
 
@@ -44,4 +45,29 @@ describe('SSE kernels agree with runSmoothing', () => {
     const y = Float64Array.from([1e300, -1e300, 1e300])
     expect(sseLevel(y, 0.5, 0, 0)).toBe(Infinity)
   })
+})
+
+// The profiled trend kernel is the error sum at the least-squares initial states, found
+// in one pass: it must equal sseTrend at the states leastSquaresStates solves for, and no
+// other start may do better. Series: the fixture's trend cases (R `datasets`, statsmodels
+// 0.13.5 parameters). Tolerance 1e-8 relative: the one-pass form subtracts g'A^-1 g.
+describe('sseTrendProfiled', () => {
+  const cases = smoothingFixture.recursions.filter((c) => c.model === 'holt')
+  it('has cases to check', () => expect(cases.length).toBeGreaterThan(0))
+  for (const c of cases) {
+    it(c.name, () => {
+      const scale = Math.max(...c.series.map(Math.abs))
+      const y = Float64Array.from(c.series, (v) => v / scale)
+      const phi = c.phi ?? 1
+      const states = new Float64Array(2)
+      const profiled = sseTrendProfiled(y, c.alpha, c.beta!, phi, states)
+      const ls = new Float64Array(2)
+      expect(leastSquaresStates(y, c.alpha, c.beta!, 0, phi, true, 1, new Float64Array(leastSquaresWorkspace(y.length, 1)), ls)).toBe(true)
+      expect(approxEqual(states[0], ls[0], 1e-8)).toBe(true)
+      expect(approxEqual(states[1], ls[1], 1e-6, 1e-12)).toBe(true)
+      expect(approxEqual(profiled, sseTrend(y, c.alpha, c.beta!, phi, ls[0], ls[1]), 1e-8)).toBe(true)
+      const given = sseTrend(y, c.alpha, c.beta!, phi, c.initial.level / scale, c.initial.trend! / scale)
+      expect(profiled).toBeLessThanOrEqual(given * (1 + 1e-12))
+    })
+  }
 })

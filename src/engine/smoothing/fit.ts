@@ -25,12 +25,11 @@ import { EngineInputError } from '../errors.js'
 import { minimiseNelderMead } from '../optimise.js'
 import type { FitContext, ModelFit } from '../types.js'
 import { initialLevel, initialLevelTrend, initialSeasonalStates } from './initial.js'
-import { checkedScale, finite, readParam, type SmoothingShape } from './input.js'
+import { checkedScale, readParam, type SmoothingShape } from './input.js'
+import { smoothingFit } from './fit-result.js'
 import { sseLevel, sseSeasonalAdd, sseSeasonalMul, sseTrendProfiled } from './kernels.js'
 import { leastSquaresStates, leastSquaresWorkspace } from './least-squares-states.js'
 import { multiplicativeStates, multiplicativeWorkspace } from './multiplicative-states.js'
-import { runSmoothing } from './recursions.js'
-import { additiveErrorVariance } from './variance.js'
 
 const LO = 1e-4
 const HI = 0.9999
@@ -192,54 +191,5 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   const beta = iB >= 0 ? best.x[iB] : 0
   const gamma = iG >= 0 ? best.x[iG] * (1 - alpha) : 0
   const phi = iP >= 0 ? best.x[iP] : 1
-  // Run on the scaled series (no overflow for huge values), then rescale.
-  const run = runSmoothing(y, {
-    alpha,
-    beta,
-    gamma,
-    phi,
-    seasonLength: m,
-    seasonal: kind ?? undefined,
-    initial: { level: l0, trend: b0, seasonal: kind ? Array.from(s0) : undefined },
-  })
-  const level = l0 * scale
-  const trend = b0 * scale
-  const seasonal: number[] = []
-  for (let j = 0; j < s0.length; j++) seasonal.push(kind === 'add' ? s0[j] * scale : s0[j])
-  const forecast = (h: number): number[] => {
-    const out = run.forecast(h)
-    for (let i = 0; i < out.length; i++) out[i] = finite(out[i] * scale)
-    return out
-  }
-
-  // SES starts from level = y[0], so its first prediction is not a forecast.
-  const firstFitted = hasTrend || kind ? 0 : 1
-  const fitted = run.fitted
-  for (let t = 0; t < n; t++) fitted[t] *= scale
-  if (firstFitted === 1) fitted[0] = NaN
-  const params: Record<string, number | number[]> = { alpha, initialLevel: level }
-  if (hasTrend) {
-    params.beta = beta
-    params.initialTrend = trend
-  }
-  if (damped) params.phi = phi
-  if (kind) {
-    params.gamma = gamma
-    params.initialSeasonal = seasonal
-  }
-  if (kind === 'mul') return { model: shape.name, params, fitted, forecast } // no class-1 formula: empirical intervals
-
-  // sigma^2 = SSE / (n - k), k = smoothing parameters + initial states (HKOS 2008, ch. 6).
-  const used = n - firstFitted
-  const k = 1 + (hasTrend ? 2 : 0) + (damped ? 1 : 0) + (kind ? m : 0) + 1
-  const sse = firstFitted === 1 ? run.sse - run.residuals[0] ** 2 : run.sse
-  const sigma2 = (sse / Math.max(1, used - k)) * scale * scale
-  if (!Number.isFinite(sigma2)) return { model: shape.name, params, fitted, forecast } // beyond double range
-  const shapeForVariance = { alpha, beta, gamma, phi, seasonLength: m }
-  const forecastVariance = (h: number): number[] => {
-    const out = additiveErrorVariance(shapeForVariance, sigma2, h)
-    for (let i = 0; i < out.length; i++) out[i] = finite(out[i])
-    return out
-  }
-  return { model: shape.name, params, fitted, forecast, forecastVariance }
+  return smoothingFit(shape, y, scale, m, { alpha, beta, gamma, phi, level: l0, trend: b0, seasonal: s0 })
 }

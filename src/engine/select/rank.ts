@@ -5,6 +5,9 @@
  * candidate (e.g. MASE on a history whose in-sample differences are all zero), the
  * ranking uses MAE for every candidate instead and says so. This ranking shortlists;
  * the final choice among the first three is by AICc (shortlist.ts, shortlistFirst).
+ * A candidate whose ranking metric is still undefined (MAE too) cannot be compared:
+ * it becomes a 'failed' leaderboard entry with a reason and is left out of `order`,
+ * so no score is ever Infinity or NaN.
  */
 import { approxEqual } from '../numeric.js'
 import type { LeaderboardEntry, MetricName, ModelName, ModelSpec } from '../types.js'
@@ -26,10 +29,15 @@ export function rankEvaluations(
   evaluations: readonly Evaluation[],
   requested: MetricName,
 ): Ranking {
-  const scored = evaluations.map((e, i) => i).filter((i) => evaluations[i].metrics !== undefined)
-  const fellBack = scored.some((i) => evaluations[i].metrics![requested] === null)
+  const withMetrics = evaluations.map((e, i) => i).filter((i) => evaluations[i].metrics !== undefined)
+  const fellBack = withMetrics.some((i) => evaluations[i].metrics![requested] === null)
   const metric: MetricName = fellBack ? 'mae' : requested
-  const score = (i: number): number => evaluations[i].metrics![metric] ?? Infinity
+  const value = (i: number): number | null => {
+    const v = evaluations[i].metrics![metric]
+    return v === null || !Number.isFinite(v) ? null : v
+  }
+  const scored = withMetrics.filter((i) => value(i) !== null)
+  const score = (i: number): number => value(i)!
   const order = [...scored].sort((a, b) => {
     const sa = score(a)
     const sb = score(b)
@@ -38,6 +46,11 @@ export function rankEvaluations(
     return a - b
   })
   const leaderboard: LeaderboardEntry[] = order.map((i) => ({ ...evaluations[i].entry, score: score(i) }))
+  for (const i of withMetrics) {
+    if (value(i) !== null) continue
+    const { score: _score, ...entry } = evaluations[i].entry
+    leaderboard.push({ ...entry, status: 'failed', reason: `${metric} is undefined for this candidate, so it cannot be ranked` })
+  }
   for (const e of evaluations) if (e.metrics === undefined) leaderboard.push(e.entry)
   return { leaderboard, order, metric, fellBack }
 }

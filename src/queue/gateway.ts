@@ -128,8 +128,12 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
     },
 
     async stats() {
-      const c = await queue.getJobCounts('waiting', 'active', 'delayed', 'failed')
-      return { waiting: c.waiting ?? 0, active: c.active ?? 0, delayed: c.delayed ?? 0, failed: c.failed ?? 0 }
+      const [c, runs, fits] = await Promise.all([
+        queue.getJobCounts('waiting', 'active', 'delayed', 'failed'),
+        store.stats.runs(),
+        store.stats.fits(),
+      ])
+      return { waiting: c.waiting ?? 0, active: c.active ?? 0, delayed: c.delayed ?? 0, failed: c.failed ?? 0, runs, fits }
     },
 
     async close() {

@@ -96,10 +96,18 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     }
 
     const started = performance.now()
-    const items = series.map((s) => forecastItem(deps.forecast, run.settings, s))
+    const fitSeconds: number[] = []
+    const items = series.map((s) => {
+      const t0 = performance.now()
+      const item = forecastItem(deps.forecast, run.settings, s)
+      fitSeconds.push((performance.now() - t0) / 1000)
+      return item
+    })
     const computeMs = Math.round(performance.now() - started)
     const tally = tallyItems(items, run.settings.metric)
     const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now())
+    // Counted once per chunk: only the call whose commit took the items (a retried chunk is not counted twice).
+    if (outcome === 'committed' || outcome === 'finished') await store.stats.recordFits(fitSeconds, tally.failed)
     // 'succeeded': the run finished, so every chunk (this one too) was committed before.
     if (outcome === 'committed' || outcome === 'finished' || outcome === 'duplicate' || outcome === 'succeeded') {
       const ok = items.filter((i) => !('error' in i)).map((i) => i.sku)

@@ -1,6 +1,7 @@
 import type { Redis } from 'ioredis'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 import { decodeRunRecord, newRunFields } from './codec.js'
+import { RunStats } from './stats-store.js'
 import type { HistorySelection, HistoryStore } from './history-store.js'
 import { runKeys } from './keys.js'
 import type { RunStoreOptions } from './run-store.js'
@@ -54,5 +55,6 @@ export async function createRunFromHistories(
   const fields = newRunFields({ id: runId, tenant, createdAt: args.now.toISOString(), total, chunks, settings })
   const results = await redis.multi().hset(k.run, fields).expire(k.run, opts.recordTtlSeconds).exec()
   for (const [err] of results ?? []) if (err) throw err
+  await new RunStats(redis, opts.prefix).created()
   return { record: decodeRunRecord(fields)!, chunks }
 }

@@ -59,3 +59,13 @@ export function runKeys(prefix: string, tenant: string, runId: string): RunKeys 
 export function latestKey(prefix: string, tenant: string): string {
   return `${tenantBase(prefix, tenant)}:latest`
 }
+
+/**
+ * Service-wide counters for /metrics (not per tenant): `stats:runs` (hash status -> runs)
+ * and `stats:fits` (hash: ok, error, count, sum, le:<bound> per histogram bucket).
+ * Each is only ever touched alone (single-key commands), so they are legal on a
+ * cluster although they sit outside every run's hash tag (stats-store.ts).
+ */
+export function statsKeys(prefix: string): { readonly runs: string; readonly fits: string } {
+  return { runs: `${prefix}:stats:runs`, fits: `${prefix}:stats:fits` }
+}

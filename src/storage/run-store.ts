@@ -11,7 +11,16 @@ import {
 import { loadItem, storeItem } from './item-codec.js'
 import { latestKey, runKeys, isValidRunId, isValidTenant } from './keys.js'
 import { defineRunScripts, type RunScripts } from './scripts.js'
-import { RunInputError, type LatestForecast, type ResultItem, type ResultPage, type RunRecord } from './types.js'
+import { RunStats } from './stats-store.js'
+import {
+  RUN_STATUSES,
+  RunInputError,
+  type LatestForecast,
+  type ResultItem,
+  type ResultPage,
+  type RunRecord,
+  type RunStatus,
+} from './types.js'
 
 export interface RunStoreOptions {
   readonly prefix: string
@@ -34,12 +43,15 @@ const ChunkInput = z.array(SeriesItem)
 /** Run records, chunk inputs and results in Redis (layout in keys.ts, scripts in scripts.ts). */
 export class RunStore {
   private readonly scripts: RunScripts
+  /** Service-wide counters for /metrics, updated after each status change (stats-store.ts). */
+  readonly stats: RunStats
 
   constructor(
     private readonly redis: Redis,
     private readonly opts: RunStoreOptions,
   ) {
     this.scripts = defineRunScripts(redis)
+    this.stats = new RunStats(redis, opts.prefix)
   }
 
   private keys(tenant: string, runId: string) {
@@ -73,6 +85,7 @@ export class RunStore {
       tx.set(k.input(c), JSON.stringify(series.slice(c * chunkSize, (c + 1) * chunkSize)), 'EX', this.opts.resultTtlSeconds)
     }
     await execOrThrow(tx)
+    await this.stats.created()
     return { record: decodeRunRecord(fields)!, chunks }
   }
 
@@ -90,7 +103,8 @@ export class RunStore {
   async startChunk(tenant: string, runId: string, now: Date): Promise<ChunkStart | null> {
     const r = await this.scripts.startChunk(this.keys(tenant, runId).run, now.toISOString())
     if (r === null) return null
-    const [status, settings, createdAt] = r
+    const [status, settings, createdAt, moved] = r
+    if (moved === '1') await this.stats.moved('queued', 'running')
     return { status, settings: RunSettings.parse(JSON.parse(settings)), createdAtMs: Date.parse(createdAt) }
   }
 
@@ -134,7 +148,10 @@ export class RunStore {
     ]
     for (const [model, n] of tally.wins) args.push(model, n)
     for (const item of items) args.push(item.sku, storeItem(item))
-    return (await this.scripts.commitChunk([k.run, k.chunks, k.skus, k.items], args)) as CommitOutcome
+    const [outcome, before] = await this.scripts.commitChunk([k.run, k.chunks, k.skus, k.items], args)
+    if (before === 'queued' && outcome === 'committed') await this.stats.moved('queued', 'running')
+    if ((before === 'queued' || before === 'running') && outcome === 'finished') await this.stats.moved(before, 'succeeded')
+    return outcome as CommitOutcome
   }
 
   /** Ends a queued or running run; returns the record afterwards (null if unknown). */
@@ -145,7 +162,10 @@ export class RunStore {
       [k.run, k.chunks, k.skus, k.items],
       [status, now.toISOString(), error ?? '', this.opts.resultTtlSeconds, this.opts.recordTtlSeconds],
     )
-    return r === null ? null : this.getRun(tenant, runId)
+    if (r === null) return null
+    const [after, before] = r
+    if (isStatus(before) && isStatus(after)) await this.stats.moved(before, after)
+    return this.getRun(tenant, runId)
   }
 
   /** Points the SKUs' latest forecast at this run unless a newer run already holds them. */
@@ -206,6 +226,8 @@ export class RunStore {
     return stored === null ? null : { runId, producedAt, item: loadItem(sku, stored) }
   }
 }
+
+const isStatus = (s: string): s is RunStatus => (RUN_STATUSES as readonly string[]).includes(s)
 
 async function execOrThrow(tx: ReturnType<Redis['multi']>): Promise<void> {
   const results = await tx.exec()

@@ -9,16 +9,19 @@ import type { Redis } from 'ioredis'
 /**
  * startChunk. KEYS: run. ARGV: nowIso.
  * Moves a queued run to running (first chunk started). Returns
- * {status, settingsJson, createdAt}, or nil when the run does not exist.
+ * {status, settingsJson, createdAt, moved}, moved '1' when this call did the
+ * move (for the stats counters) and '0' otherwise; nil when the run does not exist.
  */
 const START_CHUNK = `
 local st = redis.call('HGET', KEYS[1], 'status')
 if not st then return nil end
+local moved = '0'
 if st == 'queued' then
   redis.call('HSET', KEYS[1], 'status', 'running', 'startedAt', ARGV[1])
   st = 'running'
+  moved = '1'
 end
-return {st, redis.call('HGET', KEYS[1], 'settings'), redis.call('HGET', KEYS[1], 'createdAt')}
+return {st, redis.call('HGET', KEYS[1], 'settings'), redis.call('HGET', KEYS[1], 'createdAt'), moved}
 `
 
 /**
@@ -29,13 +32,15 @@ return {st, redis.call('HGET', KEYS[1], 'settings'), redis.call('HGET', KEYS[1],
  * already committed (a retry never double-counts), store the items, add the
  * counts and summary accumulators, decrement the chunks remaining, and finish
  * the run when that reaches zero.
- * Returns 'committed' | 'finished' | 'duplicate' | 'missing' | the run's terminal status.
+ * Returns {outcome, statusBefore}: outcome 'committed' | 'finished' | 'duplicate' |
+ * 'missing' | the run's terminal status; statusBefore the run's status when the
+ * call began ('' when missing), so the caller can count the status change.
  */
 const COMMIT_CHUNK = `
 local st = redis.call('HGET', KEYS[1], 'status')
-if not st then return 'missing' end
-if st ~= 'queued' and st ~= 'running' then return st end
-if redis.call('SADD', KEYS[2], ARGV[1]) == 0 then return 'duplicate' end
+if not st then return {'missing', ''} end
+if st ~= 'queued' and st ~= 'running' then return {st, st} end
+if redis.call('SADD', KEYS[2], ARGV[1]) == 0 then return {'duplicate', st} end
 local resultTtl = tonumber(ARGV[3])
 local nWins = tonumber(ARGV[9])
 local i = 10
@@ -58,28 +63,28 @@ local remaining = redis.call('HINCRBY', KEYS[1], 'chunksRemaining', -1)
 if remaining <= 0 then
   redis.call('HSET', KEYS[1], 'status', 'succeeded', 'finishedAt', ARGV[2])
   redis.call('EXPIRE', KEYS[1], tonumber(ARGV[4]))
-  return 'finished'
+  return {'finished', st}
 end
-return 'committed'
+return {'committed', st}
 `
 
 /**
  * endRun. KEYS: run, chunks, skus, items. ARGV: status ('cancelled'|'failed'),
  * nowIso, error ('' for none), resultTtl, recordTtl.
- * Ends a queued or running run; returns the status the run has afterwards, or
- * nil when it does not exist. A finished run is left unchanged.
+ * Ends a queued or running run; returns {statusAfter, statusBefore}, or nil
+ * when it does not exist. A finished run is left unchanged (both the same).
  */
 const END_RUN = `
 local st = redis.call('HGET', KEYS[1], 'status')
 if not st then return nil end
-if st ~= 'queued' and st ~= 'running' then return st end
+if st ~= 'queued' and st ~= 'running' then return {st, st} end
 redis.call('HSET', KEYS[1], 'status', ARGV[1], 'finishedAt', ARGV[2])
 if ARGV[3] ~= '' then redis.call('HSET', KEYS[1], 'error', ARGV[3]) end
 redis.call('EXPIRE', KEYS[1], tonumber(ARGV[5]))
 for k = 2, 4 do
   if redis.call('EXISTS', KEYS[k]) == 1 then redis.call('EXPIRE', KEYS[k], tonumber(ARGV[4])) end
 end
-return ARGV[1]
+return {ARGV[1], st}
 `
 
 /**
@@ -112,9 +117,12 @@ return changed
 `
 
 export interface RunScripts {
-  startChunk(run: string, nowIso: string): Promise<[string, string, string] | null>
-  commitChunk(keys: readonly [string, string, string, string], args: readonly (string | number | Buffer)[]): Promise<string>
-  endRun(keys: readonly [string, string, string, string], args: readonly (string | number)[]): Promise<string | null>
+  /** [status, settingsJson, createdAt, moved ('1' when this call moved queued to running)]. */
+  startChunk(run: string, nowIso: string): Promise<[string, string, string, string] | null>
+  /** [outcome, status before the call ('' when the run is missing)]. */
+  commitChunk(keys: readonly [string, string, string, string], args: readonly (string | number | Buffer)[]): Promise<[string, string]>
+  /** [status after, status before], or null when the run does not exist. */
+  endRun(keys: readonly [string, string, string, string], args: readonly (string | number)[]): Promise<[string, string] | null>
   updateLatest(key: string, args: readonly (string | number)[]): Promise<number>
 }
 
@@ -139,11 +147,14 @@ export function defineRunScripts(redis: Redis): RunScripts {
     return fn.bind(redis)
   }
   return {
-    startChunk: async (run, nowIso) => (await cmd('almanacStartChunk')(run, nowIso)) as [string, string, string] | null,
-    commitChunk: async (keys, args) => String(await cmd('almanacCommitChunk')(...keys, ...args)),
+    startChunk: async (run, nowIso) => (await cmd('almanacStartChunk')(run, nowIso)) as [string, string, string, string] | null,
+    commitChunk: async (keys, args) => {
+      const [outcome, before] = (await cmd('almanacCommitChunk')(...keys, ...args)) as [unknown, unknown]
+      return [String(outcome), String(before)]
+    },
     endRun: async (keys, args) => {
-      const r = await cmd('almanacEndRun')(...keys, ...args)
-      return r === null ? null : String(r)
+      const r = (await cmd('almanacEndRun')(...keys, ...args)) as [unknown, unknown] | null
+      return r === null ? null : [String(r[0]), String(r[1])]
     },
     updateLatest: async (key, args) => Number(await cmd('almanacUpdateLatest')(key, ...args)),
   }

@@ -81,8 +81,18 @@ export interface RunGateway {
   latestForecast(tenant: string, sku: string): Promise<LatestForecast | null>
   /** Throws when Redis or the queue is not usable (readiness). */
   ping(): Promise<void>
-  /** Queue depth and runs by status, for /metrics. */
-  stats(): Promise<{ readonly waiting: number; readonly active: number; readonly delayed: number; readonly failed: number }>
+  /**
+   * Queue depth (chunk jobs by state) for /metrics; optionally the service-wide
+   * runs by status and worker fit counters kept in Redis (storage/stats-store.ts).
+   */
+  stats(): Promise<{
+    readonly waiting: number
+    readonly active: number
+    readonly delayed: number
+    readonly failed: number
+    readonly runs?: Readonly<Record<RunStatus, number>>
+    readonly fits?: import('./stats-store.js').FitStats
+  }>
 }
 
 /**

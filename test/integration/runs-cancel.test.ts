@@ -80,7 +80,9 @@ describe('cancel', { timeout: 120_000 }, () => {
 
   it('reports queue depth', async () => {
     const stats = await gateway.stats()
-    expect(stats).toEqual({ waiting: 0, active: 0, delayed: 0, failed: 0 })
+    expect(stats).toMatchObject({ waiting: 0, active: 0, delayed: 0, failed: 0 })
+    // Runs by status (storage/stats-store.ts): the two cancelled runs and the finished one above.
+    expect(stats.runs).toEqual({ queued: 0, running: 0, succeeded: 1, failed: 0, cancelled: 2 })
     await expect(gateway.ping()).resolves.toBeUndefined()
   })
 })

@@ -1,30 +1,46 @@
 import fp from 'fastify-plugin'
 import { Gauge } from 'prom-client'
+import { RUN_STATUSES, type RunGateway } from '../../storage/types.js'
+
+type Stats = Awaited<ReturnType<RunGateway['stats']>>
 
 /**
  * GET /metrics in Prometheus text format: request durations (recorded here),
- * queue depth (asked of the gateway at scrape time) and the fit metrics this
- * process fed (sync forecasts; in-process workers when they share the object).
+ * and, asked of the gateway once per scrape: queue depth, runs by status and
+ * the workers' fit counters (service-wide, kept in Redis), next to the sync
+ * fit metrics this process fed. When the gateway cannot answer, those series
+ * keep their last values and the scrape still succeeds.
  */
 export default fp(
   async (app) => {
     const { registry, httpDuration } = app.metrics
     const gateway = app.gateway
     const log = app.log
-    new Gauge({
+    let stats: Stats | undefined
+    const queueJobs = new Gauge({
       name: 'almanac_queue_jobs',
       help: 'Chunk jobs in the queue by state, as seen at scrape time',
       labelNames: ['state'],
       registers: [registry],
-      async collect() {
-        try {
-          const stats = await gateway.stats()
-          for (const state of ['waiting', 'active', 'delayed', 'failed'] as const) this.set({ state }, stats[state])
-        } catch (err) {
-          log.warn({ err }, 'queue stats unavailable for /metrics')
-        }
-      },
     })
+    const runs = new Gauge({
+      name: 'almanac_runs',
+      help: 'Runs by status, service-wide: queued and running now; succeeded, failed and cancelled ever (counters kept in Redis)',
+      labelNames: ['status'],
+      registers: [registry],
+    })
+    /** One gateway call per scrape, shared by every series it feeds. */
+    const refresh = async () => {
+      try {
+        stats = await gateway.stats()
+      } catch (err) {
+        log.warn({ err }, 'queue and run stats unavailable for /metrics')
+        return
+      }
+      for (const state of ['waiting', 'active', 'delayed', 'failed'] as const) queueJobs.set({ state }, stats[state])
+      if (stats.runs) for (const status of RUN_STATUSES) runs.set({ status }, stats.runs[status])
+      if (stats.fits) app.metrics.setWorkerFits(stats.fits)
+    }
 
     app.addHook('onResponse', async (request, reply) => {
       httpDuration.observe(
@@ -41,6 +57,7 @@ export default fp(
       '/metrics',
       { schema: { hide: true }, config: { auth: false, rateLimit: false } },
       async (_request, reply) => {
+        await refresh()
         reply.type(registry.contentType)
         return registry.metrics()
       },

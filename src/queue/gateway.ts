@@ -51,25 +51,30 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
   const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
   const histories = new HistoryStore(redis, { prefix: config.redisPrefix })
 
+  /** Enqueues one job per stored chunk, in batches; on failure the run is ended as failed. */
+  async function enqueueChunks(tenant: string, runId: string, chunks: number): Promise<void> {
+    try {
+      for (let i = 0; i < chunks; i += BATCH) {
+        await queue.addBulk(
+          chunkIndexes(Math.min(BATCH, chunks - i)).map((j) => ({
+            name: CHUNK_JOB,
+            data: { tenant, runId, chunkIndex: i + j },
+            opts: { ...CHUNK_JOB_OPTIONS, jobId: chunkJobId(runId, i + j) },
+          })),
+        )
+      }
+    } catch (err) {
+      await store.endRun(tenant, runId, 'failed', 'could not enqueue the run', now()).catch(() => null)
+      throw err
+    }
+  }
+
   return {
     async submit(tenant: string, request: RunRequest): Promise<RunRecord> {
       checkRunOptions(request)
       const runId = randomUUID()
       const { record, chunks } = await store.createRun(tenant, runId, request, config.chunkSize, now())
-      try {
-        for (let i = 0; i < chunks; i += BATCH) {
-          await queue.addBulk(
-            chunkIndexes(Math.min(BATCH, chunks - i)).map((j) => ({
-              name: CHUNK_JOB,
-              data: { tenant, runId, chunkIndex: i + j },
-              opts: { ...CHUNK_JOB_OPTIONS, jobId: chunkJobId(runId, i + j) },
-            })),
-          )
-        }
-      } catch (err) {
-        await store.endRun(tenant, runId, 'failed', 'could not enqueue the run', now()).catch(() => null)
-        throw err
-      }
+      await enqueueChunks(tenant, runId, chunks)
       return record
     },
 
@@ -84,20 +89,7 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
         chunkSize: config.chunkSize,
         now: now(),
       })
-      try {
-        for (let i = 0; i < chunks; i += BATCH) {
-          await queue.addBulk(
-            chunkIndexes(Math.min(BATCH, chunks - i)).map((j) => ({
-              name: CHUNK_JOB,
-              data: { tenant, runId, chunkIndex: i + j },
-              opts: { ...CHUNK_JOB_OPTIONS, jobId: chunkJobId(runId, i + j) },
-            })),
-          )
-        }
-      } catch (err) {
-        await store.endRun(tenant, runId, 'failed', 'could not enqueue the run', now()).catch(() => null)
-        throw err
-      }
+      await enqueueChunks(tenant, runId, chunks)
       return record
     },
 

@@ -31,8 +31,13 @@ export const ForecastPointSchema = z.object({
 })
 
 const LeaderboardEntry = z.object({
-  model: ModelName,
-  family: ModelFamily,
+  // Another service version (during a deploy) may have stored a model this one does not know.
+  model: z
+    .union([ModelName, z.string()])
+    .describe('Model name; normally one of the models listed, but an entry stored by another service version may name another'),
+  family: z
+    .union([ModelFamily, z.literal('unknown')])
+    .describe("The model's family; 'unknown' for a model this service version does not know"),
   status: z.enum(['scored', 'skipped', 'failed']),
   metrics: MetricSet.optional(),
   score: z.number().optional(),

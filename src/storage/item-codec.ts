@@ -3,12 +3,12 @@ import {
   METRIC_NAMES,
   findModel,
   type ForecastPoint,
-  type LeaderboardEntry,
   type MetricSet,
+  type ModelName,
   type ModelParams,
   type ReplenishmentFigures,
 } from '../engine/index.js'
-import type { ResultItem } from './types.js'
+import type { ResultItem, StoredLeaderboardEntry } from './types.js'
 
 /**
  * Compact storage form of one SKU's result (the run store keeps thousands per
@@ -25,6 +25,8 @@ import type { ResultItem } from './types.js'
  *   forecast:    [periods[], values[], {level: lower[]}, {level: upper[]}]
  *   leaderboard: [[model, family|0, status, metrics|null, score|null|'m', reason|null], ...]
  *                family 0: the model's own family; score 'm': equal to metrics[selection metric]
+ *                A model this process does not know (written by another version) is read
+ *                with its name as stored and family 'unknown' when stored as 0.
  */
 const VERSION = 2
 
@@ -75,19 +77,22 @@ const mapBounds = (points: readonly ForecastPoint[], side: 'lower' | 'upper') =>
   return Object.fromEntries(levels.map((l) => [l, points.map((p) => r7(p[side][l]!))]))
 }
 
-function packEntry(e: LeaderboardEntry, metric: (typeof METRIC_NAMES)[number]) {
-  const family = findModel(e.model)?.family === e.family ? 0 : e.family
+/** The registered model of that name, or undefined for a name this process does not know. */
+const knownModel = (name: string) => findModel(name as ModelName)
+
+function packEntry(e: StoredLeaderboardEntry, metric: (typeof METRIC_NAMES)[number]) {
+  const family = knownModel(e.model)?.family === e.family ? 0 : e.family
   const score = e.score === undefined ? null : e.metrics && e.metrics[metric] === e.score ? 'm' : r4(e.score)
   return [e.model, family, e.status, packMetrics(e.metrics), score, e.reason ?? null]
 }
 
-function unpackEntry(e: any[], metric: (typeof METRIC_NAMES)[number]): LeaderboardEntry {
+function unpackEntry(e: any[], metric: (typeof METRIC_NAMES)[number]): StoredLeaderboardEntry {
   const metrics = unpackMetrics(e[3])
   const score = e[4] === 'm' ? metrics?.[metric] : e[4]
   // Plain assignments rather than spreads: results pages decode up to 1000 items.
-  const entry: { -readonly [K in keyof LeaderboardEntry]: LeaderboardEntry[K] } = {
+  const entry: { -readonly [K in keyof StoredLeaderboardEntry]: StoredLeaderboardEntry[K] } = {
     model: e[0],
-    family: e[1] === 0 ? findModel(e[0])!.family : e[1],
+    family: e[1] === 0 ? (knownModel(e[0])?.family ?? 'unknown') : e[1],
     status: e[2],
   }
   if (metrics !== null) entry.metrics = metrics

@@ -1,4 +1,4 @@
-import type { ForecastResult, ModelName, MetricName, ReplenishmentFigures } from '../engine/index.js'
+import type { ForecastResult, LeaderboardEntry, ModelFamily, ModelName, MetricName, ReplenishmentFigures } from '../engine/index.js'
 import type { RunSettings } from '../schemas/run.js'
 
 /** Contract between the HTTP layer and the run machinery (queue + storage). */
@@ -31,12 +31,24 @@ export interface RunSummary {
   readonly meanHoldoutError: number | null
 }
 
+/**
+ * A leaderboard entry as stored and served. An entry written by another
+ * version of the service may name a model this process does not know (mixed
+ * versions during a deploy): the name is kept as stored, and the family is
+ * 'unknown' unless the entry stored it.
+ */
+export type StoredLeaderboardEntry = Omit<LeaderboardEntry, 'model' | 'family'> & {
+  readonly model: ModelName | (string & {})
+  readonly family: ModelFamily | 'unknown'
+}
+
 /** One SKU's outcome in a run. */
 export type ResultItem =
   | ({ readonly sku: string } & Pick<
       ForecastResult,
-      'model' | 'family' | 'params' | 'metrics' | 'leaderboard' | 'forecast' | 'warnings' | 'selection' | 'intervals'
+      'model' | 'family' | 'params' | 'metrics' | 'forecast' | 'warnings' | 'selection' | 'intervals'
     > & {
+      readonly leaderboard: readonly StoredLeaderboardEntry[]
       /** Present when the run asked for replenishment figures. */
       readonly replenishment?: ReplenishmentFigures
     })

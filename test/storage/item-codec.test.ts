@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest'
 import { forecastSeries } from '../../src/engine/index.js'
 import { decodeItem, encodeItem, loadItem, storeItem } from '../../src/storage/item-codec.js'
 import { toResultItem } from '../../src/storage/codec.js'
+import { ForecastItem } from '../../src/schemas/results.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import { syntheticSeries } from '../queue/fixtures.js'
 
@@ -82,5 +83,37 @@ describe('stored result items', () => {
 
   it('refuse a format they do not know', () => {
     expect(() => decodeItem('A', '[1,"ses"]')).toThrow(/unknown format 1/)
+  })
+
+  it('read a leaderboard entry naming a model this process does not know (another version wrote it)', () => {
+    // As a newer version would store it: an unknown model with family 0 ("its own family") and one with its family given.
+    const json = JSON.stringify([
+      2, 'naive', 'level', {}, ['holdout', 'mae', 2, 1], [1, 1, null, 0.1, null, 0.1],
+      [
+        ['naive', 0, 'scored', [1, 1, null, 0.1, null, 0.1], 'm', null],
+        ['future-model', 0, 'scored', [2, 2, null, 0.2, null, 0.2], 'm', null],
+        ['other-model', 'trend', 'failed', null, null, 'did not converge'],
+      ],
+      [['1'], [5], {}, {}], ['none', [], false], [],
+    ])
+    const item = decodeItem('X', json)
+    if ('error' in item) throw new Error('expected a forecast')
+    expect(item.leaderboard).toEqual([
+      { model: 'naive', family: 'level', status: 'scored', metrics: expect.any(Object), score: 1 },
+      { model: 'future-model', family: 'unknown', status: 'scored', metrics: expect.any(Object), score: 2 },
+      { model: 'other-model', family: 'trend', status: 'failed', reason: 'did not converge' },
+    ])
+    // And it round-trips: stored again, read again, the same.
+    expect(decodeItem('X', encodeItem(item))).toEqual(item)
+    expect(loadItem('X', storeItem(item))).toEqual(item)
+  })
+
+  it('pass the response schema with such an entry, so a results page still serialises', () => {
+    const item = decodeItem('X', JSON.stringify([
+      2, 'naive', 'level', {}, ['holdout', 'mae', 2, 1], null,
+      [['future-model', 0, 'skipped', null, null, 'needs more data']],
+      [['1'], [5], {}, {}], ['none', [], false], [],
+    ]))
+    expect(ForecastItem.safeParse(item).success).toBe(true)
   })
 })

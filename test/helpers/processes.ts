@@ -9,7 +9,7 @@ import { Redis } from 'ioredis'
 /**
  * Child processes for fault tests: the API (`src/server.ts`) and a private
  * `redis-server` that a test may stop and restart. Worker processes come from
- * test/queue/worker-process.ts.
+ * test/queue/worker-process.ts, built on `spawnTs` here.
  */
 
 const ROOT = fileURLToPath(new URL('../../', import.meta.url))
@@ -46,9 +46,23 @@ export interface ChildLogs {
   waitForLog(msg: string, timeoutMs?: number): Promise<Record<string, unknown>>
 }
 
-/** Runs `node --import tsx <entry>` and collects its JSON log lines. */
-function spawnTs(entry: string, env: Record<string, string>): ChildLogs {
-  // Directly under node with tsx's loader, so signals reach the service itself.
+export interface SpawnOptions {
+  /** Names the process in timeout errors (default: the entry path). */
+  label?: string
+  /**
+   * Which child event settles `exited` (default 'exit'); 'close' comes after
+   * the last output has been read.
+   */
+  exitEvent?: 'exit' | 'close'
+}
+
+/**
+ * Runs `node --import tsx <entry>` and collects its JSON log lines. Directly
+ * under node with tsx's loader (not the tsx CLI, which would put a second
+ * process in between), so signals, SIGKILL included, reach the service itself.
+ */
+export function spawnTs(entry: string, env: Record<string, string>, options: SpawnOptions = {}): ChildLogs {
+  const label = options.label ?? entry
   const child = spawn(process.execPath, ['--import', 'tsx', entry], {
     cwd: ROOT,
     env: { PATH: process.env.PATH ?? '', LOG_LEVEL: 'info', ...env },
@@ -75,7 +89,9 @@ function spawnTs(entry: string, env: Record<string, string>): ChildLogs {
   })
   child.stderr!.setEncoding('utf8').on('data', (chunk: string) => stderr.push(chunk))
   const exited = new Promise<number | string>((resolve) =>
-    child.once('exit', (code, signal) => resolve(code ?? signal ?? 'unknown')),
+    child.once(options.exitEvent ?? 'exit', (code: number | null, signal: NodeJS.Signals | null) =>
+      resolve(code ?? signal ?? 'unknown'),
+    ),
   )
   return {
     child,
@@ -87,7 +103,7 @@ function spawnTs(entry: string, env: Record<string, string>): ChildLogs {
       if (seen) return Promise.resolve(seen)
       return new Promise((resolve, reject) => {
         const timer = setTimeout(
-          () => reject(new Error(`${entry} did not log "${msg}" within ${timeoutMs} ms; stderr: ${stderr.join('')}`)),
+          () => reject(new Error(`${label} did not log "${msg}" within ${timeoutMs} ms; stderr: ${stderr.join('')}`)),
           timeoutMs,
         )
         waiters.push({ msg, resolve: (l) => (clearTimeout(timer), resolve(l)) })

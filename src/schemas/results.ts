@@ -70,7 +70,9 @@ export const ReplenishmentSchema = z
 export const ForecastItem = z
   .object({
     sku: z.string(),
-    model: ModelName,
+    model: z
+      .union([ModelName, z.string()])
+      .describe('Model chosen; normally one of the models listed, but a result stored by another service version may name another'),
     family: ModelFamily,
     params: Params,
     selection: z.object({

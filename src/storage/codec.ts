@@ -89,7 +89,8 @@ export function tallyItems(items: readonly ResultItem[], metric: (typeof METRIC_
       failed++
       continue
     }
-    wins.set(item.model, (wins.get(item.model) ?? 0) + 1)
+    // Items are tallied by the process that fitted them, so the model is always known here.
+    if (isModel(item.model)) wins.set(item.model, (wins.get(item.model) ?? 0) + 1)
     const value = item.selection.method === 'holdout' ? item.metrics?.[metric] : null
     if (typeof value === 'number' && Number.isFinite(value)) {
       errSum += value

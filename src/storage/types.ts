@@ -46,8 +46,10 @@ export type StoredLeaderboardEntry = Omit<LeaderboardEntry, 'model' | 'family'> 
 export type ResultItem =
   | ({ readonly sku: string } & Pick<
       ForecastResult,
-      'model' | 'family' | 'params' | 'metrics' | 'forecast' | 'warnings' | 'selection' | 'intervals'
+      'family' | 'params' | 'metrics' | 'forecast' | 'warnings' | 'selection' | 'intervals'
     > & {
+      /** As in StoredLeaderboardEntry: another service version may have stored a model this one does not know. */
+      readonly model: ModelName | (string & {})
       readonly leaderboard: readonly StoredLeaderboardEntry[]
       /** Present when the run asked for replenishment figures. */
       readonly replenishment?: ReplenishmentFigures

@@ -116,4 +116,14 @@ describe('stored result items', () => {
     ]))
     expect(ForecastItem.safeParse(item).success).toBe(true)
   })
+
+  it('read a result whose chosen model this process does not know, and serve it', () => {
+    const item = decodeItem('X', JSON.stringify([
+      2, 'future-model', 'trend', { alpha: 0.5 }, ['holdout', 'mae', 2, 1], null,
+      [['future-model', 0, 'scored', [1, 1, null, 0.1, null, 0.1], 'm', null]],
+      [['1'], [5], {}, {}], ['none', [], false], [],
+    ]))
+    expect(item).toMatchObject({ model: 'future-model', family: 'trend', leaderboard: [{ model: 'future-model', family: 'unknown', score: 1 }] })
+    expect(ForecastItem.safeParse(item).success).toBe(true)
+  })
 })

@@ -1,47 +1,36 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
-import { Redis } from 'ioredis'
-import { build } from '../../src/http/app.js'
-import { createLogger } from '../../src/logger.js'
-import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import type { Redis } from 'ioredis'
 import { AccuracyTrackingHistoryStore } from '../../src/storage/accuracy-hook.js'
-import { createErpServices } from '../../src/webhooks/services.js'
 import { latestKey, runKeys } from '../../src/storage/keys.js'
-import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
-import { runsTestConfig, waitFor } from '../queue/fixtures.js'
+import type { RunMachinery } from '../../src/queue/gateway.js'
+import { startService, type ErpMachinery, type TestService } from '../helpers/service.js'
+import { waitFor } from '../queue/fixtures.js'
 
 // Accuracy tracking end to end: stored histories -> run -> new actuals uploaded -> scored.
-let url: string
+let service: TestService
 let prefix: string
 let app: FastifyInstance
 let gateway: RunMachinery
-let workers: RunWorkers
 let redis: Redis
-let erp: ReturnType<typeof createErpServices>
+let erp: ErpMachinery
 const hookErrors: unknown[] = []
 
 beforeAll(async () => {
-  url = await redisUrlForTests()
-  prefix = uniquePrefix('erp-accuracy')
-  const config = runsTestConfig(url, prefix, { chunkSize: 5, workerConcurrency: 1 })
-  const logger = createLogger({ level: 'silent' })
-  redis = new Redis(url, { maxRetriesPerRequest: 2 })
-  gateway = createRunGateway(config)
-  workers = startWorkers(config, logger)
-  erp = createErpServices(config, redis)
-  const histories = new AccuracyTrackingHistoryStore(redis, { prefix }, erp.services.accuracy, (err) => hookErrors.push(err))
-  app = await build({ config, gateway, logger, histories, erp: erp.services })
+  service = await startService('erp-accuracy', {
+    config: { chunkSize: 5, workerConcurrency: 1 },
+    erp: true,
+    appDeps: (ctx) => ({
+      histories: new AccuracyTrackingHistoryStore(ctx.redis, { prefix: ctx.prefix }, ctx.erp!.services.accuracy, (err) =>
+        hookErrors.push(err),
+      ),
+    }),
+  })
+  ;({ prefix, app, gateway, redis } = service)
+  erp = service.erp!
 })
 
-afterAll(async () => {
-  await app?.close()
-  await workers?.close()
-  await gateway?.close()
-  await erp?.close()
-  redis?.disconnect()
-  if (url && prefix) await deleteKeys(url, prefix)
-})
+afterAll(() => service?.close())
 
 const put = (sku: string, values: (number | null)[]) =>
   app.inject({ method: 'PUT', url: `/v1/skus/${sku}/history`, payload: { frequency: 'month', start: '2024-01', values } })

@@ -1,15 +1,11 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { createHash } from 'node:crypto'
 import type { FastifyInstance } from 'fastify'
-import { Redis } from 'ioredis'
-import { build } from '../../src/http/app.js'
-import { createLogger } from '../../src/logger.js'
-import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
 import { HistoryStore } from '../../src/storage/history-store.js'
 import { IdempotencyStore } from '../../src/storage/idempotency-store.js'
-import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
-import { runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+import type { RunMachinery } from '../../src/queue/gateway.js'
+import { startService, type TestService } from '../helpers/service.js'
+import { syntheticSeries, waitFor } from '../queue/fixtures.js'
 
 // Stored histories through the real app, gateway, queue and sandboxed worker against a real Redis.
 const sha256 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex')
@@ -17,40 +13,29 @@ const GARDEN = 'garden-erp-key-0123456789abcdef'
 const HEATING = 'heating-erp-key-0123456789abcdef'
 const as = (key: string) => ({ authorization: `Bearer ${key}` })
 
-let url: string
-let prefix: string
+let service: TestService
 let app: FastifyInstance
 let gateway: RunMachinery
-let workers: RunWorkers
-let redis: Redis
 
 beforeAll(async () => {
-  url = await redisUrlForTests()
-  prefix = uniquePrefix('erp-history')
-  const config = runsTestConfig(url, prefix, {
-    apiKeys: new Map([
-      ['garden', [sha256(GARDEN)]],
-      ['heating', [sha256(HEATING)]],
-    ]),
-    chunkSize: 4,
-    workerConcurrency: 1,
+  service = await startService('erp-history', {
+    config: {
+      apiKeys: new Map([
+        ['garden', [sha256(GARDEN)]],
+        ['heating', [sha256(HEATING)]],
+      ]),
+      chunkSize: 4,
+      workerConcurrency: 1,
+    },
+    appDeps: ({ redis, prefix }) => ({
+      histories: new HistoryStore(redis, { prefix }),
+      idempotency: new IdempotencyStore(redis, { prefix }),
+    }),
   })
-  const logger = createLogger({ level: 'silent' })
-  gateway = createRunGateway(config)
-  workers = startWorkers(config, logger)
-  redis = new Redis(url, { maxRetriesPerRequest: 2 })
-  const histories = new HistoryStore(redis, { prefix })
-  const idempotency = new IdempotencyStore(redis, { prefix })
-  app = await build({ config, gateway, logger, histories, idempotency })
+  ;({ app, gateway } = service)
 })
 
-afterAll(async () => {
-  await app?.close()
-  await workers?.close()
-  await gateway?.close()
-  redis?.disconnect()
-  if (url && prefix) await deleteKeys(url, prefix)
-})
+afterAll(() => service?.close())
 
 const submit = async (payload: object, key = GARDEN, headers: Record<string, string> = {}) =>
   app.inject({ method: 'POST', url: '/v1/runs', headers: { ...as(key), ...headers }, payload })

@@ -1,37 +1,22 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
-import { build } from '../../src/http/app.js'
-import { createLogger } from '../../src/logger.js'
-import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
 import { decodeItem, encodeItem } from '../../src/storage/codec.js'
 import type { ResultItem } from '../../src/storage/types.js'
-import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
-import { runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+import type { RunMachinery } from '../../src/queue/gateway.js'
+import { startService, type TestService } from '../helpers/service.js'
+import { syntheticSeries, waitFor } from '../queue/fixtures.js'
 
 // Replenishment figures through the real app, queue and sandboxed worker (Redis at REDIS_URL).
-let url: string
-let prefix: string
+let service: TestService
 let app: FastifyInstance
 let gateway: RunMachinery
-let workers: RunWorkers
 
 beforeAll(async () => {
-  url = await redisUrlForTests()
-  prefix = uniquePrefix('erp-replenishment')
-  const config = runsTestConfig(url, prefix, { chunkSize: 5, workerConcurrency: 1 })
-  const logger = createLogger({ level: 'silent' })
-  gateway = createRunGateway(config)
-  workers = startWorkers(config, logger)
-  app = await build({ config, gateway, logger })
+  service = await startService('erp-replenishment', { config: { chunkSize: 5, workerConcurrency: 1 } })
+  ;({ app, gateway } = service)
 })
 
-afterAll(async () => {
-  await app?.close()
-  await workers?.close()
-  await gateway?.close()
-  if (url && prefix) await deleteKeys(url, prefix)
-})
+afterAll(() => service?.close())
 
 type Forecast = Exclude<ResultItem, { error: unknown }>
 

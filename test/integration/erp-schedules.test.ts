@@ -1,47 +1,34 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
-import { Redis } from 'ioredis'
-import { build } from '../../src/http/app.js'
+import type { Redis } from 'ioredis'
 import { createLogger } from '../../src/logger.js'
-import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import type { RunMachinery } from '../../src/queue/gateway.js'
 import { createFireHandler } from '../../src/schedules/fire.js'
 import { HistoryStore } from '../../src/storage/history-store.js'
 import { ScheduleStore } from '../../src/storage/schedule-store.js'
 import type { RunRecord } from '../../src/storage/types.js'
-import { createErpServices } from '../../src/webhooks/services.js'
-import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
-import { runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+import { startService, type ErpMachinery, type TestService } from '../helpers/service.js'
+import { syntheticSeries, waitFor } from '../queue/fixtures.js'
 
 // Schedules through the real app, Redis, BullMQ job schedulers and workers.
-let url: string
+let service: TestService
 let prefix: string
 let app: FastifyInstance
 let gateway: RunMachinery
-let workers: RunWorkers
 let redis: Redis
-let erp: ReturnType<typeof createErpServices>
+let erp: ErpMachinery
 
 beforeAll(async () => {
-  url = await redisUrlForTests()
-  prefix = uniquePrefix('erp-schedules')
-  const config = runsTestConfig(url, prefix, { chunkSize: 5, workerConcurrency: 1, scheduleMinIntervalSeconds: 1 })
-  const logger = createLogger({ level: 'silent' })
-  redis = new Redis(url, { maxRetriesPerRequest: 2 })
-  gateway = createRunGateway(config)
-  workers = startWorkers(config, logger)
-  erp = createErpServices(config, redis)
-  app = await build({ config, gateway, logger, histories: new HistoryStore(redis, { prefix }), erp: erp.services })
+  service = await startService('erp-schedules', {
+    config: { chunkSize: 5, workerConcurrency: 1, scheduleMinIntervalSeconds: 1 },
+    erp: true,
+    appDeps: (ctx) => ({ histories: new HistoryStore(ctx.redis, { prefix: ctx.prefix }) }),
+  })
+  ;({ prefix, app, gateway, redis } = service)
+  erp = service.erp!
 })
 
-afterAll(async () => {
-  await app?.close()
-  await workers?.close()
-  await gateway?.close()
-  await erp?.close()
-  redis?.disconnect()
-  if (url && prefix) await deleteKeys(url, prefix)
-})
+afterAll(() => service?.close())
 
 const nightly = {
   name: 'garden nightly',

@@ -1,47 +1,29 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
-import { Redis } from 'ioredis'
-import { build } from '../../src/http/app.js'
-import { createLogger } from '../../src/logger.js'
-import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import type { RunMachinery } from '../../src/queue/gateway.js'
 import { verifySignature } from '../../src/webhooks/signing.js'
-import { createErpServices } from '../../src/webhooks/services.js'
-import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
-import { runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+import { startService, type TestService } from '../helpers/service.js'
+import { syntheticSeries, waitFor } from '../queue/fixtures.js'
 import { startReceiver } from '../webhooks/receiver.js'
 
 // /v1/callbacks and /v1/runs/{id}/deliveries through the real app, queue and workers.
-let url: string
-let prefix: string
+let service: TestService
 let app: FastifyInstance
 let gateway: RunMachinery
-let workers: RunWorkers
-let redis: Redis
-let erp: ReturnType<typeof createErpServices>
 let receiver: Awaited<ReturnType<typeof startReceiver>>
 
 beforeAll(async () => {
-  url = await redisUrlForTests()
-  prefix = uniquePrefix('erp-webhooks-http')
-  const config = runsTestConfig(url, prefix, { webhookAttempts: 2, webhookBackoffMs: 20, webhookAllowPrivateNetworks: true })
-  const logger = createLogger({ level: 'silent' })
-  redis = new Redis(url, { maxRetriesPerRequest: 2 })
-  gateway = createRunGateway(config)
-  workers = startWorkers(config, logger)
-  erp = createErpServices(config, redis)
-  app = await build({ config, gateway, logger, erp: erp.services })
+  service = await startService('erp-webhooks-http', {
+    config: { webhookAttempts: 2, webhookBackoffMs: 20, webhookAllowPrivateNetworks: true },
+    erp: true,
+  })
+  ;({ app, gateway } = service)
   receiver = await startReceiver(() => 204)
 })
 
 afterAll(async () => {
-  await app?.close()
-  await workers?.close()
-  await gateway?.close()
-  await erp?.close()
+  await service?.close()
   await receiver?.close()
-  redis?.disconnect()
-  if (url && prefix) await deleteKeys(url, prefix)
 })
 
 describe('callbacks and deliveries over HTTP', { timeout: 120_000 }, () => {

@@ -1,13 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
-import { Redis } from 'ioredis'
-import { build } from '../../src/http/app.js'
-import { createLogger } from '../../src/logger.js'
-import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
-import { createErpServices } from '../../src/webhooks/services.js'
-import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
-import { runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+import type { RunMachinery } from '../../src/queue/gateway.js'
+import { startService, type TestService } from '../helpers/service.js'
+import { syntheticSeries, waitFor } from '../queue/fixtures.js'
 import { deadUrl } from '../webhooks/receiver.js'
 
 /**
@@ -20,39 +15,24 @@ import { deadUrl } from '../webhooks/receiver.js'
 
 const ATTEMPTS = 3
 const BACKOFF_MS = 200
-let url: string
-let prefix: string
+let service: TestService
 let app: FastifyInstance
 let gateway: RunMachinery
-let workers: RunWorkers
-let redis: Redis
-let erp: ReturnType<typeof createErpServices>
 
 beforeAll(async () => {
-  url = await redisUrlForTests()
-  prefix = uniquePrefix('fault-webhook-down')
-  const config = runsTestConfig(url, prefix, {
-    webhookAttempts: ATTEMPTS,
-    webhookBackoffMs: BACKOFF_MS,
-    webhookTimeoutMs: 2000,
-    webhookAllowPrivateNetworks: true,
+  service = await startService('fault-webhook-down', {
+    config: {
+      webhookAttempts: ATTEMPTS,
+      webhookBackoffMs: BACKOFF_MS,
+      webhookTimeoutMs: 2000,
+      webhookAllowPrivateNetworks: true,
+    },
+    erp: true,
   })
-  const logger = createLogger({ level: 'silent' })
-  gateway = createRunGateway(config)
-  workers = startWorkers(config, logger)
-  redis = new Redis(url, { maxRetriesPerRequest: 2 })
-  erp = createErpServices(config, redis)
-  app = await build({ config, gateway, logger, erp: erp.services })
+  ;({ app, gateway } = service)
 })
 
-afterAll(async () => {
-  await app?.close()
-  await workers?.close()
-  await erp?.close()
-  await gateway?.close()
-  redis?.disconnect()
-  if (url && prefix) await deleteKeys(url, prefix)
-})
+afterAll(() => service?.close())
 
 describe('webhook receiver down', { timeout: 60_000 }, () => {
   it('retries with backoff, ends dead, and the API shows each attempt; the run is unaffected', async () => {

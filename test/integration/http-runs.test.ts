@@ -1,13 +1,9 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { createHash } from 'node:crypto'
 import type { FastifyInstance } from 'fastify'
-import { Redis } from 'ioredis'
-import { build } from '../../src/http/app.js'
-import { createLogger } from '../../src/logger.js'
-import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
-import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
-import { runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
+import type { RunMachinery } from '../../src/queue/gateway.js'
+import { startService, type TestService } from '../helpers/service.js'
+import { syntheticSeries, waitFor } from '../queue/fixtures.js'
 
 // The real app, gateway, queue and sandboxed worker against a real Redis.
 const sha256 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex')
@@ -15,38 +11,26 @@ const GARDEN = 'garden-integration-key-0123456789'
 const HEATING = 'heating-integration-key-0123456789'
 const as = (key: string) => ({ authorization: `Bearer ${key}` })
 
-let url: string
-let prefix: string
+let service: TestService
 let app: FastifyInstance
 let gateway: RunMachinery
-let workers: RunWorkers
-let rateLimitRedis: Redis
 
 beforeAll(async () => {
-  url = await redisUrlForTests()
-  prefix = uniquePrefix('http-runs')
-  const config = runsTestConfig(url, prefix, {
-    apiKeys: new Map([
-      ['garden', [sha256(GARDEN)]],
-      ['heating', [sha256(HEATING)]],
-    ]),
-    chunkSize: 20,
-    workerConcurrency: 1,
+  service = await startService('http-runs', {
+    config: {
+      apiKeys: new Map([
+        ['garden', [sha256(GARDEN)]],
+        ['heating', [sha256(HEATING)]],
+      ]),
+      chunkSize: 20,
+      workerConcurrency: 1,
+    },
+    appDeps: ({ redis }) => ({ rateLimitRedis: redis }),
   })
-  const logger = createLogger({ level: 'silent' })
-  gateway = createRunGateway(config)
-  workers = startWorkers(config, logger)
-  rateLimitRedis = new Redis(url, { maxRetriesPerRequest: 2 })
-  app = await build({ config, gateway, logger, rateLimitRedis })
+  ;({ app, gateway } = service)
 })
 
-afterAll(async () => {
-  await app?.close()
-  await workers?.close()
-  await gateway?.close()
-  rateLimitRedis?.disconnect()
-  if (url && prefix) await deleteKeys(url, prefix)
-})
+afterAll(() => service?.close())
 
 const untilFinished = (id: string, key: string) =>
   waitFor(async () => {

@@ -7,6 +7,8 @@
 import { spawn, type ChildProcess } from 'node:child_process'
 import { readFileSync } from 'node:fs'
 import { fileURLToPath } from 'node:url'
+import type { Redis } from 'ioredis'
+import { deletePrefix } from './e2e-redis.js'
 
 const ROOT = fileURLToPath(new URL('..', import.meta.url))
 
@@ -15,6 +17,26 @@ export interface ServiceProcess {
   readonly child: ChildProcess
   /** Last lines of stderr and stdout, for the message when the process dies. */
   readonly tail: string[]
+}
+
+/**
+ * Environment for a benchmark's API and worker processes: its own Redis prefix,
+ * loopback only, workers apart from the API, no API keys (every request is the
+ * default tenant) and results kept for an hour.
+ */
+export function serviceEnv(redisUrl: string, prefix: string, port: number): Record<string, string> {
+  return {
+    REDIS_URL: redisUrl,
+    REDIS_PREFIX: prefix,
+    HOST: '127.0.0.1',
+    PORT: String(port),
+    RUN_WORKER: 'false',
+    LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn',
+    // The bench's own budget: far above the requests it sends, so no answer is a 429.
+    RATE_LIMIT_MAX: '1000000',
+    RESULT_RETENTION_SECONDS: '3600',
+    API_KEYS: '',
+  }
 }
 
 /**
@@ -90,6 +112,12 @@ export async function stopService(p: ServiceProcess, graceMs = 15_000): Promise<
   const timer = setTimeout(() => p.child.kill('SIGKILL'), graceMs)
   await exited
   clearTimeout(timer)
+}
+
+/** Stops every process (in order), then deletes every key under `prefix`; returns how many keys. */
+export async function stopAndClean(processes: readonly ServiceProcess[], redis: Redis, prefix: string): Promise<number> {
+  for (const p of processes) await stopService(p)
+  return deletePrefix(redis, prefix)
 }
 
 export function sleep(ms: number): Promise<void> {

@@ -22,8 +22,8 @@ import { join } from 'node:path'
 import { Redis } from 'ioredis'
 import { pageResults, runBody, submitRun, waitForRun, type Client, type PagedResults, type RunView } from './e2e-client.js'
 import { freePort } from './e2e-port.js'
-import { cpuSeconds, peakRssMiB, startService, stopService, waitReady, type ServiceProcess } from './e2e-processes.js'
-import { deletePrefix, latestIndexBytes, medianItemBytes, redisCpuSeconds, runResultBytes, usedMemory } from './e2e-redis.js'
+import { cpuSeconds, peakRssMiB, serviceEnv, startService, stopAndClean, waitReady, type ServiceProcess } from './e2e-processes.js'
+import { latestIndexBytes, medianItemBytes, redisCpuSeconds, runResultBytes, usedMemory } from './e2e-redis.js'
 
 function option(name: string, fallback: number): number {
   const at = process.argv.indexOf(`--${name}`)
@@ -48,17 +48,7 @@ const f = (v: number, d = 0): string => v.toLocaleString('en-US', { maximumFract
 
 const port = await freePort()
 const baseUrl = `http://127.0.0.1:${port}`
-const env: Record<string, string> = {
-  REDIS_URL: redisUrl,
-  REDIS_PREFIX: prefix,
-  HOST: '127.0.0.1',
-  PORT: String(port),
-  RUN_WORKER: 'false',
-  LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn',
-  RATE_LIMIT_MAX: '1000000',
-  RESULT_RETENTION_SECONDS: '3600',
-  API_KEYS: '',
-}
+const env = serviceEnv(redisUrl, prefix, port)
 for (const name of ['CHUNK_SIZE', 'WORKER_CONCURRENCY']) if (process.env[name]) env[name] = process.env[name]!
 const profDir = join(tmpdir(), `almanac-e2e-prof-${prefix}`)
 if (CPU_PROF) mkdirSync(profDir, { recursive: true })
@@ -162,8 +152,7 @@ try {
   for (const p of processes) process.stderr.write(`--- last output of ${p.name}:\n${p.tail.join('\n')}\n`)
   throw err
 } finally {
-  for (const p of processes) await stopService(p)
-  const removed = await deletePrefix(redis, prefix)
+  const removed = await stopAndClean(processes, redis, prefix)
   out(`cleanup: stopped ${processes.length} processes, deleted ${f(removed)} keys under ${prefix}:`)
   redis.disconnect()
 }

@@ -18,8 +18,7 @@ import autocannon from 'autocannon'
 import { Redis } from 'ioredis'
 import { getRun, pageResults, runBody, skuName, submitRun, waitForRun, type Client } from './e2e-client.js'
 import { freePort } from './e2e-port.js'
-import { cpuSeconds, startService, stopService, waitReady, type ServiceProcess } from './e2e-processes.js'
-import { deletePrefix } from './e2e-redis.js'
+import { cpuSeconds, serviceEnv, startService, stopAndClean, waitReady, type ServiceProcess } from './e2e-processes.js'
 
 function option(name: string, fallback: number): number {
   const at = process.argv.indexOf(`--${name}`)
@@ -45,18 +44,7 @@ const f = (v: number, d = 0): string => v.toLocaleString('en-US', { maximumFract
 
 const port = await freePort()
 const baseUrl = `http://127.0.0.1:${port}`
-const env: Record<string, string> = {
-  REDIS_URL: redisUrl,
-  REDIS_PREFIX: prefix,
-  HOST: '127.0.0.1',
-  PORT: String(port),
-  RUN_WORKER: 'false',
-  LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn',
-  // The bench's own budget: far above the requests it sends, so no answer is a 429.
-  RATE_LIMIT_MAX: '1000000',
-  RESULT_RETENTION_SECONDS: '3600',
-  API_KEYS: '',
-}
+const env = serviceEnv(redisUrl, prefix, port)
 const redis = new Redis(redisUrl)
 const client: Client = { baseUrl, headers: {} }
 const processes: ServiceProcess[] = []
@@ -137,8 +125,7 @@ try {
   out(`target p99 < ${P99_TARGET_MS} ms: ${worstP99 < P99_TARGET_MS ? 'MET' : 'NOT MET'} (worst route p99 ${f(worstP99)} ms)`)
   if (before.status !== 'running' && before.status !== 'queued') out('note: the polled run was not fitting when the load started')
 } finally {
-  for (const p of processes) await stopService(p)
-  const removed = await deletePrefix(redis, prefix)
+  const removed = await stopAndClean(processes, redis, prefix)
   out(`cleanup: stopped ${processes.length} processes, deleted ${f(removed)} keys under ${prefix}:`)
   redis.disconnect()
 }

@@ -3,26 +3,12 @@
  * Shapes cycle through level, trend, seasonal, seasonal-trend and intermittent,
  * so every model family gets work. Invented data, for timing only.
  */
+import { createRandom, normalDraw as normal } from '../scripts/seeded-random.js'
+
+export { createRandom }
 
 export const SHAPES = ['level', 'trend', 'seasonal', 'seasonal-trend', 'intermittent'] as const
 export type Shape = (typeof SHAPES)[number]
-
-/** mulberry32: small seeded PRNG with uniform output in [0, 1). */
-export function createRandom(seed: number): () => number {
-  let state = seed >>> 0
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0
-    let t = state
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
-
-function normal(random: () => number): number {
-  const u = Math.max(random(), 1e-12)
-  return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * random())
-}
 
 export function syntheticSeries(random: () => number, shape: Shape, length: number): number[] {
   const level = 20 + 480 * random()

@@ -16,31 +16,17 @@
 import { writeFileSync } from 'node:fs'
 import { dirname, join } from 'node:path'
 import { fileURLToPath } from 'node:url'
+import { createRandom, normalDraw } from '../scripts/seeded-random.js'
 
 const SEED = 424242
 const LAST_YEAR = 2025 // every series ends in December 2025
 const HORIZON = 6
 
-/** mulberry32: small seeded PRNG with uniform output in [0, 1). */
-function createRandom(seed: number): () => number {
-  let state = seed >>> 0
-  return () => {
-    state = (state + 0x6d2b79f5) >>> 0
-    let t = state
-    t = Math.imul(t ^ (t >>> 15), t | 1)
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61)
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296
-  }
-}
-
 const random = createRandom(SEED)
 const uniform = (low: number, high: number): number => low + (high - low) * random()
 const integer = (low: number, high: number): number => Math.floor(uniform(low, high + 1))
 
-function normal(): number {
-  const u = Math.max(random(), 1e-12)
-  return Math.sqrt(-2 * Math.log(u)) * Math.cos(2 * Math.PI * random())
-}
+const normal = (): number => normalDraw(random)
 
 /** Poisson draw: Knuth's product method for small means, normal approximation above 30. */
 function poisson(mean: number): number {

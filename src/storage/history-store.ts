@@ -3,6 +3,7 @@ import { FREQUENCIES, formatPeriod, parsePeriod, type Frequency } from '../engin
 import type { PendingHistory } from '../history/accumulator.js'
 import type { HistoryWriter } from '../history/ingest.js'
 import type { HistoryData } from '../history/types.js'
+import { decodeCursor, encodeCursor } from './codec.js'
 import { isValidTenant } from './keys.js'
 import { RunInputError } from './types.js'
 
@@ -265,13 +266,5 @@ function summary(sku: string, meta: Meta): HistorySummary {
   }
 }
 
-/** Opaque page cursor: the last SKU of the page, base64url. */
-export function encodeCursor(sku: string): string {
-  return Buffer.from(sku, 'utf8').toString('base64url')
-}
-
-export function decodeCursor(cursor: string): string | null {
-  if (!/^[A-Za-z0-9_-]+$/.test(cursor)) return null
-  const sku = Buffer.from(cursor, 'base64url').toString('utf8')
-  return sku.length > 0 && encodeCursor(sku) === cursor ? sku : null
-}
+/** Page cursors: the same opaque form as run results. */
+export { encodeCursor, decodeCursor }

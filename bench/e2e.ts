@@ -24,19 +24,14 @@ import { pageResults, runBody, submitRun, waitForRun, type Client, type PagedRes
 import { freePort } from './e2e-port.js'
 import { cpuSeconds, peakRssMiB, serviceEnv, startService, stopAndClean, waitReady, type ServiceProcess } from './e2e-processes.js'
 import { latestIndexBytes, medianItemBytes, redisCpuSeconds, runResultBytes, usedMemory } from './e2e-redis.js'
+import { positiveIntOption } from './cli.js'
 
-function option(name: string, fallback: number): number {
-  const at = process.argv.indexOf(`--${name}`)
-  const value = at >= 0 ? Number(process.argv[at + 1]) : fallback
-  if (!Number.isInteger(value) || value < 1) throw new Error(`--${name} must be a positive integer`)
-  return value
-}
 
-const SKUS = option('skus', 100_000)
-const BATCH = Math.min(SKUS, option('batch', 20_000))
-const WORKERS = option('workers', 1)
-const SEED = option('seed', 5)
-const PAGE_LIMIT = option('page-limit', 1000)
+const SKUS = positiveIntOption('skus', 100_000)
+const BATCH = Math.min(SKUS, positiveIntOption('batch', 20_000))
+const WORKERS = positiveIntOption('workers', 1)
+const SEED = positiveIntOption('seed', 5)
+const PAGE_LIMIT = positiveIntOption('page-limit', 1000)
 const CPU_PROF = process.argv.includes('--cpu-prof')
 const TENANT = 'default' // no API keys: every request is the default tenant (loopback only)
 const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'

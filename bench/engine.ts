@@ -13,16 +13,11 @@ import { forecastSeries, type ModelName } from '../src/engine/index.js'
 import { median } from './accuracy-metrics.js'
 import { timeEachModel } from './by-model.js'
 import { syntheticSet } from './synthetic.js'
+import { positiveIntOption } from './cli.js'
 
-function option(name: string, fallback: number): number {
-  const at = process.argv.indexOf(`--${name}`)
-  const value = at >= 0 ? Number(process.argv[at + 1]) : fallback
-  if (!Number.isInteger(value) || value < 1) throw new Error(`--${name} must be a positive integer`)
-  return value
-}
-const SERIES = option('series', 10_000)
-const REPS = Math.max(3, option('reps', 3))
-const SEED = option('seed', 7)
+const SERIES = positiveIntOption('series', 10_000)
+const REPS = Math.max(3, positiveIntOption('reps', 3))
+const SEED = positiveIntOption('seed', 7)
 const LENGTH = 60
 const HORIZON = 12
 const TARGET = 2_000

@@ -19,18 +19,13 @@ import { Redis } from 'ioredis'
 import { getRun, pageResults, runBody, skuName, submitRun, waitForRun, type Client } from './e2e-client.js'
 import { freePort } from './e2e-port.js'
 import { cpuSeconds, serviceEnv, startService, stopAndClean, waitReady, type ServiceProcess } from './e2e-processes.js'
+import { positiveIntOption } from './cli.js'
 
-function option(name: string, fallback: number): number {
-  const at = process.argv.indexOf(`--${name}`)
-  const value = at >= 0 ? Number(process.argv[at + 1]) : fallback
-  if (!Number.isInteger(value) || value < 1) throw new Error(`--${name} must be a positive integer`)
-  return value
-}
 
-const RATE = option('rate', 1000)
-const SECONDS = Math.min(option('seconds', 20), 120)
-const SKUS = option('skus', 60_000)
-const CONNECTIONS = option('connections', 20)
+const RATE = positiveIntOption('rate', 1000)
+const SECONDS = Math.min(positiveIntOption('seconds', 20), 120)
+const SKUS = positiveIntOption('skus', 60_000)
+const CONNECTIONS = positiveIntOption('connections', 20)
 const KNOWN = 2000 // SKUs forecast before the load starts
 const BATCH = 20_000
 const SEED = 17

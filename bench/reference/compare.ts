@@ -27,17 +27,12 @@ import { fileURLToPath } from 'node:url'
 import { forecastSeries, type ModelName } from '../../src/engine/index.js'
 import { mase, mean, median, seasonalNaiveScale } from '../accuracy-metrics.js'
 import { syntheticSet } from '../synthetic.js'
+import { positiveIntOption } from '../cli.js'
 
-function option(name: string, fallback: number): number {
-  const at = process.argv.indexOf(`--${name}`)
-  const value = at >= 0 ? Number(process.argv[at + 1]) : fallback
-  if (!Number.isInteger(value) || value < 1) throw new Error(`--${name} must be a positive integer`)
-  return value
-}
 
-const REFERENCE_SERIES = option('reference-series', 200)
-const SERIES = Math.max(REFERENCE_SERIES, option('series', 10_000))
-const SEED = option('seed', 11)
+const REFERENCE_SERIES = positiveIntOption('reference-series', 200)
+const SERIES = Math.max(REFERENCE_SERIES, positiveIntOption('series', 10_000))
+const SEED = positiveIntOption('seed', 11)
 const LENGTH = 60
 const SEASON = 12
 const HOLDOUT = 12

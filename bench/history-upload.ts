@@ -16,6 +16,7 @@ import type { Config } from '../src/config.js'
 import { build } from '../src/http/app.js'
 import { HistoryStore } from '../src/storage/history-store.js'
 import type { RunGateway } from '../src/storage/types.js'
+import { deletePrefix } from './e2e-redis.js'
 
 const sizes = process.argv.slice(2).map(Number).filter((n) => n > 0)
 const rowCounts = sizes.length > 0 ? sizes : [200_000, 800_000, 1_600_000]
@@ -90,11 +91,6 @@ try {
   }
 } finally {
   await app.close()
-  let cursor = '0'
-  do {
-    const [next, keys] = await redis.scan(cursor, 'MATCH', `${prefix}*`, 'COUNT', 1000)
-    cursor = next
-    if (keys.length > 0) await redis.unlink(...keys)
-  } while (cursor !== '0')
+  await deletePrefix(redis, prefix) // every key this bench wrote starts with `${prefix}:`
   redis.disconnect()
 }

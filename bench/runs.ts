@@ -20,6 +20,7 @@ import { startWorkers } from '../src/queue/worker.js'
 import { runKeys } from '../src/storage/keys.js'
 import { RunSettings, type SeriesItem } from '../src/schemas/run.js'
 import { SHAPES, createRandom, syntheticSeries } from './synthetic.js'
+import { deletePrefix } from './e2e-redis.js'
 
 const count = Number(process.argv[2] ?? 5000)
 const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'
@@ -114,11 +115,6 @@ try {
 } finally {
   await workers.close()
   await gateway.close()
-  let cursor = '0'
-  do {
-    const [next, keys] = await redis.scan(cursor, 'MATCH', `${prefix}*`, 'COUNT', 1000)
-    cursor = next
-    if (keys.length > 0) await redis.unlink(...keys)
-  } while (cursor !== '0')
+  await deletePrefix(redis, prefix) // every key this bench wrote starts with `${prefix}:`
   redis.disconnect()
 }

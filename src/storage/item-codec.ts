@@ -41,7 +41,7 @@ const POWERS_OF_TEN = Array.from({ length: 23 }, (_, i) => 10 ** i)
  * is rounded once; when it lands exactly on .5, the binary value decides, so
  * toPrecision (which rounds the exact binary value) answers.
  */
-function round(x: number, digits: number): number {
+export function round(x: number, digits: number): number {
   if (!Number.isFinite(x) || x === 0) return x
   const a = Math.abs(x)
   const p = digits - 1 - Math.floor(Math.log10(a))

@@ -1,7 +1,7 @@
 import { randomUUID } from 'node:crypto'
 import Fastify, { type FastifyBaseLogger, type FastifyInstance, type FastifyReply } from 'fastify'
 import { serializerCompiler } from 'fastify-type-provider-zod'
-import type { Redis } from 'ioredis'
+import type { RedisClient } from '../storage/redis-client.js'
 import type { Config } from '../config.js'
 import { forecastSeries } from '../engine/index.js'
 import { createLogger, type Logger } from '../logger.js'
@@ -44,7 +44,7 @@ export interface AppDeps {
   /** Default: a silent logger. */
   readonly logger?: Logger
   /** Shared rate-limit counts; without it they stay in this process's memory. */
-  readonly rateLimitRedis?: Redis
+  readonly rateLimitRedis?: RedisClient
   /** Default: a fresh registry per app. */
   readonly metrics?: ServiceMetrics
   /** Default: the engine's forecastSeries. */

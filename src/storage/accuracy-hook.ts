@@ -1,4 +1,4 @@
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import { formatPeriod, parsePeriod } from '../engine/index.js'
 import type { PendingHistory } from '../history/accumulator.js'
 import type { HistoryData } from '../history/types.js'
@@ -15,7 +15,7 @@ import { HistoryStore } from './history-store.js'
  */
 export class AccuracyTrackingHistoryStore extends HistoryStore {
   constructor(
-    redis: Redis,
+    redis: RedisClient,
     opts: ConstructorParameters<typeof HistoryStore>[1],
     private readonly accuracy: Pick<AccuracyStore, 'recordActualsMany'>,
     /** `what`: the SKU, or how many SKUs a failed batch held. */

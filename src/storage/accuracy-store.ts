@@ -1,4 +1,4 @@
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import { parsePeriod, summariseAccuracy, type AccuracySummary, type Frequency } from '../engine/index.js'
 import { decodeCursor, encodeCursor } from './codec.js'
 import { isValidTenant } from './keys.js'
@@ -83,7 +83,7 @@ export class AccuracyStore {
   readonly forecasts: ForecastSnapshots
 
   constructor(
-    private readonly redis: Redis,
+    private readonly redis: RedisClient,
     private readonly runs: Pick<RunStore, 'latest'>,
     private readonly opts: { readonly prefix: string; readonly limit?: number; readonly now?: () => Date },
   ) {

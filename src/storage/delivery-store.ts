@@ -1,4 +1,4 @@
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import { isValidRunId, isValidTenant, runKeys } from './keys.js'
 
 /**
@@ -35,7 +35,7 @@ export interface Delivery {
 
 export class DeliveryStore {
   constructor(
-    private readonly redis: Redis,
+    private readonly redis: RedisClient,
     private readonly opts: { readonly prefix: string; readonly ttlSeconds: number },
   ) {}
 

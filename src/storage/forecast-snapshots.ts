@@ -1,4 +1,4 @@
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import { isValidTenant, latestKey } from './keys.js'
 import type { RunStore } from './run-store.js'
 import type { ResultItem } from './types.js'
@@ -48,7 +48,7 @@ export interface Snapshot {
 
 export class ForecastSnapshots {
   constructor(
-    private readonly redis: Redis,
+    private readonly redis: RedisClient,
     private readonly runs: Pick<RunStore, 'latest'>,
     private readonly prefix: string,
   ) {

@@ -1,4 +1,4 @@
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 import { decodeRunRecord, newRunFields } from './codec.js'
 import { RunStats } from './stats-store.js'
@@ -18,7 +18,7 @@ import { RunInputError, type RunRecord } from './types.js'
  * @throws RunInputError('empty-selection') when nothing matched
  */
 export async function createRunFromHistories(
-  redis: Redis,
+  redis: RedisClient,
   opts: RunStoreOptions,
   histories: HistoryStore,
   args: {

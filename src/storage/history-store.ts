@@ -1,4 +1,4 @@
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import { FREQUENCIES, formatPeriod, parsePeriod, type Frequency } from '../engine/index.js'
 import type { PendingHistory } from '../history/accumulator.js'
 import type { HistoryWriter } from '../history/ingest.js'
@@ -71,7 +71,7 @@ const MAX_ATTEMPTS = 10
 
 export class HistoryStore implements HistoryWriter {
   constructor(
-    private readonly redis: Redis,
+    private readonly redis: RedisClient,
     private readonly opts: { readonly prefix: string; readonly now?: () => Date },
   ) {
     if (!(PUT_COMMAND in redis)) redis.defineCommand(PUT_COMMAND, { lua: PUT_HISTORY })

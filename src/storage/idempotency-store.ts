@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto'
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import { isValidTenant } from './keys.js'
 
 /**
@@ -34,7 +34,7 @@ export interface IdempotencyOptions {
 
 export class IdempotencyStore {
   constructor(
-    private readonly redis: Redis,
+    private readonly redis: RedisClient,
     private readonly opts: IdempotencyOptions,
   ) {}
 

@@ -1,4 +1,4 @@
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import { RunSettings, SeriesItem, type RunRequest } from '../schemas/run.js'
 import { z } from 'zod'
 import {
@@ -47,7 +47,7 @@ export class RunStore {
   readonly stats: RunStats
 
   constructor(
-    private readonly redis: Redis,
+    private readonly redis: RedisClient,
     private readonly opts: RunStoreOptions,
   ) {
     this.scripts = defineRunScripts(redis)
@@ -229,7 +229,7 @@ export class RunStore {
 
 const isStatus = (s: string): s is RunStatus => (RUN_STATUSES as readonly string[]).includes(s)
 
-async function execOrThrow(tx: ReturnType<Redis['multi']>): Promise<void> {
+async function execOrThrow(tx: ReturnType<RedisClient['multi']>): Promise<void> {
   const results = await tx.exec()
   if (results === null) throw new Error('Redis transaction was aborted')
   for (const [err] of results) if (err) throw err

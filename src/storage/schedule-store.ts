@@ -1,5 +1,5 @@
 import { randomUUID } from 'node:crypto'
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import type { RunSettings } from '../schemas/run.js'
 import { isValidTenant } from './keys.js'
 
@@ -41,7 +41,7 @@ const SCHEDULE_ID = /^[A-Za-z0-9-]{1,64}$/
 
 export class ScheduleStore {
   constructor(
-    private readonly redis: Redis,
+    private readonly redis: RedisClient,
     private readonly prefix: string,
   ) {}
 

@@ -1,4 +1,4 @@
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 
 /**
  * Lua scripts of the run store. Each runs atomically on one Redis node; the
@@ -132,7 +132,7 @@ type Call = (...args: (string | number | Buffer)[]) => Promise<unknown>
  * Registers the scripts on a connection (ioredis sends EVALSHA and falls back
  * to EVAL when the script cache is empty) and returns typed callers.
  */
-export function defineRunScripts(redis: Redis): RunScripts {
+export function defineRunScripts(redis: RedisClient): RunScripts {
   const scripts = {
     almanacStartChunk: [1, START_CHUNK],
     almanacCommitChunk: [4, COMMIT_CHUNK],

@@ -1,4 +1,4 @@
-import type { Redis } from 'ioredis'
+import type { RedisClient } from './redis-client.js'
 import { statsKeys } from './keys.js'
 import { RUN_STATUSES, type RunStatus } from './types.js'
 
@@ -34,7 +34,7 @@ export class RunStats {
   private readonly keys: ReturnType<typeof statsKeys>
 
   constructor(
-    private readonly redis: Redis,
+    private readonly redis: RedisClient,
     prefix: string,
   ) {
     this.keys = statsKeys(prefix)

@@ -1,5 +1,5 @@
 import { randomUUID } from 'node:crypto'
-import type { Redis } from 'ioredis'
+import type { RedisClient } from '../storage/redis-client.js'
 import { isValidTenant } from '../storage/keys.js'
 import type { RunEvent } from './names.js'
 import { newSigningSecret } from './signing.js'
@@ -28,7 +28,7 @@ export function tenantKey(prefix: string, tenant: string, name: string): string 
 
 export class CallbackStore {
   constructor(
-    private readonly redis: Redis,
+    private readonly redis: RedisClient,
     private readonly prefix: string,
   ) {}
 

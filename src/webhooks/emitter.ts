@@ -1,5 +1,5 @@
 import { Queue } from 'bullmq'
-import type { Redis } from 'ioredis'
+import type { RedisClient } from '../storage/redis-client.js'
 import { RUN_EVENT_JOB, RUN_EVENT_JOB_OPTIONS, WEBHOOK_QUEUE, runEventJobId } from './names.js'
 import type { RunEventJob } from './payload.js'
 
@@ -13,7 +13,7 @@ export interface RunEventEmitter {
  * Emits onto the webhook queue. One job per run (deterministic id), so
  * emitting twice for the same run (a retried chunk) is harmless.
  */
-export function createRunEventEmitter(connection: Redis, prefix: string): RunEventEmitter {
+export function createRunEventEmitter(connection: RedisClient, prefix: string): RunEventEmitter {
   const queue = new Queue<RunEventJob>(WEBHOOK_QUEUE, { connection, prefix })
   queue.on('error', () => {}) // surfaced by the failing add()
   return {

@@ -1,5 +1,5 @@
 import { Queue } from 'bullmq'
-import type { Redis } from 'ioredis'
+import type { RedisClient } from '../storage/redis-client.js'
 import type { Config } from '../config.js'
 import { RECORD_TTL_FACTOR } from '../queue/names.js'
 import { SCHEDULE_QUEUE, DEFAULT_MIN_INTERVAL_SECONDS } from '../schedules/names.js'
@@ -26,7 +26,7 @@ export interface ErpServices {
  */
 export function createErpServices(
   config: Config,
-  redis: Redis,
+  redis: RedisClient,
   opts: { readonly minIntervalSeconds?: number } = {},
 ): { services: ErpServices; close(): Promise<void> } {
   const prefix = config.redisPrefix

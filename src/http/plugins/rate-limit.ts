@@ -1,6 +1,6 @@
 import fp from 'fastify-plugin'
 import rateLimit from '@fastify/rate-limit'
-import type { Redis } from 'ioredis'
+import type { RedisClient } from '../../storage/redis-client.js'
 import { ProblemError } from '../../errors.js'
 
 /**
@@ -11,7 +11,7 @@ import { ProblemError } from '../../errors.js'
  * so the key is the tenant. Routes with `config.rateLimit: false` are exempt.
  * If Redis fails mid-request the request is let through (readiness reports it).
  */
-export default fp<{ redis?: Redis }>(
+export default fp<{ redis?: RedisClient }>(
   async (app, opts) => {
     const { rateLimitMax, rateLimitWindowMs, redisPrefix } = app.config
     await app.register(rateLimit, {

@@ -20,6 +20,24 @@ export const ConfigSchema = z.object({
   REDIS_URL: z.string().url().default('redis://127.0.0.1:6379'),
   /** Prefix of every Redis key this service writes (queue and storage). */
   REDIS_PREFIX: z.string().min(1).max(64).regex(/^[A-Za-z0-9:_-]+$/).default('almanac'),
+  /**
+   * Comma-separated `host:port` seed nodes of a Redis Cluster; when set, the service
+   * connects to the cluster instead of REDIS_URL (which still supplies the username,
+   * password and TLS). Unset: one Redis server at REDIS_URL.
+   */
+  REDIS_CLUSTER_NODES: z
+    .string()
+    .optional()
+    .transform((text, ctx) => {
+      if (text === undefined || text.trim() === '') return undefined
+      const nodes: RedisNode[] = []
+      text.split(',').forEach((raw, i) => {
+        const node = parseRedisNode(raw.trim())
+        if (node === null) ctx.addIssue({ code: 'custom', message: `entry ${i + 1} (${JSON.stringify(raw.trim())}) is not host:port with a port of 1-65535` })
+        else nodes.push(node)
+      })
+      return nodes
+    }),
   /** Comma-separated `tenant:key` pairs. */
   API_KEYS: z.string().optional(),
   /** File with one `tenant:key` pair per line (# comments allowed). */
@@ -56,11 +74,34 @@ export const ConfigSchema = z.object({
   SCHEDULE_MIN_INTERVAL_SECONDS: intFromEnv(300, 1, 86_400),
 })
 
+/** One seed node of a Redis Cluster. */
+export interface RedisNode {
+  readonly host: string
+  readonly port: number
+}
+
+/** `host:port`, `[ipv6]:port`; null when malformed. */
+export function parseRedisNode(text: string): RedisNode | null {
+  const m = /^(?:\[([0-9A-Fa-f:.]+)\]|([A-Za-z0-9._-]+)):(\d{1,5})$/.exec(text)
+  const port = m ? Number(m[3]) : 0
+  if (!m || port < 1 || port > 65535) return null
+  return { host: (m[1] ?? m[2])!, port }
+}
+
 export interface Config {
   readonly port: number
   readonly host: string
   readonly redisUrl: string
+  /** Prefix of the service's own keys (storage); never contains braces. */
   readonly redisPrefix: string
+  /** Seed nodes of a Redis Cluster; absent or empty means one Redis server at redisUrl. */
+  readonly redisClusterNodes?: readonly RedisNode[]
+  /**
+   * Prefix of the BullMQ queues' keys; redisPrefix when absent. On a cluster
+   * `{redisPrefix}`: BullMQ's scripts touch several keys of a queue at once,
+   * so the whole prefix must be one hash tag.
+   */
+  readonly queuePrefix?: string
   /** tenant -> list of SHA-256 hex digests of its keys; empty means auth is off. */
   readonly apiKeys: ReadonlyMap<string, readonly string[]>
   readonly chunkSize: number
@@ -155,6 +196,9 @@ export function loadConfig(
     }
     merge(parseApiKeys(text, /\r?\n/, deps.hash))
   }
+  if (e.REDIS_CLUSTER_NODES && !/^\/?0?$/.test(new URL(e.REDIS_URL).pathname)) {
+    throw new ConfigError(['REDIS_URL: a Redis Cluster has only database 0; drop the database number when REDIS_CLUSTER_NODES is set'])
+  }
   if (apiKeys.size === 0 && e.HOST !== undefined && !isLoopback(e.HOST)) {
     throw new ConfigError([
       `HOST: ${e.HOST} would open the service to the network without authentication; set API_KEYS or API_KEYS_FILE, or listen on 127.0.0.1`,
@@ -166,6 +210,7 @@ export function loadConfig(
     host: e.HOST ?? (apiKeys.size === 0 ? '127.0.0.1' : '0.0.0.0'),
     redisUrl: e.REDIS_URL,
     redisPrefix: e.REDIS_PREFIX,
+    ...(e.REDIS_CLUSTER_NODES ? { redisClusterNodes: e.REDIS_CLUSTER_NODES, queuePrefix: `{${e.REDIS_PREFIX}}` } : {}),
     apiKeys,
     chunkSize: e.CHUNK_SIZE,
     workerConcurrency: e.WORKER_CONCURRENCY,
@@ -185,6 +230,11 @@ export function loadConfig(
     webhookAllowPrivateNetworks: e.WEBHOOK_ALLOW_PRIVATE_NETWORKS,
     scheduleMinIntervalSeconds: e.SCHEDULE_MIN_INTERVAL_SECONDS,
   }
+}
+
+/** The prefix BullMQ queues use (see Config.queuePrefix). */
+export function queuePrefix(config: Pick<Config, 'redisPrefix' | 'queuePrefix'>): string {
+  return config.queuePrefix ?? config.redisPrefix
 }
 
 /** 127.0.0.0/8, ::1 and localhost: addresses only this machine can reach. */

@@ -35,7 +35,7 @@ function configFromEnv(): Config {
 async function main(): Promise<void> {
   const config = configFromEnv()
   try {
-    await assertRedisReachable(config.redisUrl)
+    await assertRedisReachable(config)
   } catch (err) {
     process.stderr.write(`${(err as Error).message}\n`)
     process.exit(1)
@@ -51,7 +51,7 @@ async function main(): Promise<void> {
 
   const gateway = createRunGateway(config)
   // One connection for the API's own keys: rate-limit counters, stored histories, idempotency answers.
-  const apiRedis = gatewayConnection(config.redisUrl)
+  const apiRedis = gatewayConnection(config)
   apiRedis.on('error', (err) => logger.warn({ err }, 'API Redis connection error'))
   const erp = createErpServices(config, apiRedis)
   // Uploads score earlier forecasts against the actuals they bring (GET /v1/skus/{sku}/accuracy).

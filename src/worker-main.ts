@@ -25,7 +25,7 @@ async function main(): Promise<void> {
     throw err
   }
   try {
-    await assertRedisReachable(config.redisUrl)
+    await assertRedisReachable(config)
   } catch (err) {
     process.stderr.write(`${(err as Error).message}\n`)
     process.exit(1)

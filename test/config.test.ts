@@ -1,6 +1,6 @@
 import { createHash } from 'node:crypto'
 import { describe, expect, it } from 'vitest'
-import { ConfigError, isLoopback, loadConfig } from '../src/config.js'
+import { ConfigError, isLoopback, loadConfig, parseRedisNode, queuePrefix } from '../src/config.js'
 
 const sha256 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex')
 const noFile = (path: string): string => {
@@ -64,5 +64,38 @@ describe('loadConfig', () => {
   it('recognises loopback addresses', () => {
     expect(['127.0.0.1', '127.1.2.3', '::1', 'localhost'].every(isLoopback)).toBe(true)
     expect(['0.0.0.0', '::', '10.0.0.1', '127.0.0.1.evil'].some(isLoopback)).toBe(false)
+  })
+
+  it('one Redis server by default: no cluster nodes, queues under the plain prefix', () => {
+    const c = load({ REDIS_PREFIX: 'shop' })
+    expect(c.redisClusterNodes).toBeUndefined()
+    expect(queuePrefix(c)).toBe('shop')
+  })
+
+  it('REDIS_CLUSTER_NODES: seed nodes, and the queue prefix becomes one hash tag', () => {
+    const c = load({ REDIS_CLUSTER_NODES: 'redis-a:7000, 10.0.0.2:7001,[::1]:7002', REDIS_PREFIX: 'shop' })
+    expect(c.redisClusterNodes).toEqual([
+      { host: 'redis-a', port: 7000 },
+      { host: '10.0.0.2', port: 7001 },
+      { host: '::1', port: 7002 },
+    ])
+    expect(c.redisPrefix).toBe('shop')
+    expect(queuePrefix(c)).toBe('{shop}')
+  })
+
+  it('REDIS_CLUSTER_NODES: names each malformed entry; an empty value means no cluster', () => {
+    const problems = problemsOf(() => load({ REDIS_CLUSTER_NODES: 'redis-a:7000,redis-b,redis-c:0' }))
+    expect(problems).toEqual([
+      'REDIS_CLUSTER_NODES: entry 2 ("redis-b") is not host:port with a port of 1-65535',
+      'REDIS_CLUSTER_NODES: entry 3 ("redis-c:0") is not host:port with a port of 1-65535',
+    ])
+    expect(load({ REDIS_CLUSTER_NODES: ' ' }).redisClusterNodes).toBeUndefined()
+    expect(parseRedisNode('host:65536')).toBeNull()
+  })
+
+  it('a cluster has only database 0, so a database number in REDIS_URL is refused there', () => {
+    expect(problemsOf(() => load({ REDIS_CLUSTER_NODES: 'redis-a:7000', REDIS_URL: 'redis://redis-a:7000/2' }))[0]).toMatch(/^REDIS_URL: a Redis Cluster has only database 0/)
+    expect(load({ REDIS_CLUSTER_NODES: 'redis-a:7000', REDIS_URL: 'redis://redis-a:7000/0' }).redisClusterNodes).toHaveLength(1)
+    expect(load({ REDIS_URL: 'redis://127.0.0.1:6379/2' }).redisUrl).toBe('redis://127.0.0.1:6379/2')
   })
 })

@@ -1,7 +1,6 @@
 import { randomUUID } from 'node:crypto'
 import { Queue } from 'bullmq'
-import type { Redis } from 'ioredis'
-import type { Config } from '../config.js'
+import { queuePrefix, type Config } from '../config.js'
 import type { RunRequest } from '../schemas/run.js'
 import { RunStore } from '../storage/run-store.js'
 import { HistoryStore } from '../storage/history-store.js'
@@ -41,12 +40,12 @@ export function checkRunOptions(settings: Pick<RunRequest, 'horizon' | 'replenis
  */
 export function createRunGateway(config: Config, deps: { now?: () => Date } = {}): RunMachinery {
   const now = deps.now ?? (() => new Date())
-  const redis: Redis = gatewayConnection(config.redisUrl)
+  const redis = gatewayConnection(config)
   redis.on('error', () => {}) // surfaced through ping() and failing calls
   const store = new RunStore(redis, storeOptions(config))
-  const queue = new Queue<ChunkJob>(CHUNK_QUEUE, { connection: redis, prefix: config.redisPrefix })
+  const queue = new Queue<ChunkJob>(CHUNK_QUEUE, { connection: redis, prefix: queuePrefix(config) })
   queue.on('error', () => {})
-  const events = createRunEventEmitter(redis, config.redisPrefix)
+  const events = createRunEventEmitter(redis, queuePrefix(config))
 
   const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
   const histories = new HistoryStore(redis, { prefix: config.redisPrefix })

@@ -1,7 +1,7 @@
 import { availableParallelism } from 'node:os'
 import { Worker } from 'bullmq'
 import type { Logger } from 'pino'
-import type { Config } from '../config.js'
+import { queuePrefix, type Config } from '../config.js'
 import { RunStore } from '../storage/run-store.js'
 import { workerConnection } from './connection.js'
 import { CHUNK_QUEUE, RECORD_TTL_FACTOR } from './names.js'
@@ -52,11 +52,11 @@ export function sandboxHeapLimits(chunkSize: number): { maxOldGenerationSizeMb: 
  */
 export function startWorkers(config: Config, logger: Logger): RunWorkers {
   const log = logger.child({ queue: CHUNK_QUEUE })
-  const connection = workerConnection(config.redisUrl)
-  const storeRedis = workerConnection(config.redisUrl)
+  const connection = workerConnection(config)
+  const storeRedis = workerConnection(config)
   const store = new RunStore(storeRedis, storeOptions(config))
   const concurrency = config.workerConcurrency > 0 ? config.workerConcurrency : availableParallelism()
-  const events = createRunEventEmitter(storeRedis, config.redisPrefix)
+  const events = createRunEventEmitter(storeRedis, queuePrefix(config))
   const webhooks = startWebhookWorker(config, logger, storeOptions(config))
   // Schedule firings submit runs over stored histories through a gateway of their own.
   const scheduleGateway = createRunGateway(config)
@@ -64,11 +64,17 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
     submit: submitViaGateway(scheduleGateway),
     getRun: (tenant, runId) => store.getRun(tenant, runId),
   })
-  const sandbox: SandboxContext = { redisUrl: config.redisUrl, ...storeOptions(config), logLevel: config.logLevel }
+  const sandbox: SandboxContext = {
+    redisUrl: config.redisUrl,
+    ...(config.redisClusterNodes ? { redisClusterNodes: [...config.redisClusterNodes] } : {}),
+    queuePrefix: queuePrefix(config),
+    ...storeOptions(config),
+    logLevel: config.logLevel,
+  }
 
   const worker = new Worker(CHUNK_QUEUE, new URL('./processors/chunk-entry.mjs', import.meta.url), {
     connection,
-    prefix: config.redisPrefix,
+    prefix: queuePrefix(config),
     concurrency,
     useWorkerThreads: true,
     workerThreadsOptions: { workerData: sandbox, resourceLimits: sandboxHeapLimits(config.chunkSize) },
@@ -95,7 +101,7 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
       jlog.error({ err, attemptsMade: job.attemptsMade }, 'chunk failed for good: run failed')
     })().catch((e) => jlog.error({ err: e }, 'could not record failed chunk'))
   })
-  log.info({ concurrency, prefix: config.redisPrefix }, 'chunk worker started')
+  log.info({ concurrency, prefix: config.redisPrefix, queuePrefix: queuePrefix(config) }, 'chunk worker started')
 
   return {
     worker,

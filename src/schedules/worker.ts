@@ -1,6 +1,6 @@
 import { Queue, Worker } from 'bullmq'
 import type { Logger } from 'pino'
-import type { Config } from '../config.js'
+import { queuePrefix, type Config } from '../config.js'
 import { workerConnection } from '../queue/connection.js'
 import { ScheduleStore } from '../storage/schedule-store.js'
 import type { RunRecord } from '../storage/types.js'
@@ -22,9 +22,9 @@ export function startScheduleWorker(
   deps: { readonly submit: SubmitScheduled; readonly getRun: (tenant: string, runId: string) => Promise<RunRecord | null> },
 ): ScheduleWorker {
   const log = logger.child({ queue: SCHEDULE_QUEUE })
-  const connection = workerConnection(config.redisUrl)
-  const redis = workerConnection(config.redisUrl)
-  const queue = new Queue(SCHEDULE_QUEUE, { connection: redis, prefix: config.redisPrefix })
+  const connection = workerConnection(config)
+  const redis = workerConnection(config)
+  const queue = new Queue(SCHEDULE_QUEUE, { connection: redis, prefix: queuePrefix(config) })
   queue.on('error', (err) => log.warn({ err }, 'schedule queue error'))
   const processor = createFireProcessor({
     schedules: new ScheduleStore(redis, config.redisPrefix),
@@ -33,7 +33,7 @@ export function startScheduleWorker(
     removeScheduler: (tenant, id) => queue.removeJobScheduler(schedulerId(tenant, id)),
     logger,
   })
-  const worker = new Worker(SCHEDULE_QUEUE, processor, { connection, prefix: config.redisPrefix, concurrency: 2 })
+  const worker = new Worker(SCHEDULE_QUEUE, processor, { connection, prefix: queuePrefix(config), concurrency: 2 })
   worker.on('error', (err) => log.error({ err }, 'schedule worker error'))
   worker.on('failed', (job, err) => log.error({ err, jobId: job?.id }, 'schedule firing failed'))
   return {

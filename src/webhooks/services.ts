@@ -1,6 +1,6 @@
 import { Queue } from 'bullmq'
 import type { RedisClient } from '../storage/redis-client.js'
-import type { Config } from '../config.js'
+import { queuePrefix, type Config } from '../config.js'
 import { RECORD_TTL_FACTOR } from '../queue/names.js'
 import { SCHEDULE_QUEUE, DEFAULT_MIN_INTERVAL_SECONDS } from '../schedules/names.js'
 import type { FireJob } from '../schedules/fire.js'
@@ -38,7 +38,7 @@ export function createErpServices(
   let queue: Queue<FireJob> | null = null
   const scheduleQueue = () => {
     if (queue === null) {
-      queue = new Queue<FireJob>(SCHEDULE_QUEUE, { connection: redis, prefix })
+      queue = new Queue<FireJob>(SCHEDULE_QUEUE, { connection: redis, prefix: queuePrefix(config) })
       queue.on('error', () => {}) // surfaced by the failing call
     }
     return queue

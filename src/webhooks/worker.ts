@@ -1,6 +1,6 @@
 import { Queue, Worker } from 'bullmq'
 import type { Logger } from 'pino'
-import type { Config } from '../config.js'
+import { queuePrefix, type Config } from '../config.js'
 import { workerConnection } from '../queue/connection.js'
 import { DeliveryStore } from '../storage/delivery-store.js'
 import { RunStore } from '../storage/run-store.js'
@@ -29,9 +29,9 @@ export function webhookSettings(config: Config): WebhookSettings {
  */
 export function startWebhookWorker(config: Config, logger: Logger, storeOpts: { resultTtlSeconds: number; recordTtlSeconds: number }): WebhookWorker {
   const log = logger.child({ queue: WEBHOOK_QUEUE })
-  const connection = workerConnection(config.redisUrl)
-  const redis = workerConnection(config.redisUrl)
-  const queue = new Queue<DeliveryJob>(WEBHOOK_QUEUE, { connection: redis, prefix: config.redisPrefix })
+  const connection = workerConnection(config)
+  const redis = workerConnection(config)
+  const queue = new Queue<DeliveryJob>(WEBHOOK_QUEUE, { connection: redis, prefix: queuePrefix(config) })
   queue.on('error', (err) => log.warn({ err }, 'webhook queue error'))
   const processor = createWebhookProcessor({
     runs: new RunStore(redis, { prefix: config.redisPrefix, ...storeOpts }),
@@ -41,7 +41,7 @@ export function startWebhookWorker(config: Config, logger: Logger, storeOpts: { 
     settings: webhookSettings(config),
     logger,
   })
-  const worker = new Worker(WEBHOOK_QUEUE, processor, { connection, prefix: config.redisPrefix, concurrency: 8 })
+  const worker = new Worker(WEBHOOK_QUEUE, processor, { connection, prefix: queuePrefix(config), concurrency: 8 })
   worker.on('error', (err) => log.error({ err }, 'webhook worker error'))
   worker.on('failed', (job, err) => {
     if (job && job.name !== 'delivery') log.error({ err, jobId: job.id }, 'webhook event job failed')

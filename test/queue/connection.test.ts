@@ -14,7 +14,7 @@ describe('redactUrl', () => {
 
 describe('assertRedisReachable', () => {
   it('says what to start when nothing listens', async () => {
-    await expect(assertRedisReachable('redis://:pw@127.0.0.1:1', 1000)).rejects.toThrow(
+    await expect(assertRedisReachable({ redisUrl: 'redis://:pw@127.0.0.1:1' }, 1000)).rejects.toThrow(
       'Redis is not reachable at redis://:***@127.0.0.1:1: start it (redis-server) or set REDIS_URL',
     )
   })

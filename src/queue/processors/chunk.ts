@@ -17,7 +17,11 @@ import { lowerThreadPriority } from '../thread-priority.js'
  */
 export const SandboxContext = z.object({
   redisUrl: z.string(),
+  /** Seed nodes of a Redis Cluster (config.ts); absent for one Redis server. */
+  redisClusterNodes: z.array(z.object({ host: z.string(), port: z.number().int() })).optional(),
   prefix: z.string(),
+  /** BullMQ's prefix (the run events queue): `{prefix}` on a cluster. */
+  queuePrefix: z.string(),
   resultTtlSeconds: z.number().int().positive(),
   recordTtlSeconds: z.number().int().positive(),
   logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
@@ -27,7 +31,7 @@ export type SandboxContext = z.infer<typeof SandboxContext>
 const ctx = SandboxContext.parse(workerData)
 // Fitting yields the cores to request handling and lock renewals (thread-priority.ts).
 lowerThreadPriority()
-const redis = workerConnection(ctx.redisUrl)
+const redis = workerConnection(ctx)
 const logger = createLogger({ level: ctx.logLevel })
 redis.on('error', (err) => logger.warn({ err }, 'redis connection error (sandboxed processor)'))
 const store = new RunStore(redis, {
@@ -36,7 +40,7 @@ const store = new RunStore(redis, {
   recordTtlSeconds: ctx.recordTtlSeconds,
 })
 
-const events = createRunEventEmitter(redis, ctx.prefix)
+const events = createRunEventEmitter(redis, ctx.queuePrefix)
 
 const accuracy = new AccuracyStore(redis, store, { prefix: ctx.prefix })
 

@@ -7,6 +7,12 @@ statsmodels.datasets (macrodata, elnino). Each series is cut to its last
 non-seasonal, then split into train and test: the test part is the last season
 (12 monthly, 4 quarterly) or the last 6 points of non-seasonal series.
 
+A second, earlier origin ("previous", for checking that a selection change is not
+fitted to the last season alone): the season before the last (the 6 points before
+the last 6) is the test part, and every kept point before it the train part; the
+same reference forecasts are made on that train part. The fields of the last-season
+origin are unchanged by it.
+
 Reference forecasts on the train part:
   - ets: automatic ETS selection by AICc with statsmodels' ETSModel
     (Hyndman, Koehler, Ord and Snyder 2008 state-space models). Candidates:
@@ -24,7 +30,14 @@ Reference forecasts on the train part:
   - seasonalNaive: last observed season repeated (naive for m = 1).
 
 Usage (from the repository root):
-    /usr/bin/python3 scripts/accuracy/make_fixture.py [out.json]
+    /usr/bin/python3 scripts/accuracy/make_fixture.py [out.json] [--keep-last]
+
+--keep-last: read the existing out.json and keep its last-season fields (train,
+test, ets, seasonalNaive, ...) as they are, computing only the "previous" origin.
+statsmodels' optimiser does not give bit-identical fits on every machine (a
+regeneration here moved some candidates' AICc and changed the chosen model of a few
+series), so adding the earlier origin this way leaves the published last-season
+reference numbers unchanged. The train and test values are checked to match.
 Needs Rscript (r-base-core) and python3-statsmodels 0.13.5 (Debian).
 """
 import json
@@ -50,6 +63,9 @@ KEEP_NONSEASONAL = 100
 NONSEASONAL_TEST = 6
 SIM_REPETITIONS = 5000
 SEED = 20261201
+PREVIOUS_NOTE = ("series[].previous: the season before the last as test part (the 6 points "
+                 "before the last 6 when non-seasonal), every kept point before it as train part, "
+                 "same reference forecasts")
 
 
 def r_series():
@@ -185,7 +201,7 @@ def auto_ets(train, m, h):
     }
 
 
-def build(entry):
+def build(entry, kept_last=None):
     freq = entry["frequency"]
     m = SEASON[freq]
     values = entry["values"]
@@ -196,7 +212,19 @@ def build(entry):
     train, test = kept[:-test_len], kept[-test_len:]
     calendar = entry["interval"] == freq
     start = shift_label(entry["start"], freq, dropped) if calendar else None
-    ets = auto_ets(train, m, test_len)
+    if kept_last is not None:
+        if kept_last["train"] != train or kept_last["test"] != test:
+            raise RuntimeError(f"{entry['name']}: kept last-season train/test differ from the data")
+    ets = kept_last["ets"] if kept_last is not None else auto_ets(train, m, test_len)
+    prev_train, prev_test = kept[:-2 * test_len], kept[-2 * test_len:-test_len]
+    previous = {
+        "train": prev_train,
+        "test": prev_test,
+        "ets": auto_ets(prev_train, m, test_len),
+        "seasonalNaive": seasonal_naive(prev_train, m, test_len),
+    }
+    if kept_last is not None:
+        return {**{k: v for k, v in kept_last.items() if k != "previous"}, "previous": previous}
     return {
         "name": entry["name"],
         "source": entry["source"],
@@ -210,19 +238,42 @@ def build(entry):
         "test": test,
         "ets": ets,
         "seasonalNaive": seasonal_naive(train, m, test_len),
+        "previous": previous,
     }
 
 
 def main():
-    out = sys.argv[1] if len(sys.argv) > 1 else DEFAULT_OUT
+    args = [a for a in sys.argv[1:] if not a.startswith("--")]
+    keep_last = "--keep-last" in sys.argv[1:]
+    out = args[0] if args else DEFAULT_OUT
+    existing = None
+    if keep_last:
+        with open(out) as f:
+            existing = json.load(f)
     r_version, series = r_series()
     series = series + statsmodels_series()
     built = []
     for entry in series:
-        item = build(entry)
+        kept_last = None
+        if existing is not None:
+            matches = [s for s in existing["series"] if s["name"] == entry["name"]]
+            if len(matches) != 1:
+                raise RuntimeError(f"{entry['name']}: not in {out} (run without --keep-last)")
+            kept_last = matches[0]
+        item = build(entry, kept_last)
         print(f"{item['name']:18s} {item['kept']:24s} {item['ets']['model']:14s} "
-              f"{item['ets']['intervalMethod']}", file=sys.stderr)
+              f"{item['ets']['intervalMethod']:10s} previous {item['previous']['ets']['model']}",
+              file=sys.stderr)
         built.append(item)
+    if existing is not None:
+        fixture = {**existing, "series": built}
+        fixture["settings"] = {**existing["settings"], "previousOrigin": PREVIOUS_NOTE}
+        versions = {"statsmodels": statsmodels.__version__, "numpy": np.__version__,
+                    "scipy": scipy.__version__, "python": sys.version.split()[0], "r": r_version}
+        if versions != existing["versions"]:
+            raise RuntimeError(f"tool versions differ from {out}: {versions}")
+        write(out, fixture, built)
+        return
     fixture = {
         "description": "Hold-out accuracy reference: real public series with statsmodels "
                        "automatic ETS (AICc) and seasonal naive forecasts of the last season.",
@@ -241,9 +292,14 @@ def main():
             "selection": "lowest AICc among ETSModel fits (initialization_method='estimated', maxiter=2000)",
             "simulateRepetitions": SIM_REPETITIONS,
             "seed": SEED,
+            "previousOrigin": PREVIOUS_NOTE,
         },
         "series": built,
     }
+    write(out, fixture, built)
+
+
+def write(out, fixture, built):
     os.makedirs(os.path.dirname(out) or ".", exist_ok=True)
     with open(out, "w") as f:
         json.dump(fixture, f, indent=None, separators=(",", ":"), allow_nan=False)

@@ -11,6 +11,13 @@ import { isValidTenant } from './keys.js'
  *                            fired, skipped, failed (counters), lastError
  *
  * under `${prefix}:t:${tenant}:`. Schedules are configuration: no TTL.
+ *
+ * Redis Cluster: a schedule's hash and the index lie in different slots of a cluster, so
+ * they are never written in one MULTI or read in one pipeline. The hash is the
+ * truth: `create` writes it before indexing it and `remove` deletes it before
+ * unindexing it, so a process dying in between leaves at worst an unlisted
+ * hash (create; nothing fires it yet) or an index entry without a hash
+ * (remove; `list` skips it, it counts toward the per-tenant maximum).
  */
 export type ScheduleSelection = { readonly skus: readonly string[] } | { readonly tags: readonly string[] } | { readonly all: true }
 
@@ -58,11 +65,8 @@ export class ScheduleStore {
   async create(tenant: string, def: Omit<ScheduleDefinition, 'id' | 'createdAt'>, now: Date): Promise<ScheduleDefinition | null> {
     if ((await this.redis.zcard(`${this.base(tenant)}:index`)) >= MAX_SCHEDULES_PER_TENANT) return null
     const full: ScheduleDefinition = { id: randomUUID(), ...def, createdAt: now.toISOString() }
-    await this.redis
-      .multi()
-      .hset(this.key(tenant, full.id), 'def', JSON.stringify(full), 'fired', 0, 'skipped', 0, 'failed', 0)
-      .zadd(`${this.base(tenant)}:index`, now.getTime(), full.id)
-      .exec()
+    await this.redis.hset(this.key(tenant, full.id), 'def', JSON.stringify(full), 'fired', 0, 'skipped', 0, 'failed', 0)
+    await this.redis.zadd(`${this.base(tenant)}:index`, now.getTime(), full.id)
     return full
   }
 
@@ -77,18 +81,16 @@ export class ScheduleStore {
     const ids = await this.redis.zrange(`${this.base(tenant)}:index`, 0, -1)
     const from = afterId === undefined ? 0 : ids.indexOf(afterId) + 1
     const page = ids.slice(from, from + limit)
-    const pipe = this.redis.pipeline()
-    for (const id of page) pipe.hgetall(this.key(tenant, id))
-    const rows = (await pipe.exec()) ?? []
-    const items = rows.map(([, h]) => decode(h as Record<string, string>)).filter((s): s is Schedule => s !== null)
+    // One HGETALL per schedule, all in flight at once (their keys lie on different slots of a cluster).
+    const rows = await Promise.all(page.map((id) => this.redis.hgetall(this.key(tenant, id))))
+    const items = rows.map((h) => decode(h)).filter((s): s is Schedule => s !== null)
     return { items, nextCursor: from + limit < ids.length ? (page[page.length - 1] ?? null) : null }
   }
 
   async remove(tenant: string, id: string): Promise<boolean> {
     if (!isValidTenant(tenant) || !SCHEDULE_ID.test(id)) return false
-    const [[, n]] = ((await this.redis.multi().del(this.key(tenant, id)).zrem(`${this.base(tenant)}:index`, id).exec()) ?? [[null, 0]]) as [
-      [unknown, number],
-    ]
+    const n = await this.redis.del(this.key(tenant, id))
+    await this.redis.zrem(`${this.base(tenant)}:index`, id)
     return n === 1
   }
 

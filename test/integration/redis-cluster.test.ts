@@ -1,0 +1,113 @@
+import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { startApiProcess, stopProcess, until, type ApiProcess } from '../helpers/processes.js'
+import { PrivateRedisCluster } from '../helpers/redis-cluster.js'
+import { uniquePrefix } from '../helpers/redis.js'
+import { syntheticSeries } from '../queue/fixtures.js'
+import { startWorkerProcess, stopWorkerProcess, type WorkerProcess } from '../queue/worker-process.js'
+
+/**
+ * The service on a Redis Cluster: a private 3-primary cluster built from the
+ * machine's redis-server, the API process (src/server.ts, RUN_WORKER=false)
+ * and two worker processes (src/worker-main.ts, as two machines would run
+ * them), all configured with REDIS_CLUSTER_NODES only. Every call that
+ * touches keys of two slots at once would fail here with CROSSSLOT.
+ */
+
+const prefix = uniquePrefix('redis-cluster')
+const KEY = 'garden-cluster-key-0123456789'
+let cluster: PrivateRedisCluster | undefined
+let api: ApiProcess | undefined
+const workers: WorkerProcess[] = []
+
+beforeAll(async () => {
+  cluster = await PrivateRedisCluster.start(3)
+  const env = { REDIS_CLUSTER_NODES: cluster.nodesEnv, REDIS_PREFIX: prefix, CHUNK_SIZE: '25', WORKER_CONCURRENCY: '1' }
+  workers.push(startWorkerProcess(env), startWorkerProcess(env))
+  api = await startApiProcess({ ...env, API_KEYS: `garden:${KEY}` })
+  await Promise.all(workers.map((w) => w.waitForLog('chunk worker started')))
+}, 60_000)
+
+afterAll(async () => {
+  await Promise.allSettled([...workers.map((w) => stopWorkerProcess(w, 10_000)), ...(api ? [stopProcess(api, 10_000)] : [])])
+  await cluster?.destroy()
+}, 30_000)
+
+/** Error answers (4xx, 5xx) seen anywhere in the test that were not expected. */
+const unexpected: string[] = []
+
+const call = async (path: string, init: RequestInit & { expect?: number } = {}) => {
+  const res = await fetch(`${api!.baseUrl}${path}`, {
+    ...init,
+    headers: { 'content-type': 'application/json', authorization: `Bearer ${KEY}`, ...(init.headers ?? {}) },
+    signal: AbortSignal.timeout(15_000),
+  })
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any -- response bodies are read field by field
+  const body = res.status === 204 ? null : ((await res.json()) as any)
+  if (res.status >= 400 && res.status !== init.expect) unexpected.push(`${path}: ${res.status} ${JSON.stringify(body)}`)
+  return { status: res.status, body }
+}
+
+describe('Redis Cluster (3 primaries)', { timeout: 60_000 }, () => {
+  it('a run of 300 SKUs is fitted by two worker processes; every SKU has exactly one result', async () => {
+    const series = syntheticSeries(300, 36, 'CLUSTER')
+    const submitted = await call('/v1/runs', {
+      method: 'POST',
+      headers: { 'idempotency-key': 'cluster-run-1' },
+      body: JSON.stringify({ horizon: 6, frequency: 'month', series }),
+    })
+    expect(submitted.status).toBe(202)
+    const runId: string = submitted.body.id
+
+    const ended = await until(
+      async () => {
+        const r = await call(`/v1/runs/${runId}`)
+        return r.status === 200 && r.body.status !== 'queued' && r.body.status !== 'running' ? r.body : undefined
+      },
+      45_000,
+      'the run to finish',
+    )
+    expect([ended.status, ended.error ?? null]).toEqual(['succeeded', null])
+    expect(ended.progress).toEqual({ total: 300, done: 300, failed: 0 })
+
+    // Every page, by cursor: each SKU exactly once.
+    const seen: string[] = []
+    let cursor: string | null = null
+    let pages = 0
+    do {
+      const page: { status: number; body: { items: { sku: string }[]; nextCursor: string | null } } = await call(
+        `/v1/runs/${runId}/results?limit=70${cursor ? `&cursor=${encodeURIComponent(cursor)}` : ''}`,
+      )
+      expect(page.status).toBe(200)
+      seen.push(...page.body.items.map((i) => i.sku))
+      cursor = page.body.nextCursor
+      pages++
+    } while (cursor !== null && pages < 20)
+    expect(pages).toBe(5)
+    expect(seen).toEqual(series.map((s) => s.sku).sort())
+
+    const latest = await call(`/v1/skus/${series[42]!.sku}/forecast`)
+    expect(latest.status).toBe(200)
+    expect(latest.body).toMatchObject({ sku: series[42]!.sku, runId })
+    expect(latest.body.forecast).toHaveLength(6)
+
+    // The same Idempotency-Key replays the first answer instead of a second run.
+    const again = await call('/v1/runs', {
+      method: 'POST',
+      headers: { 'idempotency-key': 'cluster-run-1' },
+      body: JSON.stringify({ horizon: 6, frequency: 'month', series }),
+    })
+    expect(again.body.id).toBe(runId)
+
+    // 12 chunks of 25, each committed once across the two worker processes.
+    const committed = workers.flatMap((w) => w.chunksOf(runId)).sort((a, b) => a - b)
+    expect(committed).toEqual(Array.from({ length: 12 }, (_, i) => i))
+
+    // The queues live under the braced prefix (one hash tag); nothing of BullMQ under the plain one.
+    const queueKeys = (await cluster!.keysPerNode(`{${prefix}}:*`)).flat()
+    expect(queueKeys.some((k) => k.startsWith(`{${prefix}}:run-chunks:`))).toBe(true)
+    const plain = (await cluster!.keysPerNode(`${prefix}:*`)).flat()
+    expect(plain.filter((k) => /:(run-chunks|webhooks|schedules):/.test(k) && !k.includes(':t:'))).toEqual([])
+    expect(plain).toContain(`${prefix}:t:garden:run:{${runId}}`)
+    expect(unexpected).toEqual([])
+  })
+})

@@ -15,8 +15,6 @@ export interface ChunkProcessorDeps {
   readonly forecast: (input: SeriesInput) => ForecastResult
   readonly logger: Logger
   readonly now?: () => Date
-  /** Keeps the chunk's forecasts for accuracy scoring; must be idempotent. */
-  readonly rememberForecasts?: (tenant: string, runId: string, createdAtMs: number, items: readonly ResultItem[]) => Promise<unknown>
   /** Called when this chunk finished its run (webhooks); must be idempotent per run. */
   readonly onRunEnded?: (tenant: string, runId: string) => Promise<void>
 }
@@ -64,7 +62,7 @@ function withReplenishment(item: ResultItem, result: ForecastResult, settings: R
  * The chunk job processor: reads the chunk's series, forecasts each, and
  * commits items and counts in one atomic step (idempotent per chunk). Chunks of
  * cancelled or failed runs are skipped. Steps after the commit (latest-forecast
- * pointers, run-ended event, deleting the input) are idempotent and the input
+ * records, run-ended event, deleting the input) are idempotent and the input
  * goes last, so a retry after a crash anywhere recomputes at most one chunk,
  * never double-counts, and still completes those steps (also when the crashed
  * chunk was the run's last: the commit then answers 'succeeded').
@@ -110,9 +108,7 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     if (outcome === 'committed' || outcome === 'finished') await store.stats.recordFits(fitSeconds, tally.failed)
     // 'succeeded': the run finished, so every chunk (this one too) was committed before.
     if (outcome === 'committed' || outcome === 'finished' || outcome === 'duplicate' || outcome === 'succeeded') {
-      const ok = items.filter((i) => !('error' in i)).map((i) => i.sku)
-      await store.updateLatest(tenant, runId, run.createdAtMs, now(), ok)
-      await deps.rememberForecasts?.(tenant, runId, run.createdAtMs, items)
+      await store.updateLatest(tenant, runId, run.createdAtMs, now(), items)
     }
     // Before the input is deleted, so a failed emit retries the chunk (the commit is then a no-op).
     if (outcome === 'finished' || outcome === 'succeeded') await deps.onRunEnded?.(tenant, runId)

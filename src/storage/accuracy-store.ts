@@ -2,15 +2,15 @@ import type { RedisClient } from './redis-client.js'
 import { parsePeriod, summariseAccuracy, type AccuracySummary, type Frequency } from '../engine/index.js'
 import { decodeCursor, encodeCursor } from './codec.js'
 import { isValidTenant } from './keys.js'
+import type { ForecastPoints } from './latest-record.js'
 import type { RunStore } from './run-store.js'
-import { ForecastSnapshots, type Snapshot } from './forecast-snapshots.js'
 import { RunInputError } from './types.js'
 
 /**
  * Realised accuracy per SKU: each forecast period, once its actual arrives,
- * scored against the SKU's latest successful forecast at that time.
+ * scored against the SKU's latest successful forecast at that time (the run
+ * store's latest record, which keeps the point forecast without expiry).
  *
- *   acc:fc                hash  each SKU's latest successful forecast (forecast-snapshots.ts)
  *   acc:p:<b64url(sku)>   hash  period -> `${runId}|${forecast}|${actual}` (one record per period)
  *   acc:summary           hash  sku -> JSON AccuracySummary + updatedAt
  *   acc:exceptions        zset  SKUs whose |tracking signal| exceeds the limit, score 0 (lex order)
@@ -79,16 +79,12 @@ export interface RecordOutcome {
 }
 
 export class AccuracyStore {
-  /** Each SKU's latest successful forecast, as scoring reads it. */
-  readonly forecasts: ForecastSnapshots
-
   constructor(
     private readonly redis: RedisClient,
-    private readonly runs: Pick<RunStore, 'latest'>,
+    private readonly runs: Pick<RunStore, 'latestPoints'>,
     private readonly opts: { readonly prefix: string; readonly limit?: number; readonly now?: () => Date },
   ) {
     if (!(COMMAND in redis)) redis.defineCommand(COMMAND, { numberOfKeys: 1, lua: RECORD })
-    this.forecasts = new ForecastSnapshots(redis, runs, opts.prefix)
   }
 
   private base(tenant: string): string {
@@ -112,7 +108,7 @@ export class AccuracyStore {
     frequency: Frequency,
     periodValues: readonly PeriodValue[],
   ): Promise<RecordOutcome> {
-    const out = await this.score(tenant, { sku, frequency, periodValues }, await this.forecasts.latest(tenant, sku))
+    const out = await this.score(tenant, { sku, frequency, periodValues }, (await this.runs.latestPoints(tenant, [sku]))[0] ?? null)
     return { ...out, summary: out.summary === undefined ? await this.get(tenant, sku) : out.summary }
   }
 
@@ -125,7 +121,7 @@ export class AccuracyStore {
     entries: readonly ActualsEntry[],
     parallel = 16,
   ): Promise<{ readonly scored: number; readonly added: number; readonly corrected: number }> {
-    const latest = await this.forecasts.latestMany(
+    const latest = await this.runs.latestPoints(
       tenant,
       entries.map((e) => e.sku),
     )
@@ -146,7 +142,7 @@ export class AccuracyStore {
   private async score(
     tenant: string,
     entry: ActualsEntry,
-    latest: Snapshot | null,
+    latest: ForecastPoints | null,
   ): Promise<Omit<RecordOutcome, 'summary'> & { summary?: SkuAccuracy | null }> {
     if (latest === null) return { added: 0, corrected: 0, reason: 'no-forecast' }
     const forecast = new Map<string, number>()

@@ -7,8 +7,9 @@
  *   run:{R}:in:<i>     string chunk i's input series (JSON), deleted once the chunk is done
  *   run:{R}:skus       zset   every SKU with a result, all score 0 (ordered by ZRANGEBYLEX)
  *   run:{R}:items      hash   sku -> compact JSON result item (without the sku)
- *   latest             hash   sku -> `${createdAtMs}|${runId}|${producedAt}` of the newest run
- *                             with a successful forecast for that SKU
+ *   latest             hash   sku -> `${createdAtMs}|${runId}|${producedAt}|${points}` of the
+ *                             newest run with a successful forecast for that SKU, its point
+ *                             forecast compact (latest-record.ts); no TTL, one field per SKU
  *
  * Redis Cluster: the run id sits in a hash tag (`{R}`), so every key of one run
  * hashes to one slot and the Lua scripts that touch several of them are legal.

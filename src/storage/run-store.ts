@@ -10,6 +10,8 @@ import {
 } from './codec.js'
 import { loadItem, storeItem } from './item-codec.js'
 import { latestKey, runKeys, isValidRunId, isValidTenant } from './keys.js'
+import { decodeLatest, decodePoints, recordTail, type ForecastPoints, type LatestRecord } from './latest-record.js'
+import { legacySnapshotsKey, takeLegacySnapshots } from './legacy-snapshots.js'
 import { defineRunScripts, type RunScripts } from './scripts.js'
 import { RunStats } from './stats-store.js'
 import {
@@ -24,7 +26,7 @@ import {
 
 export interface RunStoreOptions {
   readonly prefix: string
-  /** TTL of results, chunk inputs and the latest-forecast index. */
+  /** TTL of results and chunk inputs (the latest-forecast index does not expire). */
   readonly resultTtlSeconds: number
   /** TTL of the run record (status, progress, summary); at least resultTtlSeconds. */
   readonly recordTtlSeconds: number
@@ -168,16 +170,25 @@ export class RunStore {
     return this.getRun(tenant, runId)
   }
 
-  /** Points the SKUs' latest forecast at this run unless a newer run already holds them. */
-  async updateLatest(tenant: string, runId: string, createdAtMs: number, producedAt: Date, skus: readonly string[]): Promise<number> {
+  /**
+   * Makes this run the latest forecast of the items' SKUs (error items are
+   * skipped) unless a newer run already holds them; each record keeps the point
+   * forecast for accuracy scoring. Returns how many records changed.
+   */
+  async updateLatest(tenant: string, runId: string, createdAtMs: number, producedAt: Date, items: readonly ResultItem[]): Promise<number> {
+    const produced = producedAt.toISOString()
+    const args: (string | number)[] = [createdAtMs, runId]
+    const skus: string[] = []
+    for (const item of items) {
+      if ('error' in item) continue
+      args.push(item.sku, recordTail(produced, item.forecast))
+      skus.push(item.sku)
+    }
     if (skus.length === 0) return 0
-    return this.scripts.updateLatest(latestKey(this.opts.prefix, tenant), [
-      createdAtMs,
-      runId,
-      producedAt.toISOString(),
-      this.opts.resultTtlSeconds,
-      ...skus,
-    ])
+    const changed = await this.scripts.updateLatest(latestKey(this.opts.prefix, tenant), args)
+    // This run is the newest for every SKU, so an older version's forecast copies of them are superseded.
+    if (changed === skus.length) await this.redis.hdel(legacySnapshotsKey(this.opts.prefix, tenant), ...skus)
+    return changed
   }
 
   /**
@@ -215,15 +226,55 @@ export class RunStore {
     return { items, nextCursor: skus.length > limit && last !== undefined ? encodeCursor(last) : null }
   }
 
-  /** The newest successful forecast of a SKU still within retention, or null. */
+  /**
+   * The newest successful forecast of a SKU, or null when there is none or the
+   * results of the run that made it have expired (retention).
+   */
   async latest(tenant: string, sku: string): Promise<LatestForecast | null> {
     if (!isValidTenant(tenant)) return null
-    const pointer = await this.redis.hget(latestKey(this.opts.prefix, tenant), sku)
-    if (pointer === null) return null
-    const [, runId, producedAt] = pointer.split('|')
-    if (!runId || !producedAt || !isValidRunId(runId)) return null
-    const stored = await this.redis.hgetBuffer(this.keys(tenant, runId).items, sku)
-    return stored === null ? null : { runId, producedAt, item: loadItem(sku, stored) }
+    const value = await this.redis.hget(latestKey(this.opts.prefix, tenant), sku)
+    const record = value === null ? null : decodeLatest(value)
+    if (record === null) return null
+    const stored = await this.redis.hgetBuffer(this.keys(tenant, record.runId).items, sku)
+    return stored === null ? null : { runId: record.runId, producedAt: record.producedAt, item: loadItem(sku, stored) }
+  }
+
+  /**
+   * What accuracy scoring compares actuals with, per SKU in the order given:
+   * the run and point forecast of the SKU's latest record, also after the
+   * run's results have expired. One HMGET when every record carries its
+   * points. For a record written before records carried them (or none), the
+   * forecast copy an older version kept is moved into the record
+   * (legacy-snapshots.ts), else the run's stored result is read while kept.
+   */
+  async latestPoints(tenant: string, skus: readonly string[]): Promise<(ForecastPoints | null)[]> {
+    if (skus.length === 0 || !isValidTenant(tenant)) return skus.map(() => null)
+    const key = latestKey(this.opts.prefix, tenant)
+    const records = (await this.redis.hmget(key, ...skus)).map((v) => (v === null ? null : decodeLatest(v)))
+    const out = records.map((r) => (r === null ? null : pointsOf(r)))
+    const pending = skus.flatMap((_, i) => (out[i] === null ? [i] : []))
+    if (pending.length === 0) return out
+    const entries = pending.map((i) => ({ sku: skus[i]!, record: records[i] ?? null }))
+    const moved = await takeLegacySnapshots(this.redis, this.opts.prefix, tenant, entries, (args) => this.scripts.updateLatest(key, args))
+    pending.forEach((i, j) => (out[i] = moved[j] ?? null))
+    for (const i of pending) {
+      const record = records[i]
+      if (out[i] !== null || !record) continue
+      const stored = await this.redis.hgetBuffer(this.keys(tenant, record.runId).items, skus[i]!)
+      const item = stored === null ? null : loadItem(skus[i]!, stored)
+      if (item && !('error' in item)) out[i] = { runId: record.runId, points: new Map(item.forecast.map((p) => [p.period, p.value])) }
+    }
+    return out
+  }
+}
+
+/** The record's points, or null when it has none (older layout) or they cannot be read. */
+function pointsOf(record: LatestRecord): ForecastPoints | null {
+  if (record.points === null) return null
+  try {
+    return { runId: record.runId, points: decodePoints(record.points) }
+  } catch {
+    return null
   }
 }
 

@@ -88,31 +88,37 @@ return {ARGV[1], st}
 `
 
 /**
- * updateLatest. KEYS: latest. ARGV: createdAtMs, runId, producedAt, ttl, then skus.
- * Points each SKU at this run unless a run created later already holds it
- * (a run finishing late never overwrites a newer one). Ties go to the larger run id.
- * Returns how many pointers changed.
+ * updateLatest. KEYS: latest. ARGV: createdAtMs, runId, then pairs (sku, tail).
+ * Sets each SKU's record to `createdAtMs|runId|tail` (latest-record.ts) unless a
+ * run created later already holds it (a run finishing late never overwrites a
+ * newer one). Ties go to the larger run id. Reads the ordering fields of records
+ * in either layout; a malformed record is replaced. The key never expires:
+ * PERSIST drops the TTL an older version set (the index then expired with
+ * result retention).
+ * Returns how many records changed.
  */
 const UPDATE_LATEST = `
 local created = tonumber(ARGV[1])
-local value = ARGV[1] .. '|' .. ARGV[2] .. '|' .. ARGV[3]
+local prefix = ARGV[1] .. '|' .. ARGV[2] .. '|'
 local changed = 0
-for i = 5, #ARGV do
+for i = 3, #ARGV, 2 do
   local cur = redis.call('HGET', KEYS[1], ARGV[i])
   local take = true
   if cur then
-    local sep = string.find(cur, '|', 1, true)
-    local curCreated = tonumber(string.sub(cur, 1, sep - 1))
-    local rest = string.sub(cur, sep + 1)
-    local curRun = string.sub(rest, 1, (string.find(rest, '|', 1, true) or 0) - 1)
-    take = curCreated < created or (curCreated == created and curRun <= ARGV[2])
+    local a = string.find(cur, '|', 1, true)
+    local b = a and string.find(cur, '|', a + 1, true)
+    local curCreated = b and tonumber(string.sub(cur, 1, a - 1))
+    if curCreated then
+      local curRun = string.sub(cur, a + 1, b - 1)
+      take = curCreated < created or (curCreated == created and curRun <= ARGV[2])
+    end
   end
   if take then
-    redis.call('HSET', KEYS[1], ARGV[i], value)
+    redis.call('HSET', KEYS[1], ARGV[i], prefix .. ARGV[i + 1])
     changed = changed + 1
   end
 end
-redis.call('EXPIRE', KEYS[1], tonumber(ARGV[4]))
+redis.call('PERSIST', KEYS[1])
 return changed
 `
 

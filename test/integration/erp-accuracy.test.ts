@@ -3,6 +3,7 @@ import type { FastifyInstance } from 'fastify'
 import type { Redis } from 'ioredis'
 import { AccuracyTrackingHistoryStore } from '../../src/storage/accuracy-hook.js'
 import { latestKey, runKeys } from '../../src/storage/keys.js'
+import { RunStore } from '../../src/storage/run-store.js'
 import type { RunMachinery } from '../../src/queue/gateway.js'
 import { startService, type ErpMachinery, type TestService } from '../helpers/service.js'
 import { waitFor } from '../queue/fixtures.js'
@@ -31,6 +32,8 @@ beforeAll(async () => {
 })
 
 afterAll(() => service?.close())
+
+const runs = () => new RunStore(redis, { prefix, resultTtlSeconds: 3600, recordTtlSeconds: 7200 })
 
 const put = (sku: string, values: (number | null)[]) =>
   app.inject({ method: 'PUT', url: `/v1/skus/${sku}/history`, payload: { frequency: 'month', start: '2024-01', values } })
@@ -65,8 +68,10 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
   // (actual - forecast) +30, +25, +40, +35, +20: sum 150, MAE 30, bias +30, TS = 150 / 30 = 5 > 4.
   // MAPE = 100 * (0.230769 + 0.2 + 0.285714 + 0.259259 + 0.166667) / 5 = 22.848 %.
   it('scores new actuals against the latest forecast and flags a biased SKU', async () => {
-    // The run's results expire long before monthly actuals arrive: scoring uses the forecast kept for it.
-    await redis.unlink(runKeys(prefix, 'default', runId).items, latestKey(prefix, 'default'))
+    // The run's results expire long before monthly actuals arrive: the forecast is no longer
+    // served, but scoring uses the points the SKU's latest record keeps without expiry.
+    await redis.unlink(runKeys(prefix, 'default', runId).items)
+    expect(await redis.ttl(latestKey(prefix, 'default'))).toBe(-1)
     expect((await app.inject({ url: '/v1/skus/HOSE-BIASED/forecast' })).statusCode).toBe(404)
     expect((await put('HOSE-BIASED', [...flat(100), 130, 125, 140, 135, 120])).statusCode).toBe(200)
     const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
@@ -126,20 +131,22 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
       forecast: [{ period: '2027-01', value, lower: {}, upper: {} }],
       intervals: { method: 'none', levels: [], clamped: false },
     }) as const
-    const snapshots = erp.services.accuracy.forecasts
-    expect(await snapshots.remember('default', 'run-new', 2000, [item(7)])).toBe(1)
-    expect(await snapshots.remember('default', 'run-old', 1000, [item(3)])).toBe(0)
-    expect(await snapshots.remember('default', 'run-err', 3000, [{ sku: 'RAKE', error: { code: 'series-too-short', message: 'x' } }])).toBe(0)
-    const latest = await snapshots.latest('default', 'RAKE')
+    const at = new Date(3000)
+    expect(await runs().updateLatest('default', 'run-new', 2000, at, [item(7)])).toBe(1)
+    expect(await runs().updateLatest('default', 'run-old', 1000, at, [item(3)])).toBe(0)
+    expect(await runs().updateLatest('default', 'run-err', 3000, at, [{ sku: 'RAKE', error: { code: 'series-too-short', message: 'x' } }])).toBe(0)
+    const [latest] = await runs().latestPoints('default', ['RAKE'])
     expect(latest?.runId).toBe('run-new')
     expect([...latest!.points]).toEqual([['2027-01', 7]])
+    // Scored against run-new's forecast: 7 vs 10.
+    const out = await erp.services.accuracy.recordActuals('default', 'RAKE', 'month', [{ period: '2027-01', value: 10 }])
+    expect(out).toMatchObject({ added: 1, corrected: 0, summary: { count: 1, bias: 3 } })
   })
 
   it('pages the exception list by SKU with a cursor', async () => {
-    const snapshots = erp.services.accuracy.forecasts
     const periods = ['2027-01', '2027-02', '2027-03', '2027-04', '2027-05']
     for (const sku of ['PAGE-C', 'PAGE-A', 'PAGE-B']) {
-      await snapshots.remember('paging', `run-${sku}`, 1, [
+      await runs().updateLatest('paging', `run-${sku}`, 1, new Date(2), [
         {
           sku, model: 'naive', family: 'level', params: {}, metrics: null, leaderboard: [], warnings: [],
           selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },

@@ -2,7 +2,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Redis } from 'ioredis'
 import { RunStore } from '../../src/storage/run-store.js'
 import { tallyItems } from '../../src/storage/codec.js'
-import { runKeys } from '../../src/storage/keys.js'
+import { latestKey, runKeys } from '../../src/storage/keys.js'
+import { legacySnapshotsKey } from '../../src/storage/legacy-snapshots.js'
+import { storeItem } from '../../src/storage/item-codec.js'
 import { RunInputError, type ResultItem } from '../../src/storage/types.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runRequest, syntheticSeries } from '../queue/fixtures.js'
@@ -14,6 +16,16 @@ let store: RunStore
 const t0 = new Date('2026-03-01T10:00:00.000Z')
 
 const errorItems = (skus: string[]): ResultItem[] => skus.map((sku) => ({ sku, error: { code: 'empty-series', message: 'x' } }))
+
+/** A successful item forecasting `values` for the months from 2027-01. */
+const okItem = (sku: string, values: number[] = [7]): ResultItem => ({
+  sku, model: 'naive', family: 'level', params: {}, metrics: null, leaderboard: [], warnings: [],
+  selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
+  forecast: values.map((value, i) => ({ period: `2027-0${i + 1}`, value, lower: {}, upper: {} })),
+  intervals: { method: 'none', levels: [], clamped: false },
+})
+const okItems = (skus: string[], values?: number[]) => skus.map((sku) => okItem(sku, values))
+const pointsOf = (p: { runId: string; points: ReadonlyMap<string, number> } | null) => p && [p.runId, [...p.points]]
 
 beforeAll(async () => {
   url = await redisUrlForTests()
@@ -79,17 +91,86 @@ describe('RunStore', () => {
     expect(await store.startChunk('acme', 'no-such-run', t0)).toBeNull()
   })
 
-  it('keeps the latest forecast pointer on the run created last', async () => {
+  it('keeps the latest forecast record on the run created last', async () => {
     const older = t0.getTime()
     const newer = older + 5000
-    expect(await store.updateLatest('acme', 'run-new', newer, t0, ['A', 'B'])).toBe(2)
+    expect(await store.updateLatest('acme', 'run-new', newer, t0, okItems(['A', 'B'], [7]))).toBe(2)
     // The older run finishes late: it must not take the SKUs over.
-    expect(await store.updateLatest('acme', 'run-old', older, t0, ['A', 'B', 'C'])).toBe(1)
-    const pointers = await redis.hgetall(`${prefix}:t:acme:latest`)
-    expect(pointers.A).toMatch(/\|run-new\|/)
-    expect(pointers.C).toMatch(/\|run-old\|/)
-    // Re-applying the same run is harmless (idempotent retry).
-    expect(await store.updateLatest('acme', 'run-new', newer, t0, ['A'])).toBe(1)
+    expect(await store.updateLatest('acme', 'run-old', older, t0, okItems(['A', 'B', 'C'], [3]))).toBe(1)
+    const records = await redis.hgetall(`${prefix}:t:acme:latest`)
+    expect(records.A).toMatch(/\|run-new\|/)
+    expect(records.C).toMatch(/\|run-old\|/)
+    // Re-applying the same run is harmless (idempotent retry); a tie in creation time goes to the larger run id.
+    expect(await store.updateLatest('acme', 'run-new', newer, t0, okItems(['A']))).toBe(1)
+    expect(await store.updateLatest('acme', 'run-a', newer, t0, okItems(['A']))).toBe(0)
+    expect(await store.updateLatest('acme', 'run-z', newer, t0, okItems(['A'], [9]))).toBe(1)
+    // Error items never become a SKU's latest forecast.
+    expect(await store.updateLatest('acme', 'run-err', newer + 1, t0, errorItems(['A']))).toBe(0)
+    expect((await store.latestPoints('acme', ['A', 'B', 'C', 'D'])).map(pointsOf)).toEqual([
+      ['run-z', [['2027-01', 9]]],
+      ['run-new', [['2027-01', 7]]],
+      ['run-old', [['2027-01', 3]]],
+      null,
+    ])
+  })
+
+  it('keeps the records without expiry: points outlive the results, the forecast itself does not', async () => {
+    const key = latestKey(prefix, 'keep')
+    // An earlier version set a retention TTL on the index; the next write removes it.
+    await redis.hset(key, 'OLD', `${t0.getTime()}|run-0|${t0.toISOString()}`)
+    await redis.expire(key, 600)
+    await store.createRun('keep', 'keep-1', runRequest(syntheticSeries(1)), 1, t0)
+    const items = okItems(['SKU-00000'], [1.23456789, 2])
+    await store.commitChunk('keep', 'keep-1', 0, items, tallyItems(items, 'mase'), t0)
+    expect(await store.updateLatest('keep', 'keep-1', t0.getTime(), t0, items)).toBe(1)
+    expect(await redis.ttl(key)).toBe(-1)
+    expect((await store.latest('keep', 'SKU-00000'))?.producedAt).toBe(t0.toISOString())
+    // The run's results expire with retention: the forecast is gone (404), scoring still has the points.
+    await redis.unlink(runKeys(prefix, 'keep', 'keep-1').items)
+    expect(await store.latest('keep', 'SKU-00000')).toBeNull()
+    expect((await store.latestPoints('keep', ['SKU-00000'])).map(pointsOf)).toEqual([
+      ['keep-1', [['2027-01', 1.234568], ['2027-02', 2]]],
+    ])
+  })
+
+  it('reads records of the earlier layout: the forecast and, while kept, the points from the run', async () => {
+    const key = latestKey(prefix, 'old')
+    await store.createRun('old', 'old-1', runRequest(syntheticSeries(1)), 1, t0)
+    const items = okItems(['SKU-00000'], [5])
+    await store.commitChunk('old', 'old-1', 0, items, tallyItems(items, 'mase'), t0)
+    await redis.hset(key, 'SKU-00000', `${t0.getTime()}|old-1|2026-03-01T10:00:02.000Z`)
+    expect(await store.latest('old', 'SKU-00000')).toMatchObject({ runId: 'old-1', producedAt: '2026-03-01T10:00:02.000Z' })
+    expect((await store.latestPoints('old', ['SKU-00000'])).map(pointsOf)).toEqual([['old-1', [['2027-01', 5]]]])
+    await redis.unlink(runKeys(prefix, 'old', 'old-1').items)
+    expect(await store.latestPoints('old', ['SKU-00000'])).toEqual([null])
+  })
+
+  it("moves an earlier version's forecast copy (acc:fc) into the record when scoring reads it", async () => {
+    const key = latestKey(prefix, 'legacy')
+    const legacy = legacySnapshotsKey(prefix, 'legacy')
+    const at = t0.getTime()
+    const copy = (runId: string, created: number, value: number) => `${created}|${runId}|${JSON.stringify([['2027-01', '2027-02'], [value, value + 1]])}`
+    // A: pointer of the same run (earlier layout) and its copy; B: copy only (the pointer expired);
+    // C: pointer of a newer run than its copy (the copy is stale); D: copy of an older run than D's new record.
+    await redis.hset(key, 'A', `${at}|run-1|2026-03-01T10:00:09.000Z`, 'C', `${at + 10}|run-9|2026-03-01T10:00:09.000Z`)
+    await store.updateLatest('legacy', 'run-5', at + 5, t0, okItems(['D'], [50]))
+    await redis.hset(legacy, 'A', copy('run-1', at, 1.123456789), 'B', copy('run-2', at, 20), 'C', copy('run-3', at, 30), 'D', copy('run-4', at, 40))
+    const got = await store.latestPoints('legacy', ['A', 'B', 'C', 'D'])
+    expect(got.map(pointsOf)).toEqual([
+      ['run-1', [['2027-01', 1.123457], ['2027-02', 2.123457]]],
+      ['run-2', [['2027-01', 20], ['2027-02', 21]]],
+      null,
+      ['run-5', [['2027-01', 50]]],
+    ])
+    // Moved into the records (A keeps its producedAt) and deleted, except D's, which nothing read.
+    expect(await redis.hkeys(legacy)).toEqual(['D'])
+    expect(await redis.hget(key, 'A')).toMatch(/^\d+\|run-1\|2026-03-01T10:00:09.000Z\|m:2027-01:1.123457,2.123457$/)
+    expect(await redis.hget(key, 'B')).toMatch(/\|run-2\|2026-03-01T10:00:00.000Z\|m:2027-01:20,21$/)
+    expect(await redis.hget(key, 'C')).toMatch(/\|run-9\|/)
+    expect((await store.latestPoints('legacy', ['A', 'B'])).map(pointsOf)).toEqual(got.slice(0, 2).map(pointsOf))
+    // A run that takes a chunk's SKUs deletes their copies.
+    expect(await store.updateLatest('legacy', 'run-6', at + 6, t0, okItems(['D']))).toBe(1)
+    expect(await redis.exists(legacy)).toBe(0)
   })
 
   it('answers null for unknown runs and malformed ids', async () => {

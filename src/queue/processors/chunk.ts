@@ -3,7 +3,6 @@ import { z } from 'zod'
 import { forecastSeries } from '../../engine/index.js'
 import { createLogger } from '../../logger.js'
 import { RunStore } from '../../storage/run-store.js'
-import { AccuracyStore } from '../../storage/accuracy-store.js'
 import { workerConnection } from '../connection.js'
 import { createChunkProcessor } from '../processor.js'
 import { createRunEventEmitter } from '../../webhooks/emitter.js'
@@ -42,12 +41,9 @@ const store = new RunStore(redis, {
 
 const events = createRunEventEmitter(redis, ctx.queuePrefix)
 
-const accuracy = new AccuracyStore(redis, store, { prefix: ctx.prefix })
-
 export default createChunkProcessor({
   store,
   forecast: forecastSeries,
   logger,
   onRunEnded: events.runEnded,
-  rememberForecasts: (tenant, runId, createdAtMs, items) => accuracy.forecasts.remember(tenant, runId, createdAtMs, items),
 })

@@ -12,7 +12,9 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       schema: {
         tags: ['skus'],
         summary: 'Latest successful forecast of a SKU',
-        description: 'URL-encode the SKU (e.g. / as %2F). 404 when no run has forecast it yet.',
+        description:
+          'URL-encode the SKU (e.g. / as %2F). 404 when no run has forecast it yet, or when the results of the run ' +
+          'that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.',
         params: SkuParams,
         response: { 200: SkuForecast, ...COMMON_PROBLEMS, ...NOT_FOUND },
       },

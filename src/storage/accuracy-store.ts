@@ -206,10 +206,12 @@ export class AccuracyStore {
     const s = summariseAccuracy(records, this.opts.limit === undefined ? {} : { limit: this.opts.limit })
     const summary: SkuAccuracy = { sku, ...s, updatedAt: (this.opts.now?.() ?? new Date()).toISOString() }
     const base = this.base(tenant)
-    const tx = this.redis.multi().hset(`${base}:summary`, sku, JSON.stringify(summary))
-    if (s.flagged) tx.zadd(`${base}:exceptions`, 0, sku)
-    else tx.zrem(`${base}:exceptions`, sku)
-    await tx.exec()
+    // The summary hash and the exception list lie in different slots of a Redis Cluster, so they
+    // are written one after the other, not in one MULTI. The summary goes first: a process dying
+    // in between leaves the list one refresh behind, and the SKU's next refresh sets it right.
+    await this.redis.hset(`${base}:summary`, sku, JSON.stringify(summary))
+    if (s.flagged) await this.redis.zadd(`${base}:exceptions`, 0, sku)
+    else await this.redis.zrem(`${base}:exceptions`, sku)
     return summary
   }
 }

@@ -11,12 +11,13 @@
  *                             newest run with a successful forecast for that SKU, its point
  *                             forecast compact (latest-record.ts); no TTL, one field per SKU
  *
- * Redis Cluster: the run id sits in a hash tag (`{R}`), so every key of one run
- * hashes to one slot and the Lua scripts that touch several of them are legal.
- * `latest` is only ever used alone (single-key script). The prefix and tenant
- * must not contain braces (enforced here and by config), or they would become
- * the hash tag. BullMQ on a cluster additionally needs its own prefix in braces,
- * which this layout does not cover (single Redis or Sentinel today).
+ * Redis Cluster (REDIS_CLUSTER_NODES): the run id sits in a hash tag (`{R}`), so
+ * every key of one run hashes to one slot and the Lua scripts and MULTI that
+ * touch several of them are legal. `latest` is only ever used alone (single-key
+ * script). The prefix and tenant must not contain braces (enforced here and by
+ * config), or they would become the hash tag. BullMQ's keys do not use this
+ * layout: on a cluster its queues take the prefix `{prefix}` (config.ts
+ * queuePrefix), one hash tag for all of a queue's keys.
  */
 
 const TENANT = /^[A-Za-z0-9_-]{1,64}$/

@@ -110,4 +110,60 @@ describe('Redis Cluster (3 primaries)', { timeout: 60_000 }, () => {
     expect(plain).toContain(`${prefix}:t:garden:run:{${runId}}`)
     expect(unexpected).toEqual([])
   })
+  it('stored histories, a run over them, accuracy scoring and schedules', async () => {
+    // Each history write is a Lua script over the tenant's data, meta, index and tag sets
+    // (one hash tag per tenant), sent in a pipeline.
+    const flat = Array.from({ length: 24 }, () => 100)
+    for (const sku of ['HOSE-A', 'HOSE-B', 'HOSE-C']) {
+      const put = await call(`/v1/skus/${sku}/history`, {
+        method: 'PUT',
+        body: JSON.stringify({ frequency: 'month', start: '2024-01', values: flat, tags: ['category:garden'] }),
+      })
+      expect(put.status).toBe(201)
+    }
+    const submitted = await call('/v1/runs', { method: 'POST', body: JSON.stringify({ horizon: 6, skus: ['HOSE-A', 'HOSE-B', 'HOSE-C'] }) })
+    expect(submitted.status).toBe(202)
+    const runId: string = submitted.body.id
+    const ended = await until(
+      async () => {
+        const r = await call(`/v1/runs/${runId}`)
+        return r.status === 200 && r.body.status !== 'queued' && r.body.status !== 'running' ? r.body : undefined
+      },
+      30_000,
+      'the run over stored histories to finish',
+    )
+    expect([ended.status, ended.progress.done]).toEqual(['succeeded', 3])
+
+    // Hand-checkable: a constant history forecasts its level, 100, for 2026-01..2026-06. Actuals
+    // 130, 125, 140, 135, 120 give errors +30, +25, +40, +35, +20: MAE 30, bias +30, tracking
+    // signal 150 / 30 = 5, beyond the default limit 4, so the SKU is listed as an exception.
+    const actuals = await call('/v1/skus/HOSE-A/history', {
+      method: 'PUT',
+      body: JSON.stringify({ frequency: 'month', start: '2024-01', values: [...flat, 130, 125, 140, 135, 120], tags: ['category:garden'] }),
+    })
+    expect(actuals.status).toBe(200)
+    const acc = await call('/v1/skus/HOSE-A/accuracy')
+    expect(acc.status).toBe(200)
+    expect(acc.body).toMatchObject({ sku: 'HOSE-A', count: 5, mae: 30, bias: 30, trackingSignal: 5, flagged: true })
+    const exceptions = await call('/v1/accuracy/exceptions')
+    expect(exceptions.body.items.map((i: { sku: string }) => i.sku)).toEqual(['HOSE-A'])
+
+    // A schedule's hash and the tenant's schedule index lie in different slots.
+    const created = await call('/v1/schedules', {
+      method: 'POST',
+      body: JSON.stringify({ name: 'garden nightly', cron: '0 2 * * *', timeZone: 'Europe/Berlin', selection: { tags: ['category:garden'] }, settings: { horizon: 6 } }),
+    })
+    expect(created.status).toBe(201)
+    const second = await call('/v1/schedules', {
+      method: 'POST',
+      body: JSON.stringify({ name: 'garden weekly', cron: '0 3 * * 1', timeZone: 'UTC', selection: { all: true }, settings: { horizon: 6 } }),
+    })
+    expect(second.status).toBe(201)
+    const listed = await call('/v1/schedules')
+    expect(listed.body.items.map((s: { name: string }) => s.name)).toEqual(['garden nightly', 'garden weekly'])
+    expect((await call(`/v1/schedules/${created.body.id}`, { method: 'DELETE' })).status).toBe(204)
+    expect((await call('/v1/schedules')).body.items.map((s: { name: string }) => s.name)).toEqual(['garden weekly'])
+    expect(api!.logs.filter((l) => Number(l.level) >= 40).map((l) => l.msg)).toEqual([])
+    expect(unexpected).toEqual([])
+  })
 })

@@ -5,6 +5,7 @@ import type { RunRequest } from '../schemas/run.js'
 import { RunStore } from '../storage/run-store.js'
 import { HistoryStore } from '../storage/history-store.js'
 import { createRunFromHistories } from '../storage/history-runs.js'
+import { resultsPageJson } from '../storage/result-pages.js'
 import { RunInputError, type RunGateway, type RunRecord } from '../storage/types.js'
 import { checkReplenishmentOptions, EngineInputError } from '../engine/index.js'
 import { gatewayConnection } from './connection.js'
@@ -95,6 +96,8 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
     get: (tenant, runId) => store.getRun(tenant, runId),
 
     results: (tenant, runId, page) => store.resultsPage(tenant, runId, page),
+
+    resultsJson: (tenant, runId, page) => resultsPageJson(redis, config.redisPrefix, tenant, runId, page),
 
     async cancel(tenant, runId) {
       const before = await store.getRun(tenant, runId)

@@ -1,4 +1,5 @@
-import { deflateRawSync, inflateRawSync } from 'node:zlib'
+import { inflateRawSync } from 'node:zlib'
+import { deflateItem, inflateItem } from './item-deflate.js'
 import {
   METRIC_NAMES,
   findModel,
@@ -58,6 +59,54 @@ export function round(x: number, digits: number): number {
 }
 const r7 = (x: number) => round(x, 7)
 const r4 = (x: number) => round(x, 4)
+
+/**
+ * The JSON text of round(x, digits) (null when x is not finite), written from
+ * the rounded integer mantissa instead of through Number-to-String of the
+ * double: that conversion (shortest round-trip digits) cost ~0.3 us per number,
+ * a third of writing an item. round's result is the double nearest m * 10^-p
+ * (m the rounded integer: one correctly rounded division or product of exact
+ * doubles), and no other decimal of at most 8 significant digits lies within
+ * an ulp of it, so its shortest digits are m's without trailing zeros; the
+ * layout follows Number::toString (ECMA-262 6.1.6.1.20). Exponent notation
+ * (below 1e-6, from 1e21), decimal ties and values that round beyond the
+ * largest double go through round and jv.
+ */
+export function roundedJson(x: number, digits: number): string {
+  if (x - x !== 0) return 'null'
+  if (x === 0) return '0'
+  const a = x < 0 ? -x : x
+  let p = digits - 1 - Math.floor(Math.log10(a))
+  let m: number
+  if (p >= 0 && p <= 22) {
+    const s = a * POWERS_OF_TEN[p]!
+    if (s - Math.floor(s) === 0.5) return jv(round(x, digits))
+    m = Math.round(s)
+  } else if (p < 0 && p >= -14) {
+    const s = a / POWERS_OF_TEN[-p]!
+    if (s - Math.floor(s) === 0.5) return jv(round(x, digits))
+    m = Math.round(s)
+  } else return jv(round(x, digits))
+  while (m % 10 === 0) {
+    m /= 10
+    p--
+  }
+  const d = '' + m
+  const k = d.length
+  let out: string
+  if (p <= 0) {
+    if (k - p > 21) return jv(round(x, digits))
+    out = p === 0 ? d : d + ZEROS.slice(0, -p)
+  } else if (p < k) out = d.slice(0, k - p) + '.' + d.slice(k - p)
+  else {
+    if (p - k >= 6) return jv(round(x, digits))
+    out = '0.' + ZEROS.slice(0, p - k) + d
+  }
+  return x < 0 ? '-' + out : out
+}
+const ZEROS = '0'.repeat(22)
+const j7 = (x: number) => roundedJson(x, 7)
+const j4 = (x: number) => roundedJson(x, 4)
 
 const packMetrics = (m: MetricSet | null | undefined) => (m ? METRIC_NAMES.map((k) => (m[k] === null ? null : r4(m[k]!))) : null)
 
@@ -168,17 +217,164 @@ export function decodeItem(sku: string, json: string): ResultItem {
 }
 
 /**
- * Bytes kept in Redis per item: a one-byte header, then the compact JSON
- * compressed with raw DEFLATE (RFC 1951), about a third of the JSON's size.
- * Header 0x01: deflated. A value starting with `[` is plain JSON.
+ * The JSON text of an item as served (what JSON.stringify(decodeItem(sku,
+ * encodeItem(item))) gives, byte for byte) without its sku: `{"model":...}` or
+ * `{"error":...}`. Written straight from the engine result with the same
+ * rounding as encodeItem, so a results page is the stored text with the sku
+ * put in front (no parsing, no objects per item: decoding and re-serialising
+ * pages took most of the API's CPU in bench:e2e).
+ */
+export function servedBody(item: ResultItem): string {
+  if ('error' in item) return `{"error":{"code":${jv(item.error.code)},"message":${jv(item.error.message)}}}`
+  const s = item.selection
+  let out =
+    `{"model":${jv(item.model)},"family":${jv(item.family)},"params":${paramsJson(item.params)}` +
+    `,"selection":{"method":${jv(s.method)},"metric":${jv(s.metric)},"holdout":${jv(s.holdout)},"origins":${jv(s.origins)}}` +
+    `,"metrics":${metricsJson(item.metrics)},"leaderboard":[`
+  const board = item.leaderboard
+  for (let i = 0; i < board.length; i++) out += (i === 0 ? '' : ',') + entryJson(board[i]!, s.metric)
+  out += '],"forecast":['
+  const points = item.forecast
+  const lower = boundKeys(points, 'lower')
+  const upper = boundKeys(points, 'upper')
+  for (let i = 0; i < points.length; i++) {
+    const p = points[i]!
+    out += `${i === 0 ? '' : ','}{"period":${jv(p.period)},"value":${num7(p.value)},"lower":${boundJson(p.lower, lower)},"upper":${boundJson(p.upper, upper)}}`
+  }
+  const iv = item.intervals
+  out += `],"intervals":{"method":${jv(iv.method)},"levels":${jv(iv.levels)},"clamped":${jv(iv.clamped)}},"warnings":[`
+  for (let i = 0; i < item.warnings.length; i++) {
+    const w = item.warnings[i]!
+    out += `${i === 0 ? '' : ','}{"code":${jv(w.code)},"message":${jv(w.message)}}`
+  }
+  out += ']'
+  if (item.replenishment) out += `,"replenishment":${replenishmentJson(item.replenishment)}`
+  return out + '}'
+}
+
+/** A value as JSON.stringify writes it inside an array: undefined, NaN and Infinity as null. */
+function jv(v: unknown): string {
+  if (typeof v === 'number') return v - v === 0 ? '' + v : 'null'
+  if (typeof v === 'string') return quoted(v)
+  const s = JSON.stringify(v)
+  return s === undefined ? 'null' : s
+}
+
+/** A number rounded to 7 digits as JSON (anything else as jv of r7 would). */
+const num7 = (v: unknown): string => (typeof v === 'number' ? j7(v) : jv(r7(v as number)))
+
+/**
+ * JSON.stringify of a string, remembered: model names, families, statuses,
+ * reasons and period labels repeat from item to item. Bounded: cleared when full.
+ */
+const QUOTED = new Map<string, string>()
+function quoted(s: string): string {
+  let q = QUOTED.get(s)
+  if (q === undefined) {
+    if (QUOTED.size >= 4096) QUOTED.clear()
+    q = JSON.stringify(s)
+    if (s.length <= 256) QUOTED.set(s, q)
+  }
+  return q
+}
+
+const METRIC_KEYS = METRIC_NAMES.map((k, i) => `${i === 0 ? '{' : ','}${JSON.stringify(k)}:`)
+
+function metricsJson(m: MetricSet | null | undefined): string {
+  if (!m) return 'null'
+  let out = ''
+  for (let i = 0; i < METRIC_NAMES.length; i++) {
+    const v = m[METRIC_NAMES[i]!]
+    out += METRIC_KEYS[i]! + (v === null ? 'null' : typeof v === 'number' ? j4(v) : jv(r4(v!)))
+  }
+  return out + '}'
+}
+
+function paramsJson(p: ModelParams): string {
+  let out = ''
+  for (const k in p) {
+    if (!Object.prototype.hasOwnProperty.call(p, k)) continue
+    const v = (p as Record<string, number | readonly number[]>)[k]!
+    out += `${out === '' ? '{' : ','}${JSON.stringify(k)}:`
+    if (typeof v === 'number') out += j7(v)
+    else {
+      out += '['
+      for (let i = 0; i < v.length; i++) out += (i === 0 ? '' : ',') + num7(v[i])
+      out += ']'
+    }
+  }
+  return out === '' ? '{}' : out + '}'
+}
+
+/** `"level":` prefixes of the first point's bounds (encodeItem keeps the levels of the first point). */
+function boundKeys(points: readonly ForecastPoint[], side: 'lower' | 'upper'): [string, string][] {
+  return Object.keys(points[0]?.[side] ?? {}).map((l) => [l, JSON.stringify(l) + ':'])
+}
+
+function boundJson(bound: Readonly<Record<string, number>>, keys: readonly [string, string][]): string {
+  let out = '{'
+  for (let i = 0; i < keys.length; i++) out += (i === 0 ? '' : ',') + keys[i]![1] + num7(bound[keys[i]![0]])
+  return out + '}'
+}
+
+function entryJson(e: StoredLeaderboardEntry, metric: (typeof METRIC_NAMES)[number]): string {
+  let out = `{"model":${jv(e.model)},"family":${jv(e.family)},"status":${jv(e.status)}`
+  if (e.metrics) out += `,"metrics":${metricsJson(e.metrics)}`
+  if (e.score !== undefined) {
+    // Left out when the rounded score is not a finite number (stored as null before).
+    const score = typeof e.score === 'number' ? j4(e.score) : 'null'
+    if (score !== 'null') out += `,"score":${score}`
+  }
+  if (e.reason !== undefined && e.reason !== null) out += `,"reason":${jv(e.reason)}`
+  return out + '}'
+}
+
+function replenishmentJson(r: ReplenishmentFigures): string {
+  let out = ''
+  for (let i = 0; i < REPLENISHMENT_FIELDS.length; i++) {
+    const k = REPLENISHMENT_FIELDS[i]!
+    const v = r[k]
+    out += `${i === 0 ? '{' : ','}"${k}":${jv(v === null || EXACT.has(k) ? v : r7(v))}`
+  }
+  return `${out},"formula":${jv(r.formula)}}`
+}
+
+/**
+ * Bytes kept in Redis per item: a one-byte header, then the item compressed
+ * with raw DEFLATE (RFC 1951).
+ *   0x02: servedBody, compressed with the preset dictionary ITEM_DICTIONARY
+ *         (item-dictionary.ts; about 40% smaller than without it).
+ *   0x01: encodeItem's compact JSON, no dictionary (written until format 0x02).
+ *   `[`:  encodeItem's compact JSON, not compressed.
  */
 const DEFLATED = 0x01
+const SERVED = 0x02
 
 export function storeItem(item: ResultItem): Buffer {
-  return Buffer.concat([Buffer.of(DEFLATED), deflateRawSync(encodeItem(item))])
+  return Buffer.concat([Buffer.of(SERVED), deflateItem(Buffer.from(servedBody(item), 'utf8'))])
+}
+
+/**
+ * The served JSON of a stored item, sku first, as UTF-8 bytes in two parts
+ * (equal to JSON.stringify(loadItem(sku, stored)) when concatenated).
+ */
+export function servedItemParts(sku: string, stored: Buffer): [Buffer, Buffer] {
+  if (stored[0] !== SERVED) return [Buffer.from(JSON.stringify(loadItem(sku, stored)), 'utf8'), EMPTY]
+  const body = inflateItem(stored.subarray(1))
+  // The body's '{' becomes the comma after the sku.
+  body[0] = 0x2c
+  return [Buffer.from(`{"sku":${JSON.stringify(sku)}`, 'utf8'), body]
+}
+
+const EMPTY = Buffer.alloc(0)
+
+/** servedItemParts as one buffer. */
+export function servedItemJson(sku: string, stored: Buffer): Buffer {
+  return Buffer.concat(servedItemParts(sku, stored))
 }
 
 export function loadItem(sku: string, stored: Buffer): ResultItem {
+  if (stored[0] === SERVED) return JSON.parse(`{"sku":${JSON.stringify(sku)},${inflateItem(stored.subarray(1)).toString('utf8', 1)}`) as ResultItem
   const json = stored[0] === DEFLATED ? inflateRawSync(stored.subarray(1)).toString('utf8') : stored.toString('utf8')
   return decodeItem(sku, json)
 }

@@ -90,6 +90,16 @@ export interface RunGateway {
     runId: string,
     page: { readonly limit: number; readonly cursor?: string; readonly sku?: string },
   ): Promise<ResultPage | null>
+  /**
+   * The same page as its JSON body, UTF-8: the text JSON.stringify(results(...))
+   * gives, built from the stored items without decoding them. Optional: without
+   * it the route serialises `results`.
+   */
+  resultsJson?(
+    tenant: string,
+    runId: string,
+    page: { readonly limit: number; readonly cursor?: string; readonly sku?: string },
+  ): Promise<Buffer | null>
   /** Cancel a queued or running run; a finished run is returned unchanged. */
   cancel(tenant: string, runId: string): Promise<RunRecord | null>
   latestForecast(tenant: string, sku: string): Promise<LatestForecast | null>

@@ -83,6 +83,13 @@ describe('runs over HTTP with the real queue and worker', () => {
     expect(new Set(seen)).toEqual(new Set(series.map((s) => s.sku)))
   })
 
+  it('serves a page as JSON whose text is the decoded page serialised (application/json, UTF-8)', async () => {
+    const res = await app.inject({ url: `/v1/runs/${runId}/results?limit=7`, headers: as(GARDEN) })
+    expect(res.statusCode).toBe(200)
+    expect(res.headers['content-type']).toBe('application/json; charset=utf-8')
+    expect(res.body).toBe(JSON.stringify(await gateway.results('garden', runId, { limit: 7 })))
+  })
+
   it('a tampered cursor is a 400 problem, not a 500', async () => {
     const res = await app.inject({ url: `/v1/runs/${runId}/results?cursor=not.a.cursor`, headers: as(GARDEN) })
     expect(res.statusCode).toBe(400)

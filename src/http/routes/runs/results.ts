@@ -42,6 +42,12 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         // A stream bypasses the JSON serializer; the cast only satisfies the typed reply.
         return reply.send(Readable.from(runResultsCsv(run, pages)) as unknown as ResultPageBody)
       }
+      if (app.gateway.resultsJson) {
+        // The page's JSON text straight from the stored items (the serializer passes a Buffer through).
+        const body = await app.gateway.resultsJson(request.tenant, runId, { limit, cursor, sku })
+        if (!body) throw runNotFound(runId)
+        return reply.type('application/json; charset=utf-8').send(body as unknown as ResultPageBody)
+      }
       const page = await app.gateway.results(request.tenant, runId, { limit, cursor, sku })
       if (!page) throw runNotFound(runId)
       return page as ResultPageBody

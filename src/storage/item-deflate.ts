@@ -1,0 +1,80 @@
+import { constants, createDeflateRaw, createInflateRaw, deflateRawSync, inflateRawSync, type DeflateRaw, type InflateRaw } from 'node:zlib'
+import { ITEM_DICTIONARY } from './item-dictionary.js'
+
+/**
+ * Raw DEFLATE (RFC 1951) of stored result items with the preset dictionary
+ * ITEM_DICTIONARY, one item of a few KB at a time.
+ *
+ * zlib's one-shot calls (deflateRawSync, inflateRawSync) build a stream object
+ * and a zlib state and tear both down again for every call: for a 4 KB item
+ * that is most of the cost (bench:codec: inflate ~20 us one-shot against
+ * ~7 us on a kept state). So each thread keeps one deflate and one inflate
+ * stream and runs items through its native handle, reset between items
+ * (node:zlib internals `_handle.writeSync`, `_handle.reset` and `_writeState`,
+ * which the one-shot calls use themselves; the same in Node 18 to 22). Anything
+ * unexpected (internals missing, an error, output that does not fit) answers
+ * with the one-shot call instead, which gives the same bytes or the proper
+ * zlib error, and a state that errored is replaced.
+ */
+export const ITEM_DEFLATE_LEVEL = 6
+
+/** Largest input/output handled on the kept state; larger items take the one-shot path. */
+const BUFFER_BYTES = 256 * 1024
+
+interface Handle {
+  writeSync(flush: number, input: Buffer, inOff: number, inLen: number, out: Buffer, outOff: number, outLen: number): void
+  reset(): void
+}
+
+interface Kept {
+  readonly stream: DeflateRaw | InflateRaw
+  readonly handle: Handle
+  /** [availOutAfter, availInAfter] of the last write, filled by the native handle. */
+  readonly state: Uint32Array
+}
+
+const keep = (stream: DeflateRaw | InflateRaw): Kept | null => {
+  const internals = stream as unknown as { _handle?: Partial<Handle>; _writeState?: unknown }
+  const handle = internals._handle
+  const state = internals._writeState
+  if (typeof handle?.writeSync !== 'function' || typeof handle.reset !== 'function' || !(state instanceof Uint32Array) || state.length < 2) {
+    return null
+  }
+  stream.on('error', () => {}) // an error destroys the stream; the caller sees it and replaces the state
+  return { stream, handle: handle as Handle, state }
+}
+
+const options = { dictionary: ITEM_DICTIONARY }
+let out: Buffer | null = null
+let deflater: Kept | null | undefined
+let inflater: Kept | null | undefined
+
+/** Runs `input` through a kept state; null when the caller should use the one-shot call. */
+function run(kept: Kept, input: Buffer): Buffer | null {
+  out ??= Buffer.allocUnsafe(BUFFER_BYTES)
+  try {
+    kept.handle.reset()
+    kept.handle.writeSync(constants.Z_FINISH, input, 0, input.length, out, 0, out.length)
+  } catch {
+    return null
+  }
+  const [availOut, availIn] = kept.state
+  if (kept.stream.destroyed || availIn !== 0 || availOut === 0) return null
+  return Buffer.from(out.subarray(0, out.length - availOut!))
+}
+
+export function deflateItem(json: Buffer): Buffer {
+  if (deflater === undefined) deflater = keep(createDeflateRaw({ ...options, level: ITEM_DEFLATE_LEVEL }))
+  const result = deflater !== null && json.length < BUFFER_BYTES / 2 ? run(deflater, json) : null
+  if (result !== null) return result
+  if (deflater?.stream.destroyed) deflater = undefined
+  return deflateRawSync(json, { ...options, level: ITEM_DEFLATE_LEVEL })
+}
+
+export function inflateItem(stored: Buffer): Buffer {
+  if (inflater === undefined) inflater = keep(createInflateRaw(options))
+  const result = inflater !== null ? run(inflater, stored) : null
+  if (result !== null) return result
+  if (inflater?.stream.destroyed) inflater = undefined
+  return inflateRawSync(stored, options)
+}

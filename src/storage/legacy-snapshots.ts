@@ -13,7 +13,9 @@ import { decodePoints, encodePoints, isNewer, type ForecastPoints, type LatestRe
  * hash any more. The run store reads it only for SKUs whose record has no
  * points, moves a found entry into the record (migrate on read) and deletes
  * it; a run that takes the SKUs of a chunk deletes theirs. The hash thus
- * empties itself; this module can go once no deployment holds one.
+ * empties as SKUs are forecast again or scored; this module can go once no
+ * deployment holds one. During a rolling deploy an older worker may still
+ * write an entry (and an older record): both are read as described.
  */
 export function legacySnapshotsKey(prefix: string, tenant: string): string {
   if (!isValidTenant(tenant)) throw new Error(`invalid tenant for a Redis key: ${JSON.stringify(tenant)}`)

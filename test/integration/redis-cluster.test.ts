@@ -51,6 +51,20 @@ async function runEnded(runId: string, timeoutMs: number) {
   })
 }
 
+/**
+ * A SKU's latest forecast, polled: a run is marked succeeded when its last chunk commits,
+ * and that chunk's latest-forecast records are written just after (docs/run-machinery.md).
+ */
+const latestForecast = (sku: string) =>
+  until(
+    async () => {
+      const r = await call(`/v1/skus/${encodeURIComponent(sku)}/forecast`, { expect: 404 })
+      return r.status === 200 ? r.body : undefined
+    },
+    10_000,
+    `the latest forecast of ${sku}`,
+  )
+
 const call = async (path: string, init: RequestInit & { expect?: number } = {}) => {
   const res = await fetch(`${api!.baseUrl}${path}`, {
     ...init,
@@ -95,10 +109,9 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     expect(pages).toBe(5)
     expect(seen).toEqual(series.map((s) => s.sku).sort())
 
-    const latest = await call(`/v1/skus/${series[42]!.sku}/forecast`)
-    expect(latest.status).toBe(200)
-    expect(latest.body).toMatchObject({ sku: series[42]!.sku, runId })
-    expect(latest.body.forecast).toHaveLength(6)
+    const latest = await latestForecast(series[42]!.sku)
+    expect(latest).toMatchObject({ sku: series[42]!.sku, runId })
+    expect(latest.forecast).toHaveLength(6)
 
     // The same Idempotency-Key replays the first answer instead of a second run.
     const again = await call('/v1/runs', {
@@ -136,6 +149,7 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     const runId: string = submitted.body.id
     const ended = await runEnded(runId, 60_000)
     expect([ended.status, ended.progress.done]).toEqual(['succeeded', 3])
+    expect((await latestForecast('HOSE-A')).runId).toBe(runId)
 
     // Hand-checkable: a constant history forecasts its level, 100, for 2026-01..2026-06. Actuals
     // 130, 125, 140, 135, 120 give errors +30, +25, +40, +35, +20: MAE 30, bias +30, tracking

@@ -26,16 +26,21 @@ export const DemandValue = z
   .max(MAX_ABS_VALUE, 'must be between -1e15 and 1e15')
   .nullable()
 
+/** A SKU has no control characters (C0 and DEL). */
+export const SKU_PATTERN = /^[^\u0000-\u001f\u007f]+$/
+/** Period labels: 2024, 2024-Q2, 2024-03, 2024-W09 or 2024-03-05. */
+export const PERIOD_PATTERN = /^\d{4}(-(Q[1-4]|W\d{2}|\d{2}(-\d{2})?))?$/
+
 export const Sku = z
   .string()
   .min(1)
   .max(200)
-  .regex(/^[^\u0000-\u001f\u007f]+$/, 'must not contain control characters')
+  .regex(SKU_PATTERN, 'must not contain control characters')
   .describe('Stock-keeping unit code, unique within the tenant')
 
 export const PeriodLabel = z
   .string()
-  .regex(/^\d{4}(-(Q[1-4]|W\d{2}|\d{2}(-\d{2})?))?$/, 'must look like 2024, 2024-Q2, 2024-03, 2024-W09 or 2024-03-05')
+  .regex(PERIOD_PATTERN, 'must look like 2024, 2024-Q2, 2024-03, 2024-W09 or 2024-03-05')
   .describe('Label of the first period')
 
 export const SeriesItem = z.object({

@@ -1,5 +1,5 @@
 import { inflateRawSync } from 'node:zlib'
-import { deflateItem, inflateItem } from './item-deflate.js'
+import { deflateWithHeader, inflateItem } from './item-deflate.js'
 import {
   METRIC_NAMES,
   findModel,
@@ -351,7 +351,7 @@ const DEFLATED = 0x01
 const SERVED = 0x02
 
 export function storeItem(item: ResultItem): Buffer {
-  return Buffer.concat([Buffer.of(SERVED), deflateItem(Buffer.from(servedBody(item), 'utf8'))])
+  return deflateWithHeader(SERVED, servedBody(item))
 }
 
 /**

@@ -12,12 +12,13 @@ import {
 import type { ResultItem, StoredLeaderboardEntry } from './types.js'
 
 /**
- * Compact storage form of one SKU's result (the run store keeps thousands per
- * run). A JSON array instead of objects, metric sets as arrays in METRIC_NAMES
+ * Compact form of one SKU's result (storage format 0x01, written by earlier
+ * versions and still read; `storeItem` now writes servedBody, format 0x02,
+ * below). A JSON array instead of objects, metric sets as arrays in METRIC_NAMES
  * order, and rounded numbers: forecasts, bounds and parameters keep 7
  * significant digits (relative change below 1e-6), error measures 4 (enough to
- * compare models). The sku is not stored: it is the hash field. `storeItem`
- * compresses the JSON for Redis.
+ * compare models); servedBody rounds the same way. The sku is not stored: it
+ * is the hash field.
  *
  *   [2, model, family, params, selection, metrics, leaderboard, forecast, intervals, warnings]
  *   [2, ..., warnings, replenishment?]               replenishment: [leadTime, serviceLevel, leadTimeDemand,

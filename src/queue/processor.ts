@@ -60,9 +60,11 @@ function withReplenishment(item: ResultItem, result: ForecastResult, settings: R
 
 /**
  * The chunk job processor: reads the chunk's series, forecasts each, and
- * commits items and counts in one atomic step (idempotent per chunk). Chunks of
- * cancelled or failed runs are skipped. Steps after the commit (latest-forecast
- * records, run-ended event, deleting the input) are idempotent and the input
+ * commits items and counts (idempotent per chunk; see RunStore.commitChunk). Chunks of
+ * cancelled or failed runs are skipped. The commit writes the items and the
+ * SKUs' latest-forecast records before it counts the chunk (run-store.ts), so a
+ * run is never 'succeeded' before its results can be read. Steps after the
+ * commit (run-ended event, deleting the input) are idempotent and the input
  * goes last, so a retry after a crash anywhere recomputes at most one chunk,
  * never double-counts, and still completes those steps (also when the crashed
  * chunk was the run's last: the commit then answers 'succeeded').
@@ -106,10 +108,6 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now())
     // Counted once per chunk: only the call whose commit took the items (a retried chunk is not counted twice).
     if (outcome === 'committed' || outcome === 'finished') await store.stats.recordFits(fitSeconds, tally.failed)
-    // 'succeeded': the run finished, so every chunk (this one too) was committed before.
-    if (outcome === 'committed' || outcome === 'finished' || outcome === 'duplicate' || outcome === 'succeeded') {
-      await store.updateLatest(tenant, runId, run.createdAtMs, now(), items)
-    }
     // Before the input is deleted, so a failed emit retries the chunk (the commit is then a no-op).
     if (outcome === 'finished' || outcome === 'succeeded') await deps.onRunEnded?.(tenant, runId)
     await store.deleteChunkInputs(tenant, runId, [chunkIndex])

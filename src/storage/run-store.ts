@@ -131,7 +131,18 @@ export class RunStore {
     }
   }
 
-  /** Stores a chunk's items and counts atomically; idempotent per chunk index. */
+  /**
+   * Commits a chunk in three idempotent steps: store its items (storeItems),
+   * make them the latest forecast of their SKUs (updateLatest), then count the
+   * chunk and finish the run when it was the last (commitChunk script, guarded
+   * per chunk index). A run thus reads 'succeeded' only after every SKU's
+   * result and latest record are written; a retry after a crash between the
+   * steps rewrites the same items and records and counts the chunk once.
+   * Outcomes: 'committed' or 'finished' when this call counted the chunk
+   * (finished: it was the run's last), 'duplicate' when it was counted before,
+   * 'succeeded' when the run had already finished (so this chunk was counted),
+   * 'cancelled' | 'failed' | 'missing' when nothing was written.
+   */
   async commitChunk(
     tenant: string,
     runId: string,
@@ -141,7 +152,13 @@ export class RunStore {
     now: Date,
   ): Promise<CommitOutcome> {
     const k = this.keys(tenant, runId)
-    const args: (string | number | Buffer)[] = [
+    const stored: (string | number | Buffer)[] = [this.opts.resultTtlSeconds]
+    for (const item of items) stored.push(item.sku, storeItem(item))
+    const [step, createdAt] = await this.scripts.storeItems([k.run, k.skus, k.items], stored)
+    if (step !== 'stored' && step !== 'succeeded') return step as CommitOutcome
+    await this.updateLatest(tenant, runId, Date.parse(createdAt), now, items)
+    if (step === 'succeeded') return 'succeeded'
+    const args: (string | number)[] = [
       chunkIndex,
       now.toISOString(),
       this.opts.resultTtlSeconds,
@@ -153,8 +170,7 @@ export class RunStore {
       tally.wins.size,
     ]
     for (const [model, n] of tally.wins) args.push(model, n)
-    for (const item of items) args.push(item.sku, storeItem(item))
-    const [outcome, before] = await this.scripts.commitChunk([k.run, k.chunks, k.skus, k.items], args)
+    const [outcome, before] = await this.scripts.commitChunk([k.run, k.chunks], args)
     if (before === 'queued' && outcome === 'committed') await this.stats.moved('queued', 'running')
     if ((before === 'queued' || before === 'running') && outcome === 'finished') await this.stats.moved(before, 'succeeded')
     return outcome as CommitOutcome

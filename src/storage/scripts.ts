@@ -25,13 +25,39 @@ return {st, redis.call('HGET', KEYS[1], 'settings'), redis.call('HGET', KEYS[1],
 `
 
 /**
- * commitChunk. KEYS: run, chunks, skus, items.
+ * storeItems. KEYS: run, skus, items. ARGV: resultTtl, then pairs (sku, item).
+ * First step of a chunk commit: writes the chunk's items while the run is
+ * queued or running. Naturally idempotent (a retry writes the same fields), so
+ * it needs no guard; nothing is counted here.
+ * Returns {outcome, createdAt}: outcome 'stored' | 'missing' | the run's terminal status.
+ */
+const STORE_ITEMS = `
+local st = redis.call('HGET', KEYS[1], 'status')
+if not st then return {'missing', ''} end
+local created = redis.call('HGET', KEYS[1], 'createdAt') or ''
+if st ~= 'queued' and st ~= 'running' then return {st, created} end
+local i = 2
+while i < #ARGV do
+  redis.call('ZADD', KEYS[2], 0, ARGV[i])
+  redis.call('HSET', KEYS[3], ARGV[i], ARGV[i + 1])
+  i = i + 2
+end
+for k = 2, 3 do
+  if redis.call('EXISTS', KEYS[k]) == 1 then redis.call('EXPIRE', KEYS[k], tonumber(ARGV[1])) end
+end
+return {'stored', created}
+`
+
+/**
+ * commitChunk. KEYS: run, chunks.
  * ARGV: chunkIndex, nowIso, resultTtl, recordTtl, done, failed, errSum, errCount,
- *       nWins, then nWins pairs (model, count), then pairs (sku, itemJson).
- * In one atomic step: skip unless the run is queued/running, skip a chunk
- * already committed (a retry never double-counts), store the items, add the
- * counts and summary accumulators, decrement the chunks remaining, and finish
- * the run when that reaches zero.
+ *       nWins, then nWins pairs (model, count).
+ * Last step of a chunk commit, after its items are stored (storeItems) and its
+ * SKUs' latest-forecast records written: in one atomic step, skip unless the
+ * run is queued/running, skip a chunk already counted (a retry never
+ * double-counts), add the counts and summary accumulators, decrement the chunks
+ * remaining, and finish the run when that reaches zero. So a run reads
+ * 'succeeded' only once every SKU's items and latest record are in place.
  * Returns {outcome, statusBefore}: outcome 'committed' | 'finished' | 'duplicate' |
  * 'missing' | the run's terminal status; statusBefore the run's status when the
  * call began ('' when missing), so the caller can count the status change.
@@ -41,16 +67,10 @@ local st = redis.call('HGET', KEYS[1], 'status')
 if not st then return {'missing', ''} end
 if st ~= 'queued' and st ~= 'running' then return {st, st} end
 if redis.call('SADD', KEYS[2], ARGV[1]) == 0 then return {'duplicate', st} end
-local resultTtl = tonumber(ARGV[3])
 local nWins = tonumber(ARGV[9])
 local i = 10
 for _ = 1, nWins do
   redis.call('HINCRBY', KEYS[1], 'win:' .. ARGV[i], tonumber(ARGV[i + 1]))
-  i = i + 2
-end
-while i < #ARGV do
-  redis.call('ZADD', KEYS[3], 0, ARGV[i])
-  redis.call('HSET', KEYS[4], ARGV[i], ARGV[i + 1])
   i = i + 2
 end
 redis.call('HINCRBY', KEYS[1], 'done', tonumber(ARGV[5]))
@@ -58,7 +78,7 @@ redis.call('HINCRBY', KEYS[1], 'failed', tonumber(ARGV[6]))
 redis.call('HINCRBYFLOAT', KEYS[1], 'errSum', ARGV[7])
 redis.call('HINCRBY', KEYS[1], 'errCount', tonumber(ARGV[8]))
 if st == 'queued' then redis.call('HSET', KEYS[1], 'status', 'running', 'startedAt', ARGV[2]) end
-for k = 2, 4 do redis.call('EXPIRE', KEYS[k], resultTtl) end
+redis.call('EXPIRE', KEYS[2], tonumber(ARGV[3]))
 local remaining = redis.call('HINCRBY', KEYS[1], 'chunksRemaining', -1)
 if remaining <= 0 then
   redis.call('HSET', KEYS[1], 'status', 'succeeded', 'finishedAt', ARGV[2])
@@ -125,8 +145,10 @@ return changed
 export interface RunScripts {
   /** [status, settingsJson, createdAt, moved ('1' when this call moved queued to running)]. */
   startChunk(run: string, nowIso: string): Promise<[string, string, string, string] | null>
+  /** [outcome, the run's createdAt ('' when the run is missing)]. */
+  storeItems(keys: readonly [string, string, string], args: readonly (string | number | Buffer)[]): Promise<[string, string]>
   /** [outcome, status before the call ('' when the run is missing)]. */
-  commitChunk(keys: readonly [string, string, string, string], args: readonly (string | number | Buffer)[]): Promise<[string, string]>
+  commitChunk(keys: readonly [string, string], args: readonly (string | number)[]): Promise<[string, string]>
   /** [status after, status before], or null when the run does not exist. */
   endRun(keys: readonly [string, string, string, string], args: readonly (string | number)[]): Promise<[string, string] | null>
   updateLatest(key: string, args: readonly (string | number)[]): Promise<number>
@@ -141,7 +163,8 @@ type Call = (...args: (string | number | Buffer)[]) => Promise<unknown>
 export function defineRunScripts(redis: RedisClient): RunScripts {
   const scripts = {
     almanacStartChunk: [1, START_CHUNK],
-    almanacCommitChunk: [4, COMMIT_CHUNK],
+    almanacStoreItems: [3, STORE_ITEMS],
+    almanacCommitCounts: [2, COMMIT_CHUNK],
     almanacEndRun: [4, END_RUN],
     almanacUpdateLatest: [1, UPDATE_LATEST],
   } as const
@@ -154,8 +177,12 @@ export function defineRunScripts(redis: RedisClient): RunScripts {
   }
   return {
     startChunk: async (run, nowIso) => (await cmd('almanacStartChunk')(run, nowIso)) as [string, string, string, string] | null,
+    storeItems: async (keys, args) => {
+      const [outcome, created] = (await cmd('almanacStoreItems')(...keys, ...args)) as [unknown, unknown]
+      return [String(outcome), String(created)]
+    },
     commitChunk: async (keys, args) => {
-      const [outcome, before] = (await cmd('almanacCommitChunk')(...keys, ...args)) as [unknown, unknown]
+      const [outcome, before] = (await cmd('almanacCommitCounts')(...keys, ...args)) as [unknown, unknown]
       return [String(outcome), String(before)]
     },
     endRun: async (keys, args) => {

@@ -71,6 +71,36 @@ describe('RunStore', () => {
     expect(run?.summary).toEqual({ metric: 'mase', modelWins: {}, meanHoldoutError: null })
   })
 
+  it('has every SKU\'s result and latest forecast readable once the run reads succeeded', async () => {
+    // A client polling the run and then each SKU's latest forecast must never get a 404 in between.
+    await store.createRun('acme', 'order-1', runRequest(syntheticSeries(4)), 2, t0)
+    const first = okItems(['SKU-00000', 'SKU-00001'])
+    expect(await store.commitChunk('acme', 'order-1', 0, first, tallyItems(first, 'mase'), t0)).toBe('committed')
+    const second = okItems(['SKU-00002', 'SKU-00003'], [5])
+    expect(await store.commitChunk('acme', 'order-1', 1, second, tallyItems(second, 'mase'), t0)).toBe('finished')
+    expect((await store.getRun('acme', 'order-1'))?.status).toBe('succeeded')
+    for (const sku of ['SKU-00000', 'SKU-00001', 'SKU-00002', 'SKU-00003']) {
+      const latest = await store.latest('acme', sku)
+      expect(latest?.runId).toBe('order-1')
+      expect('error' in latest!.item).toBe(false)
+    }
+    // A retry of the last chunk after the run finished rewrites nothing it counts and answers 'succeeded'.
+    expect(await store.commitChunk('acme', 'order-1', 1, second, tallyItems(second, 'mase'), t0)).toBe('succeeded')
+    expect((await store.getRun('acme', 'order-1'))?.progress).toEqual({ total: 4, done: 4, failed: 0 })
+  })
+
+  it('counts a chunk whose items were stored by an attempt that died before counting', async () => {
+    // The first attempt stored the items (and latest records) and crashed; the retry counts the chunk once.
+    await store.createRun('acme', 'crash-1', runRequest(syntheticSeries(2)), 2, t0)
+    const k = runKeys(prefix, 'acme', 'crash-1')
+    const items = okItems(['SKU-00000', 'SKU-00001'])
+    await redis.hset(k.items, 'SKU-00000', storeItem(items[0]!))
+    await redis.zadd(k.skus, 0, 'SKU-00000')
+    expect(await store.commitChunk('acme', 'crash-1', 0, items, tallyItems(items, 'mase'), t0)).toBe('finished')
+    expect((await store.getRun('acme', 'crash-1'))?.progress).toEqual({ total: 2, done: 2, failed: 0 })
+    expect(await redis.zcard(k.skus)).toBe(2)
+  })
+
   it('writes nothing for a chunk of a cancelled run', async () => {
     await store.createRun('acme', 'cancel-1', runRequest(syntheticSeries(4)), 2, t0)
     expect((await store.endRun('acme', 'cancel-1', 'cancelled', null, t0))?.status).toBe('cancelled')

@@ -16,7 +16,13 @@ import { ITEM_DICTIONARY } from './item-dictionary.js'
  * with the one-shot call instead, which gives the same bytes or the proper
  * zlib error, and a state that errored is replaced.
  */
-export const ITEM_DEFLATE_LEVEL = 6
+/**
+ * zlib level 5 rather than the default 6: deflate of a served item with the
+ * dictionary measured 74 against 83 us (2,000 bench items, interleaved runs,
+ * load 3) for 690 against 672 B. Level 3 took 59 us but 758 B, and on items
+ * where every candidate is scored it was 14% larger than format 0x01.
+ */
+export const ITEM_DEFLATE_LEVEL = 5
 
 /** Largest input/output handled on the kept state; larger items take the one-shot path. */
 const BUFFER_BYTES = 256 * 1024

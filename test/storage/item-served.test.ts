@@ -81,6 +81,11 @@ const forecastItem = fc
 
 const errorItem = fc.record({ sku: text, error: fc.record({ code: text, message: text }) }) as fc.Arbitrary<ResultItem>
 
+function forecastItemOf(item: ResultItem): Exclude<ResultItem, { error: unknown }> {
+  if ('error' in item) throw new Error('expected a forecast')
+  return item
+}
+
 const engineItems = (): ResultItem[] =>
   syntheticSeries(10, 48).map((s, i) =>
     toResultItem(s.sku, forecastSeries({ values: s.values, frequency: 'month', horizon: 12, origins: 1 + (i % 3), start: '2022-01' })),
@@ -103,6 +108,19 @@ describe('served JSON of stored items (format 0x02)', () => {
         expect(roundedJson(x, digits)).toBe(JSON.stringify(round(x, digits)))
       }),
       { numRuns: 20_000 },
+    )
+  })
+
+  it('write numbers in stored items as the earlier path did, for doubles of every magnitude', () => {
+    const spread = fc.tuple(fc.double({ min: 1, max: 10, noNaN: true }), fc.integer({ min: -30, max: 30 }), fc.boolean())
+      .map(([m, e, neg]) => (neg ? -1 : 1) * m * 10 ** e)
+    const base = forecastItemOf(engineItems()[0]!)
+    fc.assert(
+      fc.property(fc.array(fc.oneof(fc.double(), spread, fc.integer()), { minLength: 1, maxLength: 40 }), (xs) => {
+        const item = { ...base, params: { xs }, metrics: { ...base.metrics!, mae: xs[0]!, rmse: xs[xs.length - 1]! } } as ResultItem
+        expect(servedBody(item)).toBe(reference('', item).replace('{"sku":"",', '{'))
+      }),
+      { numRuns: 3_000 },
     )
   })
 

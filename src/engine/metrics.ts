@@ -14,11 +14,35 @@
  *          accuracy", IJF 22(4), eq. for q_t); null when the scale is 0 or undefined
  *  - wape  sum |e| / sum |actual| (a ratio, not percent); null when sum |actual| is 0
  *
- * All sums are compensated (numeric.sum). Pure.
+ * All sums are compensated (Neumaier, as numeric.sum, accumulated in one pass without
+ * intermediate arrays). Pure.
  */
 import { EngineInputError } from './errors.js'
-import { sum } from './numeric.js'
 import { METRIC_NAMES, type MetricName, type MetricSet } from './types.js'
+
+/**
+ * Neumaier-compensated running sums, two slots (sum, compensation) per sum: the same
+ * additions in the same order as numeric.sum over an array, without building one.
+ * Module scratch, used only inside one synchronous call at a time.
+ */
+const acc = new Float64Array(12)
+
+function start(k: number): void {
+  acc[2 * k] = 0
+  acc[2 * k + 1] = 0
+}
+
+function add(k: number, v: number): void {
+  const s = acc[2 * k]
+  const t = s + v
+  if (Math.abs(s) >= Math.abs(v)) acc[2 * k + 1] += s - t + v
+  else acc[2 * k + 1] += v - t + s
+  acc[2 * k] = t
+}
+
+function total(k: number): number {
+  return acc[2 * k] + acc[2 * k + 1]
+}
 
 /**
  * MASE scale: in-sample mean absolute difference at lag m (lag 1 when m <= 1 or
@@ -27,9 +51,9 @@ import { METRIC_NAMES, type MetricName, type MetricSet } from './types.js'
 export function maseScale(inSample: readonly number[], seasonLength: number): number | null {
   const lag = seasonLength > 1 && inSample.length > seasonLength ? seasonLength : 1
   if (inSample.length <= lag) return null
-  const diffs: number[] = []
-  for (let t = lag; t < inSample.length; t++) diffs.push(Math.abs(inSample[t] - inSample[t - lag]))
-  const scale = sum(diffs) / diffs.length
+  start(0)
+  for (let t = lag; t < inSample.length; t++) add(0, Math.abs(inSample[t] - inSample[t - lag]))
+  const scale = total(0) / (inSample.length - lag)
   return scale > 0 && Number.isFinite(scale) ? scale : null
 }
 
@@ -48,31 +72,36 @@ export function computeMetrics(
   if (n === 0 || forecast.length !== n) {
     throw new EngineInputError('invalid-option', `metrics need equal, non-zero lengths (got ${n} and ${forecast.length})`)
   }
-  const absErr: number[] = []
-  const sqErr: number[] = []
-  const absAct: number[] = []
-  const pctErr: number[] = []
-  const symErr: number[] = []
+  // Sums: 1 |e|, 2 e^2, 3 |actual|, 4 |e| / |actual| (non-zero actuals), 5 symmetric terms.
+  for (let k = 1; k <= 5; k++) start(k)
+  let pctCount = 0
   for (let t = 0; t < n; t++) {
     const e = actual[t] - forecast[t]
     const a = Math.abs(e)
-    absErr.push(a)
-    sqErr.push(e * e)
-    absAct.push(Math.abs(actual[t]))
-    if (actual[t] !== 0) pctErr.push(a / Math.abs(actual[t]))
+    add(1, a)
+    add(2, e * e)
+    add(3, Math.abs(actual[t]))
+    if (actual[t] !== 0) {
+      add(4, a / Math.abs(actual[t]))
+      pctCount++
+    }
     const denom = Math.abs(actual[t]) + Math.abs(forecast[t])
-    symErr.push(denom === 0 ? 0 : (2 * a) / denom)
+    add(5, denom === 0 ? 0 : (2 * a) / denom)
   }
-  const mae = sum(absErr) / n
-  const sumAbsActual = sum(absAct)
+  const sumAbs = total(1)
+  const mae = sumAbs / n
+  const rmse = Math.sqrt(total(2) / n)
+  const sumAbsActual = total(3)
+  const mape = pctCount > 0 ? (100 * total(4)) / pctCount : null
+  const smape = (100 * total(5)) / n
   const scale = maseScale(inSample, seasonLength)
   return finite({
     mae,
-    rmse: Math.sqrt(sum(sqErr) / n),
-    mape: pctErr.length > 0 ? (100 * sum(pctErr)) / pctErr.length : null,
-    smape: (100 * sum(symErr)) / n,
+    rmse,
+    mape,
+    smape,
     mase: scale === null ? null : mae / scale,
-    wape: sumAbsActual > 0 ? sum(absErr) / sumAbsActual : null,
+    wape: sumAbsActual > 0 ? sumAbs / sumAbsActual : null,
   })
 }
 
@@ -92,8 +121,15 @@ function finite(set: Record<MetricName, number | null>): MetricSet {
 export function averageMetrics(sets: readonly MetricSet[]): MetricSet {
   const out = {} as Record<MetricName, number | null>
   for (const name of METRIC_NAMES) {
-    const defined = sets.map((s) => s[name]).filter((v): v is number => v !== null)
-    out[name] = defined.length > 0 ? sum(defined) / defined.length : null
+    start(0)
+    let defined = 0
+    for (const set of sets) {
+      const v = set[name]
+      if (v === null) continue
+      add(0, v)
+      defined++
+    }
+    out[name] = defined > 0 ? total(0) / defined : null
   }
   return out
 }

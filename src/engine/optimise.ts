@@ -6,8 +6,8 @@
  * Deterministic: fixed start simplex (start plus `step` along each axis, turned
  * back inwards when it would leave the box), no randomness, evaluation cap.
  * A non-finite objective value is treated as +Infinity.
- * Pure; allocates only at the start of a call (small plain arrays, which V8
- * creates faster than typed arrays), never per evaluation.
+ * Pure in effect; working arrays are reused across calls (see `pool`), so a call
+ * allocates only its result.
  */
 
 export interface NelderMeadOptions {
@@ -27,6 +27,68 @@ export interface NelderMeadResult {
   readonly converged: boolean
 }
 
+/** Per-dimension working arrays of one call (plain arrays: V8 reads them as fast as typed ones). */
+interface Workspace {
+  readonly pts: number[][]
+  readonly vals: number[]
+  readonly order: number[]
+  readonly centroid: number[]
+  readonly xr: number[]
+  readonly xe: number[]
+  readonly xc: number[]
+  busy: boolean
+}
+
+function zeros(d: number): number[] {
+  const a: number[] = []
+  for (let j = 0; j < d; j++) a.push(0)
+  return a
+}
+
+/**
+ * Workspaces reused across calls, by dimension (fits call this thousands of times a
+ * second; fresh arrays and closures per call were a measurable share of the garbage).
+ * A nested call (an objective that minimises) gets a workspace of its own.
+ */
+const pool: Workspace[][] = []
+
+function acquire(d: number): Workspace {
+  const free = (pool[d] ??= [])
+  for (const w of free) {
+    if (!w.busy) {
+      w.busy = true
+      return w
+    }
+  }
+  const pts: number[][] = []
+  for (let i = 0; i <= d; i++) pts.push(zeros(d))
+  const w: Workspace = { pts, vals: zeros(d + 1), order: zeros(d + 1), centroid: zeros(d), xr: zeros(d), xe: zeros(d), xc: zeros(d), busy: true }
+  free.push(w)
+  return w
+}
+
+function clampInto(x: number[], lower: ArrayLike<number>, upper: ArrayLike<number>, d: number): void {
+  for (let j = 0; j < d; j++) {
+    const v = x[j]
+    x[j] = v >= lower[j] ? (v <= upper[j] ? v : upper[j]) : lower[j]
+  }
+}
+
+/** out = centroid + coef * (centroid - worst), clamped into the box. */
+function along(out: number[], centroid: readonly number[], coef: number, worst: readonly number[], lower: ArrayLike<number>, upper: ArrayLike<number>, d: number): void {
+  for (let j = 0; j < d; j++) out[j] = centroid[j] + coef * (centroid[j] - worst[j])
+  clampInto(out, lower, upper, d)
+}
+
+function copy(to: number[], from: readonly number[], d: number): void {
+  for (let j = 0; j < d; j++) to[j] = from[j]
+}
+
+/** A non-finite objective value counts as +Infinity. */
+function finiteOrInfinity(v: number): number {
+  return Number.isFinite(v) ? v : Infinity
+}
+
 /**
  * Minimise `objective` over the box [lower, upper].
  * The objective receives a scratch array it must not keep.
@@ -39,62 +101,45 @@ export function minimiseNelderMead(
   options: NelderMeadOptions = {},
 ): NelderMeadResult {
   const d = start.length
+  const w = acquire(d)
+  try {
+    return search(objective, start, lower, upper, options, d, w)
+  } finally {
+    w.busy = false
+  }
+}
+
+function search(
+  objective: (x: readonly number[]) => number,
+  start: ArrayLike<number>,
+  lower: ArrayLike<number>,
+  upper: ArrayLike<number>,
+  options: NelderMeadOptions,
+  d: number,
+  w: Workspace,
+): NelderMeadResult {
   const maxEval = options.maxEvaluations ?? 200
   const relTol = options.relTol ?? 1e-4
   const absTol = options.absTol ?? 1e-12
   const stepFraction = options.step ?? 0.1
-
-  const clampInto = (x: number[]): void => {
-    for (let j = 0; j < d; j++) {
-      const v = x[j]
-      x[j] = v >= lower[j] ? (v <= upper[j] ? v : upper[j]) : lower[j]
-    }
-  }
+  const { pts, vals, order, centroid, xr, xe, xc } = w
   let evaluations = 0
-  const evaluate = (x: number[]): number => {
-    evaluations++
-    const v = objective(x)
-    return Number.isFinite(v) ? v : Infinity
-  }
 
-  const pts: number[][] = []
-  const vals: number[] = []
   for (let i = 0; i <= d; i++) {
-    const p: number[] = []
-    for (let j = 0; j < d; j++) p.push(start[j])
-    clampInto(p)
+    const p = pts[i]
+    for (let j = 0; j < d; j++) p[j] = start[j]
+    clampInto(p, lower, upper, d)
     if (i > 0) {
       const j = i - 1
       const width = upper[j] - lower[j]
       const h = stepFraction * width
       p[j] = p[j] + h <= upper[j] ? p[j] + h : p[j] - h
-      clampInto(p)
+      clampInto(p, lower, upper, d)
     }
-    pts.push(p)
-    vals.push(evaluate(p))
-  }
-  const order: number[] = []
-  const centroid: number[] = []
-  const xr: number[] = []
-  const xe: number[] = []
-  const xc: number[] = []
-  for (let i = 0; i <= d; i++) order.push(i)
-  for (let j = 0; j < d; j++) {
-    centroid.push(0)
-    xr.push(0)
-    xe.push(0)
-    xc.push(0)
-  }
-  const copy = (to: number[], from: readonly number[]): void => {
-    for (let j = 0; j < d; j++) to[j] = from[j]
+    evaluations++
+    vals[i] = finiteOrInfinity(objective(p))
   }
   let converged = false
-
-  const along = (out: number[], coef: number, worst: readonly number[]): void => {
-    // out = centroid + coef * (centroid - worst)
-    for (let j = 0; j < d; j++) out[j] = centroid[j] + coef * (centroid[j] - worst[j])
-    clampInto(out)
-  }
 
   for (;;) {
     // Insertion sort of vertex indices by value (d is tiny; ties keep index order).
@@ -126,31 +171,34 @@ export function minimiseNelderMead(
     for (let j = 0; j < d; j++) centroid[j] /= d
 
     const pw = pts[worst]
-    along(xr, 1, pw)
-    const fr = evaluate(xr)
+    along(xr, centroid, 1, pw, lower, upper, d)
+    evaluations++
+    const fr = finiteOrInfinity(objective(xr))
     if (fr < fb) {
-      along(xe, 2, pw)
-      const fe = evaluate(xe)
+      along(xe, centroid, 2, pw, lower, upper, d)
+      evaluations++
+      const fe = finiteOrInfinity(objective(xe))
       if (fe < fr) {
-        copy(pw, xe)
+        copy(pw, xe, d)
         vals[worst] = fe
       } else {
-        copy(pw, xr)
+        copy(pw, xr, d)
         vals[worst] = fr
       }
       continue
     }
     if (fr < vals[second]) {
-      copy(pw, xr)
+      copy(pw, xr, d)
       vals[worst] = fr
       continue
     }
     // Contraction: outside if the reflection improved on the worst, else inside.
     const outside = fr < fw
-    along(xc, outside ? 0.5 : -0.5, pw)
-    const fc = evaluate(xc)
+    along(xc, centroid, outside ? 0.5 : -0.5, pw, lower, upper, d)
+    evaluations++
+    const fc = finiteOrInfinity(objective(xc))
     if (fc < (outside ? fr : fw)) {
-      copy(pw, xc)
+      copy(pw, xc, d)
       vals[worst] = fc
       continue
     }
@@ -160,7 +208,8 @@ export function minimiseNelderMead(
       if (i === best) continue
       const p = pts[i]
       for (let j = 0; j < d; j++) p[j] = pb[j] + 0.5 * (p[j] - pb[j])
-      vals[i] = evaluate(p)
+      evaluations++
+      vals[i] = finiteOrInfinity(objective(p))
     }
   }
 

@@ -44,6 +44,48 @@ const REFINE_EVALUATIONS = 40
 /** Gauss-Newton steps per re-estimate of multiplicative states (measured: more change little). */
 const GAUSS_NEWTON_STEPS = 1
 
+interface Buffers {
+  /** The scaled series (n). */
+  readonly y: Float64Array
+  /** Seasonal scratch for the kernels (m, or empty without season). */
+  readonly scratch: Float64Array
+  /** Initial seasonal states (m, or empty). */
+  readonly s0: Float64Array
+  /** States [l, b, s...] from the state estimators (2 + m, or 2). */
+  readonly lsStates: Float64Array
+  readonly lsWork: Float64Array
+}
+
+/**
+ * Buffers by (n, m, seasonal kind), reused by later fits of the same shape: a fresh
+ * Float64Array of more than 8 elements is allocated off-heap by V8, at a cost comparable
+ * to a whole SSE evaluation, and selection fits many models to series of one length.
+ * Nothing a fit returns refers to them (smoothingFit copies what it keeps). The cache is
+ * emptied when it holds many shapes.
+ */
+const bufferCache = new Map<string, Buffers>()
+const BUFFER_SHAPES = 32
+
+function buffersFor(n: number, m: number, kind: 'add' | 'mul' | null): Buffers {
+  const key = `${n}:${m}:${kind ?? ''}`
+  const cached = bufferCache.get(key)
+  if (cached) return cached
+  const ms = kind ? m : 0
+  const lsSize = kind === null ? 0 : kind === 'mul' ? multiplicativeWorkspace(m) : leastSquaresWorkspace(n, m)
+  // Layout: y (n) | seasonal scratch (ms) | states [l, b, s...] (2 + ms) | LS states (2 + ms) | LS workspace.
+  const work = new Float64Array(n + ms + 2 * (2 + ms) + lsSize)
+  const buffers: Buffers = {
+    y: work.subarray(0, n),
+    scratch: work.subarray(n, n + ms),
+    s0: work.subarray(n + ms + 2, n + ms + 2 + ms),
+    lsStates: work.subarray(n + ms + 2 + ms, n + ms + 2 * (2 + ms)),
+    lsWork: work.subarray(n + ms + 2 * (2 + ms)),
+  }
+  if (bufferCache.size >= BUFFER_SHAPES) bufferCache.clear()
+  bufferCache.set(key, buffers)
+  return buffers
+}
+
 /**
  * Fit one smoothing model. `ctx.initialParams` (alpha, beta, gamma, phi), when given,
  * is the optimiser's starting point. Returned params: alpha, beta (component form, as
@@ -58,25 +100,16 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   const n = series.length
   const m = shape.seasonal ? ctx.seasonLength : 1
   const scale = checkedScale(shape, series, m)
-  // One allocation for every buffer of this fit (V8 allocates Float64Arrays longer than
-  // 8 elements off-heap, at a cost comparable to a whole SSE evaluation).
-  // Layout: y (n) | seasonal scratch (m) | states [l, b, s...] (2 + m) | LS states (2 + m) | LS workspace.
   // Seasonal models re-estimate their initial states after the first search; the trend
   // models profile them out of every evaluation (sseTrendProfiled); SES starts at y[0].
   const refinable = shape.seasonal !== null
   const ms = shape.seasonal ? m : 0
-  const lsSize = !refinable ? 0 : shape.seasonal === 'mul' ? multiplicativeWorkspace(m) : leastSquaresWorkspace(n, m)
-  const work = new Float64Array(n + m + 2 * (2 + ms) + lsSize)
-  const y = work.subarray(0, n)
-  const scratch = work.subarray(n, n + ms)
-  const lsStates = work.subarray(n + m + 2 + ms, n + m + 2 * (2 + ms))
-  const lsWork = work.subarray(n + m + 2 * (2 + ms))
+  const { y, scratch, s0, lsStates, lsWork } = buffersFor(n, m, shape.seasonal)
   for (let t = 0; t < n; t++) y[t] = series[t] / scale
 
   // Initial states on the scaled series.
   let l0: number
   let b0 = 0
-  const s0 = work.subarray(n + m + 2, n + m + 2 + ms)
   if (shape.seasonal) {
     const init = initialSeasonalStates(y, m, shape.seasonal, s0, undefined, shape.trend !== 'none')
     l0 = init.level
@@ -191,5 +224,5 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   const beta = iB >= 0 ? best.x[iB] : 0
   const gamma = iG >= 0 ? best.x[iG] * (1 - alpha) : 0
   const phi = iP >= 0 ? best.x[iP] : 1
-  return smoothingFit(shape, y, scale, m, { alpha, beta, gamma, phi, level: l0, trend: b0, seasonal: s0 })
+  return smoothingFit(shape, series, y, scale, m, { alpha, beta, gamma, phi, level: l0, trend: b0, seasonal: s0 })
 }

@@ -83,15 +83,65 @@ export function runSmoothing(series: ArrayLike<number>, setup: SmoothingSetup): 
   }
   const s = new Float64Array(m)
   if (kind && init) for (let j = 0; j < m; j++) s[j] = init[j]
-  let l = setup.initial.level
-  let b = setup.initial.trend ?? 0
+  for (let t = 0; t < n; t++) {
+    if (!Number.isFinite(series[t])) throw new EngineInputError('non-finite-value', `values[${t}] is not a finite number`, `values[${t}]`)
+  }
   const fitted = new Array<number>(n)
   const residuals = new Array<number>(n)
+  const end = smoothingPass(series, alpha, beta, gamma, phi, kind, s, setup.initial.level, setup.initial.trend ?? 0, fitted, residuals)
+  const seasonalAhead = seasonalAheadOf(s, kind, n)
+  const { level: l, trend: b } = end
+  return {
+    fitted,
+    residuals,
+    sse: end.sse,
+    level: l,
+    trend: b,
+    seasonalAhead,
+    phi,
+    seasonal: kind,
+    forecast: (horizon) => forecastStates(l, b, phi, kind, seasonalAhead, horizon),
+  }
+}
+
+/** Where one pass of the recursion ends. */
+export interface PassEnd {
+  readonly sse: number
+  readonly level: number
+  readonly trend: number
+  /** The first one-step error (SES drops it: its level starts at y[0]). */
+  readonly firstResidual: number
+}
+
+/**
+ * One pass of the recursion above over finite `series` with valid parameters; `s` holds
+ * the m seasonal states (length 1 and unused without season) and is left at the final
+ * states. Writes fitted values and residuals when arrays are given: the same arithmetic
+ * either way, so a pass without arrays ends in exactly the same states and SSE.
+ * @throws EngineInputError if a state becomes non-finite
+ */
+export function smoothingPass(
+  series: ArrayLike<number>,
+  alpha: number,
+  beta: number,
+  gamma: number,
+  phi: number,
+  kind: SeasonalKind | null,
+  s: Float64Array,
+  level: number,
+  trend: number,
+  fitted: number[] | null,
+  residuals: number[] | null,
+): PassEnd {
+  const n = series.length
+  const m = s.length
+  let l = level
+  let b = trend
   let sse = 0
+  let first = NaN
   let j = 0
   for (let t = 0; t < n; t++) {
     const y = series[t]
-    if (!Number.isFinite(y)) throw new EngineInputError('non-finite-value', `values[${t}] is not a finite number`, `values[${t}]`)
     const base = l + phi * b
     const sj = s[j]
     let f: number
@@ -110,28 +160,27 @@ export function runSmoothing(series: ArrayLike<number>, setup: SmoothingSetup): 
     }
     b = beta * (lNew - l) + (1 - beta) * phi * b
     l = lNew
-    fitted[t] = f
     const e = y - f
-    residuals[t] = e
+    if (fitted !== null) fitted[t] = f
+    if (residuals !== null) residuals[t] = e
+    if (t === 0) first = e
     sse += e * e
     if (++j === m) j = 0
   }
-  if (!Number.isFinite(sse) || !Number.isFinite(l) || !Number.isFinite(b) || !s.every(Number.isFinite)) {
+  let finiteStates = Number.isFinite(sse) && Number.isFinite(l) && Number.isFinite(b)
+  for (let k = 0; k < m && finiteStates; k++) finiteStates = Number.isFinite(s[k])
+  if (!finiteStates) {
     throw new EngineInputError('non-finite-value', 'smoothing states became non-finite for these parameters')
   }
-  const seasonalAhead = new Array<number>(m)
-  for (let k = 0; k < m; k++) seasonalAhead[k] = kind ? s[(n + k) % m] : 0
-  return {
-    fitted,
-    residuals,
-    sse,
-    level: l,
-    trend: b,
-    seasonalAhead,
-    phi,
-    seasonal: kind,
-    forecast: (horizon) => forecastStates(l, b, phi, kind, seasonalAhead, horizon),
-  }
+  return { sse, level: l, trend: b, firstResidual: first }
+}
+
+/** Seasonal states for the next m periods after n observations (zeros without season). */
+export function seasonalAheadOf(s: Float64Array, kind: SeasonalKind | null, n: number): number[] {
+  const m = s.length
+  const out = new Array<number>(m)
+  for (let k = 0; k < m; k++) out[k] = kind ? s[(n + k) % m] : 0
+  return out
 }
 
 /** level + (phi + ... + phi^h) * trend, combined with the seasonal state for that period. */

@@ -46,6 +46,11 @@ function errors(
   }
 }
 
+/** <R_j, R_k> from the lagged sums P (see leastSquaresStates). */
+function lagged(work: Float64Array, pAt: number, ms: number, j: number, k: number): number {
+  return work[pAt + Math.abs(j - k) * ms + Math.max(j, k)]
+}
+
 /** Doubles of workspace `leastSquaresStates` needs for n points and season length m (0 or 1: none). */
 export function leastSquaresWorkspace(n: number, m: number): number {
   const ms = m > 1 ? m : 0
@@ -101,7 +106,6 @@ export function leastSquaresStates(
     s.fill(0)
     errors(null, n, alpha, beta, gamma, phi, 0, 1, s, work, tAt)
   }
-  const a = (i: number, k: number): number => aAt + i * p + k
   // Level and trend block, and their right-hand sides: A x = -J' e(0).
   let ll = 0
   let le = 0
@@ -120,11 +124,11 @@ export function leastSquaresStates(
       te += tr * e
     }
   }
-  work[a(0, 0)] = ll
+  work[aAt] = ll
   work[rhsAt] = -le
   if (hasTrend) {
-    work[a(1, 0)] = lt
-    work[a(1, 1)] = tt
+    work[aAt + p] = lt
+    work[aAt + p + 1] = tt
     work[rhsAt + 1] = -te
   }
   if (ms > 0) {
@@ -159,41 +163,40 @@ export function leastSquaresStates(
       work[xAt + ms + j] = xl
       work[xAt + 2 * ms + j] = xt
     }
-    const rr = (j: number, k: number): number => work[pAt + Math.abs(j - k) * ms + Math.max(j, k)]
-    const rLastLast = rr(last, last)
+    const rLastLast = lagged(work, pAt, ms, last, last)
     for (let j = 0; j < last; j++) {
       const i = first + j
-      work[a(i, 0)] = work[xAt + ms + j] - work[xAt + ms + last]
-      if (hasTrend) work[a(i, 1)] = work[xAt + 2 * ms + j] - work[xAt + 2 * ms + last]
-      const rjLast = rr(j, last)
-      for (let k = 0; k <= j; k++) work[a(i, first + k)] = rr(j, k) - rjLast - rr(last, k) + rLastLast
+      work[aAt + i * p] = work[xAt + ms + j] - work[xAt + ms + last]
+      if (hasTrend) work[aAt + i * p + 1] = work[xAt + 2 * ms + j] - work[xAt + 2 * ms + last]
+      const rjLast = lagged(work, pAt, ms, j, last)
+      for (let k = 0; k <= j; k++) work[aAt + i * p + first + k] = lagged(work, pAt, ms, j, k) - rjLast - lagged(work, pAt, ms, last, k) + rLastLast
       work[rhsAt + i] = -(work[xAt + j] - work[xAt + last])
     }
   }
   let trace = 0
-  for (let i = 0; i < p; i++) trace += work[a(i, i)]
+  for (let i = 0; i < p; i++) trace += work[aAt + i * p + i]
   const ridge = 1e-10 * (trace / p) + 1e-300
-  for (let i = 0; i < p; i++) work[a(i, i)] += ridge
+  for (let i = 0; i < p; i++) work[aAt + i * p + i] += ridge
   // Cholesky (lower triangle in place), then two triangular solves.
   for (let i = 0; i < p; i++) {
     for (let k = 0; k <= i; k++) {
-      let v = work[a(i, k)]
-      for (let q = 0; q < k; q++) v -= work[a(i, q)] * work[a(k, q)]
+      let v = work[aAt + i * p + k]
+      for (let q = 0; q < k; q++) v -= work[aAt + i * p + q] * work[aAt + k * p + q]
       if (i === k) {
         if (!(v > 0)) return false
-        work[a(i, i)] = Math.sqrt(v)
-      } else work[a(i, k)] = v / work[a(k, k)]
+        work[aAt + i * p + i] = Math.sqrt(v)
+      } else work[aAt + i * p + k] = v / work[aAt + k * p + k]
     }
   }
   for (let i = 0; i < p; i++) {
     let v = work[rhsAt + i]
-    for (let q = 0; q < i; q++) v -= work[a(i, q)] * work[rhsAt + q]
-    work[rhsAt + i] = v / work[a(i, i)]
+    for (let q = 0; q < i; q++) v -= work[aAt + i * p + q] * work[rhsAt + q]
+    work[rhsAt + i] = v / work[aAt + i * p + i]
   }
   for (let i = p - 1; i >= 0; i--) {
     let v = work[rhsAt + i]
-    for (let q = i + 1; q < p; q++) v -= work[a(q, i)] * work[rhsAt + q]
-    work[rhsAt + i] = v / work[a(i, i)]
+    for (let q = i + 1; q < p; q++) v -= work[aAt + q * p + i] * work[rhsAt + q]
+    work[rhsAt + i] = v / work[aAt + i * p + i]
   }
   for (let i = 0; i < p; i++) if (!Number.isFinite(work[rhsAt + i])) return false
   out[0] = work[rhsAt]

@@ -68,25 +68,22 @@ function normalEquations(
   const n = y.length
   if (jacobian.length < n * p) jacobian = new Float64Array(n * p)
   const J = jacobian
-  // Tangents: dl (p) | db (p) | ds (m * p, row j for state s_j) | de (p), from tAt.
-  const dl = w.subarray(tAt, tAt + p)
-  const db = w.subarray(tAt + p, tAt + 2 * p)
-  const ds = w.subarray(tAt + 2 * p, tAt + (2 + m) * p)
-  const A = w.subarray(aAt, aAt + p * p)
-  const g = w.subarray(gAt, gAt + p)
-  A.fill(0)
-  g.fill(0)
-  dl.fill(0)
-  db.fill(0)
-  ds.fill(0)
-  dl[0] = 1
-  if (hasTrend) db[1] = 1
+  // Tangents (offsets into w, no views: a view is an allocation): dl (p) | db (p) |
+  // ds (m * p, row j for state s_j), from tAt.
+  const dl = tAt
+  const db = tAt + p
+  const ds = tAt + 2 * p
+  w.fill(0, aAt, aAt + p * p)
+  w.fill(0, gAt, gAt + p)
+  w.fill(0, tAt, tAt + (2 + m) * p)
+  w[dl] = 1
+  if (hasTrend) w[db + 1] = 1
   let sum = 0
   for (let j = 0; j + 1 < m; j++) {
     s[j] = x[2 + j]
     sum += s[j]
-    ds[j * p + 2 + j] = 1
-    ds[(m - 1) * p + 2 + j] = -1
+    w[ds + j * p + 2 + j] = 1
+    w[ds + (m - 1) * p + 2 + j] = -1
   }
   s[m - 1] = m - sum
   let l = x[0]
@@ -107,20 +104,20 @@ function normalEquations(
     const e = yt - base * sj
     const cs = (alpha * yt) / (sj * sj) // -d lNew / d s_j
     const cb = (gamma * yt) / (base * base) // -d sNew / d base
-    const row = j * p
+    const row = ds + j * p
     if (live < p) live = t + 1 >= m - 1 ? p : Math.max(live, Math.min(p, t + 3))
     for (let i = 0; i < live; i++) {
-      const dli = dl[i]
-      const dbi = db[i]
+      const dli = w[dl + i]
+      const dbi = w[db + i]
       const dbase = dli + phi * dbi
-      const dsj = ds[row + i]
+      const dsj = w[row + i]
       const di = -(dbase * sj + base * dsj)
       J[i * n + t] = di
-      g[i] -= di * e
+      w[gAt + i] -= di * e
       const dlNew = a1 * dbase - cs * dsj
-      db[i] = beta * (dlNew - dli) + pb1 * dbi
-      dl[i] = dlNew
-      ds[row + i] = g1 * dsj - cb * dbase
+      w[db + i] = beta * (dlNew - dli) + pb1 * dbi
+      w[dl + i] = dlNew
+      w[row + i] = g1 * dsj - cb * dbase
     }
     const lNew = (alpha * yt) / sj + a1 * base
     b = beta * (lNew - l) + pb1 * b

@@ -3,13 +3,12 @@ import { RunSettings, SeriesItem, type RunRequest } from '../schemas/run.js'
 import { isSeriesItem } from '../schemas/series-check.js'
 import { z } from 'zod'
 import {
-  decodeCursor,
   decodeRunRecord,
-  encodeCursor,
   newRunFields,
   type ChunkTally,
 } from './codec.js'
 import { loadItem, storeItem } from './item-codec.js'
+import { readStoredPage } from './result-pages.js'
 import { latestKey, runKeys, isValidRunId, isValidTenant } from './keys.js'
 import { decodeLatest, decodePoints, recordTail, type ForecastPoints, type LatestRecord } from './latest-record.js'
 import { legacySnapshotsKey, takeLegacySnapshots } from './legacy-snapshots.js'
@@ -220,30 +219,9 @@ export class RunStore {
     runId: string,
     page: { readonly limit: number; readonly cursor?: string; readonly sku?: string },
   ): Promise<ResultPage | null> {
-    if (!isValidTenant(tenant) || !isValidRunId(runId)) return null
-    const k = this.keys(tenant, runId)
-    if (!(await this.redis.exists(k.run))) return null
-    if (page.sku !== undefined) {
-      const stored = await this.redis.hgetBuffer(k.items, page.sku)
-      return { items: stored === null ? [] : [loadItem(page.sku, stored)], nextCursor: null }
-    }
-    let from = '-'
-    if (page.cursor !== undefined) {
-      const after = decodeCursor(page.cursor)
-      if (after === null) throw new RunInputError('invalid-cursor', 'cursor is not one this service issued', 'cursor')
-      from = `(${after}`
-    }
-    const limit = Math.max(1, Math.floor(page.limit))
-    const skus = await this.redis.zrangebylex(k.skus, from, '+', 'LIMIT', 0, limit + 1)
-    const pageSkus = skus.slice(0, limit)
-    const stored = pageSkus.length > 0 ? await this.redis.hmgetBuffer(k.items, ...pageSkus) : []
-    const items: ResultItem[] = []
-    pageSkus.forEach((sku, i) => {
-      const value = stored[i]
-      if (value != null) items.push(loadItem(sku, value))
-    })
-    const last = pageSkus[pageSkus.length - 1]
-    return { items, nextCursor: skus.length > limit && last !== undefined ? encodeCursor(last) : null }
+    const stored = await readStoredPage(this.redis, this.opts.prefix, tenant, runId, page)
+    if (stored === null) return null
+    return { items: stored.items.map(([sku, value]) => loadItem(sku, value)), nextCursor: stored.nextCursor }
   }
 
   /**

@@ -61,10 +61,15 @@ interface Buffers {
  * Float64Array of more than 8 elements is allocated off-heap by V8, at a cost comparable
  * to a whole SSE evaluation, and selection fits many models to series of one length.
  * Nothing a fit returns refers to them (smoothingFit copies what it keeps). The cache is
- * emptied when it holds many shapes.
+ * emptied when it holds many shapes or doubles; large buffers (long seasons, e.g. daily
+ * data with m = 365) are not kept, their fit costs far more than the allocation.
  */
 const bufferCache = new Map<string, Buffers>()
 const BUFFER_SHAPES = 32
+/** Doubles kept at most per cached shape and in all (64 Ki doubles = 512 KiB; 2 MiB). */
+const BUFFER_KEEP = 1 << 16
+const BUFFER_TOTAL = 1 << 18
+let cachedDoubles = 0
 
 function buffersFor(n: number, m: number, kind: 'add' | 'mul' | null): Buffers {
   const key = `${n}:${m}:${kind ?? ''}`
@@ -81,8 +86,13 @@ function buffersFor(n: number, m: number, kind: 'add' | 'mul' | null): Buffers {
     lsStates: work.subarray(n + ms + 2 + ms, n + ms + 2 * (2 + ms)),
     lsWork: work.subarray(n + ms + 2 * (2 + ms)),
   }
-  if (bufferCache.size >= BUFFER_SHAPES) bufferCache.clear()
+  if (work.length > BUFFER_KEEP) return buffers
+  if (bufferCache.size >= BUFFER_SHAPES || cachedDoubles + work.length > BUFFER_TOTAL) {
+    bufferCache.clear()
+    cachedDoubles = 0
+  }
   bufferCache.set(key, buffers)
+  cachedDoubles += work.length
   return buffers
 }
 

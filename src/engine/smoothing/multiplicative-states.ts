@@ -48,8 +48,13 @@ function errorSum(y: Float64Array, alpha: number, beta: number, gamma: number, p
   return Number.isFinite(sse) ? sse : Infinity
 }
 
-/** Jacobian rows of the last `normalEquations` call, column-major (n per column); grown on demand. */
+/**
+ * Jacobian of the last `normalEquations` call, column-major (n per column): module
+ * scratch grown on demand up to JACOBIAN_KEEP doubles (512 KiB); larger problems
+ * (e.g. m = 365) get a buffer of their own per call, not kept.
+ */
 let jacobian = new Float64Array(0)
+const JACOBIAN_KEEP = 1 << 16
 
 /**
  * Fills A = J'J (lower triangle, p x p at aAt) and g = -J'e (at gAt) for states x, with
@@ -66,8 +71,11 @@ function normalEquations(
   const m = s.length
   const p = m + 1
   const n = y.length
-  if (jacobian.length < n * p) jacobian = new Float64Array(n * p)
-  const J = jacobian
+  let J = jacobian
+  if (J.length < n * p) {
+    J = new Float64Array(n * p)
+    if (n * p <= JACOBIAN_KEEP) jacobian = J
+  }
   // Tangents (offsets into w, no views: a view is an allocation): dl (p) | db (p) |
   // ds (m * p, row j for state s_j), from tAt.
   const dl = tAt

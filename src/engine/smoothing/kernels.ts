@@ -128,6 +128,7 @@ export function sseSeasonalMul(
  */
 export function sseTrendProfiled(y: Float64Array, alpha: number, beta: number, phi: number, states?: Float64Array): number {
   const k = phi * alpha * beta
+  const a1 = 1 - alpha
   let ly = 0
   let py = 0
   let l1 = 1
@@ -141,21 +142,25 @@ export function sseTrendProfiled(y: Float64Array, alpha: number, beta: number, p
   let g1 = 0
   let g2 = 0
   for (let t = 0; t < y.length; t++) {
-    const ey = y[t] - ly - py
-    const e1 = -l1 - p1
-    const e2 = -l2 - p2
+    // As sseTrend: l' = (1 - alpha) base + alpha y, pb' = phi pb + k y - k base, so each
+    // step's dependency chain is base -> product -> sum (the responses run on y = 0).
+    const yt = y[t]
+    const by = ly + py
+    const b1 = l1 + p1
+    const b2 = l2 + p2
+    const ey = yt - by
     yy += ey * ey
-    a11 += e1 * e1
-    a12 += e1 * e2
-    a22 += e2 * e2
-    g1 += e1 * ey
-    g2 += e2 * ey
-    ly += py + alpha * ey
-    py = phi * py + k * ey
-    l1 += p1 + alpha * e1
-    p1 = phi * p1 + k * e1
-    l2 += p2 + alpha * e2
-    p2 = phi * p2 + k * e2
+    a11 += b1 * b1
+    a12 += b1 * b2
+    a22 += b2 * b2
+    g1 -= b1 * ey
+    g2 -= b2 * ey
+    ly = a1 * by + alpha * yt
+    py = phi * py + k * yt - k * by
+    l1 = a1 * b1
+    p1 = phi * p1 - k * b1
+    l2 = a1 * b2
+    p2 = phi * p2 - k * b2
   }
   const det = a11 * a22 - a12 * a12
   let level: number

@@ -1,5 +1,5 @@
 import { formatPeriod, parsePeriod, type ForecastPoint, type Frequency } from '../engine/index.js'
-import { round } from './item-codec.js'
+import { round } from './item-common.js'
 import { isValidRunId } from './keys.js'
 
 /**

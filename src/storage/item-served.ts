@@ -1,0 +1,294 @@
+import { METRIC_NAMES, type ForecastPoint, type MetricSet, type ModelParams } from '../engine/index.js'
+import { EXACT, POWERS_OF_TEN, REPLENISHMENT_FIELDS, j4, jv, r4, r7, round, roundedJson } from './item-common.js'
+import type { ResultItem, StoredLeaderboardEntry } from './types.js'
+
+/**
+ * The JSON text of an item as served (what JSON.stringify(decodeItem(sku,
+ * encodeItem(item))) gives, byte for byte) without its sku: `{"model":...}` or
+ * `{"error":...}`. Written straight from the engine result with the same
+ * rounding as encodeItem, so a results page is the stored text with the sku
+ * put in front (no parsing, no objects per item: decoding and re-serialising
+ * pages took most of the API's CPU in bench:e2e).
+ */
+export function servedBody(item: ResultItem): string {
+  return servedBytes(item).toString('utf8')
+}
+
+/**
+ * servedBody as UTF-8 bytes, written straight into a kept buffer (a view of
+ * it, valid until the next call): building the text as a string took ~300
+ * concatenations per item, and then a copy to encode it for deflate.
+ */
+export function servedBytes(item: ResultItem): Buffer {
+  pos = 0
+  if ('error' in item) {
+    text('{"error":{"code":')
+    value(item.error.code)
+    text(',"message":')
+    value(item.error.message)
+    text('}}')
+    return buf.subarray(0, pos)
+  }
+  const s = item.selection
+  text('{"model":')
+  value(item.model)
+  text(',"family":')
+  value(item.family)
+  text(',"params":')
+  params(item.params)
+  text(',"selection":{"method":')
+  value(s.method)
+  text(',"metric":')
+  value(s.metric)
+  text(',"holdout":')
+  value(s.holdout)
+  text(',"origins":')
+  value(s.origins)
+  text('},"metrics":')
+  metrics(item.metrics)
+  text(',"leaderboard":[')
+  const board = item.leaderboard
+  for (let i = 0; i < board.length; i++) {
+    if (i > 0) text(',')
+    entry(board[i]!)
+  }
+  text('],"forecast":[')
+  const points = item.forecast
+  const lower = boundKeys(points, 'lower')
+  const upper = boundKeys(points, 'upper')
+  for (let i = 0; i < points.length; i++) {
+    const p = points[i]!
+    text(i === 0 ? '{"period":' : ',{"period":')
+    value(p.period)
+    text(',"value":')
+    rounded(p.value, 7)
+    text(',"lower":')
+    bound(p.lower, lower)
+    text(',"upper":')
+    bound(p.upper, upper)
+    text('}')
+  }
+  const iv = item.intervals
+  text('],"intervals":{"method":')
+  value(iv.method)
+  text(',"levels":')
+  value(iv.levels)
+  text(',"clamped":')
+  value(iv.clamped)
+  text('},"warnings":[')
+  for (let i = 0; i < item.warnings.length; i++) {
+    const w = item.warnings[i]!
+    text(i === 0 ? '{"code":' : ',{"code":')
+    value(w.code)
+    text(',"message":')
+    value(w.message)
+    text('}')
+  }
+  text(']')
+  if (item.replenishment) {
+    const r = item.replenishment
+    for (let i = 0; i < REPLENISHMENT_FIELDS.length; i++) {
+      const k = REPLENISHMENT_FIELDS[i]!
+      text(i === 0 ? `,"replenishment":{"${k}":` : `,"${k}":`)
+      const v = r[k]
+      if (v === null || EXACT.has(k) || typeof v !== 'number') value(v === null || EXACT.has(k) ? v : r7(v))
+      else rounded(v, 7)
+    }
+    text(',"formula":')
+    value(r.formula)
+    text('}')
+  }
+  text('}')
+  return buf.subarray(0, pos)
+}
+
+let buf = Buffer.allocUnsafe(64 * 1024)
+let pos = 0
+
+function ensure(n: number): void {
+  if (pos + n <= buf.length) return
+  const grown = Buffer.allocUnsafe(Math.max(2 * buf.length, pos + n))
+  buf.copy(grown, 0, 0, pos)
+  buf = grown
+}
+
+/** Writes JS text (ASCII literals, or any string: UTF-8). */
+function text(s: string): void {
+  ensure(3 * s.length)
+  if (s.length <= 24) {
+    let ascii = true
+    for (let i = 0; i < s.length; i++) {
+      const c = s.charCodeAt(i)
+      if (c > 0x7e) {
+        ascii = false
+        break
+      }
+      buf[pos + i] = c
+    }
+    if (ascii) {
+      pos += s.length
+      return
+    }
+  }
+  pos += buf.write(s, pos, 'utf8')
+}
+
+/** Writes a value as jv would (strings through the quoted cache). */
+function value(v: unknown): void {
+  if (typeof v === 'string') {
+    let bytes = QUOTED_BYTES.get(v)
+    if (bytes === undefined) {
+      bytes = Buffer.from(JSON.stringify(v), 'utf8')
+      if (QUOTED_BYTES.size >= 4096) QUOTED_BYTES.clear()
+      if (v.length <= 256) QUOTED_BYTES.set(v, bytes)
+    }
+    ensure(bytes.length)
+    if (bytes.length <= 32) for (let i = 0; i < bytes.length; i++) buf[pos + i] = bytes[i]!
+    else bytes.copy(buf, pos)
+    pos += bytes.length
+    return
+  }
+  text(jv(v))
+}
+
+/** Quoted UTF-8 of strings that repeat from item to item (names, statuses, reasons, periods); bounded. */
+const QUOTED_BYTES = new Map<string, Buffer>()
+
+/** Writes roundedJson(x, digits) (for anything but a number: jv of round, as encodeItem stored it). */
+function rounded(x: unknown, digits: number): void {
+  if (typeof x !== 'number') return text(jv(round(x as number, digits)))
+  if (x - x !== 0) return text('null')
+  if (x === 0) return text('0')
+  const a = x < 0 ? -x : x
+  let p = digits - 1 - Math.floor(Math.log10(a))
+  let m: number
+  if (p >= 0 && p <= 22) {
+    const s = a * POWERS_OF_TEN[p]!
+    if (s - Math.floor(s) === 0.5) return text(jv(round(x, digits)))
+    m = Math.round(s)
+  } else if (p < 0 && p >= -14) {
+    const s = a / POWERS_OF_TEN[-p]!
+    if (s - Math.floor(s) === 0.5) return text(jv(round(x, digits)))
+    m = Math.round(s)
+  } else return text(jv(round(x, digits)))
+  while (m % 10 === 0) {
+    m /= 10
+    p--
+  }
+  let k = 1
+  while (k < 22 && m >= POWERS_OF_TEN[k]!) k++
+  if (p <= 0 ? k - p > 21 : p >= k && p - k >= 6) return text(jv(round(x, digits)))
+  ensure(k + (p <= 0 ? -p : p < k ? 1 : 2 + p - k) + 1)
+  if (x < 0) buf[pos++] = 0x2d
+  if (p <= 0) {
+    digitsAt(m, pos + k - 1, k)
+    pos += k
+    for (let z = 0; z < -p; z++) buf[pos++] = 0x30
+  } else if (p < k) {
+    // k - p integer digits, the point, p decimals
+    const end = pos + k + 1
+    let t = m
+    let i = end - 1
+    for (let j = 0; j < p; j++) {
+      const d = t % 10
+      buf[i--] = 0x30 + d
+      t = (t - d) / 10
+    }
+    buf[i--] = 0x2e
+    digitsAt(t, i, k - p)
+    pos = end
+  } else {
+    buf[pos++] = 0x30
+    buf[pos++] = 0x2e
+    for (let z = 0; z < p - k; z++) buf[pos++] = 0x30
+    digitsAt(m, pos + k - 1, k)
+    pos += k
+  }
+}
+
+/** Writes the n decimal digits of integer t ending at index last. */
+function digitsAt(t: number, last: number, n: number): void {
+  for (let j = 0; j < n; j++) {
+    const d = t % 10
+    buf[last - j] = 0x30 + d
+    t = (t - d) / 10
+  }
+}
+
+function metrics(m: MetricSet | null | undefined): void {
+  if (!m) return text('null')
+  for (let i = 0; i < METRIC_NAMES.length; i++) {
+    text(METRIC_KEYS[i]!)
+    const v = m[METRIC_NAMES[i]!]
+    if (v === null) text('null')
+    else rounded(v, 4)
+  }
+  text('}')
+}
+
+function params(p: ModelParams): void {
+  let first = true
+  for (const k in p) {
+    if (!Object.prototype.hasOwnProperty.call(p, k)) continue
+    const v = (p as Record<string, number | readonly number[]>)[k]!
+    text(first ? '{' : ',')
+    first = false
+    value(k)
+    text(':')
+    if (typeof v === 'number') rounded(v, 7)
+    else {
+      text('[')
+      for (let i = 0; i < v.length; i++) {
+        if (i > 0) text(',')
+        rounded(v[i], 7)
+      }
+      text(']')
+    }
+  }
+  text(first ? '{}' : '}')
+}
+
+function bound(b: Readonly<Record<string, number>>, keys: readonly [string, string][]): void {
+  text('{')
+  for (let i = 0; i < keys.length; i++) {
+    if (i > 0) text(',')
+    text(keys[i]![1])
+    rounded(b[keys[i]![0]], 7)
+  }
+  text('}')
+}
+
+function entry(e: StoredLeaderboardEntry): void {
+  text('{"model":')
+  value(e.model)
+  text(',"family":')
+  value(e.family)
+  text(',"status":')
+  value(e.status)
+  if (e.metrics) {
+    text(',"metrics":')
+    metrics(e.metrics)
+  }
+  // Left out when the rounded score is not a finite number (stored as null before).
+  if (typeof e.score === 'number' && j4(e.score) !== 'null') {
+    text(',"score":')
+    rounded(e.score, 4)
+  } else if (e.score !== undefined && typeof e.score !== 'number') {
+    const j = jv(r4(e.score))
+    if (j !== 'null') text(`,"score":${j}`)
+  }
+  if (e.reason !== undefined && e.reason !== null) {
+    text(',"reason":')
+    value(e.reason)
+  }
+  text('}')
+}
+
+const METRIC_KEYS = METRIC_NAMES.map((k, i) => `${i === 0 ? '{' : ','}${JSON.stringify(k)}:`)
+
+
+
+/** `"level":` prefixes of the first point's bounds (encodeItem keeps the levels of the first point). */
+function boundKeys(points: readonly ForecastPoint[], side: 'lower' | 'upper'): [string, string][] {
+  return Object.keys(points[0]?.[side] ?? {}).map((l) => [l, JSON.stringify(l) + ':'])
+}

@@ -38,6 +38,24 @@ export async function until<T>(check: () => Promise<T | undefined>, timeoutMs: n
   }
 }
 
+/** Resolves once the Redis server at `url` answers PING with PONG; rejects after `timeoutMs`. */
+export function untilRedisAnswers(url: string, what: string, timeoutMs = 15_000): Promise<true> {
+  return until(
+    async () => {
+      const probe = new Redis(url, { lazyConnect: true, retryStrategy: () => null, maxRetriesPerRequest: 0 })
+      probe.on('error', () => undefined)
+      try {
+        await probe.connect()
+        return (await probe.ping()) === 'PONG' ? true : undefined
+      } finally {
+        probe.disconnect()
+      }
+    },
+    timeoutMs,
+    what,
+  )
+}
+
 export interface ChildLogs {
   readonly child: ChildProcess
   readonly logs: Record<string, unknown>[]
@@ -179,21 +197,8 @@ export class PrivateRedis {
     this.proc = proc
     this.exited = new Promise((resolve) => proc.once('exit', resolve))
     proc.once('error', () => undefined)
-    await until(
-      async () => {
-        const probe = new Redis(this.url, { lazyConnect: true, retryStrategy: () => null, maxRetriesPerRequest: 0 })
-        probe.on('error', () => undefined)
-        try {
-          await probe.connect()
-          // Wait until the append-only file is loaded (LOADING errors before that).
-          return (await probe.ping()) === 'PONG' ? true : undefined
-        } finally {
-          probe.disconnect()
-        }
-      },
-      15_000,
-      `redis-server on port ${this.port}`,
-    )
+    // PONG only once the append-only file is loaded (LOADING errors before that).
+    await untilRedisAnswers(this.url, `redis-server on port ${this.port}`)
   }
 
   /** Kills the server at once (SIGKILL): no chance to save or flush anything beyond what AOF already has. */

@@ -4,7 +4,7 @@ import { createServer } from 'node:net'
 import { tmpdir } from 'node:os'
 import { join } from 'node:path'
 import { Cluster, Redis } from 'ioredis'
-import { freePort, until } from './processes.js'
+import { freePort, until, untilRedisAnswers } from './processes.js'
 
 /**
  * A private Redis Cluster of `primaries` redis-server processes on 127.0.0.1
@@ -160,20 +160,7 @@ async function startNode(bin: string, port: number, root: string, index: number)
     ),
   )
   spawnError.catch(() => undefined)
-  const ready = until(
-    async () => {
-      const probe = new Redis(port, '127.0.0.1', { lazyConnect: true, retryStrategy: () => null, maxRetriesPerRequest: 0 })
-      probe.on('error', () => undefined)
-      try {
-        await probe.connect()
-        return (await probe.ping()) === 'PONG' ? true : undefined
-      } finally {
-        probe.disconnect()
-      }
-    },
-    15_000,
-    `redis-server (cluster node) on port ${port}`,
-  )
+  const ready = untilRedisAnswers(`redis://127.0.0.1:${port}`, `redis-server (cluster node) on port ${port}`)
   await Promise.race([ready, spawnError, early])
   return { port, proc, exited }
 }

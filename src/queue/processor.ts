@@ -2,7 +2,8 @@ import { UnrecoverableError, type Job } from 'bullmq'
 import { EngineInputError, replenishmentFor, type ForecastResult, type SeriesInput } from '../engine/index.js'
 import type { Logger } from 'pino'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
-import { tallyItems, toResultItem } from '../storage/codec.js'
+import { ChunkTallier, toResultItem } from '../storage/codec.js'
+import { prepareItem, type PreparedItem } from '../storage/prepared-item.js'
 import type { CommitOutcome, RunStore } from '../storage/run-store.js'
 import type { ResultItem } from '../storage/types.js'
 import { CHUNK_QUEUE } from './names.js'
@@ -97,14 +98,18 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
 
     const started = performance.now()
     const fitSeconds: number[] = []
-    const items = series.map((s) => {
+    const tallier = new ChunkTallier(run.settings.metric)
+    // Each item is tallied and encoded as soon as it is fitted: only its bytes wait for the commit (prepared-item.ts).
+    const items: PreparedItem[] = []
+    for (const s of series) {
       const t0 = performance.now()
       const item = forecastItem(deps.forecast, run.settings, s)
       fitSeconds.push((performance.now() - t0) / 1000)
-      return item
-    })
+      tallier.add(item)
+      items.push(prepareItem(item))
+    }
     const computeMs = Math.round(performance.now() - started)
-    const tally = tallyItems(items, run.settings.metric)
+    const tally = tallier.tally()
     const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now())
     // Counted once per chunk: only the call whose commit took the items (a retried chunk is not counted twice).
     if (outcome === 'committed' || outcome === 'finished') await store.stats.recordFits(fitSeconds, tally.failed)

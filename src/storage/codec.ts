@@ -76,28 +76,44 @@ export interface ChunkTally {
 }
 
 /**
- * Tally of a chunk's items: every item is done, error items are also failed.
- * Holdout error counts only where selection used a holdout and the value is finite.
+ * Tally of a chunk's items, added one at a time (so the items need not be kept):
+ * every item is done, error items are also failed. Holdout error counts only
+ * where selection used a holdout and the value is finite.
  */
-export function tallyItems(items: readonly ResultItem[], metric: (typeof METRIC_NAMES)[number]): ChunkTally {
-  const wins = new Map<ModelName, number>()
-  let failed = 0
-  let errSum = 0
-  let errCount = 0
-  for (const item of items) {
+export class ChunkTallier {
+  private readonly wins = new Map<ModelName, number>()
+  private done = 0
+  private failed = 0
+  private errSum = 0
+  private errCount = 0
+
+  constructor(private readonly metric: (typeof METRIC_NAMES)[number]) {}
+
+  add(item: ResultItem): void {
+    this.done++
     if ('error' in item) {
-      failed++
-      continue
+      this.failed++
+      return
     }
     // Items are tallied by the process that fitted them, so the model is always known here.
-    if (isModel(item.model)) wins.set(item.model, (wins.get(item.model) ?? 0) + 1)
-    const value = item.selection.method === 'holdout' ? item.metrics?.[metric] : null
+    if (isModel(item.model)) this.wins.set(item.model, (this.wins.get(item.model) ?? 0) + 1)
+    const value = item.selection.method === 'holdout' ? item.metrics?.[this.metric] : null
     if (typeof value === 'number' && Number.isFinite(value)) {
-      errSum += value
-      errCount++
+      this.errSum += value
+      this.errCount++
     }
   }
-  return { done: items.length, failed, wins, errSum, errCount }
+
+  tally(): ChunkTally {
+    return { done: this.done, failed: this.failed, wins: new Map(this.wins), errSum: this.errSum, errCount: this.errCount }
+  }
+}
+
+/** Tally of a chunk's items (ChunkTallier over all of them). */
+export function tallyItems(items: readonly ResultItem[], metric: (typeof METRIC_NAMES)[number]): ChunkTally {
+  const tallier = new ChunkTallier(metric)
+  for (const item of items) tallier.add(item)
+  return tallier.tally()
 }
 
 /** The stored part of a successful engine result (no fitted values, no history). */

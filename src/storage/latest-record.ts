@@ -129,8 +129,8 @@ export function decodePoints(points: string): Map<string, number> {
 }
 
 /** The part of a record after the ordering fields: `${producedAt}|${points}` (the Lua script prepends the rest). */
-export function recordTail(producedAt: string, forecast: readonly Pick<ForecastPoint, 'period' | 'value'>[]): string {
-  return `${producedAt}|${encodePoints(forecast)}`
+export function recordTail(producedAt: string, points: string): string {
+  return `${producedAt}|${points}`
 }
 
 /** A record in either layout, or null when it is malformed. */

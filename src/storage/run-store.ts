@@ -7,7 +7,8 @@ import {
   newRunFields,
   type ChunkTally,
 } from './codec.js'
-import { loadItem, storeItem } from './item-codec.js'
+import { loadItem } from './item-codec.js'
+import type { PreparedItem } from './prepared-item.js'
 import { readStoredPage } from './result-pages.js'
 import { latestKey, runKeys, isValidRunId, isValidTenant } from './keys.js'
 import { decodeLatest, decodePoints, recordTail, type ForecastPoints, type LatestRecord } from './latest-record.js'
@@ -146,13 +147,13 @@ export class RunStore {
     tenant: string,
     runId: string,
     chunkIndex: number,
-    items: readonly ResultItem[],
+    items: readonly PreparedItem[],
     tally: ChunkTally,
     now: Date,
   ): Promise<CommitOutcome> {
     const k = this.keys(tenant, runId)
     const stored: (string | number | Buffer)[] = [this.opts.resultTtlSeconds]
-    for (const item of items) stored.push(item.sku, storeItem(item))
+    for (const item of items) stored.push(item.sku, item.stored)
     const [step, createdAt] = await this.scripts.storeItems([k.run, k.skus, k.items], stored)
     if (step !== 'stored' && step !== 'succeeded') return step as CommitOutcome
     await this.updateLatest(tenant, runId, Date.parse(createdAt), now, items)
@@ -194,13 +195,13 @@ export class RunStore {
    * skipped) unless a newer run already holds them; each record keeps the point
    * forecast for accuracy scoring. Returns how many records changed.
    */
-  async updateLatest(tenant: string, runId: string, createdAtMs: number, producedAt: Date, items: readonly ResultItem[]): Promise<number> {
+  async updateLatest(tenant: string, runId: string, createdAtMs: number, producedAt: Date, items: readonly PreparedItem[]): Promise<number> {
     const produced = producedAt.toISOString()
     const args: (string | number)[] = [createdAtMs, runId]
     const skus: string[] = []
     for (const item of items) {
-      if ('error' in item) continue
-      args.push(item.sku, recordTail(produced, item.forecast))
+      if (item.points === null) continue
+      args.push(item.sku, recordTail(produced, item.points))
       skus.push(item.sku)
     }
     if (skus.length === 0) return 0

@@ -6,6 +6,7 @@ import { latestKey, runKeys } from '../../src/storage/keys.js'
 import { RunStore } from '../../src/storage/run-store.js'
 import type { RunMachinery } from '../../src/queue/gateway.js'
 import { startService, type ErpMachinery, type TestService } from '../helpers/service.js'
+import { prepareItems } from '../../src/storage/prepared-item.js'
 import { waitFor } from '../queue/fixtures.js'
 
 // Accuracy tracking end to end: stored histories -> run -> new actuals uploaded -> scored.
@@ -132,9 +133,9 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
       intervals: { method: 'none', levels: [], clamped: false },
     }) as const
     const at = new Date(3000)
-    expect(await runs().updateLatest('default', 'run-new', 2000, at, [item(7)])).toBe(1)
-    expect(await runs().updateLatest('default', 'run-old', 1000, at, [item(3)])).toBe(0)
-    expect(await runs().updateLatest('default', 'run-err', 3000, at, [{ sku: 'RAKE', error: { code: 'series-too-short', message: 'x' } }])).toBe(0)
+    expect(await runs().updateLatest('default', 'run-new', 2000, at, prepareItems([item(7)]))).toBe(1)
+    expect(await runs().updateLatest('default', 'run-old', 1000, at, prepareItems([item(3)]))).toBe(0)
+    expect(await runs().updateLatest('default', 'run-err', 3000, at, prepareItems([{ sku: 'RAKE', error: { code: 'series-too-short', message: 'x' } }]))).toBe(0)
     const [latest] = await runs().latestPoints('default', ['RAKE'])
     expect(latest?.runId).toBe('run-new')
     expect([...latest!.points]).toEqual([['2027-01', 7]])
@@ -146,14 +147,14 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
   it('pages the exception list by SKU with a cursor', async () => {
     const periods = ['2027-01', '2027-02', '2027-03', '2027-04', '2027-05']
     for (const sku of ['PAGE-C', 'PAGE-A', 'PAGE-B']) {
-      await runs().updateLatest('paging', `run-${sku}`, 1, new Date(2), [
+      await runs().updateLatest('paging', `run-${sku}`, 1, new Date(2), prepareItems([
         {
           sku, model: 'naive', family: 'level', params: {}, metrics: null, leaderboard: [], warnings: [],
           selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
           forecast: periods.map((period) => ({ period, value: 10, lower: {}, upper: {} })),
           intervals: { method: 'none', levels: [], clamped: false },
         },
-      ])
+      ]))
       // Errors +5 in each of 5 periods: TS = 25 / 5 = 5.
       await erp.services.accuracy.recordActuals('paging', sku, 'month', periods.map((period) => ({ period, value: 15 })))
     }

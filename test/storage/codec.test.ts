@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { decodeCursor, decodeItem, decodeRunRecord, encodeCursor, encodeItem, newRunFields, tallyItems } from '../../src/storage/codec.js'
+import { ChunkTallier, decodeCursor, decodeItem, decodeRunRecord, encodeCursor, encodeItem, newRunFields, tallyItems } from '../../src/storage/codec.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import { runRequest } from '../queue/fixtures.js'
 
@@ -36,6 +36,15 @@ describe('tallyItems', () => {
 
   it('handles an empty chunk', () => {
     expect(tallyItems([], 'mase')).toMatchObject({ done: 0, failed: 0, errSum: 0, errCount: 0 })
+  })
+
+  it('gives the same tally item by item, and a tally taken early is not changed by later items', () => {
+    const tallier = new ChunkTallier('mase')
+    tallier.add(ok('a', 'ses', 1))
+    const early = tallier.tally()
+    for (const item of [bad('b'), ok('c', 'holt', 2)]) tallier.add(item)
+    expect(tallier.tally()).toEqual(tallyItems([ok('a', 'ses', 1), bad('b'), ok('c', 'holt', 2)], 'mase'))
+    expect(early).toEqual({ done: 1, failed: 0, wins: new Map([['ses', 1]]), errSum: 1, errCount: 1 })
   })
 })
 

@@ -75,7 +75,7 @@ describe('latest-forecast record points', () => {
 
 describe('latest-forecast records', () => {
   it('reads a record with points', () => {
-    const value = `1767225600000|run-2|${recordTail('2026-01-01T00:00:05.000Z', points(['2026-02', '2026-03']))}`
+    const value = `1767225600000|run-2|${recordTail('2026-01-01T00:00:05.000Z', encodePoints(points(['2026-02', '2026-03'])))}`
     const r = decodeLatest(value)
     expect(r).toMatchObject({ createdAtMs: 1767225600000, runId: 'run-2', producedAt: '2026-01-01T00:00:05.000Z' })
     expect([...decodePoints(r!.points!)]).toEqual([

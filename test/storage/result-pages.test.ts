@@ -9,6 +9,7 @@ import { runKeys } from '../../src/storage/keys.js'
 import { resultsPageJson } from '../../src/storage/result-pages.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
+import { prepareItems } from '../../src/storage/prepared-item.js'
 import { runRequest, syntheticSeries } from '../queue/fixtures.js'
 
 let url: string
@@ -36,7 +37,7 @@ async function committedRun(runId: string): Promise<ResultItem[]> {
   const items: ResultItem[] = series.map((s, i) =>
     i === 3 ? { sku: s.sku, error: { code: 'series-too-short', message: 'holt requires "at least" 4 data points' } } : toResultItem(s.sku, forecastSeries({ values: s.values, frequency: 'month', horizon: 6 })),
   )
-  expect(await store.commitChunk('acme', runId, 0, items, tallyItems(items, 'mase'), t0)).toBe('finished')
+  expect(await store.commitChunk('acme', runId, 0, prepareItems(items), tallyItems(items, 'mase'), t0)).toBe('finished')
   return items
 }
 

@@ -7,6 +7,7 @@ import { legacySnapshotsKey } from '../../src/storage/legacy-snapshots.js'
 import { storeItem } from '../../src/storage/item-codec.js'
 import { RunInputError, type ResultItem } from '../../src/storage/types.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
+import { prepareItems } from '../../src/storage/prepared-item.js'
 import { runRequest, syntheticSeries } from '../queue/fixtures.js'
 
 let url: string
@@ -61,11 +62,11 @@ describe('RunStore', () => {
   it('counts a chunk committed twice only once, and finishes on the last chunk', async () => {
     await store.createRun('acme', 'idem-1', runRequest(syntheticSeries(4)), 2, t0)
     const first = errorItems(['SKU-00000', 'SKU-00001'])
-    expect(await store.commitChunk('acme', 'idem-1', 0, first, tallyItems(first, 'mase'), t0)).toBe('committed')
-    expect(await store.commitChunk('acme', 'idem-1', 0, first, tallyItems(first, 'mase'), t0)).toBe('duplicate')
+    expect(await store.commitChunk('acme', 'idem-1', 0, prepareItems(first), tallyItems(first, 'mase'), t0)).toBe('committed')
+    expect(await store.commitChunk('acme', 'idem-1', 0, prepareItems(first), tallyItems(first, 'mase'), t0)).toBe('duplicate')
     expect((await store.getRun('acme', 'idem-1'))?.progress).toEqual({ total: 4, done: 2, failed: 2 })
     const second = errorItems(['SKU-00002', 'SKU-00003'])
-    expect(await store.commitChunk('acme', 'idem-1', 1, second, tallyItems(second, 'mase'), t0)).toBe('finished')
+    expect(await store.commitChunk('acme', 'idem-1', 1, prepareItems(second), tallyItems(second, 'mase'), t0)).toBe('finished')
     const run = await store.getRun('acme', 'idem-1')
     expect(run).toMatchObject({ status: 'succeeded', finishedAt: t0.toISOString(), progress: { total: 4, done: 4, failed: 4 } })
     expect(run?.summary).toEqual({ metric: 'mase', modelWins: {}, meanHoldoutError: null })
@@ -75,9 +76,9 @@ describe('RunStore', () => {
     // A client polling the run and then each SKU's latest forecast must never get a 404 in between.
     await store.createRun('acme', 'order-1', runRequest(syntheticSeries(4)), 2, t0)
     const first = okItems(['SKU-00000', 'SKU-00001'])
-    expect(await store.commitChunk('acme', 'order-1', 0, first, tallyItems(first, 'mase'), t0)).toBe('committed')
+    expect(await store.commitChunk('acme', 'order-1', 0, prepareItems(first), tallyItems(first, 'mase'), t0)).toBe('committed')
     const second = okItems(['SKU-00002', 'SKU-00003'], [5])
-    expect(await store.commitChunk('acme', 'order-1', 1, second, tallyItems(second, 'mase'), t0)).toBe('finished')
+    expect(await store.commitChunk('acme', 'order-1', 1, prepareItems(second), tallyItems(second, 'mase'), t0)).toBe('finished')
     expect((await store.getRun('acme', 'order-1'))?.status).toBe('succeeded')
     for (const sku of ['SKU-00000', 'SKU-00001', 'SKU-00002', 'SKU-00003']) {
       const latest = await store.latest('acme', sku)
@@ -85,7 +86,7 @@ describe('RunStore', () => {
       expect('error' in latest!.item).toBe(false)
     }
     // A retry of the last chunk after the run finished rewrites nothing it counts and answers 'succeeded'.
-    expect(await store.commitChunk('acme', 'order-1', 1, second, tallyItems(second, 'mase'), t0)).toBe('succeeded')
+    expect(await store.commitChunk('acme', 'order-1', 1, prepareItems(second), tallyItems(second, 'mase'), t0)).toBe('succeeded')
     expect((await store.getRun('acme', 'order-1'))?.progress).toEqual({ total: 4, done: 4, failed: 0 })
   })
 
@@ -96,7 +97,7 @@ describe('RunStore', () => {
     const items = okItems(['SKU-00000', 'SKU-00001'])
     await redis.hset(k.items, 'SKU-00000', storeItem(items[0]!))
     await redis.zadd(k.skus, 0, 'SKU-00000')
-    expect(await store.commitChunk('acme', 'crash-1', 0, items, tallyItems(items, 'mase'), t0)).toBe('finished')
+    expect(await store.commitChunk('acme', 'crash-1', 0, prepareItems(items), tallyItems(items, 'mase'), t0)).toBe('finished')
     expect((await store.getRun('acme', 'crash-1'))?.progress).toEqual({ total: 2, done: 2, failed: 0 })
     expect(await redis.zcard(k.skus)).toBe(2)
   })
@@ -105,7 +106,7 @@ describe('RunStore', () => {
     await store.createRun('acme', 'cancel-1', runRequest(syntheticSeries(4)), 2, t0)
     expect((await store.endRun('acme', 'cancel-1', 'cancelled', null, t0))?.status).toBe('cancelled')
     const items = errorItems(['SKU-00000', 'SKU-00001'])
-    expect(await store.commitChunk('acme', 'cancel-1', 0, items, tallyItems(items, 'mase'), t0)).toBe('cancelled')
+    expect(await store.commitChunk('acme', 'cancel-1', 0, prepareItems(items), tallyItems(items, 'mase'), t0)).toBe('cancelled')
     expect(await redis.exists(runKeys(prefix, 'acme', 'cancel-1').items)).toBe(0)
     expect((await store.getRun('acme', 'cancel-1'))?.progress.done).toBe(0)
     // Ending a run that already ended changes nothing.
@@ -124,18 +125,18 @@ describe('RunStore', () => {
   it('keeps the latest forecast record on the run created last', async () => {
     const older = t0.getTime()
     const newer = older + 5000
-    expect(await store.updateLatest('acme', 'run-new', newer, t0, okItems(['A', 'B'], [7]))).toBe(2)
+    expect(await store.updateLatest('acme', 'run-new', newer, t0, prepareItems(okItems(['A', 'B'], [7])))).toBe(2)
     // The older run finishes late: it must not take the SKUs over.
-    expect(await store.updateLatest('acme', 'run-old', older, t0, okItems(['A', 'B', 'C'], [3]))).toBe(1)
+    expect(await store.updateLatest('acme', 'run-old', older, t0, prepareItems(okItems(['A', 'B', 'C'], [3])))).toBe(1)
     const records = await redis.hgetall(`${prefix}:t:acme:latest`)
     expect(records.A).toMatch(/\|run-new\|/)
     expect(records.C).toMatch(/\|run-old\|/)
     // Re-applying the same run is harmless (idempotent retry); a tie in creation time goes to the larger run id.
-    expect(await store.updateLatest('acme', 'run-new', newer, t0, okItems(['A']))).toBe(1)
-    expect(await store.updateLatest('acme', 'run-a', newer, t0, okItems(['A']))).toBe(0)
-    expect(await store.updateLatest('acme', 'run-z', newer, t0, okItems(['A'], [9]))).toBe(1)
+    expect(await store.updateLatest('acme', 'run-new', newer, t0, prepareItems(okItems(['A'])))).toBe(1)
+    expect(await store.updateLatest('acme', 'run-a', newer, t0, prepareItems(okItems(['A'])))).toBe(0)
+    expect(await store.updateLatest('acme', 'run-z', newer, t0, prepareItems(okItems(['A'], [9])))).toBe(1)
     // Error items never become a SKU's latest forecast.
-    expect(await store.updateLatest('acme', 'run-err', newer + 1, t0, errorItems(['A']))).toBe(0)
+    expect(await store.updateLatest('acme', 'run-err', newer + 1, t0, prepareItems(errorItems(['A'])))).toBe(0)
     expect((await store.latestPoints('acme', ['A', 'B', 'C', 'D'])).map(pointsOf)).toEqual([
       ['run-z', [['2027-01', 9]]],
       ['run-new', [['2027-01', 7]]],
@@ -151,8 +152,8 @@ describe('RunStore', () => {
     await redis.expire(key, 600)
     await store.createRun('keep', 'keep-1', runRequest(syntheticSeries(1)), 1, t0)
     const items = okItems(['SKU-00000'], [1.23456789, 2])
-    await store.commitChunk('keep', 'keep-1', 0, items, tallyItems(items, 'mase'), t0)
-    expect(await store.updateLatest('keep', 'keep-1', t0.getTime(), t0, items)).toBe(1)
+    await store.commitChunk('keep', 'keep-1', 0, prepareItems(items), tallyItems(items, 'mase'), t0)
+    expect(await store.updateLatest('keep', 'keep-1', t0.getTime(), t0, prepareItems(items))).toBe(1)
     expect(await redis.ttl(key)).toBe(-1)
     expect((await store.latest('keep', 'SKU-00000'))?.producedAt).toBe(t0.toISOString())
     // The run's results expire with retention: the forecast is gone (404), scoring still has the points.
@@ -167,7 +168,7 @@ describe('RunStore', () => {
     const key = latestKey(prefix, 'old')
     await store.createRun('old', 'old-1', runRequest(syntheticSeries(1)), 1, t0)
     const items = okItems(['SKU-00000'], [5])
-    await store.commitChunk('old', 'old-1', 0, items, tallyItems(items, 'mase'), t0)
+    await store.commitChunk('old', 'old-1', 0, prepareItems(items), tallyItems(items, 'mase'), t0)
     await redis.hset(key, 'SKU-00000', `${t0.getTime()}|old-1|2026-03-01T10:00:02.000Z`)
     expect(await store.latest('old', 'SKU-00000')).toMatchObject({ runId: 'old-1', producedAt: '2026-03-01T10:00:02.000Z' })
     expect((await store.latestPoints('old', ['SKU-00000'])).map(pointsOf)).toEqual([['old-1', [['2027-01', 5]]]])
@@ -183,7 +184,7 @@ describe('RunStore', () => {
     // A: pointer of the same run (earlier layout) and its copy; B: copy only (the pointer expired);
     // C: pointer of a newer run than its copy (the copy is stale); D: copy of an older run than D's new record.
     await redis.hset(key, 'A', `${at}|run-1|2026-03-01T10:00:09.000Z`, 'C', `${at + 10}|run-9|2026-03-01T10:00:09.000Z`)
-    await store.updateLatest('legacy', 'run-5', at + 5, t0, okItems(['D'], [50]))
+    await store.updateLatest('legacy', 'run-5', at + 5, t0, prepareItems(okItems(['D'], [50])))
     await redis.hset(legacy, 'A', copy('run-1', at, 1.123456789), 'B', copy('run-2', at, 20), 'C', copy('run-3', at, 30), 'D', copy('run-4', at, 40))
     const got = await store.latestPoints('legacy', ['A', 'B', 'C', 'D'])
     expect(got.map(pointsOf)).toEqual([
@@ -199,7 +200,7 @@ describe('RunStore', () => {
     expect(await redis.hget(key, 'C')).toMatch(/\|run-9\|/)
     expect((await store.latestPoints('legacy', ['A', 'B'])).map(pointsOf)).toEqual(got.slice(0, 2).map(pointsOf))
     // A run that takes a chunk's SKUs deletes their copies.
-    expect(await store.updateLatest('legacy', 'run-6', at + 6, t0, okItems(['D']))).toBe(1)
+    expect(await store.updateLatest('legacy', 'run-6', at + 6, t0, prepareItems(okItems(['D'])))).toBe(1)
     expect(await redis.exists(legacy)).toBe(0)
   })
 

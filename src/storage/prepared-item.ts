@@ -1,0 +1,27 @@
+import { storeItem } from './item-codec.js'
+import { encodePoints } from './latest-record.js'
+import type { ResultItem } from './types.js'
+
+/**
+ * A result item as the run store commits it: its stored bytes (item-codec.ts)
+ * and, for a forecast, the points of its latest-forecast record
+ * (latest-record.ts). A chunk processor prepares each item as soon as it is
+ * fitted, so a chunk keeps a few hundred bytes per series alive until its
+ * commit instead of every item's objects: objects that survive that long are
+ * promoted to the old generation and cost a full garbage collection
+ * (bench:e2e, processor notes in README).
+ */
+export interface PreparedItem {
+  readonly sku: string
+  readonly stored: Buffer
+  /** encodePoints of the forecast; null for an error item (it never becomes a latest forecast). */
+  readonly points: string | null
+}
+
+export function prepareItem(item: ResultItem): PreparedItem {
+  return { sku: item.sku, stored: storeItem(item), points: 'error' in item ? null : encodePoints(item.forecast) }
+}
+
+export function prepareItems(items: readonly ResultItem[]): PreparedItem[] {
+  return items.map(prepareItem)
+}

@@ -1,0 +1,30 @@
+import { describe, expect, it } from 'vitest'
+import { forecastSeries } from '../../src/engine/index.js'
+import { toResultItem } from '../../src/storage/codec.js'
+import { loadItem } from '../../src/storage/item-codec.js'
+import { decodePoints } from '../../src/storage/latest-record.js'
+import { prepareItem } from '../../src/storage/prepared-item.js'
+import { syntheticSeries } from '../queue/fixtures.js'
+
+describe('prepareItem', () => {
+  it('keeps the stored bytes and the latest-forecast points of a forecast', () => {
+    const [s] = syntheticSeries(1)
+    const item = toResultItem(s!.sku, forecastSeries({ values: s!.values, frequency: 'month', start: '2025-01', horizon: 4 }))
+    const prepared = prepareItem(item)
+    expect(prepared.sku).toBe(s!.sku)
+    // The stored bytes read back as the item (values kept to 7 significant digits).
+    const loaded = loadItem(s!.sku, prepared.stored)
+    expect(loaded).toMatchObject({ sku: s!.sku, model: item.model })
+    if ('error' in loaded || 'error' in item) throw new Error('expected a forecast')
+    expect(loaded.forecast.map((p) => p.period)).toEqual(item.forecast.map((p) => p.period))
+    const points = decodePoints(prepared.points!)
+    expect([...points.keys()]).toEqual(item.forecast.map((p) => p.period))
+    for (const p of item.forecast) expect(points.get(p.period)).toBeCloseTo(p.value, 4)
+  })
+
+  it('gives an error item no points, so it never becomes a latest forecast', () => {
+    const prepared = prepareItem({ sku: 'X', error: { code: 'empty-series', message: 'no data' } })
+    expect(prepared.points).toBeNull()
+    expect(loadItem('X', prepared.stored)).toEqual({ sku: 'X', error: { code: 'empty-series', message: 'no data' } })
+  })
+})

@@ -9,12 +9,13 @@ import { syntheticSeries } from '../queue/fixtures.js'
 describe('prepareItem', () => {
   it('keeps the stored bytes and the latest-forecast points of a forecast', () => {
     const [s] = syntheticSeries(1)
-    const item = toResultItem(s!.sku, forecastSeries({ values: s!.values, frequency: 'month', start: '2025-01', horizon: 4 }))
+    const result = forecastSeries({ values: s!.values, frequency: 'month', start: '2025-01', horizon: 4 })
+    const item = toResultItem(s!.sku, result)
     const prepared = prepareItem(item)
     expect(prepared.sku).toBe(s!.sku)
     // The stored bytes read back as the item (values kept to 7 significant digits).
     const loaded = loadItem(s!.sku, prepared.stored)
-    expect(loaded).toMatchObject({ sku: s!.sku, model: item.model })
+    expect(loaded).toMatchObject({ sku: s!.sku, model: result.model })
     if ('error' in loaded || 'error' in item) throw new Error('expected a forecast')
     expect(loaded.forecast.map((p) => p.period)).toEqual(item.forecast.map((p) => p.period))
     const points = decodePoints(prepared.points!)

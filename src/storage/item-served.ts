@@ -171,28 +171,32 @@ function rounded(x: unknown, digits: number): void {
     if (s - Math.floor(s) === 0.5) return text(jv(round(x, digits)))
     m = Math.round(s)
   } else return text(jv(round(x, digits)))
-  while (m % 10 === 0) {
-    m /= 10
+  if (digits > 9) return text(jv(round(x, digits)))
+  // m < 10^digits + 1 <= 10^9 < 2^31: int32 arithmetic from here (modulus and division of
+  // doubles cost a libm call each; the digits are the same).
+  let mi = m | 0
+  while (mi % 10 === 0) {
+    mi = (mi / 10) | 0
     p--
   }
   let k = 1
-  while (k < 22 && m >= POWERS_OF_TEN[k]!) k++
+  while (k < 10 && mi >= INT_POWERS[k]!) k++
   if (p <= 0 ? k - p > 21 : p >= k && p - k >= 6) return text(jv(round(x, digits)))
   ensure(k + (p <= 0 ? -p : p < k ? 1 : 2 + p - k) + 1)
   if (x < 0) buf[pos++] = 0x2d
   if (p <= 0) {
-    digitsAt(m, pos + k - 1, k)
+    digitsAt(mi, pos + k - 1, k)
     pos += k
     for (let z = 0; z < -p; z++) buf[pos++] = 0x30
   } else if (p < k) {
     // k - p integer digits, the point, p decimals
     const end = pos + k + 1
-    let t = m
+    let t = mi
     let i = end - 1
     for (let j = 0; j < p; j++) {
-      const d = t % 10
-      buf[i--] = 0x30 + d
-      t = (t - d) / 10
+      const q = (t / 10) | 0
+      buf[i--] = 0x30 + t - 10 * q
+      t = q
     }
     buf[i--] = 0x2e
     digitsAt(t, i, k - p)
@@ -201,17 +205,19 @@ function rounded(x: unknown, digits: number): void {
     buf[pos++] = 0x30
     buf[pos++] = 0x2e
     for (let z = 0; z < p - k; z++) buf[pos++] = 0x30
-    digitsAt(m, pos + k - 1, k)
+    digitsAt(mi, pos + k - 1, k)
     pos += k
   }
 }
 
-/** Writes the n decimal digits of integer t ending at index last. */
+const INT_POWERS = [1, 10, 100, 1_000, 10_000, 100_000, 1_000_000, 10_000_000, 100_000_000, 1_000_000_000]
+
+/** Writes the n decimal digits of the int32 t ending at index last. */
 function digitsAt(t: number, last: number, n: number): void {
   for (let j = 0; j < n; j++) {
-    const d = t % 10
-    buf[last - j] = 0x30 + d
-    t = (t - d) / 10
+    const q = (t / 10) | 0
+    buf[last - j] = 0x30 + t - 10 * q
+    t = q
   }
 }
 
@@ -270,7 +276,8 @@ function entry(e: StoredLeaderboardEntry): void {
     metrics(e.metrics)
   }
   // Left out when the rounded score is not a finite number (stored as null before).
-  if (typeof e.score === 'number' && j4(e.score) !== 'null') {
+  // round(score) is finite exactly when its JSON is not null (roundedJson), without building the text.
+  if (typeof e.score === 'number' && Number.isFinite(r4(e.score))) {
     text(',"score":')
     rounded(e.score, 4)
   } else if (e.score !== undefined && typeof e.score !== 'number') {

@@ -1,7 +1,7 @@
 /**
  * HTTP client side of the end-to-end benchmarks: run bodies of seeded synthetic
- * 60-point monthly SKUs (bench/synthetic.ts, built batch by batch so a million
- * SKUs never sit in memory at once), submission, polling and result paging.
+ * 60-point monthly SKUs (bench/synthetic.ts, one batch per body, seeded per
+ * batch so each can be built alone), submission, polling and result paging.
  * Invented data, for timing only.
  */
 import { SHAPES, createRandom, syntheticSeries } from './synthetic.js'

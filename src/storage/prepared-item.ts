@@ -6,7 +6,7 @@ import type { ResultItem } from './types.js'
  * A result item as the run store commits it: its stored bytes (item-codec.ts)
  * and, for a forecast, the points of its latest-forecast record
  * (latest-record.ts). A chunk processor prepares each item as soon as it is
- * fitted, so a chunk keeps a few hundred bytes per series alive until its
+ * fitted, so a chunk keeps under a kilobyte per series alive until its
  * commit instead of every item's objects: objects that survive that long are
  * promoted to the old generation and cost a full garbage collection
  * (bench:e2e, processor notes in README).

@@ -1,5 +1,5 @@
 import { METRIC_NAMES, type ForecastPoint, type MetricSet, type ModelParams } from '../engine/index.js'
-import { EXACT, POWERS_OF_TEN, REPLENISHMENT_FIELDS, j4, jv, r4, r7, round, roundedJson } from './item-common.js'
+import { EXACT, POWERS_OF_TEN, REPLENISHMENT_FIELDS, jv, r4, r7, round } from './item-common.js'
 import type { ResultItem, StoredLeaderboardEntry } from './types.js'
 
 /**

@@ -19,7 +19,6 @@ import {
   RUN_STATUSES,
   RunInputError,
   type LatestForecast,
-  type ResultItem,
   type ResultPage,
   type RunRecord,
   type RunStatus,

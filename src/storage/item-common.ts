@@ -6,6 +6,32 @@ import { findModel, type ModelName } from '../engine/index.js'
  * replenishment fields kept exactly.
  */
 export const POWERS_OF_TEN = Array.from({ length: 23 }, (_, i) => 10 ** i)
+/** 10^-i as the nearest doubles, i = 0..6. */
+const NEGATIVE_POWERS = Array.from({ length: 7 }, (_, i) => 10 ** -i)
+
+/**
+ * Math.floor(Math.log10(a)) for a finite a > 0, the same value, mostly without the
+ * logarithm (about a sixth of writing a served item): for 1e-6 <= a < 1e15 the decade
+ * is found by comparison, and the logarithm is still taken when a lies within 1e-12
+ * (relative) of a power of ten, where the rounded logarithm could fall on either side.
+ * Elsewhere log10, whose error is below one ulp, cannot cross an integer, so both agree.
+ */
+export function decade(a: number): number {
+  let k: number
+  if (a >= 1) {
+    if (!(a < 1e15)) return Math.floor(Math.log10(a))
+    k = 0
+    while (a >= POWERS_OF_TEN[k + 1]!) k++
+    if (a < POWERS_OF_TEN[k]! * (1 + 1e-12) || a > POWERS_OF_TEN[k + 1]! * (1 - 1e-12)) return Math.floor(Math.log10(a))
+    return k
+  }
+  if (!(a >= 1e-6)) return Math.floor(Math.log10(a))
+  k = 1
+  while (a < NEGATIVE_POWERS[k]!) k++
+  // NEGATIVE_POWERS[k] <= a < NEGATIVE_POWERS[k - 1], nearest doubles of 10^-k and 10^-(k-1)
+  if (a < NEGATIVE_POWERS[k]! * (1 + 1e-12) || a > NEGATIVE_POWERS[k - 1]! * (1 - 1e-12)) return Math.floor(Math.log10(a))
+  return -k
+}
 
 /**
  * x to `digits` significant digits: the same values as Number(x.toPrecision(digits))
@@ -19,7 +45,7 @@ export const POWERS_OF_TEN = Array.from({ length: 23 }, (_, i) => 10 ** i)
 export function round(x: number, digits: number): number {
   if (!Number.isFinite(x) || x === 0) return x
   const a = Math.abs(x)
-  const p = digits - 1 - Math.floor(Math.log10(a))
+  const p = digits - 1 - decade(a)
   let r = NaN
   if (p >= 0 && p <= 22) {
     const s = a * POWERS_OF_TEN[p]!
@@ -50,7 +76,7 @@ export function roundedJson(x: number, digits: number): string {
   if (x - x !== 0) return 'null'
   if (x === 0) return '0'
   const a = x < 0 ? -x : x
-  let p = digits - 1 - Math.floor(Math.log10(a))
+  let p = digits - 1 - decade(a)
   let m: number
   if (p >= 0 && p <= 22) {
     const s = a * POWERS_OF_TEN[p]!

@@ -1,5 +1,5 @@
 import { METRIC_NAMES, type ForecastPoint, type MetricSet, type ModelParams } from '../engine/index.js'
-import { EXACT, POWERS_OF_TEN, REPLENISHMENT_FIELDS, jv, r4, r7, round } from './item-common.js'
+import { EXACT, POWERS_OF_TEN, REPLENISHMENT_FIELDS, decade, jv, r4, r7, round } from './item-common.js'
 import type { ResultItem, StoredLeaderboardEntry } from './types.js'
 
 /**
@@ -160,7 +160,7 @@ function rounded(x: unknown, digits: number): void {
   if (x - x !== 0) return text('null')
   if (x === 0) return text('0')
   const a = x < 0 ? -x : x
-  let p = digits - 1 - Math.floor(Math.log10(a))
+  let p = digits - 1 - decade(a)
   let m: number
   if (p >= 0 && p <= 22) {
     const s = a * POWERS_OF_TEN[p]!
@@ -254,7 +254,7 @@ function params(p: ModelParams): void {
   text(first ? '{}' : '}')
 }
 
-function bound(b: Readonly<Record<string, number>>, keys: readonly [string, string][]): void {
+function bound(b: Readonly<Record<string, number>>, keys: readonly BoundKey[]): void {
   text('{')
   for (let i = 0; i < keys.length; i++) {
     if (i > 0) text(',')
@@ -295,7 +295,21 @@ const METRIC_KEYS = METRIC_NAMES.map((k, i) => `${i === 0 ? '{' : ','}${JSON.str
 
 
 
-/** `"level":` prefixes of the first point's bounds (encodeItem keeps the levels of the first point). */
-function boundKeys(points: readonly ForecastPoint[], side: 'lower' | 'upper'): [string, string][] {
-  return Object.keys(points[0]?.[side] ?? {}).map((l) => [l, JSON.stringify(l) + ':'])
+/**
+ * Keys and `"level":` prefixes of the first point's bounds (encodeItem keeps the levels of
+ * the first point). A key such as "80" is kept as the number 80: the same property, but a
+ * string index made every read of a bound take V8's slow keyed path. The last result is
+ * reused while the keys are the same (they are the run's levels).
+ */
+function boundKeys(points: readonly ForecastPoint[], side: 'lower' | 'upper'): readonly BoundKey[] {
+  const keys = Object.keys(points[0]?.[side] ?? {})
+  const last = side === 'lower' ? lastLower : lastUpper
+  if (last.names.length === keys.length && last.names.every((k, i) => k === keys[i])) return last.keys
+  const made = { names: keys, keys: keys.map((l): BoundKey => [String(Number(l)) === l && Number.isInteger(Number(l)) ? Number(l) : l, JSON.stringify(l) + ':']) }
+  if (side === 'lower') lastLower = made
+  else lastUpper = made
+  return made.keys
 }
+type BoundKey = readonly [string | number, string]
+let lastLower: { names: readonly string[]; keys: readonly BoundKey[] } = { names: [], keys: [] }
+let lastUpper = lastLower

@@ -5,8 +5,8 @@ import { servedBytes } from './item-served.js'
 import type { ResultItem } from './types.js'
 
 export { decodeItem, encodeItem } from './item-compact.js'
-export { round, roundedJson } from './item-common.js'
-export { servedBody } from './item-served.js'
+export { round } from './item-common.js'
+export { roundedJson, servedBody } from './item-served.js'
 
 /**
  * Bytes kept in Redis per item: a one-byte header, then the item compressed

@@ -60,53 +60,6 @@ export function round(x: number, digits: number): number {
 export const r7 = (x: number) => round(x, 7)
 export const r4 = (x: number) => round(x, 4)
 
-/**
- * The JSON text of round(x, digits) (null when x is not finite), written from
- * the rounded integer mantissa instead of through Number-to-String of the
- * double: that conversion (shortest round-trip digits) cost ~0.3 us per number,
- * a third of writing an item. round's result is the double nearest m * 10^-p
- * (m the rounded integer: one correctly rounded division or product of exact
- * doubles), and no other decimal of at most 8 significant digits lies within
- * an ulp of it, so its shortest digits are m's without trailing zeros; the
- * layout follows Number::toString (ECMA-262 6.1.6.1.20). Exponent notation
- * (below 1e-6, from 1e21), decimal ties and values that round beyond the
- * largest double go through round and jv.
- */
-export function roundedJson(x: number, digits: number): string {
-  if (x - x !== 0) return 'null'
-  if (x === 0) return '0'
-  const a = x < 0 ? -x : x
-  let p = digits - 1 - decade(a)
-  let m: number
-  if (p >= 0 && p <= 22) {
-    const s = a * POWERS_OF_TEN[p]!
-    if (s - Math.floor(s) === 0.5) return jv(round(x, digits))
-    m = Math.round(s)
-  } else if (p < 0 && p >= -14) {
-    const s = a / POWERS_OF_TEN[-p]!
-    if (s - Math.floor(s) === 0.5) return jv(round(x, digits))
-    m = Math.round(s)
-  } else return jv(round(x, digits))
-  while (m % 10 === 0) {
-    m /= 10
-    p--
-  }
-  const d = '' + m
-  const k = d.length
-  let out: string
-  if (p <= 0) {
-    if (k - p > 21) return jv(round(x, digits))
-    out = p === 0 ? d : d + ZEROS.slice(0, -p)
-  } else if (p < k) out = d.slice(0, k - p) + '.' + d.slice(k - p)
-  else {
-    if (p - k >= 6) return jv(round(x, digits))
-    out = '0.' + ZEROS.slice(0, p - k) + d
-  }
-  return x < 0 ? '-' + out : out
-}
-const ZEROS = '0'.repeat(22)
-export const j4 = (x: number) => roundedJson(x, 4)
-
 /** The registered model of that name, or undefined for a name this process does not know. */
 export const knownModel = (name: string) => findModel(name as ModelName)
 

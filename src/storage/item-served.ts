@@ -154,7 +154,29 @@ function value(v: unknown): void {
 /** Quoted UTF-8 of strings that repeat from item to item (names, statuses, reasons, periods); bounded. */
 const QUOTED_BYTES = new Map<string, Buffer>()
 
-/** Writes roundedJson(x, digits) (for anything but a number: jv of round, as encodeItem stored it). */
+/**
+ * The JSON text of round(x, digits) (null when x is not finite), as the writer
+ * below puts it into a served item. Not for use while servedBytes runs (they
+ * share the kept buffer; both are synchronous).
+ */
+export function roundedJson(x: number, digits: number): string {
+  pos = 0
+  rounded(x, digits)
+  return buf.toString('latin1', 0, pos)
+}
+
+/**
+ * Writes the JSON text of round(x, digits) (for anything but a number: jv of
+ * round, as encodeItem stored it), from the rounded integer mantissa instead of
+ * through Number-to-String of the double: that conversion (shortest round-trip
+ * digits) cost ~0.3 us per number, a third of writing an item. round's result
+ * is the double nearest m * 10^-p (m the rounded integer: one correctly rounded
+ * division or product of exact doubles), and no other decimal of at most 8
+ * significant digits lies within an ulp of it, so its shortest digits are m's
+ * without trailing zeros; the layout follows Number::toString (ECMA-262
+ * 6.1.6.1.20). Exponent notation (below 1e-6, from 1e21), decimal ties and
+ * values that round beyond the largest double go through round and jv.
+ */
 function rounded(x: unknown, digits: number): void {
   if (typeof x !== 'number') return text(jv(round(x as number, digits)))
   if (x - x !== 0) return text('null')
@@ -276,7 +298,7 @@ function entry(e: StoredLeaderboardEntry): void {
     metrics(e.metrics)
   }
   // Left out when the rounded score is not a finite number (stored as null before).
-  // round(score) is finite exactly when its JSON is not null (roundedJson), without building the text.
+  // round(score) is finite exactly when its JSON is not null (see rounded), without building the text.
   if (typeof e.score === 'number' && Number.isFinite(r4(e.score))) {
     text(',"score":')
     rounded(e.score, 4)

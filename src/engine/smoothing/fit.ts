@@ -113,7 +113,6 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   // Seasonal models re-estimate their initial states after the first search; the trend
   // models profile them out of every evaluation (sseTrendProfiled); SES starts at y[0].
   const refinable = shape.seasonal !== null
-  const ms = shape.seasonal ? m : 0
   const { y, scratch, s0, lsStates, lsWork } = buffersFor(n, m, shape.seasonal)
   for (let t = 0; t < n; t++) y[t] = series[t] / scale
 

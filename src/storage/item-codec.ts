@@ -24,6 +24,15 @@ export function storeItem(item: ResultItem): Buffer {
 }
 
 /**
+ * storeItem in two steps: `servedBytes(item)` (item-served.ts; a view of a kept
+ * buffer, so copy it if it must outlive the next call), then this, which gives
+ * the same stored bytes as storeItem(item).
+ */
+export function storeServed(served: Buffer): Buffer {
+  return deflateWithHeader(SERVED, served)
+}
+
+/**
  * The served JSON of a stored item, sku first, as UTF-8 bytes in two parts
  * (equal to JSON.stringify(loadItem(sku, stored)) when concatenated).
  */

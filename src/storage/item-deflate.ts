@@ -1,9 +1,11 @@
 import { constants, createDeflateRaw, createInflateRaw, deflateRawSync, inflateRawSync, type DeflateRaw, type InflateRaw } from 'node:zlib'
 import { ITEM_DICTIONARY } from './item-dictionary.js'
+import { STRUCTURE_DICTIONARY } from './item-structure-dictionary.js'
 
 /**
- * Raw DEFLATE (RFC 1951) of stored result items with the preset dictionary
- * ITEM_DICTIONARY, one item of a few KB at a time.
+ * Raw DEFLATE (RFC 1951) of stored result items with a preset dictionary
+ * (STRUCTURE_DICTIONARY for format 0x03, ITEM_DICTIONARY for 0x02), one item
+ * of a few KB at a time.
  *
  * zlib's one-shot calls (deflateRawSync, inflateRawSync) build a stream object
  * and a zlib state and tear both down again for every call: for a 4 KB item
@@ -11,7 +13,8 @@ import { ITEM_DICTIONARY } from './item-dictionary.js'
  * ~7 us on a kept state). So each thread keeps one deflate and one inflate
  * stream and runs items through its native handle, reset between items
  * (node:zlib internals `_handle.writeSync`, `_handle.reset` and `_writeState`,
- * which the one-shot calls use themselves; the same in Node 18 to 22). Anything
+ * which the one-shot calls use themselves; the same in Node 18 to 22), one
+ * pair per dictionary. Anything
  * unexpected (internals missing, an error, output that does not fit) answers
  * with the one-shot call instead, which gives the same bytes or the proper
  * zlib error, and a state that errored is replaced.
@@ -58,10 +61,42 @@ const keep = (stream: DeflateRaw | InflateRaw): Kept | null => {
   return { stream, handle: handle as Handle, state }
 }
 
-const options = { dictionary: ITEM_DICTIONARY }
+/** Kept states of one preset dictionary: created on first use, replaced after an error. */
+class DictionaryStates {
+  private deflating: Kept | null | undefined
+  private inflating: Kept | null | undefined
+
+  constructor(private readonly dictionary: Buffer) {}
+
+  private deflater(): Kept | null {
+    if (this.deflating === undefined) {
+      this.deflating = keep(createDeflateRaw({ dictionary: this.dictionary, level: ITEM_DEFLATE_LEVEL, strategy: ITEM_DEFLATE_STRATEGY }))
+    }
+    return this.deflating
+  }
+
+  /** The raw DEFLATE of `json` in `out` (its length), or null when the one-shot call must be used. */
+  deflateKept(json: Buffer): number | null {
+    const kept = this.deflater()
+    const n = kept !== null && json.length < BUFFER_BYTES / 2 ? run(kept, json) : null
+    if (n === null && this.deflating?.stream.destroyed) this.deflating = undefined
+    return n
+  }
+
+  deflateOneShot(json: Buffer): Buffer {
+    return deflateRawSync(json, { dictionary: this.dictionary, level: ITEM_DEFLATE_LEVEL, strategy: ITEM_DEFLATE_STRATEGY })
+  }
+
+  inflate(stored: Buffer): Buffer {
+    if (this.inflating === undefined) this.inflating = keep(createInflateRaw({ dictionary: this.dictionary }))
+    const n = this.inflating !== null ? run(this.inflating, stored) : null
+    if (n !== null) return Buffer.from(out!.subarray(0, n))
+    if (this.inflating?.stream.destroyed) this.inflating = undefined
+    return inflateRawSync(stored, { dictionary: this.dictionary })
+  }
+}
+
 let out: Buffer | null = null
-let deflating: Kept | null | undefined
-let inflating: Kept | null | undefined
 
 /** Runs `input` through a kept state; the output stays in `out` (null when the caller should use the one-shot call). */
 function run(kept: Kept, input: Buffer): number | null {
@@ -77,34 +112,31 @@ function run(kept: Kept, input: Buffer): number | null {
   return out.length - availOut!
 }
 
-function deflater(): Kept | null {
-  if (deflating === undefined) deflating = keep(createDeflateRaw({ ...options, level: ITEM_DEFLATE_LEVEL, strategy: ITEM_DEFLATE_STRATEGY }))
-  return deflating
+/** The preset dictionaries of the stored formats that have one (item-codec.ts). */
+export type ItemDictionary = 'served' | 'structure'
+
+const states: Record<ItemDictionary, DictionaryStates> = {
+  served: new DictionaryStates(ITEM_DICTIONARY),
+  structure: new DictionaryStates(STRUCTURE_DICTIONARY),
 }
 
-/** `header` then the raw DEFLATE of `json`, in one buffer. */
-export function deflateWithHeader(header: number, json: Buffer): Buffer {
-  const kept = deflater()
-  const n = kept !== null && json.length < BUFFER_BYTES / 2 ? run(kept, json) : null
-  if (n === null) return Buffer.concat([Buffer.of(header), deflateItem(json)])
+/** `header` then the raw DEFLATE of `json` with `dictionary`, in one buffer. */
+export function deflateWithHeader(header: number, json: Buffer, dictionary: ItemDictionary): Buffer {
+  const codec = states[dictionary]
+  const n = codec.deflateKept(json)
+  if (n === null) return Buffer.concat([Buffer.of(header), codec.deflateOneShot(json)])
   const stored = Buffer.allocUnsafe(n + 1)
   stored[0] = header
   out!.copy(stored, 1, 0, n)
   return stored
 }
 
-export function deflateItem(json: Buffer): Buffer {
-  const kept = deflater()
-  const n = kept !== null && json.length < BUFFER_BYTES / 2 ? run(kept, json) : null
-  if (n !== null) return Buffer.from(out!.subarray(0, n))
-  if (deflating?.stream.destroyed) deflating = undefined
-  return deflateRawSync(json, { ...options, level: ITEM_DEFLATE_LEVEL, strategy: ITEM_DEFLATE_STRATEGY })
+export function deflateItem(json: Buffer, dictionary: ItemDictionary): Buffer {
+  const codec = states[dictionary]
+  const n = codec.deflateKept(json)
+  return n !== null ? Buffer.from(out!.subarray(0, n)) : codec.deflateOneShot(json)
 }
 
-export function inflateItem(stored: Buffer): Buffer {
-  if (inflating === undefined) inflating = keep(createInflateRaw(options))
-  const n = inflating !== null ? run(inflating, stored) : null
-  if (n !== null) return Buffer.from(out!.subarray(0, n))
-  if (inflating?.stream.destroyed) inflating = undefined
-  return inflateRawSync(stored, options)
+export function inflateItem(stored: Buffer, dictionary: ItemDictionary): Buffer {
+  return states[dictionary].inflate(stored)
 }

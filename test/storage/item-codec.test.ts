@@ -73,7 +73,7 @@ describe('stored result items', () => {
     let before = 0
     for (const item of engineItems()) {
       const stored = storeItem(item)
-      expect(stored[0]).toBe(0x02)
+      expect(stored[0]).toBe(0x03)
       expect(stored.length).toBeLessThan(encodeItem(item).length / 2)
       expect(loadItem(item.sku, stored)).toEqual(decodeItem(item.sku, encodeItem(item)))
       bytes += stored.length

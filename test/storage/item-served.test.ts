@@ -1,15 +1,17 @@
-import { deflateRawSync } from 'node:zlib'
+import { constants, deflateRawSync } from 'node:zlib'
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { METRIC_NAMES, MODEL_REGISTRY, forecastSeries } from '../../src/engine/index.js'
 import { toResultItem } from '../../src/storage/codec.js'
 import { decodeItem, encodeItem, loadItem, round, roundedJson, servedBody, servedItemJson, storeItem } from '../../src/storage/item-codec.js'
-import { deflateItem, inflateItem } from '../../src/storage/item-deflate.js'
+import { ITEM_DEFLATE_LEVEL, deflateItem, inflateItem } from '../../src/storage/item-deflate.js'
+import { ITEM_DICTIONARY } from '../../src/storage/item-dictionary.js'
+import { STRUCTURE_DICTIONARY } from '../../src/storage/item-structure-dictionary.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import { syntheticSeries } from '../queue/fixtures.js'
 
 /**
- * Format 0x02 keeps the served JSON of an item, so a results page is the stored
+ * Formats 0x02 and 0x03 keep the served JSON of an item, so a results page is the stored
  * text with the sku in front. The reference is the earlier path: the compact
  * form (encodeItem) decoded (decodeItem) and serialised with JSON.stringify. The
  * two must agree byte for byte, for engine results and for generated items with
@@ -91,7 +93,7 @@ const engineItems = (): ResultItem[] =>
     toResultItem(s.sku, forecastSeries({ values: s.values, frequency: 'month', horizon: 12, origins: 1 + (i % 3), start: '2022-01' })),
   )
 
-describe('served JSON of stored items (format 0x02)', () => {
+describe('served JSON of stored items (formats 0x03 and 0x02)', () => {
   it('equals the compact form decoded and serialised, byte for byte, for engine results', () => {
     for (const item of engineItems()) {
       expect(servedItemJson(item.sku, storeItem(item)).toString('utf8')).toBe(reference(item.sku, item))
@@ -128,7 +130,7 @@ describe('served JSON of stored items (format 0x02)', () => {
     fc.assert(
       fc.property(fc.oneof(forecastItem, errorItem), text, (item, sku) => {
         const stored = storeItem(item)
-        expect(stored[0]).toBe(0x02)
+        expect(stored[0]).toBe(0x03)
         expect(servedItemJson(sku, stored).toString('utf8')).toBe(reference(sku, item))
         expect(JSON.stringify(loadItem(sku, stored))).toBe(reference(sku, item))
         expect(`{"sku":${JSON.stringify(sku)},${servedBody(item).slice(1)}`).toBe(reference(sku, item))
@@ -137,11 +139,15 @@ describe('served JSON of stored items (format 0x02)', () => {
     )
   })
 
-  it('serves items of the earlier formats (0x01 deflated, plain compact JSON) as before', () => {
+  it('serves items of the earlier formats (0x02 with the 12 KB dictionary, 0x01 deflated, plain compact JSON) as before', () => {
     fc.assert(
       fc.property(fc.oneof(forecastItem, errorItem), text, (item, sku) => {
         const plain = Buffer.from(encodeItem(item), 'utf8')
         const deflated = Buffer.concat([Buffer.of(0x01), deflateRawSync(plain)])
+        // As format 0x02 was written: the served JSON, raw DEFLATE with ITEM_DICTIONARY.
+        const served = Buffer.concat([Buffer.of(0x02), deflateRawSync(Buffer.from(servedBody(item)), { dictionary: ITEM_DICTIONARY })])
+        expect(servedItemJson(sku, served).toString('utf8')).toBe(reference(sku, item))
+        expect(JSON.stringify(loadItem(sku, served))).toBe(reference(sku, item))
         expect(servedItemJson(sku, plain).toString('utf8')).toBe(reference(sku, item))
         expect(servedItemJson(sku, deflated).toString('utf8')).toBe(reference(sku, item))
       }),
@@ -149,15 +155,29 @@ describe('served JSON of stored items (format 0x02)', () => {
     )
   })
 
-  it('deflate and inflate on the kept zlib state give back the input, also after a corrupt item', () => {
+  it.each(['structure', 'served'] as const)('deflate and inflate on the kept zlib state (%s dictionary) give back the input, also after a corrupt item', (dictionary) => {
     const inputs = engineItems().map((item) => Buffer.from(servedBody(item), 'utf8'))
-    const packed = inputs.map(deflateItem)
-    packed.forEach((p, i) => expect(inflateItem(p).equals(inputs[i]!)).toBe(true))
+    const packed = inputs.map((input) => deflateItem(input, dictionary))
+    packed.forEach((p, i) => expect(inflateItem(p, dictionary).equals(inputs[i]!)).toBe(true))
+    // The same DEFLATE stream zlib's one-shot call writes with the same settings.
+    const settings = { dictionary: dictionary === 'structure' ? STRUCTURE_DICTIONARY : ITEM_DICTIONARY, level: ITEM_DEFLATE_LEVEL, strategy: constants.Z_FILTERED }
+    packed.forEach((p, i) => expect(p.equals(deflateRawSync(inputs[i]!, settings))).toBe(true))
     // Not a deflate stream: zlib's own error, and the next item still inflates.
-    expect(() => inflateItem(Buffer.from([0xff, 0xff, 0xff, 0xff]))).toThrow()
-    expect(inflateItem(packed[0]!).equals(inputs[0]!)).toBe(true)
+    expect(() => inflateItem(Buffer.from([0xff, 0xff, 0xff, 0xff]), dictionary)).toThrow()
+    expect(inflateItem(packed[0]!, dictionary).equals(inputs[0]!)).toBe(true)
     // Larger than the kept buffers: the one-shot path.
     const big = Buffer.from('x'.repeat(300_000) + JSON.stringify(inputs.map(String)))
-    expect(inflateItem(deflateItem(big)).equals(big)).toBe(true)
+    expect(inflateItem(deflateItem(big, dictionary), dictionary).equals(big)).toBe(true)
+  })
+
+  it('need the dictionary an item was written with', () => {
+    const input = Buffer.from(servedBody(engineItems()[0]!), 'utf8')
+    let other: Buffer | undefined
+    try {
+      other = inflateItem(deflateItem(input, 'structure'), 'served')
+    } catch {
+      other = undefined // zlib may also refuse a distance into the wrong dictionary
+    }
+    expect(other?.equals(input) ?? false).toBe(false)
   })
 })

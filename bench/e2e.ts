@@ -28,6 +28,7 @@ import { freePort } from './e2e-port.js'
 import { cpuSeconds, peakRssMiB, serviceEnv, startService, stopAndClean, waitReady, type ServiceProcess } from './e2e-processes.js'
 import { latestIndexBytes, medianItemBytes, redisCpuSeconds, runResultBytes, usedMemory } from './e2e-redis.js'
 import { positiveIntOption } from './cli.js'
+import { WORKER_NODE_FLAGS } from '../src/queue/worker-flags.js'
 
 
 const SKUS = positiveIntOption('skus', 100_000)
@@ -60,7 +61,7 @@ const processes: ServiceProcess[] = []
 try {
   const api = startService('api', 'src/server.ts', env, profArgs('api'))
   processes.push(api)
-  for (let w = 0; w < WORKERS; w++) processes.push(startService(`worker-${w + 1}`, 'src/worker-main.ts', env, profArgs(`worker-${w + 1}`)))
+  for (let w = 0; w < WORKERS; w++) processes.push(startService(`worker-${w + 1}`, 'src/worker-main.ts', env, [...WORKER_NODE_FLAGS, ...profArgs(`worker-${w + 1}`)]))
   await waitReady(api, baseUrl)
 
   // Warm-up: the worker threads load tsx and the engine and JIT-compile during this run.

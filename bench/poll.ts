@@ -20,6 +20,7 @@ import { getRun, pageResults, runBody, skuName, submitRun, waitForRun, type Clie
 import { freePort } from './e2e-port.js'
 import { cpuSeconds, serviceEnv, startService, stopAndClean, waitReady, type ServiceProcess } from './e2e-processes.js'
 import { positiveIntOption } from './cli.js'
+import { WORKER_NODE_FLAGS } from '../src/queue/worker-flags.js'
 
 
 const RATE = positiveIntOption('rate', 1000)
@@ -67,7 +68,7 @@ try {
   // --cpu-prof: a CPU profile of the API process (to find what a request costs).
   const prof = process.argv.includes('--cpu-prof') ? ['--cpu-prof', '--cpu-prof-dir', join(tmpdir(), `almanac-poll-prof-${prefix}`)] : []
   if (prof.length > 0) out(`API CPU profile (written when it exits): ${prof[2]}`)
-  processes.push(startService('api', 'src/server.ts', env, prof), startService('worker-1', 'src/worker-main.ts', env))
+  processes.push(startService('api', 'src/server.ts', env, prof), startService('worker-1', 'src/worker-main.ts', env, [...WORKER_NODE_FLAGS]))
   await waitReady(processes[0]!, baseUrl)
   const known = await waitForRun(client, await submitRun(client, runBody(SEED, 0, KNOWN)), 100)
   if (known.status !== 'succeeded') throw new Error(`first run ${known.status}`)

@@ -4,6 +4,7 @@ import type { Logger } from 'pino'
 import { queuePrefix, type Config } from '../config.js'
 import { RunStore } from '../storage/run-store.js'
 import { workerConnection } from './connection.js'
+import { sandboxExecArgv } from './worker-flags.js'
 import { CHUNK_QUEUE, RECORD_TTL_FACTOR } from './names.js'
 import { ChunkJob } from './payload.js'
 import type { SandboxContext } from './processors/chunk.js'
@@ -77,7 +78,12 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
     prefix: queuePrefix(config),
     concurrency,
     useWorkerThreads: true,
-    workerThreadsOptions: { workerData: sandbox, resourceLimits: sandboxHeapLimits(config.chunkSize) },
+    workerThreadsOptions: {
+      workerData: sandbox,
+      resourceLimits: sandboxHeapLimits(config.chunkSize),
+      // Without V8 flags such as --single-threaded (worker-flags.ts), which Node refuses in a thread's execArgv.
+      execArgv: sandboxExecArgv(process.execArgv),
+    },
     lockDuration: config.workerLockDurationMs ?? 30_000,
     stalledInterval: config.workerStalledIntervalMs ?? 30_000,
     // A chunk whose worker died twice is given up (and its run failed) rather than retried forever.

@@ -72,6 +72,8 @@ export interface SpawnOptions {
    * the last output has been read.
    */
   exitEvent?: 'exit' | 'close'
+  /** Node or V8 flags before `--import tsx` (e.g. a worker's WORKER_NODE_FLAGS). */
+  nodeFlags?: readonly string[]
 }
 
 /**
@@ -81,7 +83,7 @@ export interface SpawnOptions {
  */
 export function spawnTs(entry: string, env: Record<string, string>, options: SpawnOptions = {}): ChildLogs {
   const label = options.label ?? entry
-  const child = spawn(process.execPath, ['--import', 'tsx', entry], {
+  const child = spawn(process.execPath, [...(options.nodeFlags ?? []), '--import', 'tsx', entry], {
     cwd: ROOT,
     env: { PATH: process.env.PATH ?? '', LOG_LEVEL: 'info', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],

@@ -1,3 +1,4 @@
+import { WORKER_NODE_FLAGS } from '../../src/queue/worker-flags.js'
 import { spawnTs, stopProcess, type ChildLogs } from '../helpers/processes.js'
 
 /** A `src/worker-main.ts` child process and the JSON log lines it printed. */
@@ -14,7 +15,7 @@ export interface WorkerProcess extends ChildLogs {
  * has been read.
  */
 export function startWorkerProcess(env: Record<string, string>): WorkerProcess {
-  const proc = spawnTs('src/worker-main.ts', env, { label: 'worker', exitEvent: 'close' })
+  const proc = spawnTs('src/worker-main.ts', env, { label: 'worker', exitEvent: 'close', nodeFlags: WORKER_NODE_FLAGS })
   const { logs } = proc
   return {
     ...proc,

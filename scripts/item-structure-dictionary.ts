@@ -18,12 +18,12 @@
  *   npx tsx scripts/item-structure-dictionary.ts
  */
 import { writeFileSync } from 'node:fs'
-import { constants, deflateRawSync } from 'node:zlib'
+import { deflateRawSync } from 'node:zlib'
 import { syntheticSet } from '../bench/synthetic.js'
 import { forecastSeries, type Frequency } from '../src/engine/index.js'
 import { toResultItem } from '../src/storage/codec.js'
 import { servedBody } from '../src/storage/item-codec.js'
-import { ITEM_DEFLATE_LEVEL } from '../src/storage/item-deflate.js'
+import { ITEM_DEFLATE_LEVEL, ITEM_DEFLATE_STRATEGY } from '../src/storage/item-deflate.js'
 import { ITEM_DICTIONARY } from '../src/storage/item-dictionary.js'
 
 const bodies = (seed: number, count: number, frequency: Frequency, start?: string): Buffer[] =>
@@ -39,7 +39,7 @@ const set = (seed: number): Buffer[] => [
 const sample = set(7)
 const check = set(40)
 const meanSize = (items: Buffer[], dictionary: string) =>
-  items.reduce((a, b) => a + deflateRawSync(b, { dictionary: Buffer.from(dictionary), level: ITEM_DEFLATE_LEVEL, strategy: constants.Z_FILTERED }).length, 0) /
+  items.reduce((a, b) => a + deflateRawSync(b, { dictionary: Buffer.from(dictionary), level: ITEM_DEFLATE_LEVEL, strategy: ITEM_DEFLATE_STRATEGY }).length, 0) /
   items.length
 
 const numberless = ITEM_DICTIONARY.toString('utf8').replace(/(":)-?[0-9][0-9.e+-]*/g, '$1')

@@ -31,7 +31,7 @@ function servedDictionary(stored: Buffer): ItemDictionary | null {
 }
 
 export function storeItem(item: ResultItem): Buffer {
-  return deflateWithHeader(STRUCTURE, servedBytes(item), 'structure')
+  return storeServed(servedBytes(item))
 }
 
 /**

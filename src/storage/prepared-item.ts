@@ -20,7 +20,12 @@ export interface PreparedItem {
 }
 
 export function prepareItem(item: ResultItem): PreparedItem {
-  return { sku: item.sku, stored: storeItem(item), points: 'error' in item ? null : encodePoints(item.forecast) }
+  return { sku: item.sku, stored: storeItem(item), points: pointsOf(item) }
+}
+
+/** The latest-forecast points of an item; null for an error item. */
+function pointsOf(item: ResultItem): string | null {
+  return 'error' in item ? null : encodePoints(item.forecast)
 }
 
 export function prepareItems(items: readonly ResultItem[]): PreparedItem[] {
@@ -49,7 +54,7 @@ export class ItemPreparer {
   private readonly prepared: PreparedItem[] = []
 
   add(item: ResultItem): void {
-    const points = 'error' in item ? null : encodePoints(item.forecast)
+    const points = pointsOf(item)
     const served = servedBytes(item)
     if (this.used + served.length > this.arena.length) this.flush()
     if (served.length > this.arena.length) {

@@ -3,7 +3,7 @@ import { EngineInputError, replenishmentFor, type ForecastResult, type SeriesInp
 import type { Logger } from 'pino'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 import { ChunkTallier, toResultItem } from '../storage/codec.js'
-import { ItemPreparer } from '../storage/prepared-item.js'
+import { prepareItem, type PreparedItem } from '../storage/prepared-item.js'
 import type { CommitOutcome, RunStore } from '../storage/run-store.js'
 import type { ResultItem } from '../storage/types.js'
 import { CHUNK_QUEUE } from './names.js'
@@ -99,16 +99,15 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     const started = performance.now()
     const fitSeconds: number[] = []
     const tallier = new ChunkTallier(run.settings.metric)
-    // Each item is tallied and written as soon as it is fitted: only its bytes wait for the commit (prepared-item.ts).
-    const preparer = new ItemPreparer()
+    // Each item is tallied and encoded as soon as it is fitted: only its bytes wait for the commit (prepared-item.ts).
+    const items: PreparedItem[] = []
     for (const s of series) {
       const t0 = performance.now()
       const item = forecastItem(deps.forecast, run.settings, s)
       fitSeconds.push((performance.now() - t0) / 1000)
       tallier.add(item)
-      preparer.add(item)
+      items.push(prepareItem(item))
     }
-    const items = preparer.finish()
     const computeMs = Math.round(performance.now() - started)
     const tally = tallier.tally()
     const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now())

@@ -132,8 +132,6 @@ export function toResultItem(sku: string, r: ForecastResult): ResultItem {
   }
 }
 
-export { encodeItem, decodeItem } from './item-codec.js'
-
 /** Opaque page cursor: the last SKU of the previous page, base64url. */
 export function encodeCursor(sku: string): string {
   return Buffer.from(sku, 'utf8').toString('base64url')

@@ -1,8 +1,6 @@
-import { findModel, type ModelName } from '../engine/index.js'
-
 /**
- * Number and value writing shared by the stored-item formats (item-compact.ts,
- * item-served.ts): significant-digit rounding, its JSON text, and the
+ * Significant-digit rounding of the numbers in stored result items
+ * (item-served.ts) and latest-forecast records (latest-record.ts), and the
  * replenishment fields kept exactly.
  */
 export const POWERS_OF_TEN = Array.from({ length: 23 }, (_, i) => 10 ** i)
@@ -34,12 +32,10 @@ export function decade(a: number): number {
 }
 
 /**
- * x to `digits` significant digits: the same values as Number(x.toPrecision(digits))
- * (checked on 2,000,000 random values of magnitude 1e-6 to 1e10 and on decimal
- * ties, 4 and 7 digits) at about a quarter of the cost. Each stored item rounds a
- * few hundred numbers; toPrecision took a third of encodeItem's time (bench:e2e
- * worker profile). Powers of ten up to 1e22 are exact doubles, so the scaled value
- * is rounded once; when it lands exactly on .5, the binary value decides, so
+ * x to `digits` significant digits: the same values as Number(x.toPrecision(digits)),
+ * without toPrecision's string round trip (each stored item rounds a few hundred
+ * numbers). Powers of ten up to 1e22 are exact doubles, so the scaled value is
+ * rounded once; when it lands exactly on .5, the binary value decides, so
  * toPrecision (which rounds the exact binary value) answers.
  */
 export function round(x: number, digits: number): number {
@@ -60,9 +56,6 @@ export function round(x: number, digits: number): number {
 export const r7 = (x: number) => round(x, 7)
 export const r4 = (x: number) => round(x, 4)
 
-/** The registered model of that name, or undefined for a name this process does not know. */
-export const knownModel = (name: string) => findModel(name as ModelName)
-
 export const REPLENISHMENT_FIELDS = ['leadTime', 'serviceLevel', 'leadTimeDemand', 'sigma', 'z', 'safetyStock', 'reorderPoint'] as const
 
 /** Options and z kept exactly; the figures to 7 significant digits like forecasts. */
@@ -71,23 +64,6 @@ export const EXACT = new Set<string>(['leadTime', 'serviceLevel', 'z'])
 /** A value as JSON.stringify writes it inside an array: undefined, NaN and Infinity as null. */
 export function jv(v: unknown): string {
   if (typeof v === 'number') return v - v === 0 ? '' + v : 'null'
-  if (typeof v === 'string') return quoted(v)
   const s = JSON.stringify(v)
   return s === undefined ? 'null' : s
-}
-
-
-/**
- * JSON.stringify of a string, remembered: model names, families, statuses,
- * reasons and period labels repeat from item to item. Bounded: cleared when full.
- */
-const QUOTED = new Map<string, string>()
-function quoted(s: string): string {
-  let q = QUOTED.get(s)
-  if (q === undefined) {
-    if (QUOTED.size >= 4096) QUOTED.clear()
-    q = JSON.stringify(s)
-    if (s.length <= 256) QUOTED.set(s, q)
-  }
-  return q
 }

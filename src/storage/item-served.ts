@@ -3,12 +3,15 @@ import { EXACT, POWERS_OF_TEN, REPLENISHMENT_FIELDS, decade, jv, r4, r7, round }
 import type { ResultItem, StoredLeaderboardEntry } from './types.js'
 
 /**
- * The JSON text of an item as served (what JSON.stringify(decodeItem(sku,
- * encodeItem(item))) gives, byte for byte) without its sku: `{"model":...}` or
- * `{"error":...}`. Written straight from the engine result with the same
- * rounding as encodeItem, so a results page is the stored text with the sku
- * put in front (no parsing, no objects per item: decoding and re-serialising
- * pages took most of the API's CPU in bench:e2e).
+ * The JSON text of an item as served, without its sku: `{"model":...}` or
+ * `{"error":...}`. It is JSON.stringify of the item with its numbers rounded
+ * (forecasts, bounds, parameters and replenishment figures to 7 significant
+ * digits, error measures and scores to 4) and a non-finite score left out;
+ * test/storage/item-served.test.ts holds that reference and checks the two
+ * agree byte for byte. Written straight from the engine result, so a results
+ * page is the stored text with the sku put in front: no parsing and no
+ * objects per item on the API, where decoding and re-serialising pages would
+ * cost more than the service spent fitting them.
  */
 export function servedBody(item: ResultItem): string {
   return servedBytes(item).toString('utf8')
@@ -167,7 +170,7 @@ export function roundedJson(x: number, digits: number): string {
 
 /**
  * Writes the JSON text of round(x, digits) (for anything but a number: jv of
- * round, as encodeItem stored it), from the rounded integer mantissa instead of
+ * round, so a missing value is null), from the rounded integer mantissa instead of
  * through Number-to-String of the double: that conversion (shortest round-trip
  * digits) cost ~0.3 us per number, a third of writing an item. round's result
  * is the double nearest m * 10^-p (m the rounded integer: one correctly rounded
@@ -297,7 +300,7 @@ function entry(e: StoredLeaderboardEntry): void {
     text(',"metrics":')
     metrics(e.metrics)
   }
-  // Left out when the rounded score is not a finite number (stored as null before).
+  // Left out when the rounded score is not a finite number (JSON has no NaN or Infinity).
   // round(score) is finite exactly when its JSON is not null (see rounded), without building the text.
   if (typeof e.score === 'number' && Number.isFinite(r4(e.score))) {
     text(',"score":')
@@ -318,8 +321,8 @@ const METRIC_KEYS = METRIC_NAMES.map((k, i) => `${i === 0 ? '{' : ','}${JSON.str
 
 
 /**
- * Keys and `"level":` prefixes of the first point's bounds (encodeItem keeps the levels of
- * the first point). A key such as "80" is kept as the number 80: the same property, but a
+ * Keys and `"level":` prefixes of the first point's bounds (every point of an item has the
+ * same levels, the run's). A key such as "80" is kept as the number 80: the same property, but a
  * string index made every read of a bound take V8's slow keyed path. The last result is
  * reused while the keys are the same (they are the run's levels).
  */

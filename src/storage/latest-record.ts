@@ -18,16 +18,14 @@ import { isValidRunId } from './keys.js'
  *   `j:${JSON [labels, values]}`              any other labels
  *
  * Values keep 7 significant digits, as stored results do; a value that is not
- * finite is written empty and read as no point. Records written before points
- * were kept have three fields (`points` absent); old readers split on `|` and
- * ignore the fourth field, so they still read the new records.
+ * finite is written empty and read as no point.
  */
 export interface LatestRecord {
   readonly createdAtMs: number
   readonly runId: string
   readonly producedAt: string
-  /** The encoded points (decodePoints), or null in a record written before they were kept. */
-  readonly points: string | null
+  /** The encoded points (decodePoints). */
+  readonly points: string
 }
 
 /** A SKU's latest forecast as accuracy scoring reads it: its run and the point forecast per period label. */
@@ -133,21 +131,15 @@ export function recordTail(producedAt: string, points: string): string {
   return `${producedAt}|${points}`
 }
 
-/** A record in either layout, or null when it is malformed. */
+/** A record, or null when it is malformed. */
 export function decodeLatest(value: string): LatestRecord | null {
   const a = value.indexOf('|')
   const b = a < 0 ? -1 : value.indexOf('|', a + 1)
-  if (b < 0) return null
+  const c = b < 0 ? -1 : value.indexOf('|', b + 1)
+  if (c < 0) return null
   const createdAtMs = Number(value.slice(0, a))
   const runId = value.slice(a + 1, b)
-  if (!Number.isFinite(createdAtMs) || !isValidRunId(runId)) return null
-  const c = value.indexOf('|', b + 1)
-  const producedAt = c < 0 ? value.slice(b + 1) : value.slice(b + 1, c)
-  if (producedAt === '') return null
-  return { createdAtMs, runId, producedAt, points: c < 0 ? null : value.slice(c + 1) }
-}
-
-/** True when the record (createdAtMs, runId) comes after the other one: the ordering of the Lua script. */
-export function isNewer(a: Pick<LatestRecord, 'createdAtMs' | 'runId'>, b: Pick<LatestRecord, 'createdAtMs' | 'runId'>): boolean {
-  return a.createdAtMs > b.createdAtMs || (a.createdAtMs === b.createdAtMs && a.runId > b.runId)
+  const producedAt = value.slice(b + 1, c)
+  if (!Number.isFinite(createdAtMs) || !isValidRunId(runId) || producedAt === '') return null
+  return { createdAtMs, runId, producedAt, points: value.slice(c + 1) }
 }

@@ -52,7 +52,7 @@ export async function readStoredPage(redis: RedisClient, prefix: string, tenant:
 /**
  * The JSON body of a results page as UTF-8 bytes: the same text as
  * JSON.stringify({ items, nextCursor }) of the decoded items, built from each
- * item's stored served JSON without parsing it (item-codec.ts, format 0x02).
+ * item's stored served JSON without parsing it (item-codec.ts).
  */
 export function storedPageJson(page: StoredPage): Buffer {
   const parts: Buffer[] = [Buffer.from('{"items":[')]

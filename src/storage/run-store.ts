@@ -12,7 +12,6 @@ import type { PreparedItem } from './prepared-item.js'
 import { readStoredPage } from './result-pages.js'
 import { latestKey, runKeys, isValidRunId, isValidTenant } from './keys.js'
 import { decodeLatest, decodePoints, recordTail, type ForecastPoints, type LatestRecord } from './latest-record.js'
-import { legacySnapshotsKey, takeLegacySnapshots } from './legacy-snapshots.js'
 import { defineRunScripts, type RunScripts } from './scripts.js'
 import { RunStats } from './stats-store.js'
 import {
@@ -197,17 +196,9 @@ export class RunStore {
   async updateLatest(tenant: string, runId: string, createdAtMs: number, producedAt: Date, items: readonly PreparedItem[]): Promise<number> {
     const produced = producedAt.toISOString()
     const args: (string | number)[] = [createdAtMs, runId]
-    const skus: string[] = []
-    for (const item of items) {
-      if (item.points === null) continue
-      args.push(item.sku, recordTail(produced, item.points))
-      skus.push(item.sku)
-    }
-    if (skus.length === 0) return 0
-    const changed = await this.scripts.updateLatest(latestKey(this.opts.prefix, tenant), args)
-    // This run is the newest for every SKU, so an older version's forecast copies of them are superseded.
-    if (changed === skus.length) await this.redis.hdel(legacySnapshotsKey(this.opts.prefix, tenant), ...skus)
-    return changed
+    for (const item of items) if (item.points !== null) args.push(item.sku, recordTail(produced, item.points))
+    if (args.length === 2) return 0
+    return this.scripts.updateLatest(latestKey(this.opts.prefix, tenant), args)
   }
 
   /**
@@ -239,36 +230,21 @@ export class RunStore {
 
   /**
    * What accuracy scoring compares actuals with, per SKU in the order given:
-   * the run and point forecast of the SKU's latest record, also after the
-   * run's results have expired. One HMGET when every record carries its
-   * points. For a record written before records carried them (or none), the
-   * forecast copy an older version kept is moved into the record
-   * (legacy-snapshots.ts), else the run's stored result is read while kept.
+   * the run and point forecast of the SKU's latest record (null when it has
+   * none), also after the run's results have expired. One HMGET.
    */
   async latestPoints(tenant: string, skus: readonly string[]): Promise<(ForecastPoints | null)[]> {
     if (skus.length === 0 || !isValidTenant(tenant)) return skus.map(() => null)
-    const key = latestKey(this.opts.prefix, tenant)
-    const records = (await this.redis.hmget(key, ...skus)).map((v) => (v === null ? null : decodeLatest(v)))
-    const out = records.map((r) => (r === null ? null : pointsOf(r)))
-    const pending = skus.flatMap((_, i) => (out[i] === null ? [i] : []))
-    if (pending.length === 0) return out
-    const entries = pending.map((i) => ({ sku: skus[i]!, record: records[i] ?? null }))
-    const moved = await takeLegacySnapshots(this.redis, this.opts.prefix, tenant, entries, (args) => this.scripts.updateLatest(key, args))
-    pending.forEach((i, j) => (out[i] = moved[j] ?? null))
-    for (const i of pending) {
-      const record = records[i]
-      if (out[i] !== null || !record) continue
-      const stored = await this.redis.hgetBuffer(this.keys(tenant, record.runId).items, skus[i]!)
-      const item = stored === null ? null : loadItem(skus[i]!, stored)
-      if (item && !('error' in item)) out[i] = { runId: record.runId, points: new Map(item.forecast.map((p) => [p.period, p.value])) }
-    }
-    return out
+    const records = await this.redis.hmget(latestKey(this.opts.prefix, tenant), ...skus)
+    return records.map((v) => {
+      const record = v === null ? null : decodeLatest(v)
+      return record === null ? null : pointsOf(record)
+    })
   }
 }
 
-/** The record's points, or null when it has none (older layout) or they cannot be read. */
+/** The record's points, or null when they cannot be read. */
 function pointsOf(record: LatestRecord): ForecastPoints | null {
-  if (record.points === null) return null
   try {
     return { runId: record.runId, points: decodePoints(record.points) }
   } catch {

@@ -111,10 +111,8 @@ return {ARGV[1], st}
  * updateLatest. KEYS: latest. ARGV: createdAtMs, runId, then pairs (sku, tail).
  * Sets each SKU's record to `createdAtMs|runId|tail` (latest-record.ts) unless a
  * run created later already holds it (a run finishing late never overwrites a
- * newer one). Ties go to the larger run id. Reads the ordering fields of records
- * in either layout; a malformed record is replaced. The key never expires:
- * PERSIST drops the TTL an older version set (the index then expired with
- * result retention).
+ * newer one). Ties go to the larger run id; a malformed record is replaced.
+ * The key never expires (accuracy scoring reads the points after results have).
  * Returns how many records changed.
  */
 const UPDATE_LATEST = `
@@ -138,7 +136,6 @@ for i = 3, #ARGV, 2 do
     changed = changed + 1
   end
 end
-redis.call('PERSIST', KEYS[1])
 return changed
 `
 

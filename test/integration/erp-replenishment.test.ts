@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
-import { decodeItem, encodeItem } from '../../src/storage/codec.js'
+import { loadItem, storeItem } from '../../src/storage/item-codec.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import type { RunMachinery } from '../../src/queue/gateway.js'
 import { startService, type TestService } from '../helpers/service.js'
@@ -113,8 +113,8 @@ describe('stored item codec keeps the figures', () => {
       leadTime: 1, serviceLevel: 0.95, leadTimeDemand: 10, sigma: 2.123456789, z: 1.6448536269514715,
       safetyStock: 3.4927512345, reorderPoint: 13.4927512345, formula: 'sigma1-sqrt-lead-time',
     } as const
-    const back = decodeItem('RAKE-1', encodeItem({ ...base, replenishment })) as Forecast
+    const back = loadItem('RAKE-1', storeItem({ ...base, replenishment })) as Forecast
     expect(back.replenishment).toEqual({ ...replenishment, sigma: 2.123457, safetyStock: 3.492751, reorderPoint: 13.49275 })
-    expect(decodeItem('RAKE-1', encodeItem(base))).not.toHaveProperty('replenishment')
+    expect(loadItem('RAKE-1', storeItem(base))).not.toHaveProperty('replenishment')
   })
 })

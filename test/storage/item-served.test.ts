@@ -1,23 +1,50 @@
-import { constants, deflateRawSync } from 'node:zlib'
+import { inflateRawSync } from 'node:zlib'
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
-import { METRIC_NAMES, MODEL_REGISTRY, forecastSeries } from '../../src/engine/index.js'
+import { METRIC_NAMES, MODEL_REGISTRY, forecastSeries, type MetricSet } from '../../src/engine/index.js'
 import { toResultItem } from '../../src/storage/codec.js'
-import { decodeItem, encodeItem, loadItem, round, roundedJson, servedBody, servedItemJson, storeItem } from '../../src/storage/item-codec.js'
-import { ITEM_DEFLATE_LEVEL, deflateItem, inflateItem } from '../../src/storage/item-deflate.js'
-import { ITEM_DICTIONARY } from '../../src/storage/item-dictionary.js'
-import { STRUCTURE_DICTIONARY } from '../../src/storage/item-structure-dictionary.js'
+import { EXACT, REPLENISHMENT_FIELDS } from '../../src/storage/item-common.js'
+import { loadItem, round, roundedJson, servedBody, servedItemJson, storeItem } from '../../src/storage/item-codec.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import { syntheticSeries } from '../queue/fixtures.js'
 
 /**
- * Formats 0x02 and 0x03 keep the served JSON of an item, so a results page is the stored
- * text with the sku in front. The reference is the earlier path: the compact
- * form (encodeItem) decoded (decodeItem) and serialised with JSON.stringify. The
- * two must agree byte for byte, for engine results and for generated items with
- * awkward values (NaN, Infinity, -0, nulls, unknown models, escaped strings).
+ * The specification of the served-JSON writer (item-served.ts): JSON.stringify
+ * of the item, sku first, with forecasts, bounds, parameters and replenishment
+ * figures rounded to 7 significant digits, error measures and scores to 4, and
+ * a score that does not round to a finite number left out. The writer must give
+ * the same bytes for engine results and for generated items with awkward values
+ * (NaN, Infinity, -0, nulls, unknown model names, escaped strings).
  */
-const reference = (sku: string, item: ResultItem) => JSON.stringify(decodeItem(sku, encodeItem(item)))
+function reference(sku: string, item: ResultItem): string {
+  if ('error' in item) return JSON.stringify({ sku, error: { code: item.error.code, message: item.error.message } })
+  const r7 = (x: number) => round(x, 7)
+  const r4 = (x: number) => round(x, 4)
+  const errors = (m: MetricSet) => Object.fromEntries(METRIC_NAMES.map((k) => [k, m[k] === null ? null : r4(m[k])]))
+  const levels = (side: 'lower' | 'upper') => Object.keys(item.forecast[0]?.[side] ?? {})
+  const bounds = (b: Readonly<Record<string, number>>, keys: string[]) => Object.fromEntries(keys.map((l) => [l, r7(b[l]!)]))
+  const r = item.replenishment
+  return JSON.stringify({
+    sku,
+    model: item.model,
+    family: item.family,
+    params: Object.fromEntries(Object.entries(item.params).map(([k, v]) => [k, typeof v === 'number' ? r7(v) : v.map(r7)])),
+    selection: { method: item.selection.method, metric: item.selection.metric, holdout: item.selection.holdout, origins: item.selection.origins },
+    metrics: item.metrics === null ? null : errors(item.metrics),
+    leaderboard: item.leaderboard.map((e) => ({
+      model: e.model,
+      family: e.family,
+      status: e.status,
+      ...(e.metrics ? { metrics: errors(e.metrics) } : {}),
+      ...(e.score !== undefined && Number.isFinite(r4(e.score)) ? { score: r4(e.score) } : {}),
+      ...(e.reason != null ? { reason: e.reason } : {}),
+    })),
+    forecast: item.forecast.map((p) => ({ period: p.period, value: r7(p.value), lower: bounds(p.lower, levels('lower')), upper: bounds(p.upper, levels('upper')) })),
+    intervals: { method: item.intervals.method, levels: item.intervals.levels, clamped: item.intervals.clamped },
+    warnings: item.warnings.map((w) => ({ code: w.code, message: w.message })),
+    ...(r ? { replenishment: { ...Object.fromEntries(REPLENISHMENT_FIELDS.map((k) => [k, r[k] === null || EXACT.has(k) ? r[k] : r7(r[k])])), formula: r.formula } } : {}),
+  })
+}
 
 const text = fc.string({ unit: 'grapheme', maxLength: 12 })
 const num = fc.double()
@@ -93,8 +120,8 @@ const engineItems = (): ResultItem[] =>
     toResultItem(s.sku, forecastSeries({ values: s.values, frequency: 'month', horizon: 12, origins: 1 + (i % 3), start: '2022-01' })),
   )
 
-describe('served JSON of stored items (formats 0x03 and 0x02)', () => {
-  it('equals the compact form decoded and serialised, byte for byte, for engine results', () => {
+describe('served JSON of stored items', () => {
+  it('equals the reference, byte for byte, for engine results', () => {
     for (const item of engineItems()) {
       expect(servedItemJson(item.sku, storeItem(item)).toString('utf8')).toBe(reference(item.sku, item))
       expect(JSON.stringify(loadItem(item.sku, storeItem(item)))).toBe(reference(item.sku, item))
@@ -113,7 +140,7 @@ describe('served JSON of stored items (formats 0x03 and 0x02)', () => {
     )
   })
 
-  it('write numbers in stored items as the earlier path did, for doubles of every magnitude', () => {
+  it('equals the reference for doubles of every magnitude', () => {
     const spread = fc.tuple(fc.double({ min: 1, max: 10, noNaN: true }), fc.integer({ min: -30, max: 30 }), fc.boolean())
       .map(([m, e, neg]) => (neg ? -1 : 1) * m * 10 ** e)
     const base = forecastItemOf(engineItems()[0]!)
@@ -130,7 +157,6 @@ describe('served JSON of stored items (formats 0x03 and 0x02)', () => {
     fc.assert(
       fc.property(fc.oneof(forecastItem, errorItem), text, (item, sku) => {
         const stored = storeItem(item)
-        expect(stored[0]).toBe(0x03)
         expect(servedItemJson(sku, stored).toString('utf8')).toBe(reference(sku, item))
         expect(JSON.stringify(loadItem(sku, stored))).toBe(reference(sku, item))
         expect(`{"sku":${JSON.stringify(sku)},${servedBody(item).slice(1)}`).toBe(reference(sku, item))
@@ -139,45 +165,17 @@ describe('served JSON of stored items (formats 0x03 and 0x02)', () => {
     )
   })
 
-  it('serves items of the earlier formats (0x02 with the 12 KB dictionary, 0x01 deflated, plain compact JSON) as before', () => {
-    fc.assert(
-      fc.property(fc.oneof(forecastItem, errorItem), text, (item, sku) => {
-        const plain = Buffer.from(encodeItem(item), 'utf8')
-        const deflated = Buffer.concat([Buffer.of(0x01), deflateRawSync(plain)])
-        // As format 0x02 was written: the served JSON, raw DEFLATE with ITEM_DICTIONARY.
-        const served = Buffer.concat([Buffer.of(0x02), deflateRawSync(Buffer.from(servedBody(item)), { dictionary: ITEM_DICTIONARY })])
-        expect(servedItemJson(sku, served).toString('utf8')).toBe(reference(sku, item))
-        expect(JSON.stringify(loadItem(sku, served))).toBe(reference(sku, item))
-        expect(servedItemJson(sku, plain).toString('utf8')).toBe(reference(sku, item))
-        expect(servedItemJson(sku, deflated).toString('utf8')).toBe(reference(sku, item))
-      }),
-      { numRuns: 100 },
-    )
-  })
-
-  it.each(['structure', 'served'] as const)('deflate and inflate on the kept zlib state (%s dictionary) give back the input, also after a corrupt item', (dictionary) => {
-    const inputs = engineItems().map((item) => Buffer.from(servedBody(item), 'utf8'))
-    const packed = inputs.map((input) => deflateItem(input, dictionary))
-    packed.forEach((p, i) => expect(inflateItem(p, dictionary).equals(inputs[i]!)).toBe(true))
-    // The same DEFLATE stream zlib's one-shot call writes with the same settings.
-    const settings = { dictionary: dictionary === 'structure' ? STRUCTURE_DICTIONARY : ITEM_DICTIONARY, level: ITEM_DEFLATE_LEVEL, strategy: constants.Z_FILTERED }
-    packed.forEach((p, i) => expect(p.equals(deflateRawSync(inputs[i]!, settings))).toBe(true))
-    // Not a deflate stream: zlib's own error, and the next item still inflates.
-    expect(() => inflateItem(Buffer.from([0xff, 0xff, 0xff, 0xff]), dictionary)).toThrow()
-    expect(inflateItem(packed[0]!, dictionary).equals(inputs[0]!)).toBe(true)
-    // Larger than the kept buffers: the one-shot path.
-    const big = Buffer.from('x'.repeat(300_000) + JSON.stringify(inputs.map(String)))
-    expect(inflateItem(deflateItem(big, dictionary), dictionary).equals(big)).toBe(true)
-  })
-
-  it('need the dictionary an item was written with', () => {
-    const input = Buffer.from(servedBody(engineItems()[0]!), 'utf8')
-    let other: Buffer | undefined
+  it('are deflated with the structure dictionary and need it to be read', () => {
+    const item = engineItems()[0]!
+    const stored = storeItem(item)
+    // The dictionary holds the structure, so an item takes well under half its served JSON.
+    expect(stored.length).toBeLessThan(Buffer.byteLength(servedBody(item)) / 2)
+    let other: string | undefined
     try {
-      other = inflateItem(deflateItem(input, 'structure'), 'served')
+      other = inflateRawSync(stored).toString('utf8')
     } catch {
-      other = undefined // zlib may also refuse a distance into the wrong dictionary
+      other = undefined // zlib refuses a distance into the missing dictionary
     }
-    expect(other?.equals(input) ?? false).toBe(false)
+    expect(other).not.toBe(servedBody(item))
   })
 })

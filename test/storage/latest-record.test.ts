@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest'
 import { FREQUENCIES, periodLabels } from '../../src/engine/index.js'
-import { decodeLatest, decodePoints, encodePoints, isNewer, recordTail } from '../../src/storage/latest-record.js'
+import { decodeLatest, decodePoints, encodePoints, recordTail } from '../../src/storage/latest-record.js'
 
 const points = (labels: readonly string[], value = (i: number) => 10 + i) => labels.map((period, i) => ({ period, value: value(i) }))
 
@@ -84,22 +84,7 @@ describe('latest-forecast records', () => {
     ])
   })
 
-  it('reads a record of the earlier layout (no points)', () => {
-    expect(decodeLatest('1767225600000|run-1|2026-01-01T00:00:05.000Z')).toEqual({
-      createdAtMs: 1767225600000,
-      runId: 'run-1',
-      producedAt: '2026-01-01T00:00:05.000Z',
-      points: null,
-    })
-  })
-
   it('answers null for malformed records', () => {
-    for (const v of ['', 'x', '1|run', 'x|run|2026', '1|bad}id|2026', '1|run|']) expect(decodeLatest(v)).toBeNull()
-  })
-
-  it('orders by creation time, then run id', () => {
-    expect(isNewer({ createdAtMs: 2, runId: 'a' }, { createdAtMs: 1, runId: 'b' })).toBe(true)
-    expect(isNewer({ createdAtMs: 1, runId: 'b' }, { createdAtMs: 1, runId: 'a' })).toBe(true)
-    expect(isNewer({ createdAtMs: 1, runId: 'a' }, { createdAtMs: 1, runId: 'a' })).toBe(false)
+    for (const v of ['', 'x', '1|run', '1|run|2026', 'x|run|2026|m:2026-01:1', '1|bad}id|2026|m:2026-01:1', '1|run||m:2026-01:1']) expect(decodeLatest(v)).toBeNull()
   })
 })

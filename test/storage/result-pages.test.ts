@@ -1,11 +1,8 @@
-import { deflateRawSync } from 'node:zlib'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Redis } from 'ioredis'
 import { forecastSeries } from '../../src/engine/index.js'
 import { RunStore } from '../../src/storage/run-store.js'
 import { tallyItems, toResultItem } from '../../src/storage/codec.js'
-import { encodeItem } from '../../src/storage/item-codec.js'
-import { runKeys } from '../../src/storage/keys.js'
 import { resultsPageJson } from '../../src/storage/result-pages.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
@@ -58,14 +55,6 @@ describe('results pages as JSON text', () => {
       const expected = JSON.stringify(await store.resultsPage('acme', 'pages-1', { limit: 5, sku }))
       expect((await resultsPageJson(redis, prefix, 'acme', 'pages-1', { limit: 5, sku }))?.toString('utf8')).toBe(expected)
     }
-  })
-
-  it('serve items stored in the earlier format (0x01) the same way', async () => {
-    const items = await committedRun('pages-legacy')
-    const k = runKeys(prefix, 'acme', 'pages-legacy')
-    for (const item of items.slice(0, 10)) await redis.hset(k.items, item.sku, Buffer.concat([Buffer.of(0x01), deflateRawSync(encodeItem(item))]))
-    const expected = JSON.stringify(await store.resultsPage('acme', 'pages-legacy', { limit: 25 }))
-    expect((await resultsPageJson(redis, prefix, 'acme', 'pages-legacy', { limit: 25 }))?.toString('utf8')).toBe(expected)
   })
 
   it('are null for an unknown run or tenant and refuse a malformed cursor', async () => {

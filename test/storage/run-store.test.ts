@@ -3,7 +3,6 @@ import { Redis } from 'ioredis'
 import { RunStore } from '../../src/storage/run-store.js'
 import { tallyItems } from '../../src/storage/codec.js'
 import { latestKey, runKeys } from '../../src/storage/keys.js'
-import { legacySnapshotsKey } from '../../src/storage/legacy-snapshots.js'
 import { storeItem } from '../../src/storage/item-codec.js'
 import { RunInputError, type ResultItem } from '../../src/storage/types.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
@@ -147,9 +146,6 @@ describe('RunStore', () => {
 
   it('keeps the records without expiry: points outlive the results, the forecast itself does not', async () => {
     const key = latestKey(prefix, 'keep')
-    // An earlier version set a retention TTL on the index; the next write removes it.
-    await redis.hset(key, 'OLD', `${t0.getTime()}|run-0|${t0.toISOString()}`)
-    await redis.expire(key, 600)
     await store.createRun('keep', 'keep-1', runRequest(syntheticSeries(1)), 1, t0)
     const items = okItems(['SKU-00000'], [1.23456789, 2])
     await store.commitChunk('keep', 'keep-1', 0, prepareItems(items), tallyItems(items, 'mase'), t0)
@@ -164,44 +160,11 @@ describe('RunStore', () => {
     ])
   })
 
-  it('reads records of the earlier layout: the forecast and, while kept, the points from the run', async () => {
-    const key = latestKey(prefix, 'old')
-    await store.createRun('old', 'old-1', runRequest(syntheticSeries(1)), 1, t0)
-    const items = okItems(['SKU-00000'], [5])
-    await store.commitChunk('old', 'old-1', 0, prepareItems(items), tallyItems(items, 'mase'), t0)
-    await redis.hset(key, 'SKU-00000', `${t0.getTime()}|old-1|2026-03-01T10:00:02.000Z`)
-    expect(await store.latest('old', 'SKU-00000')).toMatchObject({ runId: 'old-1', producedAt: '2026-03-01T10:00:02.000Z' })
-    expect((await store.latestPoints('old', ['SKU-00000'])).map(pointsOf)).toEqual([['old-1', [['2027-01', 5]]]])
-    await redis.unlink(runKeys(prefix, 'old', 'old-1').items)
-    expect(await store.latestPoints('old', ['SKU-00000'])).toEqual([null])
-  })
-
-  it("moves an earlier version's forecast copy (acc:fc) into the record when scoring reads it", async () => {
-    const key = latestKey(prefix, 'legacy')
-    const legacy = legacySnapshotsKey(prefix, 'legacy')
-    const at = t0.getTime()
-    const copy = (runId: string, created: number, value: number) => `${created}|${runId}|${JSON.stringify([['2027-01', '2027-02'], [value, value + 1]])}`
-    // A: pointer of the same run (earlier layout) and its copy; B: copy only (the pointer expired);
-    // C: pointer of a newer run than its copy (the copy is stale); D: copy of an older run than D's new record.
-    await redis.hset(key, 'A', `${at}|run-1|2026-03-01T10:00:09.000Z`, 'C', `${at + 10}|run-9|2026-03-01T10:00:09.000Z`)
-    await store.updateLatest('legacy', 'run-5', at + 5, t0, prepareItems(okItems(['D'], [50])))
-    await redis.hset(legacy, 'A', copy('run-1', at, 1.123456789), 'B', copy('run-2', at, 20), 'C', copy('run-3', at, 30), 'D', copy('run-4', at, 40))
-    const got = await store.latestPoints('legacy', ['A', 'B', 'C', 'D'])
-    expect(got.map(pointsOf)).toEqual([
-      ['run-1', [['2027-01', 1.123457], ['2027-02', 2.123457]]],
-      ['run-2', [['2027-01', 20], ['2027-02', 21]]],
-      null,
-      ['run-5', [['2027-01', 50]]],
-    ])
-    // Moved into the records (A keeps its producedAt) and deleted, except D's, which nothing read.
-    expect(await redis.hkeys(legacy)).toEqual(['D'])
-    expect(await redis.hget(key, 'A')).toMatch(/^\d+\|run-1\|2026-03-01T10:00:09.000Z\|m:2027-01:1.123457,2.123457$/)
-    expect(await redis.hget(key, 'B')).toMatch(/\|run-2\|2026-03-01T10:00:00.000Z\|m:2027-01:20,21$/)
-    expect(await redis.hget(key, 'C')).toMatch(/\|run-9\|/)
-    expect((await store.latestPoints('legacy', ['A', 'B'])).map(pointsOf)).toEqual(got.slice(0, 2).map(pointsOf))
-    // A run that takes a chunk's SKUs deletes their copies.
-    expect(await store.updateLatest('legacy', 'run-6', at + 6, t0, prepareItems(okItems(['D'])))).toBe(1)
-    expect(await redis.exists(legacy)).toBe(0)
+  it('reads a malformed record as no forecast', async () => {
+    const key = latestKey(prefix, 'bad')
+    await redis.hset(key, 'A', `${t0.getTime()}|run-1|${t0.toISOString()}`, 'B', 'not a record', 'C', `${t0.getTime()}|run-1|${t0.toISOString()}|m:2027-01:x,`)
+    expect(await store.latest('bad', 'A')).toBeNull()
+    expect((await store.latestPoints('bad', ['A', 'B', 'C'])).map(pointsOf)).toEqual([null, null, ['run-1', []]])
   })
 
   it('answers null for unknown runs and malformed ids', async () => {

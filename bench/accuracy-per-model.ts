@@ -28,11 +28,11 @@ export function perModel(series: readonly FixtureSeries[]): { rows: PerModelRow[
       if (scale === null) continue
       try {
         const r = forecastSeries({
-          values: s.train, frequency: s.frequency, seasonLength: s.seasonLength,
+          demand: s.train, frequency: s.frequency, seasonLength: s.seasonLength,
           horizon: s.test.length, models: [spec.name],
         })
         if (r.model !== spec.name) continue // the engine fell back (e.g. flat history)
-        const score = mase(s.test, r.forecast.map((p) => p.value), scale)
+        const score = mase(s.test, r.forecast.map((p) => p.demand), scale)
         const reference = mase(s.test, s.ets.forecast, scale)
         own[groupOf(s)].push(score)
         ets[groupOf(s)].push(reference)

@@ -5,8 +5,8 @@
  * scripts/accuracy/make_fixture.py; sources named per series in the fixture).
  *
  * Usage: npm run bench:accuracy [-- --json] [--per-model] [--origin last|previous]
- *        [--origins N] [--holdout N] [--metric mase]
- * (--origins, --holdout and --metric are passed to the engine to compare settings; the
+ *        [--holdout-origins N] [--holdout-periods N] [--rank-by mase]
+ * (--holdout-origins, --holdout-periods and --rank-by are passed to the engine to compare settings; the
  * targets are judged on the defaults, i.e. without options, at the last origin).
  * --origin previous holds out the season before the last instead (train on every
  * point before it, references made the same way): a second, earlier test set that a
@@ -37,15 +37,15 @@ if (!(ORIGINS as readonly string[]).includes(originOption)) throw new Error(`--o
 const origin = originOption as Origin
 const fixture = atOrigin(loadFixture(), origin)
 const originNote = origin === 'last' ? 'last season held out' : 'season before the last held out (earlier origin)'
-const settings: { origins?: number; holdout?: number; metric?: MetricName } = {}
-for (const key of ['origins', 'holdout'] as const) {
-  const raw = option(key)
+const settings: { holdoutOrigins?: number; holdoutPeriods?: number; rankBy?: MetricName } = {}
+for (const [flag, key] of [['holdout-origins', 'holdoutOrigins'], ['holdout-periods', 'holdoutPeriods']] as const) {
+  const raw = option(flag)
   if (raw !== undefined) settings[key] = Number(raw)
 }
-const metricOption = option('metric')
-if (metricOption !== undefined) {
-  if (!(METRIC_NAMES as readonly string[]).includes(metricOption)) throw new Error(`--metric must be one of ${METRIC_NAMES.join(', ')}`)
-  settings.metric = metricOption as MetricName
+const rankByOption = option('rank-by')
+if (rankByOption !== undefined) {
+  if (!(METRIC_NAMES as readonly string[]).includes(rankByOption)) throw new Error(`--rank-by must be one of ${METRIC_NAMES.join(', ')}`)
+  settings.rankBy = rankByOption as MetricName
 }
 const settingsNote = Object.keys(settings).length === 0 ? 'engine defaults' : `engine settings ${JSON.stringify(settings)}`
 
@@ -67,8 +67,8 @@ for (const s of fixture.series) {
   let result
   try {
     result = forecastSeries({
-      values: s.train, frequency: s.frequency, seasonLength: s.seasonLength,
-      horizon: s.test.length, ...(s.start ? { start: s.start } : {}), ...settings,
+      demand: s.train, frequency: s.frequency, seasonLength: s.seasonLength,
+      horizon: s.test.length, ...(s.start ? { firstPeriod: s.start } : {}), ...settings,
     })
   } catch (err) {
     failures.push({ name: s.name, error: err instanceof Error ? err.message : String(err) })
@@ -76,9 +76,10 @@ for (const s of fixture.series) {
   }
   const ms = performance.now() - began
   const points = result.forecast
-  const almanac = score(s, scale, points.map((p) => p.value), {
-    l80: points.map((p) => p.lower['80']), u80: points.map((p) => p.upper['80']),
-    l95: points.map((p) => p.lower['95']), u95: points.map((p) => p.upper['95']),
+  const bound = (level: number, side: 'low' | 'high') => points.map((p) => p.intervals.find((i) => i.level === level)?.[side] ?? NaN)
+  const almanac = score(s, scale, points.map((p) => p.demand), {
+    l80: bound(80, 'low'), u80: bound(80, 'high'),
+    l95: bound(95, 'low'), u95: bound(95, 'high'),
   })
   rows.push({
     name: s.name, group: s.seasonLength === 12 ? 'monthly' : s.seasonLength === 4 ? 'quarterly' : 'non-seasonal', model: result.model, etsModel: s.ets.model, ms,

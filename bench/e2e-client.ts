@@ -20,7 +20,7 @@ export function runBody(seed: number, first: number, count: number): string {
   const parts: string[] = []
   for (let i = first; i < first + count; i++) {
     const values = syntheticSeries(random, SHAPES[i % SHAPES.length]!, LENGTH)
-    parts.push(`{"sku":"${skuName(i)}","start":"2021-01","values":[${values.join(',')}]}`)
+    parts.push(`{"sku":"${skuName(i)}","firstPeriod":"2021-01","demand":[${values.join(',')}]}`)
   }
   return `{"horizon":${HORIZON},"frequency":"month","series":[${parts.join(',')}]}`
 }
@@ -90,7 +90,7 @@ export async function pageResults(client: Client, runId: string, limit = 1000): 
     const page = JSON.parse(text) as { items: Record<string, unknown>[]; nextCursor: string | null }
     out.pages++
     out.items += page.items.length
-    for (const item of page.items) if ('error' in item) out.errors++
+    for (const item of page.items) if ('failure' in item) out.errors++
     out.sample ??= page.items[0] ?? null
     cursor = page.nextCursor
   } while (cursor !== null)

@@ -46,7 +46,7 @@ const unused = (): never => {
 const gateway: RunGateway = { submit: unused, get: unused, results: unused, cancel: unused, latestForecast: unused, ping: unused, stats: unused }
 
 function* csv(rows: number): Generator<string> {
-  yield 'sku,period,quantity\n'
+  yield 'sku,period,demand\n'
   const days = Math.ceil(rows / SKUS)
   for (let d = 0; d < days; d++) {
     const date = new Date(Date.UTC(2000, 0, 1) + d * 86_400_000).toISOString().slice(0, 10)

@@ -26,7 +26,7 @@ const out = (line = ''): void => {
 }
 
 const items: ResultItem[] = syntheticSet(SEED, ITEMS, 60).map((s, i) =>
-  toResultItem(`SKU-${String(i).padStart(7, '0')}`, forecastSeries({ values: s.values, frequency: 'month', horizon: 12 })),
+  toResultItem(`SKU-${String(i).padStart(7, '0')}`, 'month', forecastSeries({ demand: s.values, frequency: 'month', horizon: 12 })),
 )
 const stored = items.map(storeItem)
 const served = items.map((it) => Buffer.from(servedBytes(it)))

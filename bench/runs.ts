@@ -45,7 +45,7 @@ const config: Config = {
 const random = createRandom(20260301)
 const series: SeriesItem[] = Array.from({ length: count }, (_, i) => ({
   sku: `B-${String(i).padStart(6, '0')}`,
-  values: syntheticSeries(random, SHAPES[i % SHAPES.length]!, 36 + (i % 25)),
+  demand: syntheticSeries(random, SHAPES[i % SHAPES.length]!, 36 + (i % 25)),
 }))
 
 // Baseline: the engine alone on this thread over a sample (second pass, JIT warm),
@@ -55,7 +55,7 @@ const engineSample = series.slice(0, Math.min(500, count))
 const forecastAll = () => {
   for (const s of engineSample) {
     try {
-      forecastSeries({ values: s.values, frequency: 'month', horizon: 12 })
+      forecastSeries({ demand: s.demand, frequency: 'month', horizon: 12 })
     } catch {
       // Rejected series cost time too; the run counts them as failed items.
     }

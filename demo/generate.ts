@@ -54,8 +54,8 @@ const FLAT = profile(Array.from({ length: 12 }, () => 1))
 
 interface DemoSeries {
   sku: string
-  start: string
-  values: (number | null)[]
+  firstPeriod: string
+  demand: (number | null)[]
 }
 
 function startLabel(months: number): string {
@@ -73,7 +73,7 @@ function regular(sku: string, months: number, level: number, monthlyGrowth: numb
     const mean = level * Math.pow(1 + monthlyGrowth, t) * s * Math.exp(0.08 * normal())
     values.push(poisson(mean))
   }
-  return { sku, start, values }
+  return { sku, firstPeriod: start, demand: values }
 }
 
 function slowMover(sku: string, months: number): DemoSeries {
@@ -81,14 +81,14 @@ function slowMover(sku: string, months: number): DemoSeries {
   const size = uniform(1, 4)
   const values: number[] = []
   for (let t = 0; t < months; t++) values.push(random() < chance ? 1 + poisson(size - 1) : 0)
-  return { sku, start: startLabel(months), values }
+  return { sku, firstPeriod: startLabel(months), demand: values }
 }
 
 function newProduct(sku: string, season: readonly number[], level: number): DemoSeries {
   const months = integer(24, 36)
   const zeros = integer(4, 14) // catalogue opened before the first sale
   const base = regular(sku, months, level, 0.01, season, 0.8)
-  base.values = base.values.map((v, t) => {
+  base.demand = base.demand.map((v, t) => {
     if (t < zeros) return 0
     const ramp = Math.min(1, (t - zeros + 1) / 6) // six-month launch ramp
     return Math.round((v ?? 0) * ramp)
@@ -119,17 +119,17 @@ function build(): DemoSeries[] {
   // Null gaps: months lost in a warehouse system change (invented), on a few long series.
   for (const sku of ['GRD-1003', 'HTG-2005', 'WRK-3010']) {
     const series = out.find((s) => s.sku === sku)
-    if (!series || series.values.length < 30) continue
-    const at = series.values.length - integer(14, 20)
-    series.values[at] = null
-    if (sku === 'HTG-2005') series.values[at + 1] = null
+    if (!series || series.demand.length < 30) continue
+    const at = series.demand.length - integer(14, 20)
+    series.demand[at] = null
+    if (sku === 'HTG-2005') series.demand[at + 1] = null
   }
   return out
 }
 
 const here = dirname(fileURLToPath(import.meta.url))
 const series = build()
-const settings = { horizon: HORIZON, frequency: 'month', intervals: [80, 95], metric: 'mase' }
+const settings = { horizon: HORIZON, frequency: 'month', intervalLevels: [80, 95], rankBy: 'mase' }
 const write = (file: string, body: unknown): void => {
   writeFileSync(join(here, file), JSON.stringify(body) + '\n')
 }

@@ -25,7 +25,7 @@ import { ITEM_DEFLATE_OPTIONS, servedBody } from '../src/storage/item-codec.js'
 
 const bodies = (seed: number, count: number, frequency: Frequency, start?: string): Buffer[] =>
   syntheticSet(seed, count, 60).map((s, i) =>
-    Buffer.from(servedBody(toResultItem(`S-${i}`, forecastSeries({ values: s.values, frequency, horizon: 12, ...(start ? { start } : {}) })))),
+    Buffer.from(servedBody(toResultItem(`S-${i}`, frequency, forecastSeries({ demand: s.values, frequency, horizon: 12, ...(start ? { firstPeriod: start } : {}) })))),
   )
 const set = (seed: number, scale: number): Buffer[] => [
   ...bodies(seed, 30 * scale, 'month', '2021-01'),
@@ -41,7 +41,8 @@ const meanSize = (items: Buffer[], dictionary: string) => {
   return items.reduce((a, b) => a + deflateRawSync(b, options).length, 0) / items.length
 }
 
-const numberless = (body: Buffer) => body.toString('utf8').replace(/(":)-?[0-9][0-9.e+-]*/g, '$1')
+// Numbers after a key, in arrays and lists; a digit inside text (`2024-01`, `lag 12`) follows a quote, letter or blank.
+const numberless = (body: Buffer) => body.toString('utf8').replace(/(?<=[:[,])-?[0-9][0-9.eE+-]*/g, '')
 let pieces = [...new Set(source.flatMap((b) => numberless(b).split(/(?<=\}),(?=\{)/)))]
 let size = meanSize(sample, pieces.join(','))
 for (let pass = 0; pass < 2; pass++) {

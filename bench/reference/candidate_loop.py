@@ -9,16 +9,16 @@ part; Hyndman and Koehler 2006, "Another look at measures of forecast
 accuracy"), pick the lowest, refit the winner on the whole series and forecast
 `horizon` periods.
 
-Candidates (statsmodels 0.13.5 classes, default settings otherwise):
-  ses                          SimpleExpSmoothing, initialization_method="estimated"
-  holt                         Holt, initialization_method="estimated"
-  damped-holt                  Holt(damped_trend=True), initialization_method="estimated"
-  holt-winters-additive        ExponentialSmoothing(trend="add", seasonal="add")
-  holt-winters-multiplicative  ExponentialSmoothing(trend="add", seasonal="mul")
-  seasonal-naive               the last season repeated (numpy)
-  linear-trend                 OLS of y on (1, t)
-  decomposition-cma            seasonal_decompose(model="multiplicative") figure, OLS line
-                               through the de-seasonalised series, line times figure
+Candidates, by Almanac's model id (statsmodels 0.13.5 classes, default settings otherwise):
+  level-smoothing                        SimpleExpSmoothing, initialization_method="estimated"
+  trend-smoothing                        Holt, initialization_method="estimated"
+  damped-trend-smoothing                 Holt(damped_trend=True), initialization_method="estimated"
+  trend-smoothing-additive-season        ExponentialSmoothing(trend="add", seasonal="add")
+  trend-smoothing-multiplicative-season  ExponentialSmoothing(trend="add", seasonal="mul")
+  last-season                            the last season repeated (numpy)
+  linear-trend                           OLS of y on (1, t)
+  linear-trend-season-ratios             seasonal_decompose(model="multiplicative") figure, OLS line
+                                         through the de-seasonalised series, line times figure
 Multiplicative candidates are skipped unless every value is positive (as the
 engine does). A candidate that raises or gives a non-finite forecast is skipped.
 
@@ -42,16 +42,16 @@ from statsmodels.tsa.holtwinters import ExponentialSmoothing, Holt, SimpleExpSmo
 from statsmodels.tsa.seasonal import seasonal_decompose
 
 CANDIDATES = [
-    "ses",
-    "holt",
-    "damped-holt",
-    "holt-winters-additive",
-    "holt-winters-multiplicative",
-    "seasonal-naive",
+    "level-smoothing",
+    "trend-smoothing",
+    "damped-trend-smoothing",
+    "trend-smoothing-additive-season",
+    "trend-smoothing-multiplicative-season",
+    "last-season",
     "linear-trend",
-    "decomposition-cma",
+    "linear-trend-season-ratios",
 ]
-MULTIPLICATIVE = {"holt-winters-multiplicative", "decomposition-cma"}
+MULTIPLICATIVE = {"trend-smoothing-multiplicative-season", "linear-trend-season-ratios"}
 
 
 def linear_line(y):
@@ -64,25 +64,25 @@ def linear_line(y):
 def fit_forecast(model, y, m, horizon):
     """Fit `model` on y and return `horizon` point forecasts."""
     n = len(y)
-    if model == "ses":
+    if model == "level-smoothing":
         return SimpleExpSmoothing(y, initialization_method="estimated").fit().forecast(horizon)
-    if model == "holt":
+    if model == "trend-smoothing":
         return Holt(y, initialization_method="estimated").fit().forecast(horizon)
-    if model == "damped-holt":
+    if model == "damped-trend-smoothing":
         return Holt(y, damped_trend=True, initialization_method="estimated").fit().forecast(horizon)
-    if model in ("holt-winters-additive", "holt-winters-multiplicative"):
-        seasonal = "add" if model == "holt-winters-additive" else "mul"
+    if model in ("trend-smoothing-additive-season", "trend-smoothing-multiplicative-season"):
+        seasonal = "add" if model == "trend-smoothing-additive-season" else "mul"
         es = ExponentialSmoothing(
             y, trend="add", seasonal=seasonal, seasonal_periods=m, initialization_method="estimated"
         )
         return es.fit().forecast(horizon)
-    if model == "seasonal-naive":
+    if model == "last-season":
         last = y[n - m:]
         return np.array([last[h % m] for h in range(horizon)])
     if model == "linear-trend":
         intercept, slope = linear_line(y)
         return intercept + slope * np.arange(n + 1, n + horizon + 1, dtype=float)
-    if model == "decomposition-cma":
+    if model == "linear-trend-season-ratios":
         figure = seasonal_decompose(y, model="multiplicative", period=m).seasonal[:m]
         factors = np.array([figure[t % m] for t in range(n)])
         intercept, slope = linear_line(y / factors)

@@ -41,14 +41,14 @@ const TARGET_RATIO = 250
 // Debian's interpreter, where python3-statsmodels is installed; PYTHON overrides.
 const PYTHON = process.env.PYTHON ?? '/usr/bin/python3'
 const MODELS: readonly ModelName[] = [
-  'ses',
-  'holt',
-  'damped-holt',
-  'holt-winters-additive',
-  'holt-winters-multiplicative',
-  'seasonal-naive',
+  'level-smoothing',
+  'trend-smoothing',
+  'damped-trend-smoothing',
+  'trend-smoothing-additive-season',
+  'trend-smoothing-multiplicative-season',
+  'last-season',
   'linear-trend',
-  'decomposition-cma',
+  'linear-trend-season-ratios',
 ]
 const out = (line = ''): void => {
   process.stdout.write(line + '\n')
@@ -86,18 +86,18 @@ function runOurs(values: readonly number[]): OurRun {
   const began = performance.now()
   let result
   try {
-    result = forecastSeries({ values, frequency: 'month', horizon: HORIZON, holdout: HOLDOUT, models: MODELS })
+    result = forecastSeries({ demand: values, frequency: 'month', horizon: HORIZON, holdoutPeriods: HOLDOUT, models: MODELS })
   } catch {
     return { ms: performance.now() - began, model: null, mase: null, bestHoldoutMase: null, forecast: null }
   }
   const ms = performance.now() - began
-  const scored = result.leaderboard.map((e) => e.metrics?.mase).filter((m): m is number => typeof m === 'number')
+  const scored = result.candidates.map((e) => e.holdoutErrors?.mase).filter((m): m is number => typeof m === 'number')
   return {
     ms,
     model: result.model,
-    mase: result.metrics?.mase ?? null,
+    mase: result.holdoutErrors?.mase ?? null,
     bestHoldoutMase: scored.length > 0 ? Math.min(...scored) : null,
-    forecast: result.forecast.map((p) => p.value),
+    forecast: result.forecast.map((p) => p.demand),
   }
 }
 

@@ -14,14 +14,17 @@ export class EngineInputError extends Error {
   constructor(
     readonly code: EngineErrorCode,
     message: string,
-    /** Field path relative to the series input, e.g. `values[3]` or `horizon`. */
+    /** Field path relative to the series input, e.g. `demand[3]` or `horizon`. */
     readonly field?: string,
   ) {
     super(message)
   }
 }
 
-/** One message form for short input, e.g. `holtWinters requires at least 24 data points`. */
-export function tooShort(method: string, minimum: number): EngineInputError {
-  return new EngineInputError('series-too-short', `${method} requires at least ${minimum} data points`)
+/**
+ * One message form for short input, naming the public model id and what is missing,
+ * e.g. `trend-smoothing-additive-season needs 24 periods, has 20`.
+ */
+export function tooShort(model: string, minimum: number, has: number): EngineInputError {
+  return new EngineInputError('series-too-short', `${model} needs ${minimum} periods, has ${has}`)
 }

@@ -12,7 +12,7 @@
  *          with lag m = seasonLength, lag 1 when m = 1 or the training data has no more
  *          than m points (Hyndman & Koehler 2006, "Another look at measures of forecast
  *          accuracy", IJF 22(4), eq. for q_t); null when the scale is 0 or undefined
- *  - wape  sum |e| / sum |actual| (a ratio, not percent); null when sum |actual| is 0
+ *  - wape  100 * sum |e| / sum |actual| (percent, like mape); null when sum |actual| is 0
  *
  * All sums are compensated (Neumaier, as numeric.sum, accumulated in one pass without
  * intermediate arrays). Pure.
@@ -101,7 +101,7 @@ export function computeMetrics(
     mape,
     smape,
     mase: scale === null ? null : mae / scale,
-    wape: sumAbsActual > 0 ? sumAbs / sumAbsActual : null,
+    wape: sumAbsActual > 0 ? (100 * sumAbs) / sumAbsActual : null,
   })
 }
 

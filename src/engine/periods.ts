@@ -86,14 +86,14 @@ const EXAMPLES: Readonly<Record<Frequency, string>> = {
 function invalid(label: string, frequency: Frequency, why: string): EngineInputError {
   return new EngineInputError(
     'invalid-period',
-    `start "${label}" is not a valid ${frequency} label (${why}; expected like ${EXAMPLES[frequency]})`,
-    'start',
+    `firstPeriod "${label}" is not a valid ${frequency} label (${why}; expected like ${EXAMPLES[frequency]})`,
+    'firstPeriod',
   )
 }
 
 /**
  * Integer ordinal of a period label for the frequency.
- * @throws EngineInputError('invalid-period', field 'start') on a malformed label,
+ * @throws EngineInputError('invalid-period', field 'firstPeriod') on a malformed label,
  *   an out-of-range part, or a label of another frequency.
  */
 export function parsePeriod(label: string, frequency: Frequency): number {
@@ -161,7 +161,7 @@ export function formatPeriod(ordinal: number, frequency: Frequency): string {
     }
   }
   if (year < MIN_YEAR || year > MAX_YEAR) {
-    throw new EngineInputError('invalid-period', `periods must stay within years 0001..9999`, 'start')
+    throw new EngineInputError('invalid-period', `periods must stay within years 0001..9999`, 'firstPeriod')
   }
   return label
 }

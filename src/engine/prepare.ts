@@ -1,8 +1,8 @@
 /**
  * Input validation and data preparation: the first step of `forecastSeries`.
  *
- * 1. Validate options and values (EngineInputError with a code and the field).
- * 2. Fill missing (null) periods: 'zero' (default) or 'interpolate' (linear between the
+ * 1. Validate options and demand (EngineInputError with a code and the field).
+ * 2. Fill missing (null) periods (`missingPeriods`): 'zero' (default) or 'interpolate' (linear between the
  *    nearest known neighbours; leading/trailing gaps take the nearest known value).
  * 3. Trim zeros before the first non-zero period (unless keepLeadingZeros); the first
  *    period label moves forward by the number trimmed. An all-zero history is kept whole.
@@ -37,22 +37,22 @@ export const ENGINE_LIMITS = {
 export const DEFAULT_LEVELS: readonly number[] = [80, 95]
 
 export interface PreparedSeries {
-  /** History after filling and trimming: finite, and non-negative unless allowNegative. */
+  /** History after filling and trimming: finite, and non-negative unless allowNegativeDemand. */
   readonly values: readonly number[]
   readonly frequency: Frequency
-  readonly start?: string
+  readonly firstPeriod?: string
   readonly seasonLength: number
   readonly horizon: number
   /** As given; the default is chosen in select/holdout.ts. */
-  readonly holdout?: number
-  readonly metric: MetricName
+  readonly holdoutPeriods?: number
+  readonly rankBy: MetricName
   /** As given (deduplicated); undefined means "all the history allows". */
   readonly models?: readonly ModelName[]
   /** Sorted ascending, deduplicated. */
   readonly levels: readonly number[]
-  readonly allowNegative: boolean
-  readonly origins: number
-  /** Periods trimmed from the front: labels of `values[0]` = start + offset. */
+  readonly allowNegativeDemand: boolean
+  readonly holdoutOrigins: number
+  /** Periods trimmed from the front: labels of `values[0]` = firstPeriod + offset. */
   readonly offset: number
   /** 'all-zero' or 'constant' history: flat forecast, no selection. */
   readonly flat: 'all-zero' | 'constant' | null
@@ -84,13 +84,13 @@ function validateOptions(input: SeriesInput): void {
   if (input.horizon === undefined) throw option('horizon is required', 'horizon')
   intIn(input.horizon, 1, ENGINE_LIMITS.maxHorizon, 'horizon')
   intIn(input.seasonLength, 1, ENGINE_LIMITS.maxSeasonLength, 'seasonLength')
-  intIn(input.holdout, 1, ENGINE_LIMITS.maxHoldout, 'holdout')
-  intIn(input.origins, 1, ENGINE_LIMITS.maxOrigins, 'origins')
-  if (input.metric !== undefined && !METRIC_NAMES.includes(input.metric)) {
-    throw option(`metric must be one of ${METRIC_NAMES.join(', ')}`, 'metric')
+  intIn(input.holdoutPeriods, 1, ENGINE_LIMITS.maxHoldout, 'holdoutPeriods')
+  intIn(input.holdoutOrigins, 1, ENGINE_LIMITS.maxOrigins, 'holdoutOrigins')
+  if (input.rankBy !== undefined && !METRIC_NAMES.includes(input.rankBy)) {
+    throw option(`rankBy must be one of ${METRIC_NAMES.join(', ')}`, 'rankBy')
   }
-  if (input.fillPolicy !== undefined && input.fillPolicy !== 'zero' && input.fillPolicy !== 'interpolate') {
-    throw option(`fillPolicy must be 'zero' or 'interpolate'`, 'fillPolicy')
+  if (input.missingPeriods !== undefined && input.missingPeriods !== 'zero' && input.missingPeriods !== 'interpolate') {
+    throw option(`missingPeriods must be 'zero' or 'interpolate'`, 'missingPeriods')
   }
   if (input.models !== undefined) {
     if (input.models.length === 0) throw option('models must list at least one model', 'models')
@@ -98,38 +98,38 @@ function validateOptions(input: SeriesInput): void {
       if (!MODEL_NAMES.includes(m)) throw option(`unknown model "${m}"`, `models[${i}]`)
     })
   }
-  if (input.intervals !== undefined) {
-    if (input.intervals.length > ENGINE_LIMITS.maxLevels) {
-      throw option(`intervals may list at most ${ENGINE_LIMITS.maxLevels} levels`, 'intervals')
+  if (input.intervalLevels !== undefined) {
+    if (input.intervalLevels.length > ENGINE_LIMITS.maxLevels) {
+      throw option(`intervalLevels may list at most ${ENGINE_LIMITS.maxLevels} levels`, 'intervalLevels')
     }
-    input.intervals.forEach((level, i) => {
+    input.intervalLevels.forEach((level, i) => {
       if (typeof level !== 'number' || !(level > 0 && level < 100)) {
-        throw option(`interval level must be a percentage strictly between 0 and 100 (got ${level})`, `intervals[${i}]`)
+        throw option(`an interval level must be a percentage strictly between 0 and 100 (got ${level})`, `intervalLevels[${i}]`)
       }
     })
   }
 }
 
-function validateValues(values: readonly (number | null)[], allowNegative: boolean): void {
-  if (!Array.isArray(values) || values.length === 0) {
-    throw new EngineInputError('empty-series', 'values must hold at least one period', 'values')
+function validateDemand(demand: readonly (number | null)[], allowNegativeDemand: boolean): void {
+  if (!Array.isArray(demand) || demand.length === 0) {
+    throw new EngineInputError('empty-series', 'demand must hold at least one period', 'demand')
   }
   let known = 0
-  values.forEach((v, i) => {
+  demand.forEach((v, i) => {
     if (v === null) return
     if (typeof v !== 'number' || !Number.isFinite(v)) {
-      throw new EngineInputError('non-finite-value', `values[${i}] must be a finite number or null`, `values[${i}]`)
+      throw new EngineInputError('non-finite-value', `demand[${i}] must be a finite number or null`, `demand[${i}]`)
     }
-    if (v < 0 && !allowNegative) {
+    if (v < 0 && !allowNegativeDemand) {
       throw new EngineInputError(
         'negative-value',
-        `values[${i}] is negative (${v}); demand cannot be negative unless allowNegative is set`,
-        `values[${i}]`,
+        `demand[${i}] is negative (${v}); demand cannot be negative unless allowNegativeDemand is set`,
+        `demand[${i}]`,
       )
     }
     known++
   })
-  if (known === 0) throw new EngineInputError('empty-series', 'values holds no known (non-null) period', 'values')
+  if (known === 0) throw new EngineInputError('empty-series', 'demand holds no known (non-null) period', 'demand')
 }
 
 /** Fill nulls. Interpolation is linear between the nearest known neighbours. */
@@ -156,15 +156,15 @@ export function fillMissing(values: readonly (number | null)[], policy: 'zero' |
 /** Validate and prepare one series. @throws EngineInputError with a code and field. */
 export function prepareSeries(input: SeriesInput): PreparedSeries {
   validateOptions(input)
-  const allowNegative = input.allowNegative === true
-  validateValues(input.values, allowNegative)
+  const allowNegativeDemand = input.allowNegativeDemand === true
+  validateDemand(input.demand, allowNegativeDemand)
   const warnings: EngineWarning[] = []
-  // Validates `start` against the frequency before any work is done.
-  const firstLabel = periodLabels(input.frequency, input.start, 1)[0]
+  // Validates `firstPeriod` against the frequency before any work is done.
+  const firstLabel = periodLabels(input.frequency, input.firstPeriod, 1)[0]
 
-  const missing = input.values.filter((v) => v === null).length
-  const policy = input.fillPolicy ?? 'zero'
-  let values = fillMissing(input.values, policy)
+  const missing = input.demand.filter((v) => v === null).length
+  const policy = input.missingPeriods ?? 'zero'
+  let values = fillMissing(input.demand, policy)
   if (missing > 0) {
     warnings.push({
       code: 'missing-filled',
@@ -184,27 +184,27 @@ export function prepareSeries(input: SeriesInput): PreparedSeries {
   }
 
   const flat = !isConstant(values) ? null : values[0] === 0 ? 'all-zero' : 'constant'
-  const levels = [...new Set(input.intervals ?? DEFAULT_LEVELS)].sort((a, b) => a - b)
+  const levels = [...new Set(input.intervalLevels ?? DEFAULT_LEVELS)].sort((a, b) => a - b)
   return {
     values,
     frequency: input.frequency,
-    start: input.start,
+    firstPeriod: input.firstPeriod,
     seasonLength: input.seasonLength ?? DEFAULT_SEASON_LENGTH[input.frequency],
     horizon: input.horizon,
-    holdout: input.holdout,
-    metric: input.metric ?? 'mase',
+    holdoutPeriods: input.holdoutPeriods,
+    rankBy: input.rankBy ?? 'mase',
     models: input.models === undefined ? undefined : [...new Set(input.models)],
     levels,
-    allowNegative,
-    origins: input.origins ?? 1,
+    allowNegativeDemand,
+    holdoutOrigins: input.holdoutOrigins ?? 1,
     offset: trimmed,
     flat,
     history: {
-      length: input.values.length,
+      length: input.demand.length,
       used: values.length,
       missing,
       trimmedLeadingZeros: trimmed,
-      firstPeriod: trimmed === 0 ? firstLabel : periodLabels(input.frequency, input.start, 1, trimmed)[0],
+      firstPeriod: trimmed === 0 ? firstLabel : periodLabels(input.frequency, input.firstPeriod, 1, trimmed)[0],
     },
     warnings,
   }

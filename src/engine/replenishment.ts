@@ -30,13 +30,13 @@ export const REPLENISHMENT_FORMULA = 'sigma1-sqrt-lead-time' as const
 
 export interface ReplenishmentOptions {
   /** Lead time L in periods, integer, 1 <= L <= horizon. */
-  readonly leadTime: number
+  readonly leadTimePeriods: number
   /** Target cycle service level: probability of no stock-out in a replenishment cycle. */
   readonly serviceLevel: number
 }
 
 export interface ReplenishmentFigures {
-  readonly leadTime: number
+  readonly leadTimePeriods: number
   readonly serviceLevel: number
   readonly leadTimeDemand: number
   /** sigma_L, the standard deviation of lead-time demand error; null when it cannot be estimated. */
@@ -52,15 +52,15 @@ export interface ReplenishmentFigures {
  * 1..horizon or the service level is outside (0.5, 0.9999).
  */
 export function checkReplenishmentOptions(options: ReplenishmentOptions, horizon: number): void {
-  const { leadTime, serviceLevel } = options
-  if (!Number.isInteger(leadTime) || leadTime < 1) {
-    throw new EngineInputError('invalid-option', 'leadTime must be a whole number of periods >= 1', 'replenishment.leadTime')
+  const { leadTimePeriods, serviceLevel } = options
+  if (!Number.isInteger(leadTimePeriods) || leadTimePeriods < 1) {
+    throw new EngineInputError('invalid-option', 'leadTimePeriods must be a whole number of periods >= 1', 'replenishment.leadTimePeriods')
   }
-  if (leadTime > horizon) {
+  if (leadTimePeriods > horizon) {
     throw new EngineInputError(
       'invalid-option',
-      `leadTime (${leadTime}) must not exceed the horizon (${horizon}): lead-time demand needs a forecast for every period of the lead time`,
-      'replenishment.leadTime',
+      `leadTimePeriods (${leadTimePeriods}) must not exceed the horizon (${horizon}): lead-time demand needs a forecast for every period of the lead time`,
+      'replenishment.leadTimePeriods',
     )
   }
   if (!(serviceLevel > SERVICE_LEVEL_MIN && serviceLevel < SERVICE_LEVEL_MAX)) {
@@ -95,17 +95,17 @@ export function computeReplenishment(
   options: ReplenishmentOptions,
 ): ReplenishmentFigures {
   checkReplenishmentOptions(options, point.length)
-  const { leadTime, serviceLevel } = options
-  const leadTimeDemand = sum(point, 0, leadTime)
+  const { leadTimePeriods, serviceLevel } = options
+  const leadTimeDemand = sum(point, 0, leadTimePeriods)
   if (!Number.isFinite(leadTimeDemand)) {
     throw new EngineInputError('non-finite-value', 'lead-time demand is not finite', 'forecast')
   }
   const z = normalQuantile(serviceLevel)
   const known = sigmaOneStep !== null && Number.isFinite(sigmaOneStep) && sigmaOneStep >= 0
-  const sigma = known ? sigmaOneStep * Math.sqrt(leadTime) : null
+  const sigma = known ? sigmaOneStep * Math.sqrt(leadTimePeriods) : null
   const safetyStock = sigma === null ? null : z * sigma
   return {
-    leadTime,
+    leadTimePeriods,
     serviceLevel,
     leadTimeDemand,
     sigma,
@@ -124,15 +124,15 @@ export function computeReplenishment(
  */
 export function replenishmentFor(
   result: {
-    readonly forecast: readonly { readonly value: number }[]
+    readonly forecast: readonly { readonly demand: number }[]
     readonly residuals: { readonly count: number; readonly mean: number; readonly sd: number }
-    readonly intervals?: { readonly method: 'analytical' | 'empirical' | 'none' }
+    readonly intervalMethod?: 'analytical' | 'empirical' | 'none'
   },
   options: ReplenishmentOptions,
 ): ReplenishmentFigures {
   return computeReplenishment(
-    result.forecast.map((p) => p.value),
-    result.intervals?.method === 'none' ? null : oneStepRms(result.residuals),
+    result.forecast.map((p) => p.demand),
+    result.intervalMethod === 'none' ? null : oneStepRms(result.residuals),
     options,
   )
 }

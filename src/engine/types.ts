@@ -22,26 +22,30 @@ export const DEFAULT_SEASON_LENGTH: Readonly<Record<Frequency, number>> = {
 export const METRIC_NAMES = ['mae', 'rmse', 'mape', 'smape', 'mase', 'wape'] as const
 export type MetricName = (typeof METRIC_NAMES)[number]
 
-/** Candidate models. Ids are ours; the doc comment of each fitter names the published method. */
+/**
+ * Candidate models. Ids are ours, spelled out in one pattern,
+ * `[damped-]<base>[-<season treatment>]`; eponymous published methods keep the
+ * method's name (theta, croston). The doc comment of each fitter names the method.
+ */
 export const MODEL_NAMES = [
-  'naive',
-  'seasonal-naive',
+  'last-value',
+  'last-season',
   'moving-average',
-  'ses',
+  'level-smoothing',
   'linear-trend',
-  'holt',
-  'damped-holt',
-  'seasonal-index',
-  'decomposition',
-  'decomposition-cma',
-  'holt-winters-additive',
-  'holt-winters-multiplicative',
-  'holt-winters-additive-damped',
-  'holt-winters-multiplicative-damped',
-  'seasonal-smoothing-additive',
-  'seasonal-smoothing-multiplicative',
+  'trend-smoothing',
+  'damped-trend-smoothing',
+  'level-smoothing-season-averages',
+  'linear-trend-season-averages',
+  'linear-trend-season-ratios',
+  'trend-smoothing-additive-season',
+  'trend-smoothing-multiplicative-season',
+  'damped-trend-smoothing-additive-season',
+  'damped-trend-smoothing-multiplicative-season',
+  'level-smoothing-additive-season',
+  'level-smoothing-multiplicative-season',
   'croston',
-  'sba',
+  'croston-bias-corrected',
   'theta',
 ] as const
 export type ModelName = (typeof MODEL_NAMES)[number]
@@ -65,7 +69,11 @@ export interface FitContext {
 /** A fitted model. Plain data plus two pure functions. */
 export interface ModelFit {
   readonly model: ModelName
-  /** Named parameters: alpha, beta, gamma, phi, slope, intercept, seasonalFactors, window... */
+  /**
+   * Named parameters; one key means one thing in every model: levelWeight (alpha),
+   * trendWeight (beta), seasonWeight (gamma), damping (phi), startLevel, startTrend,
+   * startSeason, seasonFactors, seasonOffsets, slope, intercept, window, level...
+   */
   readonly params: ModelParams
   /**
    * In-sample one-step-ahead fitted values, same length as the fitted series;
@@ -99,23 +107,25 @@ export interface ModelSpec {
 
 /** One series as given to the engine. `null` marks a missing period. */
 export interface SeriesInput {
-  readonly values: readonly (number | null)[]
+  /** Demand per period, oldest first. */
+  readonly demand: readonly (number | null)[]
   readonly frequency: Frequency
   /** Label of the first period: `2024`, `2024-Q2`, `2024-03`, `2024-W09`, `2024-03-05`. */
-  readonly start?: string
+  readonly firstPeriod?: string
   readonly seasonLength?: number
   readonly horizon: number
   /** Periods held back for selection. Default: min(horizon, seasonLength), bounded by history. */
-  readonly holdout?: number
-  readonly metric?: MetricName
+  readonly holdoutPeriods?: number
+  /** The holdout error that ranks candidates. Default mase. */
+  readonly rankBy?: MetricName
   readonly models?: readonly ModelName[]
-  /** Interval levels in percent, each in (0, 100). Default [80, 95]. */
-  readonly intervals?: readonly number[]
-  readonly fillPolicy?: 'zero' | 'interpolate'
-  readonly allowNegative?: boolean
+  /** Central prediction-interval levels in percent, each in (0, 100). Default [80, 95]. */
+  readonly intervalLevels?: readonly number[]
+  readonly missingPeriods?: 'zero' | 'interpolate'
+  readonly allowNegativeDemand?: boolean
   readonly keepLeadingZeros?: boolean
   /** Rolling forecast origins used in selection. Default 1. */
-  readonly origins?: number
+  readonly holdoutOrigins?: number
 }
 
 export interface EngineWarning {
@@ -126,49 +136,56 @@ export interface EngineWarning {
 /** Error measures of a forecast against actuals; null where undefined (e.g. MAPE with zero actuals). */
 export type MetricSet = Readonly<Record<MetricName, number | null>>
 
-export interface LeaderboardEntry {
+/** One row of a result's candidate table. */
+export interface Candidate {
   readonly model: ModelName
   readonly family: ModelFamily
   readonly status: 'scored' | 'skipped' | 'failed'
-  /** Holdout (or in-sample) errors on every metric. */
-  readonly metrics?: MetricSet
-  /** The value of the selection metric (lower is better). */
+  /** Holdout (or in-sample) errors on every measure. */
+  readonly holdoutErrors?: MetricSet
+  /** The value of the ranking measure, `rankBy` (lower is better). */
   readonly score?: number
   readonly reason?: string
 }
 
+/** A central prediction interval at `level` percent. */
+export interface ForecastInterval {
+  readonly level: number
+  readonly low: number
+  readonly high: number
+}
+
 export interface ForecastPoint {
-  /** Period label following `start`; without `start`, the 1-based period number as a string. */
+  /** Period label following `firstPeriod`; without it, the 1-based period number as a string. */
   readonly period: string
-  readonly value: number
-  /** Interval bounds keyed by level in percent, e.g. { "80": 12.1, "95": 9.4 }. */
-  readonly lower: Readonly<Record<string, number>>
-  readonly upper: Readonly<Record<string, number>>
+  readonly demand: number
+  /** One interval per requested level, ascending. */
+  readonly intervals: readonly ForecastInterval[]
+}
+
+export type IntervalMethod = 'analytical' | 'empirical' | 'none'
+
+export interface ModelChoice {
+  readonly method: 'holdout' | 'in-sample' | 'none'
+  readonly rankBy: MetricName
+  readonly holdoutPeriods: number
+  readonly holdoutOrigins: number
 }
 
 export interface ForecastResult {
   readonly model: ModelName
   readonly family: ModelFamily
   readonly params: ModelParams
-  readonly selection: {
-    readonly method: 'holdout' | 'in-sample' | 'none'
-    readonly metric: MetricName
-    readonly holdout: number
-    readonly origins: number
-  }
-  /** Holdout errors of the winner (in-sample errors when selection.method is 'in-sample'). */
-  readonly metrics: MetricSet | null
+  readonly modelChoice: ModelChoice
+  /** Holdout errors of the winner (in-sample errors when modelChoice.method is 'in-sample'). */
+  readonly holdoutErrors: MetricSet | null
   /** In-sample one-step fitted values on the prepared history (null where undefined). */
   readonly fitted: readonly (number | null)[]
   readonly residuals: { readonly count: number; readonly mean: number; readonly sd: number; readonly mae: number }
   readonly forecast: readonly ForecastPoint[]
-  readonly intervals: {
-    readonly method: 'analytical' | 'empirical' | 'none'
-    readonly levels: readonly number[]
-    /** Some lower bound was raised to zero (demand cannot be negative). */
-    readonly clamped: boolean
-  }
-  readonly leaderboard: readonly LeaderboardEntry[]
+  /** How the intervals were made; lower bounds raised to zero are reported by the warning `intervals-raised-to-zero`. */
+  readonly intervalMethod: IntervalMethod
+  readonly candidates: readonly Candidate[]
   readonly warnings: readonly EngineWarning[]
   readonly history: {
     /** Periods given. */

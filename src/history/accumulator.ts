@@ -4,7 +4,7 @@ import { ErrorCollector } from './errors.js'
 import type { DuplicatePolicy, IncomingHistory, Origin } from './types.js'
 
 interface RowGroup {
-  /** Bucket ordinal -> quantity so far. */
+  /** Bucket ordinal -> demand so far. */
   readonly cells: Map<number, number>
   rows: number
   readonly firstLine: number | undefined
@@ -25,7 +25,7 @@ export interface PendingHistory {
 }
 
 /**
- * Gathers an upload per SKU. Long-layout rows (sku, period, quantity) are
+ * Gathers an upload per SKU. Long-layout rows (sku, period, demand) are
  * summed into buckets of one frequency (`duplicates: 'sum'`) or the last row of
  * a bucket wins (`'last'`); whole series are kept as given. Memory grows with
  * the distinct SKU-buckets of the upload, not with its size in bytes.
@@ -44,7 +44,7 @@ export class HistoryAccumulator {
     return this.opts.frequency
   }
 
-  addRow(sku: string, ordinal: number, quantity: number, origin: Origin): void {
+  addRow(sku: string, ordinal: number, demand: number, origin: Origin): void {
     const series = this.seriesBySku.get(sku)
     if (series) {
       this.errors.add({ ...origin, sku, reason: `SKU was already given as a whole series${where(series.origin)}` })
@@ -56,7 +56,7 @@ export class HistoryAccumulator {
       this.rowGroups.set(sku, group)
     }
     const before = group.cells.get(ordinal)
-    group.cells.set(ordinal, this.opts.duplicates === 'sum' && before !== undefined ? before + quantity : quantity)
+    group.cells.set(ordinal, this.opts.duplicates === 'sum' && before !== undefined ? before + demand : demand)
     group.rows++
   }
 
@@ -99,18 +99,18 @@ export class HistoryAccumulator {
         )
         continue
       }
-      const values = new Array<number>(span).fill(0)
+      const demand = new Array<number>(span).fill(0)
       let tooLarge = false
-      for (const [ordinal, quantity] of group.cells) {
-        values[ordinal - lo] = quantity
-        if (Math.abs(quantity) > MAX_ABS_VALUE) tooLarge = true
+      for (const [ordinal, total] of group.cells) {
+        demand[ordinal - lo] = total
+        if (Math.abs(total) > MAX_ABS_VALUE) tooLarge = true
       }
       if (tooLarge) {
         // Each row is within range, but their sum in a bucket is not: runs would refuse the stored history.
         this.errors.add({ ...origin, sku, reason: `a ${this.opts.frequency} total is larger than ${MAX_ABS_VALUE} in size` }, group.rows)
         continue
       }
-      yield { sku, incoming: { frequency: this.opts.frequency, startOrdinal: lo, values }, rows: group.rows, origin }
+      yield { sku, incoming: { frequency: this.opts.frequency, startOrdinal: lo, demand }, rows: group.rows, origin }
     }
     this.rowGroups.clear()
     this.seriesBySku.clear()

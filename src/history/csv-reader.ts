@@ -2,7 +2,7 @@ import type { Readable } from 'node:stream'
 import { parse } from 'csv-parse'
 import type { HistoryAccumulator } from './accumulator.js'
 import { bucketOf } from './buckets.js'
-import { parseQuantity, parseSku } from './quantity.js'
+import { parseDemand, parseSku } from './cells.js'
 
 export interface CsvLayout {
   /** One character: `,`, `;` or a tab. */
@@ -10,7 +10,7 @@ export interface CsvLayout {
   /** Header names of the three columns (matched ignoring case and surrounding blanks). */
   readonly skuColumn: string
   readonly periodColumn: string
-  readonly quantityColumn: string
+  readonly demandColumn: string
 }
 
 /** The upload as a whole cannot be read (e.g. a required column is missing). */
@@ -29,7 +29,7 @@ export class UploadFormatError extends Error {
 const MAX_RECORD_CHARS = 64 * 1024
 
 /**
- * Read a long-layout CSV (a header row, then one `sku, period, quantity` row
+ * Read a long-layout CSV (a header row, then one `sku, period, demand` row
  * per line; other columns are ignored) into the accumulator, incrementally:
  * records are parsed and aggregated as the bytes arrive (RFC 4180 quoting by csv-parse).
  * Each bad row is recorded with its line number, column and reason; good rows are kept.
@@ -51,7 +51,7 @@ export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: Hi
   source.on('error', (err) => parser.destroy(err))
   source.pipe(parser)
 
-  let columns: { sku: number; period: number; quantity: number } | null = null
+  let columns: { sku: number; period: number; demand: number } | null = null
   let names: readonly string[] = []
   for await (const entry of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
     const { record, info } = entry
@@ -61,11 +61,11 @@ export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: Hi
       columns = {
         sku: findColumn(names, layout.skuColumn, 'skuColumn'),
         period: findColumn(names, layout.periodColumn, 'periodColumn'),
-        quantity: findColumn(names, layout.quantityColumn, 'quantityColumn'),
+        demand: findColumn(names, layout.demandColumn, 'demandColumn'),
       }
       continue
     }
-    const need = Math.max(columns.sku, columns.period, columns.quantity)
+    const need = Math.max(columns.sku, columns.period, columns.demand)
     if (record.length <= need) {
       acc.errors.add({ line, column: names[need], reason: `the row has ${record.length} fields; column ${names[need]} is missing` })
       continue
@@ -80,12 +80,12 @@ export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: Hi
       acc.errors.add({ line, column: names[columns.period], sku: sku.sku, reason: bucket.reason })
       continue
     }
-    const quantity = parseQuantity(record[columns.quantity]!)
-    if ('reason' in quantity) {
-      acc.errors.add({ line, column: names[columns.quantity], sku: sku.sku, reason: quantity.reason })
+    const demand = parseDemand(record[columns.demand]!)
+    if ('reason' in demand) {
+      acc.errors.add({ line, column: names[columns.demand], sku: sku.sku, reason: demand.reason })
       continue
     }
-    acc.addRow(sku.sku, bucket.ordinal, quantity.value, { line })
+    acc.addRow(sku.sku, bucket.ordinal, demand.value, { line })
   }
   if (columns === null) throw new UploadFormatError('the CSV upload is empty: expected a header row', 'body')
 }

@@ -22,12 +22,12 @@ export function mergeHistory(
   const tags = incoming.tags ?? current?.tags ?? []
   try {
     if (mode === 'replace' || current === null) {
-      if (incoming.values.length > MAX_POINTS_PER_SERIES) return tooLong(incoming.values.length)
+      if (incoming.demand.length > MAX_POINTS_PER_SERIES) return tooLong(incoming.demand.length)
       return {
         data: {
           frequency: incoming.frequency,
-          start: formatPeriod(incoming.startOrdinal, incoming.frequency),
-          values: incoming.values,
+          firstPeriod: formatPeriod(incoming.startOrdinal, incoming.frequency),
+          demand: incoming.demand,
           tags,
         },
       }
@@ -38,18 +38,18 @@ export function mergeHistory(
       }
     }
     const frequency = current.frequency
-    const currentStart = parsePeriod(current.start, frequency)
+    const currentStart = parsePeriod(current.firstPeriod, frequency)
     const lo = Math.min(currentStart, incoming.startOrdinal)
-    const hi = Math.max(currentStart + current.values.length, incoming.startOrdinal + incoming.values.length) - 1
+    const hi = Math.max(currentStart + current.demand.length, incoming.startOrdinal + incoming.demand.length) - 1
     if (hi - lo + 1 > MAX_POINTS_PER_SERIES) return tooLong(hi - lo + 1)
-    const values = new Array<number | null>(hi - lo + 1).fill(0)
-    current.values.forEach((v, i) => {
-      values[currentStart - lo + i] = v
+    const demand = new Array<number | null>(hi - lo + 1).fill(0)
+    current.demand.forEach((v, i) => {
+      demand[currentStart - lo + i] = v
     })
-    incoming.values.forEach((v, i) => {
-      if (v !== null) values[incoming.startOrdinal - lo + i] = v
+    incoming.demand.forEach((v, i) => {
+      if (v !== null) demand[incoming.startOrdinal - lo + i] = v
     })
-    return { data: { frequency, start: formatPeriod(lo, frequency), values, tags } }
+    return { data: { frequency, firstPeriod: formatPeriod(lo, frequency), demand, tags } }
   } catch (err) {
     return { reason: (err as Error).message }
   }

@@ -2,7 +2,7 @@ import { StringDecoder } from 'node:string_decoder'
 import type { Readable } from 'node:stream'
 import type { HistoryAccumulator } from './accumulator.js'
 import { bucketOf } from './buckets.js'
-import { parseQuantity, parseSku } from './quantity.js'
+import { parseDemand, parseSku } from './cells.js'
 import { parseUploadSeries } from './series-item.js'
 import { UploadFormatError } from './csv-reader.js'
 
@@ -11,8 +11,8 @@ const MAX_LINE_CHARS = 4 * 1024 * 1024
 
 /**
  * Read NDJSON (one JSON object per line) into the accumulator, line by line as
- * bytes arrive. A line is either a whole series `{ sku, frequency?, start,
- * values, tags? }` or one row `{ sku, period, quantity }` (period as in CSV:
+ * bytes arrive. A line is either a whole series `{ sku, frequency?, firstPeriod,
+ * demand, tags? }` or one row `{ sku, period, demand }` (period as in CSV:
  * a date or a period label). Blank lines are skipped; bad lines are recorded.
  * @throws UploadFormatError on a line longer than 4 MiB
  */
@@ -47,13 +47,16 @@ function handleLine(raw: string, line: number, acc: HistoryAccumulator): void {
     acc.errors.add({ line, reason: 'expected a JSON object' })
     return
   }
-  if ('values' in value) {
+  if (Array.isArray((value as { demand?: unknown }).demand)) {
     const s = parseUploadSeries(value, acc.frequency)
     if ('reason' in s) acc.errors.add({ line, ...s })
     else acc.addSeries(s.sku, s.incoming, { line })
     return
   }
-  const row = value as { sku?: unknown; period?: unknown; quantity?: unknown }
+  const row = value as { sku?: unknown; period?: unknown; demand?: unknown }
+  for (const key of Object.keys(row)) {
+    if (key !== 'sku' && key !== 'period' && key !== 'demand') return acc.errors.add({ line, column: key, reason: `unknown field ${JSON.stringify(key)}; a row has sku, period and demand` })
+  }
   if (typeof row.sku !== 'string') return acc.errors.add({ line, column: 'sku', reason: 'sku must be a string' })
   const sku = parseSku(row.sku)
   if ('reason' in sku) return acc.errors.add({ line, column: 'sku', reason: sku.reason })
@@ -61,10 +64,10 @@ function handleLine(raw: string, line: number, acc: HistoryAccumulator): void {
   const bucket = bucketOf(row.period, acc.frequency)
   if ('reason' in bucket) return acc.errors.add({ line, column: 'period', sku: sku.sku, reason: bucket.reason })
   // Numbers take the same checks as CSV cells (range included).
-  const quantity =
-    typeof row.quantity === 'number' || typeof row.quantity === 'string'
-      ? parseQuantity(String(row.quantity))
-      : { reason: 'quantity must be a number' }
-  if ('reason' in quantity) return acc.errors.add({ line, column: 'quantity', sku: sku.sku, reason: quantity.reason })
-  acc.addRow(sku.sku, bucket.ordinal, quantity.value, { line })
+  const demand =
+    typeof row.demand === 'number' || typeof row.demand === 'string'
+      ? parseDemand(String(row.demand))
+      : { reason: 'demand must be a number' }
+  if ('reason' in demand) return acc.errors.add({ line, column: 'demand', sku: sku.sku, reason: demand.reason })
+  acc.addRow(sku.sku, bucket.ordinal, demand.value, { line })
 }

@@ -4,14 +4,14 @@ import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from '../schemas
 import { normaliseTags } from './tags.js'
 import type { IncomingHistory } from './types.js'
 
-/** One whole series of a JSON or NDJSON upload: `{ sku, frequency?, start, values, tags? }`. */
+/** One whole series of a JSON or NDJSON upload: `{ sku, frequency?, firstPeriod, demand, tags? }`. */
 export const UploadSeries = z.object({
   sku: Sku,
   frequency: z.enum(FREQUENCIES).optional(),
-  start: PeriodLabel,
-  values: z.array(DemandValue).min(1).max(MAX_POINTS_PER_SERIES),
+  firstPeriod: PeriodLabel,
+  demand: z.array(DemandValue).min(1).max(MAX_POINTS_PER_SERIES),
   tags: z.array(z.string()).optional(),
-})
+}).strict()
 
 /**
  * Validate one series object. `frequency` defaults to the upload's.
@@ -31,9 +31,9 @@ export function parseUploadSeries(
   const frequency = s.frequency ?? defaultFrequency
   let startOrdinal: number
   try {
-    startOrdinal = parsePeriod(s.start, frequency)
+    startOrdinal = parsePeriod(s.firstPeriod, frequency)
   } catch (err) {
-    return { sku: s.sku, column: 'start', reason: (err as Error).message }
+    return { sku: s.sku, column: 'firstPeriod', reason: (err as Error).message }
   }
   let tags: string[] | undefined
   if (s.tags !== undefined) {
@@ -41,10 +41,10 @@ export function parseUploadSeries(
     if ('reason' in t) return { sku: s.sku, column: 'tags', reason: t.reason }
     tags = t.tags
   }
-  return { sku: s.sku, incoming: { frequency, startOrdinal, values: s.values, ...(tags === undefined ? {} : { tags }) } }
+  return { sku: s.sku, incoming: { frequency, startOrdinal, demand: s.demand, ...(tags === undefined ? {} : { tags }) } }
 }
 
-/** `values[3]`, `tags[0]`; the root is `(item)`. */
+/** `demand[3]`, `tags[0]`; the root is `(item)`. */
 export function fieldPath(path: readonly PropertyKey[]): string {
   let out = ''
   for (const seg of path) out += typeof seg === 'number' ? `[${seg}]` : out === '' ? String(seg) : `.${String(seg)}`

@@ -36,7 +36,7 @@ export interface UploadError {
 export interface IncomingHistory {
   readonly frequency: Frequency
   readonly startOrdinal: number
-  readonly values: readonly (number | null)[]
+  readonly demand: readonly (number | null)[]
   readonly tags?: readonly string[]
 }
 
@@ -44,8 +44,8 @@ export interface IncomingHistory {
 export interface HistoryData {
   readonly frequency: Frequency
   /** Label of the first period, e.g. `2024-03`. */
-  readonly start: string
-  readonly values: readonly (number | null)[]
+  readonly firstPeriod: string
+  readonly demand: readonly (number | null)[]
   readonly tags: readonly string[]
 }
 

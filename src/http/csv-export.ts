@@ -4,16 +4,16 @@ import type { ResultItem, ResultPage, RunRecord } from '../storage/types.js'
  * Run results as CSV (RFC 4180, CRLF line ends, a header row): one row per
  * SKU and forecast period with
  *
- *   sku, period, value, lower_<L>, upper_<L> (per interval level L of the run),
- *   model, metric, holdout_error, error
+ *   sku, period, demand, low<L>, high<L> (per interval level L of the run),
+ *   model, rankBy, holdoutError, failure
  *
- * `holdout_error` is the winner's error on the run's selection metric when
- * selection used a holdout (empty otherwise or where undefined). A SKU the
- * engine could not forecast gets one row with only sku and error
+ * `holdoutError` is the chosen model's holdout error named by `rankBy` when
+ * the model was chosen on a holdout (empty otherwise or where undefined). A SKU
+ * the engine could not forecast gets one row with only sku and failure
  * (`code: message`).
  *
  * Spreadsheet formula injection (OWASP "CSV Injection"; common practice): a
- * text cell (sku, model, error) starting with `=`, `+`, `-`, `@`, tab or CR is
+ * text cell (sku, model, failure) starting with `=`, `+`, `-`, `@`, tab or CR is
  * prefixed with `'`. Numeric cells are written as numbers and never changed,
  * so `-3.5` stays a negative number.
  */
@@ -50,30 +50,33 @@ export function numberCell(value: number | null | undefined): string {
   return typeof value === 'number' && Number.isFinite(value) ? String(value) : ''
 }
 
-/** Interval column suffixes of a run, e.g. ['80', '95']. */
-function levelKeys(run: RunRecord): string[] {
-  return [...run.settings.intervals].sort((a, b) => a - b).map(String)
+/** The interval levels of a run, ascending (the columns low<L>, high<L>). */
+function levelsOf(run: RunRecord): number[] {
+  return [...new Set(run.settings.intervalLevels)].sort((a, b) => a - b)
 }
 
 export function csvHeader(run: RunRecord): string {
-  const bounds = levelKeys(run).flatMap((l) => [`lower_${l}`, `upper_${l}`])
-  return ['sku', 'period', 'value', ...bounds, 'model', 'metric', 'holdout_error', 'error'].join(',') + '\r\n'
+  const bounds = levelsOf(run).flatMap((l) => [`low${l}`, `high${l}`])
+  return ['sku', 'period', 'demand', ...bounds, 'model', 'rankBy', 'holdoutError', 'failure'].join(',') + '\r\n'
 }
 
 /** The CSV rows of one result item. */
 export function itemRows(item: ResultItem, run: RunRecord): string {
-  const levels = levelKeys(run)
-  const metric = run.settings.metric
-  if ('error' in item) {
+  const levels = levelsOf(run)
+  const rankBy = run.settings.rankBy
+  if ('failure' in item) {
     const empty = new Array(2 + levels.length * 2 + 3).fill('')
-    return [textCell(item.sku), ...empty, textCell(`${item.error.code}: ${item.error.message}`)].join(',') + '\r\n'
+    return [textCell(item.sku), ...empty, textCell(`${item.failure.code}: ${item.failure.message}`)].join(',') + '\r\n'
   }
-  const holdout = item.selection.method === 'holdout' ? numberCell(item.metrics?.[metric]) : ''
+  const holdout = item.modelChoice.method === 'holdout' ? numberCell(item.holdoutErrors?.[rankBy]) : ''
   let out = ''
   for (const point of item.forecast) {
-    const bounds = levels.flatMap((l) => [numberCell(point.lower[l]), numberCell(point.upper[l])])
+    const bounds = levels.flatMap((l) => {
+      const iv = point.intervals.find((i) => i.level === l)
+      return [numberCell(iv?.low), numberCell(iv?.high)]
+    })
     out +=
-      [textCell(item.sku), textCell(point.period), numberCell(point.value), ...bounds, textCell(item.model), metric, holdout, ''].join(',') +
+      [textCell(item.sku), textCell(point.period), numberCell(point.demand), ...bounds, textCell(item.model), rankBy, holdout, ''].join(',') +
       '\r\n'
   }
   return out

@@ -5,7 +5,7 @@ import type { RunSettings, SeriesItem } from '../schemas/run.js'
 import { ChunkTallier, toResultItem } from '../storage/codec.js'
 import { prepareItem, type PreparedItem } from '../storage/prepared-item.js'
 import type { CommitOutcome, RunStore } from '../storage/run-store.js'
-import type { ResultItem } from '../storage/types.js'
+import type { ForecastItem, ResultItem } from '../storage/types.js'
 import { CHUNK_QUEUE } from './names.js'
 import { ChunkJob } from './payload.js'
 import { toSeriesInput } from './series-input.js'
@@ -35,11 +35,12 @@ export function forecastItem(
   settings: RunSettings,
   series: SeriesItem,
 ): ResultItem {
+  const input = toSeriesInput(settings, series)
   try {
-    const result = forecast(toSeriesInput(settings, series))
-    return withReplenishment(toResultItem(series.sku, result), result, settings)
+    const result = forecast(input)
+    return withReplenishment(toResultItem(series.sku, input.frequency, result), result, settings)
   } catch (err) {
-    if (err instanceof EngineInputError) return { sku: series.sku, error: { code: err.code, message: err.message } }
+    if (err instanceof EngineInputError) return { sku: series.sku, frequency: input.frequency, failure: { code: err.code, message: err.message } }
     throw err
   }
 }
@@ -49,8 +50,8 @@ export function forecastItem(
  * engine refuses (the gateway checks them before a run is queued) leave the
  * forecast as it is, with a warning.
  */
-function withReplenishment(item: ResultItem, result: ForecastResult, settings: RunSettings): ResultItem {
-  if (!settings.replenishment || 'error' in item) return item
+function withReplenishment(item: ForecastItem, result: ForecastResult, settings: RunSettings): ResultItem {
+  if (!settings.replenishment) return item
   try {
     return { ...item, replenishment: replenishmentFor(result, settings.replenishment) }
   } catch (err) {
@@ -98,7 +99,7 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
 
     const started = performance.now()
     const fitSeconds: number[] = []
-    const tallier = new ChunkTallier(run.settings.metric)
+    const tallier = new ChunkTallier(run.settings.rankBy)
     // Each item is tallied and encoded as soon as it is fitted: only its bytes wait for the commit (prepared-item.ts).
     const items: PreparedItem[] = []
     for (const s of series) {

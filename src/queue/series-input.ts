@@ -3,26 +3,25 @@ import type { RunSettings, SeriesItem } from '../schemas/run.js'
 
 /**
  * One request series as engine input: the run's settings, overridden by the
- * series' own `frequency`, `start` and `seasonLength`. Absent options stay
+ * series' own `frequency`, `firstPeriod` and `seasonLength`. Absent options stay
  * absent so the engine applies its defaults.
  */
 export function toSeriesInput(settings: RunSettings, item: SeriesItem): SeriesInput {
   const input: { -readonly [K in keyof SeriesInput]: SeriesInput[K] } = {
-    values: item.values,
+    demand: item.demand,
     frequency: item.frequency ?? settings.frequency,
     horizon: settings.horizon,
-    metric: settings.metric,
-    intervals: settings.intervals,
-    fillPolicy: settings.fillPolicy,
-    allowNegative: settings.allowNegative,
+    rankBy: settings.rankBy,
+    intervalLevels: settings.intervalLevels,
+    missingPeriods: settings.missingPeriods,
+    allowNegativeDemand: settings.allowNegativeDemand,
     keepLeadingZeros: settings.keepLeadingZeros,
-    origins: settings.origins,
+    holdoutOrigins: settings.holdoutOrigins,
   }
-  const start = item.start
   const seasonLength = item.seasonLength ?? settings.seasonLength
-  if (start !== undefined) input.start = start
+  if (item.firstPeriod !== undefined) input.firstPeriod = item.firstPeriod
   if (seasonLength !== undefined) input.seasonLength = seasonLength
-  if (settings.holdout !== undefined) input.holdout = settings.holdout
+  if (settings.holdoutPeriods !== undefined) input.holdoutPeriods = settings.holdoutPeriods
   if (settings.models !== undefined) input.models = settings.models
   return input
 }

@@ -12,8 +12,8 @@ export const Tag = z
 
 export const HistoryBody = z.object({
   frequency: z.enum(FREQUENCIES),
-  start: PeriodLabel.describe('Label of the first period (same frequency)'),
-  values: z
+  firstPeriod: PeriodLabel.describe('Label of the first period (same frequency)'),
+  demand: z
     .array(DemandValue)
     .min(1)
     .max(MAX_POINTS_PER_SERIES)
@@ -25,10 +25,10 @@ export const HistoryResource = z
   .object({
     sku: z.string(),
     frequency: z.enum(FREQUENCIES),
-    start: z.string(),
+    firstPeriod: z.string(),
     lastPeriod: z.string(),
-    length: z.number().int(),
-    values: z.array(z.number().nullable()),
+    periodCount: z.number().int().min(1),
+    demand: z.array(z.number().nullable()),
     tags: z.array(z.string()),
     updatedAt: z.string().describe('ISO-8601'),
   })
@@ -37,9 +37,9 @@ export const HistoryResource = z
 export const HistorySummarySchema = z.object({
   sku: z.string(),
   frequency: z.enum(FREQUENCIES),
-  start: z.string(),
-  length: z.number().int(),
+  firstPeriod: z.string(),
   lastPeriod: z.string(),
+  periodCount: z.number().int().min(1),
   tags: z.array(z.string()),
   updatedAt: z.string(),
 })
@@ -70,7 +70,7 @@ export const UploadQuery = z.object({
     .describe('Several rows for one SKU and bucket: sum them (default) or keep the last'),
   skuColumn: ColumnName.default('sku').describe('CSV header of the SKU column'),
   periodColumn: ColumnName.default('period').describe('CSV header of the date or period column'),
-  quantityColumn: ColumnName.default('quantity').describe('CSV header of the quantity column'),
+  demandColumn: ColumnName.default('demand').describe('CSV header of the demand column'),
   delimiter: z.enum(['comma', 'semicolon', 'tab']).default('comma').describe('CSV field separator'),
 })
 

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { METRIC_NAMES, MODEL_NAMES } from '../engine/index.js'
+import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES } from '../engine/index.js'
 import { RunSettings } from './run.js'
 import { RUN_STATUSES } from '../storage/types.js'
 
@@ -12,45 +12,53 @@ const ModelName = z.enum(MODEL_NAMES)
 const MetricName = z.enum(METRIC_NAMES)
 const ModelFamily = z.enum(['level', 'trend', 'seasonal', 'seasonal-trend', 'intermittent'])
 
-const MetricSet = z
-  .object(Object.fromEntries(METRIC_NAMES.map((m) => [m, z.number().nullable()])) as Record<
-    (typeof METRIC_NAMES)[number],
-    z.ZodNullable<z.ZodNumber>
-  >)
-  .describe('Error measures; null where undefined (e.g. MAPE with zero actuals)')
+const HoldoutErrors = z
+  .object({
+    mae: z.number().nullable().describe('Mean absolute error, in demand units'),
+    rmse: z.number().nullable().describe('Root mean squared error, in demand units'),
+    mape: z.number().nullable().describe('Mean absolute percentage error, in percent, over periods with non-zero demand'),
+    smape: z.number().nullable().describe('Symmetric mean absolute percentage error, in percent (0..200)'),
+    mase: z.number().nullable().describe('Mean absolute scaled error, unitless (below 1: better than the in-sample last-value or last-season method)'),
+    wape: z.number().nullable().describe('Weighted absolute percentage error, in percent: sum |error| / sum |demand|'),
+  })
+  .describe('Error measures on the holdout; null where undefined (e.g. MAPE when every actual is zero)')
 
 const Params = z
   .record(z.string(), z.union([z.number(), z.array(z.number())]))
-  .describe('Fitted parameters: alpha, beta, gamma, phi, seasonalFactors...')
+  .describe(
+    'Fitted parameters; one key means the same in every model: levelWeight, trendWeight, seasonWeight, damping, ' +
+      'startLevel, startTrend, startSeason, seasonFactors, seasonOffsets, slope, intercept, residualVariance, window, ' +
+      'level, demandSize, demandInterval, biasFactor',
+  )
+
+const ForecastInterval = z.object({
+  level: z.number().describe('Central interval level in percent'),
+  low: z.number(),
+  high: z.number(),
+})
 
 export const ForecastPointSchema = z.object({
   period: z.string(),
-  value: z.number(),
-  lower: z.record(z.string(), z.number()).describe('Lower bounds keyed by level in percent'),
-  upper: z.record(z.string(), z.number()).describe('Upper bounds keyed by level in percent'),
+  demand: z.number().describe('Point forecast of demand for the period'),
+  intervals: z.array(ForecastInterval).describe('One prediction interval per requested level, ascending'),
 })
 
-const LeaderboardEntry = z.object({
-  // Another service version (during a deploy) may have stored a model this one does not know.
-  model: z
-    .union([ModelName, z.string()])
-    .describe('Model name; normally one of the models listed, but an entry stored by another service version may name another'),
-  family: z
-    .union([ModelFamily, z.literal('unknown')])
-    .describe("The model's family; 'unknown' for a model this service version does not know"),
+const Candidate = z.object({
+  model: ModelName,
+  family: ModelFamily,
   status: z.enum(['scored', 'skipped', 'failed']),
-  metrics: MetricSet.optional(),
-  score: z.number().optional(),
-  reason: z.string().optional(),
+  holdoutErrors: HoldoutErrors.optional(),
+  score: z.number().optional().describe('The holdout error named by rankBy (lower is better)'),
+  reason: z.string().optional().describe('Why the candidate was skipped or failed, e.g. "needs 24 periods, has 20"'),
 })
 
-const Warning = z.object({ code: z.string(), message: z.string() })
+const Warning = z.object({ code: z.string().describe('See docs/warnings.md'), message: z.string() })
 
 export const ReplenishmentSchema = z
   .object({
-    leadTime: z.number().int().describe('Lead time L in periods'),
+    leadTimePeriods: z.number().int().min(1).describe('Lead time L in periods'),
     serviceLevel: z.number().describe('Target cycle service level'),
-    leadTimeDemand: z.number().describe('Sum of the point forecasts for steps 1..L'),
+    leadTimeDemand: z.number().describe('Sum of the point forecasts for periods 1..L'),
     sigma: z
       .number()
       .nullable()
@@ -70,34 +78,34 @@ export const ReplenishmentSchema = z
 export const ForecastItem = z
   .object({
     sku: z.string(),
-    model: z
-      .union([ModelName, z.string()])
-      .describe('Model chosen; normally one of the models listed, but a result stored by another service version may name another'),
+    frequency: z.enum(FREQUENCIES),
+    model: ModelName.describe('The chosen model'),
     family: ModelFamily,
     params: Params,
-    selection: z.object({
+    modelChoice: z.object({
       method: z.enum(['holdout', 'in-sample', 'none']),
-      metric: MetricName,
-      holdout: z.number().int(),
-      origins: z.number().int(),
+      rankBy: MetricName,
+      holdoutPeriods: z.number().int().min(0),
+      holdoutOrigins: z.number().int().min(0),
     }),
-    metrics: MetricSet.nullable(),
-    leaderboard: z.array(LeaderboardEntry),
+    holdoutErrors: HoldoutErrors.nullable(),
+    candidates: z.array(Candidate).describe('Every candidate model: scored ones best first, then skipped and failed ones'),
     forecast: z.array(ForecastPointSchema),
-    intervals: z.object({
-      method: z.enum(['analytical', 'empirical', 'none']),
-      levels: z.array(z.number()),
-      clamped: z.boolean().describe('Some lower bound was raised to zero'),
-    }),
+    intervalMethod: z.enum(['analytical', 'empirical', 'none']),
     warnings: z.array(Warning),
     replenishment: ReplenishmentSchema.optional(),
   })
   .meta({ id: 'ForecastItem' })
 
+export const Failure = z
+  .object({ code: z.string().describe('See docs/problems.md'), message: z.string() })
+  .meta({ id: 'Failure' })
+
 export const FailedItem = z
   .object({
     sku: z.string(),
-    error: z.object({ code: z.string(), message: z.string() }),
+    frequency: z.enum(FREQUENCIES),
+    failure: Failure,
   })
   .meta({ id: 'FailedItem', description: 'A series the engine could not forecast' })
 
@@ -125,9 +133,9 @@ export const RunResource = z
     settings: RunSettings,
     summary: z
       .object({
-        metric: MetricName,
-        modelWins: z.partialRecord(ModelName, z.number().int()).describe('How many SKUs each model won'),
-        meanHoldoutError: z.number().nullable(),
+        rankBy: MetricName,
+        modelCounts: z.partialRecord(ModelName, z.number().int().min(0)).describe('How many SKUs each model was chosen for'),
+        meanHoldoutError: z.number().nullable().describe('Mean holdout error (rankBy) of the chosen models'),
       })
       .nullable(),
     error: z.string().nullable(),

@@ -5,7 +5,7 @@ import { TAG_PATTERN } from '../history/types.js'
 /**
  * The request contract shared by `POST /v1/forecast`, `POST /v1/runs` and the
  * chunk job payloads. Run-level settings apply to every series; per-series
- * `frequency`, `start` and `seasonLength` override them.
+ * `frequency`, `firstPeriod` and `seasonLength` override them.
  */
 
 export const MAX_POINTS_PER_SERIES = 10_000
@@ -45,12 +45,12 @@ export const PeriodLabel = z
 
 export const SeriesItem = z.object({
   sku: Sku,
-  values: z
+  firstPeriod: PeriodLabel.optional(),
+  demand: z
     .array(DemandValue)
     .min(1)
     .max(MAX_POINTS_PER_SERIES)
     .describe('Demand per period, oldest first; null marks a missing period'),
-  start: PeriodLabel.optional(),
   frequency: z.enum(FREQUENCIES).optional(),
   seasonLength: z.number().int().min(1).max(366).optional(),
 })
@@ -58,7 +58,7 @@ export type SeriesItem = z.infer<typeof SeriesItem>
 
 export const ReplenishmentSettings = z
   .object({
-    leadTime: z.number().int().min(1).max(MAX_HORIZON).describe('Lead time in periods (1..horizon)'),
+    leadTimePeriods: z.number().int().min(1).max(MAX_HORIZON).describe('Lead time in periods (1..horizon)'),
     serviceLevel: z
       .number()
       .gt(SERVICE_LEVEL_MIN)
@@ -86,18 +86,18 @@ export const RunSettings = z.object({
   horizon: z.number().int().min(1).max(MAX_HORIZON).describe('Periods to forecast'),
   frequency: z.enum(FREQUENCIES).default('month'),
   seasonLength: z.number().int().min(1).max(366).optional(),
-  holdout: z.number().int().min(1).max(MAX_HORIZON).optional().describe('Periods held back for selection'),
-  metric: z.enum(METRIC_NAMES).default('mase').describe('Holdout error used to pick the model'),
+  holdoutPeriods: z.number().int().min(1).max(MAX_HORIZON).optional().describe('Periods held back to rank the candidates'),
+  holdoutOrigins: z.number().int().min(1).max(12).default(1).describe('Rolling forecast origins the holdout errors are averaged over'),
+  rankBy: z.enum(METRIC_NAMES).default('mase').describe('The holdout error that ranks the candidates'),
   models: z.array(z.enum(MODEL_NAMES)).min(1).optional().describe('Candidates; default all the history allows'),
-  intervals: z
+  intervalLevels: z
     .array(z.number().gt(0).lt(100))
     .max(5)
     .default([80, 95])
-    .describe('Prediction interval levels in percent'),
-  fillPolicy: z.enum(['zero', 'interpolate']).default('zero').describe('How missing periods are filled'),
-  allowNegative: z.boolean().default(false),
+    .describe('Central prediction-interval levels in percent'),
+  missingPeriods: z.enum(['zero', 'interpolate']).default('zero').describe('How missing periods (null) are filled'),
+  allowNegativeDemand: z.boolean().default(false),
   keepLeadingZeros: z.boolean().default(false),
-  origins: z.number().int().min(1).max(12).default(1).describe('Rolling forecast origins used in selection'),
   replenishment: ReplenishmentSettings.optional(),
   callbackUrl: CallbackUrl.optional(),
 })

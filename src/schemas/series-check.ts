@@ -15,21 +15,21 @@ export function isSeriesItem(x: unknown): x is SeriesItem {
   let keys = 0
   for (const k in x) {
     if (!Object.prototype.hasOwnProperty.call(x, k)) return false
-    if (k !== 'sku' && k !== 'values' && k !== 'start' && k !== 'frequency' && k !== 'seasonLength') return false
+    if (k !== 'sku' && k !== 'demand' && k !== 'firstPeriod' && k !== 'frequency' && k !== 'seasonLength') return false
     keys++
   }
   const o = x as Record<string, unknown>
-  const { sku, values, start, frequency, seasonLength } = o
+  const { sku, demand, firstPeriod, frequency, seasonLength } = o
   if (typeof sku !== 'string' || sku.length < 1 || sku.length > 200 || !SKU_PATTERN.test(sku)) return false
-  if (!Array.isArray(values) || values.length < 1 || values.length > MAX_POINTS_PER_SERIES) return false
-  for (let i = 0; i < values.length; i++) {
-    const v: unknown = values[i]
+  if (!Array.isArray(demand) || demand.length < 1 || demand.length > MAX_POINTS_PER_SERIES) return false
+  for (let i = 0; i < demand.length; i++) {
+    const v: unknown = demand[i]
     if (v === null) continue
     if (typeof v !== 'number' || !(v >= -MAX_ABS_VALUE && v <= MAX_ABS_VALUE)) return false
   }
   let present = 2
-  if ('start' in o) {
-    if (typeof start !== 'string' || !PERIOD_PATTERN.test(start)) return false
+  if ('firstPeriod' in o) {
+    if (typeof firstPeriod !== 'string' || !PERIOD_PATTERN.test(firstPeriod)) return false
     present++
   }
   if ('frequency' in o) {
@@ -54,7 +54,7 @@ export function areUniqueSeriesItems(xs: readonly unknown[]): xs is SeriesItem[]
 }
 
 /** A valid series item standing in for a run's series while the schema checks the rest of the body. */
-const STAND_IN: SeriesItem = { sku: 'x', values: [0] }
+const STAND_IN: SeriesItem = { sku: 'x', demand: [0] }
 
 /**
  * RunSubmission.safeParse(body) for a body with inline series, with the series

@@ -42,8 +42,8 @@ export class AccuracyTrackingHistoryStore extends HistoryStore {
       const data = stored.get(p.sku)
       if (r === undefined || !('outcome' in r) || !data) return
       try {
-        const first = parsePeriod(data.start, data.frequency)
-        const periodValues = data.values.map((value, t) => ({ period: formatPeriod(first + t, data.frequency), value }))
+        const first = parsePeriod(data.firstPeriod, data.frequency)
+        const periodValues = data.demand.map((value, t) => ({ period: formatPeriod(first + t, data.frequency), value }))
         entries.push({ sku: p.sku, frequency: data.frequency, periodValues })
       } catch (err) {
         this.onError(err, tenant, p.sku)

@@ -49,10 +49,10 @@ const COMMAND = 'almanacRecordActuals'
 export interface ScoredRecord {
   readonly period: string
   readonly runId: string
-  readonly forecast: number
-  readonly actual: number
-  /** actual − forecast */
-  readonly error: number
+  readonly forecastDemand: number
+  readonly actualDemand: number
+  /** actualDemand − forecastDemand */
+  readonly deviation: number
 }
 
 export type SkuAccuracy = AccuracySummary & { readonly sku: string; readonly updatedAt: string }
@@ -82,7 +82,7 @@ export class AccuracyStore {
   constructor(
     private readonly redis: RedisClient,
     private readonly runs: Pick<RunStore, 'latestPoints'>,
-    private readonly opts: { readonly prefix: string; readonly limit?: number; readonly now?: () => Date },
+    private readonly opts: { readonly prefix: string; readonly trackingLimit?: number; readonly now?: () => Date },
   ) {
     if (!(COMMAND in redis)) redis.defineCommand(COMMAND, { numberOfKeys: 1, lua: RECORD })
   }
@@ -165,9 +165,9 @@ export class AccuracyStore {
     const h = await this.redis.hgetall(this.periodsKey(tenant, sku))
     const out = Object.entries(h).map(([period, v]) => {
       const [runId, f, a] = v.split('|')
-      const forecast = Number(f)
-      const actual = Number(a)
-      return { period, runId: runId ?? '', forecast, actual, error: actual - forecast }
+      const forecastDemand = Number(f)
+      const actualDemand = Number(a)
+      return { period, runId: runId ?? '', forecastDemand, actualDemand, deviation: actualDemand - forecastDemand }
     })
     const order = (p: string) => (frequency ? safeOrdinal(p, frequency) : 0)
     return out.sort((x, y) => order(x.period) - order(y.period) || x.period.localeCompare(y.period))
@@ -203,7 +203,7 @@ export class AccuracyStore {
   /** Recomputes the SKU's summary from its scored periods (the engine's summariseAccuracy). */
   private async refresh(tenant: string, sku: string): Promise<SkuAccuracy> {
     const records = await this.periods(tenant, sku)
-    const s = summariseAccuracy(records, this.opts.limit === undefined ? {} : { limit: this.opts.limit })
+    const s = summariseAccuracy(records, this.opts.trackingLimit === undefined ? {} : { trackingLimit: this.opts.trackingLimit })
     const summary: SkuAccuracy = { sku, ...s, updatedAt: (this.opts.now?.() ?? new Date()).toISOString() }
     const base = this.base(tenant)
     // The summary hash and the exception list lie in different slots of a Redis Cluster, so they

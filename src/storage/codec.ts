@@ -1,6 +1,6 @@
-import { METRIC_NAMES, MODEL_NAMES, type ForecastResult, type ModelName } from '../engine/index.js'
+import { METRIC_NAMES, MODEL_NAMES, type ForecastResult, type Frequency, type ModelName } from '../engine/index.js'
 import { RunSettings } from '../schemas/run.js'
-import { RUN_STATUSES, type RunRecord, type RunStatus, type ResultItem, type RunSummary } from './types.js'
+import { RUN_STATUSES, type ForecastItem, type RunRecord, type RunStatus, type ResultItem, type RunSummary } from './types.js'
 
 /** Conversions between stored strings and the contract types. */
 
@@ -59,8 +59,8 @@ function decodeSummary(hash: Record<string, string>, settings: RunSettings): Run
   const errCount = Number(hash.errCount ?? 0)
   const errSum = Number(hash.errSum ?? 0)
   return {
-    metric: settings.metric,
-    modelWins,
+    rankBy: settings.rankBy,
+    modelCounts: modelWins,
     meanHoldoutError: errCount > 0 && Number.isFinite(errSum) ? errSum / errCount : null,
   }
 }
@@ -91,13 +91,13 @@ export class ChunkTallier {
 
   add(item: ResultItem): void {
     this.done++
-    if ('error' in item) {
+    if ('failure' in item) {
       this.failed++
       return
     }
     // Items are tallied by the process that fitted them, so the model is always known here.
     if (isModel(item.model)) this.wins.set(item.model, (this.wins.get(item.model) ?? 0) + 1)
-    const value = item.selection.method === 'holdout' ? item.metrics?.[this.metric] : null
+    const value = item.modelChoice.method === 'holdout' ? item.holdoutErrors?.[this.metric] : null
     if (typeof value === 'number' && Number.isFinite(value)) {
       this.errSum += value
       this.errCount++
@@ -117,17 +117,18 @@ export function tallyItems(items: readonly ResultItem[], metric: (typeof METRIC_
 }
 
 /** The stored part of a successful engine result (no fitted values, no history). */
-export function toResultItem(sku: string, r: ForecastResult): ResultItem {
+export function toResultItem(sku: string, frequency: Frequency, r: ForecastResult): ForecastItem {
   return {
     sku,
+    frequency,
     model: r.model,
     family: r.family,
     params: r.params,
-    selection: r.selection,
-    metrics: r.metrics,
-    leaderboard: r.leaderboard,
+    modelChoice: r.modelChoice,
+    holdoutErrors: r.holdoutErrors,
+    candidates: r.candidates,
     forecast: r.forecast,
-    intervals: r.intervals,
+    intervalMethod: r.intervalMethod,
     warnings: r.warnings,
   }
 }

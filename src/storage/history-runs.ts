@@ -13,7 +13,7 @@ import { RunInputError, type RunRecord } from './types.js'
  * a chunk input at once, so memory holds one chunk, never the whole
  * selection. The run record goes last, when the total is known; inputs of a
  * run that never got its record expire with the result TTL.
- * Each stored history becomes the series `{ sku, values, start, frequency }`,
+ * Each stored history becomes the series `{ sku, firstPeriod, demand, frequency }`,
  * exactly as if it had been sent inline.
  * @throws RunInputError('empty-selection') when nothing matched
  */
@@ -43,7 +43,7 @@ export async function createRunFromHistories(
   }
   for await (const batch of histories.select(tenant, selection, chunkSize)) {
     for (const h of batch) {
-      chunk.push({ sku: h.sku, values: [...h.values], start: h.start, frequency: h.frequency })
+      chunk.push({ sku: h.sku, firstPeriod: h.firstPeriod, demand: [...h.demand], frequency: h.frequency })
       if (chunk.length >= chunkSize) await flush()
     }
   }

@@ -10,8 +10,8 @@ import { RunInputError } from './types.js'
 /**
  * Stored demand histories per tenant, in Redis. Histories are master data: no TTL.
  *
- *   hist:{T}:data      hash  sku -> JSON array of values (null = missing period)
- *   hist:{T}:meta      hash  sku -> JSON {f: frequency, s: start, n: length, t: tags, u: updatedAt, r: revision}
+ *   hist:{T}:data      hash  sku -> JSON array of demand per period (null = missing period)
+ *   hist:{T}:meta      hash  sku -> JSON {f: frequency, s: firstPeriod, n: periodCount, t: tags, u: updatedAt, r: revision}
  *   hist:{T}:skus      zset  every SKU with a history, score 0 (ordered by ZRANGEBYLEX)
  *   hist:{T}:tag:<tag> zset  SKUs carrying the tag, score 0
  *
@@ -29,9 +29,9 @@ export interface StoredHistory extends HistoryData {
 export interface HistorySummary {
   readonly sku: string
   readonly frequency: Frequency
-  readonly start: string
-  readonly length: number
+  readonly firstPeriod: string
   readonly lastPeriod: string
+  readonly periodCount: number
   readonly tags: readonly string[]
   readonly updatedAt: string
 }
@@ -50,7 +50,7 @@ interface Meta {
 
 /**
  * KEYS: data, meta, skus, then nNew new-tag sets, then nOld old-tag sets.
- * ARGV: sku, expected meta ('' when absent), new meta, values JSON, nNew, nOld.
+ * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld.
  * Returns 1 when written, 0 when the meta changed since it was read.
  */
 const PUT_HISTORY = `
@@ -115,7 +115,7 @@ export class HistoryStore implements HistoryWriter {
 
   /** Replace one SKU's history; says whether it was created. */
   async put(tenant: string, sku: string, data: HistoryData): Promise<{ outcome: 'created' | 'updated'; history: StoredHistory }> {
-    const pending = { sku, incoming: { frequency: data.frequency, startOrdinal: 0, values: [] }, rows: 0, origin: {} }
+    const pending = { sku, incoming: { frequency: data.frequency, startOrdinal: 0, demand: [] }, rows: 0, origin: {} }
     const [r] = await this.apply(tenant, [pending], () => ({ data }), { readValues: false })
     if (!r || 'reason' in r) throw new Error(r ? r.reason : 'history not written')
     return { outcome: r.outcome, history: (await this.get(tenant, sku))! }
@@ -153,10 +153,10 @@ export class HistoryStore implements HistoryWriter {
         }
         const oldMeta = rawMeta === null ? null : (JSON.parse(rawMeta) as Meta)
         const d = merged.data
-        const meta: Meta = { f: d.frequency, s: d.start, n: d.values.length, t: d.tags, u: updatedAt, r: (oldMeta?.r ?? 0) + 1 }
+        const meta: Meta = { f: d.frequency, s: d.firstPeriod, n: d.demand.length, t: d.tags, u: updatedAt, r: (oldMeta?.r ?? 0) + 1 }
         const oldTags = oldMeta?.t ?? []
         const keys = [k.data, k.meta, k.skus, ...d.tags.map(k.tag), ...oldTags.map(k.tag)]
-        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.values), d.tags.length, oldTags.length]
+        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length]
         ;(pipe as unknown as Record<string, (...a: unknown[]) => unknown>)[PUT_COMMAND]!(keys.length, ...keys, ...args)
         results[i] = { outcome: rawMeta === null ? 'created' : 'updated' }
         sent.push(i)
@@ -251,16 +251,16 @@ function decode(sku: string, rawMeta: string | null, rawData: string | null): St
   if (rawMeta === null || rawData === null) return null
   const meta = JSON.parse(rawMeta) as Meta
   if (!(FREQUENCIES as readonly string[]).includes(meta.f)) return null
-  return { sku, frequency: meta.f, start: meta.s, values: JSON.parse(rawData) as (number | null)[], tags: meta.t, updatedAt: meta.u }
+  return { sku, frequency: meta.f, firstPeriod: meta.s, demand: JSON.parse(rawData) as (number | null)[], tags: meta.t, updatedAt: meta.u }
 }
 
 function summary(sku: string, meta: Meta): HistorySummary {
   return {
     sku,
     frequency: meta.f,
-    start: meta.s,
-    length: meta.n,
+    firstPeriod: meta.s,
     lastPeriod: formatPeriod(parsePeriod(meta.s, meta.f) + meta.n - 1, meta.f),
+    periodCount: meta.n,
     tags: meta.t,
     updatedAt: meta.u,
   }

@@ -56,10 +56,10 @@ export function round(x: number, digits: number): number {
 export const r7 = (x: number) => round(x, 7)
 export const r4 = (x: number) => round(x, 4)
 
-export const REPLENISHMENT_FIELDS = ['leadTime', 'serviceLevel', 'leadTimeDemand', 'sigma', 'z', 'safetyStock', 'reorderPoint'] as const
+export const REPLENISHMENT_FIELDS = ['leadTimePeriods', 'serviceLevel', 'leadTimeDemand', 'sigma', 'z', 'safetyStock', 'reorderPoint'] as const
 
 /** Options and z kept exactly; the figures to 7 significant digits like forecasts. */
-export const EXACT = new Set<string>(['leadTime', 'serviceLevel', 'z'])
+export const EXACT = new Set<string>(['leadTimePeriods', 'serviceLevel', 'z'])
 
 /** A value as JSON.stringify writes it inside an array: undefined, NaN and Infinity as null. */
 export function jv(v: unknown): string {

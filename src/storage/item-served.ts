@@ -1,17 +1,17 @@
-import { METRIC_NAMES, type ForecastPoint, type MetricSet, type ModelParams } from '../engine/index.js'
+import { METRIC_NAMES, type Candidate, type ForecastInterval, type MetricSet, type ModelParams } from '../engine/index.js'
 import { EXACT, POWERS_OF_TEN, REPLENISHMENT_FIELDS, decade, jv, r4, r7, round } from './item-common.js'
-import type { ResultItem, StoredLeaderboardEntry } from './types.js'
+import type { ResultItem } from './types.js'
 
 /**
- * The JSON text of an item as served, without its sku: `{"model":...}` or
- * `{"error":...}`. It is JSON.stringify of the item with its numbers rounded
- * (forecasts, bounds, parameters and replenishment figures to 7 significant
- * digits, error measures and scores to 4) and a non-finite score left out;
- * test/storage/item-served.test.ts holds that reference and checks the two
- * agree byte for byte. Written straight from the engine result, so a results
- * page is the stored text with the sku put in front: no parsing and no
- * objects per item on the API, where decoding and re-serialising pages would
- * cost more than the service spent fitting them.
+ * The JSON text of an item as served, without its sku: `{"frequency":...,"model":...}`
+ * or `{"frequency":...,"failure":...}`. It is JSON.stringify of the item with its
+ * numbers rounded (forecasts, interval bounds, parameters and replenishment figures to
+ * 7 significant digits, holdout errors and scores to 4) and a non-finite score left
+ * out; test/storage/item-served.test.ts holds that reference and checks the two agree
+ * byte for byte. Written straight from the engine result, so a results page is the
+ * stored text with the sku put in front: no parsing and no objects per item on the
+ * API, where decoding and re-serialising pages would cost more than the service spent
+ * fitting them.
  */
 export function servedBody(item: ResultItem): string {
   return servedBytes(item).toString('utf8')
@@ -19,66 +19,59 @@ export function servedBody(item: ResultItem): string {
 
 /**
  * servedBody as UTF-8 bytes, written straight into a kept buffer (a view of
- * it, valid until the next call): building the text as a string took ~300
- * concatenations per item, and then a copy to encode it for deflate.
+ * it, valid until the next call): building the text as a string took hundreds
+ * of concatenations per item, and then a copy to encode it for deflate.
  */
 export function servedBytes(item: ResultItem): Buffer {
   pos = 0
-  if ('error' in item) {
-    text('{"error":{"code":')
-    value(item.error.code)
+  text('{"frequency":')
+  value(item.frequency)
+  if ('failure' in item) {
+    text(',"failure":{"code":')
+    value(item.failure.code)
     text(',"message":')
-    value(item.error.message)
+    value(item.failure.message)
     text('}}')
     return buf.subarray(0, pos)
   }
-  const s = item.selection
-  text('{"model":')
+  const c = item.modelChoice
+  text(',"model":')
   value(item.model)
   text(',"family":')
   value(item.family)
   text(',"params":')
   params(item.params)
-  text(',"selection":{"method":')
-  value(s.method)
-  text(',"metric":')
-  value(s.metric)
-  text(',"holdout":')
-  value(s.holdout)
-  text(',"origins":')
-  value(s.origins)
-  text('},"metrics":')
-  metrics(item.metrics)
-  text(',"leaderboard":[')
-  const board = item.leaderboard
-  for (let i = 0; i < board.length; i++) {
+  text(',"modelChoice":{"method":')
+  value(c.method)
+  text(',"rankBy":')
+  value(c.rankBy)
+  text(',"holdoutPeriods":')
+  value(c.holdoutPeriods)
+  text(',"holdoutOrigins":')
+  value(c.holdoutOrigins)
+  text('},"holdoutErrors":')
+  errors(item.holdoutErrors)
+  text(',"candidates":[')
+  const candidates = item.candidates
+  for (let i = 0; i < candidates.length; i++) {
     if (i > 0) text(',')
-    entry(board[i]!)
+    candidate(candidates[i]!)
   }
   text('],"forecast":[')
   const points = item.forecast
-  const lower = boundKeys(points, 'lower')
-  const upper = boundKeys(points, 'upper')
   for (let i = 0; i < points.length; i++) {
     const p = points[i]!
     text(i === 0 ? '{"period":' : ',{"period":')
     value(p.period)
-    text(',"value":')
-    rounded(p.value, 7)
-    text(',"lower":')
-    bound(p.lower, lower)
-    text(',"upper":')
-    bound(p.upper, upper)
-    text('}')
+    text(',"demand":')
+    rounded(p.demand, 7)
+    text(',"intervals":[')
+    intervals(p.intervals)
+    text(']}')
   }
-  const iv = item.intervals
-  text('],"intervals":{"method":')
-  value(iv.method)
-  text(',"levels":')
-  value(iv.levels)
-  text(',"clamped":')
-  value(iv.clamped)
-  text('},"warnings":[')
+  text('],"intervalMethod":')
+  value(item.intervalMethod)
+  text(',"warnings":[')
   for (let i = 0; i < item.warnings.length; i++) {
     const w = item.warnings[i]!
     text(i === 0 ? '{"code":' : ',{"code":')
@@ -246,7 +239,7 @@ function digitsAt(t: number, last: number, n: number): void {
   }
 }
 
-function metrics(m: MetricSet | null | undefined): void {
+function errors(m: MetricSet | null | undefined): void {
   if (!m) return text('null')
   for (let i = 0; i < METRIC_NAMES.length; i++) {
     text(METRIC_KEYS[i]!)
@@ -279,35 +272,46 @@ function params(p: ModelParams): void {
   text(first ? '{}' : '}')
 }
 
-function bound(b: Readonly<Record<string, number>>, keys: readonly BoundKey[]): void {
-  text('{')
-  for (let i = 0; i < keys.length; i++) {
-    if (i > 0) text(',')
-    text(keys[i]![1])
-    rounded(b[keys[i]![0]], 7)
+/** A point's intervals: `{"level":80,"low":...,"high":...}` each. */
+function intervals(list: readonly ForecastInterval[]): void {
+  for (let i = 0; i < list.length; i++) {
+    const iv = list[i]!
+    text(i === 0 ? levelPrefix(i, iv.level) : ',' + levelPrefix(i, iv.level))
+    rounded(iv.low, 7)
+    text(',"high":')
+    rounded(iv.high, 7)
+    text('}')
   }
-  text('}')
 }
 
-function entry(e: StoredLeaderboardEntry): void {
+/**
+ * `{"level":80,"low":` for the i-th interval of a point. The levels are the run's, the
+ * same on every point, so the text of the last level seen at each position is reused.
+ */
+function levelPrefix(i: number, level: number): string {
+  if (Object.is(prefixLevels[i], level)) return prefixTexts[i]!
+  prefixLevels[i] = level
+  return (prefixTexts[i] = `{"level":${jv(level)},"low":`)
+}
+const prefixLevels: number[] = []
+const prefixTexts: string[] = []
+
+function candidate(e: Candidate): void {
   text('{"model":')
   value(e.model)
   text(',"family":')
   value(e.family)
   text(',"status":')
   value(e.status)
-  if (e.metrics) {
-    text(',"metrics":')
-    metrics(e.metrics)
+  if (e.holdoutErrors) {
+    text(',"holdoutErrors":')
+    errors(e.holdoutErrors)
   }
   // Left out when the rounded score is not a finite number (JSON has no NaN or Infinity).
   // round(score) is finite exactly when its JSON is not null (see rounded), without building the text.
   if (typeof e.score === 'number' && Number.isFinite(r4(e.score))) {
     text(',"score":')
     rounded(e.score, 4)
-  } else if (e.score !== undefined && typeof e.score !== 'number') {
-    const j = jv(r4(e.score))
-    if (j !== 'null') text(`,"score":${j}`)
   }
   if (e.reason !== undefined && e.reason !== null) {
     text(',"reason":')
@@ -317,24 +321,3 @@ function entry(e: StoredLeaderboardEntry): void {
 }
 
 const METRIC_KEYS = METRIC_NAMES.map((k, i) => `${i === 0 ? '{' : ','}${JSON.stringify(k)}:`)
-
-
-
-/**
- * Keys and `"level":` prefixes of the first point's bounds (every point of an item has the
- * same levels, the run's). A key such as "80" is kept as the number 80: the same property, but a
- * string index made every read of a bound take V8's slow keyed path. The last result is
- * reused while the keys are the same (they are the run's levels).
- */
-function boundKeys(points: readonly ForecastPoint[], side: 'lower' | 'upper'): readonly BoundKey[] {
-  const keys = Object.keys(points[0]?.[side] ?? {})
-  const last = side === 'lower' ? lastLower : lastUpper
-  if (last.names.length === keys.length && last.names.every((k, i) => k === keys[i])) return last.keys
-  const made = { names: keys, keys: keys.map((l): BoundKey => [String(Number(l)) === l && Number.isInteger(Number(l)) ? Number(l) : l, JSON.stringify(l) + ':']) }
-  if (side === 'lower') lastLower = made
-  else lastUpper = made
-  return made.keys
-}
-type BoundKey = readonly [string | number, string]
-let lastLower: { names: readonly string[]; keys: readonly BoundKey[] } = { names: [], keys: [] }
-let lastUpper = lastLower

@@ -90,11 +90,11 @@ function consecutiveCode(labels: readonly string[]): string | null {
 const value7 = (v: number) => (Number.isFinite(v) ? String(round(v, 7)) : '')
 
 /** The `points` field of a record. */
-export function encodePoints(forecast: readonly Pick<ForecastPoint, 'period' | 'value'>[]): string {
+export function encodePoints(forecast: readonly Pick<ForecastPoint, 'period' | 'demand'>[]): string {
   const labels = forecast.map((p) => p.period)
   const code = consecutiveCode(labels)
-  if (code === null) return `j:${JSON.stringify([labels, forecast.map((p) => (Number.isFinite(p.value) ? round(p.value, 7) : null))])}`
-  return `${code}:${labels[0]}:${forecast.map((p) => value7(p.value)).join(',')}`
+  if (code === null) return `j:${JSON.stringify([labels, forecast.map((p) => (Number.isFinite(p.demand) ? round(p.demand, 7) : null))])}`
+  return `${code}:${labels[0]}:${forecast.map((p) => value7(p.demand)).join(',')}`
 }
 
 /**

@@ -13,12 +13,12 @@ import type { ResultItem } from './types.js'
 export interface PreparedItem {
   readonly sku: string
   readonly stored: Buffer
-  /** encodePoints of the forecast; null for an error item (it never becomes a latest forecast). */
+  /** encodePoints of the forecast; null for a failed item (it never becomes a latest forecast). */
   readonly points: string | null
 }
 
 export function prepareItem(item: ResultItem): PreparedItem {
-  return { sku: item.sku, stored: storeItem(item), points: 'error' in item ? null : encodePoints(item.forecast) }
+  return { sku: item.sku, stored: storeItem(item), points: 'failure' in item ? null : encodePoints(item.forecast) }
 }
 
 export function prepareItems(items: readonly ResultItem[]): PreparedItem[] {

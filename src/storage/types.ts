@@ -1,4 +1,4 @@
-import type { ForecastResult, LeaderboardEntry, ModelFamily, ModelName, MetricName, ReplenishmentFigures } from '../engine/index.js'
+import type { ForecastResult, Frequency, ModelName, MetricName, ReplenishmentFigures } from '../engine/index.js'
 import type { RunSettings } from '../schemas/run.js'
 
 /** Contract between the HTTP layer and the run machinery (queue + storage). */
@@ -24,37 +24,37 @@ export interface RunRecord {
 }
 
 export interface RunSummary {
-  readonly metric: MetricName
-  /** How many SKUs each model won. */
-  readonly modelWins: Partial<Record<ModelName, number>>
-  /** Mean holdout error of the winners on `metric`, over SKUs where it is defined. */
+  readonly rankBy: MetricName
+  /** How many SKUs each model was chosen for. */
+  readonly modelCounts: Partial<Record<ModelName, number>>
+  /** Mean holdout error of the chosen models on `rankBy`, over SKUs where it is defined. */
   readonly meanHoldoutError: number | null
 }
 
-/**
- * A leaderboard entry as stored and served. An entry written by another
- * version of the service may name a model this process does not know (mixed
- * versions during a deploy): the name is kept as stored, and the family is
- * 'unknown' unless the entry stored it.
- */
-export type StoredLeaderboardEntry = Omit<LeaderboardEntry, 'model' | 'family'> & {
-  readonly model: ModelName | (string & {})
-  readonly family: ModelFamily | 'unknown'
+/** Why something failed: a result item, a run, a callback delivery attempt, a schedule firing. */
+export interface Failure {
+  readonly code: string
+  readonly message: string
+}
+
+/** A SKU the engine forecast, as stored and served (fields in the order they are served). */
+export type ForecastItem = { readonly sku: string; readonly frequency: Frequency } & Pick<
+  ForecastResult,
+  'model' | 'family' | 'params' | 'modelChoice' | 'holdoutErrors' | 'candidates' | 'forecast' | 'intervalMethod' | 'warnings'
+> & {
+    /** Present when the run asked for replenishment figures. */
+    readonly replenishment?: ReplenishmentFigures
+  }
+
+/** A SKU the engine could not forecast. */
+export interface FailedItem {
+  readonly sku: string
+  readonly frequency: Frequency
+  readonly failure: Failure
 }
 
 /** One SKU's outcome in a run. */
-export type ResultItem =
-  | ({ readonly sku: string } & Pick<
-      ForecastResult,
-      'family' | 'params' | 'metrics' | 'forecast' | 'warnings' | 'selection' | 'intervals'
-    > & {
-      /** As in StoredLeaderboardEntry: another service version may have stored a model this one does not know. */
-      readonly model: ModelName | (string & {})
-      readonly leaderboard: readonly StoredLeaderboardEntry[]
-      /** Present when the run asked for replenishment figures. */
-      readonly replenishment?: ReplenishmentFigures
-    })
-  | { readonly sku: string; readonly error: { readonly code: string; readonly message: string } }
+export type ResultItem = ForecastItem | FailedItem
 
 export interface ResultPage {
   readonly items: readonly ResultItem[]

@@ -53,7 +53,7 @@ describe('computeMetrics: hand-checked', () => {
   it('mae, rmse, wape', () => {
     expect(m.mae).toBe(2) // (2 + 5 + 1 + 0) / 4
     expect(approxEqual(m.rmse!, Math.sqrt(30 / 4), 1e-15)).toBe(true) // (4 + 25 + 1 + 0) / 4
-    expect(approxEqual(m.wape!, 8 / 70, 1e-15)).toBe(true)
+    expect(approxEqual(m.wape!, (100 * 8) / 70, 1e-15)).toBe(true) // in percent, like mape
   })
   it('mape skips the zero actual', () => {
     expect(approxEqual(m.mape!, (100 * (0.2 + 0.25 + 0)) / 3, 1e-15)).toBe(true)

@@ -52,7 +52,7 @@ describe('periodLabels', () => {
       ['month', ' 2024-03'],
     ]
     for (const [frequency, start] of bad) {
-      expect(codeOf(() => periodLabels(frequency, start, 1)), `${frequency} ${start}`).toBe('invalid-period:start')
+      expect(codeOf(() => periodLabels(frequency, start, 1)), `${frequency} ${start}`).toBe('invalid-period:firstPeriod')
     }
   })
 
@@ -79,7 +79,7 @@ describe('periodLabels', () => {
   })
 
   it('refuses to go past year 9999', () => {
-    expect(codeOf(() => periodLabels('year', '9999', 2))).toBe('invalid-period:start')
+    expect(codeOf(() => periodLabels('year', '9999', 2))).toBe('invalid-period:firstPeriod')
   })
 })
 

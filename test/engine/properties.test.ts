@@ -1,4 +1,5 @@
 import fc from 'fast-check'
+import { high, low } from './points.js'
 import { describe, expect, it } from 'vitest'
 import { forecastSeries } from '../../src/engine/index.js'
 import { approxEqual } from '../../src/engine/numeric.js'
@@ -19,13 +20,13 @@ const withGaps = fc.array(fc.option(fc.double({ min: 0, max: 1e6, noNaN: true })
 /** Every number a result carries. */
 function numbersOf(r: ForecastResult): number[] {
   const out: number[] = []
-  for (const p of r.forecast) out.push(p.value, ...Object.values(p.lower), ...Object.values(p.upper))
+  for (const p of r.forecast) out.push(p.demand, ...p.intervals.flatMap((i) => [i.low, i.high]))
   for (const f of r.fitted) if (f !== null) out.push(f)
   out.push(r.residuals.count, r.residuals.mean, r.residuals.sd, r.residuals.mae)
-  for (const v of Object.values(r.metrics ?? {})) if (v !== null) out.push(v)
-  for (const e of r.leaderboard) {
+  for (const v of Object.values(r.holdoutErrors ?? {})) if (v !== null) out.push(v)
+  for (const e of r.candidates) {
     if (e.score !== undefined) out.push(e.score)
-    for (const v of Object.values(e.metrics ?? {})) if (v !== null) out.push(v)
+    for (const v of Object.values(e.holdoutErrors ?? {})) if (v !== null) out.push(v)
   }
   for (const v of Object.values(r.params)) out.push(...(typeof v === 'number' ? [v] : v))
   return out
@@ -35,8 +36,8 @@ describe('forecastSeries properties', () => {
   it('forecasts a constant history as that constant', () => {
     fc.assert(
       fc.property(fc.double({ min: 0, max: 1e9, noNaN: true }), fc.integer({ min: 1, max: 60 }), frequency, (c, n, f) => {
-        const r = forecastSeries({ values: new Array(n).fill(c), frequency: f, horizon: 5 })
-        return r.forecast.every((p) => p.value === c && p.lower['80'] === c && p.upper['95'] === c)
+        const r = forecastSeries({ demand: new Array(n).fill(c), frequency: f, horizon: 5 })
+        return r.forecast.every((p) => p.demand === c && low(p, 80) === c && high(p, 95) === c)
       }),
       SETTINGS,
     )
@@ -46,7 +47,7 @@ describe('forecastSeries properties', () => {
     fc.assert(
       fc.property(withGaps, frequency, fc.integer({ min: 1, max: 24 }), fc.boolean(), (values, f, horizon, interpolate) => {
         fc.pre(values.some((v) => v !== null))
-        const r = forecastSeries({ values, frequency: f, horizon, fillPolicy: interpolate ? 'interpolate' : 'zero' })
+        const r = forecastSeries({ demand: values, frequency: f, horizon, missingPeriods: interpolate ? 'interpolate' : 'zero' })
         expect(r.forecast).toHaveLength(horizon)
         for (const x of numbersOf(r)) expect(Number.isFinite(x)).toBe(true)
       }),
@@ -57,16 +58,16 @@ describe('forecastSeries properties', () => {
   it('keeps every interval around its point, non-negative, and wider at higher levels', () => {
     fc.assert(
       fc.property(demand, frequency, (values, f) => {
-        const r = forecastSeries({ values, frequency: f, horizon: 6, intervals: [50, 80, 95] })
+        const r = forecastSeries({ demand: values, frequency: f, horizon: 6, intervalLevels: [50, 80, 95] })
         for (const p of r.forecast) {
-          expect(p.value).toBeGreaterThanOrEqual(0)
-          expect(p.lower['95']).toBeGreaterThanOrEqual(0)
-          expect(p.lower['95']).toBeLessThanOrEqual(p.lower['80'])
-          expect(p.lower['80']).toBeLessThanOrEqual(p.lower['50'])
-          expect(p.lower['50']).toBeLessThanOrEqual(p.value)
-          expect(p.value).toBeLessThanOrEqual(p.upper['50'])
-          expect(p.upper['50']).toBeLessThanOrEqual(p.upper['80'])
-          expect(p.upper['80']).toBeLessThanOrEqual(p.upper['95'])
+          expect(p.demand).toBeGreaterThanOrEqual(0)
+          expect(low(p, 95)).toBeGreaterThanOrEqual(0)
+          expect(low(p, 95)).toBeLessThanOrEqual(low(p, 80))
+          expect(low(p, 80)).toBeLessThanOrEqual(low(p, 50))
+          expect(low(p, 50)).toBeLessThanOrEqual(p.demand)
+          expect(p.demand).toBeLessThanOrEqual(high(p, 50))
+          expect(high(p, 50)).toBeLessThanOrEqual(high(p, 80))
+          expect(high(p, 80)).toBeLessThanOrEqual(high(p, 95))
         }
       }),
       SETTINGS,
@@ -76,7 +77,7 @@ describe('forecastSeries properties', () => {
   it('is deterministic: the same input gives a deep-equal result', () => {
     fc.assert(
       fc.property(demand, frequency, (values, f) => {
-        const input = { values, frequency: f, horizon: 4, origins: 2 }
+        const input = { demand: values, frequency: f, horizon: 4, holdoutOrigins: 2 }
         expect(forecastSeries(input)).toEqual(forecastSeries(input))
       }),
       SETTINGS,
@@ -90,14 +91,14 @@ describe('forecastSeries properties', () => {
   it('scales point forecasts by c when the history is scaled by c > 0', () => {
     fc.assert(
       fc.property(demand, fc.constantFrom(0.01, 0.5, 3, 1000), frequency, (values, c, f) => {
-        const a = forecastSeries({ values, frequency: f, horizon: 6 })
-        const b = forecastSeries({ values: values.map((v) => v * c), frequency: f, horizon: 6 })
+        const a = forecastSeries({ demand: values, frequency: f, horizon: 6 })
+        const b = forecastSeries({ demand: values.map((v) => v * c), frequency: f, horizon: 6 })
         if (a.model !== b.model) {
-          expect(approxEqual(a.leaderboard[0].score!, a.leaderboard[1]?.score ?? NaN, 1e-6)).toBe(true)
+          expect(approxEqual(a.candidates[0].score!, a.candidates[1]?.score ?? NaN, 1e-6)).toBe(true)
           return
         }
         a.forecast.forEach((p, i) => {
-          expect(approxEqual(p.value * c, b.forecast[i].value, 1e-6, 1e-9 * c), `${a.model} step ${i + 1}`).toBe(true)
+          expect(approxEqual(p.demand * c, b.forecast[i].demand, 1e-6, 1e-9 * c), `${a.model} step ${i + 1}`).toBe(true)
         })
       }),
       SETTINGS,
@@ -126,8 +127,8 @@ describe('seasonal decomposition properties', () => {
   it('seasonal factors reported by the winning model average 1', () => {
     fc.assert(
       fc.property(fc.array(fc.double({ min: 1, max: 1000, noNaN: true }), { minLength: 24, maxLength: 60 }), (values) => {
-        const r = forecastSeries({ values, frequency: 'month', horizon: 3, models: ['decomposition', 'seasonal-index'] })
-        const factors = r.params.seasonalFactors as readonly number[]
+        const r = forecastSeries({ demand: values, frequency: 'month', horizon: 3, models: ['linear-trend-season-averages', 'level-smoothing-season-averages'] })
+        const factors = r.params.seasonFactors as readonly number[]
         expect(factors).toHaveLength(12)
         expect(approxEqual(factors.reduce((s, v) => s + v, 0) / 12, 1, 1e-9)).toBe(true)
       }),

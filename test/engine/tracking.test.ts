@@ -9,18 +9,18 @@ const ref = JSON.parse(
 ).tracking as { actual: number[]; forecast: number[]; mae: number; bias: number; mape: number; trackingSignal: number }
 
 const periods = (actual: number[], forecast: number[]) =>
-  actual.map((a, i) => ({ period: `2025-${String(i + 1).padStart(2, '0')}`, actual: a, forecast: forecast[i]! }))
+  actual.map((a, i) => ({ period: `2025-${String(i + 1).padStart(2, '0')}`, actualDemand: a, forecastDemand: forecast[i]! }))
 
 describe('summariseAccuracy', () => {
   it('is empty without scored periods', () => {
     expect(summariseAccuracy([])).toEqual({
-      count: 0, mae: null, bias: null, mape: null, trackingSignal: null, flagged: false, limit: 4,
+      scoredPeriods: 0, mae: null, bias: null, mape: null, trackingSignal: null, flagged: false, trackingLimit: 4,
     })
   })
 
   it('perfect forecasts: zero errors, tracking signal 0, MAPE 0', () => {
     const s = summariseAccuracy(periods([5, 6, 7, 8, 9], [5, 6, 7, 8, 9]))
-    expect(s).toMatchObject({ count: 5, mae: 0, bias: 0, mape: 0, trackingSignal: 0, flagged: false })
+    expect(s).toMatchObject({ scoredPeriods: 5, mae: 0, bias: 0, mape: 0, trackingSignal: 0, flagged: false })
   })
 
   it('all-zero actuals leave MAPE undefined (null), never NaN', () => {
@@ -35,13 +35,13 @@ describe('summariseAccuracy', () => {
     expect(() => summariseAccuracy(periods([1, Number.NaN], [1, 1]))).toThrow(EngineInputError)
   })
 
-  // Hand-computed: errors (actual - forecast) 5, -2, 10, 4, -3, 10; sum 24; sum of |e| 34;
+  // Hand-computed: deviations (actual - forecast) 5, -2, 10, 4, -3, 10; sum 24; sum of |e| 34;
   // MAE = 34 / 6 = 5.6667; bias = 24 / 6 = 4 (positive: under-forecast);
   // TS = 24 / 5.6667 = 4.2353 > 4, flagged. MAPE skips the zero actual:
   // 100 * (5/100 + 2/96 + 10/110 + 4/104 + 10/120) / 5 = 5.6707. Base R agrees (fixture).
   it('matches the hand-computed tracking signal', () => {
     const s = summariseAccuracy(periods(ref.actual, ref.forecast))
-    expect(s.count).toBe(6)
+    expect(s.scoredPeriods).toBe(6)
     expect(s.mae).toBeCloseTo(5.6667, 4)
     expect(s.bias).toBe(4)
     expect(s.trackingSignal).toBeCloseTo(4.2353, 4)
@@ -55,7 +55,7 @@ describe('summariseAccuracy', () => {
     const s = summariseAccuracy(periods([10, 10, 10], [1, 1, 1]))
     expect(s.trackingSignal).toBe(3)
     expect(summariseAccuracy(periods([10, 10, 10, 10, 10], [1, 1, 1, 1, 1])).flagged).toBe(true)
-    expect(summariseAccuracy(periods([10, 10, 10, 10, 10], [1, 1, 1, 1, 1]), { limit: 6 }).flagged).toBe(false)
+    expect(summariseAccuracy(periods([10, 10, 10, 10, 10], [1, 1, 1, 1, 1]), { trackingLimit: 6 }).flagged).toBe(false)
   })
 
   it('an unbiased forecast with alternating errors stays inside the limit', () => {

@@ -6,21 +6,21 @@ import { prefersCsv, textCell } from '../../src/http/csv-export.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, KEY_HEATING, auth, forecastItemFixture, testConfig } from './gateway-double.js'
 
-const REQUEST = { horizon: 2, frequency: 'month', series: [{ sku: 'X', values: [1, 2, 3] }] }
+const REQUEST = { horizon: 2, frequency: 'month', series: [{ sku: 'X', demand: [1, 2, 3] }] }
 
 function items(): ResultItem[] {
   const base = forecastItemFixture('HOSE-25M') as Extract<ResultItem, { model: string }>
   const two = {
     ...base,
     forecast: [
-      { period: '2026-01', value: 10.25, lower: { '80': 8, '95': 7 }, upper: { '80': 12, '95': 13 } },
-      { period: '2026-02', value: -3.5, lower: { '80': -6, '95': -7.125 }, upper: { '80': -1, '95': 0 } },
+      { period: '2026-01', demand: 10.25, intervals: [{ level: 80, low: 8, high: 12 }, { level: 95, low: 7, high: 13 }] },
+      { period: '2026-02', demand: -3.5, intervals: [{ level: 80, low: -6, high: -1 }, { level: 95, low: -7.125, high: 0 }] },
     ],
   }
   return [
     two,
     { ...base, sku: '=HYPERLINK("http://x.example","click")' },
-    { sku: '-SHOVEL, "steel"', error: { code: 'series-too-short', message: 'ses requires at least 2 data points' } },
+    { sku: '-SHOVEL, "steel"', frequency: 'month', failure: { code: 'series-too-short', message: 'level-smoothing needs 2 periods, has 1' } },
   ]
 }
 
@@ -46,27 +46,27 @@ describe('GET /v1/runs/{runId}/results as CSV', () => {
     expect(res.headers.vary).toBe('accept')
     const rows = parse(res.body, { columns: true }) as Record<string, string>[]
     expect(Object.keys(rows[0]!)).toEqual([
-      'sku', 'period', 'value', 'lower_80', 'upper_80', 'lower_95', 'upper_95', 'model', 'metric', 'holdout_error', 'error',
+      'sku', 'period', 'demand', 'low80', 'high80', 'low95', 'high95', 'model', 'rankBy', 'holdoutError', 'failure',
     ])
     const json = (await app.inject({ url: `/v1/runs/${runId}/results`, headers: auth(KEY_GARDEN) })).json()
     const hose = json.items[0]
     const hoseRows = rows.filter((r) => r.sku === 'HOSE-25M')
     expect(hoseRows).toHaveLength(hose.forecast.length)
-    hose.forecast.forEach((p: { period: string; value: number; lower: Record<string, number>; upper: Record<string, number> }, i: number) => {
+    hose.forecast.forEach((p: { period: string; demand: number; intervals: { level: number; low: number; high: number }[] }, i: number) => {
       const r = hoseRows[i]!
       expect(r.period).toBe(p.period)
-      expect(Number(r.value)).toBe(p.value)
-      expect(Number(r.lower_80)).toBe(p.lower['80'])
-      expect(Number(r.upper_95)).toBe(p.upper['95'])
+      expect(Number(r.demand)).toBe(p.demand)
+      expect(Number(r.low80)).toBe(p.intervals[0]!.low)
+      expect(Number(r.high95)).toBe(p.intervals[1]!.high)
       expect(r.model).toBe(hose.model)
-      expect(r.metric).toBe('mase')
-      expect(Number(r.holdout_error)).toBe(hose.metrics.mase)
+      expect(r.rankBy).toBe('mase')
+      expect(Number(r.holdoutError)).toBe(hose.holdoutErrors.mase)
     })
     // A negative forecast is a number, not a formula: written as is.
-    expect(hoseRows[1]!.value).toBe('-3.5')
+    expect(hoseRows[1]!.demand).toBe('-3.5')
   })
 
-  it('neutralises text cells that a spreadsheet would run as a formula, and writes an error row', async () => {
+  it('neutralises text cells that a spreadsheet would run as a formula, and writes a failure row', async () => {
     const rows = parse((await csv()).body, { columns: true }) as Record<string, string>[]
     expect(rows.map((r) => r.sku)).toEqual([
       'HOSE-25M',
@@ -74,7 +74,7 @@ describe('GET /v1/runs/{runId}/results as CSV', () => {
       `'=HYPERLINK("http://x.example","click")`,
       `'-SHOVEL, "steel"`,
     ])
-    expect(rows[3]).toMatchObject({ period: '', value: '', model: '', error: 'series-too-short: ses requires at least 2 data points' })
+    expect(rows[3]).toMatchObject({ period: '', demand: '', model: '', failure: 'series-too-short: level-smoothing needs 2 periods, has 1' })
   })
 
   it('honours sku, 404s another tenant, and keeps JSON without Accept: text/csv', async () => {

@@ -19,7 +19,7 @@ describe('ETag and If-None-Match', () => {
       method: 'POST',
       url: '/v1/runs',
       headers: auth(KEY_GARDEN),
-      payload: { horizon: 1, series: [{ sku: 'HOSE-25M', values: [1, 2, 3] }] },
+      payload: { horizon: 1, series: [{ sku: 'HOSE-25M', demand: [1, 2, 3] }] },
     })
     const url = `/v1/runs/${run.json().id}`
     const first = await get(url)
@@ -44,7 +44,7 @@ describe('ETag and If-None-Match', () => {
       method: 'PUT',
       url: '/v1/skus/HOSE-25M/history',
       headers: auth(KEY_GARDEN),
-      payload: { frequency: 'month', start: '2025-01', values: [1] },
+      payload: { frequency: 'month', firstPeriod: '2025-01', demand: [1] },
     })
     const history = await get('/v1/skus/HOSE-25M/history')
     expect((await get('/v1/skus/HOSE-25M/history', history.headers.etag as string)).statusCode).toBe(304)

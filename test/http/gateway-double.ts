@@ -47,18 +47,18 @@ export class InMemoryGatewayDouble implements RunGateway {
   /** Finish a run with the given items (what a worker would store). */
   complete(runId: string, items: ResultItem[]): void {
     const run = this.runs.get(runId)!
-    const failed = items.filter((i) => 'error' in i).length
+    const failed = items.filter((i) => 'failure' in i).length
     this.runs.set(runId, {
       ...run,
       status: 'succeeded',
       progress: { total: items.length, done: items.length, failed },
       startedAt: '2026-01-05T08:00:01.000Z',
       finishedAt: '2026-01-05T08:00:02.000Z',
-      summary: { metric: 'mase', modelWins: { naive: items.length - failed }, meanHoldoutError: 0.5 },
+      summary: { rankBy: 'mase', modelCounts: { 'last-value': items.length - failed }, meanHoldoutError: 0.5 },
     })
     this.items.set(runId, items)
     for (const item of items) {
-      if (!('error' in item)) {
+      if (!('failure' in item)) {
         this.latest.set(`${run.tenant}\u0000${item.sku}`, { runId, producedAt: '2026-01-05T08:00:02.000Z', item })
       }
     }
@@ -141,14 +141,15 @@ export const auth = (key: string) => ({ authorization: `Bearer ${key}` })
 export function forecastItemFixture(sku: string): ResultItem {
   return {
     sku,
-    model: 'naive',
+    frequency: 'month',
+    model: 'last-value',
     family: 'level',
     params: {},
-    selection: { method: 'holdout', metric: 'mase', holdout: 3, origins: 1 },
-    metrics: { mae: 1, rmse: 1, mape: 10, smape: 10, mase: 0.5, wape: 0.1 },
-    leaderboard: [{ model: 'naive', family: 'level', status: 'scored', score: 0.5 }],
-    forecast: [{ period: '2026-01', value: 10, lower: { '80': 8, '95': 7 }, upper: { '80': 12, '95': 13 } }],
-    intervals: { method: 'empirical', levels: [80, 95], clamped: false },
+    modelChoice: { method: 'holdout', rankBy: 'mase', holdoutPeriods: 3, holdoutOrigins: 1 },
+    holdoutErrors: { mae: 1, rmse: 1, mape: 10, smape: 10, mase: 0.5, wape: 10 },
+    candidates: [{ model: 'last-value', family: 'level', status: 'scored', score: 0.5 }],
+    forecast: [{ period: '2026-01', demand: 10, intervals: [{ level: 80, low: 8, high: 12 }, { level: 95, low: 7, high: 13 }] }],
+    intervalMethod: 'empirical',
     warnings: [],
   }
 }

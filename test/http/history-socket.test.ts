@@ -69,7 +69,7 @@ async function endlessUpload(header: string): Promise<{ received: string; sent: 
 
 describe('POST /v1/history on a real socket', () => {
   it('cuts off an endless chunked CSV body near the limit with 413 and stores nothing', async () => {
-    const { received, sent } = await endlessUpload('sku,period,quantity\n')
+    const { received, sent } = await endlessUpload('sku,period,demand\n')
     // The 413 may be lost to the reset the client provokes by writing on; the connection is closed either way.
     if (received !== '') expect(Number(/^HTTP\/1\.1 (\d{3})/.exec(received)?.[1])).toBe(413)
     expect(sent).toBeLessThan(LIMIT * 20)
@@ -87,7 +87,7 @@ describe('POST /v1/history on a real socket', () => {
     await new Promise((r) => socket.once('connect', r))
     socket.write(
       `POST /v1/history HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer ${KEY_GARDEN}\r\n` +
-        `Content-Type: text/csv\r\nContent-Length: ${LIMIT * 100}\r\n\r\nsku,period,quantity\n`,
+        `Content-Type: text/csv\r\nContent-Length: ${LIMIT * 100}\r\n\r\nsku,period,demand\n`,
     )
     await closed
     expect(Number(/^HTTP\/1\.1 (\d{3})/.exec(received)?.[1])).toBe(413)

@@ -16,46 +16,46 @@ describe('PUT and GET /v1/skus/{sku}/history', () => {
       method: 'PUT',
       url: '/v1/skus/HOSE-25M/history',
       headers: auth(KEY_GARDEN),
-      payload: { frequency: 'month', start: '2025-11', values: [4, null, 6], tags: ['site:north', 'category:garden', 'site:north'] },
+      payload: { frequency: 'month', firstPeriod: '2025-11', demand: [4, null, 6], tags: ['site:north', 'category:garden', 'site:north'] },
     })
     expect(put.statusCode).toBe(201)
     expect(put.json()).toMatchObject({
       sku: 'HOSE-25M',
       frequency: 'month',
-      start: '2025-11',
+      firstPeriod: '2025-11',
       lastPeriod: '2026-01',
-      length: 3,
-      values: [4, null, 6],
+      periodCount: 3,
+      demand: [4, null, 6],
       tags: ['category:garden', 'site:north'],
     })
     const again = await h.app.inject({
       method: 'PUT',
       url: '/v1/skus/HOSE-25M/history',
       headers: auth(KEY_GARDEN),
-      payload: { frequency: 'month', start: '2025-12', values: [7, 8] },
+      payload: { frequency: 'month', firstPeriod: '2025-12', demand: [7, 8] },
     })
     expect(again.statusCode).toBe(200)
     const get = await h.app.inject({ url: '/v1/skus/HOSE-25M/history', headers: auth(KEY_GARDEN) })
     expect(get.statusCode).toBe(200)
-    expect(get.json()).toMatchObject({ start: '2025-12', values: [7, 8], tags: [], lastPeriod: '2026-01' })
+    expect(get.json()).toMatchObject({ firstPeriod: '2025-12', demand: [7, 8], tags: [], lastPeriod: '2026-01' })
     const other = await h.app.inject({ url: '/v1/skus/HOSE-25M/history', headers: auth(KEY_HEATING) })
     expect(other.statusCode).toBe(404)
   })
 
-  it('refuses a start label of another frequency and a bad tag with the field', async () => {
+  it('refuses a firstPeriod of another frequency and a bad tag with the field', async () => {
     const bad = await h.app.inject({
       method: 'PUT',
       url: '/v1/skus/RAKE/history',
       headers: auth(KEY_GARDEN),
-      payload: { frequency: 'week', start: '2025-11', values: [1] },
+      payload: { frequency: 'week', firstPeriod: '2025-11', demand: [1] },
     })
     expect(bad.statusCode).toBe(400)
-    expect(bad.json().errors[0].path).toBe('start')
+    expect(bad.json().errors[0].path).toBe('firstPeriod')
     const tag = await h.app.inject({
       method: 'PUT',
       url: '/v1/skus/RAKE/history',
       headers: auth(KEY_GARDEN),
-      payload: { frequency: 'month', start: '2025-11', values: [1], tags: ['no spaces'] },
+      payload: { frequency: 'month', firstPeriod: '2025-11', demand: [1], tags: ['no spaces'] },
     })
     expect(tag.statusCode).toBe(400)
     expect(tag.json().errors[0].path).toBe('tags[0]')

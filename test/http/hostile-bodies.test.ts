@@ -26,27 +26,27 @@ const values36 = Array.from({ length: 36 }, (_, t) => 20 + (t % 12) + t * 0.5)
 
 /** A valid body for each endpoint that takes JSON; the properties mutate them. */
 const TARGETS: { method: 'POST' | 'PUT'; url: string; body: () => unknown }[] = [
-  { method: 'POST', url: '/v1/forecast', body: () => ({ horizon: 3, series: [{ sku: 'RAKE-01', values: values36 }] }) },
+  { method: 'POST', url: '/v1/forecast', body: () => ({ horizon: 3, series: [{ sku: 'RAKE-01', demand: values36 }] }) },
   {
     method: 'POST',
     url: '/v1/runs',
     body: () => ({
       horizon: 3,
-      intervals: [80],
-      replenishment: { leadTime: 2, serviceLevel: 0.95 },
-      series: [{ sku: 'RAKE-01', values: values36, start: '2023-01', seasonLength: 12 }],
+      intervalLevels: [80],
+      replenishment: { leadTimePeriods: 2, serviceLevel: 0.95 },
+      series: [{ sku: 'RAKE-01', demand: values36, firstPeriod: '2023-01', seasonLength: 12 }],
     }),
   },
   { method: 'POST', url: '/v1/runs', body: () => ({ horizon: 3, skus: ['RAKE-01'] }) },
   {
     method: 'PUT',
     url: '/v1/skus/RAKE-01/history',
-    body: () => ({ frequency: 'month', start: '2023-01', values: values36, tags: ['category:garden'] }),
+    body: () => ({ frequency: 'month', firstPeriod: '2023-01', demand: values36, tags: ['category:garden'] }),
   },
   {
     method: 'POST',
     url: '/v1/history',
-    body: () => ({ mode: 'append', series: [{ sku: 'HOSE-02', start: '2023-01', values: [1, 2, 3], tags: ['site:north'] }] }),
+    body: () => ({ mode: 'append', series: [{ sku: 'HOSE-02', firstPeriod: '2023-01', demand: [1, 2, 3], tags: ['site:north'] }] }),
   },
   { method: 'POST', url: '/v1/callbacks', body: () => ({ url: 'https://erp.example/hooks', events: ['run.succeeded'] }) },
   {
@@ -181,42 +181,42 @@ describe('fixed hostile bodies', () => {
       await send(t.method, t.url, deepArray(10_000), `${t.url} deep array`)
       await send(t.method, t.url, deepObject(10_000), `${t.url} deep object`)
       await send(t.method, t.url, `{"horizon": 3, "series": ${deepArray(10_000)}}`, `${t.url} deep field`)
-      await send(t.method, t.url, `{"horizon": 3, "series": [{"sku": "A", "values": ${deepArray(10_000)}}]}`, `${t.url} deep values`)
+      await send(t.method, t.url, `{"horizon": 3, "series": [{"sku": "A", "demand": ${deepArray(10_000)}}]}`, `${t.url} deep values`)
     }
   })
 
   it('huge and non-numbers as numbers', async () => {
     for (const horizon of ['1e308', '-1e308', '"NaN"', '"Infinity"', '1e400', '3.5', '-1', '0', 'null', '"3"', '[3]']) {
-      const res = await send('POST', '/v1/runs', `{"horizon": ${horizon}, "series": [{"sku": "A", "values": [1, 2, 3]}]}`)
+      const res = await send('POST', '/v1/runs', `{"horizon": ${horizon}, "series": [{"sku": "A", "demand": [1, 2, 3]}]}`)
       expect(res.statusCode, horizon).toBe(400)
       expect(res.json().errors[0].path).toBe('horizon')
     }
-    const strings = await send('POST', '/v1/runs', '{"horizon": 3, "series": [{"sku": "A", "values": ["NaN", "Infinity", "1"]}]}')
+    const strings = await send('POST', '/v1/runs', '{"horizon": 3, "series": [{"sku": "A", "demand": ["NaN", "Infinity", "1"]}]}')
     expect(strings.json().errors.map((e: { path: string }) => e.path)).toEqual([
-      'series[0].values[0]',
-      'series[0].values[1]',
-      'series[0].values[2]',
+      'series[0].demand[0]',
+      'series[0].demand[1]',
+      'series[0].demand[2]',
     ])
   })
 
   it('demand values beyond 1e15 in size are refused by field, at every way in', async () => {
     const big = [1, 1e308, -1e308, 1.0000001e15]
-    const run = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku: 'BIG', values: big }] }))
+    const run = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku: 'BIG', demand: big }] }))
     expect(run.statusCode).toBe(400)
-    expect(run.json().errors).toEqual([1, 2, 3].map((i) => ({ path: `series[0].values[${i}]`, message: 'must be between -1e15 and 1e15' })))
-    const sync = await send('POST', '/v1/forecast', JSON.stringify({ horizon: 3, series: [{ sku: 'BIG', values: big }] }))
+    expect(run.json().errors).toEqual([1, 2, 3].map((i) => ({ path: `series[0].demand[${i}]`, message: 'must be between -1e15 and 1e15' })))
+    const sync = await send('POST', '/v1/forecast', JSON.stringify({ horizon: 3, series: [{ sku: 'BIG', demand: big }] }))
     expect(sync.statusCode).toBe(400)
-    const put = await send('PUT', '/v1/skus/BIG/history', JSON.stringify({ frequency: 'month', start: '2024-01', values: big }))
+    const put = await send('PUT', '/v1/skus/BIG/history', JSON.stringify({ frequency: 'month', firstPeriod: '2024-01', demand: big }))
     expect(put.statusCode).toBe(400)
-    expect(put.json().errors[0].path).toBe('values[1]')
-    const upload = await send('POST', '/v1/history', JSON.stringify({ series: [{ sku: 'BIG', start: '2024-01', values: big }] }))
+    expect(put.json().errors[0].path).toBe('demand[1]')
+    const upload = await send('POST', '/v1/history', JSON.stringify({ series: [{ sku: 'BIG', firstPeriod: '2024-01', demand: big }] }))
     expect(upload.statusCode).toBe(200)
     expect(JSON.stringify(upload.json())).toContain('must be between -1e15 and 1e15')
     const csv = await injectWithin(h.app, {
       method: 'POST',
       url: '/v1/history',
       headers: { ...auth(KEY_GARDEN), 'content-type': 'text/csv' },
-      payload: 'sku,period,quantity\nBIG,2024-01,1e308\nBIG,2024-02,1e308\n',
+      payload: 'sku,period,demand\nBIG,2024-01,1e308\nBIG,2024-02,1e308\n',
     })
     expect(csv.statusCode).toBe(200)
     expect(JSON.stringify(csv.json())).toContain('out of range')
@@ -228,11 +228,11 @@ describe('fixed hostile bodies', () => {
     // leaderboard score became Infinity: a 500 from the response serializer.
     // TINY's subnormal sizes once gave "CV² NaN" in a warning (mean^2 underflowed).
     const series = [
-      { sku: 'BIG', values: Array.from({ length: 24 }, (_, i) => (i % 2 ? 9e14 : 1e15)) },
-      { sku: 'SWING', values: Array.from({ length: 24 }, (_, i) => (i % 2 ? 1e15 : -1e15)) },
-      { sku: 'TINY', values: Array.from({ length: 24 }, (_, i) => (i % 3) * 5e-324) },
+      { sku: 'BIG', demand: Array.from({ length: 24 }, (_, i) => (i % 2 ? 9e14 : 1e15)) },
+      { sku: 'SWING', demand: Array.from({ length: 24 }, (_, i) => (i % 2 ? 1e15 : -1e15)) },
+      { sku: 'TINY', demand: Array.from({ length: 24 }, (_, i) => (i % 3) * 5e-324) },
     ]
-    const res = await send('POST', '/v1/forecast', JSON.stringify({ horizon: 6, allowNegative: true, series }))
+    const res = await send('POST', '/v1/forecast', JSON.stringify({ horizon: 6, allowNegativeDemand: true, series }))
     expect(res.statusCode).toBe(200)
     expect(res.body).not.toMatch(/NaN|Infinity/)
     expect(res.json().items.map((i: { sku: string }) => i.sku)).toEqual(['BIG', 'SWING', 'TINY'])
@@ -251,8 +251,8 @@ describe('fixed hostile bodies', () => {
         fc.boolean(),
         fc.constantFrom('mase', 'mae', 'rmse', 'mape', 'smape', 'wape'),
         fc.constantFrom('zero', 'interpolate'),
-        async (values, horizon, allowNegative, metric, fillPolicy) => {
-          const body = { horizon, allowNegative, metric, fillPolicy, series: [{ sku: 'GEN', values }] }
+        async (values, horizon, allowNegativeDemand, rankBy, missingPeriods) => {
+          const body = { horizon, allowNegativeDemand, rankBy, missingPeriods, series: [{ sku: 'GEN', demand: values }] }
           const res = await send('POST', '/v1/forecast', JSON.stringify(body))
           expect(res.statusCode, JSON.stringify(body)).toBe(200)
           expect(res.body, JSON.stringify(body)).not.toMatch(/NaN|Infinity/)
@@ -264,11 +264,11 @@ describe('fixed hostile bodies', () => {
 
   it('100,000-element arrays are answered (within limits) or refused by field', async () => {
     const long = Array.from({ length: 100_000 }, (_, i) => i % 97)
-    const values = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku: 'LONG', values: long }] }))
+    const values = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku: 'LONG', demand: long }] }))
     expect(values.statusCode).toBe(400)
-    expect(values.json().errors[0].path).toBe('series[0].values')
+    expect(values.json().errors[0].path).toBe('series[0].demand')
 
-    const many = Array.from({ length: 100_000 }, (_, i) => ({ sku: `S${i}`, values: [1, 2, 3] }))
+    const many = Array.from({ length: 100_000 }, (_, i) => ({ sku: `S${i}`, demand: [1, 2, 3] }))
     const tooMany = await send('POST', '/v1/forecast', JSON.stringify({ horizon: 1, series: many }))
     expect(tooMany.statusCode).toBe(413)
 
@@ -276,25 +276,25 @@ describe('fixed hostile bodies', () => {
     expect(skus.statusCode).toBe(400)
     expect(skus.body.length).toBeLessThan(200_000) // the unknown SKUs are listed in part, not echoed whole
 
-    const intervals = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, intervals: long, series: [{ sku: 'A', values: [1] }] }))
+    const intervals = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, intervalLevels: long, series: [{ sku: 'A', demand: [1] }] }))
     expect(intervals.statusCode).toBe(400)
     expect(intervals.json().errors.length).toBeLessThanOrEqual(100)
   })
 
   it('empty, 10 KB and control-character SKU codes are refused by field; unicode SKUs are fine', async () => {
     for (const sku of ['', 'x'.repeat(10_240), 'A\u0000B', 'tab\there']) {
-      const res = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku, values: [1, 2, 3] }] }))
+      const res = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku, demand: [1, 2, 3] }] }))
       expect(res.statusCode).toBe(400)
       expect(res.json().errors[0].path).toBe('series[0].sku')
     }
     for (const sku of ['Gießkanne-ÄÖÜ', 'مجرفة-٤٢', '\u202eRTL', '🌱-seeds', 'a\ud800b']) {
-      const res = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku, values: [1, 2, 3] }] }))
+      const res = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku, demand: [1, 2, 3] }] }))
       expect(res.statusCode, sku).toBe(202)
     }
   })
 
   it('a SKU twice in one run or sync forecast is refused, naming the second occurrence', async () => {
-    const body = { horizon: 3, series: [{ sku: 'DUP', values: [1, 2] }, { sku: 'OTHER', values: [1] }, { sku: 'DUP', values: [3] }] }
+    const body = { horizon: 3, series: [{ sku: 'DUP', demand: [1, 2] }, { sku: 'OTHER', demand: [1] }, { sku: 'DUP', demand: [3] }] }
     const res = await send('POST', '/v1/runs', JSON.stringify(body))
     expect(res.statusCode).toBe(400)
     expect(res.json().errors).toEqual([{ path: 'series[2].sku', message: 'SKU "DUP" appears more than once' }])
@@ -309,22 +309,22 @@ describe('fixed hostile bodies', () => {
         (res) => (expectWellFormed(res, `upload ${type}`), res),
       )
     const ndjson = [
-      '{"sku": "__proto__", "period": "2024-01", "quantity": 3}',
-      '{"sku": "constructor", "period": "2024-01", "quantity": 4}',
-      '{"__proto__": {"polluted": "yes"}, "sku": "PROTO-ROW", "period": "2024-01", "quantity": 5}',
-      '{"sku": "DEEP", "period": "2024-01", "quantity": ' + '['.repeat(10_000) + ']'.repeat(10_000) + '}',
+      '{"sku": "__proto__", "period": "2024-01", "demand": 3}',
+      '{"sku": "constructor", "period": "2024-01", "demand": 4}',
+      '{"__proto__": {"polluted": "yes"}, "sku": "PROTO-ROW", "period": "2024-01", "demand": 5}',
+      '{"sku": "DEEP", "period": "2024-01", "demand": ' + '['.repeat(10_000) + ']'.repeat(10_000) + '}',
       '[' .repeat(10_000) + ']'.repeat(10_000),
-      `{"sku": "${'x'.repeat(10_240)}", "period": "2024-01", "quantity": 1}`,
-      '{"sku": "NAN", "period": "2024-01", "quantity": "NaN"}',
-      '{"sku": "INF", "period": "2024-01", "quantity": "Infinity"}',
-      '{"sku": "\ud800", "period": "2024-01", "quantity": 1}',
-      '{"sku": "GOOD-NDJSON", "period": "2024-01", "quantity": 7}',
+      `{"sku": "${'x'.repeat(10_240)}", "period": "2024-01", "demand": 1}`,
+      '{"sku": "NAN", "period": "2024-01", "demand": "NaN"}',
+      '{"sku": "INF", "period": "2024-01", "demand": "Infinity"}',
+      '{"sku": "\ud800", "period": "2024-01", "demand": 1}',
+      '{"sku": "GOOD-NDJSON", "period": "2024-01", "demand": 7}',
     ].join('\n')
     const nd = await upload('application/x-ndjson', ndjson)
     expect(nd.statusCode).toBe(200)
     const csv = await upload(
       'text/csv',
-      'sku,period,quantity\n__proto__,2024-01,1\nGOOD-CSV,2024-01,2\n"=cmd|x",2024-01,NaN\nBAD,2024-13,1\n,2024-01,1\n',
+      'sku,period,demand\n__proto__,2024-01,1\nGOOD-CSV,2024-01,2\n"=cmd|x",2024-01,NaN\nBAD,2024-13,1\n,2024-01,1\n',
     )
     expect(csv.statusCode).toBe(200)
     for (const sku of ['GOOD-NDJSON', 'GOOD-CSV', '__proto__', 'constructor']) {

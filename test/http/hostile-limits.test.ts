@@ -80,7 +80,7 @@ describe('request limits on a real socket', () => {
     const piece = `${'1,'.repeat(4000)}`
     const chunk = (text: string) => `${Buffer.byteLength(text).toString(16)}\r\n${text}\r\n`
     let sent = 0
-    x.socket.write(chunk('{"horizon": 3, "series": [{"sku": "A", "values": ['))
+    x.socket.write(chunk('{"horizon": 3, "series": [{"sku": "A", "demand": ['))
     while (sent < LIMIT + 16 * 1024) {
       x.socket.write(chunk(piece))
       sent += piece.length
@@ -114,7 +114,7 @@ describe('request limits on a real socket', () => {
       const started = Date.now()
       x.socket.write(
         `POST /v1/history HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer ${KEY_GARDEN}\r\n` +
-          `Content-Type: ${type}\r\nContent-Length: ${LIMIT * 100}\r\nConnection: close\r\n\r\nsku,period,quantity\n`,
+          `Content-Type: ${type}\r\nContent-Length: ${LIMIT * 100}\r\nConnection: close\r\n\r\nsku,period,demand\n`,
       )
       const raw = await x.response
       expect(statusOf(raw), type).toBe(413)
@@ -128,7 +128,7 @@ describe('request limits on a real socket', () => {
       `POST /v1/history HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer ${KEY_GARDEN}\r\n` +
         'Content-Type: text/csv\r\nTransfer-Encoding: chunked\r\nConnection: close\r\n\r\n',
     )
-    const rows = 'sku,period,quantity\n' + 'SPADE,2024-01,1\n'.repeat(1000)
+    const rows = 'sku,period,demand\n' + 'SPADE,2024-01,1\n'.repeat(1000)
     let sent = 0
     while (sent < LIMIT * 100 && !x.answered() && !x.socket.destroyed) {
       const flushed = x.socket.write(`${rows.length.toString(16)}\r\n${rows}\r\n`)

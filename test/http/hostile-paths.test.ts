@@ -112,7 +112,7 @@ describe('hostile path parameters and query strings', () => {
     }
   })
 
-  it('hostile header values: Idempotency-Key, If-None-Match, Accept, Content-Type, X-Request-Id', async () => {
+  it('hostile header demand: Idempotency-Key, If-None-Match, Accept, Content-Type, X-Request-Id', async () => {
     const headerText = fc.oneof(
       fc.constantFrom('', ' ', 'x'.repeat(10_240), '__proto__', '*', 'W/"x"', '"', 'text/csv;q=NaN', 'application/json; charset=utf-16'),
       fc.stringMatching(/^[\x20-\x7e]{0,80}$/),
@@ -128,7 +128,7 @@ describe('hostile path parameters and query strings', () => {
             method: post ? 'POST' : 'GET',
             url,
             headers: { ...auth(KEY_GARDEN), 'content-type': 'application/json', [name]: value },
-            ...(post ? { payload: JSON.stringify({ horizon: 3, series: [{ sku: 'RAKE', values: [1, 2, 3] }] }) } : {}),
+            ...(post ? { payload: JSON.stringify({ horizon: 3, series: [{ sku: 'RAKE', demand: [1, 2, 3] }] }) } : {}),
           })
           expectWellFormed(res, `${name}: ${value.slice(0, 60)} ${url}`)
         },

@@ -65,7 +65,7 @@ describe('secrets stay out of logs and answers', () => {
     for (const headers of headerSets) {
       for (const req of [
         { method: 'GET' as const, url: '/v1/runs/run-1' },
-        { method: 'POST' as const, url: '/v1/runs', payload: { horizon: 1, series: [{ sku: 'SPADE', values: [1, 2] }] } },
+        { method: 'POST' as const, url: '/v1/runs', payload: { horizon: 1, series: [{ sku: 'SPADE', demand: [1, 2] }] } },
         { method: 'POST' as const, url: '/v1/runs', payload: { horizon: 'x' } },
       ]) {
         const res = await app.inject({ ...req, headers })
@@ -90,7 +90,7 @@ describe('secrets stay out of logs and answers', () => {
     const { logger, lines } = capture()
     const app = await build({ config: testConfig(), gateway: throwingGateway(), logger })
     const requests = [
-      { method: 'POST' as const, url: '/v1/runs', payload: { horizon: 1, series: [{ sku: 'SPADE', values: [1, 2] }] } },
+      { method: 'POST' as const, url: '/v1/runs', payload: { horizon: 1, series: [{ sku: 'SPADE', demand: [1, 2] }] } },
       { method: 'GET' as const, url: '/v1/runs/run-1' },
       { method: 'GET' as const, url: '/v1/runs/run-1/results' },
       { method: 'DELETE' as const, url: '/v1/runs/run-1' },

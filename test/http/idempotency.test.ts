@@ -10,7 +10,7 @@ beforeAll(async () => {
 })
 afterAll(() => h?.close())
 
-const REQUEST = { horizon: 3, frequency: 'month', series: [{ sku: 'HOSE-25M', values: [4, 6, 5, 7] }] }
+const REQUEST = { horizon: 3, frequency: 'month', series: [{ sku: 'HOSE-25M', demand: [4, 6, 5, 7] }] }
 const postRun = (key: string | undefined, payload: object, apiKey = KEY_GARDEN) =>
   h.app.inject({
     method: 'POST',
@@ -105,7 +105,7 @@ describe('Idempotency-Key on a streamed CSV upload', () => {
     })
 
   it('replays the report for the same bytes and refuses other bytes or another query', async () => {
-    const body = 'sku,period,quantity\nRAKE,2025-01-05,2\nRAKE,2025-01-09,3\nRAKE,bad,1\n'
+    const body = 'sku,period,demand\nRAKE,2025-01-05,2\nRAKE,2025-01-09,3\nRAKE,bad,1\n'
     const first = await upload('csv-key', body)
     expect(first.statusCode).toBe(200)
     const stored = (await h.app.inject({ url: '/v1/skus/RAKE/history', headers: auth(KEY_GARDEN) })).json()

@@ -17,7 +17,7 @@ describe('logging', () => {
       method: 'POST',
       url: '/v1/runs',
       headers: { ...auth(KEY_GARDEN), 'x-request-id': 'client-req-42' },
-      payload: { horizon: 1, series: [{ sku: 'SPADE', values: [1, 2] }] },
+      payload: { horizon: 1, series: [{ sku: 'SPADE', demand: [1, 2] }] },
     })
     await app.close()
     expect(res.statusCode).toBe(202)

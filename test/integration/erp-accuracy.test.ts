@@ -36,8 +36,8 @@ afterAll(() => service?.close())
 
 const runs = () => new RunStore(redis, { prefix, resultTtlSeconds: 3600, recordTtlSeconds: 7200 })
 
-const put = (sku: string, values: (number | null)[]) =>
-  app.inject({ method: 'PUT', url: `/v1/skus/${sku}/history`, payload: { frequency: 'month', start: '2024-01', values } })
+const put = (sku: string, demand: (number | null)[]) =>
+  app.inject({ method: 'PUT', url: `/v1/skus/${sku}/history`, payload: { frequency: 'month', firstPeriod: '2024-01', demand } })
 
 const flat = (level: number) => Array.from({ length: 24 }, () => level)
 
@@ -59,7 +59,7 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
 
   it('nothing is scored before actuals arrive', async () => {
     const f = (await app.inject({ url: '/v1/skus/HOSE-BIASED/forecast' })).json()
-    expect(f.forecast.map((p: { period: string; value: number }) => [p.period, p.value])).toEqual(
+    expect(f.forecast.map((p: { period: string; demand: number }) => [p.period, p.demand])).toEqual(
       ['2026-01', '2026-02', '2026-03', '2026-04', '2026-05', '2026-06'].map((p) => [p, 100]),
     )
     expect((await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).statusCode).toBe(404)
@@ -76,9 +76,9 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     expect((await app.inject({ url: '/v1/skus/HOSE-BIASED/forecast' })).statusCode).toBe(404)
     expect((await put('HOSE-BIASED', [...flat(100), 130, 125, 140, 135, 120])).statusCode).toBe(200)
     const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
-    expect(acc).toMatchObject({ sku: 'HOSE-BIASED', count: 5, mae: 30, bias: 30, trackingSignal: 5, flagged: true, limit: 4 })
+    expect(acc).toMatchObject({ sku: 'HOSE-BIASED', scoredPeriods: 5, mae: 30, bias: 30, trackingSignal: 5, flagged: true, trackingLimit: 4 })
     expect(acc.mape).toBeCloseTo(22.848, 3)
-    expect(acc.periods.map((p: { period: string; error: number }) => [p.period, p.error])).toEqual([
+    expect(acc.periods.map((p: { period: string; deviation: number }) => [p.period, p.deviation])).toEqual([
       ['2026-01', 30],
       ['2026-02', 25],
       ['2026-03', 40],
@@ -93,7 +93,7 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
   it('leaves an unbiased SKU off the exception list', async () => {
     await put('HOSE-STEADY', [...flat(50), 52, 48, 51, 49, 50])
     const acc = (await app.inject({ url: '/v1/skus/HOSE-STEADY/accuracy' })).json()
-    expect(acc).toMatchObject({ count: 5, bias: 0, trackingSignal: 0, flagged: false })
+    expect(acc).toMatchObject({ scoredPeriods: 5, bias: 0, trackingSignal: 0, flagged: false })
     expect(acc.mae).toBeCloseTo(1.2, 12)
     const ex = (await app.inject({ url: '/v1/accuracy/exceptions' })).json()
     expect(ex.items.map((i: { sku: string }) => i.sku)).toEqual(['HOSE-BIASED'])
@@ -105,10 +105,10 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     await app.inject({
       method: 'POST',
       url: '/v1/history?frequency=month',
-      payload: { mode: 'append', series: [{ sku: 'HOSE-BIASED', start: '2026-01', values: [130, 125, 140, 135, 120] }] },
+      payload: { mode: 'append', series: [{ sku: 'HOSE-BIASED', firstPeriod: '2026-01', demand: [130, 125, 140, 135, 120] }] },
     })
     const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
-    expect(acc).toMatchObject({ count: 5, trackingSignal: 5 })
+    expect(acc).toMatchObject({ scoredPeriods: 5, trackingSignal: 5 })
   })
 
   // Correcting 2026-05 from 120 to 80: errors +30, +25, +40, +35, -20: sum 110, MAE 30, TS 3.67, no longer flagged.
@@ -116,10 +116,10 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     await app.inject({
       method: 'POST',
       url: '/v1/history?frequency=month',
-      payload: { mode: 'append', series: [{ sku: 'HOSE-BIASED', start: '2026-05', values: [80] }] },
+      payload: { mode: 'append', series: [{ sku: 'HOSE-BIASED', firstPeriod: '2026-05', demand: [80] }] },
     })
     const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
-    expect(acc.count).toBe(5)
+    expect(acc.scoredPeriods).toBe(5)
     expect(acc.trackingSignal).toBeCloseTo(110 / 30, 12)
     expect(acc.flagged).toBe(false)
     expect((await app.inject({ url: '/v1/accuracy/exceptions' })).json().items).toEqual([])
@@ -127,21 +127,21 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
 
   it('keeps the forecast of the run created last, whichever finishes last', async () => {
     const item = (value: number) => ({
-      sku: 'RAKE', model: 'naive', family: 'level', params: {}, metrics: null, leaderboard: [], warnings: [],
-      selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
-      forecast: [{ period: '2027-01', value, lower: {}, upper: {} }],
-      intervals: { method: 'none', levels: [], clamped: false },
+      sku: 'RAKE', frequency: 'month', model: 'last-value', family: 'level', params: {}, holdoutErrors: null, candidates: [], warnings: [],
+      modelChoice: { method: 'none', rankBy: 'mase', holdoutPeriods: 0, holdoutOrigins: 1 },
+      forecast: [{ period: '2027-01', demand: value, intervals: [] }],
+      intervalMethod: 'none',
     }) as const
     const at = new Date(3000)
     expect(await runs().updateLatest('default', 'run-new', 2000, at, prepareItems([item(7)]))).toBe(1)
     expect(await runs().updateLatest('default', 'run-old', 1000, at, prepareItems([item(3)]))).toBe(0)
-    expect(await runs().updateLatest('default', 'run-err', 3000, at, prepareItems([{ sku: 'RAKE', error: { code: 'series-too-short', message: 'x' } }]))).toBe(0)
+    expect(await runs().updateLatest('default', 'run-err', 3000, at, prepareItems([{ sku: 'RAKE', frequency: 'month', failure: { code: 'series-too-short', message: 'x' } }]))).toBe(0)
     const [latest] = await runs().latestPoints('default', ['RAKE'])
     expect(latest?.runId).toBe('run-new')
     expect([...latest!.points]).toEqual([['2027-01', 7]])
     // Scored against run-new's forecast: 7 vs 10.
     const out = await erp.services.accuracy.recordActuals('default', 'RAKE', 'month', [{ period: '2027-01', value: 10 }])
-    expect(out).toMatchObject({ added: 1, corrected: 0, summary: { count: 1, bias: 3 } })
+    expect(out).toMatchObject({ added: 1, corrected: 0, summary: { scoredPeriods: 1, bias: 3 } })
   })
 
   it('pages the exception list by SKU with a cursor', async () => {
@@ -149,10 +149,10 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     for (const sku of ['PAGE-C', 'PAGE-A', 'PAGE-B']) {
       await runs().updateLatest('paging', `run-${sku}`, 1, new Date(2), prepareItems([
         {
-          sku, model: 'naive', family: 'level', params: {}, metrics: null, leaderboard: [], warnings: [],
-          selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
-          forecast: periods.map((period) => ({ period, value: 10, lower: {}, upper: {} })),
-          intervals: { method: 'none', levels: [], clamped: false },
+          sku, frequency: 'month', model: 'last-value', family: 'level', params: {}, holdoutErrors: null, candidates: [], warnings: [],
+          modelChoice: { method: 'none', rankBy: 'mase', holdoutPeriods: 0, holdoutOrigins: 1 },
+          forecast: periods.map((period) => ({ period, demand: 10, intervals: [] })),
+          intervalMethod: 'none',
         },
       ]))
       // Errors +5 in each of 5 periods: TS = 25 / 5 = 5.

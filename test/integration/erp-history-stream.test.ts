@@ -18,14 +18,14 @@ const DAY_MS = 86_400_000
 const START_MS = Date.UTC(2024, 0, 1)
 const sku = (i: number) => `BULK-${String(i).padStart(4, '0')}`
 /** Quantity of SKU i on day d: small integers, so sums are exact. */
-const quantity = (i: number, d: number) => ((i * 7 + d * 3) % 11) + 1
+const demand = (i: number, d: number) => ((i * 7 + d * 3) % 11) + 1
 
 function* csvChunks(): Generator<string> {
-  yield 'sku,period,quantity\n'
+  yield 'sku,period,demand\n'
   for (let d = 0; d < DAYS; d++) {
     const date = new Date(START_MS + d * DAY_MS).toISOString().slice(0, 10)
     let chunk = ''
-    for (let i = 0; i < SKUS; i++) chunk += `${sku(i)},${date},${quantity(i, d)}\n`
+    for (let i = 0; i < SKUS; i++) chunk += `${sku(i)},${date},${demand(i, d)}\n`
     yield chunk
   }
 }
@@ -48,12 +48,12 @@ describe('a 200,000-row CSV upload', () => {
       const sums = new Map<string, number>()
       for (let d = 0; d < DAYS; d++) {
         const month = new Date(START_MS + d * DAY_MS).toISOString().slice(0, 7)
-        sums.set(month, (sums.get(month) ?? 0) + quantity(i, d))
+        sums.set(month, (sums.get(month) ?? 0) + demand(i, d))
       }
       const stored = (await h.app.inject({ url: `/v1/skus/${sku(i)}/history`, headers: auth(KEY_GARDEN) })).json()
-      expect(stored.start).toBe('2024-01')
+      expect(stored.firstPeriod).toBe('2024-01')
       expect(stored.lastPeriod).toBe('2025-02')
-      expect(stored.values).toEqual([...sums.values()])
+      expect(stored.demand).toEqual([...sums.values()])
     }
   }, 120_000)
 })

@@ -57,7 +57,7 @@ async function finishedResults(runId: string, key = GARDEN): Promise<Map<string,
   return items
 }
 
-const series = syntheticSeries(10, 30, 'SEED').map((s) => ({ ...s, start: '2023-01', frequency: 'month' as const }))
+const series = syntheticSeries(10, 30, 'SEED').map((s) => ({ ...s, firstPeriod: '2023-01', frequency: 'month' as const }))
 const tagOf = (i: number) => (i % 2 === 0 ? ['category:garden', 'site:north'] : ['category:garden', 'site:south'])
 
 describe('runs over stored histories', () => {
@@ -70,7 +70,7 @@ describe('runs over stored histories', () => {
         method: 'PUT',
         url: `/v1/skus/${s.sku}/history`,
         headers: as(GARDEN),
-        payload: { frequency: 'month', start: s.start, values: s.values, tags: tagOf(i) },
+        payload: { frequency: 'month', firstPeriod: s.firstPeriod, demand: s.demand, tags: tagOf(i) },
       })
       expect(put.statusCode).toBe(200)
     }
@@ -118,16 +118,16 @@ describe('runs over stored histories', () => {
     expect((await app.inject({ url: `/v1/skus/${series[0]!.sku}/history`, headers: as(HEATING) })).statusCode).toBe(404)
   })
 
-  it('a run after appending new actuals sees them (the naive forecast repeats the last appended value)', async () => {
+  it('a run after appending new actuals sees them (the last-value forecast repeats the last appended demand)', async () => {
     const sku = series[1]!.sku
     // The stored history ends 2025-06 (30 months from 2023-01); append July and August 2025 as daily rows.
-    const csv = `sku,period,quantity\n${sku},2025-07-03,40\n${sku},2025-07-21,2\n${sku},2025-08-11,17.5\n`
+    const csv = `sku,period,demand\n${sku},2025-07-03,40\n${sku},2025-07-21,2\n${sku},2025-08-11,17.5\n`
     const up = await app.inject({ method: 'POST', url: '/v1/history?mode=append', headers: { ...as(GARDEN), 'content-type': 'text/csv' }, payload: csv })
     expect(up.json().rows).toEqual({ accepted: 3, rejected: 0 })
-    const items = await finishedResults((await submit({ horizon: 2, skus: [sku], models: ['naive'] })).json().id)
-    const item = items.get(sku) as { forecast: { period: string; value: number }[] }
+    const items = await finishedResults((await submit({ horizon: 2, skus: [sku], models: ['last-value'] })).json().id)
+    const item = items.get(sku) as { forecast: { period: string; demand: number }[] }
     expect(item.forecast.map((p) => p.period)).toEqual(['2025-09', '2025-10'])
-    expect(item.forecast[0]!.value).toBe(17.5)
+    expect(item.forecast[0]!.demand).toBe(17.5)
   })
 
   it('replays a run submitted twice with one Idempotency-Key: same run, no second one', async () => {

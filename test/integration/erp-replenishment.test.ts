@@ -1,7 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
 import { loadItem, storeItem } from '../../src/storage/item-codec.js'
-import type { ResultItem } from '../../src/storage/types.js'
+import type { ForecastItem } from '../../src/storage/types.js'
 import type { RunMachinery } from '../../src/queue/gateway.js'
 import { startService, type TestService } from '../helpers/service.js'
 import { syntheticSeries, waitFor } from '../queue/fixtures.js'
@@ -18,7 +18,7 @@ beforeAll(async () => {
 
 afterAll(() => service?.close())
 
-type Forecast = Exclude<ResultItem, { error: unknown }>
+type Forecast = ForecastItem
 
 describe('replenishment figures in run results', { timeout: 120_000 }, () => {
   it('adds lead-time demand, safety stock and reorder point to every forecast item', async () => {
@@ -26,11 +26,11 @@ describe('replenishment figures in run results', { timeout: 120_000 }, () => {
     const res = await app.inject({
       method: 'POST',
       url: '/v1/runs',
-      payload: { horizon: 6, series, replenishment: { leadTime: 3, serviceLevel: 0.95 } },
+      payload: { horizon: 6, series, replenishment: { leadTimePeriods: 3, serviceLevel: 0.95 } },
     })
     expect(res.statusCode).toBe(202)
     const id = res.json().id as string
-    expect(res.json().settings.replenishment).toEqual({ leadTime: 3, serviceLevel: 0.95 })
+    expect(res.json().settings.replenishment).toEqual({ leadTimePeriods: 3, serviceLevel: 0.95 })
     await waitFor(async () => {
       const run = await gateway.get('default', id)
       return run?.status === 'succeeded' ? run : undefined
@@ -39,7 +39,7 @@ describe('replenishment figures in run results', { timeout: 120_000 }, () => {
     expect(page.items).toHaveLength(8)
     for (const item of page.items as Forecast[]) {
       const r = item.replenishment!
-      const ltd = item.forecast.slice(0, 3).reduce((a, p) => a + p.value, 0)
+      const ltd = item.forecast.slice(0, 3).reduce((a, p) => a + p.demand, 0)
       // Stored figures keep 7 significant digits.
       expect(r.leadTimeDemand).toBeCloseTo(ltd, 3)
       expect(r.z).toBeCloseTo(1.6449, 4) // standard normal table, 95 %
@@ -49,7 +49,7 @@ describe('replenishment figures in run results', { timeout: 120_000 }, () => {
       expect(r.formula).toBe('sigma1-sqrt-lead-time')
     }
     const latest = (await app.inject({ url: '/v1/skus/MULCH-00003/forecast' })).json()
-    expect(latest.replenishment.leadTime).toBe(3)
+    expect(latest.replenishment.leadTimePeriods).toBe(3)
   })
 
   it('leaves runs without the option unchanged', async () => {
@@ -62,13 +62,13 @@ describe('replenishment figures in run results', { timeout: 120_000 }, () => {
     const res = await app.inject({
       method: 'POST',
       url: '/v1/runs',
-      payload: { horizon: 2, series: syntheticSeries(1), replenishment: { leadTime: 3, serviceLevel: 0.95 } },
+      payload: { horizon: 2, series: syntheticSeries(1), replenishment: { leadTimePeriods: 3, serviceLevel: 0.95 } },
     })
     expect(res.statusCode).toBe(400)
     expect(res.json().errors).toEqual([
       {
-        path: 'replenishment.leadTime',
-        message: 'leadTime (3) must not exceed the horizon (2): lead-time demand needs a forecast for every period of the lead time',
+        path: 'replenishment.leadTimePeriods',
+        message: 'leadTimePeriods (3) must not exceed the horizon (2): lead-time demand needs a forecast for every period of the lead time',
       },
     ])
   })
@@ -77,7 +77,7 @@ describe('replenishment figures in run results', { timeout: 120_000 }, () => {
     const res = await app.inject({
       method: 'POST',
       url: '/v1/runs',
-      payload: { horizon: 2, series: syntheticSeries(1), replenishment: { leadTime: 1, serviceLevel: 1 } },
+      payload: { horizon: 2, series: syntheticSeries(1), replenishment: { leadTimePeriods: 1, serviceLevel: 1 } },
     })
     expect(res.statusCode).toBe(400)
     expect(res.json().errors[0].path).toBe('replenishment.serviceLevel')
@@ -87,11 +87,11 @@ describe('replenishment figures in run results', { timeout: 120_000 }, () => {
     const res = await app.inject({
       method: 'POST',
       url: '/v1/forecast',
-      payload: { horizon: 4, series: syntheticSeries(1), replenishment: { leadTime: 2, serviceLevel: 0.9 } },
+      payload: { horizon: 4, series: syntheticSeries(1), replenishment: { leadTimePeriods: 2, serviceLevel: 0.9 } },
     })
     const item = res.json().items[0]
     expect(item.replenishment.z).toBeCloseTo(1.2816, 4)
-    expect(item.replenishment.leadTimeDemand).toBeCloseTo(item.forecast[0].value + item.forecast[1].value, 9)
+    expect(item.replenishment.leadTimeDemand).toBeCloseTo(item.forecast[0].demand + item.forecast[1].demand, 9)
   })
 })
 
@@ -99,18 +99,19 @@ describe('stored item codec keeps the figures', () => {
   it('round-trips replenishment and still reads items without it', () => {
     const base = {
       sku: 'RAKE-1',
-      model: 'naive',
+      frequency: 'month',
+      model: 'last-value',
       family: 'level',
       params: {},
-      selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
-      metrics: null,
-      leaderboard: [],
-      forecast: [{ period: '2026-01', value: 10, lower: {}, upper: {} }],
-      intervals: { method: 'none', levels: [], clamped: false },
+      modelChoice: { method: 'none', rankBy: 'mase', holdoutPeriods: 0, holdoutOrigins: 1 },
+      holdoutErrors: null,
+      candidates: [],
+      forecast: [{ period: '2026-01', demand: 10, intervals: [] }],
+      intervalMethod: 'none',
       warnings: [],
     } as Forecast
     const replenishment = {
-      leadTime: 1, serviceLevel: 0.95, leadTimeDemand: 10, sigma: 2.123456789, z: 1.6448536269514715,
+      leadTimePeriods: 1, serviceLevel: 0.95, leadTimeDemand: 10, sigma: 2.123456789, z: 1.6448536269514715,
       safetyStock: 3.4927512345, reorderPoint: 13.4927512345, formula: 'sigma1-sqrt-lead-time',
     } as const
     const back = loadItem('RAKE-1', storeItem({ ...base, replenishment })) as Forecast

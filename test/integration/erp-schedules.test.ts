@@ -48,7 +48,7 @@ describe('schedules over HTTP', () => {
     id = body.id
     expect(res.headers.location).toBe(`/v1/schedules/${id}`)
     expect(body).toMatchObject({ name: 'garden nightly', cron: '0 2 * * *', timeZone: 'Europe/Berlin', selection: { tags: ['category:garden'] } })
-    expect(body.settings).toMatchObject({ horizon: 6, frequency: 'month', metric: 'mase' })
+    expect(body.settings).toMatchObject({ horizon: 6, frequency: 'month', rankBy: 'mase' })
     expect(body.state).toEqual({ currentRunId: null, lastFiredAt: null, fired: 0, skipped: 0, failed: 0, lastError: null })
     // 02:00 in Berlin is 01:00 or 00:00 UTC depending on daylight saving.
     expect(body.nextFireAt).toMatch(/T0[01]:00:00\.000Z$/)
@@ -77,10 +77,10 @@ describe('schedules over HTTP', () => {
     const lead = await app.inject({
       method: 'POST',
       url: '/v1/schedules',
-      payload: { ...nightly, settings: { horizon: 2, replenishment: { leadTime: 3, serviceLevel: 0.95 } } },
+      payload: { ...nightly, settings: { horizon: 2, replenishment: { leadTimePeriods: 3, serviceLevel: 0.95 } } },
     })
     expect(lead.statusCode).toBe(400)
-    expect(lead.json().errors[0].path).toBe('settings.replenishment.leadTime')
+    expect(lead.json().errors[0].path).toBe('settings.replenishment.leadTimePeriods')
     const sel = await app.inject({ method: 'POST', url: '/v1/schedules', payload: { ...nightly, selection: { all: false } } })
     expect(sel.statusCode).toBe(400)
     expect(sel.json().errors[0].path).toMatch(/^selection/)
@@ -100,7 +100,7 @@ describe('a schedule firing', { timeout: 120_000 }, () => {
       const res = await app.inject({
         method: 'PUT',
         url: `/v1/skus/${s.sku}/history`,
-        payload: { frequency: 'month', start: '2023-07', values: s.values, tags: ['category:garden'] },
+        payload: { frequency: 'month', firstPeriod: '2023-07', demand: s.demand, tags: ['category:garden'] },
       })
       expect(res.statusCode).toBe(201)
     }

@@ -68,7 +68,7 @@ describe('Redis restarted mid-run (append-only file, fsync always)', { timeout: 
     for (const h of histories) {
       const res = await call(`/v1/skus/${h.sku}/history`, {
         method: 'PUT',
-        body: JSON.stringify({ frequency: 'month', start: '2022-01', values: h.values, tags: ['site:north'] }),
+        body: JSON.stringify({ frequency: 'month', firstPeriod: '2022-01', demand: h.demand, tags: ['site:north'] }),
       })
       expect(res.status).toBe(201)
     }
@@ -77,7 +77,7 @@ describe('Redis restarted mid-run (append-only file, fsync always)', { timeout: 
     const series = syntheticSeries(250, 144, 'OUTAGE')
     const submitted = await call('/v1/runs', {
       method: 'POST',
-      body: JSON.stringify({ horizon: 12, frequency: 'month', origins: 4, series }),
+      body: JSON.stringify({ horizon: 12, frequency: 'month', holdoutOrigins: 4, series }),
     })
     expect(submitted.status).toBe(202)
     const runId: string = submitted.body.id
@@ -121,7 +121,7 @@ describe('Redis restarted mid-run (append-only file, fsync always)', { timeout: 
     for (const h of histories) {
       const res = await call(`/v1/skus/${h.sku}/history`)
       expect(res.status).toBe(200)
-      expect(res.body.values).toEqual(h.values)
+      expect(res.body.demand).toEqual(h.demand)
       expect(res.body.tags).toEqual(['site:north'])
     }
     expect(worker.logs.filter((l) => l.level === 60)).toEqual([])
@@ -133,7 +133,7 @@ describe('Redis restarted mid-run (append-only file, fsync always)', { timeout: 
     const series = syntheticSeries(400, 144, 'LONGOUT')
     const submitted = await call('/v1/runs', {
       method: 'POST',
-      body: JSON.stringify({ horizon: 12, frequency: 'month', origins: 4, series }),
+      body: JSON.stringify({ horizon: 12, frequency: 'month', holdoutOrigins: 4, series }),
     })
     expect(submitted.status).toBe(202)
     const runId: string = submitted.body.id

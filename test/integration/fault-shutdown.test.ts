@@ -66,7 +66,7 @@ describe('graceful shutdown of the API with its in-process worker', { timeout: 1
     const series = syntheticSeries(250, 144, 'TERMAPI')
     const submitted = await call(api, '/v1/runs', {
       method: 'POST',
-      body: JSON.stringify({ horizon: 12, frequency: 'month', origins: 4, series }),
+      body: JSON.stringify({ horizon: 12, frequency: 'month', holdoutOrigins: 4, series }),
     })
     expect(submitted.status).toBe(202)
     const runId: string = submitted.body.id

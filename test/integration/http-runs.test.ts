@@ -58,7 +58,7 @@ describe('runs over HTTP with the real queue and worker', () => {
     const run = await untilFinished(runId, GARDEN)
     expect(run.status).toBe('succeeded')
     expect(run.progress).toEqual({ total: 45, done: 45, failed: 0 })
-    expect(run.summary.metric).toBe('mase')
+    expect(run.summary.rankBy).toBe('mase')
     expect(run.tenant).toBeUndefined()
   })
 

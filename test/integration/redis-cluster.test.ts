@@ -140,7 +140,7 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     for (const sku of ['HOSE-A', 'HOSE-B', 'HOSE-C']) {
       const put = await call(`/v1/skus/${sku}/history`, {
         method: 'PUT',
-        body: JSON.stringify({ frequency: 'month', start: '2024-01', values: flat, tags: ['category:garden'] }),
+        body: JSON.stringify({ frequency: 'month', firstPeriod: '2024-01', demand: flat, tags: ['category:garden'] }),
       })
       expect(put.status).toBe(201)
     }
@@ -156,12 +156,12 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     // signal 150 / 30 = 5, beyond the default limit 4, so the SKU is listed as an exception.
     const actuals = await call('/v1/skus/HOSE-A/history', {
       method: 'PUT',
-      body: JSON.stringify({ frequency: 'month', start: '2024-01', values: [...flat, 130, 125, 140, 135, 120], tags: ['category:garden'] }),
+      body: JSON.stringify({ frequency: 'month', firstPeriod: '2024-01', demand: [...flat, 130, 125, 140, 135, 120], tags: ['category:garden'] }),
     })
     expect(actuals.status).toBe(200)
     const acc = await call('/v1/skus/HOSE-A/accuracy')
     expect(acc.status).toBe(200)
-    expect(acc.body).toMatchObject({ sku: 'HOSE-A', count: 5, mae: 30, bias: 30, trackingSignal: 5, flagged: true })
+    expect(acc.body).toMatchObject({ sku: 'HOSE-A', scoredPeriods: 5, mae: 30, bias: 30, trackingSignal: 5, flagged: true })
     const exceptions = await call('/v1/accuracy/exceptions')
     expect(exceptions.body.items.map((i: { sku: string }) => i.sku)).toEqual(['HOSE-A'])
 

@@ -50,7 +50,7 @@ describe('cancel', { timeout: 120_000 }, () => {
   it('stops a running run: no chunk is counted after the cancel', async () => {
     const config = runsTestConfig(url, prefix, { workerConcurrency: 1 })
     // 40 chunks of 10 long series: the single worker thread is still busy when we cancel.
-    const run = await gateway.submit('acme', runRequest(syntheticSeries(400, 144), { origins: 4, horizon: 12 }))
+    const run = await gateway.submit('acme', runRequest(syntheticSeries(400, 144), { holdoutOrigins: 4, horizon: 12 }))
     workers = startWorkers(config, createLogger({ level: 'silent' }))
     await waitFor(async () => {
       const r = await gateway.get('acme', run.id)

@@ -4,7 +4,7 @@ import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
 import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
 import { createLogger } from '../../src/logger.js'
 import { runKeys, latestKey } from '../../src/storage/keys.js'
-import type { ResultItem, RunRecord } from '../../src/storage/types.js'
+import type { FailedItem, ForecastItem, RunRecord } from '../../src/storage/types.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runRequest, runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
 
@@ -40,7 +40,7 @@ describe('run lifecycle through the gateway and a sandboxed worker', { timeout: 
   let run: RunRecord
   const series = syntheticSeries(45)
   // The engine rejects negative demand (EngineInputError 'negative-value'); it becomes an error item.
-  series[7] = { sku: 'SKU-00007', values: [3, -2, 5, 4, 6, 5, 7, 6, 8, 7, 9, 8] }
+  series[7] = { sku: 'SKU-00007', demand: [3, -2, 5, 4, 6, 5, 7, 6, 8, 7, 9, 8] }
 
   beforeAll(async () => {
     run = await gateway.submit('acme', runRequest(series))
@@ -58,25 +58,25 @@ describe('run lifecycle through the gateway and a sandboxed worker', { timeout: 
     expect(r.progress).toEqual({ total: 45, done: 45, failed: 1 })
     expect(r.startedAt).not.toBeNull()
     expect(Date.parse(r.finishedAt!)).toBeGreaterThanOrEqual(Date.parse(r.startedAt!))
-    const wins = Object.values(r.summary!.modelWins).reduce((a, b) => a + (b ?? 0), 0)
+    const wins = Object.values(r.summary!.modelCounts).reduce((a, b) => a + (b ?? 0), 0)
     expect(wins).toBe(44)
-    expect(r.summary!.metric).toBe('mase')
+    expect(r.summary!.rankBy).toBe('mase')
     expect(r.summary!.meanHoldoutError).toBeGreaterThan(0)
   })
 
-  it('stores the rejected series as an error item with the engine code', async () => {
+  it('stores the rejected series as a failed item with the engine code', async () => {
     const page = await gateway.results('acme', run.id, { limit: 10, sku: 'SKU-00007' })
     expect(page!.items).toHaveLength(1)
-    const item = page!.items[0] as Extract<ResultItem, { error: unknown }>
-    expect(item.error.code).toBe('negative-value')
+    const item = page!.items[0] as FailedItem
+    expect(item.failure.code).toBe('negative-value')
   })
 
   it('stores forecasts of the requested horizon without fitted values', async () => {
     const page = await gateway.results('acme', run.id, { limit: 1, sku: 'SKU-00003' })
-    const item = page!.items[0] as Exclude<ResultItem, { error: unknown }>
+    const item = page!.items[0] as ForecastItem
     expect(item.forecast).toHaveLength(6)
     expect(item).not.toHaveProperty('fitted')
-    expect(item.selection.metric).toBe('mase')
+    expect(item.modelChoice.rankBy).toBe('mase')
   })
 
   it('pages through every SKU once, in order', async () => {

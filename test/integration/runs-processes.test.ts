@@ -102,7 +102,7 @@ describe('worker processes', { timeout: 120_000 }, () => {
     await victim.waitForLog('chunk worker started')
     // Long series and several origins make each 25-series chunk take a noticeable time.
     const series = syntheticSeries(250, 144, 'KILL')
-    const run = await gateway.submit('acme', runRequest(series, { origins: 4, horizon: 12 }))
+    const run = await gateway.submit('acme', runRequest(series, { holdoutOrigins: 4, horizon: 12 }))
     await victim.waitForLog('chunk processed', 60_000)
     // The victim is now working on its next chunk: kill it without any chance to clean up.
     await chunkInFlight(victim, run.id)
@@ -137,7 +137,7 @@ describe('worker processes', { timeout: 120_000 }, () => {
     const w = spawnWorker()
     await w.waitForLog('chunk worker started')
     const series = syntheticSeries(250, 144, 'TERM')
-    const run = await gateway.submit('acme', runRequest(series, { origins: 4, horizon: 12 }))
+    const run = await gateway.submit('acme', runRequest(series, { holdoutOrigins: 4, horizon: 12 }))
     await w.waitForLog('chunk processed', 60_000)
     const inFlight = await chunkInFlight(w, run.id)
     w.child.kill('SIGTERM')

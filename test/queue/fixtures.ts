@@ -32,7 +32,7 @@ export function runsTestConfig(redisUrl: string, redisPrefix: string, overrides:
 export function syntheticSeries(count: number, length = 36, skuPrefix = 'SKU'): SeriesItem[] {
   return Array.from({ length: count }, (_, i) => ({
     sku: `${skuPrefix}-${String(i).padStart(5, '0')}`,
-    values: Array.from(
+    demand: Array.from(
       { length },
       (_, t) => 40 + (i % 17) + 0.3 * t + 8 * Math.sin((2 * Math.PI * (t + i)) / 12) + ((t * 7 + i) % 5),
     ),
@@ -43,12 +43,12 @@ export function runRequest(series: SeriesItem[], settings: Partial<Omit<RunReque
   return {
     horizon: 6,
     frequency: 'month',
-    metric: 'mase',
-    intervals: [80, 95],
-    fillPolicy: 'zero',
-    allowNegative: false,
+    rankBy: 'mase',
+    intervalLevels: [80, 95],
+    missingPeriods: 'zero',
+    allowNegativeDemand: false,
     keepLeadingZeros: false,
-    origins: 1,
+    holdoutOrigins: 1,
     ...settings,
     series,
   }

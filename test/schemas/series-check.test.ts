@@ -16,20 +16,20 @@ const value = fc.oneof(
   fc.integer({ min: -1000, max: 1000 }),
   fc.constantFrom(1e15, -1e15, 1.0000001e15, -1e16, '3', true, undefined),
 )
-const values = fc.oneof(fc.array(value, { maxLength: 6 }), fc.constantFrom([], 'values', null))
+const values = fc.oneof(fc.array(value, { maxLength: 6 }), fc.constantFrom([], 'demand', null))
 const start = fc.oneof(fc.constantFrom('2024', '2024-Q2', '2024-03', '2024-W09', '2024-03-05', '2024-Q5', '24-01', '2024-3', ''), fc.string({ maxLength: 8 }), fc.integer())
 const frequency = fc.oneof(fc.constantFrom('day', 'week', 'month', 'quarter', 'year', 'hour', 'Month'), fc.integer())
 const seasonLength = fc.oneof(fc.integer({ min: -2, max: 400 }), fc.constantFrom(1.5, '12', null))
-const seriesLike = fc.record({ sku, values, start, frequency, seasonLength, extra: fc.string() }, { requiredKeys: [] })
+const seriesLike = fc.record({ sku, firstPeriod: start, demand: values, frequency, seasonLength, extra: fc.string() }, { requiredKeys: [] })
 const validSeries = fc.record(
   {
     sku: fc.string({ minLength: 1, maxLength: 20 }).filter((s) => !/[\u0000-\u001f\u007f]/.test(s)),
-    values: fc.array(fc.oneof(fc.constant(null), fc.double({ min: -1e15, max: 1e15, noNaN: true })), { minLength: 1, maxLength: 30 }),
-    start: fc.constantFrom('2024', '2024-Q2', '2024-03', '2024-W09', '2024-03-05'),
+    firstPeriod: fc.constantFrom('2024', '2024-Q2', '2024-03', '2024-W09', '2024-03-05'),
+    demand: fc.array(fc.oneof(fc.constant(null), fc.double({ min: -1e15, max: 1e15, noNaN: true })), { minLength: 1, maxLength: 30 }),
     frequency: fc.constantFrom('day', 'week', 'month', 'quarter', 'year'),
     seasonLength: fc.integer({ min: 1, max: 366 }),
   },
-  { requiredKeys: ['sku', 'values'] },
+  { requiredKeys: ['sku', 'demand'] },
 )
 
 describe('plain check of series items', () => {
@@ -60,10 +60,10 @@ describe('plain check of series items', () => {
     const settings = fc.record(
       {
         horizon: fc.oneof(fc.integer({ min: 1, max: 24 }), fc.constantFrom(0, 1.5, '12')),
-        metric: fc.constantFrom('mae', 'mase', 'nope'),
-        intervals: fc.constantFrom([80], [50, 99], [120]),
+        rankBy: fc.constantFrom('mae', 'mase', 'nope'),
+        intervalLevels: fc.constantFrom([80], [50, 99], [120]),
         skus: fc.constantFrom(['A'], []),
-        replenishment: fc.constantFrom({ leadTime: 2, serviceLevel: 0.95 }, { leadTime: 0, serviceLevel: 0.95 }),
+        replenishment: fc.constantFrom({ leadTimePeriods: 2, serviceLevel: 0.95 }, { leadTimePeriods: 0, serviceLevel: 0.95 }),
         extra: fc.constant(1),
       },
       { requiredKeys: ['horizon'] },

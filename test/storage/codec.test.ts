@@ -5,32 +5,33 @@ import type { ResultItem } from '../../src/storage/types.js'
 import { runRequest } from '../queue/fixtures.js'
 
 const metrics = (mase: number | null) => ({ mae: 1, rmse: 1, mape: null, smape: 1, mase, wape: 1 })
-const ok = (sku: string, model: 'ses' | 'holt', mase: number | null, method: 'holdout' | 'in-sample' = 'holdout'): ResultItem => ({
+const ok = (sku: string, model: 'level-smoothing' | 'trend-smoothing', mase: number | null, method: 'holdout' | 'in-sample' = 'holdout'): ResultItem => ({
   sku,
+  frequency: 'month',
   model,
-  family: model === 'ses' ? 'level' : 'trend',
-  params: { alpha: 0.5 },
-  selection: { method, metric: 'mase', holdout: 3, origins: 1 },
-  metrics: metrics(mase),
-  leaderboard: [],
-  forecast: [{ period: '1', value: 2, lower: {}, upper: {} }],
-  intervals: { method: 'none', levels: [], clamped: false },
+  family: model === 'level-smoothing' ? 'level' : 'trend',
+  params: { levelWeight: 0.5 },
+  modelChoice: { method, rankBy: 'mase', holdoutPeriods: 3, holdoutOrigins: 1 },
+  holdoutErrors: metrics(mase),
+  candidates: [],
+  forecast: [{ period: '1', demand: 2, intervals: [] }],
+  intervalMethod: 'none',
   warnings: [],
 })
-const bad = (sku: string): ResultItem => ({ sku, error: { code: 'empty-series', message: 'no data' } })
+const bad = (sku: string): ResultItem => ({ sku, frequency: 'month', failure: { code: 'empty-series', message: 'no data' } })
 
 describe('tallyItems', () => {
   it('counts every item as done and error items as failed', () => {
-    const t = tallyItems([ok('a', 'ses', 1), bad('b'), ok('c', 'holt', 2), ok('d', 'ses', 3)], 'mase')
+    const t = tallyItems([ok('a', 'level-smoothing', 1), bad('b'), ok('c', 'trend-smoothing', 2), ok('d', 'level-smoothing', 3)], 'mase')
     expect(t.done).toBe(4)
     expect(t.failed).toBe(1)
-    expect([...t.wins]).toEqual([['ses', 2], ['holt', 1]])
+    expect([...t.wins]).toEqual([['level-smoothing', 2], ['trend-smoothing', 1]])
     expect(t.errSum).toBe(6)
     expect(t.errCount).toBe(3)
   })
 
   it('leaves undefined and in-sample errors out of the holdout mean', () => {
-    const t = tallyItems([ok('a', 'ses', null), ok('b', 'ses', 5, 'in-sample'), ok('c', 'ses', 2)], 'mase')
+    const t = tallyItems([ok('a', 'level-smoothing', null), ok('b', 'level-smoothing', 5, 'in-sample'), ok('c', 'level-smoothing', 2)], 'mase')
     expect(t.errSum).toBe(2)
     expect(t.errCount).toBe(1)
   })
@@ -41,17 +42,17 @@ describe('tallyItems', () => {
 
   it('gives the same tally item by item, and a tally taken early is not changed by later items', () => {
     const tallier = new ChunkTallier('mase')
-    tallier.add(ok('a', 'ses', 1))
+    tallier.add(ok('a', 'level-smoothing', 1))
     const early = tallier.tally()
-    for (const item of [bad('b'), ok('c', 'holt', 2)]) tallier.add(item)
-    expect(tallier.tally()).toEqual(tallyItems([ok('a', 'ses', 1), bad('b'), ok('c', 'holt', 2)], 'mase'))
-    expect(early).toEqual({ done: 1, failed: 0, wins: new Map([['ses', 1]]), errSum: 1, errCount: 1 })
+    for (const item of [bad('b'), ok('c', 'trend-smoothing', 2)]) tallier.add(item)
+    expect(tallier.tally()).toEqual(tallyItems([ok('a', 'level-smoothing', 1), bad('b'), ok('c', 'trend-smoothing', 2)], 'mase'))
+    expect(early).toEqual({ done: 1, failed: 0, wins: new Map([['level-smoothing', 1]]), errSum: 1, errCount: 1 })
   })
 })
 
 describe('item encoding', () => {
   it('stores an item without its sku and restores it', () => {
-    const item = ok('SKU-1', 'holt', 0.8)
+    const item = ok('SKU-1', 'trend-smoothing', 0.8)
     const stored = storeItem(item)
     expect(stored.includes('SKU-1')).toBe(false)
     expect(loadItem('SKU-1', stored)).toEqual(item)
@@ -81,12 +82,12 @@ describe('decodeRunRecord', () => {
   })
 
   it('builds the summary from the accumulators once succeeded', () => {
-    const r = decodeRunRecord({ ...fields, status: 'succeeded', 'win:ses': '2', 'win:holt': '1', errSum: '3', errCount: '2' })
-    expect(r?.summary).toEqual({ metric: 'mase', modelWins: { ses: 2, holt: 1 }, meanHoldoutError: 1.5 })
+    const r = decodeRunRecord({ ...fields, status: 'succeeded', 'win:level-smoothing': '2', 'win:trend-smoothing': '1', errSum: '3', errCount: '2' })
+    expect(r?.summary).toEqual({ rankBy: 'mase', modelCounts: { 'level-smoothing': 2, 'trend-smoothing': 1 }, meanHoldoutError: 1.5 })
   })
 
   it('reports no mean when no winner had a defined holdout error', () => {
-    const r = decodeRunRecord({ ...fields, status: 'succeeded', 'win:ses': '1' })
+    const r = decodeRunRecord({ ...fields, status: 'succeeded', 'win:level-smoothing': '1' })
     expect(r?.summary?.meanHoldoutError).toBeNull()
   })
 })

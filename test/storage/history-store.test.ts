@@ -21,10 +21,10 @@ afterAll(async () => {
   if (url && prefix) await deleteKeys(url, prefix)
 })
 
-const pending = (sku: string, start: string, values: number[], tags?: string[]): PendingHistory => ({
+const pending = (sku: string, start: string, demand: number[], tags?: string[]): PendingHistory => ({
   sku,
-  incoming: { frequency: 'month', startOrdinal: parsePeriod(start, 'month'), values, ...(tags ? { tags } : {}) },
-  rows: values.length,
+  incoming: { frequency: 'month', startOrdinal: parsePeriod(start, 'month'), demand, ...(tags ? { tags } : {}) },
+  rows: demand.length,
   origin: {},
 })
 const append = (current: Parameters<typeof mergeHistory>[0], p: PendingHistory) => mergeHistory(current, p.incoming, 'append')
@@ -35,11 +35,11 @@ describe('HistoryStore', () => {
     const writes = Array.from({ length: 5 }, (_, i) => store.apply('garden', [pending('HOSE', `2025-0${i + 2}`, [i + 2])], append))
     const results = await Promise.all(writes)
     for (const [r] of results) expect(r).toEqual({ outcome: 'updated' })
-    expect((await store.get('garden', 'HOSE'))?.values).toEqual([1, 2, 3, 4, 5, 6])
+    expect((await store.get('garden', 'HOSE'))?.demand).toEqual([1, 2, 3, 4, 5, 6])
   })
 
   it('a refused merge writes nothing for that SKU and the rest of the batch still lands', async () => {
-    const weekly: PendingHistory = { sku: 'HOSE', incoming: { frequency: 'week', startOrdinal: 2800, values: [1] }, rows: 1, origin: {} }
+    const weekly: PendingHistory = { sku: 'HOSE', incoming: { frequency: 'week', startOrdinal: 2800, demand: [1] }, rows: 1, origin: {} }
     const [refused, created] = await store.apply('garden', [weekly, pending('RAKE', '2025-01', [4])], append)
     expect(refused).toHaveProperty('reason')
     expect(created).toEqual({ outcome: 'created' })

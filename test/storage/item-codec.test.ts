@@ -21,7 +21,7 @@ function expectClose(actual: unknown, expected: unknown, relTol: number, path = 
 
 const engineItems = (): ResultItem[] =>
   syntheticSeries(6, 48).map((s, i) =>
-    toResultItem(s.sku, forecastSeries({ values: s.values, frequency: 'month', horizon: 12, origins: 1 + (i % 3), start: '2022-01' })),
+    toResultItem(s.sku, 'month', forecastSeries({ demand: s.demand, frequency: 'month', horizon: 12, holdoutOrigins: 1 + (i % 3), firstPeriod: '2022-01' })),
   )
 
 describe('stored result items', () => {
@@ -29,34 +29,35 @@ describe('stored result items', () => {
     for (const item of engineItems()) {
       const back = loadItem(item.sku, storeItem(item))
       expectClose(back, item, 5e-4)
-      if ('error' in item || 'error' in back) throw new Error('expected forecasts')
+      if ('failure' in item || 'failure' in back) throw new Error('expected forecasts')
       expectClose(back.forecast, item.forecast, 5e-7)
       expectClose(back.params, item.params, 5e-7)
-      expect(back.leaderboard.map((e) => [e.model, e.family, e.status])).toEqual(item.leaderboard.map((e) => [e.model, e.family, e.status]))
+      expect(back.candidates.map((e) => [e.model, e.family, e.status])).toEqual(item.candidates.map((e) => [e.model, e.family, e.status]))
       expect(ForecastItem.safeParse(back).success).toBe(true)
     }
   })
 
   it('restore error items exactly', () => {
-    const item: ResultItem = { sku: 'A', error: { code: 'negative-value', message: 'values[0] is negative' } }
+    const item: ResultItem = { sku: 'A', frequency: 'month', failure: { code: 'negative-value', message: 'demand[0] is negative' } }
     expect(loadItem('A', storeItem(item))).toEqual(item)
   })
 
   it('keep zero, null and missing fields as they were', () => {
     const item: ResultItem = {
       sku: 'Z',
-      model: 'naive',
+      frequency: 'month',
+      model: 'last-value',
       family: 'level',
       params: {},
-      selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
-      metrics: null,
-      leaderboard: [
-        { model: 'naive', family: 'level', status: 'scored', metrics: { mae: 0, rmse: 0, mape: null, smape: 0, mase: 0, wape: 0 }, score: 0 },
-        { model: 'holt', family: 'trend', status: 'skipped', reason: 'holt requires at least 4 data points' },
+      modelChoice: { method: 'none', rankBy: 'mase', holdoutPeriods: 0, holdoutOrigins: 1 },
+      holdoutErrors: null,
+      candidates: [
+        { model: 'last-value', family: 'level', status: 'scored', holdoutErrors: { mae: 0, rmse: 0, mape: null, smape: 0, mase: 0, wape: 0 }, score: 0 },
+        { model: 'trend-smoothing', family: 'trend', status: 'skipped', reason: 'needs 4 periods, has 3' },
       ],
-      forecast: [{ period: '2024-01', value: 0, lower: {}, upper: {} }],
-      intervals: { method: 'none', levels: [], clamped: false },
-      warnings: [{ code: 'all-zero', message: 'every value is zero' }],
+      forecast: [{ period: '2024-01', demand: 0, intervals: [] }],
+      intervalMethod: 'none',
+      warnings: [{ code: 'all-zero-series', message: 'the history is all zero' }],
     }
     expect(loadItem('Z', storeItem(item))).toEqual(item)
   })

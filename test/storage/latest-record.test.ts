@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest'
 import { FREQUENCIES, periodLabels } from '../../src/engine/index.js'
 import { decodeLatest, decodePoints, encodePoints, recordTail } from '../../src/storage/latest-record.js'
 
-const points = (labels: readonly string[], value = (i: number) => 10 + i) => labels.map((period, i) => ({ period, value: value(i) }))
+const points = (labels: readonly string[], value = (i: number) => 10 + i) => labels.map((period, i) => ({ period, demand: value(i) }))
 
 describe('latest-forecast record points', () => {
   // Spans chosen to cross the calendar's irregular spots: the leap day of 2024 and the
@@ -62,7 +62,7 @@ describe('latest-forecast record points', () => {
 
   it('is smaller than the labels and values as JSON', () => {
     const forecast = points(periodLabels('month', '2026-01', 12), (i) => 1000 / 3 + i / 7)
-    const json = JSON.stringify([forecast.map((p) => p.period), forecast.map((p) => p.value)])
+    const json = JSON.stringify([forecast.map((p) => p.period), forecast.map((p) => p.demand)])
     expect(encodePoints(forecast).length).toBeLessThan(json.length / 2)
   })
 

@@ -32,7 +32,7 @@ async function committedRun(runId: string): Promise<ResultItem[]> {
   const series = syntheticSeries(25)
   await store.createRun('acme', runId, runRequest(series), 25, t0)
   const items: ResultItem[] = series.map((s, i) =>
-    i === 3 ? { sku: s.sku, error: { code: 'series-too-short', message: 'holt requires "at least" 4 data points' } } : toResultItem(s.sku, forecastSeries({ values: s.values, frequency: 'month', horizon: 6 })),
+    i === 3 ? { sku: s.sku, frequency: 'month', failure: { code: 'series-too-short', message: 'holt requires "at least" 4 data points' } } : toResultItem(s.sku, 'month', forecastSeries({ demand: s.demand, frequency: 'month', horizon: 6 })),
   )
   expect(await store.commitChunk('acme', runId, 0, prepareItems(items), tallyItems(items, 'mase'), t0)).toBe('finished')
   return items

@@ -15,14 +15,14 @@ let redis: Redis
 let store: RunStore
 const t0 = new Date('2026-03-01T10:00:00.000Z')
 
-const errorItems = (skus: string[]): ResultItem[] => skus.map((sku) => ({ sku, error: { code: 'empty-series', message: 'x' } }))
+const errorItems = (skus: string[]): ResultItem[] => skus.map((sku) => ({ sku, frequency: 'month', failure: { code: 'empty-series', message: 'x' } }))
 
-/** A successful item forecasting `values` for the months from 2027-01. */
-const okItem = (sku: string, values: number[] = [7]): ResultItem => ({
-  sku, model: 'naive', family: 'level', params: {}, metrics: null, leaderboard: [], warnings: [],
-  selection: { method: 'none', metric: 'mase', holdout: 0, origins: 1 },
-  forecast: values.map((value, i) => ({ period: `2027-0${i + 1}`, value, lower: {}, upper: {} })),
-  intervals: { method: 'none', levels: [], clamped: false },
+/** A successful item forecasting `demand` for the months from 2027-01. */
+const okItem = (sku: string, demand: number[] = [7]): ResultItem => ({
+  sku, frequency: 'month', model: 'last-value', family: 'level', params: {}, holdoutErrors: null, candidates: [], warnings: [],
+  modelChoice: { method: 'none', rankBy: 'mase', holdoutPeriods: 0, holdoutOrigins: 1 },
+  forecast: demand.map((d, i) => ({ period: `2027-0${i + 1}`, demand: d, intervals: [] })),
+  intervalMethod: 'none',
 })
 const okItems = (skus: string[], values?: number[]) => skus.map((sku) => okItem(sku, values))
 const pointsOf = (p: { runId: string; points: ReadonlyMap<string, number> } | null) => p && [p.runId, [...p.points]]
@@ -51,7 +51,7 @@ describe('RunStore', () => {
   })
 
   it('refuses a request where two series share a SKU', async () => {
-    const series = [...syntheticSeries(3), { sku: 'SKU-00001', values: [1] }]
+    const series = [...syntheticSeries(3), { sku: 'SKU-00001', demand: [1] }]
     const err = await store.createRun('acme', 'dup-1', runRequest(series), 2, t0).catch((e: unknown) => e)
     expect(err).toBeInstanceOf(RunInputError)
     expect(err).toMatchObject({ code: 'duplicate-sku', field: 'series[3].sku' })
@@ -68,7 +68,7 @@ describe('RunStore', () => {
     expect(await store.commitChunk('acme', 'idem-1', 1, prepareItems(second), tallyItems(second, 'mase'), t0)).toBe('finished')
     const run = await store.getRun('acme', 'idem-1')
     expect(run).toMatchObject({ status: 'succeeded', finishedAt: t0.toISOString(), progress: { total: 4, done: 4, failed: 4 } })
-    expect(run?.summary).toEqual({ metric: 'mase', modelWins: {}, meanHoldoutError: null })
+    expect(run?.summary).toEqual({ rankBy: 'mase', modelCounts: {}, meanHoldoutError: null })
   })
 
   it('has every SKU\'s result and latest forecast readable once the run reads succeeded', async () => {
@@ -82,7 +82,7 @@ describe('RunStore', () => {
     for (const sku of ['SKU-00000', 'SKU-00001', 'SKU-00002', 'SKU-00003']) {
       const latest = await store.latest('acme', sku)
       expect(latest?.runId).toBe('order-1')
-      expect('error' in latest!.item).toBe(false)
+      expect('failure' in latest!.item).toBe(false)
     }
     // A retry of the last chunk after the run finished rewrites nothing it counts and answers 'succeeded'.
     expect(await store.commitChunk('acme', 'order-1', 1, prepareItems(second), tallyItems(second, 'mase'), t0)).toBe('succeeded')

@@ -42,7 +42,7 @@ export function classifyDemand(series: readonly number[]): DemandClassification 
     }
   }
   if (demands < 2) {
-    throw new EngineInputError('series-too-short', 'demand classification requires at least 2 non-zero demands')
+    throw new EngineInputError('series-too-short', `demand classification needs 2 periods with demand, has ${demands}`)
   }
   const mean = total / demands
   // Sum of (x / mean - 1)^2: the same ratio as variance / mean^2, but scale-free,

@@ -1,5 +1,5 @@
 /**
- * 'croston' (Croston 1972) and 'sba' (Syntetos and Boylan 2005).
+ * 'croston' (Croston 1972) and 'croston-bias-corrected' (Syntetos and Boylan 2005).
  *
  * Only periods with demand update the estimates. With q the number of periods
  * since the previous demand:
@@ -14,13 +14,14 @@
  * alpha: chosen from {0.05, 0.1, ..., 0.3} by the in-sample mean squared one-step
  * error over all periods after the first demand, ties to the smaller alpha (grid
  * and range are common practice, no source). Needs non-negative data with at least
- * two non-zero demands.
+ * two non-zero demands. Params: levelWeight (alpha), demandSize and demandInterval
+ * (the smoothed size and interval), biasFactor (1 - alpha/2, bias-corrected only).
  */
 import { EngineInputError } from '../errors.js'
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'
 import { checkFinite, checkFitted, checkHorizon, checkNonNegative, checkSeries } from '../trend/guards.js'
 
-export type CrostonVariant = 'croston' | 'sba'
+export type CrostonVariant = 'croston' | 'croston-bias-corrected'
 export const CROSTON_ALPHAS: readonly number[] = [0.05, 0.1, 0.15, 0.2, 0.25, 0.3]
 const MIN_LENGTH = 3
 
@@ -72,9 +73,9 @@ export function fitCroston(series: readonly number[], options: CrostonOptions = 
     }
   }
   if (demands < 2) {
-    throw new EngineInputError('series-too-short', `${variant} requires at least 2 non-zero demands`)
+    throw new EngineInputError('series-too-short', `${variant} needs 2 periods with demand, has ${demands}`)
   }
-  const biasFactor = (a: number): number => (variant === 'sba' ? 1 - a / 2 : 1)
+  const biasFactor = (a: number): number => (variant === 'croston-bias-corrected' ? 1 - a / 2 : 1)
   let alpha = options.alpha ?? CROSTON_ALPHAS[0]
   if (options.alpha === undefined) {
     let best = run(series, first, alpha, biasFactor(alpha)).sse
@@ -93,8 +94,8 @@ export function fitCroston(series: readonly number[], options: CrostonOptions = 
   const rate = (factor * size) / interval
   checkFinite([size, interval, rate], variant)
   checkFitted(fitted, first + 1, variant)
-  const params: Record<string, number> = { alpha, size, interval }
-  if (variant === 'sba') params.biasFactor = factor
+  const params: Record<string, number> = { levelWeight: alpha, demandSize: size, demandInterval: interval }
+  if (variant === 'croston-bias-corrected') params.biasFactor = factor
   return {
     model: variant,
     params,
@@ -117,11 +118,11 @@ export const croston: ModelSpec = {
 }
 
 export const sba: ModelSpec = {
-  name: 'sba',
+  name: 'croston-bias-corrected',
   family: 'intermittent',
   complexity: 3,
   seasonal: false,
   requiresPositive: false,
   minLength: () => MIN_LENGTH,
-  fit: (series: readonly number[], _ctx: FitContext) => fitCroston(series, { variant: 'sba' }),
+  fit: (series: readonly number[], _ctx: FitContext) => fitCroston(series, { variant: 'croston-bias-corrected' }),
 }

@@ -42,11 +42,11 @@ export function decomposeClassical(
   type: DecompositionType,
 ): ClassicalDecomposition {
   const m = seasonLength
-  checkSeasonLength(m, 'decompose')
-  checkSeries(series, 'decompose', 2 * m)
+  checkSeasonLength(m, 'classical decomposition')
+  checkSeries(series, 'classical decomposition', 2 * m)
   const n = series.length
   const multiplicative = type === 'multiplicative'
-  if (multiplicative) requireNonNegative(series, 'decompose')
+  if (multiplicative) requireNonNegative(series, 'classical decomposition')
   const even = m % 2 === 0
   const half = Math.floor(m / 2)
   const filterLength = even ? m + 1 : m
@@ -68,7 +68,7 @@ export function decomposeClassical(
     let ratio: number
     if (multiplicative) {
       if (!(trend[t] > 0)) {
-        throw new EngineInputError('not-positive', 'multiplicative decomposition requires positive moving averages (a full season of zeros was found)')
+        throw new EngineInputError('not-positive', 'classical decomposition (multiplicative) needs positive moving averages (a full season of zeros was found)')
       }
       ratio = series[t] / trend[t]
     } else {
@@ -89,7 +89,7 @@ export function decomposeClassical(
       throw new EngineInputError('not-positive', `multiplicative decomposition found a seasonal factor of zero at position ${j + 1}`)
     }
   }
-  checkFinite(figure, 'decompose')
+  checkFinite(figure, 'classical decomposition')
   const seasonal = new Array<number>(n)
   const random = new Array<number>(n)
   for (let t = 0; t < n; t++) {
@@ -135,7 +135,7 @@ export function seasonalPositionFactors(series: readonly number[], seasonLength:
 function requireNonNegative(series: readonly number[], method: string): void {
   for (let i = 0; i < series.length; i++) {
     if (series[i] < 0) {
-      throw new EngineInputError('not-positive', `${method} (multiplicative) requires non-negative data`, `values[${i}]`)
+      throw new EngineInputError('not-positive', `${method} (multiplicative) needs demand of zero or more`, `demand[${i}]`)
     }
   }
 }

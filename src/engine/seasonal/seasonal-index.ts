@@ -1,5 +1,5 @@
 /**
- * 'seasonal-index': multiplicative seasonal factors by ratio to the overall average
+ * 'level-smoothing-season-averages': multiplicative seasonal factors by ratio to the overall average
  * (`seasonalPositionFactors`), simple exponential smoothing of the level on the
  * de-seasonalised series d[t] = y[t] / factor(t), forecast = level * factor(n + h).
  *
@@ -19,8 +19,8 @@ export const ALPHA_MIN = 0.0001
 /** @param alpha fixed smoothing weight in (0, 1]; omitted: estimated. */
 export function fitSeasonalIndex(series: readonly number[], seasonLength: number, alpha?: number): ModelFit {
   const m = seasonLength
-  checkSeasonLength(m, 'seasonal-index')
-  checkSeries(series, 'seasonal-index', 2 * m)
+  checkSeasonLength(m, 'level-smoothing-season-averages')
+  checkSeries(series, 'level-smoothing-season-averages', 2 * m)
   if (alpha !== undefined && !(alpha > 0 && alpha <= 1)) {
     throw new EngineInputError('invalid-option', 'alpha must be in (0, 1]', 'alpha')
   }
@@ -38,24 +38,24 @@ export function fitSeasonalIndex(series: readonly number[], seasonLength: number
   const fitted = new Array<number>(n)
   fitted[0] = NaN
   for (let t = 1; t < n; t++) fitted[t] = path[t - 1] * weights[t]
-  checkFinite([level], 'seasonal-index')
-  checkFitted(fitted, 1, 'seasonal-index')
+  checkFinite([level], 'level-smoothing-season-averages')
+  checkFitted(fitted, 1, 'level-smoothing-season-averages')
   return {
-    model: 'seasonal-index',
-    params: { alpha: a, level, seasonalFactors: factors },
+    model: 'level-smoothing-season-averages',
+    params: { levelWeight: a, level, seasonFactors: factors },
     fitted,
     forecast(horizon: number): number[] {
       checkHorizon(horizon)
       const out = new Array<number>(horizon)
       for (let h = 1; h <= horizon; h++) out[h - 1] = level * factors[(n + h - 1) % m]
-      checkFinite(out, 'seasonal-index')
+      checkFinite(out, 'level-smoothing-season-averages')
       return out
     },
   }
 }
 
 export const seasonalIndex: ModelSpec = {
-  name: 'seasonal-index',
+  name: 'level-smoothing-season-averages',
   family: 'seasonal',
   complexity: 3,
   seasonal: true,

@@ -1,5 +1,5 @@
 /**
- * 'seasonal-naive': the value one season ago, y[n + h] = y[n + h - m*(floor((h-1)/m) + 1)].
+ * 'last-season': the value one season ago, y[n + h] = y[n + h - m*(floor((h-1)/m) + 1)].
  * Forecast-error variance (floor((h-1)/m) + 1) * sigma^2, sigma^2 the mean squared
  * one-step residual: Hyndman and Athanasopoulos, "Forecasting: Principles and
  * Practice", 3rd ed., section 5.5 (from memory). Needs two full seasons (common practice).
@@ -9,8 +9,8 @@ import { checkFinite, checkFitted, checkHorizon, checkSeasonLength, checkSeries 
 
 export function fitSeasonalNaive(series: readonly number[], seasonLength: number): ModelFit {
   const m = seasonLength
-  checkSeasonLength(m, 'seasonal-naive')
-  checkSeries(series, 'seasonal-naive', 2 * m)
+  checkSeasonLength(m, 'last-season')
+  checkSeries(series, 'last-season', 2 * m)
   const n = series.length
   const fitted = new Array<number>(n)
   let sse = 0
@@ -24,11 +24,11 @@ export function fitSeasonalNaive(series: readonly number[], seasonLength: number
     }
   }
   const sigma2 = sse / (n - m)
-  checkFinite([sigma2], 'seasonal-naive')
-  checkFitted(fitted, m, 'seasonal-naive')
+  checkFinite([sigma2], 'last-season')
+  checkFitted(fitted, m, 'last-season')
   const lastSeason = series.slice(n - m)
   return {
-    model: 'seasonal-naive',
+    model: 'last-season',
     params: { lastSeason },
     fitted,
     forecast(horizon: number): number[] {
@@ -41,14 +41,14 @@ export function fitSeasonalNaive(series: readonly number[], seasonLength: number
       checkHorizon(horizon)
       const out = new Array<number>(horizon)
       for (let h = 1; h <= horizon; h++) out[h - 1] = (Math.floor((h - 1) / m) + 1) * sigma2
-      checkFinite(out, 'seasonal-naive')
+      checkFinite(out, 'last-season')
       return out
     },
   }
 }
 
 export const seasonalNaive: ModelSpec = {
-  name: 'seasonal-naive',
+  name: 'last-season',
   family: 'seasonal',
   complexity: 0,
   seasonal: true,

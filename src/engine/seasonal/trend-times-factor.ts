@@ -1,9 +1,9 @@
 /**
- * 'decomposition' and 'decomposition-cma': multiplicative seasonal factors, the
+ * 'linear-trend-season-averages' and 'linear-trend-season-ratios': multiplicative seasonal factors, the
  * series de-seasonalised (value / factor), an OLS line on t = 1..n through the
  * de-seasonalised values, and forecast = (slope * t + intercept) * factor(t).
- *   'decomposition'     factors by ratio to the overall average (`seasonalPositionFactors`);
- *   'decomposition-cma' factors by ratio to the centred moving average, as
+ *   'linear-trend-season-averages'     factors by ratio to the overall average (`seasonalPositionFactors`);
+ *   'linear-trend-season-ratios' factors by ratio to the centred moving average, as
  *                       R `stats::decompose(type = "multiplicative")` (`decomposeClassical`).
  * Fitted values are the in-sample line times the factor. Needs two full seasons
  * (common practice) and data where no factor is zero.
@@ -29,7 +29,7 @@ export function fitTrendTimesFactor(
   checkFinite(fitted, model)
   return {
     model,
-    params: { slope, intercept, seasonalFactors: factors.slice() },
+    params: { slope, intercept, seasonFactors: factors.slice() },
     fitted,
     forecast(horizon: number): number[] {
       checkHorizon(horizon)
@@ -42,20 +42,20 @@ export function fitTrendTimesFactor(
 }
 
 export function fitDecomposition(series: readonly number[], seasonLength: number): ModelFit {
-  checkSeasonLength(seasonLength, 'decomposition')
-  checkSeries(series, 'decomposition', 2 * seasonLength)
-  return fitTrendTimesFactor(series, seasonalPositionFactors(series, seasonLength), 'decomposition')
+  checkSeasonLength(seasonLength, 'linear-trend-season-averages')
+  checkSeries(series, 'linear-trend-season-averages', 2 * seasonLength)
+  return fitTrendTimesFactor(series, seasonalPositionFactors(series, seasonLength), 'linear-trend-season-averages')
 }
 
 export function fitDecompositionCma(series: readonly number[], seasonLength: number): ModelFit {
-  checkSeasonLength(seasonLength, 'decomposition-cma')
-  checkSeries(series, 'decomposition-cma', 2 * seasonLength)
+  checkSeasonLength(seasonLength, 'linear-trend-season-ratios')
+  checkSeries(series, 'linear-trend-season-ratios', 2 * seasonLength)
   const { figure } = decomposeClassical(series, seasonLength, 'multiplicative')
-  return fitTrendTimesFactor(series, figure, 'decomposition-cma')
+  return fitTrendTimesFactor(series, figure, 'linear-trend-season-ratios')
 }
 
 export const decomposition: ModelSpec = {
-  name: 'decomposition',
+  name: 'linear-trend-season-averages',
   family: 'seasonal-trend',
   complexity: 3,
   seasonal: true,
@@ -65,7 +65,7 @@ export const decomposition: ModelSpec = {
 }
 
 export const decompositionCma: ModelSpec = {
-  name: 'decomposition-cma',
+  name: 'linear-trend-season-ratios',
   family: 'seasonal-trend',
   complexity: 3,
   seasonal: true,

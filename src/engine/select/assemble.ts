@@ -7,10 +7,10 @@ import { mean, sum } from '../numeric.js'
 import { periodLabels } from '../periods.js'
 import type { PreparedSeries } from '../prepare.js'
 import type {
+  Candidate,
   EngineWarning,
   ForecastPoint,
   ForecastResult,
-  LeaderboardEntry,
   MetricName,
   MetricSet,
   ModelFamily,
@@ -30,11 +30,11 @@ export interface Winner {
 
 export interface SelectionSummary {
   readonly method: 'holdout' | 'in-sample' | 'none'
-  readonly metric: MetricName
-  readonly holdout: number
-  readonly origins: number
-  readonly metrics: MetricSet | null
-  readonly leaderboard: readonly LeaderboardEntry[]
+  readonly rankBy: MetricName
+  readonly holdoutPeriods: number
+  readonly holdoutOrigins: number
+  readonly holdoutErrors: MetricSet | null
+  readonly candidates: readonly Candidate[]
 }
 
 function residualSummary(values: readonly number[], fitted: readonly number[]): ForecastResult['residuals'] {
@@ -58,10 +58,10 @@ export function assembleResult(
   const warnings = [...warningsIn]
   const n = prep.values.length
   let point = winner.point.slice(0, prep.horizon)
-  if (!prep.allowNegative && point.some((p) => p < 0)) {
+  if (!prep.allowNegativeDemand && point.some((p) => p < 0)) {
     point = point.map((p) => Math.max(0, p))
     warnings.push({
-      code: 'forecast-clamped',
+      code: 'forecast-raised-to-zero',
       message: `${winner.model} forecast negative demand for some periods; those forecasts were raised to zero`,
     })
   }
@@ -74,62 +74,59 @@ export function assembleResult(
     levels: prep.levels,
     variance: winner.variance,
     residuals,
-    allowNegative: prep.allowNegative,
+    allowNegative: prep.allowNegativeDemand,
     none: constantHistory,
   })
   if (bounds.clamped) {
     warnings.push({
-      code: 'intervals-clamped',
+      code: 'intervals-raised-to-zero',
       message: 'some lower interval bounds fell below zero and were raised to zero',
     })
   }
   if (bounds.method === 'none' && !constantHistory) {
     warnings.push({ code: 'no-intervals', message: 'too few residuals to estimate intervals; bounds equal the forecast' })
   }
-  const labels = periodLabels(prep.frequency, prep.start, prep.horizon, prep.offset + n)
-  const forecast: ForecastPoint[] = point.map((value, i) => {
-    const lower: Record<string, number> = {}
-    const upper: Record<string, number> = {}
-    for (const level of prep.levels) {
+  const labels = periodLabels(prep.frequency, prep.firstPeriod, prep.horizon, prep.offset + n)
+  const forecast: ForecastPoint[] = point.map((demand, i) => {
+    const intervals = prep.levels.map((level) => {
       const key = String(level)
-      lower[key] = bounds.lower[key][i]
-      upper[key] = bounds.upper[key][i]
-    }
-    return { period: labels[i], value, lower, upper }
+      return { level, low: bounds.lower[key][i], high: bounds.upper[key][i] }
+    })
+    return { period: labels[i], demand, intervals }
   })
   return {
     model: winner.model,
     family: winner.family,
     params: winner.params,
-    selection: {
+    modelChoice: {
       method: selection.method,
-      metric: selection.metric,
-      holdout: selection.holdout,
-      origins: selection.origins,
+      rankBy: selection.rankBy,
+      holdoutPeriods: selection.holdoutPeriods,
+      holdoutOrigins: selection.holdoutOrigins,
     },
-    metrics: selection.metrics,
+    holdoutErrors: selection.holdoutErrors,
     fitted: prep.values.map((_, t) => {
       const f = winner.fitted[t]
       return f !== undefined && Number.isFinite(f) ? f : null
     }),
     residuals: residualSummary(prep.values, winner.fitted),
     forecast,
-    intervals: { method: bounds.method, levels: prep.levels, clamped: bounds.clamped },
-    leaderboard: selection.leaderboard,
+    intervalMethod: bounds.method,
+    candidates: selection.candidates,
     warnings,
     history: prep.history,
   }
 }
 
 /**
- * The naive method without selection: every forecast equals the last value, and the
+ * The last-value method without selection: every forecast equals the last value, and the
  * one-step fitted value at t is y[t-1]. Used for constant histories (where every
  * candidate would give the same flat line) and as the last resort when no refit works.
  */
 export function naiveWinner(values: readonly number[], horizon: number): Winner {
   const last = values[values.length - 1]
   return {
-    model: 'naive',
+    model: 'last-value',
     family: 'level',
     params: {},
     fitted: values.map((_, t) => (t === 0 ? NaN : values[t - 1])),

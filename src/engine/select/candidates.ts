@@ -9,7 +9,7 @@
  */
 import type { ModelName, ModelSpec } from '../types.js'
 
-export const INTERMITTENT_MODELS: readonly ModelName[] = ['croston', 'sba']
+export const INTERMITTENT_MODELS: readonly ModelName[] = ['croston', 'croston-bias-corrected']
 
 /** Minimum training length of a model for this season length. */
 export function requiredLength(spec: ModelSpec, seasonLength: number): number {
@@ -19,18 +19,19 @@ export function requiredLength(spec: ModelSpec, seasonLength: number): number {
 
 /** Reason the model cannot be fitted whatever the length, or null. */
 export function structuralReason(spec: ModelSpec, seasonLength: number, values: readonly number[]): string | null {
-  if (spec.seasonal && seasonLength < 2) return `${spec.name} needs seasonLength >= 2`
-  if (spec.requiresPositive && values.some((v) => !(v > 0))) return `${spec.name} needs positive data`
+  if (spec.seasonal && seasonLength < 2) return 'needs a season length of at least 2'
+  if (spec.requiresPositive && values.some((v) => !(v > 0))) return 'needs demand above zero in every period'
   return null
 }
 
-/** Reason the training part is too short, or null. */
+/**
+ * Reason the training part is too short, or null. Reasons leave out the model id (a
+ * candidate row names it): `needs 24 periods, has 20`.
+ */
 export function lengthReason(spec: ModelSpec, seasonLength: number, trainLength: number, holdout: boolean): string | null {
   const need = requiredLength(spec, seasonLength)
   if (trainLength >= need) return null
-  return holdout
-    ? `${spec.name} requires at least ${need} data points in the training part (${trainLength} available)`
-    : `${spec.name} requires at least ${need} data points`
+  return holdout ? `needs ${need} periods in the training part, has ${trainLength}` : `needs ${need} periods, has ${trainLength}`
 }
 
 export interface CandidateSet {
@@ -47,7 +48,7 @@ export interface CandidateSet {
  * the method by category; and on intermittent demand the median period is often zero, so
  * absolute-error measures (MAE, MASE, WAPE) reward a forecast of zero on a short holdout
  * (from memory: Hyndman 2006, "Another look at forecast-accuracy metrics for intermittent
- * demand", Foresight 4). In our seeded trials with the whole pool, naive (forecasting the
+ * demand", Foresight 4). In our seeded trials with the whole pool, last-value (forecasting the
  * last zero) won most selections. Listing `models` overrides this.
  */
 export function candidateModels(

@@ -8,11 +8,11 @@
  */
 import { EngineInputError } from '../errors.js'
 import { averageMetrics, computeMetrics } from '../metrics.js'
-import type { LeaderboardEntry, MetricSet, ModelFit, ModelParams, ModelSpec } from '../types.js'
+import type { Candidate, MetricSet, ModelFit, ModelParams, ModelSpec } from '../types.js'
 import { lengthReason, structuralReason } from './candidates.js'
 
 export interface Evaluation {
-  readonly entry: LeaderboardEntry
+  readonly entry: Candidate
   readonly metrics?: MetricSet
   /** Parameters of the fit at the latest origin (starting point for the refit). */
   readonly params?: ModelParams
@@ -21,7 +21,9 @@ export interface Evaluation {
 function failure(spec: ModelSpec, err: unknown): Evaluation {
   // A fitter signals input it cannot fit with EngineInputError: that is a skip, not a failure.
   const status = err instanceof EngineInputError ? 'skipped' : 'failed'
-  const reason = err instanceof Error ? err.message : String(err)
+  const message = err instanceof Error ? err.message : String(err)
+  // The candidate row names the model: `needs 24 periods, has 20`, not `<id> needs ...`.
+  const reason = message.startsWith(`${spec.name} `) ? message.slice(spec.name.length + 1) : message
   return { entry: { model: spec.name, family: spec.family, status, reason } }
 }
 
@@ -62,7 +64,7 @@ export function evaluateHoldout(
       if (k === 0) params = fit.params
     }
     const metrics = averageMetrics(sets)
-    return { entry: { model: spec.name, family: spec.family, status: 'scored', metrics }, metrics, params }
+    return { entry: { model: spec.name, family: spec.family, status: 'scored', holdoutErrors: metrics }, metrics, params }
   } catch (err) {
     return failure(spec, err)
   }
@@ -83,10 +85,10 @@ export function evaluateInSample(spec: ModelSpec, values: readonly number[], sea
         fitted.push(f)
       }
     })
-    if (actual.length === 0) return skipped(spec, `${spec.name} has no in-sample fitted values on this history`)
+    if (actual.length === 0) return skipped(spec, 'has no in-sample fitted values on this history')
     const metrics = computeMetrics(actual, fitted, values, seasonLength)
     return {
-      entry: { model: spec.name, family: spec.family, status: 'scored', metrics },
+      entry: { model: spec.name, family: spec.family, status: 'scored', holdoutErrors: metrics },
       metrics,
       params: fit.params,
     }

@@ -1,14 +1,14 @@
 /**
  * forecastSeries: prepare, choose candidates, score them on a holdout, refit the best
  * three on the whole history, keep the one with the lowest AICc (shortlist.ts), forecast.
- * The leaderboard lists the refitted shortlist first, in that final order, then the
+ * The candidates list the refitted shortlist first, in that final order, then the
  * other candidates by holdout score.
  *
- * Flat histories (constant or all zero) get the naive method's flat line with
- * intervals of zero width (method 'none'), no selection (method 'none', holdout 0,
- * origins 0) and an empty leaderboard: every candidate would forecast the same line.
+ * Flat histories (constant or all zero) get the last-value method's flat line with
+ * intervals of zero width (method 'none'), no model choice (method 'none', holdoutPeriods 0,
+ * holdoutOrigins 0) and no candidates: every candidate would forecast the same line.
  *
- * When the history is too short for a holdout (no candidate other than naive can be
+ * When the history is too short for a holdout (no candidate other than last-value can be
  * trained on the training part), candidates are ranked by in-sample one-step errors
  * instead (method 'in-sample', with a warning): this favours flexible models, so it is
  * a last resort.
@@ -58,7 +58,7 @@ function flatResult(prep: PreparedSeries, warnings: EngineWarning[]): ForecastRe
   return assembleResult(
     prep,
     naiveWinner(prep.values, prep.horizon),
-    { method: 'none', metric: prep.metric, holdout: 0, origins: 0, metrics: null, leaderboard: [] },
+    { method: 'none', rankBy: prep.rankBy, holdoutPeriods: 0, holdoutOrigins: 0, holdoutErrors: null, candidates: [] },
     warnings,
     true,
   )
@@ -78,17 +78,17 @@ function isIntermittent(prep: PreparedSeries, models: EngineModels, warnings: En
     code: 'intermittent-demand',
     message:
       `demand is ${c.demandClass} (ADI ${c.adi.toFixed(2)}, CV² ${c.cv2.toFixed(2)})` +
-      (prep.models === undefined ? '; candidates limited to the intermittent-demand methods (croston, sba)' : ''),
+      (prep.models === undefined ? '; candidates limited to the intermittent-demand methods (croston, croston-bias-corrected)' : ''),
   })
   return true
 }
 
-/** Whether some candidate beyond naive (or naive, when it is the only one) can train on `length` points. */
+/** Whether some candidate beyond last-value (or last-value, when it is the only one) can train on `length` points. */
 function canTrain(specs: readonly ModelSpec[], prep: PreparedSeries, length: number): boolean {
   if (length < MIN_TRAINING) return false
   return specs.some(
     (s) =>
-      (s.name !== 'naive' || specs.length === 1) &&
+      (s.name !== 'last-value' || specs.length === 1) &&
       structuralReason(s, prep.seasonLength, prep.values) === null &&
       lengthReason(s, prep.seasonLength, length, true) === null,
   )
@@ -113,15 +113,15 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
   const requirements = active
     .filter((s) => structuralReason(s, m, prep.values) === null)
     .map((s) => requiredLength(s, m))
-  const plan = planHoldout(n, prep.horizon, m, prep.holdout, prep.origins, requirements)
+  const plan = planHoldout(n, prep.horizon, m, prep.holdoutPeriods, prep.holdoutOrigins, requirements)
   if (plan.reduced) {
     warnings.push({
       code: 'holdout-reduced',
-      message: `holdout/origins reduced to ${plan.holdout}/${plan.origins} to leave at least ${MIN_TRAINING} training points`,
+      message: `holdoutPeriods/holdoutOrigins reduced to ${plan.holdout}/${plan.origins} to leave at least ${MIN_TRAINING} training periods`,
     })
   }
   const evaluate = (score: (s: ModelSpec) => Evaluation): Evaluation[] =>
-    specs.map((s) => (noSeason && s.seasonal ? skipped(s, `${s.name}: ${noSeason}`) : score(s)))
+    specs.map((s) => (noSeason && s.seasonal ? skipped(s, noSeason) : score(s)))
   let method: 'holdout' | 'in-sample' = canTrain(active, prep, n - plan.holdout - (plan.origins - 1)) ? 'holdout' : 'in-sample'
   let evaluations: Evaluation[] =
     method === 'holdout' ? evaluate((s) => evaluateHoldout(s, prep.values, m, plan.holdout, plan.origins)) : []
@@ -129,22 +129,22 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
   if (method === 'in-sample') {
     evaluations = evaluate((s) => evaluateInSample(s, prep.values, m))
     warnings.push({
-      code: 'in-sample-selection',
+      code: 'ranked-in-sample',
       message: `history of ${n} periods is too short for a holdout; models were ranked by in-sample one-step errors`,
     })
   }
-  const ranking = rankEvaluations(specs, evaluations, prep.metric)
+  const ranking = rankEvaluations(specs, evaluations, prep.rankBy)
   if (ranking.order.length === 0) {
-    // Report a length problem if there is one (more data helps); else the first reason.
-    const reasons = evaluations.map((e) => e.entry.reason ?? 'no model could be fitted')
-    const short = reasons.find((r) => r.includes('requires at least'))
-    if (short) throw new EngineInputError('series-too-short', reasons.length > 1 ? `no model fits: ${short}` : short, 'values')
+    // Report a length problem if there is one (more data helps); else every reason.
+    const reasons = evaluations.map((e) => `${e.entry.model} ${e.entry.reason ?? 'could not be fitted'}`)
+    const short = reasons.find((r) => / needs \d+ periods/.test(r))
+    if (short) throw new EngineInputError('series-too-short', reasons.length > 1 ? `no model fits: ${short}` : short, 'demand')
     throw new EngineInputError('invalid-option', `no requested model fits this series: ${reasons.join('; ')}`, 'models')
   }
   if (ranking.fellBack) {
     warnings.push({
-      code: 'metric-undefined',
-      message: `${prep.metric} is undefined for this history (e.g. zero scale); models were ranked by mae`,
+      code: 'rank-by-undefined',
+      message: `${prep.rankBy} is undefined for this history (e.g. zero scale); models were ranked by mae`,
     })
   }
 
@@ -173,9 +173,9 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
   const chosen = refits.length > 0 ? refits[finalOrder[0]] : undefined
   let winner: Winner | undefined = chosen?.winner
   const winnerEval: Evaluation | undefined = chosen ? evaluations[chosen.index] : undefined
-  const leaderboard = shortlistFirst(ranking.leaderboard, finalOrder.map((k) => specs[refits[k].index].name))
+  const candidates = shortlistFirst(ranking.candidates, finalOrder.map((k) => specs[refits[k].index].name))
   if (!winner) {
-    warnings.push({ code: 'fallback-naive', message: 'no candidate could be refitted on the full history; naive forecast used' })
+    warnings.push({ code: 'fallback-last-value', message: 'no candidate could be refitted on the full history; last-value forecast used' })
     winner = naiveWinner(prep.values, prep.horizon)
   }
   return assembleResult(
@@ -183,11 +183,11 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
     winner,
     {
       method,
-      metric: ranking.metric,
-      holdout: method === 'holdout' ? plan.holdout : 0,
-      origins: method === 'holdout' ? plan.origins : 0,
-      metrics: winnerEval?.metrics ?? null,
-      leaderboard,
+      rankBy: ranking.metric,
+      holdoutPeriods: method === 'holdout' ? plan.holdout : 0,
+      holdoutOrigins: method === 'holdout' ? plan.origins : 0,
+      holdoutErrors: winnerEval?.metrics ?? null,
+      candidates,
     },
     warnings,
   )

@@ -44,7 +44,7 @@ export interface ShortlistFit {
  * (Theta after de-seasonalising), since specs count those states as one.
  */
 export function parameterCount(spec: ModelSpec, params: ModelParams, seasonLength: number): number {
-  const seasonal = spec.seasonal || 'seasonalFactors' in params || 'seasonalTerms' in params
+  const seasonal = spec.seasonal || 'seasonFactors' in params || 'seasonOffsets' in params
   return spec.complexity + (seasonal && seasonLength > 1 ? seasonLength - 1 : 0)
 }
 

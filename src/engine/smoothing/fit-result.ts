@@ -66,15 +66,15 @@ export function smoothingFit(shape: SmoothingShape, series: readonly number[], y
     fittedValues = out
     return out
   }
-  const params: Record<string, number | number[]> = { alpha, initialLevel: level }
+  const params: Record<string, number | number[]> = { levelWeight: alpha, startLevel: level }
   if (hasTrend) {
-    params.beta = beta
-    params.initialTrend = trend
+    params.trendWeight = beta
+    params.startTrend = trend
   }
-  if (damped) params.phi = phi
+  if (damped) params.damping = phi
   if (kind) {
-    params.gamma = gamma
-    params.initialSeasonal = seasonal
+    params.seasonWeight = gamma
+    params.startSeason = seasonal
   }
   if (kind === 'mul') return new SmoothingFit(shape.name, params, fittedOnce, forecast) // no class-1 formula: empirical intervals
 

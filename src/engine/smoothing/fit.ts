@@ -97,10 +97,11 @@ function buffersFor(n: number, m: number, kind: 'add' | 'mul' | null): Buffers {
 }
 
 /**
- * Fit one smoothing model. `ctx.initialParams` (alpha, beta, gamma, phi), when given,
- * is the optimiser's starting point. Returned params: alpha, beta (component form, as
- * statsmodels' smoothing_trend), gamma, phi (damped models), initialLevel, initialTrend,
- * initialSeasonal (m values; entry j applies to the first y[j]).
+ * Fit one smoothing model. `ctx.initialParams` (levelWeight, trendWeight, seasonWeight,
+ * damping), when given, is the optimiser's starting point. Returned params: levelWeight
+ * (alpha), trendWeight (beta, component form, as statsmodels' smoothing_trend),
+ * seasonWeight (gamma), damping (phi, damped models), startLevel, startTrend, startSeason
+ * (m values; entry j applies to the first y[j]).
  * `fitted` is NaN only at index 0 of SES (its level starts at y[0]). `forecastVariance`
  * exists for the additive models only (class 1 of HKOS 2008), with sigma^2 = SSE / (n - k).
  * @throws EngineInputError on bad or short input (see checkedScale in input.ts), or when
@@ -135,23 +136,23 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   const lower: number[] = [LO]
   const upper: number[] = [HI]
   const given = ctx.initialParams
-  const a0 = readParam(given, 'alpha') ?? 0.3
+  const a0 = readParam(given, 'levelWeight') ?? 0.3
   const start: number[] = [a0]
   if (hasTrend) {
     lower.push(LO)
     upper.push(HI)
-    start.push(readParam(given, 'beta') ?? 0.1)
+    start.push(readParam(given, 'trendWeight') ?? 0.1)
   }
   if (shape.seasonal) {
     lower.push(LO)
     upper.push(HI)
-    const g = readParam(given, 'gamma')
+    const g = readParam(given, 'seasonWeight')
     start.push(g !== undefined && a0 < 1 ? g / (1 - Math.min(a0, HI)) : 0.1)
   }
   if (damped) {
     lower.push(PHI_LO)
     upper.push(PHI_HI)
-    start.push(readParam(given, 'phi') ?? 0.9)
+    start.push(readParam(given, 'damping') ?? 0.9)
   }
   const iB = hasTrend ? 1 : -1
   const iG = shape.seasonal ? (hasTrend ? 2 : 1) : -1
@@ -227,7 +228,7 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     b0 = lsStates[1]
   }
   if (!Number.isFinite(best.value)) {
-    throw new EngineInputError('non-finite-value', `${shape.method} found no parameters with a finite error sum for this series`)
+    throw new EngineInputError('non-finite-value', `${shape.name} found no parameters with a finite error sum for this series`)
   }
   const alpha = best.x[0]
   const beta = iB >= 0 ? best.x[iB] : 0

@@ -1,10 +1,10 @@
 /**
  * The exponential-smoothing family as `ModelSpec`s:
- *  - 'ses': simple exponential smoothing (Brown 1956; ETS ANN);
- *  - 'holt': Holt's linear trend (Holt 1957; ETS AAN);
- *  - 'damped-holt': additive damped trend (Gardner and McKenzie 1985; ETS AAdN);
- *  - 'holt-winters-additive' / '-multiplicative' (Winters 1960) and their damped variants;
- *  - 'seasonal-smoothing-additive' / '-multiplicative': the same seasonal recursions
+ *  - 'level-smoothing': simple exponential smoothing (Brown 1956; ETS ANN);
+ *  - 'trend-smoothing': Holt's linear trend (Holt 1957; ETS AAN);
+ *  - 'damped-trend-smoothing': additive damped trend (Gardner and McKenzie 1985; ETS AAdN);
+ *  - 'trend-smoothing-additive-season' / '-multiplicative' (Winters 1960) and their damped variants;
+ *  - 'level-smoothing-additive-season' / '-multiplicative': the same seasonal recursions
  *    without a trend (ETS ANA and ANM in the taxonomy of Hyndman,
  *    Koehler, Ord and Snyder 2008; from memory).
  * Fitting: fit.ts. Fixed-parameter recursions: recursions.ts.
@@ -33,13 +33,13 @@ function spec(shape: SmoothingShape, complexity: number): ModelSpec {
 }
 
 export const smoothingModels: readonly ModelSpec[] = [
-  spec({ name: 'ses', method: 'simpleSmoothing', trend: 'none', seasonal: null }, 2),
-  spec({ name: 'holt', method: 'holt', trend: 'linear', seasonal: null }, 4),
-  spec({ name: 'damped-holt', method: 'dampedHolt', trend: 'damped', seasonal: null }, 5),
-  spec({ name: 'holt-winters-additive', method: 'holtWinters', trend: 'linear', seasonal: 'add' }, 6),
-  spec({ name: 'holt-winters-multiplicative', method: 'holtWinters', trend: 'linear', seasonal: 'mul' }, 6),
-  spec({ name: 'holt-winters-additive-damped', method: 'holtWinters', trend: 'damped', seasonal: 'add' }, 7),
-  spec({ name: 'holt-winters-multiplicative-damped', method: 'holtWinters', trend: 'damped', seasonal: 'mul' }, 7),
-  spec({ name: 'seasonal-smoothing-additive', method: 'seasonalSmoothing', trend: 'none', seasonal: 'add' }, 4),
-  spec({ name: 'seasonal-smoothing-multiplicative', method: 'seasonalSmoothing', trend: 'none', seasonal: 'mul' }, 4),
+  spec({ name: 'level-smoothing', trend: 'none', seasonal: null }, 2),
+  spec({ name: 'trend-smoothing', trend: 'linear', seasonal: null }, 4),
+  spec({ name: 'damped-trend-smoothing', trend: 'damped', seasonal: null }, 5),
+  spec({ name: 'trend-smoothing-additive-season', trend: 'linear', seasonal: 'add' }, 6),
+  spec({ name: 'trend-smoothing-multiplicative-season', trend: 'linear', seasonal: 'mul' }, 6),
+  spec({ name: 'damped-trend-smoothing-additive-season', trend: 'damped', seasonal: 'add' }, 7),
+  spec({ name: 'damped-trend-smoothing-multiplicative-season', trend: 'damped', seasonal: 'mul' }, 7),
+  spec({ name: 'level-smoothing-additive-season', trend: 'none', seasonal: 'add' }, 4),
+  spec({ name: 'level-smoothing-multiplicative-season', trend: 'none', seasonal: 'mul' }, 4),
 ]

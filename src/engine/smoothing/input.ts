@@ -5,8 +5,6 @@ import type { SeasonalKind } from './recursions.js'
 
 export interface SmoothingShape {
   readonly name: ModelName
-  /** Name used in error messages, e.g. `holtWinters`. */
-  readonly method: string
   readonly trend: 'none' | 'linear' | 'damped'
   readonly seasonal: SeasonalKind | null
 }
@@ -25,17 +23,17 @@ export function minLengthOf(shape: SmoothingShape, seasonLength: number): number
 export function checkedScale(shape: SmoothingShape, series: readonly number[], m: number): number {
   const n = series.length
   if (shape.seasonal && !(Number.isInteger(m) && m >= 2)) {
-    throw new EngineInputError('invalid-option', `${shape.method} needs a season length of at least 2`, 'seasonLength')
+    throw new EngineInputError('invalid-option', `${shape.name} needs a season length of at least 2`, 'seasonLength')
   }
-  if (n === 0) throw new EngineInputError('empty-series', 'series is empty', 'values')
+  if (n === 0) throw new EngineInputError('empty-series', 'series is empty', 'demand')
   const minimum = minLengthOf(shape, m)
-  if (n < minimum) throw tooShort(shape.method, minimum)
+  if (n < minimum) throw tooShort(shape.name, minimum, n)
   let scale = 0
   for (let t = 0; t < n; t++) {
     const v = series[t]
-    if (!Number.isFinite(v)) throw new EngineInputError('non-finite-value', `values[${t}] is not a finite number`, `values[${t}]`)
+    if (!Number.isFinite(v)) throw new EngineInputError('non-finite-value', `demand[${t}] is not a finite number`, `demand[${t}]`)
     if (shape.seasonal === 'mul' && !(v > 0)) {
-      throw new EngineInputError('not-positive', `${shape.method} with multiplicative seasonality needs values > 0 (values[${t}] is ${v})`, `values[${t}]`)
+      throw new EngineInputError('not-positive', `${shape.name} needs demand above zero in every period (demand[${t}] is ${v})`, `demand[${t}]`)
     }
     const a = Math.abs(v)
     if (a > scale) scale = a

@@ -66,7 +66,7 @@ function checkUnit(name: string, v: number, lo: number, hi: number): void {
  */
 export function runSmoothing(series: ArrayLike<number>, setup: SmoothingSetup): SmoothingRun {
   const n = series.length
-  if (n === 0) throw new EngineInputError('empty-series', 'series is empty', 'values')
+  if (n === 0) throw new EngineInputError('empty-series', 'series is empty', 'demand')
   const alpha = setup.alpha
   const beta = setup.beta ?? 0
   const gamma = setup.gamma ?? 0
@@ -84,7 +84,7 @@ export function runSmoothing(series: ArrayLike<number>, setup: SmoothingSetup): 
   const s = new Float64Array(m)
   if (kind && init) for (let j = 0; j < m; j++) s[j] = init[j]
   for (let t = 0; t < n; t++) {
-    if (!Number.isFinite(series[t])) throw new EngineInputError('non-finite-value', `values[${t}] is not a finite number`, `values[${t}]`)
+    if (!Number.isFinite(series[t])) throw new EngineInputError('non-finite-value', `demand[${t}] is not a finite number`, `demand[${t}]`)
   }
   const fitted = new Array<number>(n)
   const residuals = new Array<number>(n)

@@ -5,7 +5,7 @@
  * (the standard prediction interval of simple linear regression, from memory; checked
  * against R `predict.lm`: se.fit^2 + sigma^2, in the tests).
  */
-import { EngineInputError } from '../errors.js'
+import { EngineInputError, tooShort } from '../errors.js'
 import type { FitContext, ModelFit, ModelSpec } from '../types.js'
 import { checkFinite, checkFitted, checkHorizon, checkSeries } from './guards.js'
 
@@ -30,9 +30,9 @@ export interface LinearTrendFit {
 export function fitLinearTrend(x: readonly number[], y: readonly number[]): LinearTrendFit {
   const n = x.length
   if (y.length !== n) throw new EngineInputError('invalid-option', 'x and y must have the same length')
-  if (n < 2) throw new EngineInputError('series-too-short', 'linear trend requires at least 2 data points')
-  checkSeries(x, 'linear trend', 2)
-  checkSeries(y, 'linear trend', 2)
+  if (n < 2) throw tooShort('linear-trend', 2, n)
+  checkSeries(x, 'linear-trend', 2)
+  checkSeries(y, 'linear-trend', 2)
   const xMean = compensatedMean(x)
   const yMean = compensatedMean(y)
   let sxx = 0
@@ -52,7 +52,7 @@ export function fitLinearTrend(x: readonly number[], y: readonly number[]): Line
   }
   sxx += sxxC
   sxy += sxyC
-  if (!(sxx > 0)) throw new EngineInputError('invalid-option', 'linear trend requires x values that are not all equal')
+  if (!(sxx > 0)) throw new EngineInputError('invalid-option', 'linear-trend needs x values that are not all equal')
   const slope = sxy / sxx
   const intercept = yMean - slope * xMean
   let sse = 0
@@ -61,7 +61,7 @@ export function fitLinearTrend(x: readonly number[], y: readonly number[]): Line
     sse += e * e
   }
   const fit = { slope, intercept, n, xMean, sxx, sse }
-  checkFinite([slope, intercept, sse], 'linear trend')
+  checkFinite([slope, intercept, sse], 'linear-trend')
   return fit
 }
 

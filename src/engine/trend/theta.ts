@@ -99,8 +99,8 @@ export function fitTheta(series: readonly number[], seasonLength: number, option
   const tail = (1 - Math.pow(1 - alpha, n)) / alpha
   checkFinite([slope, alpha, level, tail], 'theta')
   checkFitted(fitted, 1, 'theta')
-  const params: Record<string, number | number[]> = { alpha, slope, drift, level }
-  if (figure.length > 0) params[multiplicative ? 'seasonalFactors' : 'seasonalTerms'] = figure
+  const params: Record<string, number | number[]> = { levelWeight: alpha, slope, drift, level }
+  if (figure.length > 0) params[multiplicative ? 'seasonFactors' : 'seasonOffsets'] = figure
   return {
     model: 'theta',
     params,

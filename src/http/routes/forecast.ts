@@ -14,13 +14,13 @@ export type ForecastFn = (input: SeriesInput) => ForecastResult
 
 /**
  * Forecast one series with the same mapping the workers use (input the engine
- * rejects becomes an item with `error`), timed into the fit metrics.
+ * rejects becomes an item with `failure`), timed into the fit metrics.
  */
 export function timedForecastItem(fn: ForecastFn, settings: RunSettings, series: SeriesItem, metrics: ServiceMetrics): ResultItem {
   const end = metrics.fitDuration.startTimer({ source: 'sync' })
   try {
     const item = forecastItem(fn, settings, series)
-    metrics.seriesFitted.inc({ source: 'sync', outcome: 'error' in item ? 'error' : 'ok' })
+    metrics.seriesFitted.inc({ source: 'sync', outcome: 'failure' in item ? 'error' : 'ok' })
     return item
   } finally {
     end()
@@ -39,7 +39,7 @@ export function forecastRoutes(fn: ForecastFn): FastifyPluginAsyncZod {
           description:
             'Selects and fits a model per series and answers with the forecasts. At most the configured ' +
             'number of series (default 100; more gives 413 too-many-series): use POST /v1/runs for more. ' +
-            'A series the engine rejects (too short, negative values...) comes back as an item with `error`.',
+            'A series the engine rejects (too short, negative demand...) comes back as an item with `failure`.',
           body: RunRequest,
           response: { 200: ForecastResponse, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
         },
@@ -68,7 +68,7 @@ export function forecastRoutes(fn: ForecastFn): FastifyPluginAsyncZod {
             slice = performance.now()
           }
         }
-        request.log.info({ series: series.length, failed: items.filter((i) => 'error' in i).length }, 'sync forecast')
+        request.log.info({ series: series.length, failed: items.filter((i) => 'failure' in i).length }, 'sync forecast')
         return { items } as ForecastBody
       },
     )

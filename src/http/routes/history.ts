@@ -44,10 +44,10 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         tags: ['history'],
         summary: 'Upload demand histories in bulk (JSON, NDJSON or CSV)',
         description: [
-          'Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "start", "values", "tags"? }] }`;',
-          'application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "quantity" }`;',
-          'text/csv, long layout: a header row, then one `sku,period,quantity` row per line (names set by skuColumn,',
-          'periodColumn, quantityColumn; other columns ignored). CSV and NDJSON are read as a stream.',
+          'Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`;',
+          'application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand" }`;',
+          'text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn,',
+          'periodColumn, demandColumn; other columns ignored). CSV and NDJSON are read as a stream.',
           'A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label',
           '(2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU\'s first and last row without rows become 0.',
           'Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written',
@@ -74,8 +74,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         const source = limitBytes(request.body as Readable, app.config.bodyLimitBytes)
         try {
           if (type === 'text/csv') {
-            const { skuColumn, periodColumn, quantityColumn } = q
-            await readCsvUpload(source, { delimiter: DELIMITERS[q.delimiter], skuColumn, periodColumn, quantityColumn }, acc)
+            const { skuColumn, periodColumn, demandColumn } = q
+            await readCsvUpload(source, { delimiter: DELIMITERS[q.delimiter], skuColumn, periodColumn, demandColumn }, acc)
           } else {
             await readNdjsonUpload(source, acc)
           }

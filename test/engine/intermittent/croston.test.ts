@@ -24,14 +24,14 @@ describe('croston and sba', () => {
     it(`${spec.name}: rejects bad input, negative values and fewer than 2 demands`, () => {
       expectInputGuards(spec, 1)
       expectEngineError(() => spec.fit([0, 3, -1, 2], { seasonLength: 1 }), 'negative-value')
-      expectEngineError(() => spec.fit([0, 0, 0, 0], { seasonLength: 1 }), 'series-too-short', `${spec.name} requires at least 2 non-zero demands`)
+      expectEngineError(() => spec.fit([0, 0, 0, 0], { seasonLength: 1 }), 'series-too-short', `${spec.name} needs 2 periods with demand, has 0`)
       expectEngineError(() => spec.fit([0, 5, 0, 0], { seasonLength: 1 }), 'series-too-short')
-      expectEngineError(() => fitCroston(series, { variant: spec.name as 'croston' | 'sba', alpha: 0 }), 'invalid-option')
+      expectEngineError(() => fitCroston(series, { variant: spec.name as 'croston' | 'croston-bias-corrected', alpha: 0 }), 'invalid-option')
     })
   }
 
   it('lists both models', () => {
-    expect(intermittentModels.map((s) => s.name)).toEqual(['croston', 'sba'])
+    expect(intermittentModels.map((s) => s.name)).toEqual(['croston', 'croston-bias-corrected'])
   })
 
   // A demand every period: size = the constant, interval = 1 (Croston); SBA scales by (1 - alpha/2).
@@ -39,7 +39,7 @@ describe('croston and sba', () => {
     const flat = new Array(10).fill(5)
     expect(expectSane(croston.fit(flat, { seasonLength: 1 }), 10)).toEqual(new Array(12).fill(5))
     const s = sba.fit(flat, { seasonLength: 1 })
-    const alpha = s.params.alpha as number
+    const alpha = s.params.levelWeight as number
     expectSane(s, 10).forEach((v) => expect(approxEqual(v, 5 * (1 - alpha / 2), 1e-14)).toBe(true))
   })
 
@@ -48,8 +48,8 @@ describe('croston and sba', () => {
   // Demand 2 after 2 periods: size 4.2 + 0.1 (2 - 4.2) = 3.98, interval 2.1 + 0.1 (2 - 2.1) = 2.09.
   it('Croston (1972) updates size and interval only on demand', () => {
     const fit = fitCroston(series, { alpha: 0.1 })
-    expect(fit.params.size).toBeCloseTo(3.98, 14)
-    expect(fit.params.interval).toBeCloseTo(2.09, 14)
+    expect(fit.params.demandSize).toBeCloseTo(3.98, 14)
+    expect(fit.params.demandInterval).toBeCloseTo(2.09, 14)
     expect(fit.fitted.slice(0, 2)).toEqual([NaN, NaN])
     fit.fitted.slice(2, 7).forEach((v) => expect(v).toBeCloseTo(2, 14)) // 4/2, then 4.2/2.1
     expect(fit.fitted[7]).toBeCloseTo(3.98 / 2.09, 14)
@@ -58,8 +58,8 @@ describe('croston and sba', () => {
 
   // Syntetos and Boylan (2005): SBA = Croston * (1 - alpha/2).
   it('SBA deflates the Croston forecast by 1 - alpha/2', () => {
-    const fit = fitCroston(series, { alpha: 0.1, variant: 'sba' })
-    expect(fit.model).toBe('sba')
+    const fit = fitCroston(series, { alpha: 0.1, variant: 'croston-bias-corrected' })
+    expect(fit.model).toBe('croston-bias-corrected')
     expect(fit.params.biasFactor).toBe(0.95)
     expect(approxEqual(fit.forecast(1)[0], (0.95 * 3.98) / 2.09, 1e-14)).toBe(true)
     expect(approxEqual(fit.fitted[3], 0.95 * 2, 1e-14)).toBe(true)
@@ -67,9 +67,9 @@ describe('croston and sba', () => {
 
   it('chooses alpha from the grid by the smallest in-sample mean squared error', () => {
     const demand = [0, 0, 7, 0, 1, 0, 0, 0, 9, 0, 2, 0, 0, 12, 0, 0, 0, 3, 0, 5, 0, 0]
-    for (const variant of ['croston', 'sba'] as const) {
+    for (const variant of ['croston', 'croston-bias-corrected'] as const) {
       const chosen = fitCroston(demand, { variant })
-      expect(CROSTON_ALPHAS).toContain(chosen.params.alpha)
+      expect(CROSTON_ALPHAS).toContain(chosen.params.levelWeight)
       const best = mse(demand, chosen.fitted)
       for (const alpha of CROSTON_ALPHAS) {
         expect(best).toBeLessThanOrEqual(mse(demand, fitCroston(demand, { variant, alpha }).fitted))

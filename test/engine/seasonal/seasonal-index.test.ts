@@ -12,7 +12,7 @@ function sse(series: readonly number[], fitted: readonly number[]): number {
   return s
 }
 
-describe('seasonal-index', () => {
+describe('level-smoothing-season-averages', () => {
   it('rejects bad input, all-zero data and a bad alpha', () => {
     expectInputGuards(seasonalIndex, 4)
     expectEngineError(() => fitSeasonalIndex(new Array(8).fill(0), 4), 'not-positive')

@@ -3,11 +3,11 @@ import { fitSeasonalNaive, seasonalModels } from '../../../src/engine/seasonal/i
 import { seasonalNaive } from '../../../src/engine/seasonal/seasonal-naive.js'
 import { expectEngineError, expectInputGuards, expectSane } from '../trend/spec-checks.js'
 
-describe('seasonal-naive', () => {
+describe('last-season', () => {
   it('rejects bad input and a season length below 2', () => {
     expectInputGuards(seasonalNaive, 4)
     expectEngineError(() => fitSeasonalNaive([1, 2, 3, 4], 1), 'invalid-option')
-    expect(seasonalModels.map((s) => s.name)).toEqual(['seasonal-naive', 'seasonal-index', 'decomposition', 'decomposition-cma'])
+    expect(seasonalModels.map((s) => s.name)).toEqual(['last-season', 'level-smoothing-season-averages', 'linear-trend-season-averages', 'linear-trend-season-ratios'])
   })
 
   it('forecasts constant and all-zero series as themselves', () => {

@@ -42,7 +42,7 @@ describe('decomposition and decomposition-cma', () => {
     const expected = [(intercept + slope * 13) * factors[0], (intercept + slope * 14) * factors[1]]
 
     const fit = fitDecomposition(y, 4)
-    close(fit.params.seasonalFactors as number[], factors, 1e-14)
+    close(fit.params.seasonFactors as number[], factors, 1e-14)
     expect(approxEqual(fit.params.slope as number, slope, 1e-12)).toBe(true)
     expect(approxEqual(fit.params.intercept as number, intercept, 1e-12)).toBe(true)
     close(fit.forecast(2), expected, 1e-12)
@@ -64,7 +64,7 @@ describe('decomposition and decomposition-cma', () => {
   // AirPassengers (scripts/fixtures/r_decompose.R). Tolerance 1e-12; measured < 2e-15.
   it('decomposition-cma: matches R decompose + lm on AirPassengers', () => {
     const fit = fitDecompositionCma(r.series, 12)
-    close(fit.params.seasonalFactors as number[], r.multiplicative.figure, 1e-12)
+    close(fit.params.seasonFactors as number[], r.multiplicative.figure, 1e-12)
     expect(approxEqual(fit.params.slope as number, r.decompositionCma.slope, 1e-12)).toBe(true)
     expect(approxEqual(fit.params.intercept as number, r.decompositionCma.intercept, 1e-12)).toBe(true)
     close(fit.forecast(r.horizon), r.decompositionCma.forecast, 1e-12)

@@ -44,12 +44,12 @@ export function fakeSpec(o: FakeOptions): ModelSpec {
 
 const mean = (s: readonly number[]): number => s.reduce((a, b) => a + b, 0) / s.length
 
-/** Forecasts the last value ('naive'-like). */
-export const fakeLast = (name: ModelName = 'naive', complexity = 0): ModelSpec =>
+/** Forecasts the last value ('last-value'-like). */
+export const fakeLast = (name: ModelName = 'last-value', complexity = 0): ModelSpec =>
   fakeSpec({ name, complexity, forecast: (s, h) => new Array(h).fill(s[s.length - 1]) })
 
 /** Forecasts the training mean. */
-export const fakeMean = (name: ModelName = 'ses', complexity = 1): ModelSpec =>
+export const fakeMean = (name: ModelName = 'level-smoothing', complexity = 1): ModelSpec =>
   fakeSpec({ name, complexity, forecast: (s, h) => new Array(h).fill(mean(s)) })
 
 /** Forecasts a fixed value whatever the data. */

@@ -1,3 +1,4 @@
+import { high, low } from '../points.js'
 import { describe, expect, it } from 'vitest'
 import { EngineInputError } from '../../../src/engine/errors.js'
 import { computeMetrics } from '../../../src/engine/metrics.js'
@@ -9,68 +10,68 @@ import { fakeBroken, fakeConstant, fakeLast, fakeMean, fakeRefusing, fakeSpec } 
 const withFakes = (...registry: ModelSpec[]): EngineModels => ({ registry, classify: null, seasonalityTest: null })
 const history = [10, 12, 11, 13, 12, 14, 13, 15, 14, 16, 15, 17]
 const series: SeriesInput = {
-  values: history,
+  demand: history,
   frequency: 'quarter',
-  start: '2021-Q1',
+  firstPeriod: '2021-Q1',
   horizon: 4,
 }
 
 describe('forecastSeries with test doubles: flat histories', () => {
   it('forecasts a constant history flat, without selection', () => {
-    const r = forecastSeriesWith({ ...series, values: [7, 7, 7] }, withFakes(fakeBroken('ses')))
-    expect(r.model).toBe('naive')
-    expect(r.selection).toEqual({ method: 'none', metric: 'mase', holdout: 0, origins: 0 })
-    expect(r.forecast.map((p) => p.value)).toEqual([7, 7, 7, 7])
-    expect(r.forecast[0]).toEqual({ period: '2021-Q4', value: 7, lower: { 80: 7, 95: 7 }, upper: { 80: 7, 95: 7 } })
-    expect(r.intervals.method).toBe('none')
-    expect(r.leaderboard).toEqual([])
+    const r = forecastSeriesWith({ ...series, demand: [7, 7, 7] }, withFakes(fakeBroken('level-smoothing')))
+    expect(r.model).toBe('last-value')
+    expect(r.modelChoice).toEqual({ method: 'none', rankBy: 'mase', holdoutPeriods: 0, holdoutOrigins: 0 })
+    expect(r.forecast.map((p) => p.demand)).toEqual([7, 7, 7, 7])
+    expect(r.forecast[0]).toEqual({ period: '2021-Q4', demand: 7, intervals: [{ level: 80, low: 7, high: 7 }, { level: 95, low: 7, high: 7 }] })
+    expect(r.intervalMethod).toBe('none')
+    expect(r.candidates).toEqual([])
     expect(r.warnings.map((w) => w.code)).toEqual(['constant-series'])
     expect(r.fitted).toEqual([null, 7, 7])
   })
 
   it('forecasts zero for an all-zero history', () => {
-    const r = forecastSeriesWith({ ...series, values: [0, null, 0] }, withFakes(fakeMean()))
-    expect(r.forecast.every((p) => p.value === 0 && p.lower['95'] === 0 && p.upper['95'] === 0)).toBe(true)
+    const r = forecastSeriesWith({ ...series, demand: [0, null, 0] }, withFakes(fakeMean()))
+    expect(r.forecast.every((p) => p.demand === 0 && low(p, 95) === 0 && high(p, 95) === 0)).toBe(true)
     expect(r.warnings.map((w) => w.code)).toEqual(['missing-filled', 'all-zero-series'])
   })
 })
 
-describe('forecastSeries with test doubles: the leaderboard', () => {
+describe('forecastSeries with test doubles: the candidates', () => {
   it('scores, skips and fails candidates with reasons', () => {
     const models = withFakes(
-      fakeMean('ses'),
-      fakeLast('naive'),
-      fakeSpec({ name: 'seasonal-naive', seasonal: true, minLength: (m) => 2 * m, forecast: (s, h) => new Array(h).fill(s[0]) }),
-      fakeSpec({ name: 'holt-winters-multiplicative', requiresPositive: true, forecast: (s, h) => new Array(h).fill(1) }),
-      fakeSpec({ name: 'holt-winters-additive', seasonal: true, minLength: () => 20, forecast: (s, h) => new Array(h).fill(1) }),
+      fakeMean('level-smoothing'),
+      fakeLast('last-value'),
+      fakeSpec({ name: 'last-season', seasonal: true, minLength: (m) => 2 * m, forecast: (s, h) => new Array(h).fill(s[0]) }),
+      fakeSpec({ name: 'trend-smoothing-multiplicative-season', requiresPositive: true, forecast: (s, h) => new Array(h).fill(1) }),
+      fakeSpec({ name: 'trend-smoothing-additive-season', seasonal: true, minLength: () => 20, forecast: (s, h) => new Array(h).fill(1) }),
       fakeBroken('theta'),
-      fakeRefusing('holt'),
+      fakeRefusing('trend-smoothing'),
     )
-    const r = forecastSeriesWith({ ...series, values: [0, ...history], keepLeadingZeros: true, seasonLength: 4 }, models)
-    const byName = Object.fromEntries(r.leaderboard.map((e) => [e.model, e]))
-    expect(byName['holt-winters-multiplicative']).toMatchObject({ status: 'skipped', reason: 'holt-winters-multiplicative needs positive data' })
-    expect(byName['holt-winters-additive']).toMatchObject({ status: 'skipped' })
-    expect(byName['holt-winters-additive'].reason).toMatch(/^holt-winters-additive requires at least 20 data points/)
+    const r = forecastSeriesWith({ ...series, demand: [0, ...history], keepLeadingZeros: true, seasonLength: 4 }, models)
+    const byName = Object.fromEntries(r.candidates.map((e) => [e.model, e]))
+    expect(byName['trend-smoothing-multiplicative-season']).toMatchObject({ status: 'skipped', reason: 'needs demand above zero in every period' })
+    expect(byName['trend-smoothing-additive-season']).toMatchObject({ status: 'skipped' })
+    expect(byName['trend-smoothing-additive-season'].reason).toBe('needs 20 periods in the training part, has 9')
     expect(byName['theta']).toMatchObject({ status: 'failed', reason: 'boom' })
-    expect(byName['holt']).toMatchObject({ status: 'skipped', reason: 'holt cannot fit this' })
-    expect(byName['seasonal-naive'].status).toBe('scored')
+    expect(byName['trend-smoothing']).toMatchObject({ status: 'skipped', reason: 'cannot fit this' })
+    expect(byName['last-season'].status).toBe('scored')
     // Scored entries come first, best first, each with every metric.
-    const scored = r.leaderboard.filter((e) => e.status === 'scored')
-    expect(r.leaderboard.slice(0, scored.length)).toEqual(scored)
+    const scored = r.candidates.filter((e) => e.status === 'scored')
+    expect(r.candidates.slice(0, scored.length)).toEqual(scored)
     for (let i = 1; i < scored.length; i++) expect(scored[i].score!).toBeGreaterThanOrEqual(scored[i - 1].score!)
-    for (const e of scored) expect(Object.keys(e.metrics!).sort()).toEqual(['mae', 'mape', 'mase', 'rmse', 'smape', 'wape'])
+    for (const e of scored) expect(Object.keys(e.holdoutErrors!).sort()).toEqual(['mae', 'mape', 'mase', 'rmse', 'smape', 'wape'])
     expect(r.model).toBe(scored[0].model)
   })
 
-  it('says a seasonal model needs seasonLength >= 2', () => {
-    const models = withFakes(fakeMean('ses'), fakeSpec({ name: 'seasonal-index', seasonal: true, forecast: (s, h) => new Array(h).fill(1) }))
+  it('says a seasonal model needs a season length of at least 2', () => {
+    const models = withFakes(fakeMean('level-smoothing'), fakeSpec({ name: 'level-smoothing-season-averages', seasonal: true, forecast: (s, h) => new Array(h).fill(1) }))
     const r = forecastSeriesWith({ ...series, seasonLength: 1 }, models)
-    expect(r.leaderboard.find((e) => e.model === 'seasonal-index')?.reason).toBe('seasonal-index needs seasonLength >= 2')
+    expect(r.candidates.find((e) => e.model === 'level-smoothing-season-averages')?.reason).toBe('needs a season length of at least 2')
   })
 
   it('picks the lowest score and breaks ties by complexity', () => {
     // Both forecast 14 -> identical scores; the simpler one wins whatever the order.
-    const a = fakeConstant('holt', 14, 4)
+    const a = fakeConstant('trend-smoothing', 14, 4)
     const b = fakeConstant('linear-trend', 14, 2)
     expect(forecastSeriesWith(series, withFakes(a, b)).model).toBe('linear-trend')
     expect(forecastSeriesWith(series, withFakes(b, a)).model).toBe('linear-trend')
@@ -81,35 +82,35 @@ describe('forecastSeries with test doubles: the leaderboard', () => {
   })
 
   it('scores on the holdout with the metric asked for', () => {
-    const r = forecastSeriesWith({ ...series, holdout: 3, metric: 'rmse' }, withFakes(fakeMean('ses')))
+    const r = forecastSeriesWith({ ...series, holdoutPeriods: 3, rankBy: 'rmse' }, withFakes(fakeMean('level-smoothing')))
     const v = history
     const train = v.slice(0, 9)
     const expected = computeMetrics(v.slice(9), new Array(3).fill(train.reduce((a, b) => a + b) / 9), train, 4)
-    expect(r.selection).toEqual({ method: 'holdout', metric: 'rmse', holdout: 3, origins: 1 })
-    expect(r.metrics).toEqual(expected)
-    expect(r.leaderboard[0].score).toBe(expected.rmse)
+    expect(r.modelChoice).toEqual({ method: 'holdout', rankBy: 'rmse', holdoutPeriods: 3, holdoutOrigins: 1 })
+    expect(r.holdoutErrors).toEqual(expected)
+    expect(r.candidates[0].score).toBe(expected.rmse)
   })
 
   it('averages metrics over rolling origins ending at n - holdout - k', () => {
     const v = history
-    const r = forecastSeriesWith({ ...series, holdout: 2, origins: 3 }, withFakes(fakeLast('naive')))
+    const r = forecastSeriesWith({ ...series, holdoutPeriods: 2, holdoutOrigins: 3 }, withFakes(fakeLast('last-value')))
     const sets = [0, 1, 2].map((k) => {
       const end = v.length - 2 - k
       return computeMetrics(v.slice(end, end + 2), [v[end - 1], v[end - 1]], v.slice(0, end), 4)
     })
-    expect(approxEqual(r.metrics!.mae!, (sets[0].mae! + sets[1].mae! + sets[2].mae!) / 3, 1e-14)).toBe(true)
-    expect(r.selection.origins).toBe(3)
+    expect(approxEqual(r.holdoutErrors!.mae!, (sets[0].mae! + sets[1].mae! + sets[2].mae!) / 3, 1e-14)).toBe(true)
+    expect(r.modelChoice.holdoutOrigins).toBe(3)
   })
 
   it('refits the winner on the full history starting from the training parameters', () => {
     const calls: { length: number; ctx: FitContext }[] = []
     const spy = fakeSpec({
-      name: 'ses',
+      name: 'level-smoothing',
       forecast: (s, h) => new Array(h).fill(s[s.length - 1]),
       onFit: (s, ctx) => calls.push({ length: s.length, ctx }),
       params: (s) => ({ trainedOn: s.length }),
     })
-    const r = forecastSeriesWith({ ...series, holdout: 4 }, withFakes(spy))
+    const r = forecastSeriesWith({ ...series, holdoutPeriods: 4 }, withFakes(spy))
     expect(calls.map((c) => c.length)).toEqual([8, 12])
     expect(calls[1].ctx.initialParams).toEqual({ trainedOn: 8 })
     expect(r.params).toEqual({ trainedOn: 12 })
@@ -118,72 +119,73 @@ describe('forecastSeries with test doubles: the leaderboard', () => {
   it('falls back to the mae ranking when the chosen metric is undefined', () => {
     // In-sample differences at lag 4 and 1 are zero in the training part: MASE has no scale.
     const v = [5, 5, 5, 5, 5, 5, 9, 9]
-    const r = forecastSeriesWith({ ...series, values: v, holdout: 2 }, withFakes(fakeLast('naive'), fakeMean('ses')))
-    expect(r.selection.metric).toBe('mae')
-    expect(r.warnings.map((w) => w.code)).toContain('metric-undefined')
+    const r = forecastSeriesWith({ ...series, demand: v, holdoutPeriods: 2 }, withFakes(fakeLast('last-value'), fakeMean('level-smoothing')))
+    expect(r.modelChoice.rankBy).toBe('mae')
+    expect(r.warnings.map((w) => w.code)).toContain('rank-by-undefined')
   })
 
-  it('ranks in-sample when no model beyond naive can be trained on a holdout', () => {
-    const long = fakeSpec({ name: 'holt', minLength: () => 3, forecast: (s, h) => new Array(h).fill(s[s.length - 1] + 1) })
-    const r = forecastSeriesWith({ ...series, values: [4, 6, 5] }, withFakes(fakeLast('naive'), long))
-    expect(r.selection.method).toBe('in-sample')
-    expect(r.selection.holdout).toBe(0)
-    expect(r.warnings.map((w) => w.code)).toContain('in-sample-selection')
-    expect(r.leaderboard.every((e) => e.status === 'scored')).toBe(true)
+  it('ranks in-sample when no model beyond last-value can be trained on a holdout', () => {
+    const long = fakeSpec({ name: 'trend-smoothing', minLength: () => 3, forecast: (s, h) => new Array(h).fill(s[s.length - 1] + 1) })
+    const r = forecastSeriesWith({ ...series, demand: [4, 6, 5] }, withFakes(fakeLast('last-value'), long))
+    expect(r.modelChoice.method).toBe('in-sample')
+    expect(r.modelChoice.holdoutPeriods).toBe(0)
+    expect(r.warnings.map((w) => w.code)).toContain('ranked-in-sample')
+    expect(r.candidates.every((e) => e.status === 'scored')).toBe(true)
   })
 
   it('throws series-too-short when no candidate can be fitted at all', () => {
-    const needy = fakeSpec({ name: 'holt-winters-additive', minLength: () => 50, forecast: (s, h) => new Array(h).fill(1) })
+    const needy = fakeSpec({ name: 'trend-smoothing-additive-season', minLength: () => 50, forecast: (s, h) => new Array(h).fill(1) })
     try {
       forecastSeriesWith(series, withFakes(needy))
       expect.unreachable()
     } catch (err) {
       expect(err).toBeInstanceOf(EngineInputError)
       expect((err as EngineInputError).code).toBe('series-too-short')
-      expect((err as EngineInputError).message).toBe('holt-winters-additive requires at least 50 data points')
+      expect((err as EngineInputError).message).toBe('trend-smoothing-additive-season needs 50 periods, has 12')
     }
   })
 
   it('throws invalid-option on models when every listed model is unfit for other reasons', () => {
-    const seasonal = fakeSpec({ name: 'seasonal-index', seasonal: true, forecast: (s, h) => new Array(h).fill(1) })
+    const seasonal = fakeSpec({ name: 'level-smoothing-season-averages', seasonal: true, forecast: (s, h) => new Array(h).fill(1) })
     try {
-      forecastSeriesWith({ ...series, seasonLength: 1, models: ['seasonal-index'] }, withFakes(seasonal))
+      forecastSeriesWith({ ...series, seasonLength: 1, models: ['level-smoothing-season-averages'] }, withFakes(seasonal))
       expect.unreachable()
     } catch (err) {
       expect(err).toBeInstanceOf(EngineInputError)
       expect((err as EngineInputError).code).toBe('invalid-option')
       expect((err as EngineInputError).field).toBe('models')
-      expect((err as EngineInputError).message).toMatch(/seasonal-index needs seasonLength >= 2/)
+      expect((err as EngineInputError).message).toMatch(/level-smoothing-season-averages needs a season length of at least 2/)
     }
   })
 })
 
 describe('forecastSeries with test doubles: output', () => {
   it('labels forecasts after the trimmed history and reports it', () => {
-    const r = forecastSeriesWith({ ...series, values: [0, 0, ...history] }, withFakes(fakeLast()))
+    const r = forecastSeriesWith({ ...series, demand: [0, 0, ...history] }, withFakes(fakeLast()))
     expect(r.history).toEqual({ length: 14, used: 12, missing: 0, trimmedLeadingZeros: 2, firstPeriod: '2021-Q3' })
     expect(r.forecast.map((p) => p.period)).toEqual(['2024-Q3', '2024-Q4', '2025-Q1', '2025-Q2'])
   })
 
   it('raises negative forecasts and lower bounds to zero unless negatives are allowed', () => {
     const down = fakeSpec({ name: 'linear-trend', forecast: (s, h) => Array.from({ length: h }, (_, i) => s[s.length - 1] - 8 * (i + 1)) })
-    const r = forecastSeriesWith({ ...series, values: [40, 32, 24, 16, 8], horizon: 3, holdout: 1 }, withFakes(down))
-    expect(r.forecast.map((p) => p.value)).toEqual([0, 0, 0])
-    expect(r.intervals.clamped).toBe(false) // residuals are all zero: a linear series
-    expect(r.warnings.map((w) => w.code)).toContain('forecast-clamped')
-    const free = forecastSeriesWith({ ...series, values: [40, 32, 24, 16, 8], horizon: 3, holdout: 1, allowNegative: true }, withFakes(down))
-    expect(free.forecast.map((p) => p.value)).toEqual([0, -8, -16])
+    const r = forecastSeriesWith({ ...series, demand: [40, 32, 24, 16, 8], horizon: 3, holdoutPeriods: 1 }, withFakes(down))
+    expect(r.forecast.map((p) => p.demand)).toEqual([0, 0, 0])
+    // residuals are all zero (a linear series): no interval bound had to be raised
+    expect(r.warnings.map((w) => w.code)).not.toContain('intervals-raised-to-zero')
+    expect(r.warnings.map((w) => w.code)).toContain('forecast-raised-to-zero')
+    const free = forecastSeriesWith({ ...series, demand: [40, 32, 24, 16, 8], horizon: 3, holdoutPeriods: 1, allowNegativeDemand: true }, withFakes(down))
+    expect(free.forecast.map((p) => p.demand)).toEqual([0, -8, -16])
   })
 
   it('uses analytical variances when the winner has them', () => {
-    const withVar = fakeSpec({ name: 'ses', forecast: (s, h) => new Array(h).fill(100), variance: (h) => new Array(h).fill(4) })
-    const r = forecastSeriesWith({ ...series, values: [100, 102, 98, 101, 99, 100] }, withFakes(withVar))
-    expect(r.intervals.method).toBe('analytical')
-    expect(approxEqual(r.forecast[0].upper['95'], 100 + 1.959963984540054 * 2, 1e-15)).toBe(true)
+    const withVar = fakeSpec({ name: 'level-smoothing', forecast: (s, h) => new Array(h).fill(100), variance: (h) => new Array(h).fill(4) })
+    const r = forecastSeriesWith({ ...series, demand: [100, 102, 98, 101, 99, 100] }, withFakes(withVar))
+    expect(r.intervalMethod).toBe('analytical')
+    expect(approxEqual(high(r.forecast[0], 95), 100 + 1.959963984540054 * 2, 1e-15)).toBe(true)
   })
 
   it('summarises residuals and reports fitted values with null where undefined', () => {
-    const r = forecastSeriesWith({ ...series, values: [1, 3, 2, 4] }, withFakes(fakeLast()))
+    const r = forecastSeriesWith({ ...series, demand: [1, 3, 2, 4] }, withFakes(fakeLast()))
     expect(r.fitted).toEqual([null, 1, 3, 2])
     // residuals 2, -1, 2: mean 1, sample sd sqrt(3), mae 5/3
     expect(r.residuals.count).toBe(3)

@@ -34,36 +34,36 @@ describe('shortlistCriteria (AICc, Hurvich and Tsai 1989)', () => {
   })
 
   it('charges seasonal models for their m - 1 seasonal terms', () => {
-    expect(parameterCount(findModel('holt-winters-additive')!, {}, 12)).toBe(findModel('holt-winters-additive')!.complexity + 11)
-    expect(parameterCount(findModel('theta')!, { seasonalFactors: [1, 1, 1, 1] }, 4)).toBe(findModel('theta')!.complexity + 3)
-    expect(parameterCount(findModel('holt')!, { alpha: 0.5 }, 12)).toBe(findModel('holt')!.complexity)
+    expect(parameterCount(findModel('trend-smoothing-additive-season')!, {}, 12)).toBe(findModel('trend-smoothing-additive-season')!.complexity + 11)
+    expect(parameterCount(findModel('theta')!, { seasonFactors: [1, 1, 1, 1] }, 4)).toBe(findModel('theta')!.complexity + 3)
+    expect(parameterCount(findModel('trend-smoothing')!, { alpha: 0.5 }, 12)).toBe(findModel('trend-smoothing')!.complexity)
   })
 })
 
 describe('forecastSeries: the shortlist decides among the best holdout candidates', () => {
   // A noisy level around 100 whose last quarter happens to sit near 108.
   const history = [100, 96, 104, 99, 101, 97, 103, 100, 98, 102, 108, 107, 109, 108]
-  const base = { values: history, frequency: 'quarter' as const, horizon: 4, holdout: 4 }
+  const base = { demand: history, frequency: 'quarter' as const, horizon: 4, holdoutPeriods: 4 }
 
   it('prefers the in-sample fit when the holdout winner fits the past badly', () => {
-    // 'holt' forecasts 108 always: best on the holdout, poor in-sample. 'ses' forecasts the
-    // running mean: second on the holdout, far better in-sample. AICc picks 'ses'.
-    const lucky = fakeConstant('holt', 108, 1)
-    const mean = fakeSpec({ name: 'ses', complexity: 1, forecast: (s, h) => new Array(h).fill(s.reduce((a, b) => a + b, 0) / s.length) })
+    // 'trend-smoothing' forecasts 108 always: best on the holdout, poor in-sample. 'level-smoothing' forecasts the
+    // running mean: second on the holdout, far better in-sample. AICc picks 'level-smoothing'.
+    const lucky = fakeConstant('trend-smoothing', 108, 1)
+    const mean = fakeSpec({ name: 'level-smoothing', complexity: 1, forecast: (s, h) => new Array(h).fill(s.reduce((a, b) => a + b, 0) / s.length) })
     const r = forecastSeriesWith(base, withFakes(lucky, mean))
-    expect(r.leaderboard.map((e) => e.model)).toEqual(['ses', 'holt'])
-    expect(r.leaderboard[1].score!).toBeLessThan(r.leaderboard[0].score!)
-    expect(r.model).toBe('ses')
+    expect(r.candidates.map((e) => e.model)).toEqual(['level-smoothing', 'trend-smoothing'])
+    expect(r.candidates[1].score!).toBeLessThan(r.candidates[0].score!)
+    expect(r.model).toBe('level-smoothing')
   })
 
   it('considers only the best three by holdout score', () => {
-    const mean = fakeSpec({ name: 'ses', complexity: 1, forecast: (s, h) => new Array(h).fill(s.reduce((a, b) => a + b, 0) / s.length) })
+    const mean = fakeSpec({ name: 'level-smoothing', complexity: 1, forecast: (s, h) => new Array(h).fill(s.reduce((a, b) => a + b, 0) / s.length) })
     const r = forecastSeriesWith(
       base,
-      withFakes(mean, fakeConstant('holt', 108, 1), fakeConstant('theta', 107, 1), fakeConstant('naive', 109, 1)),
+      withFakes(mean, fakeConstant('trend-smoothing', 108, 1), fakeConstant('theta', 107, 1), fakeConstant('last-value', 109, 1)),
     )
-    // ses is fourth on the holdout: not refitted, so it cannot win on the criterion.
-    expect(r.leaderboard[3].model).toBe('ses')
-    expect(r.model).not.toBe('ses')
+    // ses is fourth on the holdoutPeriods: not refitted, so it cannot win on the criterion.
+    expect(r.candidates[3].model).toBe('level-smoothing')
+    expect(r.model).not.toBe('level-smoothing')
   })
 })

@@ -29,7 +29,7 @@ function errorOf(f: () => unknown): EngineInputError {
 
 function expectFinite(fit: ModelFit, horizon: number): void {
   fit.fitted.forEach((v, i) => {
-    if (!(fit.model === 'ses' && i === 0)) expect(Number.isFinite(v)).toBe(true)
+    if (!(fit.model === 'level-smoothing' && i === 0)) expect(Number.isFinite(v)).toBe(true)
   })
   for (const v of fit.forecast(horizon)) expect(Number.isFinite(v)).toBe(true)
   for (const v of fit.forecastVariance?.(horizon) ?? []) expect(Number.isFinite(v) && v >= 0).toBe(true)
@@ -38,20 +38,20 @@ function expectFinite(fit: ModelFit, horizon: number): void {
 describe('smoothingModels: registry', () => {
   it('lists the nine smoothing models with their flags', () => {
     expect(smoothingModels.map((s) => s.name)).toEqual([
-      'ses', 'holt', 'damped-holt', 'holt-winters-additive', 'holt-winters-multiplicative',
-      'holt-winters-additive-damped', 'holt-winters-multiplicative-damped',
-      'seasonal-smoothing-additive', 'seasonal-smoothing-multiplicative',
+      'level-smoothing', 'trend-smoothing', 'damped-trend-smoothing', 'trend-smoothing-additive-season', 'trend-smoothing-multiplicative-season',
+      'damped-trend-smoothing-additive-season', 'damped-trend-smoothing-multiplicative-season',
+      'level-smoothing-additive-season', 'level-smoothing-multiplicative-season',
     ])
     expect(smoothingModels.filter((s) => s.requiresPositive).map((s) => s.name)).toEqual([
-      'holt-winters-multiplicative', 'holt-winters-multiplicative-damped', 'seasonal-smoothing-multiplicative',
+      'trend-smoothing-multiplicative-season', 'damped-trend-smoothing-multiplicative-season', 'level-smoothing-multiplicative-season',
     ])
     expect(smoothingModels.filter((s) => s.seasonal).length).toBe(6)
-    expect(byName('seasonal-smoothing-additive').family).toBe('seasonal')
-    expect(byName('seasonal-smoothing-additive').minLength(4)).toBe(8)
+    expect(byName('level-smoothing-additive-season').family).toBe('seasonal')
+    expect(byName('level-smoothing-additive-season').minLength(4)).toBe(8)
     // Two full seasons for seasonal models (common practice).
-    expect(byName('holt-winters-additive').minLength(12)).toBe(24)
-    expect(byName('holt').minLength(12)).toBe(3)
-    expect(byName('ses').minLength(12)).toBe(2)
+    expect(byName('trend-smoothing-additive-season').minLength(12)).toBe(24)
+    expect(byName('trend-smoothing').minLength(12)).toBe(3)
+    expect(byName('level-smoothing').minLength(12)).toBe(2)
   })
 })
 
@@ -60,11 +60,11 @@ describe('smoothingModels: special cases', () => {
     for (const s of smoothingModels) expect(errorOf(() => s.fit([], quarterly)).code).toBe('empty-series')
   })
   it('rejects short input with one message form', () => {
-    const e = errorOf(() => byName('holt-winters-additive').fit(Array(23).fill(5), { seasonLength: 12 }))
+    const e = errorOf(() => byName('trend-smoothing-additive-season').fit(Array(23).fill(5), { seasonLength: 12 }))
     expect(e.code).toBe('series-too-short')
-    expect(e.message).toBe('holtWinters requires at least 24 data points')
-    expect(errorOf(() => byName('holt').fit([1, 2], quarterly)).message).toBe('holt requires at least 3 data points')
-    expect(errorOf(() => byName('ses').fit([1], quarterly)).message).toBe('simpleSmoothing requires at least 2 data points')
+    expect(e.message).toBe('trend-smoothing-additive-season needs 24 periods, has 23')
+    expect(errorOf(() => byName('trend-smoothing').fit([1, 2], quarterly)).message).toBe('trend-smoothing needs 3 periods, has 2')
+    expect(errorOf(() => byName('level-smoothing').fit([1], quarterly)).message).toBe('level-smoothing needs 2 periods, has 1')
   })
   it('rejects NaN and Infinity with the offending index', () => {
     for (const s of smoothingModels) {
@@ -72,20 +72,20 @@ describe('smoothingModels: special cases', () => {
       y[5] = NaN
       const e = errorOf(() => s.fit(y, quarterly))
       expect(e.code).toBe('non-finite-value')
-      expect(e.field).toBe('values[5]')
+      expect(e.field).toBe('demand[5]')
     }
   })
   it('multiplicative models reject zero and negative values', () => {
-    for (const name of ['holt-winters-multiplicative', 'holt-winters-multiplicative-damped', 'seasonal-smoothing-multiplicative']) {
+    for (const name of ['trend-smoothing-multiplicative-season', 'damped-trend-smoothing-multiplicative-season', 'level-smoothing-multiplicative-season']) {
       const y = Array.from({ length: 12 }, (_, i) => 10 + i)
       y[3] = 0
       expect(errorOf(() => byName(name).fit(y, quarterly)).code).toBe('not-positive')
       y[3] = -2
-      expect(errorOf(() => byName(name).fit(y, quarterly)).field).toBe('values[3]')
+      expect(errorOf(() => byName(name).fit(y, quarterly)).field).toBe('demand[3]')
     }
   })
   it('seasonal models need a season length of at least 2', () => {
-    expect(errorOf(() => byName('holt-winters-additive').fit(Array(30).fill(1), { seasonLength: 1 })).code).toBe('invalid-option')
+    expect(errorOf(() => byName('trend-smoothing-additive-season').fit(Array(30).fill(1), { seasonLength: 1 })).code).toBe('invalid-option')
   })
   // Hand-checkable: a flat series forecasts its level, with zero error variance.
   it('a constant series forecasts the constant', () => {
@@ -128,7 +128,7 @@ describe('smoothingModels: special cases', () => {
   // that made every multiplicative fit non-finite; the fitter now retries from a flat trend.
   it('multiplicative models survive an outlier at the start', () => {
     const y = [1054, 96, 96, 99, 100, 99, 104, 96, 104, 96, 103, 101, 101, 870, 98, 99, 104, 105, 105, 100]
-    for (const name of ['holt-winters-multiplicative', 'holt-winters-multiplicative-damped']) {
+    for (const name of ['trend-smoothing-multiplicative-season', 'damped-trend-smoothing-multiplicative-season']) {
       expectFinite(byName(name).fit(y, { seasonLength: 2 }), 4)
     }
   })
@@ -143,8 +143,8 @@ describe('smoothingModels: special cases', () => {
   })
   it('multiplicative models leave intervals to the caller (no analytical variance)', () => {
     const y = noise(24, 5).map((e) => 50 + 5 * e)
-    expect(byName('holt-winters-multiplicative').fit(y, quarterly).forecastVariance).toBeUndefined()
-    expect(byName('holt-winters-additive').fit(y, quarterly).forecastVariance).toBeDefined()
+    expect(byName('trend-smoothing-multiplicative-season').fit(y, quarterly).forecastVariance).toBeUndefined()
+    expect(byName('trend-smoothing-additive-season').fit(y, quarterly).forecastVariance).toBeDefined()
   })
 })
 
@@ -153,7 +153,7 @@ describe('smoothingModels: hand-checkable cases', () => {
   // in-sample error and extends the line.
   it('Holt forecasts a straight line exactly', () => {
     const y = Array.from({ length: 30 }, (_, t) => 5 + 3 * t)
-    const fit = byName('holt').fit(y, quarterly)
+    const fit = byName('trend-smoothing').fit(y, quarterly)
     fit.forecast(4).forEach((v, i) => expect(approxEqual(v, 5 + 3 * (30 + i), 1e-9)).toBe(true))
     fit.fitted.forEach((v, t) => expect(approxEqual(v, y[t], 1e-9)).toBe(true))
   })
@@ -162,7 +162,7 @@ describe('smoothingModels: hand-checkable cases', () => {
   it('additive Holt-Winters continues a line plus a fixed seasonal pattern', () => {
     const pattern = [6, -2, -5, 1]
     const y = Array.from({ length: 32 }, (_, t) => 100 + 0.5 * t + pattern[t % 4])
-    const fit = byName('holt-winters-additive').fit(y, quarterly)
+    const fit = byName('trend-smoothing-additive-season').fit(y, quarterly)
     fit.forecast(8).forEach((v, i) => {
       const t = 32 + i
       expect(approxEqual(v, 100 + 0.5 * t + pattern[t % 4], 1e-9)).toBe(true)
@@ -172,28 +172,28 @@ describe('smoothingModels: hand-checkable cases', () => {
   it('multiplicative Holt-Winters continues a flat level times a fixed pattern', () => {
     const pattern = [1.2, 0.9, 0.7, 1.2]
     const y = Array.from({ length: 24 }, (_, t) => 80 * pattern[t % 4])
-    const fit = byName('holt-winters-multiplicative').fit(y, quarterly)
+    const fit = byName('trend-smoothing-multiplicative-season').fit(y, quarterly)
     fit.forecast(8).forEach((v, i) => expect(approxEqual(v, 80 * pattern[(24 + i) % 4], 1e-9)).toBe(true))
   })
   it('SES on a random walk chooses a large alpha and forecasts near the last value', () => {
     let level = 100
     const y = noise(80, 19).map((e) => (level += 10 * e))
-    const fit = byName('ses').fit(y, quarterly)
-    expect(fit.params.alpha as number).toBeGreaterThan(0.8)
+    const fit = byName('level-smoothing').fit(y, quarterly)
+    expect(fit.params.levelWeight as number).toBeGreaterThan(0.8)
     expect(Math.abs(fit.forecast(1)[0] - y[79])).toBeLessThan(2)
   })
   // sigma^2 = SSE / (n - k) (HKOS 2008, ch. 6), k = alpha + initial level for SES; the first
   // point seeds the level, so n counts the remaining points.
   it('SES one-step variance is SSE / (n - 1 - 2)', () => {
     const y = noise(30, 23).map((e) => 10 + e)
-    const fit = byName('ses').fit(y, quarterly)
+    const fit = byName('level-smoothing').fit(y, quarterly)
     let sse = 0
     for (let t = 1; t < y.length; t++) sse += (y[t] - fit.fitted[t]) ** 2
     expect(approxEqual(fit.forecastVariance!(1)[0], sse / (29 - 2), 1e-12)).toBe(true)
   })
   it('starting from given parameters (refit) lands on the same optimum', () => {
     const y = noise(48, 29).map((e, t) => 30 + 0.2 * t + 3 * Math.sin((2 * Math.PI * t) / 4) + 2 * e)
-    const spec = byName('holt-winters-additive')
+    const spec = byName('trend-smoothing-additive-season')
     const first = spec.fit(y, quarterly)
     const again = spec.fit(y, { ...quarterly, initialParams: first.params })
     const sse = (f: ModelFit) => f.fitted.reduce((a, v, t) => a + (y[t] - v) ** 2, 0)

@@ -42,7 +42,7 @@ describe('runSmoothing: special cases', () => {
     expect(() => runSimpleSmoothing([], { alpha: 0.5, initialLevel: 0 })).toThrow(EngineInputError)
   })
   it('rejects non-finite values and parameters outside [0, 1]', () => {
-    expect(() => runSimpleSmoothing([1, NaN, 3], { alpha: 0.5, initialLevel: 1 })).toThrow(/values\[1\]/)
+    expect(() => runSimpleSmoothing([1, NaN, 3], { alpha: 0.5, initialLevel: 1 })).toThrow(/demand\[1\]/)
     expect(() => runSimpleSmoothing([1, 2], { alpha: 1.5, initialLevel: 1 })).toThrow(/alpha/)
     expect(() => runHolt([1, 2], { alpha: 0.5, beta: 0.5, phi: 0, initial: { level: 1, trend: 0 } })).toThrow(/phi/)
   })

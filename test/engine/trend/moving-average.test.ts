@@ -6,7 +6,7 @@ import { expectEngineError, expectInputGuards, expectSane } from './spec-checks.
 describe('moving-average', () => {
   it('rejects empty, non-finite and too-short input', () => {
     expectInputGuards(movingAverage, 1)
-    expectEngineError(() => fitMovingAverage([1, 2, 3]), 'series-too-short', 'moving-average requires at least 4 data points')
+    expectEngineError(() => fitMovingAverage([1, 2, 3]), 'series-too-short', 'moving-average needs 4 periods, has 3')
     expectEngineError(() => fitMovingAverage([1, 2, 3, 4], 5), 'invalid-option')
   })
 

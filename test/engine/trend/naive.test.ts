@@ -3,13 +3,13 @@ import { fitNaive, trendModels } from '../../../src/engine/trend/index.js'
 import { naive } from '../../../src/engine/trend/naive.js'
 import { expectInputGuards, expectSane } from './spec-checks.js'
 
-describe('naive', () => {
+describe('last-value', () => {
   it('rejects empty and non-finite input', () => {
     expectInputGuards(naive, 1)
   })
 
   it('is listed in trendModels with complexity 0', () => {
-    expect(trendModels.map((s) => s.name)).toEqual(['naive', 'moving-average', 'linear-trend', 'theta'])
+    expect(trendModels.map((s) => s.name)).toEqual(['last-value', 'moving-average', 'linear-trend', 'theta'])
     expect(naive.complexity).toBe(0)
   })
 

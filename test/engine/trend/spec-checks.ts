@@ -56,7 +56,7 @@ export function expectInputGuards(spec: ModelSpec, seasonLength: number): void {
     expectEngineError(
       () => spec.fit(ok.slice(0, min - 1), ctx),
       'series-too-short',
-      `${spec.name} requires at least ${min} data points`,
+      `${spec.name} needs ${min} periods, has ${min - 1}`,
     )
   }
 }

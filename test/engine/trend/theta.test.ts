@@ -30,7 +30,7 @@ describe('theta', () => {
   it('adds half the slope per step on a straight line', () => {
     const line = Array.from({ length: 20 }, (_, i) => 5 + 2 * (i + 1))
     const fit = theta.fit(line, { seasonLength: 1 })
-    expect(fit.params.alpha).toBe(1)
+    expect(fit.params.levelWeight).toBe(1)
     expect(approxEqual(fit.params.drift as number, 1, 1e-12)).toBe(true)
     close(fit.forecast(3), [46, 47, 48], 1e-12)
   })
@@ -38,10 +38,10 @@ describe('theta', () => {
   it('adds the seasonal adjustment only when the lag-m autocorrelation is significant', () => {
     const air = sm.AirPassengers.series
     expect(isSeasonal(air, 12)).toBe(true)
-    expect(theta.fit(air, { seasonLength: 12 }).params.seasonalFactors).toHaveLength(12)
-    expect(theta.fit(sm.Nile.series, { seasonLength: 12 }).params.seasonalFactors).toBeUndefined()
+    expect(theta.fit(air, { seasonLength: 12 }).params.seasonFactors).toHaveLength(12)
+    expect(theta.fit(sm.Nile.series, { seasonLength: 12 }).params.seasonFactors).toBeUndefined()
     // fewer than two full seasons: no adjustment even on seasonal data
-    expect(theta.fit(air.slice(0, 23), { seasonLength: 12 }).params.seasonalFactors).toBeUndefined()
+    expect(theta.fit(air.slice(0, 23), { seasonLength: 12 }).params.seasonFactors).toBeUndefined()
   })
 
   // Source: statsmodels 0.13.5 ThetaModel (fixture from scripts/fixtures/statsmodels_theta.py).
@@ -59,8 +59,8 @@ describe('theta', () => {
       const fit = fitTheta(ref.series, seasonLength, { alpha: ref.alpha })
       expect(approxEqual(fit.params.slope as number, ref.b0, 1e-12)).toBe(true)
       close(fit.forecast(sm.horizon), ref.forecast, 1e-12)
-      const multiplicative = Boolean(fit.params.seasonalFactors)
-      const additive = Boolean(fit.params.seasonalTerms)
+      const multiplicative = Boolean(fit.params.seasonFactors)
+      const additive = Boolean(fit.params.seasonOffsets)
       expect(multiplicative || additive).toBe(ref.deseasonalized)
       if (ref.deseasonalized) expect(multiplicative ? 'mul' : 'add').toBe(ref.method)
     })
@@ -69,12 +69,12 @@ describe('theta', () => {
       const ref = sm[name]
       const fit = expectSane(fitTheta(ref.series, seasonLength), ref.series.length)
       const ours = theta.fit(ref.series, { seasonLength })
-      const alpha = ours.params.alpha as number
+      const alpha = ours.params.levelWeight as number
       // 1e-3: on the shifted series the optimum is at the upper bound; statsmodels stops
       // at 0.99986, we may reach 1 (measured differences 2e-5, 3e-6, 1.4e-4).
       expect(Math.abs(alpha - ref.alpha)).toBeLessThan(1e-3)
-      const factors = ours.params.seasonalFactors as number[] | undefined
-      const terms = ours.params.seasonalTerms as number[] | undefined
+      const factors = ours.params.seasonFactors as number[] | undefined
+      const terms = ours.params.seasonOffsets as number[] | undefined
       const adjusted = factors
         ? ref.series.map((v, t) => v / factors[t % seasonLength])
         : terms

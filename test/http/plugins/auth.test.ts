@@ -3,7 +3,7 @@ import type { FastifyInstance } from 'fastify'
 import { build } from '../../../src/http/app.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, KEY_HEATING, auth, testConfig } from '../gateway-double.js'
 
-const RUN = { horizon: 2, series: [{ sku: 'RAKE', values: [1, 2, 3] }] }
+const RUN = { horizon: 2, series: [{ sku: 'RAKE', demand: [1, 2, 3] }] }
 
 describe('API keys', () => {
   let app: FastifyInstance

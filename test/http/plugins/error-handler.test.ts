@@ -53,9 +53,9 @@ describe('problem responses for bad input (never a 500)', () => {
   })
 
   it('numbers that overflow to Infinity are rejected by field', async () => {
-    const res = await post('{"horizon": 1, "series": [{"sku": "A", "values": [1e400, 2]}]}')
+    const res = await post('{"horizon": 1, "series": [{"sku": "A", "demand": [1e400, 2]}]}')
     expect(res.statusCode).toBe(400)
-    expect(res.json().errors).toEqual([{ path: 'series[0].values[0]', message: 'Invalid input: expected number, received Infinity' }])
+    expect(res.json().errors).toEqual([{ path: 'series[0].demand[0]', message: 'Invalid input: expected number, received Infinity' }])
   })
 
   it('a body that is not JSON is 415', async () => {
@@ -74,7 +74,7 @@ describe('problem responses for bad input (never a 500)', () => {
   })
 
   it('a body over the limit is 413', async () => {
-    const big = JSON.stringify({ horizon: 3, series: [{ sku: 'X', values: Array.from({ length: 1000 }, (_, i) => i) }] })
+    const big = JSON.stringify({ horizon: 3, series: [{ sku: 'X', demand: Array.from({ length: 1000 }, (_, i) => i) }] })
     expect(big.length).toBeGreaterThan(2048)
     const res = await post(big)
     expect(res.statusCode).toBe(413)
@@ -96,11 +96,11 @@ describe('problem responses for bad input (never a 500)', () => {
 
   it('lists at most 100 field errors and says how many there were', async () => {
     const values = Array.from({ length: 150 }, () => 'x')
-    const res = await post(JSON.stringify({ horizon: 1, series: [{ sku: 'X', values }] }))
+    const res = await post(JSON.stringify({ horizon: 1, series: [{ sku: 'X', demand: values }] }))
     expect(res.statusCode).toBe(400)
     const body = res.json()
     expect(body.errors).toHaveLength(100)
-    expect(body.errors[99].path).toBe('series[0].values[99]')
+    expect(body.errors[99].path).toBe('series[0].demand[99]')
     expect(body.detail).toBe('The request body has 150 invalid fields; the first 100 are listed')
   })
 

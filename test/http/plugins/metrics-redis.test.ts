@@ -54,7 +54,7 @@ describe('GET /metrics with runs fitted by a worker', () => {
     expect((await app.inject({ method: 'DELETE', url: `/v1/runs/${cancelled.id}`, headers: auth })).statusCode).toBe(200)
 
     // Four good series and one the engine rejects, in three chunks of at most two.
-    const series = [...syntheticSeries(4, 36, 'RAKE'), { sku: 'GAP', values: [null, null, null] }]
+    const series = [...syntheticSeries(4, 36, 'RAKE'), { sku: 'GAP', demand: [null, null, null] }]
     const res = await app.inject({ method: 'POST', url: '/v1/runs', headers: auth, payload: { horizon: 3, frequency: 'month', series } })
     expect(res.statusCode).toBe(202)
     const runId = res.json().id

@@ -18,7 +18,7 @@ describe('GET /metrics', () => {
       method: 'POST',
       url: '/v1/forecast',
       headers: auth(KEY_GARDEN),
-      payload: { horizon: 2, series: [{ sku: 'A', values: [3, 4, 5, 6, 5, 4] }, { sku: 'B', values: [-1, 2] }] },
+      payload: { horizon: 2, series: [{ sku: 'A', demand: [3, 4, 5, 6, 5, 4] }, { sku: 'B', demand: [-1, 2] }] },
     })
     const res = await app.inject({ url: '/metrics' })
     expect(res.statusCode).toBe(200)

@@ -23,69 +23,71 @@ describe('POST /v1/forecast (real engine)', () => {
   it('forecasts a 36-point monthly seasonal series 12 periods ahead with 80/95 bounds', async () => {
     const res = await post({
       horizon: 12,
-      series: [{ sku: 'AIR-1949', values: AIR_PASSENGERS_1949_1951, start: '1949-01' }],
+      series: [{ sku: 'AIR-1949', demand: AIR_PASSENGERS_1949_1951, firstPeriod: '1949-01' }],
     })
     expect(res.statusCode).toBe(200)
     const { items } = res.json()
     expect(items).toHaveLength(1)
     const item = items[0]
     expect(item.sku).toBe('AIR-1949')
-    expect(item.error).toBeUndefined()
+    expect(item.failure).toBeUndefined()
+    expect(item.frequency).toBe('month')
     expect(item.forecast).toHaveLength(12)
     expect(item.forecast[0].period).toBe('1952-01')
     expect(item.forecast[11].period).toBe('1952-12')
-    expect(item.intervals.levels).toEqual([80, 95])
     for (const p of item.forecast) {
-      expect(Number.isFinite(p.value)).toBe(true)
-      expect(p.lower['95']).toBeLessThanOrEqual(p.lower['80'])
-      expect(p.lower['80']).toBeLessThanOrEqual(p.value)
-      expect(p.value).toBeLessThanOrEqual(p.upper['80'])
-      expect(p.upper['80']).toBeLessThanOrEqual(p.upper['95'])
+      expect(p.intervals.map((i: { level: number }) => i.level)).toEqual([80, 95])
+      const [i80, i95] = p.intervals
+      expect(Number.isFinite(p.demand)).toBe(true)
+      expect(i95.low).toBeLessThanOrEqual(i80.low)
+      expect(i80.low).toBeLessThanOrEqual(p.demand)
+      expect(p.demand).toBeLessThanOrEqual(i80.high)
+      expect(i80.high).toBeLessThanOrEqual(i95.high)
     }
     // Summer peak of the data (July/August) stays above the November trough in the forecast.
-    expect(item.forecast[6].value).toBeGreaterThan(item.forecast[10].value)
-    expect(item.leaderboard.length).toBeGreaterThan(1)
+    expect(item.forecast[6].demand).toBeGreaterThan(item.forecast[10].demand)
+    expect(item.candidates.length).toBeGreaterThan(1)
   })
 
-  it('returns a series the engine rejects as an item with error, the others forecast', async () => {
+  it('returns a series the engine rejects as an item with failure, the others forecast', async () => {
     const res = await post({
       horizon: 3,
       series: [
-        { sku: 'OK', values: AIR_PASSENGERS_1949_1951 },
-        { sku: 'NEG', values: [5, -2, 7, 4] },
+        { sku: 'OK', demand: AIR_PASSENGERS_1949_1951 },
+        { sku: 'NEG', demand: [5, -2, 7, 4] },
       ],
     })
     expect(res.statusCode).toBe(200)
     const [ok, bad] = res.json().items
     expect(ok.forecast).toHaveLength(3)
     expect(bad.sku).toBe('NEG')
-    expect(bad.error.code).toBe('negative-value')
-    expect(typeof bad.error.message).toBe('string')
+    expect(bad.failure.code).toBe('negative-value')
+    expect(typeof bad.failure.message).toBe('string')
   })
 
   it('adds replenishment figures when asked, and checks the lead time against the horizon like a run', async () => {
     const res = await post({
       horizon: 6,
-      replenishment: { leadTime: 2, serviceLevel: 0.95 },
-      series: [{ sku: 'AIR-1949', values: AIR_PASSENGERS_1949_1951 }],
+      replenishment: { leadTimePeriods: 2, serviceLevel: 0.95 },
+      series: [{ sku: 'AIR-1949', demand: AIR_PASSENGERS_1949_1951 }],
     })
     expect(res.statusCode).toBe(200)
     const item = res.json().items[0]
-    expect(item.replenishment.leadTime).toBe(2)
+    expect(item.replenishment.leadTimePeriods).toBe(2)
     // Lead-time demand is the sum of the first two point forecasts (its documented definition).
-    expect(item.replenishment.leadTimeDemand).toBeCloseTo(item.forecast[0].value + item.forecast[1].value, 6)
+    expect(item.replenishment.leadTimeDemand).toBeCloseTo(item.forecast[0].demand + item.forecast[1].demand, 6)
 
     const tooLong = await post({
       horizon: 3,
-      replenishment: { leadTime: 4, serviceLevel: 0.95 },
-      series: [{ sku: 'A', values: [1, 2, 3, 4] }],
+      replenishment: { leadTimePeriods: 4, serviceLevel: 0.95 },
+      series: [{ sku: 'A', demand: [1, 2, 3, 4] }],
     })
     expect(tooLong.statusCode).toBe(400)
-    expect(tooLong.json().errors[0].path).toBe('replenishment.leadTime')
+    expect(tooLong.json().errors[0].path).toBe('replenishment.leadTimePeriods')
   })
 
   it('refuses a callbackUrl: only runs call back', async () => {
-    const res = await post({ horizon: 1, callbackUrl: 'https://erp.example/hook', series: [{ sku: 'A', values: [1, 2] }] })
+    const res = await post({ horizon: 1, callbackUrl: 'https://erp.example/hook', series: [{ sku: 'A', demand: [1, 2] }] })
     expect(res.statusCode).toBe(400)
     expect(res.json().errors).toEqual([
       { path: 'callbackUrl', message: 'only runs call back; POST /v1/forecast answers in the response' },
@@ -93,7 +95,7 @@ describe('POST /v1/forecast (real engine)', () => {
   })
 
   it('answers 413 too-many-series above the synchronous limit', async () => {
-    const series = Array.from({ length: 4 }, (_, i) => ({ sku: `S${i}`, values: [1, 2, 3] }))
+    const series = Array.from({ length: 4 }, (_, i) => ({ sku: `S${i}`, demand: [1, 2, 3] }))
     const res = await post({ horizon: 1, series })
     expect(res.statusCode).toBe(413)
     expect(res.headers['content-type']).toBe('application/problem+json; charset=utf-8')
@@ -110,8 +112,8 @@ describe('POST /v1/forecast (real engine)', () => {
   it('names every invalid field in a 400', async () => {
     const res = await post({
       horizon: 0,
-      intervals: [80, 120],
-      series: [{ sku: 'A', values: [1, 2] }, { sku: '', values: [1, 'two', null] }],
+      intervalLevels: [80, 120],
+      series: [{ sku: 'A', demand: [1, 2] }, { sku: '', demand: [1, 'two', null] }],
     })
     expect(res.statusCode).toBe(400)
     expect(res.json()).toMatchInlineSnapshot(`
@@ -124,7 +126,7 @@ describe('POST /v1/forecast (real engine)', () => {
           },
           {
             "message": "Too big: expected number to be <100",
-            "path": "intervals[1]",
+            "path": "intervalLevels[1]",
           },
           {
             "message": "Too small: expected string to have >=1 characters",
@@ -136,7 +138,7 @@ describe('POST /v1/forecast (real engine)', () => {
           },
           {
             "message": "Invalid input: expected number, received string",
-            "path": "series[1].values[1]",
+            "path": "series[1].demand[1]",
           },
         ],
         "status": 400,

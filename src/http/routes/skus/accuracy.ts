@@ -8,13 +8,13 @@ import { COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
 export const AccuracySummarySchema = z
   .object({
     sku: z.string(),
-    count: z.number().int().describe('Forecast periods scored against their actuals'),
+    scoredPeriods: z.number().int().min(0).describe('Forecast periods scored against their actual demand'),
     mae: z.number().nullable().describe('Mean absolute error'),
-    bias: z.number().nullable().describe('Mean error, actual − forecast: positive means demand above the forecast'),
+    bias: z.number().nullable().describe('Mean deviation, actual − forecast demand: positive means demand above the forecast'),
     mape: z.number().nullable().describe('Mean absolute percentage error over non-zero actuals; null if none'),
-    trackingSignal: z.number().nullable().describe('Sum of errors / MAE'),
-    flagged: z.boolean().describe('|trackingSignal| > limit with at least 4 periods scored'),
-    limit: z.number().describe('Tracking-signal limit (4, common practice)'),
+    trackingSignal: z.number().nullable().describe('Sum of deviations / MAE'),
+    flagged: z.boolean().describe('|trackingSignal| > trackingLimit with at least 4 periods scored'),
+    trackingLimit: z.number().describe('Tracking-signal limit (4, common practice)'),
     updatedAt: z.string(),
   })
   .meta({ id: 'AccuracySummary' })
@@ -24,9 +24,9 @@ const SkuAccuracy = AccuracySummarySchema.extend({
     z.object({
       period: z.string(),
       runId: z.string().describe('Run whose forecast was scored'),
-      forecast: z.number(),
-      actual: z.number(),
-      error: z.number().describe('actual − forecast'),
+      forecastDemand: z.number().describe('The point forecast the period was scored against'),
+      actualDemand: z.number(),
+      deviation: z.number().describe('actualDemand − forecastDemand'),
     }),
   ),
 })

@@ -28,7 +28,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     async (request) => {
       const { sku } = request.params
       const latest = await app.gateway.latestForecast(request.tenant, sku)
-      if (!latest || 'error' in latest.item) throw new ProblemError('not-found', `No forecast for SKU ${sku}`)
+      if (!latest || 'failure' in latest.item) throw new ProblemError('not-found', `No forecast for SKU ${sku}`)
       return { ...latest.item, sku, runId: latest.runId, producedAt: latest.producedAt } as SkuForecastBody
     },
   )

@@ -13,10 +13,10 @@ export function toHistoryResource(h: StoredHistory) {
   return {
     sku: h.sku,
     frequency: h.frequency,
-    start: h.start,
-    lastPeriod: formatPeriod(parsePeriod(h.start, h.frequency) + h.values.length - 1, h.frequency),
-    length: h.values.length,
-    values: [...h.values],
+    firstPeriod: h.firstPeriod,
+    lastPeriod: formatPeriod(parsePeriod(h.firstPeriod, h.frequency) + h.demand.length - 1, h.frequency),
+    periodCount: h.demand.length,
+    demand: [...h.demand],
     tags: [...h.tags],
     updatedAt: h.updatedAt,
   }
@@ -31,7 +31,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         tags: ['history'],
         summary: "Replace a SKU's stored demand history",
         description:
-          'Stores the whole history (values and tags) of one SKU, replacing what was stored. 201 when the SKU ' +
+          'Stores the whole history (demand and tags) of one SKU, replacing what was stored. 201 when the SKU ' +
           'had no history, 200 otherwise. Runs can then forecast it with { "skus": [...] }, { "tags": [...] } or { "all": true }.',
         params: SkuParams,
         body: HistoryBody,
@@ -41,18 +41,18 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     async (request, reply) => {
       const store = requireHistories(app)
       const { sku } = request.params
-      const { frequency, start, values, tags } = request.body
+      const { frequency, firstPeriod, demand, tags } = request.body
       try {
-        parsePeriod(start, frequency)
+        parsePeriod(firstPeriod, frequency)
       } catch (err) {
-        throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'start', message: (err as Error).message }])
+        throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'firstPeriod', message: (err as Error).message }])
       }
       const normalised = normaliseTags(tags ?? [])
       if ('reason' in normalised) {
         throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'tags', message: normalised.reason }])
       }
-      const { outcome, history } = await store.put(request.tenant, sku, { frequency, start, values, tags: normalised.tags })
-      request.log.info({ sku, length: values.length, outcome }, 'history stored')
+      const { outcome, history } = await store.put(request.tenant, sku, { frequency, firstPeriod, demand, tags: normalised.tags })
+      request.log.info({ sku, periodCount: demand.length, outcome }, 'history stored')
       reply.code(outcome === 'created' ? 201 : 200)
       return toHistoryResource(history)
     },

@@ -7,8 +7,8 @@ const REQUEST = {
   horizon: 6,
   frequency: 'month',
   series: [
-    { sku: 'HOSE-25M', values: [4, 6, 5, 7, 8, 6] },
-    { sku: 'GLOVE-L', values: [12, 10, 11, 13, 12, 14], frequency: 'week' },
+    { sku: 'HOSE-25M', demand: [4, 6, 5, 7, 8, 6] },
+    { sku: 'GLOVE-L', demand: [12, 10, 11, 13, 12, 14], frequency: 'week' },
   ],
 }
 
@@ -31,16 +31,16 @@ describe('/v1/runs', () => {
     expect(run.settings).toEqual({
       horizon: 6,
       frequency: 'month',
-      metric: 'mase',
-      intervals: [80, 95],
-      fillPolicy: 'zero',
-      allowNegative: false,
+      rankBy: 'mase',
+      intervalLevels: [80, 95],
+      missingPeriods: 'zero',
+      allowNegativeDemand: false,
       keepLeadingZeros: false,
-      origins: 1,
+      holdoutOrigins: 1,
     })
     const sent = gateway.submitted.at(-1)!
     expect(sent.tenant).toBe('garden')
-    expect(sent.request.series[1]).toEqual({ sku: 'GLOVE-L', values: [12, 10, 11, 13, 12, 14], frequency: 'week' })
+    expect(sent.request.series[1]).toEqual({ sku: 'GLOVE-L', demand: [12, 10, 11, 13, 12, 14], frequency: 'week' })
   })
 
   it('GET returns the run to its tenant and 404 to another tenant', async () => {

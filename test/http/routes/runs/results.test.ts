@@ -15,7 +15,7 @@ describe('GET /v1/runs/{runId}/results', () => {
     gateway.complete(runId, [
       forecastItemFixture('A'),
       forecastItemFixture('B'),
-      { sku: 'C', error: { code: 'series-too-short', message: 'holt requires at least 4 data points' } },
+      { sku: 'C', frequency: 'month', failure: { code: 'series-too-short', message: 'holt requires at least 4 data points' } },
     ])
   })
   afterAll(() => app.close())
@@ -29,7 +29,7 @@ describe('GET /v1/runs/{runId}/results', () => {
     expect(p1.items.map((i: { sku: string }) => i.sku)).toEqual(['A', 'B'])
     expect(p1.nextCursor).toBe('o2')
     const p2 = (await get(`?limit=2&cursor=${p1.nextCursor}`)).json()
-    expect(p2.items).toEqual([{ sku: 'C', error: { code: 'series-too-short', message: 'holt requires at least 4 data points' } }])
+    expect(p2.items).toEqual([{ sku: 'C', frequency: 'month', failure: { code: 'series-too-short', message: 'holt requires at least 4 data points' } }])
     expect(p2.nextCursor).toBeNull()
   })
 
@@ -85,11 +85,11 @@ function minimalSettings() {
   return {
     horizon: 3,
     frequency: 'month' as const,
-    metric: 'mase' as const,
-    intervals: [80, 95],
-    fillPolicy: 'zero' as const,
-    allowNegative: false,
+    rankBy: 'mase' as const,
+    intervalLevels: [80, 95],
+    missingPeriods: 'zero' as const,
+    allowNegativeDemand: false,
     keepLeadingZeros: false,
-    origins: 1,
+    holdoutOrigins: 1,
   }
 }

@@ -12,16 +12,16 @@ describe('GET /v1/skus/{sku}/forecast', () => {
     const run = await gateway.submit('garden', {
       horizon: 1,
       frequency: 'month',
-      metric: 'mase',
-      intervals: [80, 95],
-      fillPolicy: 'zero',
-      allowNegative: false,
+      rankBy: 'mase',
+      intervalLevels: [80, 95],
+      missingPeriods: 'zero',
+      allowNegativeDemand: false,
       keepLeadingZeros: false,
-      origins: 1,
+      holdoutOrigins: 1,
       series: [],
     })
     runId = run.id
-    gateway.complete(runId, [forecastItemFixture('SEED/TOMATO 50G'), { sku: 'BAD', error: { code: 'empty-series', message: 'x' } }])
+    gateway.complete(runId, [forecastItemFixture('SEED/TOMATO 50G'), { sku: 'BAD', frequency: 'month', failure: { code: 'empty-series', message: 'x' } }])
   })
   afterAll(() => app.close())
 

@@ -4,16 +4,16 @@ import { MAX_ABS_VALUE } from '../schemas/run.js'
 const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/
 
 /**
- * Parse a quantity cell. The decimal separator is `.`; thousands separators are refused.
+ * Parse a demand cell. The decimal separator is `.`; thousands separators are refused.
  * @returns the finite number, or why the cell is refused
  */
-export function parseQuantity(cell: string): { value: number } | { reason: string } {
+export function parseDemand(cell: string): { value: number } | { reason: string } {
   const text = cell.trim()
-  if (text === '') return { reason: 'quantity is empty' }
-  if (!DECIMAL.test(text)) return { reason: `quantity ${JSON.stringify(cell.slice(0, 40))} is not a number (use . as decimal point)` }
+  if (text === '') return { reason: 'demand is empty' }
+  if (!DECIMAL.test(text)) return { reason: `demand ${JSON.stringify(cell.slice(0, 40))} is not a number (use . as decimal point)` }
   const value = Number(text)
   if (!Number.isFinite(value) || Math.abs(value) > MAX_ABS_VALUE) {
-    return { reason: `quantity ${JSON.stringify(cell.slice(0, 40))} is out of range (at most 1e15 in size)` }
+    return { reason: `demand ${JSON.stringify(cell.slice(0, 40))} is out of range (at most 1e15 in size)` }
   }
   return { value }
 }

@@ -64,12 +64,12 @@ export const ConfigSchema = z.object({
   RATE_LIMIT_MAX: intFromEnv(600, 1, 1_000_000),
   RATE_LIMIT_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
-  /** Webhook delivery: attempts in all, first retry delay (doubling after), per-request timeout. */
-  WEBHOOK_ATTEMPTS: intFromEnv(5, 1, 20),
-  WEBHOOK_BACKOFF_MS: intFromEnv(30_000, 10, 3_600_000),
-  WEBHOOK_TIMEOUT_MS: intFromEnv(10_000, 100, 120_000),
-  /** Let webhooks reach loopback and private addresses (off: SSRF protection). */
-  WEBHOOK_ALLOW_PRIVATE_NETWORKS: boolFromEnv(false),
+  /** Callback delivery: attempts in all, first retry delay (doubling after), per-request timeout. */
+  CALLBACK_ATTEMPTS: intFromEnv(5, 1, 20),
+  CALLBACK_BACKOFF_MS: intFromEnv(30_000, 10, 3_600_000),
+  CALLBACK_TIMEOUT_MS: intFromEnv(10_000, 100, 120_000),
+  /** Let callbacks reach loopback and private addresses (off: SSRF protection). */
+  CALLBACK_ALLOW_PRIVATE_NETWORKS: boolFromEnv(false),
   /** Closest two firings of one schedule may be, in seconds. */
   SCHEDULE_MIN_INTERVAL_SECONDS: intFromEnv(300, 1, 86_400),
 })
@@ -120,14 +120,14 @@ export interface Config {
   readonly rateLimitMax: number
   readonly rateLimitWindowMs: number
   readonly logLevel: z.infer<typeof ConfigSchema>['LOG_LEVEL']
-  /** Webhook delivery attempts; default 5 when absent. */
-  readonly webhookAttempts?: number
-  /** Delay before the first webhook retry, doubling after; default 30000 when absent. */
-  readonly webhookBackoffMs?: number
-  /** Timeout of one webhook request; default 10000 when absent. */
-  readonly webhookTimeoutMs?: number
-  /** Webhooks may call loopback and private addresses; default false when absent. */
-  readonly webhookAllowPrivateNetworks?: boolean
+  /** Callback delivery attempts; default 5 when absent. */
+  readonly callbackAttempts?: number
+  /** Delay before the first callback retry, doubling after; default 30000 when absent. */
+  readonly callbackBackoffMs?: number
+  /** Timeout of one callback request; default 10000 when absent. */
+  readonly callbackTimeoutMs?: number
+  /** Callbacks may call loopback and private addresses; default false when absent. */
+  readonly callbackAllowPrivateNetworks?: boolean
   /** Closest two firings of a schedule may be; default 300 when absent. */
   readonly scheduleMinIntervalSeconds?: number
 }
@@ -224,10 +224,10 @@ export function loadConfig(
     rateLimitMax: e.RATE_LIMIT_MAX,
     rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,
     logLevel: e.LOG_LEVEL,
-    webhookAttempts: e.WEBHOOK_ATTEMPTS,
-    webhookBackoffMs: e.WEBHOOK_BACKOFF_MS,
-    webhookTimeoutMs: e.WEBHOOK_TIMEOUT_MS,
-    webhookAllowPrivateNetworks: e.WEBHOOK_ALLOW_PRIVATE_NETWORKS,
+    callbackAttempts: e.CALLBACK_ATTEMPTS,
+    callbackBackoffMs: e.CALLBACK_BACKOFF_MS,
+    callbackTimeoutMs: e.CALLBACK_TIMEOUT_MS,
+    callbackAllowPrivateNetworks: e.CALLBACK_ALLOW_PRIVATE_NETWORKS,
     scheduleMinIntervalSeconds: e.SCHEDULE_MIN_INTERVAL_SECONDS,
   }
 }

@@ -1,3 +1,5 @@
+import type { $ZodIssue } from 'zod/v4/core'
+
 /**
  * Catalogue of every problem type the API answers with (RFC 9457 problem
  * details, `application/problem+json`). docs/problems.md lists the same types;
@@ -86,4 +88,18 @@ export function formatFieldPath(path: readonly PropertyKey[], root: string): str
     else out += out === '' ? String(seg) : `.${String(seg)}`
   }
   return out === '' ? root : out
+}
+
+/**
+ * Zod issues as one entry per offending field. An unknown field of a strict object
+ * is named by its own path (`series[2].values`), one entry per field.
+ */
+export function fieldIssues(
+  issues: readonly $ZodIssue[],
+): { readonly path: readonly PropertyKey[]; readonly message: string; readonly code: string }[] {
+  return issues.flatMap((issue): { path: PropertyKey[]; message: string; code: string }[] =>
+    issue.code === 'unrecognized_keys'
+      ? issue.keys.map((key) => ({ path: [...issue.path, key], message: 'is not a field of this request', code: issue.code }))
+      : [{ path: issue.path, message: issue.message, code: issue.code }],
+  )
 }

@@ -9,7 +9,7 @@ import { assertRedisReachable, gatewayConnection } from './queue/connection.js'
 import { createRunGateway } from './queue/gateway.js'
 import { startWorkers, type RunWorkers } from './queue/worker.js'
 import { AccuracyTrackingHistoryStore } from './storage/accuracy-hook.js'
-import { createErpServices } from './webhooks/services.js'
+import { createErpServices } from './callbacks/services.js'
 import { IdempotencyStore } from './storage/idempotency-store.js'
 
 /**

@@ -11,9 +11,10 @@ import {
 
 const docs = readFileSync(new URL('../docs/problems.md', import.meta.url), 'utf8')
 
-/** Rows of the table in docs/problems.md: slug, status, title. */
+/** Rows of the problem-type table in docs/problems.md (its first section): slug, status, title. */
 function documentedTypes(): { slug: string; status: number; title: string }[] {
   return docs
+    .slice(0, docs.indexOf('\n## Failure codes'))
     .split('\n')
     .filter((line) => line.startsWith('| `'))
     .map((line) => {

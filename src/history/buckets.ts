@@ -1,4 +1,4 @@
-import { parsePeriod, type Frequency } from '../engine/index.js'
+import { formatPeriod, parsePeriod, type Frequency } from '../engine/index.js'
 
 /**
  * Place a period cell of an upload into a bucket of the target frequency.
@@ -65,4 +65,17 @@ function convert(ordinal: number, from: Frequency, to: Frequency): number | null
   if (from === 'month' && to === 'year') return Math.floor(ordinal / 12)
   if (from === 'quarter' && to === 'year') return Math.floor(ordinal / 4)
   return null
+}
+
+const CALENDAR_DATE = /^\d{4}-\d{2}-\d{2}$/
+
+/**
+ * The first-period label to store and forecast with: for weekly demand a
+ * calendar date (2024-03-05) means its ISO week (2024-W10); any other label is
+ * kept as given (the engine checks it against the frequency).
+ */
+export function firstPeriodLabel(label: string, frequency: Frequency): string {
+  if (frequency !== 'week' || !CALENDAR_DATE.test(label)) return label
+  const bucket = bucketOf(label, 'week')
+  return 'ordinal' in bucket ? formatPeriod(bucket.ordinal, 'week') : label
 }

@@ -1,7 +1,9 @@
 import { z } from 'zod'
 import { FREQUENCIES, parsePeriod, type Frequency } from '../engine/index.js'
 import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from '../schemas/run.js'
+import { firstPeriodLabel } from './buckets.js'
 import { normaliseTags } from './tags.js'
+import { fieldIssues, formatFieldPath } from '../errors.js'
 import type { IncomingHistory } from './types.js'
 
 /** One whole series of a JSON or NDJSON upload: `{ sku, frequency?, firstPeriod, demand, tags? }`. */
@@ -24,14 +26,14 @@ export function parseUploadSeries(
   const parsed = UploadSeries.safeParse(value)
   const sku = typeof (value as { sku?: unknown })?.sku === 'string' ? (value as { sku: string }).sku : undefined
   if (!parsed.success) {
-    const issue = parsed.error.issues[0]!
-    return { ...(sku === undefined ? {} : { sku }), column: fieldPath(issue.path), reason: issue.message }
+    const issue = fieldIssues(parsed.error.issues)[0]!
+    return { ...(sku === undefined ? {} : { sku }), column: formatFieldPath(issue.path, '(item)'), reason: issue.message }
   }
   const s = parsed.data
   const frequency = s.frequency ?? defaultFrequency
   let startOrdinal: number
   try {
-    startOrdinal = parsePeriod(s.firstPeriod, frequency)
+    startOrdinal = parsePeriod(firstPeriodLabel(s.firstPeriod, frequency), frequency)
   } catch (err) {
     return { sku: s.sku, column: 'firstPeriod', reason: (err as Error).message }
   }
@@ -42,11 +44,4 @@ export function parseUploadSeries(
     tags = t.tags
   }
   return { sku: s.sku, incoming: { frequency, startOrdinal, demand: s.demand, ...(tags === undefined ? {} : { tags }) } }
-}
-
-/** `demand[3]`, `tags[0]`; the root is `(item)`. */
-export function fieldPath(path: readonly PropertyKey[]): string {
-  let out = ''
-  for (const seg of path) out += typeof seg === 'number' ? `[${seg}]` : out === '' ? String(seg) : `.${String(seg)}`
-  return out === '' ? '(item)' : out
 }

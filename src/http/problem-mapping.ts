@@ -1,5 +1,6 @@
 import type { FastifyError } from 'fastify'
 import { formatFieldPath, ProblemError, type FieldError } from '../errors.js'
+import { CursorError } from '../storage/paging.js'
 import { RunInputError } from '../storage/types.js'
 import { isFieldIssue } from './validation.js'
 
@@ -10,12 +11,13 @@ export const MAX_FIELD_ERRORS = 100
  * Turn anything a handler, hook or fastify itself threw into a ProblemError.
  * Client mistakes map to 4xx types; anything unrecognised is `internal`.
  */
-export function toProblem(err: unknown, ctx: { bodyLimitBytes: number }): ProblemError {
+export function toProblem(err: unknown, ctx: { bodyLimitBytes: number; bodyTypes?: readonly string[] }): ProblemError {
   if (err instanceof ProblemError) return err
   const e = err as Partial<FastifyError> & { validationContext?: string }
-  if (err instanceof RunInputError) {
+  if (err instanceof RunInputError || err instanceof CursorError) {
     return new ProblemError('validation-failed', err.message, [{ path: err.field, message: err.message }])
   }
+  const unsupported = () => new ProblemError('unsupported-media-type', `Send the body as ${listOf(ctx.bodyTypes ?? ['application/json'])}`)
   if (Array.isArray(e.validation)) return validationProblem(e.validation, e.validationContext ?? 'body')
   if (isStoreUnavailable(err)) {
     return new ProblemError('not-ready', 'The run store is not reachable; retry shortly', undefined, { 'retry-after': '5' })
@@ -28,12 +30,12 @@ export function toProblem(err: unknown, ctx: { bodyLimitBytes: number }): Proble
     case 'FST_ERR_CTP_BODY_TOO_LARGE':
       return new ProblemError('payload-too-large', `The request body is larger than ${ctx.bodyLimitBytes} bytes`)
     case 'FST_ERR_CTP_INVALID_MEDIA_TYPE':
-      return new ProblemError('unsupported-media-type', 'Send the body as application/json')
+      return unsupported()
   }
   const status = typeof e.statusCode === 'number' ? e.statusCode : 500
   if (status === 404) return new ProblemError('not-found')
   if (status === 413) return new ProblemError('payload-too-large')
-  if (status === 415) return new ProblemError('unsupported-media-type', 'Send the body as application/json')
+  if (status === 415) return unsupported()
   if (status >= 400 && status < 500) {
     // Fastify's own client errors (bad content length, malformed header...): their messages are safe to show.
     // Any other error that happens to carry a 4xx status may hold internal detail: status only.
@@ -41,6 +43,11 @@ export function toProblem(err: unknown, ctx: { bodyLimitBytes: number }): Proble
     return new ProblemError('bad-request', own && typeof e.message === 'string' ? e.message : undefined)
   }
   return new ProblemError('internal')
+}
+
+/** `a`, `a or b`, `a, b or c`. */
+function listOf(items: readonly string[]): string {
+  return items.length <= 1 ? (items[0] ?? '') : `${items.slice(0, -1).join(', ')} or ${items[items.length - 1]}`
 }
 
 const CONNECTION_CODES = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', 'EHOSTUNREACH', 'ENOTFOUND'])

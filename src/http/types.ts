@@ -16,6 +16,8 @@ declare module 'fastify' {
   interface FastifyContextConfig {
     /** false: the route answers without an API key (health, metrics, docs). */
     auth?: boolean
+    /** Media types the route takes as a body, named in its 415 answer; default application/json. */
+    bodyTypes?: readonly string[]
   }
 }
 

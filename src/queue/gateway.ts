@@ -11,8 +11,9 @@ import { checkReplenishmentOptions, EngineInputError } from '../engine/index.js'
 import { gatewayConnection } from './connection.js'
 import { CHUNK_JOB, CHUNK_JOB_OPTIONS, CHUNK_QUEUE, chunkJobId } from './names.js'
 import type { ChunkJob } from './payload.js'
+import { runFailure } from '../runs/failures.js'
 import { storeOptions } from './worker.js'
-import { createRunEventEmitter } from '../webhooks/emitter.js'
+import { createRunEventEmitter } from '../callbacks/emitter.js'
 
 export interface RunMachinery extends RunGateway {
   /** Closes the queue and the Redis connection. */
@@ -64,7 +65,7 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
         )
       }
     } catch (err) {
-      await store.endRun(tenant, runId, 'failed', 'could not enqueue the run', now()).catch(() => null)
+      await store.endRun(tenant, runId, 'failed', runFailure('enqueue-failed', 'could not enqueue the run'), now()).catch(() => null)
       throw err
     }
   }
@@ -78,19 +79,19 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
       return record
     },
 
-    async submitSelection(tenant, settings, selection) {
+    async submitScope(tenant, settings, scope) {
       checkRunOptions(settings)
       const runId = randomUUID()
-      const { record, chunks } = await createRunFromHistories(redis, storeOptions(config), histories, {
+      const { record, chunks, missingSkus } = await createRunFromHistories(redis, storeOptions(config), histories, {
         tenant,
         runId,
         settings,
-        selection,
+        scope,
         chunkSize: config.chunkSize,
         now: now(),
       })
       await enqueueChunks(tenant, runId, chunks)
-      return record
+      return { record, missingSkus }
     },
 
     get: (tenant, runId) => store.getRun(tenant, runId),

@@ -9,6 +9,7 @@ import type { ForecastItem, ResultItem } from '../storage/types.js'
 import { CHUNK_QUEUE } from './names.js'
 import { ChunkJob } from './payload.js'
 import { toSeriesInput } from './series-input.js'
+import { REPLENISHMENT_SKIPPED } from '../runs/failures.js'
 
 export interface ChunkProcessorDeps {
   readonly store: RunStore
@@ -16,7 +17,7 @@ export interface ChunkProcessorDeps {
   readonly forecast: (input: SeriesInput) => ForecastResult
   readonly logger: Logger
   readonly now?: () => Date
-  /** Called when this chunk finished its run (webhooks); must be idempotent per run. */
+  /** Called when this chunk finished its run (callbacks); must be idempotent per run. */
   readonly onRunEnded?: (tenant: string, runId: string) => Promise<void>
 }
 
@@ -56,7 +57,7 @@ function withReplenishment(item: ForecastItem, result: ForecastResult, settings:
     return { ...item, replenishment: replenishmentFor(result, settings.replenishment) }
   } catch (err) {
     if (!(err instanceof EngineInputError)) throw err
-    return { ...item, warnings: [...item.warnings, { code: 'replenishment-skipped', message: err.message }] }
+    return { ...item, warnings: [...item.warnings, { code: REPLENISHMENT_SKIPPED, message: err.message }] }
   }
 }
 

@@ -1,10 +1,12 @@
 import type { SeriesInput } from '../engine/index.js'
+import { firstPeriodLabel } from '../history/buckets.js'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 
 /**
  * One request series as engine input: the run's settings, overridden by the
  * series' own `frequency`, `firstPeriod` and `seasonLength`. Absent options stay
- * absent so the engine applies its defaults.
+ * absent so the engine applies its defaults. A weekly series may start at a
+ * calendar date: its ISO week.
  */
 export function toSeriesInput(settings: RunSettings, item: SeriesItem): SeriesInput {
   const input: { -readonly [K in keyof SeriesInput]: SeriesInput[K] } = {
@@ -19,7 +21,7 @@ export function toSeriesInput(settings: RunSettings, item: SeriesItem): SeriesIn
     holdoutOrigins: settings.holdoutOrigins,
   }
   const seasonLength = item.seasonLength ?? settings.seasonLength
-  if (item.firstPeriod !== undefined) input.firstPeriod = item.firstPeriod
+  if (item.firstPeriod !== undefined) input.firstPeriod = firstPeriodLabel(item.firstPeriod, input.frequency)
   if (seasonLength !== undefined) input.seasonLength = seasonLength
   if (settings.holdoutPeriods !== undefined) input.holdoutPeriods = settings.holdoutPeriods
   if (settings.models !== undefined) input.models = settings.models

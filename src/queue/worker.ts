@@ -7,9 +7,10 @@ import { workerConnection } from './connection.js'
 import { sandboxExecArgv } from './worker-flags.js'
 import { CHUNK_QUEUE, RECORD_TTL_FACTOR } from './names.js'
 import { ChunkJob } from './payload.js'
+import { runFailure } from '../runs/failures.js'
 import type { SandboxContext } from './processors/chunk.js'
-import { createRunEventEmitter } from '../webhooks/emitter.js'
-import { startWebhookWorker } from '../webhooks/worker.js'
+import { createRunEventEmitter } from '../callbacks/emitter.js'
+import { startCallbackWorker } from '../callbacks/worker.js'
 import { startScheduleWorker } from '../schedules/worker.js'
 import { submitViaGateway } from '../schedules/submit.js'
 import { createRunGateway } from './gateway.js'
@@ -58,7 +59,7 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
   const store = new RunStore(storeRedis, storeOptions(config))
   const concurrency = config.workerConcurrency > 0 ? config.workerConcurrency : availableParallelism()
   const events = createRunEventEmitter(storeRedis, queuePrefix(config))
-  const webhooks = startWebhookWorker(config, logger, storeOptions(config))
+  const callbacks = startCallbackWorker(config, logger, storeOptions(config))
   // Schedule firings submit runs over stored histories through a gateway of their own.
   const scheduleGateway = createRunGateway(config)
   const schedules = startScheduleWorker(config, logger, {
@@ -102,7 +103,7 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
       const data = ChunkJob.safeParse(job.data)
       if (!data.success) return jlog.error({ err }, 'chunk with invalid data failed')
       const { tenant, runId, chunkIndex } = data.data
-      const ended = await store.endRun(tenant, runId, 'failed', `chunk ${chunkIndex} failed: ${err.message}`, new Date())
+      const ended = await store.endRun(tenant, runId, 'failed', runFailure('chunk-failed', `chunk ${chunkIndex} failed: ${err.message}`), new Date())
       if (ended?.status === 'failed') await events.runEnded(tenant, runId)
       jlog.error({ err, attemptsMade: job.attemptsMade }, 'chunk failed for good: run failed')
     })().catch((e) => jlog.error({ err: e }, 'could not record failed chunk'))
@@ -116,7 +117,7 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
       await worker.close()
       await schedules.close()
       await scheduleGateway.close()
-      await webhooks.close()
+      await callbacks.close()
       await events.close()
       await Promise.allSettled([connection.quit(), storeRedis.quit()])
       log.info('chunk worker stopped')

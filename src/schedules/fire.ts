@@ -1,16 +1,25 @@
 import { UnrecoverableError, type Job } from 'bullmq'
 import type { Logger } from 'pino'
 import { z } from 'zod'
-import type { RunSettings } from '../schemas/run.js'
-import type { ScheduleSelection, ScheduleStore } from '../storage/schedule-store.js'
-import type { RunRecord } from '../storage/types.js'
+import type { RunScope, RunSettings } from '../schemas/run.js'
+import type { ScheduleStore } from '../storage/schedule-store.js'
+import { RunInputError, type Failure, type RunRecord } from '../storage/types.js'
 import { SCHEDULE_QUEUE } from './names.js'
 
 export const FireJob = z.object({ tenant: z.string().min(1).max(64), scheduleId: z.string().min(1).max(64) })
 export type FireJob = z.infer<typeof FireJob>
 
-/** Submits a run for a schedule's selection and settings. */
-export type SubmitScheduled = (tenant: string, settings: RunSettings, selection: ScheduleSelection) => Promise<RunRecord>
+/** Submits a run for a schedule's scope and settings; `missingSkus`: SKUs of the scope without a stored history. */
+export type SubmitScheduled = (tenant: string, settings: RunSettings, scope: RunScope) => Promise<{ record: RunRecord; missingSkus: number }>
+
+/** The `failure.code` of a firing that could not submit its run (docs/problems.md lists them). */
+export const FIRING_FAILURE_CODES = ['empty-scope', 'invalid-option', 'submit-failed'] as const
+
+function firingFailure(err: unknown): Failure {
+  const message = err instanceof Error ? err.message : String(err)
+  if (err instanceof RunInputError && (err.code === 'empty-scope' || err.code === 'invalid-option')) return { code: err.code, message }
+  return { code: 'submit-failed', message }
+}
 
 export interface FireDeps {
   readonly schedules: ScheduleStore
@@ -26,12 +35,13 @@ export type FireOutcome =
   | { readonly outcome: 'submitted'; readonly runId: string }
   | { readonly outcome: 'skipped'; readonly runId: string }
   | { readonly outcome: 'gone' }
-  | { readonly outcome: 'failed'; readonly error: string }
+  | { readonly outcome: 'failed'; readonly failure: Failure }
 
 /**
- * What happens when a schedule fires: submit a run, unless the run the
- * schedule started last is still queued or running (then skip, count and log).
- * A failed submit is counted and logged; the next firing tries again.
+ * What happens when a schedule fires: submit a run over its scope, unless the
+ * run the schedule started last is still queued or running (then skip, count
+ * and log). SKUs of the scope deleted since the schedule was made are skipped
+ * and counted. A failed submit is counted and logged; the next firing tries again.
  */
 export function createFireHandler(deps: FireDeps) {
   const now = deps.now ?? (() => new Date())
@@ -44,25 +54,25 @@ export function createFireHandler(deps: FireDeps) {
       log.info('schedule no longer exists: scheduler removed')
       return { outcome: 'gone' }
     }
-    const previous = schedule.state.currentRunId
+    const previous = schedule.firings.currentRunId
     if (previous !== null) {
       const run = await deps.getRun(tenant, previous)
       if (run && (run.status === 'queued' || run.status === 'running')) {
         await deps.schedules.recordSkipped(tenant, scheduleId, now())
-        log.info({ runId: previous, status: run.status, skipped: schedule.state.skipped + 1 }, 'previous run still going: firing skipped')
+        log.info({ runId: previous, status: run.status, skipped: schedule.firings.skipped + 1 }, 'previous run still going: firing skipped')
         return { outcome: 'skipped', runId: previous }
       }
     }
     try {
-      const run = await deps.submit(tenant, schedule.settings, schedule.selection)
-      await deps.schedules.recordFired(tenant, scheduleId, run.id, now())
-      log.info({ runId: run.id, series: run.progress.total }, 'scheduled run submitted')
-      return { outcome: 'submitted', runId: run.id }
+      const { record, missingSkus } = await deps.submit(tenant, schedule.settings, schedule.scope)
+      await deps.schedules.recordSubmitted(tenant, scheduleId, record.id, missingSkus, now())
+      log.info({ runId: record.id, series: record.progress.total, missingSkus }, 'scheduled run submitted')
+      return { outcome: 'submitted', runId: record.id }
     } catch (err) {
-      const error = (err as Error).message
-      await deps.schedules.recordFailed(tenant, scheduleId, error, now())
-      log.warn({ err }, 'scheduled run could not be submitted')
-      return { outcome: 'failed', error }
+      const failure = firingFailure(err)
+      await deps.schedules.recordFailed(tenant, scheduleId, failure, now())
+      log.warn({ err, failure: failure.code }, 'scheduled run could not be submitted')
+      return { outcome: 'failed', failure }
     }
   }
 }

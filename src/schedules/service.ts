@@ -1,8 +1,11 @@
 import type { Queue } from 'bullmq'
 import type { FieldError } from '../errors.js'
 import { checkRunOptions } from '../queue/gateway.js'
-import type { RunSettings } from '../schemas/run.js'
-import type { Schedule, ScheduleDefinition, ScheduleSelection, ScheduleStore } from '../storage/schedule-store.js'
+import type { RunScope, RunSettings } from '../schemas/run.js'
+import { scopeSkuErrors } from '../runs/scope.js'
+import type { HistoryStore } from '../storage/history-store.js'
+import type { Schedule, ScheduleStore } from '../storage/schedule-store.js'
+import type { Page } from '../storage/paging.js'
 import { RunInputError } from '../storage/types.js'
 import { checkTiming, nextFiring } from './cron.js'
 import { FIRE_JOB, schedulerId } from './names.js'
@@ -12,7 +15,7 @@ export interface ScheduleInput {
   readonly name?: string
   readonly cron: string
   readonly timeZone: string
-  readonly selection: ScheduleSelection
+  readonly scope: RunScope
   readonly settings: RunSettings
 }
 
@@ -34,6 +37,7 @@ export class ScheduleInputError extends Error {
 export class ScheduleService {
   constructor(
     private readonly store: ScheduleStore,
+    private readonly histories: Pick<HistoryStore, 'missing'>,
     private readonly queue: () => Queue<FireJob>,
     private readonly opts: { readonly minIntervalSeconds: number; readonly now?: () => Date },
   ) {}
@@ -43,8 +47,9 @@ export class ScheduleService {
   }
 
   /**
-   * @throws ScheduleInputError on a bad pattern, time zone or settings;
-   * returns null when the tenant has the most schedules allowed.
+   * @throws ScheduleInputError on a bad pattern, time zone, settings or scope (a SKU
+   * without a stored history or named twice); returns null when the tenant has the
+   * most schedules allowed.
    */
   async create(tenant: string, input: ScheduleInput): Promise<ScheduleView | null> {
     const errors = checkTiming(input.cron, input.timeZone, this.opts.minIntervalSeconds, this.now())
@@ -52,12 +57,16 @@ export class ScheduleService {
       checkRunOptions(input.settings)
     } catch (err) {
       if (!(err instanceof RunInputError)) throw err
-      errors.push({ path: `settings.${err.field}`, message: err.message })
+      errors.push({ path: err.field, message: err.message })
+    }
+    if ('skus' in input.scope) {
+      const bad = await scopeSkuErrors(input.scope.skus, (skus) => this.histories.missing(tenant, skus))
+      if (bad) errors.push(...bad.errors)
     }
     if (errors.length > 0) throw new ScheduleInputError(errors)
     const def = await this.store.create(
       tenant,
-      { name: input.name ?? null, cron: input.cron.trim(), timeZone: input.timeZone, selection: input.selection, settings: input.settings },
+      { name: input.name ?? null, cron: input.cron.trim(), timeZone: input.timeZone, scope: input.scope, settings: input.settings },
       this.now(),
     )
     if (def === null) return null
@@ -71,7 +80,7 @@ export class ScheduleService {
       await this.store.remove(tenant, def.id)
       throw err
     }
-    return this.view({ ...def, state: emptyState() })
+    return this.view({ ...def, firings: noFirings() })
   }
 
   async get(tenant: string, id: string): Promise<ScheduleView | null> {
@@ -79,7 +88,8 @@ export class ScheduleService {
     return s === null ? null : this.view(s)
   }
 
-  async list(tenant: string, limit: number, cursor?: string): Promise<{ items: ScheduleView[]; nextCursor: string | null }> {
+  /** @throws CursorError on a cursor this service did not issue. */
+  async list(tenant: string, limit: number, cursor?: string): Promise<Page<ScheduleView>> {
     const page = await this.store.list(tenant, limit, cursor)
     return { items: page.items.map((s) => this.view(s)), nextCursor: page.nextCursor }
   }
@@ -91,11 +101,11 @@ export class ScheduleService {
     return removed
   }
 
-  private view(s: Schedule | (ScheduleDefinition & { state: Schedule['state'] })): ScheduleView {
+  private view(s: Schedule): ScheduleView {
     return { ...s, nextFireAt: nextFiring(s.cron, s.timeZone, this.now()) }
   }
 }
 
-function emptyState(): Schedule['state'] {
-  return { currentRunId: null, lastFiredAt: null, fired: 0, skipped: 0, failed: 0, lastError: null }
+function noFirings(): Schedule['firings'] {
+  return { submitted: 0, skipped: 0, failed: 0, missingSkus: 0, lastFiredAt: null, currentRunId: null, lastFailure: null }
 }

@@ -3,12 +3,12 @@ import type { SubmitScheduled } from './fire.js'
 
 /**
  * Submits a scheduled run over stored histories through the gateway (the
- * same path as POST /v1/runs with skus, tags or all).
- * @throws RunInputError('empty-selection') when the selection matches no history.
+ * same path as POST /v1/runs with a scope).
+ * @throws RunInputError('empty-scope') when the scope matches no history.
  */
-export function submitViaGateway(gateway: Pick<RunGateway, 'submitSelection'>): SubmitScheduled {
-  return (tenant, settings, selection) => {
-    if (!gateway.submitSelection) throw new Error('this gateway cannot run over stored histories')
-    return gateway.submitSelection(tenant, settings, selection)
+export function submitViaGateway(gateway: Pick<RunGateway, 'submitScope'>): SubmitScheduled {
+  return (tenant, settings, scope) => {
+    if (!gateway.submitScope) throw new Error('this gateway cannot run over stored histories')
+    return gateway.submitScope(tenant, settings, scope)
   }
 }

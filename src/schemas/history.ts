@@ -1,7 +1,8 @@
 import { z } from 'zod'
 import { FREQUENCIES } from '../engine/index.js'
 import { DUPLICATE_POLICIES, MAX_TAGS, TAG_PATTERN, UPLOAD_MODES } from '../history/types.js'
-import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from './run.js'
+import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel } from './run.js'
+import { PageQuery, pageSchema } from './params.js'
 
 /** Request and response shapes of the stored-history routes. */
 
@@ -10,9 +11,9 @@ export const Tag = z
   .regex(TAG_PATTERN, 'must be 1-64 characters of letters, digits and . _ : / = -, starting with a letter or digit')
   .describe('Tag such as category:garden or site:north')
 
-export const HistoryBody = z.object({
+export const HistoryBody = z.strictObject({
   frequency: z.enum(FREQUENCIES),
-  firstPeriod: PeriodLabel.describe('Label of the first period (same frequency)'),
+  firstPeriod: PeriodLabel,
   demand: z
     .array(DemandValue)
     .min(1)
@@ -44,17 +45,12 @@ export const HistorySummarySchema = z.object({
   updatedAt: z.string(),
 })
 
-export const SkuListQuery = z.object({
-  limit: z.coerce.number().int().min(1).max(1000).default(100).describe('Items per page (1..1000)'),
-  cursor: z.string().min(1).max(512).optional().describe('nextCursor of the previous page'),
+export const SkuListQuery = PageQuery.extend({
   tag: Tag.optional().describe('Only SKUs carrying this tag'),
   prefix: z.string().min(1).max(200).optional().describe('Only SKUs starting with this text'),
 })
 
-export const SkuListPage = z.object({
-  items: z.array(HistorySummarySchema),
-  nextCursor: z.string().nullable().describe('null on the last page'),
-})
+export const SkuListPage = pageSchema(HistorySummarySchema)
 
 const ColumnName = z.string().min(1).max(100)
 
@@ -74,7 +70,7 @@ export const UploadQuery = z.object({
   delimiter: z.enum(['comma', 'semicolon', 'tab']).default('comma').describe('CSV field separator'),
 })
 
-export const JsonUpload = z.object({
+export const JsonUpload = z.strictObject({
   mode: z.enum(UPLOAD_MODES).optional(),
   series: z.array(z.unknown()).min(1),
 })

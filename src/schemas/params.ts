@@ -14,23 +14,34 @@ export const RunIdParams = z.object({
 
 export const SkuParams = z.object({ sku: Sku })
 
-export const RESULTS_DEFAULT_LIMIT = 100
-export const RESULTS_MAX_LIMIT = 1000
+export const PAGE_DEFAULT_LIMIT = 100
+export const PAGE_MAX_LIMIT = 1000
 
-export const ResultsQuery = z.object({
+/** `?limit=` and `?cursor=`, the same on every list (paging.ts). */
+export const PageQuery = z.object({
   limit: z.coerce
     .number()
     .int()
     .min(1)
-    .max(RESULTS_MAX_LIMIT)
-    .default(RESULTS_DEFAULT_LIMIT)
-    .describe(`Items per page (1..${RESULTS_MAX_LIMIT})`),
+    .max(PAGE_MAX_LIMIT)
+    .default(PAGE_DEFAULT_LIMIT)
+    .describe(`Items per page (1..${PAGE_MAX_LIMIT}, default ${PAGE_DEFAULT_LIMIT})`),
   cursor: z
     .string()
     .min(1)
-    .max(512)
-    .regex(/^[A-Za-z0-9_\-:.=+/]+$/, 'is not a cursor returned by this API')
+    .max(1024)
+    .regex(/^[A-Za-z0-9_.-]+$/, 'is not a cursor returned by this API')
     .optional()
-    .describe('nextCursor of the previous page'),
+    .describe('nextCursor of the previous page; a cursor this API did not issue is a 400'),
+})
+
+/** A page of a list: `{ items, nextCursor }`. */
+export const pageSchema = <T extends z.ZodType>(item: T) =>
+  z.object({
+    items: z.array(item),
+    nextCursor: z.string().nullable().describe('Pass back as cursor for the next page; null on the last page'),
+  })
+
+export const ResultsQuery = PageQuery.extend({
   sku: Sku.optional().describe('Only the result of this SKU'),
 })

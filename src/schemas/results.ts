@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES } from '../engine/index.js'
-import { RunSettings } from './run.js'
+import { RunScope, RunSettings } from './run.js'
 import { RUN_STATUSES } from '../storage/types.js'
 
 /**
@@ -123,22 +123,24 @@ export const RunResource = z
     id: z.string(),
     status: z.enum(RUN_STATUSES),
     progress: z.object({
-      total: z.number().int(),
-      done: z.number().int(),
-      failed: z.number().int(),
+      total: z.number().int().min(0).describe('Series in the run'),
+      done: z.number().int().min(0).describe('Series finished so far, failed ones included'),
+      failed: z.number().int().min(0).describe('Series the engine could not forecast (failed items)'),
     }),
     createdAt: z.string().describe('ISO-8601'),
-    startedAt: z.string().nullable(),
-    finishedAt: z.string().nullable(),
+    startedAt: z.string().nullable().describe('ISO-8601'),
+    finishedAt: z.string().nullable().describe('ISO-8601'),
     settings: RunSettings,
+    scope: RunScope.nullable().describe('The stored histories the run covers; null for a run over inline series'),
     summary: z
       .object({
         rankBy: MetricName,
         modelCounts: z.partialRecord(ModelName, z.number().int().min(0)).describe('How many SKUs each model was chosen for'),
-        meanHoldoutError: z.number().nullable().describe('Mean holdout error (rankBy) of the chosen models'),
+        meanHoldoutError: z.number().nullable().describe('Mean holdout error (named by rankBy) of the chosen models'),
       })
-      .nullable(),
-    error: z.string().nullable(),
+      .nullable()
+      .describe('Present once the run has succeeded'),
+    failure: Failure.nullable().describe('Why the run failed as a whole (chunk-failed, enqueue-failed); null otherwise'),
   })
   .meta({ id: 'Run' })
 

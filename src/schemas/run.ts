@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES, SERVICE_LEVEL_MAX, SERVICE_LEVEL_MIN } from '../engine/index.js'
+import { DEFAULT_SEASON_LENGTH, FREQUENCIES, METRIC_NAMES, MODEL_NAMES, SERVICE_LEVEL_MAX, SERVICE_LEVEL_MIN } from '../engine/index.js'
 import { TAG_PATTERN } from '../history/types.js'
 
 /**
@@ -41,9 +41,24 @@ export const Sku = z
 export const PeriodLabel = z
   .string()
   .regex(PERIOD_PATTERN, 'must look like 2024, 2024-Q2, 2024-03, 2024-W09 or 2024-03-05')
-  .describe('Label of the first period')
+  .describe(
+    'Label of the first period in the frequency: 2024 (year), 2024-Q2 (quarter), 2024-03 (month), 2024-W09 ' +
+      '(ISO week) or 2024-03-05 (day). For weekly demand a calendar date also works and means its ISO week.',
+  )
 
-export const SeriesItem = z.object({
+/** The description lists the engine's own defaults, so the document cannot drift from them. */
+const SeasonLength = z
+  .number()
+  .int()
+  .min(1)
+  .max(366)
+  .describe(
+    `Periods per season (1: no season); default by frequency: ${Object.entries(DEFAULT_SEASON_LENGTH)
+      .map(([f, m]) => `${f} ${m}`)
+      .join(', ')}`,
+  )
+
+export const SeriesItem = z.strictObject({
   sku: Sku,
   firstPeriod: PeriodLabel.optional(),
   demand: z
@@ -51,13 +66,13 @@ export const SeriesItem = z.object({
     .min(1)
     .max(MAX_POINTS_PER_SERIES)
     .describe('Demand per period, oldest first; null marks a missing period'),
-  frequency: z.enum(FREQUENCIES).optional(),
-  seasonLength: z.number().int().min(1).max(366).optional(),
+  frequency: z.enum(FREQUENCIES).optional().describe("This series' frequency; default the run's"),
+  seasonLength: SeasonLength.optional(),
 })
 export type SeriesItem = z.infer<typeof SeriesItem>
 
 export const ReplenishmentSettings = z
-  .object({
+  .strictObject({
     leadTimePeriods: z.number().int().min(1).max(MAX_HORIZON).describe('Lead time in periods (1..horizon)'),
     serviceLevel: z
       .number()
@@ -82,10 +97,10 @@ export const CallbackUrl = z
   }, 'must not contain credentials')
   .describe('Called (signed POST) when the run ends; see /v1/callbacks for the signature')
 
-export const RunSettings = z.object({
+export const RunSettings = z.strictObject({
   horizon: z.number().int().min(1).max(MAX_HORIZON).describe('Periods to forecast'),
   frequency: z.enum(FREQUENCIES).default('month'),
-  seasonLength: z.number().int().min(1).max(366).optional(),
+  seasonLength: SeasonLength.optional(),
   holdoutPeriods: z.number().int().min(1).max(MAX_HORIZON).optional().describe('Periods held back to rank the candidates'),
   holdoutOrigins: z.number().int().min(1).max(12).default(1).describe('Rolling forecast origins the holdout errors are averaged over'),
   rankBy: z.enum(METRIC_NAMES).default('mase').describe('The holdout error that ranks the candidates'),
@@ -121,37 +136,59 @@ export const RunRequest = RunSettings.extend({
 }).superRefine((body, ctx) => refuseDuplicateSkus(body.series, ctx))
 export type RunRequest = z.infer<typeof RunRequest>
 
-/** Most SKUs a run may name in `skus`. */
-export const MAX_SELECTED_SKUS = 100_000
+/** Most SKUs a scope may name in `skus`. */
+export const MAX_SCOPE_SKUS = 100_000
+
+/**
+ * Which stored histories a run or schedule covers: `{ "skus": [...] }`,
+ * `{ "tags": [...] }` (SKUs carrying every listed tag) or `{ "all": true }`.
+ * One object with exactly one of the three, so a bad entry is named
+ * (`scope.skus[3]`) rather than reported as "no alternative matched".
+ */
+export const RunScope = z
+  .strictObject({
+    skus: z
+      .array(Sku)
+      .min(1)
+      .max(MAX_SCOPE_SKUS)
+      .optional()
+      .describe('These SKUs; a SKU without a stored history is a 400 listing it (for schedules: when the schedule is created)'),
+    tags: z
+      .array(z.string().regex(TAG_PATTERN, 'is not a valid tag'))
+      .min(1)
+      .max(10)
+      .optional()
+      .describe('SKUs carrying every listed tag'),
+    all: z.literal(true).optional().describe('Every SKU with a stored history'),
+  })
+  .superRefine((scope, ctx) => {
+    const given = (['skus', 'tags', 'all'] as const).filter((f) => scope[f] !== undefined)
+    if (given.length === 0) ctx.addIssue({ code: 'custom', path: [], message: 'give one of skus, tags or all' })
+    for (const extra of given.slice(1)) {
+      ctx.addIssue({ code: 'custom', path: [extra], message: `give exactly one of skus, tags or all (got ${given.join(', ')})` })
+    }
+  })
+  .meta({ id: 'Scope' })
+export type RunScope = { readonly skus: string[] } | { readonly tags: string[] } | { readonly all: true }
+
+/** The scope as the schema parsed it, narrowed to the one key it holds. */
+export function toRunScope(scope: z.infer<typeof RunScope>): RunScope {
+  if (scope.skus !== undefined) return { skus: scope.skus }
+  if (scope.tags !== undefined) return { tags: scope.tags }
+  return { all: true }
+}
 
 /**
  * `POST /v1/runs`: the settings plus exactly one source of series: inline
- * `series`, or stored histories selected by `skus`, by `tags` (SKUs carrying
- * every listed tag) or `all`.
+ * `series`, or stored histories named by `scope`.
  */
 export const RunSubmission = RunSettings.extend({
   series: z.array(SeriesItem).min(1).optional().describe('Series given inline'),
-  skus: z
-    .array(Sku)
-    .min(1)
-    .max(MAX_SELECTED_SKUS)
-    .optional()
-    .describe('Forecast these SKUs from their stored histories; unknown SKUs are a 400 listing them'),
-  tags: z
-    .array(z.string().regex(TAG_PATTERN, 'is not a valid tag'))
-    .min(1)
-    .max(10)
-    .optional()
-    .describe('Forecast the stored histories of SKUs carrying every listed tag'),
-  all: z.literal(true).optional().describe('Forecast every stored history of the tenant'),
+  scope: RunScope.optional().describe('Forecast stored histories instead of inline series'),
 }).superRefine((body, ctx) => {
   refuseDuplicateSkus(body.series, ctx)
-  const given = (['series', 'skus', 'tags', 'all'] as const).filter((f) => body[f] !== undefined)
-  if (given.length === 0) {
-    ctx.addIssue({ code: 'custom', path: ['series'], message: 'give series, or select stored histories with skus, tags or all' })
-  }
-  for (const extra of given.slice(1)) {
-    ctx.addIssue({ code: 'custom', path: [extra], message: `give exactly one of series, skus, tags or all (got ${given.join(', ')})` })
-  }
+  const given = (['series', 'scope'] as const).filter((f) => body[f] !== undefined)
+  if (given.length === 0) ctx.addIssue({ code: 'custom', path: ['series'], message: 'give series, or stored histories with scope' })
+  if (given.length === 2) ctx.addIssue({ code: 'custom', path: ['scope'], message: 'give either series or scope, not both' })
 })
 export type RunSubmission = z.infer<typeof RunSubmission>

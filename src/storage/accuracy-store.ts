@@ -1,10 +1,9 @@
 import type { RedisClient } from './redis-client.js'
 import { parsePeriod, summariseAccuracy, type AccuracySummary, type Frequency } from '../engine/index.js'
-import { decodeCursor, encodeCursor } from './codec.js'
+import { decodeCursor, encodeCursor } from './paging.js'
 import { isValidTenant } from './keys.js'
 import type { ForecastPoints } from './latest-record.js'
 import type { RunStore } from './run-store.js'
-import { RunInputError } from './types.js'
 
 /**
  * Realised accuracy per SKU: each forecast period, once its actual arrives,
@@ -181,15 +180,13 @@ export class AccuracyStore {
 
   /**
    * SKUs whose tracking signal is beyond the limit, by SKU (byte order).
-   * @throws RunInputError on a malformed cursor.
+   * @throws CursorError on a cursor this service did not issue.
    */
   async exceptions(tenant: string, limit: number, cursor?: string): Promise<{ items: SkuAccuracy[]; nextCursor: string | null }> {
     if (!isValidTenant(tenant)) return { items: [], nextCursor: null }
     let from = '-'
     if (cursor !== undefined) {
-      const after = decodeCursor(cursor)
-      if (after === null) throw new RunInputError('invalid-cursor', 'cursor is not one this service issued', 'cursor')
-      from = `(${after}`
+      from = `(${decodeCursor(cursor)}`
     }
     const n = Math.max(1, Math.floor(limit))
     const skus = await this.redis.zrangebylex(`${this.base(tenant)}:exceptions`, from, '+', 'LIMIT', 0, n + 1)

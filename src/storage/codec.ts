@@ -1,6 +1,7 @@
+import { z } from 'zod'
 import { METRIC_NAMES, MODEL_NAMES, type ForecastResult, type Frequency, type ModelName } from '../engine/index.js'
-import { RunSettings } from '../schemas/run.js'
-import { RUN_STATUSES, type ForecastItem, type RunRecord, type RunStatus, type ResultItem, type RunSummary } from './types.js'
+import { RunScope, RunSettings, toRunScope, type RunScope as Scope } from '../schemas/run.js'
+import { RUN_STATUSES, type Failure, type ForecastItem, type RunRecord, type ResultItem, type RunSummary } from './types.js'
 
 /** Conversions between stored strings and the contract types. */
 
@@ -12,6 +13,7 @@ export function newRunFields(run: {
   total: number
   chunks: number
   settings: RunSettings
+  scope: Scope | null
 }): Record<string, string> {
   return {
     id: run.id,
@@ -24,40 +26,87 @@ export function newRunFields(run: {
     chunksRemaining: String(run.chunks),
     createdAt: run.createdAt,
     settings: JSON.stringify(run.settings),
+    ...(run.scope === null ? {} : { scope: JSON.stringify(run.scope) }),
     errSum: '0',
     errCount: '0',
   }
 }
 
-const isStatus = (s: string | undefined): s is RunStatus => RUN_STATUSES.includes(s as RunStatus)
-const isModel = (s: string): s is ModelName => (MODEL_NAMES as readonly string[]).includes(s)
+/** A hash field holding JSON, checked against `schema` once parsed. */
+const jsonOf = <T extends z.ZodType>(schema: T) =>
+  z
+    .string()
+    .transform((text, ctx) => {
+      try {
+        return JSON.parse(text) as unknown
+      } catch {
+        ctx.addIssue({ code: 'custom', message: 'is not JSON' })
+        return z.NEVER
+      }
+    })
+    .pipe(schema)
 
-/** Run hash (HGETALL) to RunRecord; null for an empty hash (no such run). */
+const Count = z.coerce.number().int().min(0)
+export const FailureRecord = z.object({ code: z.string().min(1), message: z.string() })
+
+/** The run hash as stored (HGETALL): every value is a string; per-model counts are `win:<model>` fields. */
+const RunHash = z
+  .object({
+    id: z.string().min(1),
+    tenant: z.string().min(1),
+    status: z.enum(RUN_STATUSES),
+    total: Count,
+    done: Count,
+    failed: Count,
+    createdAt: z.string().min(1),
+    startedAt: z.string().optional(),
+    finishedAt: z.string().optional(),
+    settings: jsonOf(RunSettings),
+    scope: jsonOf(RunScope).optional(),
+    failure: jsonOf(FailureRecord).optional(),
+    errSum: z.coerce.number(),
+    errCount: Count,
+  })
+  .catchall(z.string())
+
+/**
+ * Run hash (HGETALL) to RunRecord; null for an empty hash (no such run).
+ * @throws Error naming the run when a stored field does not decode (the hash is input, not trusted)
+ */
 export function decodeRunRecord(hash: Record<string, string>): RunRecord | null {
-  if (!hash.id || !isStatus(hash.status)) return null
-  const settings = RunSettings.parse(JSON.parse(hash.settings ?? '{}'))
+  if (Object.keys(hash).length === 0) return null
+  const parsed = RunHash.safeParse(hash)
+  if (!parsed.success) throw new Error(`run record ${hash.id ?? '(no id)'} does not decode: ${parsed.error.issues.map((i) => `${i.path.join('.')} ${i.message}`).join('; ')}`)
+  const h = parsed.data
   return {
-    id: hash.id,
-    tenant: hash.tenant ?? '',
-    status: hash.status,
-    progress: { total: Number(hash.total ?? 0), done: Number(hash.done ?? 0), failed: Number(hash.failed ?? 0) },
-    createdAt: hash.createdAt ?? '',
-    startedAt: hash.startedAt ?? null,
-    finishedAt: hash.finishedAt ?? null,
-    settings,
-    summary: hash.status === 'succeeded' ? decodeSummary(hash, settings) : null,
-    error: hash.error ?? null,
+    id: h.id,
+    tenant: h.tenant,
+    status: h.status,
+    progress: { total: h.total, done: h.done, failed: h.failed },
+    createdAt: h.createdAt,
+    startedAt: h.startedAt ?? null,
+    finishedAt: h.finishedAt ?? null,
+    settings: h.settings,
+    scope: h.scope === undefined ? null : toRunScope(h.scope),
+    summary: h.status === 'succeeded' ? decodeSummary(hash, h.settings, h.errSum, h.errCount) : null,
+    failure: h.failure ?? null,
   }
 }
 
-function decodeSummary(hash: Record<string, string>, settings: RunSettings): RunSummary {
+/** Encoded `failure` field of a run that ended badly. */
+export function encodeFailure(failure: Failure): string {
+  return JSON.stringify({ code: failure.code, message: failure.message })
+}
+
+const isModel = (s: string): s is ModelName => (MODEL_NAMES as readonly string[]).includes(s)
+
+function decodeSummary(hash: Record<string, string>, settings: RunSettings, errSum: number, errCount: number): RunSummary {
   const modelWins: Partial<Record<ModelName, number>> = {}
   for (const [field, value] of Object.entries(hash)) {
     const model = field.startsWith('win:') ? field.slice(4) : ''
-    if (isModel(model)) modelWins[model] = Number(value)
+    const count = Number(value)
+    if (isModel(model) && Number.isInteger(count) && count >= 0) modelWins[model] = count
   }
-  const errCount = Number(hash.errCount ?? 0)
-  const errSum = Number(hash.errSum ?? 0)
   return {
     rankBy: settings.rankBy,
     modelCounts: modelWins,
@@ -131,16 +180,4 @@ export function toResultItem(sku: string, frequency: Frequency, r: ForecastResul
     intervalMethod: r.intervalMethod,
     warnings: r.warnings,
   }
-}
-
-/** Opaque page cursor: the last SKU of the previous page, base64url. */
-export function encodeCursor(sku: string): string {
-  return Buffer.from(sku, 'utf8').toString('base64url')
-}
-
-/** @returns the SKU, or null when the cursor is malformed. */
-export function decodeCursor(cursor: string): string | null {
-  if (!/^[A-Za-z0-9_-]+$/.test(cursor)) return null
-  const sku = Buffer.from(cursor, 'base64url').toString('utf8')
-  return sku.length > 0 && encodeCursor(sku) === cursor ? sku : null
 }

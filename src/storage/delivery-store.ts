@@ -1,37 +1,43 @@
+import { z } from 'zod'
 import type { RedisClient } from './redis-client.js'
 import { isValidRunId, isValidTenant, runKeys } from './keys.js'
+import { pageOf, type Page } from './paging.js'
 
 /**
- * The delivery log of a run's webhooks.
+ * The callback delivery log of a run.
  *
  *   run:{R}:deliveries   hash  deliveryId -> JSON Delivery   (same hash tag as the run; TTL = results)
  *
  * One writer per delivery at a time (its BullMQ job), so read-modify-write is safe.
  */
-export const DELIVERY_STATES = ['pending', 'delivered', 'retrying', 'dead'] as const
-export type DeliveryState = (typeof DELIVERY_STATES)[number]
+export const DELIVERY_STATUSES = ['pending', 'delivered', 'retrying', 'dead'] as const
+export type DeliveryStatus = (typeof DELIVERY_STATUSES)[number]
 
-export interface DeliveryAttempt {
-  readonly attempt: number
+const FailureRecord = z.object({ code: z.string(), message: z.string() })
+
+const AttemptRecord = z.object({
+  attempt: z.number().int().min(1),
   /** ISO-8601 time the attempt started. */
-  readonly at: string
-  readonly statusCode: number | null
-  readonly error: string | null
-  readonly durationMs: number
-}
+  at: z.string(),
+  httpStatus: z.number().int().nullable(),
+  failure: FailureRecord.nullable(),
+  durationMs: z.number().int().min(0),
+})
+export type DeliveryAttempt = z.infer<typeof AttemptRecord>
 
-export interface Delivery {
-  readonly id: string
-  readonly url: string
-  readonly event: string
+const DeliveryRecord = z.object({
+  id: z.string().min(1),
+  url: z.string(),
+  event: z.string(),
   /** `run`: the run's callbackUrl; `standing`: a callback registered at /v1/callbacks. */
-  readonly source: 'run' | 'standing'
-  readonly callbackId: string | null
-  readonly state: DeliveryState
-  readonly maxAttempts: number
-  readonly attempts: readonly DeliveryAttempt[]
-  readonly createdAt: string
-}
+  source: z.enum(['run', 'standing']),
+  callbackId: z.string().nullable(),
+  status: z.enum(DELIVERY_STATUSES),
+  maxAttempts: z.number().int().min(1),
+  attempts: z.array(AttemptRecord),
+  createdAt: z.string(),
+})
+export type Delivery = z.infer<typeof DeliveryRecord>
 
 export class DeliveryStore {
   constructor(
@@ -53,23 +59,28 @@ export class DeliveryStore {
 
   async get(tenant: string, runId: string, id: string): Promise<Delivery | null> {
     const json = await this.redis.hget(this.key(tenant, runId), id)
-    return json === null ? null : (JSON.parse(json) as Delivery)
+    return json === null ? null : DeliveryRecord.parse(JSON.parse(json))
   }
 
-  /** Appends an attempt (replacing one with the same number, e.g. after a crash) and sets the state. */
-  async recordAttempt(tenant: string, runId: string, id: string, attempt: DeliveryAttempt, state: DeliveryState): Promise<Delivery | null> {
+  /** Appends an attempt (replacing one with the same number, e.g. after a crash) and sets the status. */
+  async recordAttempt(tenant: string, runId: string, id: string, attempt: DeliveryAttempt, status: DeliveryStatus): Promise<Delivery | null> {
     const d = await this.get(tenant, runId, id)
     if (d === null) return null
     const attempts = [...d.attempts.filter((a) => a.attempt !== attempt.attempt), attempt].sort((a, b) => a.attempt - b.attempt)
-    const next: Delivery = { ...d, attempts, state }
+    const next: Delivery = { ...d, attempts, status }
     await this.redis.hset(this.key(tenant, runId), id, JSON.stringify(next))
     return next
   }
 
   /** Every delivery of the run, oldest first; [] when none. */
-  async list(tenant: string, runId: string): Promise<Delivery[]> {
+  async all(tenant: string, runId: string): Promise<Delivery[]> {
     if (!isValidTenant(tenant) || !isValidRunId(runId)) return []
-    const all = Object.values(await this.redis.hgetall(this.key(tenant, runId))).map((j) => JSON.parse(j) as Delivery)
+    const all = Object.values(await this.redis.hgetall(this.key(tenant, runId))).map((j) => DeliveryRecord.parse(JSON.parse(j)))
     return all.sort((a, b) => a.createdAt.localeCompare(b.createdAt) || a.id.localeCompare(b.id))
+  }
+
+  /** One page of the run's deliveries, oldest first. @throws CursorError on a cursor this service did not issue. */
+  async list(tenant: string, runId: string, limit: number, cursor?: string): Promise<Page<Delivery>> {
+    return pageOf(await this.all(tenant, runId), (d) => d.id, limit, cursor)
   }
 }

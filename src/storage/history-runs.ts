@@ -1,21 +1,22 @@
 import type { RedisClient } from './redis-client.js'
-import type { RunSettings, SeriesItem } from '../schemas/run.js'
+import type { RunScope, RunSettings, SeriesItem } from '../schemas/run.js'
 import { decodeRunRecord, newRunFields } from './codec.js'
 import { RunStats } from './stats-store.js'
-import type { HistorySelection, HistoryStore } from './history-store.js'
+import type { HistoryStore } from './history-store.js'
 import { runKeys } from './keys.js'
 import type { RunStoreOptions } from './run-store.js'
 import { RunInputError, type RunRecord } from './types.js'
 
 /**
- * Create a run over stored histories: the selection is read page by page
+ * Create a run over stored histories: the scope is read page by page
  * (at most `chunkSize` histories at a time) and each full chunk is written as
  * a chunk input at once, so memory holds one chunk, never the whole
- * selection. The run record goes last, when the total is known; inputs of a
+ * scope. The run record goes last, when the total is known; inputs of a
  * run that never got its record expire with the result TTL.
  * Each stored history becomes the series `{ sku, firstPeriod, demand, frequency }`,
- * exactly as if it had been sent inline.
- * @throws RunInputError('empty-selection') when nothing matched
+ * exactly as if it had been sent inline. SKUs of `scope.skus` without a stored
+ * history are skipped and counted (`missingSkus`).
+ * @throws RunInputError('empty-scope') when nothing matched
  */
 export async function createRunFromHistories(
   redis: RedisClient,
@@ -25,12 +26,12 @@ export async function createRunFromHistories(
     readonly tenant: string
     readonly runId: string
     readonly settings: RunSettings
-    readonly selection: HistorySelection
+    readonly scope: RunScope
     readonly chunkSize: number
     readonly now: Date
   },
-): Promise<{ record: RunRecord; chunks: number }> {
-  const { tenant, runId, settings, selection, chunkSize } = args
+): Promise<{ record: RunRecord; chunks: number; missingSkus: number }> {
+  const { tenant, runId, settings, scope, chunkSize } = args
   const k = runKeys(opts.prefix, tenant, runId)
   let chunks = 0
   let total = 0
@@ -41,7 +42,7 @@ export async function createRunFromHistories(
     total += chunk.length
     chunk = []
   }
-  for await (const batch of histories.select(tenant, selection, chunkSize)) {
+  for await (const batch of histories.select(tenant, scope, chunkSize)) {
     for (const h of batch) {
       chunk.push({ sku: h.sku, firstPeriod: h.firstPeriod, demand: [...h.demand], frequency: h.frequency })
       if (chunk.length >= chunkSize) await flush()
@@ -49,12 +50,12 @@ export async function createRunFromHistories(
   }
   if (chunk.length > 0) await flush()
   if (total === 0) {
-    const field = 'skus' in selection ? 'skus' : 'tags' in selection ? 'tags' : 'all'
-    throw new RunInputError('empty-selection', 'the selection matches no stored history', field)
+    const field = 'skus' in scope ? 'scope.skus' : 'tags' in scope ? 'scope.tags' : 'scope.all'
+    throw new RunInputError('empty-scope', 'the scope matches no stored history', field)
   }
-  const fields = newRunFields({ id: runId, tenant, createdAt: args.now.toISOString(), total, chunks, settings })
+  const fields = newRunFields({ id: runId, tenant, createdAt: args.now.toISOString(), total, chunks, settings, scope })
   const results = await redis.multi().hset(k.run, fields).expire(k.run, opts.recordTtlSeconds).exec()
   for (const [err] of results ?? []) if (err) throw err
   await new RunStats(redis, opts.prefix).created()
-  return { record: decodeRunRecord(fields)!, chunks }
+  return { record: decodeRunRecord(fields)!, chunks, missingSkus: 'skus' in scope ? scope.skus.length - total : 0 }
 }

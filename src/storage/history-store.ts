@@ -3,9 +3,9 @@ import { FREQUENCIES, formatPeriod, parsePeriod, type Frequency } from '../engin
 import type { PendingHistory } from '../history/accumulator.js'
 import type { HistoryWriter } from '../history/ingest.js'
 import type { HistoryData } from '../history/types.js'
-import { decodeCursor, encodeCursor } from './codec.js'
+import { decodeCursor, encodeCursor } from './paging.js'
 import { isValidTenant } from './keys.js'
-import { RunInputError } from './types.js'
+import type { RunScope } from '../schemas/run.js'
 
 /**
  * Stored demand histories per tenant, in Redis. Histories are master data: no TTL.
@@ -36,8 +36,6 @@ export interface HistorySummary {
   readonly updatedAt: string
 }
 
-/** Which stored histories a run forecasts. `tags`: SKUs carrying every listed tag. */
-export type HistorySelection = { readonly skus: readonly string[] } | { readonly tags: readonly string[] } | { readonly all: true }
 
 interface Meta {
   readonly f: Frequency
@@ -175,7 +173,7 @@ export class HistoryStore implements HistoryWriter {
   /**
    * One page of history summaries ordered by SKU (byte order), optionally only
    * SKUs carrying `tag` and/or starting with `prefix`.
-   * @throws RunInputError on a malformed cursor
+   * @throws CursorError on a cursor this service did not issue
    */
   async list(
     tenant: string,
@@ -185,9 +183,7 @@ export class HistoryStore implements HistoryWriter {
     const index = page.tag === undefined ? k.skus : k.tag(page.tag)
     let min: string | Buffer = page.prefix === undefined ? '-' : `[${page.prefix}`
     if (page.cursor !== undefined) {
-      const after = decodeCursor(page.cursor)
-      if (after === null) throw new RunInputError('invalid-cursor', 'cursor is not one this service issued', 'cursor')
-      min = `(${after}`
+      min = `(${decodeCursor(page.cursor)}`
     }
     const max: string | Buffer = page.prefix === undefined ? '+' : Buffer.concat([Buffer.from(`[${page.prefix}`), Buffer.from([0xff])])
     const limit = Math.max(1, Math.floor(page.limit))
@@ -204,24 +200,24 @@ export class HistoryStore implements HistoryWriter {
   }
 
   /**
-   * The selected histories in batches of at most `batchSize`, read page by
-   * page (never the whole selection at once). SKUs in `skus` without a history are skipped.
+   * The histories of the scope in batches of at most `batchSize`, read page by
+   * page (never the whole scope at once). SKUs in `skus` without a history are skipped.
    */
-  async *select(tenant: string, selection: HistorySelection, batchSize: number): AsyncGenerator<StoredHistory[]> {
+  async *select(tenant: string, scope: RunScope, batchSize: number): AsyncGenerator<StoredHistory[]> {
     const k = this.keys(tenant)
     const size = Math.max(1, Math.floor(batchSize))
-    if ('skus' in selection) {
-      for (let i = 0; i < selection.skus.length; i += size) {
-        const found = (await this.getMany(tenant, selection.skus.slice(i, i + size))).filter((h): h is StoredHistory => h !== null)
+    if ('skus' in scope) {
+      for (let i = 0; i < scope.skus.length; i += size) {
+        const found = (await this.getMany(tenant, scope.skus.slice(i, i + size))).filter((h): h is StoredHistory => h !== null)
         if (found.length > 0) yield found
       }
       return
     }
     let driver = k.skus
     let others: string[] = []
-    if ('tags' in selection) {
+    if ('tags' in scope) {
       // Walk the smallest tag set; keep SKUs that also carry every other tag.
-      const tagKeys = [...new Set(selection.tags)].map(k.tag)
+      const tagKeys = [...new Set(scope.tags)].map(k.tag)
       const sizes = await Promise.all(tagKeys.map((key) => this.redis.zcard(key)))
       const smallest = sizes.indexOf(Math.min(...sizes))
       driver = tagKeys[smallest]!
@@ -266,5 +262,3 @@ function summary(sku: string, meta: Meta): HistorySummary {
   }
 }
 
-/** Page cursors: the same opaque form as run results. */
-export { encodeCursor, decodeCursor }

@@ -1,8 +1,7 @@
-import { decodeCursor, encodeCursor } from './codec.js'
+import { decodeCursor, encodeCursor } from './paging.js'
 import { servedItemParts } from './item-codec.js'
 import { isValidRunId, isValidTenant, runKeys } from './keys.js'
 import type { RedisClient } from './redis-client.js'
-import { RunInputError } from './types.js'
 
 export interface PageRequest {
   readonly limit: number
@@ -20,7 +19,7 @@ export interface StoredPage {
 /**
  * Reads one page of a run's stored items (the layout of run-store.ts), or null
  * when the run does not exist.
- * @throws RunInputError on a malformed cursor.
+ * @throws CursorError on a cursor this service did not issue.
  */
 export async function readStoredPage(redis: RedisClient, prefix: string, tenant: string, runId: string, page: PageRequest): Promise<StoredPage | null> {
   if (!isValidTenant(tenant) || !isValidRunId(runId)) return null
@@ -32,9 +31,7 @@ export async function readStoredPage(redis: RedisClient, prefix: string, tenant:
   }
   let from = '-'
   if (page.cursor !== undefined) {
-    const after = decodeCursor(page.cursor)
-    if (after === null) throw new RunInputError('invalid-cursor', 'cursor is not one this service issued', 'cursor')
-    from = `(${after}`
+    from = `(${decodeCursor(page.cursor)}`
   }
   const limit = Math.max(1, Math.floor(page.limit))
   const skus = await redis.zrangebylex(k.skus, from, '+', 'LIMIT', 0, limit + 1)

@@ -2,11 +2,7 @@ import type { RedisClient } from './redis-client.js'
 import { RunSettings, SeriesItem, type RunRequest } from '../schemas/run.js'
 import { isSeriesItem } from '../schemas/series-check.js'
 import { z } from 'zod'
-import {
-  decodeRunRecord,
-  newRunFields,
-  type ChunkTally,
-} from './codec.js'
+import { decodeRunRecord, encodeFailure, newRunFields, type ChunkTally } from './codec.js'
 import { loadItem } from './item-codec.js'
 import type { PreparedItem } from './prepared-item.js'
 import { readStoredPage } from './result-pages.js'
@@ -17,6 +13,7 @@ import { RunStats } from './stats-store.js'
 import {
   RUN_STATUSES,
   RunInputError,
+  type Failure,
   type LatestForecast,
   type ResultPage,
   type RunRecord,
@@ -79,7 +76,7 @@ export class RunStore {
     const chunks = Math.ceil(series.length / chunkSize)
     const k = this.keys(tenant, runId)
     const tx = this.redis.multi()
-    const fields = newRunFields({ id: runId, tenant, createdAt: now.toISOString(), total: series.length, chunks, settings })
+    const fields = newRunFields({ id: runId, tenant, createdAt: now.toISOString(), total: series.length, chunks, settings, scope: null })
     tx.hset(k.run, fields)
     tx.expire(k.run, this.opts.recordTtlSeconds)
     for (let c = 0; c < chunks; c++) {
@@ -175,12 +172,12 @@ export class RunStore {
   }
 
   /** Ends a queued or running run; returns the record afterwards (null if unknown). */
-  async endRun(tenant: string, runId: string, status: 'cancelled' | 'failed', error: string | null, now: Date): Promise<RunRecord | null> {
+  async endRun(tenant: string, runId: string, status: 'cancelled' | 'failed', failure: Failure | null, now: Date): Promise<RunRecord | null> {
     if (!isValidTenant(tenant) || !isValidRunId(runId)) return null
     const k = this.keys(tenant, runId)
     const r = await this.scripts.endRun(
       [k.run, k.chunks, k.skus, k.items],
-      [status, now.toISOString(), error ?? '', this.opts.resultTtlSeconds, this.opts.recordTtlSeconds],
+      [status, now.toISOString(), failure === null ? '' : encodeFailure(failure), this.opts.resultTtlSeconds, this.opts.recordTtlSeconds],
     )
     if (r === null) return null
     const [after, before] = r

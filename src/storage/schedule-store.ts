@@ -1,14 +1,17 @@
 import { randomUUID } from 'node:crypto'
+import { z } from 'zod'
 import type { RedisClient } from './redis-client.js'
-import type { RunSettings } from '../schemas/run.js'
+import { RunScope, RunSettings, toRunScope, type RunScope as Scope } from '../schemas/run.js'
 import { isValidTenant } from './keys.js'
+import { pageOf, type Page } from './paging.js'
+import type { Failure } from './types.js'
 
 /**
  * Overnight schedules per tenant.
  *
  *   sched:index        zset  schedule id, score = creation time in ms (listing order)
  *   sched:<id>         hash  def (JSON ScheduleDefinition), runId (current run), lastFiredAt,
- *                            fired, skipped, failed (counters), lastError
+ *                            submitted, skipped, failed, missingSkus (counters), lastFailure (JSON)
  *
  * under `${prefix}:t:${tenant}:`. Schedules are configuration: no TTL.
  *
@@ -19,32 +22,60 @@ import { isValidTenant } from './keys.js'
  * hash (create; nothing fires it yet) or an index entry without a hash
  * (remove; `list` skips it, it counts toward the per-tenant maximum).
  */
-export type ScheduleSelection = { readonly skus: readonly string[] } | { readonly tags: readonly string[] } | { readonly all: true }
+const DefinitionRecord = z.object({
+  id: z.string().min(1),
+  name: z.string().nullable(),
+  cron: z.string().min(1),
+  timeZone: z.string().min(1),
+  scope: RunScope,
+  settings: RunSettings,
+  createdAt: z.string(),
+})
 
 export interface ScheduleDefinition {
   readonly id: string
   readonly name: string | null
   readonly cron: string
   readonly timeZone: string
-  readonly selection: ScheduleSelection
+  readonly scope: Scope
   readonly settings: RunSettings
   readonly createdAt: string
 }
 
-export interface ScheduleState {
-  readonly currentRunId: string | null
-  readonly lastFiredAt: string | null
-  readonly fired: number
+/** What the schedule's firings did so far. */
+export interface Firings {
+  /** Firings that submitted a run. */
+  readonly submitted: number
+  /** Firings skipped because the run of the previous one was still queued or running. */
   readonly skipped: number
+  /** Firings whose run could not be submitted. */
   readonly failed: number
-  readonly lastError: string | null
+  /** SKUs named in `scope.skus` that had no stored history when a firing ran, summed over firings. */
+  readonly missingSkus: number
+  readonly lastFiredAt: string | null
+  /** Run of the latest firing that submitted one. */
+  readonly currentRunId: string | null
+  readonly lastFailure: Failure | null
 }
 
-export type Schedule = ScheduleDefinition & { readonly state: ScheduleState }
+export type Schedule = ScheduleDefinition & { readonly firings: Firings }
 
 export const MAX_SCHEDULES_PER_TENANT = 100
 
 const SCHEDULE_ID = /^[A-Za-z0-9-]{1,64}$/
+
+const Count = z.coerce.number().int().min(0)
+const FiringsHash = z.object({
+  def: z.string(),
+  runId: z.string().optional(),
+  lastFiredAt: z.string().optional(),
+  submitted: Count.default(0),
+  skipped: Count.default(0),
+  failed: Count.default(0),
+  missingSkus: Count.default(0),
+  lastFailure: z.string().optional(),
+})
+const FailureRecord = z.object({ code: z.string().min(1), message: z.string() })
 
 export class ScheduleStore {
   constructor(
@@ -65,7 +96,7 @@ export class ScheduleStore {
   async create(tenant: string, def: Omit<ScheduleDefinition, 'id' | 'createdAt'>, now: Date): Promise<ScheduleDefinition | null> {
     if ((await this.redis.zcard(`${this.base(tenant)}:index`)) >= MAX_SCHEDULES_PER_TENANT) return null
     const full: ScheduleDefinition = { id: randomUUID(), ...def, createdAt: now.toISOString() }
-    await this.redis.hset(this.key(tenant, full.id), 'def', JSON.stringify(full), 'fired', 0, 'skipped', 0, 'failed', 0)
+    await this.redis.hset(this.key(tenant, full.id), 'def', JSON.stringify(full), 'submitted', 0, 'skipped', 0, 'failed', 0, 'missingSkus', 0)
     await this.redis.zadd(`${this.base(tenant)}:index`, now.getTime(), full.id)
     return full
   }
@@ -75,16 +106,18 @@ export class ScheduleStore {
     return decode(await this.redis.hgetall(this.key(tenant, id)))
   }
 
-  /** Oldest first, at most `limit` after `afterId` (exclusive). */
-  async list(tenant: string, limit: number, afterId?: string): Promise<{ items: Schedule[]; nextCursor: string | null }> {
+  /**
+   * One page of the tenant's schedules, oldest first.
+   * @throws CursorError on a cursor this service did not issue.
+   */
+  async list(tenant: string, limit: number, cursor?: string): Promise<Page<Schedule>> {
     if (!isValidTenant(tenant)) return { items: [], nextCursor: null }
+    // At most MAX_SCHEDULES_PER_TENANT ids; the page is cut from the whole index.
     const ids = await this.redis.zrange(`${this.base(tenant)}:index`, 0, -1)
-    const from = afterId === undefined ? 0 : ids.indexOf(afterId) + 1
-    const page = ids.slice(from, from + limit)
+    const page = pageOf(ids, (id) => id, limit, cursor)
     // One HGETALL per schedule, all in flight at once (their keys lie on different slots of a cluster).
-    const rows = await Promise.all(page.map((id) => this.redis.hgetall(this.key(tenant, id))))
-    const items = rows.map((h) => decode(h)).filter((s): s is Schedule => s !== null)
-    return { items, nextCursor: from + limit < ids.length ? (page[page.length - 1] ?? null) : null }
+    const rows = await Promise.all(page.items.map((id) => this.redis.hgetall(this.key(tenant, id))))
+    return { items: rows.map((h) => decode(h)).filter((s): s is Schedule => s !== null), nextCursor: page.nextCursor }
   }
 
   async remove(tenant: string, id: string): Promise<boolean> {
@@ -94,43 +127,50 @@ export class ScheduleStore {
     return n === 1
   }
 
-  /** A fire submitted a run. No-op when the schedule was deleted meanwhile. */
-  async recordFired(tenant: string, id: string, runId: string, now: Date): Promise<void> {
+  /** A firing submitted a run (`missingSkus`: SKUs of its scope without a history). No-op when the schedule was deleted meanwhile. */
+  async recordSubmitted(tenant: string, id: string, runId: string, missingSkus: number, now: Date): Promise<void> {
     const key = this.key(tenant, id)
     if (!(await this.redis.exists(key))) return
-    await this.redis.multi().hset(key, 'runId', runId, 'lastFiredAt', now.toISOString()).hdel(key, 'lastError').hincrby(key, 'fired', 1).exec()
+    await this.redis
+      .multi()
+      .hset(key, 'runId', runId, 'lastFiredAt', now.toISOString())
+      .hdel(key, 'lastFailure')
+      .hincrby(key, 'submitted', 1)
+      .hincrby(key, 'missingSkus', missingSkus)
+      .exec()
   }
 
-  /** A fire found the previous run still going. */
+  /** A firing found the previous run still going. */
   async recordSkipped(tenant: string, id: string, now: Date): Promise<void> {
     const key = this.key(tenant, id)
     if (!(await this.redis.exists(key))) return
     await this.redis.multi().hset(key, 'lastFiredAt', now.toISOString()).hincrby(key, 'skipped', 1).exec()
   }
 
-  async recordFailed(tenant: string, id: string, error: string, now: Date): Promise<void> {
+  async recordFailed(tenant: string, id: string, failure: Failure, now: Date): Promise<void> {
     const key = this.key(tenant, id)
     if (!(await this.redis.exists(key))) return
-    await this.redis
-      .multi()
-      .hset(key, 'lastFiredAt', now.toISOString(), 'lastError', error.slice(0, 500))
-      .hincrby(key, 'failed', 1)
-      .exec()
+    const stored = JSON.stringify({ code: failure.code, message: failure.message.slice(0, 500) })
+    await this.redis.multi().hset(key, 'lastFiredAt', now.toISOString(), 'lastFailure', stored).hincrby(key, 'failed', 1).exec()
   }
 }
 
+/** A schedule hash (HGETALL) as a Schedule; null when there is none. @throws Error when it does not decode. */
 function decode(h: Record<string, string>): Schedule | null {
-  if (!h.def) return null
-  const def = JSON.parse(h.def) as ScheduleDefinition
+  if (Object.keys(h).length === 0) return null
+  const f = FiringsHash.parse(h)
+  const def = DefinitionRecord.parse(JSON.parse(f.def))
   return {
     ...def,
-    state: {
-      currentRunId: h.runId ?? null,
-      lastFiredAt: h.lastFiredAt ?? null,
-      fired: Number(h.fired ?? 0),
-      skipped: Number(h.skipped ?? 0),
-      failed: Number(h.failed ?? 0),
-      lastError: h.lastError ?? null,
+    scope: toRunScope(def.scope),
+    firings: {
+      submitted: f.submitted,
+      skipped: f.skipped,
+      failed: f.failed,
+      missingSkus: f.missingSkus,
+      lastFiredAt: f.lastFiredAt ?? null,
+      currentRunId: f.runId ?? null,
+      lastFailure: f.lastFailure === undefined ? null : FailureRecord.parse(JSON.parse(f.lastFailure)),
     },
   }
 }

@@ -90,7 +90,7 @@ return {'committed', st}
 
 /**
  * endRun. KEYS: run, chunks, skus, items. ARGV: status ('cancelled'|'failed'),
- * nowIso, error ('' for none), resultTtl, recordTtl.
+ * nowIso, failure JSON ('' for none), resultTtl, recordTtl.
  * Ends a queued or running run; returns {statusAfter, statusBefore}, or nil
  * when it does not exist. A finished run is left unchanged (both the same).
  */
@@ -99,7 +99,7 @@ local st = redis.call('HGET', KEYS[1], 'status')
 if not st then return nil end
 if st ~= 'queued' and st ~= 'running' then return {st, st} end
 redis.call('HSET', KEYS[1], 'status', ARGV[1], 'finishedAt', ARGV[2])
-if ARGV[3] ~= '' then redis.call('HSET', KEYS[1], 'error', ARGV[3]) end
+if ARGV[3] ~= '' then redis.call('HSET', KEYS[1], 'failure', ARGV[3]) end
 redis.call('EXPIRE', KEYS[1], tonumber(ARGV[5]))
 for k = 2, 4 do
   if redis.call('EXISTS', KEYS[k]) == 1 then redis.call('EXPIRE', KEYS[k], tonumber(ARGV[4])) end

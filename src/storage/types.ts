@@ -1,5 +1,5 @@
 import type { ForecastResult, Frequency, ModelName, MetricName, ReplenishmentFigures } from '../engine/index.js'
-import type { RunSettings } from '../schemas/run.js'
+import type { RunScope, RunSettings } from '../schemas/run.js'
 
 /** Contract between the HTTP layer and the run machinery (queue + storage). */
 
@@ -17,10 +17,12 @@ export interface RunRecord {
   readonly startedAt: string | null
   readonly finishedAt: string | null
   readonly settings: RunSettings
-  /** Present once the run has finished. */
+  /** The stored histories the run covers; null for a run over inline series. */
+  readonly scope: RunScope | null
+  /** Present once the run has succeeded. */
   readonly summary: RunSummary | null
-  /** Why a run failed as a whole (single series failures are per item). */
-  readonly error: string | null
+  /** Why a run failed as a whole (a series the engine refused is a failed item instead). */
+  readonly failure: Failure | null
 }
 
 export interface RunSummary {
@@ -77,13 +79,9 @@ export interface RunGateway {
   /**
    * Queue a run over stored histories, read in batches straight into chunk inputs.
    * Optional: gateways without stored histories leave it out (the route answers 503).
-   * @throws RunInputError('empty-selection') when the selection matches no history.
+   * @throws RunInputError('empty-scope') when the scope matches no history.
    */
-  submitSelection?(
-    tenant: string,
-    settings: RunSettings,
-    selection: import('./history-store.js').HistorySelection,
-  ): Promise<RunRecord>
+  submitScope?(tenant: string, settings: RunSettings, scope: RunScope): Promise<{ record: RunRecord; missingSkus: number }>
   get(tenant: string, runId: string): Promise<RunRecord | null>
   results(
     tenant: string,
@@ -126,7 +124,7 @@ export interface RunGateway {
 export class RunInputError extends Error {
   override readonly name = 'RunInputError'
   constructor(
-    readonly code: 'duplicate-sku' | 'invalid-cursor' | 'invalid-option' | 'empty-selection',
+    readonly code: 'duplicate-sku' | 'invalid-option' | 'empty-scope',
     message: string,
     readonly field: string,
   ) {

@@ -5,7 +5,7 @@ import { build, type AppDeps } from '../../src/http/app.js'
 import { createLogger } from '../../src/logger.js'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
 import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
-import { createErpServices } from '../../src/webhooks/services.js'
+import { createErpServices } from '../../src/callbacks/services.js'
 import { runsTestConfig } from '../queue/fixtures.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from './redis.js'
 

@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto'
 import type { Config } from '../../src/config.js'
 import type { RunRequest } from '../../src/schemas/run.js'
+import { pageOf } from '../../src/storage/paging.js'
 import {
   RunInputError,
   type LatestForecast,
@@ -36,8 +37,9 @@ export class InMemoryGatewayDouble implements RunGateway {
       startedAt: null,
       finishedAt: null,
       settings,
+      scope: null,
       summary: null,
-      error: null,
+      failure: null,
     }
     this.submitted.push({ tenant, request })
     this.runs.set(id, run)
@@ -73,14 +75,7 @@ export class InMemoryGatewayDouble implements RunGateway {
     if (!(await this.get(tenant, runId))) return null
     let items = this.items.get(runId) ?? []
     if (page.sku !== undefined) items = items.filter((i) => i.sku === page.sku)
-    let offset = 0
-    if (page.cursor !== undefined) {
-      offset = Number(page.cursor.replace(/^o/, ''))
-      if (!/^o\d+$/.test(page.cursor)) throw new RunInputError('invalid-cursor', 'cursor is not valid', 'cursor')
-    }
-    const slice = items.slice(offset, offset + page.limit)
-    const end = offset + slice.length
-    return { items: slice, nextCursor: end < items.length ? `o${end}` : null }
+    return pageOf(items, (i) => i.sku, page.limit, page.cursor)
   }
 
   async cancel(tenant: string, runId: string): Promise<RunRecord | null> {

@@ -92,7 +92,10 @@ describe('POST /v1/history with CSV', () => {
   })
 
   it('refuses other content types with 415', async () => {
-    expect((await upload('', 'application/xml', '<rows/>')).statusCode).toBe(415)
+    const xml = await upload('', 'application/xml', '<rows/>')
+    expect(xml.statusCode).toBe(415)
+    // The answer names what this route takes, not only JSON.
+    expect(xml.json().detail).toBe('Send the body as application/json, text/csv, application/x-ndjson or application/ndjson')
   })
 
   it('a header without the named column is a 400 problem naming the parameter, and stores nothing', async () => {

@@ -42,6 +42,17 @@ describe('PUT and GET /v1/skus/{sku}/history', () => {
     expect(other.statusCode).toBe(404)
   })
 
+  it('stores a weekly history given from a calendar date under its ISO week', async () => {
+    const put = await h.app.inject({
+      method: 'PUT',
+      url: '/v1/skus/GLOVES-W/history',
+      headers: auth(KEY_GARDEN),
+      payload: { frequency: 'week', firstPeriod: '2024-03-05', demand: [3, 4] },
+    })
+    expect(put.statusCode).toBe(201)
+    expect(put.json()).toMatchObject({ firstPeriod: '2024-W10', lastPeriod: '2024-W11', periodCount: 2 })
+  })
+
   it('refuses a firstPeriod of another frequency and a bad tag with the field', async () => {
     const bad = await h.app.inject({
       method: 'PUT',

@@ -37,7 +37,7 @@ const TARGETS: { method: 'POST' | 'PUT'; url: string; body: () => unknown }[] = 
       series: [{ sku: 'RAKE-01', demand: values36, firstPeriod: '2023-01', seasonLength: 12 }],
     }),
   },
-  { method: 'POST', url: '/v1/runs', body: () => ({ horizon: 3, skus: ['RAKE-01'] }) },
+  { method: 'POST', url: '/v1/runs', body: () => ({ horizon: 3, scope: { skus: ['RAKE-01'] } }) },
   {
     method: 'PUT',
     url: '/v1/skus/RAKE-01/history',
@@ -52,7 +52,7 @@ const TARGETS: { method: 'POST' | 'PUT'; url: string; body: () => unknown }[] = 
   {
     method: 'POST',
     url: '/v1/schedules',
-    body: () => ({ cron: '0 3 * * 1', timeZone: 'Europe/Berlin', selection: { all: true }, settings: { horizon: 3 } }),
+    body: () => ({ cron: '0 3 * * 1', timeZone: 'Europe/Berlin', scope: { all: true }, horizon: 3 }),
   },
 ]
 
@@ -272,7 +272,7 @@ describe('fixed hostile bodies', () => {
     const tooMany = await send('POST', '/v1/forecast', JSON.stringify({ horizon: 1, series: many }))
     expect(tooMany.statusCode).toBe(413)
 
-    const skus = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, skus: many.map((s) => s.sku) }))
+    const skus = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, scope: { skus: many.map((s) => s.sku) } }))
     expect(skus.statusCode).toBe(400)
     expect(skus.body.length).toBeLessThan(200_000) // the unknown SKUs are listed in part, not echoed whole
 

@@ -26,11 +26,11 @@ describe('Idempotency-Key on POST /v1/runs', () => {
     const submitted = h.gateway.submitted.length
     const again = await postRun('run-key-1', { ...REQUEST })
     expect(again.statusCode).toBe(202)
-    expect(again.headers['idempotent-replayed']).toBe('true')
+    expect(again.headers['almanac-reused-answer']).toBe('true')
     expect(again.headers.location).toBe(first.headers.location)
     expect(again.json()).toEqual(first.json())
     expect(h.gateway.submitted.length).toBe(submitted)
-    expect(first.headers['idempotent-replayed']).toBeUndefined()
+    expect(first.headers['almanac-reused-answer']).toBeUndefined()
   })
 
   it('answers 422 idempotency-key-reused for the same key with another body', async () => {
@@ -49,7 +49,7 @@ describe('Idempotency-Key on POST /v1/runs', () => {
     const garden = await postRun('shared-key', REQUEST)
     const heating = await postRun('shared-key', REQUEST, KEY_HEATING)
     expect(heating.statusCode).toBe(202)
-    expect(heating.headers['idempotent-replayed']).toBeUndefined()
+    expect(heating.headers['almanac-reused-answer']).toBeUndefined()
     expect(heating.json().id).not.toBe(garden.json().id)
   })
 
@@ -69,7 +69,7 @@ describe('Idempotency-Key on POST /v1/runs', () => {
       expect(second.json().type).toBe('https://almanac.example/problems/idempotency-key-in-use')
       release()
       expect((await first).statusCode).toBe(202)
-      expect((await postRun('slow-key', REQUEST)).headers['idempotent-replayed']).toBe('true')
+      expect((await postRun('slow-key', REQUEST)).headers['almanac-reused-answer']).toBe('true')
     } finally {
       h.gateway.submit = submit
     }
@@ -85,7 +85,7 @@ describe('Idempotency-Key on POST /v1/runs', () => {
     expect(failed.statusCode).toBe(500)
     const retried = await postRun('retry-key', REQUEST)
     expect(retried.statusCode).toBe(202)
-    expect(retried.headers['idempotent-replayed']).toBeUndefined()
+    expect(retried.headers['almanac-reused-answer']).toBeUndefined()
   })
 
   it('refuses a malformed key', async () => {
@@ -110,7 +110,7 @@ describe('Idempotency-Key on a streamed CSV upload', () => {
     expect(first.statusCode).toBe(200)
     const stored = (await h.app.inject({ url: '/v1/skus/RAKE/history', headers: auth(KEY_GARDEN) })).json()
     const again = await upload('csv-key', body)
-    expect(again.headers['idempotent-replayed']).toBe('true')
+    expect(again.headers['almanac-reused-answer']).toBe('true')
     expect(again.json()).toEqual(first.json())
     const after = (await h.app.inject({ url: '/v1/skus/RAKE/history', headers: auth(KEY_GARDEN) })).json()
     expect(after.updatedAt).toBe(stored.updatedAt)

@@ -48,7 +48,7 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     // (2026-01 .. 2026-06 after 24 months from 2024-01).
     expect((await put('HOSE-BIASED', flat(100))).statusCode).toBe(201)
     expect((await put('HOSE-STEADY', flat(50))).statusCode).toBe(201)
-    const res = await app.inject({ method: 'POST', url: '/v1/runs', payload: { horizon: 6, skus: ['HOSE-BIASED', 'HOSE-STEADY'] } })
+    const res = await app.inject({ method: 'POST', url: '/v1/runs', payload: { horizon: 6, scope: { skus: ['HOSE-BIASED', 'HOSE-STEADY'] } } })
     expect(res.statusCode).toBe(202)
     runId = res.json().id
     await waitFor(async () => {

@@ -107,7 +107,7 @@ describe('Redis restarted mid-run (append-only file, fsync always)', { timeout: 
     expect(api.child.exitCode).toBeNull()
     expect(worker.child.exitCode).toBeNull()
     // A short outage is within the chunk retries (4 attempts, backoff from 1 s): the run succeeds.
-    expect(ended.error ?? null, 'a failed run must say why').toBeNull()
+    expect(ended.failure ?? null, 'a failed run must say why').toBeNull()
     expect(ended.status).toBe('succeeded')
     expect(ended.progress).toEqual({ total: 250, done: 250, failed: 0 })
 
@@ -157,7 +157,7 @@ describe('Redis restarted mid-run (append-only file, fsync always)', { timeout: 
       const r = await call(`/v1/runs/${runId}`)
       return r.status === 200 && r.body.status !== 'queued' && r.body.status !== 'running' ? r.body : undefined
     }, 90_000, 'the run to end after the restart')
-    expect(ended.error ?? null, 'a failed run must say why').toBeNull()
+    expect(ended.failure ?? null, 'a failed run must say why').toBeNull()
     expect(ended.status).toBe('succeeded')
     expect(ended.progress).toEqual({ total: 400, done: 400, failed: 0 })
     const skus = (await allResults(runId)).map((i) => i.sku)

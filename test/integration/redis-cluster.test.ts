@@ -90,7 +90,7 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     const runId: string = submitted.body.id
 
     const ended = await runEnded(runId, 90_000)
-    expect([ended.status, ended.error ?? null]).toEqual(['succeeded', null])
+    expect([ended.status, ended.failure ?? null]).toEqual(['succeeded', null])
     expect(ended.progress).toEqual({ total: 300, done: 300, failed: 0 })
 
     // Every page, by cursor: each SKU exactly once.
@@ -129,7 +129,7 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     const queueKeys = (await cluster!.keysPerNode(`{${prefix}}:*`)).flat()
     expect(queueKeys.some((k) => k.startsWith(`{${prefix}}:run-chunks:`))).toBe(true)
     const plain = (await cluster!.keysPerNode(`${prefix}:*`)).flat()
-    expect(plain.filter((k) => /:(run-chunks|webhooks|schedules):/.test(k) && !k.includes(':t:'))).toEqual([])
+    expect(plain.filter((k) => /:(run-chunks|callbacks|schedules):/.test(k) && !k.includes(':t:'))).toEqual([])
     expect(plain).toContain(`${prefix}:t:garden:run:{${runId}}`)
     expect(unexpected).toEqual([])
   })
@@ -144,7 +144,7 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
       })
       expect(put.status).toBe(201)
     }
-    const submitted = await call('/v1/runs', { method: 'POST', body: JSON.stringify({ horizon: 6, skus: ['HOSE-A', 'HOSE-B', 'HOSE-C'] }) })
+    const submitted = await call('/v1/runs', { method: 'POST', body: JSON.stringify({ horizon: 6, scope: { skus: ['HOSE-A', 'HOSE-B', 'HOSE-C'] } }) })
     expect(submitted.status).toBe(202)
     const runId: string = submitted.body.id
     const ended = await runEnded(runId, 60_000)
@@ -168,12 +168,12 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     // A schedule's hash and the tenant's schedule index lie in different slots.
     const created = await call('/v1/schedules', {
       method: 'POST',
-      body: JSON.stringify({ name: 'garden nightly', cron: '0 2 * * *', timeZone: 'Europe/Berlin', selection: { tags: ['category:garden'] }, settings: { horizon: 6 } }),
+      body: JSON.stringify({ name: 'garden nightly', cron: '0 2 * * *', timeZone: 'Europe/Berlin', scope: { tags: ['category:garden'] }, horizon: 6 }),
     })
     expect(created.status).toBe(201)
     const second = await call('/v1/schedules', {
       method: 'POST',
-      body: JSON.stringify({ name: 'garden weekly', cron: '0 3 * * 1', timeZone: 'UTC', selection: { all: true }, settings: { horizon: 6 } }),
+      body: JSON.stringify({ name: 'garden weekly', cron: '0 3 * * 1', timeZone: 'UTC', scope: { all: true }, horizon: 6 }),
     })
     expect(second.status).toBe(201)
     const listed = await call('/v1/schedules')

@@ -39,7 +39,7 @@ describe('run failure', { timeout: 120_000 }, () => {
       const x = await gateway.get('acme', run.id)
       return x?.status === 'failed' ? x : undefined
     }, 30_000, 'run to fail')
-    expect(r.error).toBe('chunk 1 failed: input of chunk 1 is missing (expired?)')
+    expect(r.failure).toEqual({ code: 'chunk-failed', message: 'chunk 1 failed: input of chunk 1 is missing (expired?)' })
     expect(r.summary).toBeNull()
     expect(r.finishedAt).not.toBeNull()
   })
@@ -69,7 +69,7 @@ describe('retries', { timeout: 120_000 }, () => {
         return x?.status === 'succeeded' ? x : undefined
       }, 60_000, 'run to succeed')
       expect(r.progress).toEqual({ total: 15, done: 15, failed: 0 })
-      expect(r.error).toBeNull()
+      expect(r.failure).toBeNull()
     } finally {
       await queue.close()
     }

@@ -101,7 +101,7 @@ describe('run lifecycle through the gateway and a sandboxed worker', { timeout: 
 
   it('rejects a cursor it did not issue', async () => {
     await expect(gateway.results('acme', run.id, { limit: 5, cursor: '***' })).rejects.toMatchObject({
-      code: 'invalid-cursor',
+      name: 'CursorError',
       field: 'cursor',
     })
   })

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { ChunkTallier, decodeCursor, decodeRunRecord, encodeCursor, newRunFields, tallyItems } from '../../src/storage/codec.js'
+import { ChunkTallier, decodeRunRecord, newRunFields, tallyItems } from '../../src/storage/codec.js'
+import { CursorError, decodeCursor, encodeCursor, pageOf } from '../../src/storage/paging.js'
 import { loadItem, storeItem } from '../../src/storage/item-codec.js'
 import type { ResultItem } from '../../src/storage/types.js'
 import { runRequest } from '../queue/fixtures.js'
@@ -64,17 +65,38 @@ describe('cursors', () => {
     for (const sku of ['A', 'x|y:z', 'Gießkanne 10 l', '(]-+']) expect(decodeCursor(encodeCursor(sku))).toBe(sku)
   })
 
-  it('reject strings this service did not issue', () => {
-    for (const c of ['', '***', 'a b', 'QQ==']) expect(decodeCursor(c)).toBeNull()
+  it('reject strings this service did not issue, also a SKU encoded without the check', () => {
+    for (const c of ['', '***', 'a b', 'QQ==', 'QQ', 'QQ.abcdefgh', `${encodeCursor('A')}x`]) expect(() => decodeCursor(c)).toThrow(CursorError)
+  })
+
+  it('page an in-memory list after the item the cursor names, and refuse an unknown one', () => {
+    const ids = ['a', 'b', 'c', 'd', 'e']
+    const first = pageOf(ids, (id) => id, 2, undefined)
+    expect(first).toEqual({ items: ['a', 'b'], nextCursor: encodeCursor('b') })
+    const second = pageOf(ids, (id) => id, 2, first.nextCursor!)
+    expect(second.items).toEqual(['c', 'd'])
+    expect(pageOf(ids, (id) => id, 2, second.nextCursor!)).toEqual({ items: ['e'], nextCursor: null })
+    // A well-formed cursor naming an item the list does not hold (deleted, or of another list).
+    expect(() => pageOf(ids, (id) => id, 2, encodeCursor('zz'))).toThrow(CursorError)
   })
 })
 
 describe('decodeRunRecord', () => {
   const { series: _s, ...settings } = runRequest([])
-  const fields = newRunFields({ id: 'r1', tenant: 't', createdAt: '2026-01-01T00:00:00.000Z', total: 3, chunks: 1, settings })
+  const fields = newRunFields({ id: 'r1', tenant: 't', createdAt: '2026-01-01T00:00:00.000Z', total: 3, chunks: 1, settings, scope: null })
 
-  it('returns null for a missing run', () => {
+  it('returns null for a missing run and refuses a hash that does not decode', () => {
     expect(decodeRunRecord({})).toBeNull()
+    expect(() => decodeRunRecord({ ...fields, status: 'sleeping' })).toThrow(/run record r1 does not decode: status/)
+    expect(() => decodeRunRecord({ ...fields, settings: '{"horizon":0}' })).toThrow(/settings/)
+    expect(() => decodeRunRecord({ ...fields, done: '-1' })).toThrow(/done/)
+  })
+
+  it('keeps the scope of a run over stored histories and the failure of a failed run', () => {
+    const stored = newRunFields({ id: 'r2', tenant: 't', createdAt: '2026-01-01T00:00:00.000Z', total: 3, chunks: 1, settings, scope: { tags: ['category:garden'] } })
+    const failed = { ...stored, status: 'failed', failure: '{"code":"chunk-failed","message":"chunk 0 failed"}' }
+    expect(decodeRunRecord(failed)).toMatchObject({ scope: { tags: ['category:garden'] }, failure: { code: 'chunk-failed', message: 'chunk 0 failed' } })
+    expect(decodeRunRecord(fields)).toMatchObject({ scope: null, failure: null })
   })
 
   it('gives no summary before the run succeeds', () => {

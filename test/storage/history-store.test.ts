@@ -3,7 +3,8 @@ import { Redis } from 'ioredis'
 import { parsePeriod } from '../../src/engine/index.js'
 import type { PendingHistory } from '../../src/history/accumulator.js'
 import { mergeHistory } from '../../src/history/merge.js'
-import { HistoryStore, decodeCursor, encodeCursor } from '../../src/storage/history-store.js'
+import { HistoryStore } from '../../src/storage/history-store.js'
+import { CursorError, decodeCursor, encodeCursor } from '../../src/storage/paging.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 
 let url: string
@@ -62,7 +63,7 @@ describe('HistoryStore', () => {
 
   it('cursors round-trip and refuse anything else', () => {
     expect(decodeCursor(encodeCursor('SKU/ä 1'))).toBe('SKU/ä 1')
-    expect(decodeCursor('not a cursor')).toBeNull()
-    expect(decodeCursor('')).toBeNull()
+    expect(() => decodeCursor('not a cursor')).toThrow(CursorError)
+    expect(() => decodeCursor('')).toThrow(CursorError)
   })
 })

@@ -61,6 +61,6 @@ describe('results pages as JSON text', () => {
     await committedRun('pages-2')
     expect(await resultsPageJson(redis, prefix, 'acme', 'nope', { limit: 5 })).toBeNull()
     expect(await resultsPageJson(redis, prefix, 'other', 'pages-2', { limit: 5 })).toBeNull()
-    await expect(resultsPageJson(redis, prefix, 'acme', 'pages-2', { limit: 5, cursor: '***' })).rejects.toMatchObject({ code: 'invalid-cursor', field: 'cursor' })
+    await expect(resultsPageJson(redis, prefix, 'acme', 'pages-2', { limit: 5, cursor: '***' })).rejects.toMatchObject({ name: 'CursorError', field: 'cursor' })
   })
 })

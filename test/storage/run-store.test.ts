@@ -109,7 +109,7 @@ describe('RunStore', () => {
     expect(await redis.exists(runKeys(prefix, 'acme', 'cancel-1').items)).toBe(0)
     expect((await store.getRun('acme', 'cancel-1'))?.progress.done).toBe(0)
     // Ending a run that already ended changes nothing.
-    expect((await store.endRun('acme', 'cancel-1', 'failed', 'late', t0))?.status).toBe('cancelled')
+    expect((await store.endRun('acme', 'cancel-1', 'failed', { code: 'chunk-failed', message: 'late' }, t0))?.status).toBe('cancelled')
   })
 
   it('moves a queued run to running when its first chunk starts', async () => {

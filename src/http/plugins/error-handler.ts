@@ -9,7 +9,8 @@ import { toProblem } from '../problem-mapping.js'
 export default fp(
   async (app) => {
     app.setErrorHandler((err, request, reply) => {
-      const problem = toProblem(err, { bodyLimitBytes: app.config.bodyLimitBytes })
+      const bodyTypes = request.routeOptions.config?.bodyTypes
+      const problem = toProblem(err, { bodyLimitBytes: app.config.bodyLimitBytes, ...(bodyTypes ? { bodyTypes } : {}) })
       if (problem.statusCode >= 500 && problem.slug === 'internal') {
         request.log.error({ err }, 'request failed')
       } else {

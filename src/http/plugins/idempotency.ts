@@ -25,13 +25,13 @@ interface IdempotencyState {
 /** Visible ASCII, 1-255 characters. */
 const KEY_PATTERN = /^[\x21-\x7e]{1,255}$/
 
-export const REPLAYED_HEADER = 'idempotent-replayed'
+export const REUSED_ANSWER_HEADER = 'almanac-reused-answer'
 
 /**
  * `Idempotency-Key` on routes with `config.idempotency`. The first request
  * with a key runs and its answer (status < 500) is kept 24 h with a hash of
  * method, URL (with query), content type and body; a later request with the
- * same key and hash gets that answer again with `Idempotent-Replayed: true`,
+ * same key and hash gets that answer again with `Almanac-Reused-Answer: true`,
  * one with another hash a 422 `idempotency-key-reused`, and one arriving while
  * the first is still in flight a 409 `idempotency-key-in-use`. A 5xx answer
  * frees the key. JSON bodies are hashed as parsed (JSON.stringify, so
@@ -121,7 +121,7 @@ export default fp<{ store?: IdempotencyStore }>(
 )
 
 function replay(reply: FastifyReply, answer: { status: number; contentType: string | null; location: string | null; body: string }) {
-  reply.code(answer.status).header(REPLAYED_HEADER, 'true')
+  reply.code(answer.status).header(REUSED_ANSWER_HEADER, 'true')
   if (answer.contentType) reply.header('content-type', answer.contentType)
   if (answer.location) reply.header('location', answer.location)
   return reply.send(answer.body)

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
-import { ResultsQuery } from '../../schemas/params.js'
+import { PageQuery, pageSchema } from '../../schemas/params.js'
 import { requireErp } from '../plugins/erp.js'
 import { COMMON_PROBLEMS } from './responses.js'
 import { AccuracySummarySchema } from './skus/accuracy.js'
@@ -16,9 +16,9 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         description:
           'The exception list for planners, ordered by SKU: |tracking signal| > 4 (common practice) means the ' +
           'forecast errors lean one way. Review the model or the data of these SKUs before ordering on their forecasts.',
-        querystring: ResultsQuery.pick({ limit: true, cursor: true }),
+        querystring: PageQuery,
         response: {
-          200: z.object({ items: z.array(AccuracySummarySchema), nextCursor: z.string().nullable() }),
+          200: pageSchema(AccuracySummarySchema),
           ...COMMON_PROBLEMS,
         },
       },

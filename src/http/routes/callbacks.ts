@@ -2,19 +2,22 @@ import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../errors.js'
 import { CallbackUrl } from '../../schemas/run.js'
-import { MAX_CALLBACKS_PER_TENANT } from '../../webhooks/callback-store.js'
-import { RUN_EVENTS } from '../../webhooks/names.js'
+import { MAX_CALLBACKS_PER_TENANT } from '../../callbacks/callback-store.js'
+import { RUN_EVENTS } from '../../callbacks/names.js'
 import { requireErp } from '../plugins/erp.js'
 import { BODY_PROBLEMS, COMMON_PROBLEMS, NOT_FOUND } from './responses.js'
+import { PageQuery, pageSchema } from '../../schemas/params.js'
 import { Problem } from '../../schemas/problem.js'
 
 const SIGNING =
-  'Every delivery is a POST with a JSON body and the headers Almanac-Event, Almanac-Delivery, ' +
-  'Almanac-Timestamp (Unix seconds) and Almanac-Signature: v1=<hex HMAC-SHA256 of `${timestamp}.${body}` with the ' +
-  "tenant's signing secret>. Verify it over the raw body with a constant-time compare and reject timestamps more " +
-  'than 5 minutes old. Redirects are not followed; any answer but 2xx is retried with exponential backoff.'
+  'Every delivery is a POST with a JSON body and the headers Almanac-Event, Almanac-Delivery (an id unique to the ' +
+  'delivery and the same on each of its retries), Almanac-Sent-At (Unix seconds) and Almanac-Signature: ' +
+  'hmac-sha256=<hex HMAC-SHA256 of the three lines `${delivery}\\n${sentAt}\\n${body}` with the tenant\'s signing secret>. ' +
+  'Verify it over the raw body with a constant-time compare, reject Sent-At more than 5 minutes from your clock, and ' +
+  'drop a delivery id seen before. For a day after a rotation the header holds two comma-separated signatures, one ' +
+  'per secret; one match is enough. Redirects are not followed; any answer but 2xx is retried with exponential backoff.'
 
-const CallbackBody = z.object({
+const CallbackBody = z.strictObject({
   url: CallbackUrl,
   events: z.array(z.enum(RUN_EVENTS)).min(1).max(RUN_EVENTS.length).describe('Events to be called for'),
 })
@@ -55,7 +58,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       const fresh = !(await erp.callbacks.hasSecret(request.tenant))
       const cb = await erp.callbacks.add(request.tenant, request.body.url, request.body.events, new Date())
       if (cb === null) throw new ProblemError('limit-reached', `A tenant may have at most ${MAX_CALLBACKS_PER_TENANT} callbacks`)
-      const secret = fresh ? await erp.callbacks.ensureSecret(request.tenant) : undefined
+      const secret = fresh ? (await erp.callbacks.signingSecrets(request.tenant))[0] : undefined
       request.log.info({ callbackId: cb.id, events: cb.events }, 'callback registered')
       reply.code(201).header('location', `/v1/callbacks/${cb.id}`)
       return { ...cb, events: [...cb.events], ...(secret === undefined ? {} : { secret }) }
@@ -67,13 +70,14 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['callbacks'],
-        summary: 'List standing callbacks',
-        response: { 200: z.object({ items: z.array(CallbackResource) }), ...COMMON_PROBLEMS },
+        summary: 'List standing callbacks, oldest first',
+        querystring: PageQuery,
+        response: { 200: pageSchema(CallbackResource), ...COMMON_PROBLEMS },
       },
     },
     async (request) => {
-      const items = await requireErp(app).callbacks.list(request.tenant)
-      return { items: items.map((c) => ({ ...c, events: [...c.events] })) }
+      const page = await requireErp(app).callbacks.list(request.tenant, request.query.limit, request.query.cursor)
+      return { items: page.items.map((c) => ({ ...c, events: [...c.events] })), nextCursor: page.nextCursor }
     },
   )
 
@@ -120,7 +124,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         tags: ['callbacks'],
         summary: 'Create or rotate the signing secret',
         description:
-          'Returns a new signing secret and replaces the old one at once: deliveries from now on are signed with it. ' +
+          'Returns a new signing secret: deliveries from now on are signed with it, and for a day also with the old one ' +
+          '(two comma-separated signatures), so receivers can switch without losing a delivery. ' +
           'This response is the only place the secret appears. A tenant that never called this gets a secret on first ' +
           'use (first standing callback, shown in that response, or first delivery, then call this to learn it).',
         response: { 200: z.object({ secret: z.string().describe('64 hex characters') }), ...COMMON_PROBLEMS },

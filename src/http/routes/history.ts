@@ -1,11 +1,12 @@
 import { Transform, type Readable } from 'node:stream'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
-import { ProblemError } from '../../errors.js'
 import { HistoryAccumulator } from '../../history/accumulator.js'
 import { readCsvUpload, UploadFormatError } from '../../history/csv-reader.js'
 import { commitUpload } from '../../history/ingest.js'
 import { readNdjsonUpload } from '../../history/ndjson-reader.js'
-import { fieldPath, parseUploadSeries } from '../../history/series-item.js'
+import { parseUploadSeries } from '../../history/series-item.js'
+import { MAX_FIELD_ERRORS } from '../problem-mapping.js'
+import { fieldIssues, formatFieldPath, ProblemError } from '../../errors.js'
 import { JsonUpload, UploadQuery, UploadReportSchema } from '../../schemas/history.js'
 import { requireHistories } from '../plugins/history.js'
 import { BODY_PROBLEMS, COMMON_PROBLEMS } from './responses.js'
@@ -56,7 +57,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         querystring: UploadQuery,
         response: { 200: UploadReportSchema, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
       },
-      config: { idempotency: true },
+      config: { idempotency: true, bodyTypes: ['application/json', ...STREAMED_TYPES] },
     },
     async (request, reply) => {
       const store = requireHistories(app)
@@ -90,8 +91,9 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       } else {
         const body = JsonUpload.safeParse(request.body)
         if (!body.success) {
-          const errors = body.error.issues.slice(0, 100).map((i) => ({ path: fieldPath(i.path), message: i.message }))
-          throw new ProblemError('validation-failed', `The request body has ${body.error.issues.length} invalid field(s)`, errors)
+          const issues = fieldIssues(body.error.issues)
+          const errors = issues.slice(0, MAX_FIELD_ERRORS).map((i) => ({ path: formatFieldPath(i.path, 'body'), message: i.message }))
+          throw new ProblemError('validation-failed', `The request body has ${issues.length} invalid field(s)`, errors)
         }
         if (mode !== undefined && body.data.mode !== undefined && mode !== body.data.mode) {
           throw new ProblemError('validation-failed', 'mode differs between the query string and the body', [

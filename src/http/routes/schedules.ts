@@ -2,21 +2,16 @@ import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../errors.js'
 import { Problem } from '../../schemas/problem.js'
-import { RunSettings, Sku } from '../../schemas/run.js'
-import { ScheduleInputError } from '../../schedules/service.js'
-import { MAX_SCHEDULES_PER_TENANT, type ScheduleSelection } from '../../storage/schedule-store.js'
+import { PageQuery, pageSchema } from '../../schemas/params.js'
+import { RunScope, RunSettings, toRunScope } from '../../schemas/run.js'
+import { Failure } from '../../schemas/results.js'
+import { ScheduleInputError, type ScheduleView } from '../../schedules/service.js'
+import { MAX_SCHEDULES_PER_TENANT } from '../../storage/schedule-store.js'
 import { requireErp } from '../plugins/erp.js'
 import { BODY_PROBLEMS, COMMON_PROBLEMS, NOT_FOUND } from './responses.js'
 
-const Selection = z
-  .union([
-    z.object({ skus: z.array(Sku).min(1).max(100_000).describe('These SKUs (those without a stored history are skipped)') }).strict(),
-    z.object({ tags: z.array(z.string().min(1).max(64)).min(1).max(10).describe('SKUs carrying every tag') }).strict(),
-    z.object({ all: z.literal(true).describe('Every SKU with a stored history') }).strict(),
-  ])
-  .describe('Which stored histories each firing forecasts')
-
-const ScheduleBody = z.object({
+/** The run settings of each firing (as for POST /v1/runs, without series), plus when and over what. */
+const ScheduleBody = RunSettings.extend({
   name: z.string().min(1).max(200).optional(),
   cron: z
     .string()
@@ -24,39 +19,50 @@ const ScheduleBody = z.object({
     .max(200)
     .describe('Cron pattern: minute hour day-of-month month day-of-week (or 6 fields with seconds first), e.g. `0 2 * * 1-5`'),
   timeZone: z.string().min(1).max(100).describe('IANA time zone the pattern is read in, e.g. Europe/Berlin'),
-  selection: Selection,
-  settings: RunSettings.describe('Run settings of each firing, as for POST /v1/runs without series'),
+  scope: RunScope.describe('Which stored histories each firing forecasts'),
 })
 
-const ScheduleResource = z
-  .object({
-    id: z.string(),
-    name: z.string().nullable(),
-    cron: z.string(),
-    timeZone: z.string(),
-    selection: Selection,
-    settings: RunSettings,
-    createdAt: z.string(),
-    nextFireAt: z.string().nullable().describe('ISO-8601'),
-    state: z.object({
-      currentRunId: z.string().nullable().describe('Run of the latest firing that submitted one'),
-      lastFiredAt: z.string().nullable(),
-      fired: z.number().int().describe('Firings that submitted a run'),
-      skipped: z.number().int().describe('Firings skipped because the previous run was still queued or running'),
-      failed: z.number().int().describe('Firings whose run could not be submitted'),
-      lastError: z.string().nullable(),
-    }),
-  })
-  .meta({ id: 'Schedule' })
+const Count = z.number().int().min(0)
+
+const ScheduleResource = RunSettings.extend({
+  id: z.string(),
+  name: z.string().nullable(),
+  cron: z.string(),
+  timeZone: z.string(),
+  scope: RunScope,
+  createdAt: z.string().describe('ISO-8601'),
+  nextFireAt: z.string().nullable().describe('ISO-8601'),
+  firings: z.object({
+    submitted: Count.describe('Firings that submitted a run'),
+    skipped: Count.describe('Firings skipped because the run of the previous one was still queued or running'),
+    failed: Count.describe('Firings whose run could not be submitted'),
+    missingSkus: Count.describe('SKUs of scope.skus without a stored history when a firing ran (deleted since), summed over firings'),
+    lastFiredAt: z.string().nullable().describe('ISO-8601'),
+    currentRunId: z.string().nullable().describe('Run of the latest firing that submitted one'),
+    lastFailure: Failure.nullable().describe('Why the latest firing that failed could not submit its run; cleared by a successful one'),
+  }),
+}).meta({ id: 'Schedule' })
 
 const ScheduleParams = z.object({ scheduleId: z.string().regex(/^[A-Za-z0-9-]{1,64}$/, 'is not a schedule id') })
-const ListQuery = z.object({
-  limit: z.coerce.number().int().min(1).max(100).default(50),
-  cursor: z.string().regex(/^[A-Za-z0-9-]{1,64}$/, 'is not a cursor returned by this API').optional(),
-})
+
+type Body = z.input<typeof ScheduleResource>
+
+/** A schedule as clients see it: the run settings at the top level, beside when and over what. */
+function toResource(s: ScheduleView): Body {
+  return {
+    id: s.id,
+    name: s.name,
+    cron: s.cron,
+    timeZone: s.timeZone,
+    scope: s.scope as Body['scope'],
+    ...s.settings,
+    createdAt: s.createdAt,
+    nextFireAt: s.nextFireAt,
+    firings: s.firings,
+  }
+}
 
 const notFound = (id: string) => new ProblemError('not-found', `Schedule ${id} not found`)
-type Body = z.input<typeof ScheduleResource>
 
 /** /v1/schedules: runs that start by themselves (e.g. every night) over stored histories. */
 const routes: FastifyPluginAsyncZod = async (app) => {
@@ -67,8 +73,10 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         tags: ['schedules'],
         summary: 'Create a schedule',
         description:
-          'Each firing submits a run over the selected stored histories with the given settings. A firing while the ' +
-          "schedule's previous run is still queued or running is skipped (counted in state.skipped).",
+          'Each firing submits a run over the stored histories of the scope with the given settings. A SKU of ' +
+          'scope.skus without a stored history is a 400 listing it; one deleted later is skipped when the schedule ' +
+          "fires and counted in firings.missingSkus. A firing while the schedule's previous run is still queued or " +
+          'running is skipped (counted in firings.skipped).',
         body: ScheduleBody,
         response: { 201: ScheduleResource, ...COMMON_PROBLEMS, ...BODY_PROBLEMS, 409: Problem },
       },
@@ -77,7 +85,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       const erp = requireErp(app)
       let created
       try {
-        created = await erp.schedules.create(request.tenant, { ...request.body, selection: request.body.selection as ScheduleSelection })
+        const { name, cron, timeZone, scope, ...settings } = request.body
+        created = await erp.schedules.create(request.tenant, { ...(name === undefined ? {} : { name }), cron, timeZone, scope: toRunScope(scope), settings })
       } catch (err) {
         if (err instanceof ScheduleInputError) {
           throw new ProblemError('validation-failed', `The request body has ${err.errors.length} invalid field(s)`, err.errors)
@@ -87,7 +96,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       if (created === null) throw new ProblemError('limit-reached', `A tenant may have at most ${MAX_SCHEDULES_PER_TENANT} schedules`)
       request.log.info({ scheduleId: created.id, cron: created.cron, timeZone: created.timeZone }, 'schedule created')
       reply.code(201).header('location', `/v1/schedules/${created.id}`)
-      return created as Body
+      return toResource(created)
     },
   )
 
@@ -97,13 +106,13 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       schema: {
         tags: ['schedules'],
         summary: 'List schedules, oldest first',
-        querystring: ListQuery,
-        response: { 200: z.object({ items: z.array(ScheduleResource), nextCursor: z.string().nullable() }), ...COMMON_PROBLEMS },
+        querystring: PageQuery,
+        response: { 200: pageSchema(ScheduleResource), ...COMMON_PROBLEMS },
       },
     },
     async (request) => {
       const page = await requireErp(app).schedules.list(request.tenant, request.query.limit, request.query.cursor)
-      return page as { items: Body[]; nextCursor: string | null }
+      return { items: page.items.map(toResource), nextCursor: page.nextCursor }
     },
   )
 
@@ -120,7 +129,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     async (request) => {
       const s = await requireErp(app).schedules.get(request.tenant, request.params.scheduleId)
       if (!s) throw notFound(request.params.scheduleId)
-      return s as Body
+      return toResource(s)
     },
   )
 

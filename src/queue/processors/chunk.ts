@@ -5,7 +5,7 @@ import { createLogger } from '../../logger.js'
 import { RunStore } from '../../storage/run-store.js'
 import { workerConnection } from '../connection.js'
 import { createChunkProcessor } from '../processor.js'
-import { createRunEventEmitter } from '../../webhooks/emitter.js'
+import { createRunEventEmitter } from '../../callbacks/emitter.js'
 import { lowerThreadPriority } from '../thread-priority.js'
 
 /**

@@ -49,6 +49,14 @@ describe('POST /v1/forecast (real engine)', () => {
     expect(item.candidates.length).toBeGreaterThan(1)
   })
 
+  it('takes a calendar date as the first period of a weekly series: its ISO week', async () => {
+    // 2024-03-05 is a Tuesday of ISO week 2024-W10 (Monday 4 March); 30 weeks run to 2024-W39.
+    const demand = Array.from({ length: 30 }, (_, t) => 20 + (t % 4))
+    const res = await post({ horizon: 2, frequency: 'week', series: [{ sku: 'WEEKLY', firstPeriod: '2024-03-05', demand }] })
+    expect(res.statusCode).toBe(200)
+    expect(res.json().items[0].forecast.map((p: { period: string }) => p.period)).toEqual(['2024-W40', '2024-W41'])
+  })
+
   it('returns a series the engine rejects as an item with failure, the others forecast', async () => {
     const res = await post({
       horizon: 3,

@@ -2,12 +2,12 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../../errors.js'
 import { RunIdParams } from '../../../schemas/params.js'
 import { RunResource } from '../../../schemas/results.js'
-import { RunSubmission } from '../../../schemas/run.js'
+import { RunSubmission, toRunScope } from '../../../schemas/run.js'
 import { parseRunSubmissionFast } from '../../../schemas/series-check.js'
 import { validatorCompiler } from '../../validation.js'
 import type { RunRecord } from '../../../storage/types.js'
 import { BODY_PROBLEMS, COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
-import { submitStoredSelection } from '../../run-selection.js'
+import { submitStoredScope } from '../../run-scope.js'
 
 /** The run as clients see it: the record without its tenant. */
 export function toRunResource(run: RunRecord): Omit<RunRecord, 'tenant'> {
@@ -30,8 +30,9 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         description:
           'Queues every series for forecasting and answers at once with the run; poll it at the Location header. ' +
           'Bodies up to the configured limit (default 64 MiB) are accepted; larger ones get 413. ' +
-          'Instead of inline series, a run may forecast stored histories: { "skus": [...] } (unknown SKUs are a 400 ' +
-          'listing them), { "tags": [...] } (SKUs carrying every tag) or { "all": true }. Honours Idempotency-Key.',
+          'Instead of inline series, a run may forecast stored histories named by scope: { "scope": { "skus": [...] } } ' +
+          '(a SKU without a stored history is a 400 listing it), { "scope": { "tags": [...] } } (SKUs carrying every tag) ' +
+          'or { "scope": { "all": true } }. Honours Idempotency-Key.',
         body: RunSubmission,
         response: { 202: RunResource, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
       },
@@ -47,11 +48,11 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
-      const { series, skus, tags, all: _all, ...settings } = request.body
-      // The schema lets exactly one of series, skus, tags and all through.
+      const { series, scope, ...settings } = request.body
+      // The schema lets exactly one of series and scope through.
       const run = series
         ? await app.gateway.submit(request.tenant, { ...settings, series })
-        : await submitStoredSelection(app, request.tenant, settings, skus ? { skus } : tags ? { tags } : { all: true })
+        : await submitStoredScope(app, request.tenant, settings, toRunScope(scope!))
       request.log.info({ runId: run.id, series: run.progress.total, stored: series === undefined }, 'run submitted')
       reply.code(202).header('location', `/v1/runs/${encodeURIComponent(run.id)}`)
       return toRunResource(run)

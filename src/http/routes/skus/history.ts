@@ -1,6 +1,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { formatPeriod, parsePeriod } from '../../../engine/index.js'
 import { ProblemError } from '../../../errors.js'
+import { firstPeriodLabel } from '../../../history/buckets.js'
 import { normaliseTags } from '../../../history/tags.js'
 import { HistoryBody, HistoryResource } from '../../../schemas/history.js'
 import { SkuParams } from '../../../schemas/params.js'
@@ -41,7 +42,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     async (request, reply) => {
       const store = requireHistories(app)
       const { sku } = request.params
-      const { frequency, firstPeriod, demand, tags } = request.body
+      const { frequency, demand, tags } = request.body
+      const firstPeriod = firstPeriodLabel(request.body.firstPeriod, frequency)
       try {
         parsePeriod(firstPeriod, frequency)
       } catch (err) {

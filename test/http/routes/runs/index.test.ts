@@ -21,6 +21,25 @@ describe('/v1/runs', () => {
   })
   afterAll(() => app.close())
 
+  it('POST refuses fields it does not know, naming each, at any depth (old names included)', async () => {
+    const before = gateway.submitted.length
+    const res = await app.inject({
+      method: 'POST',
+      url: '/v1/runs',
+      headers: auth(KEY_GARDEN),
+      payload: { horizon: 3, metric: 'mase', series: [{ sku: 'A', demand: [1, 2], start: '2024-01' }], replenishment: { leadTime: 2, serviceLevel: 0.9 } },
+    })
+    expect(res.statusCode).toBe(400)
+    expect(res.json().errors).toEqual(
+      expect.arrayContaining([
+        { path: 'metric', message: 'is not a field of this request' },
+        { path: 'series[0].start', message: 'is not a field of this request' },
+        { path: 'replenishment.leadTime', message: 'is not a field of this request' },
+      ]),
+    )
+    expect(gateway.submitted).toHaveLength(before)
+  })
+
   it('POST queues a run: 202, Location, the run without its tenant, defaults applied', async () => {
     const res = await app.inject({ method: 'POST', url: '/v1/runs', headers: auth(KEY_GARDEN), payload: REQUEST })
     expect(res.statusCode).toBe(202)
@@ -28,6 +47,8 @@ describe('/v1/runs', () => {
     expect(res.headers.location).toBe(`/v1/runs/${run.id}`)
     expect(run.tenant).toBeUndefined()
     expect(run).toMatchObject({ status: 'queued', progress: { total: 2, done: 0, failed: 0 }, finishedAt: null })
+    expect(run.scope).toBeNull()
+    expect(run.failure).toBeNull()
     expect(run.settings).toEqual({
       horizon: 6,
       frequency: 'month',
@@ -132,6 +153,6 @@ describe('/v1/runs', () => {
   it('POST without series is a validation failure', async () => {
     const res = await app.inject({ method: 'POST', url: '/v1/runs', headers: auth(KEY_GARDEN), payload: { horizon: 3 } })
     expect(res.statusCode).toBe(400)
-    expect(res.json().errors).toEqual([{ path: 'series', message: 'give series, or select stored histories with skus, tags or all' }])
+    expect(res.json().errors).toEqual([{ path: 'series', message: 'give series, or stored histories with scope' }])
   })
 })

@@ -27,7 +27,7 @@ describe('GET /v1/runs/{runId}/results', () => {
     expect(first.statusCode).toBe(200)
     const p1 = first.json()
     expect(p1.items.map((i: { sku: string }) => i.sku)).toEqual(['A', 'B'])
-    expect(p1.nextCursor).toBe('o2')
+    expect(typeof p1.nextCursor).toBe('string')
     const p2 = (await get(`?limit=2&cursor=${p1.nextCursor}`)).json()
     expect(p2.items).toEqual([{ sku: 'C', frequency: 'month', failure: { code: 'series-too-short', message: 'holt requires at least 4 data points' } }])
     expect(p2.nextCursor).toBeNull()
@@ -60,10 +60,10 @@ describe('GET /v1/runs/{runId}/results', () => {
     expect(res.statusCode).toBe(400)
     expect(res.json()).toMatchInlineSnapshot(`
       {
-        "detail": "cursor is not valid",
+        "detail": "cursor is not one this service issued",
         "errors": [
           {
-            "message": "cursor is not valid",
+            "message": "cursor is not one this service issued",
             "path": "cursor",
           },
         ],

@@ -1,7 +1,7 @@
 import { createServer } from 'node:http'
 import type { AddressInfo } from 'node:net'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { isPrivateAddress, postJson } from '../../src/webhooks/http-post.js'
+import { isPrivateAddress, postJson } from '../../src/callbacks/http-post.js'
 import { startReceiver } from './receiver.js'
 
 // Address ranges: RFC 1918 (private), RFC 6598 (shared), RFC 3927 (link-local), RFC 4193 (unique local),

@@ -9,6 +9,7 @@ import { AccuracyStore } from '../storage/accuracy-store.js'
 import { DeliveryStore } from '../storage/delivery-store.js'
 import { RunStore } from '../storage/run-store.js'
 import { ScheduleStore } from '../storage/schedule-store.js'
+import { HistoryStore } from '../storage/history-store.js'
 import { CallbackStore } from './callback-store.js'
 
 /** What the HTTP routes of the ERP features (callbacks, deliveries, schedules, accuracy) use. */
@@ -47,7 +48,7 @@ export function createErpServices(
     services: {
       callbacks: new CallbackStore(redis, prefix),
       deliveries: new DeliveryStore(redis, { prefix, ttlSeconds: config.resultRetentionSeconds }),
-      schedules: new ScheduleService(new ScheduleStore(redis, prefix), scheduleQueue, {
+      schedules: new ScheduleService(new ScheduleStore(redis, prefix), new HistoryStore(redis, { prefix }), scheduleQueue, {
         minIntervalSeconds: opts.minIntervalSeconds ?? config.scheduleMinIntervalSeconds ?? DEFAULT_MIN_INTERVAL_SECONDS,
       }),
       accuracy: new AccuracyStore(redis, runs, { prefix }),

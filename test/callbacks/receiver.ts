@@ -2,7 +2,7 @@ import { createServer, type IncomingHttpHeaders, type Server } from 'node:http'
 import type { AddressInfo } from 'node:net'
 
 /**
- * TEST DOUBLE of a webhook receiver on 127.0.0.1: records every request and
+ * TEST DOUBLE of a callback receiver on 127.0.0.1: records every request and
  * answers with the status `respond` returns for it.
  */
 export interface Received {

@@ -36,9 +36,13 @@ export function eventOf(status: RunRecord['status']): RunEvent | null {
   }
 }
 
-/** Stable per run and target, so an event processed twice opens one delivery. */
-export function deliveryIdFor(url: string, callbackId: string | null): string {
-  return `d-${createHash('sha256').update(`${callbackId ?? 'run'}\n${url}`).digest('hex').slice(0, 16)}`
+/**
+ * The id of the delivery of a run's event to one target: unique per run, event and
+ * target, and the same however often the event is processed (a retried event job
+ * opens no second delivery), so every retry of a delivery carries its id.
+ */
+export function deliveryIdFor(runId: string, event: RunEvent, url: string, callbackId: string | null): string {
+  return `d-${createHash('sha256').update(`${runId}\n${event}\n${callbackId ?? 'run'}\n${url}`).digest('hex').slice(0, 32)}`
 }
 
 /**
@@ -58,7 +62,7 @@ export function eventBody(event: RunEvent, run: RunRecord): string {
       startedAt: run.startedAt,
       finishedAt: run.finishedAt,
       summary: run.summary,
-      error: run.error,
+      failure: run.failure,
       links: { self: `/v1/runs/${run.id}`, results: `/v1/runs/${run.id}/results` },
     },
   })

@@ -1,14 +1,15 @@
 import { UnrecoverableError, type Job, type JobsOptions } from 'bullmq'
 import type { Logger } from 'pino'
-import type { DeliveryStore, DeliveryState } from '../storage/delivery-store.js'
+import type { DeliveryStore, DeliveryStatus } from '../storage/delivery-store.js'
+import type { Failure } from '../storage/types.js'
 import type { RunStore } from '../storage/run-store.js'
 import type { CallbackStore } from './callback-store.js'
-import { DELIVERY_JOB, RUN_EVENT_JOB, WEBHOOK_QUEUE, deliveryJobId } from './names.js'
+import { DELIVERY_JOB, RUN_EVENT_JOB, CALLBACK_QUEUE, deliveryJobId } from './names.js'
 import { DeliveryJob, RunEventJob, deliveryIdFor, eventBody, eventOf } from './payload.js'
 import { postJson } from './http-post.js'
 import { signatureHeaders } from './signing.js'
 
-export interface WebhookSettings {
+export interface CallbackSettings {
   readonly attempts: number
   readonly backoffMs: number
   readonly timeoutMs: number
@@ -16,13 +17,13 @@ export interface WebhookSettings {
   readonly allowPrivateNetworks: boolean
 }
 
-export interface WebhookProcessorDeps {
+export interface CallbackProcessorDeps {
   readonly runs: Pick<RunStore, 'getRun'>
   readonly callbacks: CallbackStore
   readonly deliveries: DeliveryStore
-  /** Adds delivery jobs (the webhook queue). */
+  /** Adds delivery jobs (the callback queue). */
   readonly enqueue: (jobs: { name: string; data: DeliveryJob; opts: JobsOptions }[]) => Promise<unknown>
-  readonly settings: WebhookSettings
+  readonly settings: CallbackSettings
   readonly logger: Logger
   readonly now?: () => Date
 }
@@ -32,15 +33,19 @@ class AttemptFailed extends Error {
   override readonly name = 'AttemptFailed'
 }
 
-/** Short reason for a failed request: the system error code, or the message of ours (timeout, blocked). */
-function describeError(err: unknown): string {
+/** The `failure.code` of a failed delivery attempt (docs/problems.md lists them). */
+export const DELIVERY_FAILURE_CODES = ['receiver-status', 'timeout', 'address-not-allowed', 'network-error'] as const
+
+/** Why a request failed: our timeout or address check, else the system error code (ECONNREFUSED...). */
+function requestFailure(err: unknown): Failure {
   const e = err as { code?: string; message?: string }
-  if (e?.code === 'ETIMEDOUT' || e?.code === 'EBLOCKED') return (e.message ?? e.code).slice(0, 200)
-  return (e?.code ?? e?.message ?? 'request failed').slice(0, 200)
+  if (e?.code === 'ETIMEDOUT') return { code: 'timeout', message: (e.message ?? e.code).slice(0, 200) }
+  if (e?.code === 'EBLOCKED') return { code: 'address-not-allowed', message: (e.message ?? e.code).slice(0, 200) }
+  return { code: 'network-error', message: (e?.code ?? e?.message ?? 'request failed').slice(0, 200) }
 }
 
 /**
- * The webhook queue's processor:
+ * The callback queue's processor:
  *  - `run-event`: reads the run; for a terminal status it opens one delivery per
  *    target (the run's callbackUrl, then standing callbacks subscribed to the
  *    event) and enqueues a job for each;
@@ -50,7 +55,7 @@ function describeError(err: unknown): string {
  * Every attempt is logged on the run (GET /v1/runs/{id}/deliveries); after the
  * last one the delivery is `dead`.
  */
-export function createWebhookProcessor(deps: WebhookProcessorDeps) {
+export function createCallbackProcessor(deps: CallbackProcessorDeps) {
   const now = deps.now ?? (() => new Date())
   const { settings } = deps
   const deliveryOptions = (runId: string, deliveryId: string): JobsOptions => ({
@@ -70,7 +75,7 @@ export function createWebhookProcessor(deps: WebhookProcessorDeps) {
     if (!run || !event) return { deliveries: 0 }
     const targets: { url: string; callbackId: string | null }[] = []
     if (run.settings.callbackUrl) targets.push({ url: run.settings.callbackUrl, callbackId: null })
-    for (const cb of await deps.callbacks.list(tenant)) {
+    for (const cb of await deps.callbacks.all(tenant)) {
       if (cb.events.includes(event)) targets.push({ url: cb.url, callbackId: cb.id })
     }
     if (targets.length === 0) return { deliveries: 0 }
@@ -78,14 +83,14 @@ export function createWebhookProcessor(deps: WebhookProcessorDeps) {
     const createdAt = now().toISOString()
     const jobs = []
     for (const t of targets) {
-      const id = deliveryIdFor(t.url, t.callbackId)
+      const id = deliveryIdFor(runId, event, t.url, t.callbackId)
       await deps.deliveries.open(tenant, runId, {
         id,
         url: t.url,
         event,
         source: t.callbackId === null ? 'run' : 'standing',
         callbackId: t.callbackId,
-        state: 'pending',
+        status: 'pending',
         maxAttempts: settings.attempts,
         attempts: [],
         createdAt,
@@ -96,49 +101,48 @@ export function createWebhookProcessor(deps: WebhookProcessorDeps) {
     return { deliveries: jobs.length }
   }
 
-  async function onDelivery(job: Job): Promise<{ statusCode: number }> {
+  async function onDelivery(job: Job): Promise<{ httpStatus: number }> {
     const parsed = DeliveryJob.safeParse(job.data)
     if (!parsed.success) throw new UnrecoverableError('invalid delivery job data')
     const { tenant, runId, deliveryId, url, event, body } = parsed.data
     const attempt = job.attemptsMade + 1
     const maxAttempts = job.opts.attempts ?? 1
-    const log = deps.logger.child({ queue: WEBHOOK_QUEUE, jobId: job.id, runId, tenant, deliveryId, attempt })
-    const secret = await deps.callbacks.ensureSecret(tenant)
+    const log = deps.logger.child({ queue: CALLBACK_QUEUE, jobId: job.id, runId, tenant, deliveryId, attempt })
+    const secrets = await deps.callbacks.signingSecrets(tenant)
     const started = now()
     const t0 = performance.now()
-    let statusCode: number | null = null
-    let error: string | null = null
+    let httpStatus: number | null = null
+    let failure: Failure | null = null
     try {
-      statusCode = await postJson(
+      httpStatus = await postJson(
         url,
         body,
         {
           'content-type': 'application/json',
-          'user-agent': 'almanac-webhooks/1',
+          'user-agent': 'almanac-callbacks/1',
           'almanac-event': event,
-          'almanac-delivery': deliveryId,
-          ...signatureHeaders(secret, Math.floor(started.getTime() / 1000), body),
+          ...signatureHeaders(secrets, deliveryId, Math.floor(started.getTime() / 1000), body),
         },
         { timeoutMs: settings.timeoutMs, allowPrivateNetworks: settings.allowPrivateNetworks },
       )
-      if (statusCode < 200 || statusCode > 299) error = `HTTP ${statusCode}`
+      if (httpStatus < 200 || httpStatus > 299) failure = { code: 'receiver-status', message: `HTTP ${httpStatus}` }
     } catch (err) {
-      error = describeError(err)
+      failure = requestFailure(err)
     }
     const durationMs = Math.round(performance.now() - t0)
-    const state: DeliveryState = error === null ? 'delivered' : attempt >= maxAttempts ? 'dead' : 'retrying'
-    await deps.deliveries.recordAttempt(tenant, runId, deliveryId, { attempt, at: started.toISOString(), statusCode, error, durationMs }, state)
-    if (error !== null) {
-      log.warn({ statusCode, error, durationMs, state }, 'webhook attempt failed')
-      throw new AttemptFailed(error)
+    const status: DeliveryStatus = failure === null ? 'delivered' : attempt >= maxAttempts ? 'dead' : 'retrying'
+    await deps.deliveries.recordAttempt(tenant, runId, deliveryId, { attempt, at: started.toISOString(), httpStatus, failure, durationMs }, status)
+    if (failure !== null) {
+      log.warn({ httpStatus, failure, durationMs, status }, 'callback attempt failed')
+      throw new AttemptFailed(failure.message)
     }
-    log.info({ statusCode, durationMs }, 'webhook delivered')
-    return { statusCode: statusCode! }
+    log.info({ httpStatus, durationMs }, 'callback delivered')
+    return { httpStatus: httpStatus! }
   }
 
   return async (job: Job): Promise<unknown> => {
     if (job.name === RUN_EVENT_JOB) return onRunEvent(job)
     if (job.name === DELIVERY_JOB) return onDelivery(job)
-    throw new UnrecoverableError(`unknown webhook job ${job.name}`)
+    throw new UnrecoverableError(`unknown callback job ${job.name}`)
   }
 }

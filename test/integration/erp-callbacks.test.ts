@@ -5,13 +5,13 @@ import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
 import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
 import { DeliveryStore, type Delivery } from '../../src/storage/delivery-store.js'
 import { runKeys } from '../../src/storage/keys.js'
-import { CallbackStore } from '../../src/webhooks/callback-store.js'
-import { verifySignature } from '../../src/webhooks/signing.js'
+import { CallbackStore } from '../../src/callbacks/callback-store.js'
+import { verifySignature } from '../../src/callbacks/signing.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runRequest, runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
-import { deadUrl, startReceiver } from '../webhooks/receiver.js'
+import { deadUrl, startReceiver } from '../callbacks/receiver.js'
 
-// Webhooks end to end: real gateway, chunk and webhook workers, Redis, and a receiver on 127.0.0.1.
+// Callbacks end to end: real gateway, chunk and callback workers, Redis, and a receiver on 127.0.0.1.
 let url: string
 let prefix: string
 let gateway: RunMachinery
@@ -26,15 +26,25 @@ const ATTEMPTS = 4
 
 beforeAll(async () => {
   url = await redisUrlForTests()
-  prefix = uniquePrefix('erp-webhooks')
-  const config = runsTestConfig(url, prefix, { webhookAttempts: ATTEMPTS, webhookBackoffMs: 50, webhookTimeoutMs: 2000, webhookAllowPrivateNetworks: true })
+  prefix = uniquePrefix('erp-callbacks')
+  const config = runsTestConfig(url, prefix, { callbackAttempts: ATTEMPTS, callbackBackoffMs: 50, callbackTimeoutMs: 2000, callbackAllowPrivateNetworks: true })
   gateway = createRunGateway(config)
   workers = startWorkers(config, createLogger({ level: 'silent' }))
   redis = new Redis(url)
   deliveries = new DeliveryStore(redis, { prefix, ttlSeconds: 3600 })
   callbacks = new CallbackStore(redis, prefix)
   secret = await callbacks.rotateSecret('garden')
-  receiver = await startReceiver((r, nth) => (r.path === '/flaky' && nth <= 2 ? 500 : r.path === '/moved' ? 302 : 200))
+  // /twice fails the first attempt of each delivery (by its id), so every delivery is retried once.
+  const seen = new Set<string>()
+  receiver = await startReceiver((r, nth) => {
+    if (r.path === '/twice') {
+      const id = String(r.headers['almanac-delivery'])
+      if (seen.has(id)) return 200
+      seen.add(id)
+      return 503
+    }
+    return r.path === '/flaky' && nth <= 2 ? 500 : r.path === '/moved' ? 302 : 200
+  })
 })
 
 afterAll(async () => {
@@ -47,17 +57,17 @@ afterAll(async () => {
 
 const settled = (tenant: string, runId: string, n = 1) =>
   waitFor(async () => {
-    const list = await deliveries.list(tenant, runId)
-    return list.length >= n && list.every((d) => d.state === 'delivered' || d.state === 'dead') ? list : undefined
+    const list = await deliveries.all(tenant, runId)
+    return list.length >= n && list.every((d) => d.status === 'delivered' || d.status === 'dead') ? list : undefined
   }, 60_000, `deliveries of ${runId}`)
 
-describe('run webhooks', { timeout: 120_000 }, () => {
+describe('run callbacks', { timeout: 120_000 }, () => {
   it('delivers a signed run.succeeded event the receiver can verify', async () => {
     const run = await gateway.submit('garden', runRequest(syntheticSeries(3), { callbackUrl: `${receiver.url}/ok` }))
     const [d] = (await settled('garden', run.id)) as [Delivery]
-    expect(d).toMatchObject({ state: 'delivered', event: 'run.succeeded', source: 'run', url: `${receiver.url}/ok` })
+    expect(d).toMatchObject({ status: 'delivered', event: 'run.succeeded', source: 'run', url: `${receiver.url}/ok` })
     expect(d.attempts).toHaveLength(1)
-    expect(d.attempts[0]).toMatchObject({ attempt: 1, statusCode: 200, error: null })
+    expect(d.attempts[0]).toMatchObject({ attempt: 1, httpStatus: 200, failure: null })
 
     const got = receiver.received.filter((r) => r.path === '/ok')
     expect(got).toHaveLength(1)
@@ -66,8 +76,13 @@ describe('run webhooks', { timeout: 120_000 }, () => {
     expect(body).toMatchObject({ type: 'run.succeeded', run: { id: run.id, status: 'succeeded', progress: { total: 3, done: 3 } } })
     expect(body.run).not.toHaveProperty('settings')
     expect(req.headers['almanac-event']).toBe('run.succeeded')
-    expect(req.headers['almanac-signature']).toMatch(/^v1=[0-9a-f]{64}$/)
-    const headers = { signature: req.headers['almanac-signature'] as string, timestamp: req.headers['almanac-timestamp'] as string }
+    expect(req.headers['almanac-delivery']).toBe(d.id)
+    expect(req.headers['almanac-signature']).toMatch(/^hmac-sha256=[0-9a-f]{64}$/)
+    const headers = {
+      signature: req.headers['almanac-signature'] as string,
+      delivery: req.headers['almanac-delivery'] as string,
+      sentAt: req.headers['almanac-sent-at'] as string,
+    }
     const now = Math.floor(Date.now() / 1000)
     expect(verifySignature(secret, headers, req.body, now)).toBe(true)
     // A tampered body, another secret or a stale timestamp fail verification.
@@ -79,12 +94,16 @@ describe('run webhooks', { timeout: 120_000 }, () => {
   it('retries a receiver that fails twice: three attempts logged, delivered', async () => {
     const run = await gateway.submit('garden', runRequest(syntheticSeries(2), { callbackUrl: `${receiver.url}/flaky` }))
     const [d] = (await settled('garden', run.id)) as [Delivery]
-    expect(d.state).toBe('delivered')
-    expect(d.attempts.map((a) => [a.attempt, a.statusCode, a.error])).toEqual([
-      [1, 500, 'HTTP 500'],
-      [2, 500, 'HTTP 500'],
+    expect(d.status).toBe('delivered')
+    const failed = { code: 'receiver-status', message: 'HTTP 500' }
+    expect(d.attempts.map((a) => [a.attempt, a.httpStatus, a.failure])).toEqual([
+      [1, 500, failed],
+      [2, 500, failed],
       [3, 200, null],
     ])
+    // Every retry of the delivery carried its id.
+    const sent = receiver.received.filter((r) => r.path === '/flaky')
+    expect(sent.map((r) => r.headers['almanac-delivery'])).toEqual([d.id, d.id, d.id])
     // Exponential backoff: the second wait (100 ms) is at least the first (50 ms).
     const t = d.attempts.map((a) => Date.parse(a.at))
     expect(t[1]! - t[0]!).toBeGreaterThanOrEqual(40)
@@ -95,19 +114,19 @@ describe('run webhooks', { timeout: 120_000 }, () => {
     const down = await deadUrl()
     const run = await gateway.submit('garden', runRequest(syntheticSeries(2), { callbackUrl: `${down}/hook` }))
     const [d] = (await settled('garden', run.id)) as [Delivery]
-    expect(d.state).toBe('dead')
+    expect(d.status).toBe('dead')
     expect(d.attempts).toHaveLength(ATTEMPTS)
     for (const a of d.attempts) {
-      expect(a.statusCode).toBeNull()
-      expect(a.error).toBe('ECONNREFUSED')
+      expect(a.httpStatus).toBeNull()
+      expect(a.failure).toEqual({ code: 'network-error', message: 'ECONNREFUSED' })
     }
   })
 
   it('does not follow redirects: a 302 is a failed attempt', async () => {
     const run = await gateway.submit('garden', runRequest(syntheticSeries(1), { callbackUrl: `${receiver.url}/moved` }))
     const [d] = (await settled('garden', run.id)) as [Delivery]
-    expect(d.state).toBe('dead')
-    expect(d.attempts[0]).toMatchObject({ statusCode: 302, error: 'HTTP 302' })
+    expect(d.status).toBe('dead')
+    expect(d.attempts[0]).toMatchObject({ httpStatus: 302, failure: { code: 'receiver-status', message: 'HTTP 302' } })
   })
 
   it('calls standing callbacks subscribed to the event (run.cancelled), not others', async () => {
@@ -116,7 +135,7 @@ describe('run webhooks', { timeout: 120_000 }, () => {
     const run = await gateway.submit('garden', runRequest(syntheticSeries(400)))
     await gateway.cancel('garden', run.id)
     const list = await settled('garden', run.id)
-    expect(list.map((d) => [d.url, d.event, d.source, d.state])).toEqual([
+    expect(list.map((d) => [d.url, d.event, d.source, d.status])).toEqual([
       [`${receiver.url}/cancelled`, 'run.cancelled', 'standing', 'delivered'],
     ])
     expect(receiver.received.filter((r) => r.path === '/failed-only')).toHaveLength(0)
@@ -128,9 +147,12 @@ describe('run webhooks', { timeout: 120_000 }, () => {
     const run = await gateway.submit('garden', runRequest(syntheticSeries(400), { callbackUrl: `${receiver.url}/failed` }))
     await redis.del(runKeys(prefix, 'garden', run.id).input(39))
     const [d] = (await settled('garden', run.id)) as [Delivery]
-    expect(d).toMatchObject({ event: 'run.failed', state: 'delivered' })
+    expect(d).toMatchObject({ event: 'run.failed', status: 'delivered' })
     const body = JSON.parse(receiver.received.find((r) => r.path === '/failed')!.body)
-    expect(body).toMatchObject({ type: 'run.failed', run: { id: run.id, status: 'failed', error: 'chunk 39 failed: input of chunk 39 is missing (expired?)' } })
+    expect(body).toMatchObject({
+      type: 'run.failed',
+      run: { id: run.id, status: 'failed', failure: { code: 'chunk-failed', message: 'chunk 39 failed: input of chunk 39 is missing (expired?)' } },
+    })
   })
 
   it('keeps tenants apart: another tenant sees no deliveries', async () => {
@@ -138,6 +160,19 @@ describe('run webhooks', { timeout: 120_000 }, () => {
     const own = await settled('garden', run.id)
     // The standing callbacks listen to run.cancelled and run.failed only: one delivery, the run's own.
     expect(own.map((d) => d.source)).toEqual(['run'])
-    expect(await deliveries.list('heating', run.id)).toEqual([])
+    expect(await deliveries.all('heating', run.id)).toEqual([])
+  })
+
+  it('gives two runs called back at one URL different delivery ids; each keeps its id across retries', async () => {
+    const a = await gateway.submit('garden', runRequest(syntheticSeries(1), { callbackUrl: `${receiver.url}/twice` }))
+    const b = await gateway.submit('garden', runRequest(syntheticSeries(1), { callbackUrl: `${receiver.url}/twice` }))
+    const [da] = (await settled('garden', a.id)) as [Delivery]
+    const [db] = (await settled('garden', b.id)) as [Delivery]
+    expect(da.id).not.toBe(db.id)
+    // The receiver fails each delivery's first attempt; the retry carries the same id.
+    const ids = receiver.received.filter((r) => r.path === '/twice').map((r) => r.headers['almanac-delivery'])
+    expect(ids.filter((id) => id === da.id)).toHaveLength(2)
+    expect(ids.filter((id) => id === db.id)).toHaveLength(2)
+    expect(da.attempts.map((x) => x.httpStatus)).toEqual([503, 200])
   })
 })

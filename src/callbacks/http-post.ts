@@ -4,7 +4,7 @@ import { request as httpsRequest } from 'node:https'
 import { BlockList, isIP } from 'node:net'
 
 /**
- * One webhook POST with node:http(s): no redirects followed, a hard timeout,
+ * One callback POST with node:http(s): no redirects followed, a hard timeout,
  * and (unless private networks are allowed) a refusal to connect to loopback,
  * private, link-local, shared or multicast addresses. The check runs in the
  * DNS lookup the connection itself uses, so a name that resolves differently
@@ -18,7 +18,7 @@ for (const [net, prefix] of [
 ] as const) PRIVATE.addSubnet(net, prefix, 'ipv4')
 for (const [net, prefix] of [['::', 127], ['fc00::', 7], ['fe80::', 10], ['ff00::', 8]] as const) PRIVATE.addSubnet(net, prefix, 'ipv6')
 
-/** True for addresses a webhook must not reach unless private networks are allowed. */
+/** True for addresses a callback must not reach unless private networks are allowed. */
 export function isPrivateAddress(address: string): boolean {
   const family = isIP(address)
   if (family === 4) return PRIVATE.check(address, 'ipv4')

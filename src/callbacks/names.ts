@@ -1,8 +1,8 @@
 import type { JobsOptions } from 'bullmq'
 
-/** Queue, job names and job ids of webhook deliveries (a queue of their own). */
+/** Queue, job names and job ids of callback deliveries (a queue of their own). */
 
-export const WEBHOOK_QUEUE = 'webhooks'
+export const CALLBACK_QUEUE = 'callbacks'
 /** A run reached a terminal status: find the callbacks to call. */
 export const RUN_EVENT_JOB = 'run-event'
 /** One POST to one URL, retried with exponential backoff. */
@@ -29,7 +29,7 @@ export const RUN_EVENT_JOB_OPTIONS: JobsOptions = {
 }
 
 /** Defaults when config does not say otherwise. */
-export const WEBHOOK_DEFAULTS = {
+export const CALLBACK_DEFAULTS = {
   attempts: 5,
   /** First retry after this long, then doubling: 30 s, 1 min, 2 min, 4 min. */
   backoffMs: 30_000,

@@ -3,13 +3,13 @@ import type { FastifyInstance } from 'fastify'
 import type { RunMachinery } from '../../src/queue/gateway.js'
 import { startService, type TestService } from '../helpers/service.js'
 import { syntheticSeries, waitFor } from '../queue/fixtures.js'
-import { deadUrl } from '../webhooks/receiver.js'
+import { deadUrl } from '../callbacks/receiver.js'
 
 /**
- * A webhook receiver that is down for good, seen through the API: the run
+ * A callback receiver that is down for good, seen through the API: the run
  * still succeeds, the delivery is retried with growing pauses and ends dead,
  * and GET /v1/runs/{id}/deliveries shows every attempt and why it failed.
- * (test/integration/erp-webhooks.test.ts covers the same at the store level,
+ * (test/integration/erp-callbacks.test.ts covers the same at the store level,
  * plus flaky receivers and redirects.)
  */
 
@@ -20,12 +20,12 @@ let app: FastifyInstance
 let gateway: RunMachinery
 
 beforeAll(async () => {
-  service = await startService('fault-webhook-down', {
+  service = await startService('fault-callback-down', {
     config: {
-      webhookAttempts: ATTEMPTS,
-      webhookBackoffMs: BACKOFF_MS,
-      webhookTimeoutMs: 2000,
-      webhookAllowPrivateNetworks: true,
+      callbackAttempts: ATTEMPTS,
+      callbackBackoffMs: BACKOFF_MS,
+      callbackTimeoutMs: 2000,
+      callbackAllowPrivateNetworks: true,
     },
     erp: true,
   })
@@ -34,7 +34,7 @@ beforeAll(async () => {
 
 afterAll(() => service?.close())
 
-describe('webhook receiver down', { timeout: 60_000 }, () => {
+describe('callback receiver down', { timeout: 60_000 }, () => {
   it('retries with backoff, ends dead, and the API shows each attempt; the run is unaffected', async () => {
     const down = await deadUrl()
     const submitted = await app.inject({
@@ -48,16 +48,16 @@ describe('webhook receiver down', { timeout: 60_000 }, () => {
     const delivery = await waitFor(async () => {
       const res = await app.inject({ url: `/v1/runs/${runId}/deliveries` })
       const d = res.json().items?.[0]
-      return d && d.state === 'dead' ? d : undefined
+      return d && d.status === 'dead' ? d : undefined
     }, 45_000, 'the delivery to end dead')
 
     expect(delivery).toMatchObject({ url: `${down}/almanac-hook`, event: 'run.succeeded', source: 'run', maxAttempts: ATTEMPTS })
     expect(delivery.attempts.map((a: { attempt: number }) => a.attempt)).toEqual([1, 2, 3])
     for (const a of delivery.attempts) {
-      expect(a.statusCode).toBeNull()
-      expect(a.error).toBe('ECONNREFUSED')
+      expect(a.httpStatus).toBeNull()
+      expect(a.failure).toEqual({ code: 'network-error', message: 'ECONNREFUSED' })
     }
-    // Backoff doubles from WEBHOOK_BACKOFF_MS: at least 200 ms, then 400 ms between attempts.
+    // Backoff doubles from CALLBACK_BACKOFF_MS: at least 200 ms, then 400 ms between attempts.
     const at = delivery.attempts.map((a: { at: string }) => Date.parse(a.at))
     expect(at[1] - at[0]).toBeGreaterThanOrEqual(BACKOFF_MS - 20)
     expect(at[2] - at[1]).toBeGreaterThanOrEqual(2 * BACKOFF_MS - 20)

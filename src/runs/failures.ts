@@ -1,0 +1,19 @@
+import type { Failure } from '../storage/types.js'
+
+/**
+ * `failure.code` of a run that failed as a whole (docs/problems.md lists these
+ * beside the item, delivery and firing codes): a chunk that failed its last
+ * attempt, or chunks that could not be queued.
+ */
+export const RUN_FAILURE_CODES = ['chunk-failed', 'enqueue-failed'] as const
+export type RunFailureCode = (typeof RUN_FAILURE_CODES)[number]
+
+export function runFailure(code: RunFailureCode, message: string): Failure {
+  return { code, message }
+}
+
+/** Replenishment figures were asked for but do not fit the series (the forecast stands without them). */
+export const REPLENISHMENT_SKIPPED = 'replenishment-skipped'
+
+/** Warning codes the service adds to result items beside the engine's own (docs/warnings.md). */
+export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED] as const

@@ -1,8 +1,10 @@
 import type { jsonSchemaTransformObject } from 'fastify-type-provider-zod'
-import { PROBLEM_CONTENT_TYPE, PROBLEM_TYPES } from '../errors.js'
+import { PROBLEM_CONTENT_TYPE, PROBLEM_TYPES, type ProblemSlug } from '../errors.js'
 
-// Last touches on the generated OpenAPI document: problem responses get their
-// media type, descriptions and headers; unreferenced component schemas go.
+// Last touches on the generated OpenAPI document: each operation's error responses
+// are made from the problems its route lists (`x-problems`), success responses get
+// their descriptions and headers, routes add media types the schemas cannot express
+// (`x-requestBodies`, `x-responseMediaTypes`), and unreferenced component schemas go.
 
 type OpenApiDoc = ReturnType<typeof jsonSchemaTransformObject>
 interface OpenApiResponse {
@@ -10,39 +12,113 @@ interface OpenApiResponse {
   content?: Record<string, unknown>
   headers?: Record<string, unknown>
 }
+interface OpenApiOperation {
+  operationId?: string
+  parameters?: Record<string, unknown>[]
+  responses?: Record<string, OpenApiResponse>
+  requestBody?: { required: boolean; content: Record<string, unknown> }
+  'x-problems'?: readonly ProblemSlug[]
+  'x-requestBodies'?: Record<string, unknown>
+  'x-responseMediaTypes'?: Record<string, Record<string, unknown>>
+  /** The route has `config.etag` (plugins/etag.ts): ETag on 200, If-None-Match, 304. */
+  'x-etag'?: boolean
+}
 
-const header = (description: string, type: 'string' | 'integer' = 'string') => ({ description, schema: { type } })
+const header = (description: string, type: 'string' | 'integer' = 'string') => ({
+  description,
+  schema: type === 'integer' ? { type, minimum: 0 } : { type },
+})
 
 /** Response headers clients rely on, by status. */
 const STATUS_HEADERS: Record<string, Record<string, unknown>> = {
+  '201': { Location: header('URL of the resource created') },
   '202': { Location: header('URL of the run: /v1/runs/{runId}') },
   '401': { 'WWW-Authenticate': header('Bearer') },
   '429': { 'Retry-After': header('Seconds until the tenant may send again', 'integer') },
+  '503': { 'Retry-After': header('Seconds to wait before retrying, when Redis is unreachable', 'integer') },
 }
 
 const STATUS_DESCRIPTIONS: Record<string, string> = {
   '200': 'OK',
+  '201': 'Created',
   '202': 'Accepted; poll the run at the Location header',
+  '204': 'No content',
 }
 
-/** Error responses are problem details: say so in the document; describe each status and its headers. */
-export function problemContentType(doc: OpenApiDoc): OpenApiDoc {
-  const paths = (doc as { paths?: Record<string, Record<string, { responses?: Record<string, OpenApiResponse> }>> }).paths
-  for (const item of Object.values(paths ?? {})) {
-    for (const op of Object.values(item)) {
-      for (const [status, response] of Object.entries(op.responses ?? {})) {
-        if (STATUS_HEADERS[status]) response.headers = { ...response.headers, ...STATUS_HEADERS[status] }
-        if (Number(status) >= 400 && response.content?.['application/json']) {
-          response.content = { [PROBLEM_CONTENT_TYPE]: response.content['application/json'] }
-          const titles = Object.values(PROBLEM_TYPES)
-            .filter((p) => String(p.status) === status)
-            .map((p) => p.title)
-          response.description = titles.join(' / ')
-        } else if (STATUS_DESCRIPTIONS[status] && response.description === 'Default Response') {
-          response.description = STATUS_DESCRIPTIONS[status]
-        }
+function operations(doc: OpenApiDoc): OpenApiOperation[] {
+  const paths = (doc as { paths?: Record<string, Record<string, OpenApiOperation>> }).paths
+  return Object.values(paths ?? {}).flatMap((item) => Object.values(item))
+}
+
+/** Conditional reads (`x-etag`) and Idempotency-Key (routes whose problems include its two), as parameters and headers. */
+export function protocolHeaders(doc: OpenApiDoc): OpenApiDoc {
+  for (const op of operations(doc)) {
+    const responses = (op.responses ??= {})
+    const success = Object.keys(responses).filter((s) => s.startsWith('2'))
+    if (op['x-etag']) {
+      op.parameters = [
+        ...(op.parameters ?? []),
+        { in: 'header', name: 'If-None-Match', required: false, description: 'ETag of a copy you hold: 304 when unchanged', schema: { type: 'string' } },
+      ]
+      for (const s of success) responses[s]!.headers = { ...responses[s]!.headers, ETag: header('Strong tag of this answer\'s body') }
+      responses['304'] = { description: 'Not modified: If-None-Match matches the current ETag (no body)', headers: { ETag: header('The current tag') } }
+    }
+    if (op['x-problems']?.includes('idempotency-key-in-use')) {
+      op.parameters = [
+        ...(op.parameters ?? []),
+        {
+          in: 'header',
+          name: 'Idempotency-Key',
+          required: false,
+          description:
+            'Any 1-255 visible ASCII characters. The same key with the same request answers the first answer again ' +
+            '(with Almanac-Reused-Answer: true); with another request it is a 422; while the first is in flight a 409',
+          schema: { type: 'string', minLength: 1, maxLength: 255 },
+        },
+      ]
+      for (const s of success) {
+        responses[s]!.headers = { ...responses[s]!.headers, 'Almanac-Reused-Answer': header('true when this is the stored answer to an earlier request with the same Idempotency-Key') }
       }
     }
+    delete op['x-etag']
+  }
+  return doc
+}
+
+/** Error responses from `x-problems`: one per status, titled by exactly the route's problems. */
+export function problemResponses(doc: OpenApiDoc): OpenApiDoc {
+  for (const op of operations(doc)) {
+    const responses = (op.responses ??= {})
+    for (const status of Object.keys(responses)) if (Number(status) >= 400) delete responses[status]
+    const byStatus = new Map<number, string[]>()
+    for (const slug of op['x-problems'] ?? []) {
+      const { status, title } = PROBLEM_TYPES[slug]
+      byStatus.set(status, [...(byStatus.get(status) ?? []), `${title} (${slug})`])
+    }
+    for (const [status, titles] of [...byStatus].sort((a, b) => a[0] - b[0])) {
+      responses[String(status)] = {
+        description: titles.join('; '),
+        content: { [PROBLEM_CONTENT_TYPE]: { schema: { $ref: '#/components/schemas/Problem' } } },
+      }
+    }
+    delete op['x-problems']
+  }
+  return doc
+}
+
+/** Success descriptions, the headers of every status, and media types the routes add. */
+export function responseDetails(doc: OpenApiDoc): OpenApiDoc {
+  for (const op of operations(doc)) {
+    for (const [status, response] of Object.entries(op.responses ?? {})) {
+      if (STATUS_HEADERS[status]) response.headers = { ...response.headers, ...STATUS_HEADERS[status] }
+      if (STATUS_DESCRIPTIONS[status] && response.description === 'Default Response') response.description = STATUS_DESCRIPTIONS[status]
+      const extra = op['x-responseMediaTypes']?.[status]
+      if (extra) response.content = { ...response.content, ...extra }
+    }
+    const bodies = op['x-requestBodies']
+    if (bodies) op.requestBody = { required: true, content: { ...op.requestBody?.content, ...bodies } }
+    delete op['x-responseMediaTypes']
+    delete op['x-requestBodies']
   }
   return doc
 }
@@ -56,7 +132,7 @@ export function pruneComponents(doc: OpenApiDoc): OpenApiDoc {
   if (!schemas) return doc
   const used = new Set<string>()
   const collect = (v: unknown) => {
-    for (const m of JSON.stringify(v).matchAll(/"#\/components\/schemas\/([^"]+)"/g)) used.add(m[1])
+    for (const m of JSON.stringify(v).matchAll(/"#\/components\/schemas\/([^"]+)"/g)) used.add(m[1]!)
   }
   collect((doc as { paths?: unknown }).paths)
   // Components may reference each other; repeat until nothing new appears.
@@ -67,14 +143,13 @@ export function pruneComponents(doc: OpenApiDoc): OpenApiDoc {
   for (const name of Object.keys(schemas)) {
     if (!used.has(name)) delete schemas[name]
     else {
-      delete schemas[name].$schema
-      delete schemas[name].$id
+      delete schemas[name]!.$schema
+      delete schemas[name]!.$id
     }
   }
   return doc
 }
 
-
 export function finishDocument(doc: OpenApiDoc): OpenApiDoc {
-  return pruneComponents(problemContentType(doc))
+  return pruneComponents(responseDetails(problemResponses(protocolHeaders(doc))))
 }

@@ -76,8 +76,8 @@ export const JsonUpload = z.strictObject({
 })
 
 export const UploadErrorSchema = z.object({
-  line: z.number().int().optional().describe('1-based line of a CSV or NDJSON upload'),
-  item: z.number().int().optional().describe('Index in the JSON series array'),
+  line: z.number().int().min(1).optional().describe('1-based line of a CSV or NDJSON upload'),
+  item: z.number().int().min(0).optional().describe('Index in the JSON series array'),
   column: z.string().optional().describe('CSV column or JSON field'),
   sku: z.string().optional(),
   reason: z.string(),
@@ -87,9 +87,9 @@ export const UploadReportSchema = z
   .object({
     mode: z.enum(UPLOAD_MODES),
     frequency: z.enum(FREQUENCIES),
-    rows: z.object({ accepted: z.number().int(), rejected: z.number().int() }),
-    skus: z.object({ created: z.number().int(), updated: z.number().int(), rejected: z.number().int() }),
+    rows: z.object({ accepted: z.number().int().min(0), rejected: z.number().int().min(0) }),
+    skus: z.object({ created: z.number().int().min(0), updated: z.number().int().min(0), rejected: z.number().int().min(0) }),
     errors: z.array(UploadErrorSchema).describe('The first 1000 rejections'),
-    errorsNotListed: z.number().int().describe('Rejections beyond the listed ones'),
+    errorsNotListed: z.number().int().min(0).describe('Rejections beyond the listed ones'),
   })
   .meta({ id: 'UploadReport' })

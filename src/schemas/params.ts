@@ -42,6 +42,14 @@ export const pageSchema = <T extends z.ZodType>(item: T) =>
     nextCursor: z.string().nullable().describe('Pass back as cursor for the next page; null on the last page'),
   })
 
+/** `?view=`: `compact` leaves out each result item's `candidates`. */
+export const ViewQuery = z.object({
+  view: z
+    .enum(['full', 'compact'])
+    .default('full')
+    .describe('full: every field; compact: every field but candidates (the per-model table), for clients that only read the forecast'),
+})
+
 export const ResultsQuery = PageQuery.extend({
   sku: Sku.optional().describe('Only the result of this SKU'),
-})
+}).extend(ViewQuery.shape)

@@ -3,7 +3,7 @@ import { PROBLEM_BASE_URI } from '../errors.js'
 
 /** RFC 9457 problem details, as every error response of the API carries them. */
 export const FieldErrorSchema = z.object({
-  path: z.string().describe('Offending field, e.g. series[3].values[2]'),
+  path: z.string().describe('Offending field, e.g. series[3].demand[2]'),
   message: z.string(),
 })
 
@@ -11,7 +11,7 @@ export const Problem = z
   .object({
     type: z.string().describe(`Problem type URI under ${PROBLEM_BASE_URI}`),
     title: z.string(),
-    status: z.number().int(),
+    status: z.number().int().min(400).max(599),
     detail: z.string().optional(),
     errors: z.array(FieldErrorSchema).optional().describe('One entry per invalid field'),
   })

@@ -89,7 +89,10 @@ export const ForecastItem = z
       holdoutOrigins: z.number().int().min(0),
     }),
     holdoutErrors: HoldoutErrors.nullable(),
-    candidates: z.array(Candidate).describe('Every candidate model: scored ones best first, then skipped and failed ones'),
+    candidates: z
+      .array(Candidate)
+      .optional()
+      .describe('Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact'),
     forecast: z.array(ForecastPointSchema),
     intervalMethod: z.enum(['analytical', 'empirical', 'none']),
     warnings: z.array(Warning),

@@ -1,10 +1,10 @@
 import { constants, deflateRawSync, inflateRawSync } from 'node:zlib'
 import { STRUCTURE_DICTIONARY } from './item-structure-dictionary.js'
-import { servedBytes } from './item-served.js'
+import { servedBytes, withoutCandidates } from './item-served.js'
 import type { ResultItem } from './types.js'
 
 export { round } from './item-common.js'
-export { roundedJson, servedBody } from './item-served.js'
+export { roundedJson, servedBody, withoutCandidates } from './item-served.js'
 
 /**
  * The bytes kept in Redis per result item: the item's served JSON without its
@@ -35,13 +35,16 @@ export function servedOf(stored: Buffer): Buffer {
   return inflateRawSync(stored, INFLATE_OPTIONS)
 }
 
+/** Which fields a served item carries: all, or all but `candidates` (`?view=compact`). */
+export type ItemView = 'full' | 'compact'
+
 /**
  * The served JSON of a stored item, sku first, as UTF-8 bytes in two parts
- * (equal to JSON.stringify(loadItem(sku, stored)) when concatenated): a
- * results page is written from these without parsing any item.
+ * (equal to JSON.stringify(loadItem(sku, stored)) when concatenated, for the
+ * full view): a results page is written from these without parsing any item.
  */
-export function servedItemParts(sku: string, stored: Buffer): [Buffer, Buffer] {
-  const body = servedOf(stored)
+export function servedItemParts(sku: string, stored: Buffer, view: ItemView = 'full'): [Buffer, Buffer] {
+  const body = view === 'compact' ? withoutCandidates(servedOf(stored)) : servedOf(stored)
   // The body's '{' becomes the comma after the sku.
   body[0] = 0x2c
   return [Buffer.from(`{"sku":${JSON.stringify(sku)}`, 'utf8'), body]

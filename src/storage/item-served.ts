@@ -98,6 +98,29 @@ export function servedBytes(item: ResultItem): Buffer {
   return buf.subarray(0, pos)
 }
 
+const CANDIDATES_KEY = Buffer.from(',"candidates":[')
+
+/**
+ * A served item's JSON without its `candidates` (the compact view), cut out of
+ * the text without parsing it. Inside a JSON string every `"` is escaped, so
+ * the first `,"candidates":[` is the key servedBytes wrote; its array ends at
+ * the matching `]`, counted with strings skipped. A failed item has no
+ * candidates and comes back unchanged.
+ */
+export function withoutCandidates(body: Buffer): Buffer {
+  const start = body.indexOf(CANDIDATES_KEY)
+  if (start < 0) return body
+  let depth = 0
+  for (let i = start + CANDIDATES_KEY.length - 1; i < body.length; i++) {
+    const c = body[i]
+    if (c === 0x22) {
+      for (i++; i < body.length && body[i] !== 0x22; i++) if (body[i] === 0x5c) i++
+    } else if (c === 0x5b || c === 0x7b) depth++
+    else if ((c === 0x5d || c === 0x7d) && --depth === 0) return Buffer.concat([body.subarray(0, start), body.subarray(i + 1)])
+  }
+  throw new Error('served item: unterminated candidates array')
+}
+
 let buf = Buffer.allocUnsafe(64 * 1024)
 let pos = 0
 

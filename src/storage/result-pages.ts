@@ -1,5 +1,5 @@
 import { decodeCursor, encodeCursor } from './paging.js'
-import { servedItemParts } from './item-codec.js'
+import { servedItemParts, type ItemView } from './item-codec.js'
 import { isValidRunId, isValidTenant, runKeys } from './keys.js'
 import type { RedisClient } from './redis-client.js'
 
@@ -7,6 +7,8 @@ export interface PageRequest {
   readonly limit: number
   readonly cursor?: string
   readonly sku?: string
+  /** Leave out each item's candidates (`?view=compact`). */
+  readonly view?: ItemView
 }
 
 /** One page of a run's stored items, ordered by SKU (byte order). */
@@ -51,11 +53,11 @@ export async function readStoredPage(redis: RedisClient, prefix: string, tenant:
  * JSON.stringify({ items, nextCursor }) of the decoded items, built from each
  * item's stored served JSON without parsing it (item-codec.ts).
  */
-export function storedPageJson(page: StoredPage): Buffer {
+export function storedPageJson(page: StoredPage, view: ItemView = 'full'): Buffer {
   const parts: Buffer[] = [Buffer.from('{"items":[')]
   page.items.forEach(([sku, stored], i) => {
     if (i > 0) parts.push(COMMA)
-    parts.push(...servedItemParts(sku, stored))
+    parts.push(...servedItemParts(sku, stored, view))
   })
   parts.push(Buffer.from(`],"nextCursor":${JSON.stringify(page.nextCursor)}}`))
   return Buffer.concat(parts)
@@ -66,5 +68,5 @@ const COMMA = Buffer.from(',')
 /** readStoredPage then storedPageJson: null when the run does not exist. */
 export async function resultsPageJson(redis: RedisClient, prefix: string, tenant: string, runId: string, page: PageRequest): Promise<Buffer | null> {
   const stored = await readStoredPage(redis, prefix, tenant, runId, page)
-  return stored === null ? null : storedPageJson(stored)
+  return stored === null ? null : storedPageJson(stored, page.view)
 }

@@ -96,7 +96,7 @@ export interface RunGateway {
   resultsJson?(
     tenant: string,
     runId: string,
-    page: { readonly limit: number; readonly cursor?: string; readonly sku?: string },
+    page: { readonly limit: number; readonly cursor?: string; readonly sku?: string; readonly view?: 'full' | 'compact' },
   ): Promise<Buffer | null>
   /** Cancel a queued or running run; a finished run is returned unchanged. */
   cancel(tenant: string, runId: string): Promise<RunRecord | null>

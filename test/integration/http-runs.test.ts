@@ -90,6 +90,15 @@ describe('runs over HTTP with the real queue and worker', () => {
     expect(res.body).toBe(JSON.stringify(await gateway.results('garden', runId, { limit: 7 })))
   })
 
+  it('serves the compact view from the stored text: the full page without each item\'s candidates', async () => {
+    const res = await app.inject({ url: `/v1/runs/${runId}/results?limit=7&view=compact`, headers: as(GARDEN) })
+    expect(res.statusCode).toBe(200)
+    const full = await gateway.results('garden', runId, { limit: 7 })
+    const compact = { ...full!, items: full!.items.map((item) => ('failure' in item ? item : (({ candidates: _c, ...rest }) => rest)(item))) }
+    expect(res.body).toBe(JSON.stringify(compact))
+    expect(res.body).not.toContain('"candidates"')
+  })
+
   it('a tampered cursor is a 400 problem, not a 500', async () => {
     const res = await app.inject({ url: `/v1/runs/${runId}/results?cursor=not.a.cursor`, headers: as(GARDEN) })
     expect(res.statusCode).toBe(400)

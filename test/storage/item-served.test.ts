@@ -4,7 +4,7 @@ import { describe, expect, it } from 'vitest'
 import { FREQUENCIES, METRIC_NAMES, MODEL_REGISTRY, forecastSeries, type MetricSet } from '../../src/engine/index.js'
 import { toResultItem } from '../../src/storage/codec.js'
 import { EXACT, REPLENISHMENT_FIELDS } from '../../src/storage/item-common.js'
-import { loadItem, round, roundedJson, servedBody, servedItemJson, storeItem } from '../../src/storage/item-codec.js'
+import { loadItem, round, roundedJson, servedBody, servedItemJson, servedItemParts, storeItem, withoutCandidates } from '../../src/storage/item-codec.js'
 import type { ForecastItem, ResultItem } from '../../src/storage/types.js'
 import { syntheticSeries } from '../queue/fixtures.js'
 
@@ -183,6 +183,26 @@ describe('served JSON of stored items', () => {
       }),
       { numRuns: 3000 },
     )
+  })
+
+  it('lose exactly their candidates in the compact view', () => {
+    const compactReference = (sku: string, item: ResultItem) => {
+      const { candidates: _c, ...rest } = JSON.parse(reference(sku, item)) as Record<string, unknown>
+      return JSON.stringify(rest)
+    }
+    for (const item of engineItems()) {
+      expect(Buffer.concat(servedItemParts(item.sku, storeItem(item), 'compact')).toString('utf8')).toBe(compactReference(item.sku, item))
+    }
+    fc.assert(
+      fc.property(fc.oneof(forecastItem, failedItem), text, (item, sku) => {
+        expect(Buffer.concat(servedItemParts(sku, storeItem(item), 'compact')).toString('utf8')).toBe(compactReference(sku, item))
+      }),
+      { numRuns: 2000 },
+    )
+    // A reason holding the text that ends the array in the served JSON is still inside the array.
+    const base = forecastItemOf(engineItems()[0]!)
+    const tricky = { ...base, candidates: [{ model: base.model, family: base.family, status: 'skipped', reason: '],"forecast":[{"x":"]' }] } as ResultItem
+    expect(withoutCandidates(Buffer.from(servedBody(tricky))).toString('utf8')).toBe(compactReference('', tricky).replace('{"sku":"",', '{'))
   })
 
   it('are deflated with the structure dictionary and need it to be read', () => {

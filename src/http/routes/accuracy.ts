@@ -2,8 +2,8 @@ import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { PageQuery, pageSchema } from '../../schemas/params.js'
 import { requireErp } from '../plugins/erp.js'
-import { COMMON_PROBLEMS } from './responses.js'
 import { AccuracySummarySchema } from './skus/accuracy.js'
+import { READ } from './responses.js'
 
 /** GET /v1/accuracy/exceptions: the SKUs whose forecasts are persistently off. */
 const routes: FastifyPluginAsyncZod = async (app) => {
@@ -12,6 +12,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['accuracy'],
+        operationId: 'listAccuracyExceptions',
+        'x-problems': READ,
         summary: 'SKUs whose tracking signal is beyond ±4',
         description:
           'The exception list for planners, ordered by SKU: |tracking signal| > 4 (common practice) means the ' +
@@ -19,7 +21,6 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         querystring: PageQuery,
         response: {
           200: pageSchema(AccuracySummarySchema),
-          ...COMMON_PROBLEMS,
         },
       },
     },

@@ -5,9 +5,8 @@ import { CallbackUrl } from '../../schemas/run.js'
 import { MAX_CALLBACKS_PER_TENANT } from '../../callbacks/callback-store.js'
 import { RUN_EVENTS } from '../../callbacks/names.js'
 import { requireErp } from '../plugins/erp.js'
-import { BODY_PROBLEMS, COMMON_PROBLEMS, NOT_FOUND } from './responses.js'
 import { PageQuery, pageSchema } from '../../schemas/params.js'
-import { Problem } from '../../schemas/problem.js'
+import { READ, READ_ONE, WRITE, WRITE_ONE } from './responses.js'
 
 const SIGNING =
   'Every delivery is a POST with a JSON body and the headers Almanac-Event, Almanac-Delivery (an id unique to the ' +
@@ -47,10 +46,12 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['callbacks'],
+        operationId: 'createCallback',
+        'x-problems': [...WRITE, 'limit-reached'],
         summary: 'Register a standing callback for run events',
         description: `Called for every run of the tenant that ends with one of the events. ${SIGNING}`,
         body: CallbackBody,
-        response: { 201: CallbackCreated, ...COMMON_PROBLEMS, ...BODY_PROBLEMS, 409: Problem },
+        response: { 201: CallbackCreated },
       },
     },
     async (request, reply) => {
@@ -70,9 +71,11 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['callbacks'],
+        operationId: 'listCallbacks',
+        'x-problems': READ,
         summary: 'List standing callbacks, oldest first',
         querystring: PageQuery,
-        response: { 200: pageSchema(CallbackResource), ...COMMON_PROBLEMS },
+        response: { 200: pageSchema(CallbackResource) },
       },
     },
     async (request) => {
@@ -86,9 +89,11 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['callbacks'],
+        operationId: 'getCallback',
+        'x-problems': READ_ONE,
         summary: 'Read a standing callback',
         params: CallbackParams,
-        response: { 200: CallbackResource, ...COMMON_PROBLEMS, ...NOT_FOUND },
+        response: { 200: CallbackResource },
       },
     },
     async (request) => {
@@ -103,10 +108,12 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['callbacks'],
+        operationId: 'deleteCallback',
+        'x-problems': WRITE_ONE,
         summary: 'Remove a standing callback',
         description: 'Deliveries already queued still go out.',
         params: CallbackParams,
-        response: { 204: z.null().describe('Removed'), ...COMMON_PROBLEMS, ...NOT_FOUND },
+        response: { 204: z.null().describe('Removed') },
       },
     },
     async (request, reply) => {
@@ -122,13 +129,15 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['callbacks'],
+        operationId: 'rotateCallbackSecret',
+        'x-problems': WRITE,
         summary: 'Create or rotate the signing secret',
         description:
           'Returns a new signing secret: deliveries from now on are signed with it, and for a day also with the old one ' +
           '(two comma-separated signatures), so receivers can switch without losing a delivery. ' +
           'This response is the only place the secret appears. A tenant that never called this gets a secret on first ' +
           'use (first standing callback, shown in that response, or first delivery, then call this to learn it).',
-        response: { 200: z.object({ secret: z.string().describe('64 hex characters') }), ...COMMON_PROBLEMS },
+        response: { 200: z.object({ secret: z.string().describe('64 hex characters') }) },
       },
     },
     async (request) => {

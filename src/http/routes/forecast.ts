@@ -1,14 +1,13 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import type { ForecastResult, SeriesInput } from '../../engine/index.js'
 import { ProblemError } from '../../errors.js'
-import { Problem } from '../../schemas/problem.js'
 import { ForecastResponse, type ForecastBody } from '../../schemas/results.js'
 import { RunRequest, type RunSettings, type SeriesItem } from '../../schemas/run.js'
 import { checkRunOptions } from '../../queue/gateway.js'
 import { forecastItem } from '../../queue/processor.js'
 import type { ResultItem } from '../../storage/types.js'
 import type { ServiceMetrics } from '../metrics.js'
-import { BODY_PROBLEMS, COMMON_PROBLEMS } from './responses.js'
+import { SYNC_FORECAST } from './responses.js'
 
 export type ForecastFn = (input: SeriesInput) => ForecastResult
 
@@ -35,13 +34,15 @@ export function forecastRoutes(fn: ForecastFn): FastifyPluginAsyncZod {
       {
         schema: {
           tags: ['forecasts'],
+        operationId: 'forecastSeries',
+        'x-problems': SYNC_FORECAST,
           summary: 'Forecast a few series now',
           description:
             'Selects and fits a model per series and answers with the forecasts. At most the configured ' +
             'number of series (default 100; more gives 413 too-many-series): use POST /v1/runs for more. ' +
             'A series the engine rejects (too short, negative demand...) comes back as an item with `failure`.',
           body: RunRequest,
-          response: { 200: ForecastResponse, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
+          response: { 200: ForecastResponse },
         },
       },
       async (request) => {

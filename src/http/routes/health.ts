@@ -1,7 +1,6 @@
 import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../errors.js'
-import { Problem } from '../../schemas/problem.js'
 
 const Status = z.object({ status: z.string() })
 
@@ -13,7 +12,14 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     '/healthz',
     {
       config: open,
-      schema: { tags: ['operations'], summary: 'The process is alive', security: [], response: { 200: Status } },
+      schema: {
+        tags: ['operations'],
+        operationId: 'getLiveness',
+        'x-problems': ['internal'],
+        summary: 'The process is alive',
+        security: [],
+        response: { 200: Status },
+      },
     },
     async () => ({ status: 'ok' }),
   )
@@ -24,9 +30,11 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       config: open,
       schema: {
         tags: ['operations'],
+        operationId: 'getReadiness',
+        'x-problems': ['not-ready', 'internal'],
         summary: 'Redis and the queue are usable',
         security: [],
-        response: { 200: Status, 503: Problem },
+        response: { 200: Status },
       },
     },
     async (request) => {

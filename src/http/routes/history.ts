@@ -1,15 +1,17 @@
 import { Transform, type Readable } from 'node:stream'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import { z } from 'zod'
 import { HistoryAccumulator } from '../../history/accumulator.js'
 import { readCsvUpload, UploadFormatError } from '../../history/csv-reader.js'
 import { commitUpload } from '../../history/ingest.js'
 import { readNdjsonUpload } from '../../history/ndjson-reader.js'
-import { parseUploadSeries } from '../../history/series-item.js'
+import { parseUploadSeries, UploadSeries } from '../../history/series-item.js'
 import { MAX_FIELD_ERRORS } from '../problem-mapping.js'
 import { fieldIssues, formatFieldPath, ProblemError } from '../../errors.js'
 import { JsonUpload, UploadQuery, UploadReportSchema } from '../../schemas/history.js'
+import { UPLOAD_MODES } from '../../history/types.js'
 import { requireHistories } from '../plugins/history.js'
-import { BODY_PROBLEMS, COMMON_PROBLEMS } from './responses.js'
+import { IDEMPOTENT, WRITE } from './responses.js'
 
 const STREAMED_TYPES = ['text/csv', 'application/x-ndjson', 'application/ndjson']
 const DELIMITERS = { comma: ',', semicolon: ';', tab: '\t' } as const
@@ -33,6 +35,25 @@ export function limitBytes(source: Readable, max: number): Readable {
   return source.pipe(counter)
 }
 
+/**
+ * The request bodies as the OpenAPI document shows them, one per media type:
+ * the handler reads JSON itself (JsonUpload, then each series on its own so
+ * one bad series does not reject the rest) and streams the other two.
+ */
+function uploadBodies(): Record<string, unknown> {
+  const { $schema: _drop, ...json } = z.toJSONSchema(z.strictObject({ mode: z.enum(UPLOAD_MODES).optional(), series: z.array(UploadSeries).min(1) }), {
+    io: 'input',
+  })
+  const text = (description: string) => ({ schema: { type: 'string', description } })
+  const ndjson = text('One JSON object per line: a series { sku, frequency?, firstPeriod, demand, tags? } or a row { sku, period, demand }')
+  return {
+    'application/json': { schema: json },
+    'application/x-ndjson': ndjson,
+    'application/ndjson': ndjson,
+    'text/csv': text('A header row, then one sku,period,demand row per line (column names set by the query)'),
+  }
+}
+
 /** POST /v1/history: bulk upsert of stored histories from JSON, NDJSON or CSV. */
 const routes: FastifyPluginAsyncZod = async (app) => {
   // Only in this plugin's scope: CSV and NDJSON bodies reach the handler as the raw stream.
@@ -42,7 +63,9 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     '',
     {
       schema: {
-        tags: ['history'],
+        tags: ['histories'],
+        operationId: 'uploadHistories',
+        'x-problems': [...WRITE, ...IDEMPOTENT],
         summary: 'Upload demand histories in bulk (JSON, NDJSON or CSV)',
         description: [
           'Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`;',
@@ -55,7 +78,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           'atomically, and a SKU without good rows keeps its stored history. Idempotency-Key is honoured.',
         ].join(' '),
         querystring: UploadQuery,
-        response: { 200: UploadReportSchema, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
+        response: { 200: UploadReportSchema },
+        'x-requestBodies': uploadBodies(),
       },
       config: { idempotency: true, bodyTypes: ['application/json', ...STREAMED_TYPES] },
     },

@@ -1,14 +1,13 @@
 import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../errors.js'
-import { Problem } from '../../schemas/problem.js'
 import { PageQuery, pageSchema } from '../../schemas/params.js'
 import { RunScope, RunSettings, toRunScope } from '../../schemas/run.js'
 import { Failure } from '../../schemas/results.js'
 import { ScheduleInputError, type ScheduleView } from '../../schedules/service.js'
 import { MAX_SCHEDULES_PER_TENANT } from '../../storage/schedule-store.js'
 import { requireErp } from '../plugins/erp.js'
-import { BODY_PROBLEMS, COMMON_PROBLEMS, NOT_FOUND } from './responses.js'
+import { READ, READ_ONE, WRITE, WRITE_ONE } from './responses.js'
 
 /** The run settings of each firing (as for POST /v1/runs, without series), plus when and over what. */
 const ScheduleBody = RunSettings.extend({
@@ -71,6 +70,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['schedules'],
+        operationId: 'createSchedule',
+        'x-problems': [...WRITE, 'limit-reached'],
         summary: 'Create a schedule',
         description:
           'Each firing submits a run over the stored histories of the scope with the given settings. A SKU of ' +
@@ -78,7 +79,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           "fires and counted in firings.missingSkus. A firing while the schedule's previous run is still queued or " +
           'running is skipped (counted in firings.skipped).',
         body: ScheduleBody,
-        response: { 201: ScheduleResource, ...COMMON_PROBLEMS, ...BODY_PROBLEMS, 409: Problem },
+        response: { 201: ScheduleResource },
       },
     },
     async (request, reply) => {
@@ -105,9 +106,11 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['schedules'],
+        operationId: 'listSchedules',
+        'x-problems': READ,
         summary: 'List schedules, oldest first',
         querystring: PageQuery,
-        response: { 200: pageSchema(ScheduleResource), ...COMMON_PROBLEMS },
+        response: { 200: pageSchema(ScheduleResource) },
       },
     },
     async (request) => {
@@ -121,9 +124,11 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['schedules'],
+        operationId: 'getSchedule',
+        'x-problems': READ_ONE,
         summary: 'Read a schedule with its firing counts',
         params: ScheduleParams,
-        response: { 200: ScheduleResource, ...COMMON_PROBLEMS, ...NOT_FOUND },
+        response: { 200: ScheduleResource },
       },
     },
     async (request) => {
@@ -138,10 +143,12 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['schedules'],
+        operationId: 'deleteSchedule',
+        'x-problems': WRITE_ONE,
         summary: 'Delete a schedule',
         description: 'No further firings; a run it already started keeps going.',
         params: ScheduleParams,
-        response: { 204: z.null().describe('Deleted'), ...COMMON_PROBLEMS, ...NOT_FOUND },
+        response: { 204: z.null().describe('Deleted') },
       },
     },
     async (request, reply) => {

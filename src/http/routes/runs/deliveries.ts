@@ -4,13 +4,13 @@ import { PageQuery, pageSchema, RunIdParams } from '../../../schemas/params.js'
 import { Failure } from '../../../schemas/results.js'
 import { DELIVERY_STATUSES } from '../../../storage/delivery-store.js'
 import { requireErp } from '../../plugins/erp.js'
-import { COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
 import { runNotFound } from './index.js'
+import { READ_ONE } from '../responses.js'
 
 const Attempt = z.object({
   attempt: z.number().int().min(1),
   at: z.string().describe('ISO-8601 start of the attempt'),
-  httpStatus: z.number().int().nullable().describe('HTTP status the receiver answered; null when there was no answer'),
+  httpStatus: z.number().int().min(100).max(999).nullable().describe('HTTP status the receiver answered; null when there was no answer'),
   failure: Failure.nullable().describe('Why the attempt failed (receiver-status, timeout, address-not-allowed, network-error); null on success'),
   durationMs: z.number().int().min(0),
 })
@@ -35,12 +35,14 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     '/:runId/deliveries',
     {
       schema: {
-        tags: ['runs', 'callbacks'],
+        tags: ['callbacks'],
+        operationId: 'listRunDeliveries',
+        'x-problems': READ_ONE,
         summary: 'Callback deliveries of a run, oldest first',
         description: 'Every callback called for the run with each attempt. Kept as long as the run results.',
         params: RunIdParams,
         querystring: PageQuery,
-        response: { 200: pageSchema(DeliverySchema), ...COMMON_PROBLEMS, ...NOT_FOUND },
+        response: { 200: pageSchema(DeliverySchema) },
       },
     },
     async (request) => {

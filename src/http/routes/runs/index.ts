@@ -6,8 +6,8 @@ import { RunSubmission, toRunScope } from '../../../schemas/run.js'
 import { parseRunSubmissionFast } from '../../../schemas/series-check.js'
 import { validatorCompiler } from '../../validation.js'
 import type { RunRecord } from '../../../storage/types.js'
-import { BODY_PROBLEMS, COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
 import { submitStoredScope } from '../../run-scope.js'
+import { IDEMPOTENT, READ_ONE, WRITE, WRITE_ONE } from '../responses.js'
 
 /** The run as clients see it: the record without its tenant. */
 export function toRunResource(run: RunRecord): Omit<RunRecord, 'tenant'> {
@@ -26,6 +26,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['runs'],
+        operationId: 'submitRun',
+        'x-problems': [...WRITE, ...IDEMPOTENT],
         summary: 'Submit a forecast run',
         description:
           'Queues every series for forecasting and answers at once with the run; poll it at the Location header. ' +
@@ -34,7 +36,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           '(a SKU without a stored history is a 400 listing it), { "scope": { "tags": [...] } } (SKUs carrying every tag) ' +
           'or { "scope": { "all": true } }. Honours Idempotency-Key.',
         body: RunSubmission,
-        response: { 202: RunResource, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
+        response: { 202: RunResource },
       },
       config: { idempotency: true },
       // Inline series are checked by a plain loop (same outcome as the schema); any body it cannot vouch for goes through zod.
@@ -64,10 +66,13 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['runs'],
+        operationId: 'getRun',
+        'x-etag': true,
+        'x-problems': READ_ONE,
         summary: 'Read a run: status, progress, summary',
         description: 'Carries a strong ETag; send it back in If-None-Match to get 304 while nothing changed.',
         params: RunIdParams,
-        response: { 200: RunResource, ...COMMON_PROBLEMS, ...NOT_FOUND },
+        response: { 200: RunResource },
       },
       config: { etag: true },
     },
@@ -83,12 +88,14 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     {
       schema: {
         tags: ['runs'],
+        operationId: 'cancelRun',
+        'x-problems': WRITE_ONE,
         summary: 'Cancel a run',
         description:
           'Cancels a queued or running run and answers 200 with the run. Series already forecast keep their ' +
           'results. A finished run is returned unchanged.',
         params: RunIdParams,
-        response: { 200: RunResource, ...COMMON_PROBLEMS, ...NOT_FOUND },
+        response: { 200: RunResource },
       },
     },
     async (request) => {

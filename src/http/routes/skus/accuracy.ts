@@ -3,7 +3,7 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../../errors.js'
 import { SkuParams } from '../../../schemas/params.js'
 import { requireErp } from '../../plugins/erp.js'
-import { COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
+import { READ_ONE } from '../responses.js'
 
 export const AccuracySummarySchema = z
   .object({
@@ -37,13 +37,15 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     '/:sku/accuracy',
     {
       schema: {
-        tags: ['skus', 'accuracy'],
+        tags: ['accuracy'],
+        operationId: 'getSkuAccuracy',
+        'x-problems': READ_ONE,
         summary: 'Realised forecast accuracy of a SKU',
         description:
           "When a SKU's stored history gets actuals for periods its latest forecast covered, each such period is " +
           'scored once. 404 until a period has been scored.',
         params: SkuParams,
-        response: { 200: SkuAccuracy, ...COMMON_PROBLEMS, ...NOT_FOUND },
+        response: { 200: SkuAccuracy },
       },
     },
     async (request) => {

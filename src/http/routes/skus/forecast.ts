@@ -1,8 +1,9 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../../errors.js'
-import { SkuParams } from '../../../schemas/params.js'
+import { SkuParams, ViewQuery } from '../../../schemas/params.js'
+import { compactItem } from '../../../runs/views.js'
 import { SkuForecast, type SkuForecastBody } from '../../../schemas/results.js'
-import { COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
+import { READ_ONE } from '../responses.js'
 
 /** GET /v1/skus/{sku}/forecast: the latest successful forecast of a SKU. */
 const routes: FastifyPluginAsyncZod = async (app) => {
@@ -10,13 +11,17 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     '/:sku/forecast',
     {
       schema: {
-        tags: ['skus'],
+        tags: ['forecasts'],
+        operationId: 'getSkuForecast',
+        'x-etag': true,
+        'x-problems': READ_ONE,
         summary: 'Latest successful forecast of a SKU',
         description:
           'URL-encode the SKU (e.g. / as %2F). 404 when no run has forecast it yet, or when the results of the run ' +
           'that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.',
         params: SkuParams,
-        response: { 200: SkuForecast, ...COMMON_PROBLEMS, ...NOT_FOUND },
+        querystring: ViewQuery,
+        response: { 200: SkuForecast },
       },
       config: { etag: true },
       // As results.ts: the item comes from the run store, written by the code that
@@ -29,7 +34,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       const { sku } = request.params
       const latest = await app.gateway.latestForecast(request.tenant, sku)
       if (!latest || 'failure' in latest.item) throw new ProblemError('not-found', `No forecast for SKU ${sku}`)
-      return { ...latest.item, sku, runId: latest.runId, producedAt: latest.producedAt } as SkuForecastBody
+      const item = request.query.view === 'compact' ? compactItem(latest.item) : latest.item
+      return { ...item, sku, runId: latest.runId, producedAt: latest.producedAt } as SkuForecastBody
     },
   )
 }

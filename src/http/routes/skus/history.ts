@@ -7,7 +7,7 @@ import { HistoryBody, HistoryResource } from '../../../schemas/history.js'
 import { SkuParams } from '../../../schemas/params.js'
 import type { StoredHistory } from '../../../storage/history-store.js'
 import { requireHistories } from '../../plugins/history.js'
-import { BODY_PROBLEMS, COMMON_PROBLEMS, NOT_FOUND } from '../responses.js'
+import { READ_ONE, WRITE } from '../responses.js'
 
 /** A stored history as clients see it. */
 export function toHistoryResource(h: StoredHistory) {
@@ -29,14 +29,16 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     '/:sku/history',
     {
       schema: {
-        tags: ['history'],
+        tags: ['histories'],
+        operationId: 'putSkuHistory',
+        'x-problems': WRITE,
         summary: "Replace a SKU's stored demand history",
         description:
           'Stores the whole history (demand and tags) of one SKU, replacing what was stored. 201 when the SKU ' +
           'had no history, 200 otherwise. Runs can then forecast it with { "skus": [...] }, { "tags": [...] } or { "all": true }.',
         params: SkuParams,
         body: HistoryBody,
-        response: { 200: HistoryResource, 201: HistoryResource, ...COMMON_PROBLEMS, ...BODY_PROBLEMS },
+        response: { 200: HistoryResource, 201: HistoryResource },
       },
     },
     async (request, reply) => {
@@ -55,7 +57,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       }
       const { outcome, history } = await store.put(request.tenant, sku, { frequency, firstPeriod, demand, tags: normalised.tags })
       request.log.info({ sku, periodCount: demand.length, outcome }, 'history stored')
-      reply.code(outcome === 'created' ? 201 : 200)
+      if (outcome === 'created') reply.code(201).header('location', `/v1/skus/${encodeURIComponent(sku)}/history`)
       return toHistoryResource(history)
     },
   )
@@ -64,10 +66,13 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     '/:sku/history',
     {
       schema: {
-        tags: ['history'],
+        tags: ['histories'],
+        operationId: 'getSkuHistory',
+        'x-etag': true,
+        'x-problems': READ_ONE,
         summary: "Read a SKU's stored demand history",
         params: SkuParams,
-        response: { 200: HistoryResource, ...COMMON_PROBLEMS, ...NOT_FOUND },
+        response: { 200: HistoryResource },
       },
       config: { etag: true },
     },

@@ -1,7 +1,7 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { SkuListPage, SkuListQuery } from '../../../schemas/history.js'
 import { requireHistories } from '../../plugins/history.js'
-import { COMMON_PROBLEMS } from '../responses.js'
+import { READ } from '../responses.js'
 
 /** GET /v1/skus: page through the SKUs with a stored history. */
 const routes: FastifyPluginAsyncZod = async (app) => {
@@ -9,12 +9,14 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     '',
     {
       schema: {
-        tags: ['history'],
+        tags: ['histories'],
+        operationId: 'listSkus',
+        'x-problems': READ,
         summary: 'List SKUs with a stored history',
         description:
           'Ordered by SKU (byte order). Filter by tag and/or SKU prefix; pass nextCursor back as cursor for the next page.',
         querystring: SkuListQuery,
-        response: { 200: SkuListPage, ...COMMON_PROBLEMS },
+        response: { 200: SkuListPage },
       },
     },
     async (request) => {

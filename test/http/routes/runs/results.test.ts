@@ -15,7 +15,7 @@ describe('GET /v1/runs/{runId}/results', () => {
     gateway.complete(runId, [
       forecastItemFixture('A'),
       forecastItemFixture('B'),
-      { sku: 'C', frequency: 'month', failure: { code: 'series-too-short', message: 'holt requires at least 4 data points' } },
+      { sku: 'C', frequency: 'month', failure: { code: 'series-too-short', message: 'trend-smoothing needs 4 periods, has 3' } },
     ])
   })
   afterAll(() => app.close())
@@ -29,7 +29,7 @@ describe('GET /v1/runs/{runId}/results', () => {
     expect(p1.items.map((i: { sku: string }) => i.sku)).toEqual(['A', 'B'])
     expect(typeof p1.nextCursor).toBe('string')
     const p2 = (await get(`?limit=2&cursor=${p1.nextCursor}`)).json()
-    expect(p2.items).toEqual([{ sku: 'C', frequency: 'month', failure: { code: 'series-too-short', message: 'holt requires at least 4 data points' } }])
+    expect(p2.items).toEqual([{ sku: 'C', frequency: 'month', failure: { code: 'series-too-short', message: 'trend-smoothing needs 4 periods, has 3' } }])
     expect(p2.nextCursor).toBeNull()
   })
 
@@ -37,6 +37,14 @@ describe('GET /v1/runs/{runId}/results', () => {
     const page = (await get('')).json()
     expect(page.items).toHaveLength(3)
     expect(page.items[0]).toEqual(forecastItemFixture('A'))
+  })
+
+  it('?view=compact leaves out candidates and nothing else', async () => {
+    const page = (await get('?view=compact')).json()
+    const { candidates: _c, ...rest } = forecastItemFixture('A') as ReturnType<typeof forecastItemFixture> & { candidates: unknown }
+    expect(page.items[0]).toEqual(rest)
+    expect(page.items[2]).toEqual({ sku: 'C', frequency: 'month', failure: { code: 'series-too-short', message: 'trend-smoothing needs 4 periods, has 3' } })
+    expect((await get('?view=everything')).statusCode).toBe(400)
   })
 
   it('filters by sku', async () => {

@@ -35,6 +35,13 @@ describe('GET /v1/skus/{sku}/forecast', () => {
     })
   })
 
+  it('?view=compact leaves out candidates', async () => {
+    const res = await app.inject({ url: `/v1/skus/${encodeURIComponent('SEED/TOMATO 50G')}/forecast?view=compact`, headers: auth(KEY_GARDEN) })
+    expect(res.statusCode).toBe(200)
+    const { candidates: _c, ...rest } = forecastItemFixture('SEED/TOMATO 50G') as ReturnType<typeof forecastItemFixture> & { candidates: unknown }
+    expect(res.json()).toEqual({ ...rest, runId, producedAt: '2026-01-05T08:00:02.000Z' })
+  })
+
   it('404 for a SKU never forecast, for a failed one, and for another tenant', async () => {
     const never = await app.inject({ url: '/v1/skus/NOPE/forecast', headers: auth(KEY_GARDEN) })
     expect(never.statusCode).toBe(404)

@@ -14,8 +14,8 @@ import { Readable } from 'node:stream'
 import { Redis } from 'ioredis'
 import type { Config } from '../src/config.js'
 import { build } from '../src/http/app.js'
-import { HistoryStore } from '../src/storage/history-store.js'
-import type { RunGateway } from '../src/storage/types.js'
+import { HistoryStore } from '../src/storage/histories/history-store.js'
+import type { RunGateway } from '../src/runs/contract.js'
 import { deletePrefix } from './e2e-redis.js'
 
 const sizes = process.argv.slice(2).map(Number).filter((n) => n > 0)

@@ -10,13 +10,13 @@
  */
 import { loadavg } from 'node:os'
 import { forecastSeries } from '../src/engine/index.js'
-import { toResultItem } from '../src/storage/codec.js'
-import { loadItem, servedBody, servedItemJson, storeItem, storeServed } from '../src/storage/item-codec.js'
-import { servedBytes } from '../src/storage/item-served.js'
-import type { ResultItem } from '../src/storage/types.js'
+import { loadItem, servedBody, servedItemJson, storeItem, storeServed } from '../src/storage/items/item-codec.js'
+import { servedBytes } from '../src/storage/items/item-served.js'
+import type { ResultItem } from '../src/runs/contract.js'
 import { median } from './accuracy-metrics.js'
 import { syntheticSet } from './synthetic.js'
 import { positiveIntOption } from './cli.js'
+import { toResultItem } from '../src/runs/forecast-sku.js'
 
 const ITEMS = positiveIntOption('items', 2000)
 const REPS = Math.max(3, positiveIntOption('reps', 5))

@@ -16,7 +16,7 @@ import type { Config } from '../src/config.js'
 import { forecastSeries } from '../src/engine/index.js'
 import { createLogger } from '../src/logger.js'
 import { createRunGateway } from '../src/queue/gateway.js'
-import { startWorkers } from '../src/queue/worker.js'
+import { startProcessWorkers } from '../src/worker-main.js'
 import { runKeys } from '../src/storage/keys.js'
 import { RunSettings, type SeriesItem } from '../src/schemas/run.js'
 import { SHAPES, createRandom, syntheticSeries } from './synthetic.js'
@@ -66,8 +66,9 @@ const e0 = performance.now()
 forecastAll()
 const engineMsPerSeries = (performance.now() - e0) / engineSample.length
 
-const gateway = createRunGateway(config)
-const workers = startWorkers(config, createLogger({ level: 'warn' }))
+const logger = createLogger({ level: 'warn' })
+const gateway = createRunGateway(config, { logger })
+const workers = startProcessWorkers(config, logger)
 const redis = new Redis(redisUrl)
 
 /** Submits a run and polls until it ends; returns the record and the wall time in seconds. */

@@ -1,5 +1,5 @@
 /**
- * Writes src/storage/item-structure-dictionary.ts: the preset DEFLATE
+ * Writes src/storage/items/item-structure-dictionary.ts: the preset DEFLATE
  * dictionary of stored result items (item-codec.ts). Run it when the served
  * JSON of a result item changes shape (field names, model ids, warning
  * texts); items already in Redis can only be read with the dictionary they
@@ -20,8 +20,8 @@ import { writeFileSync } from 'node:fs'
 import { deflateRawSync } from 'node:zlib'
 import { syntheticSet } from '../bench/synthetic.js'
 import { forecastSeries, type Frequency } from '../src/engine/index.js'
-import { toResultItem } from '../src/storage/codec.js'
-import { ITEM_DEFLATE_OPTIONS, servedBody } from '../src/storage/item-codec.js'
+import { ITEM_DEFLATE_OPTIONS, servedBody } from '../src/storage/items/item-codec.js'
+import { toResultItem } from '../src/runs/forecast-sku.js'
 
 const bodies = (seed: number, count: number, frequency: Frequency, start?: string): Buffer[] =>
   syntheticSet(seed, count, 60).map((s, i) =>
@@ -56,7 +56,7 @@ const dictionary = pieces.join(',')
 const without = check.reduce((a, b) => a + deflateRawSync(b, { ...ITEM_DEFLATE_OPTIONS, dictionary: undefined }).length, 0) / check.length
 const after = meanSize(check, dictionary)
 
-const file = new URL('../src/storage/item-structure-dictionary.ts', import.meta.url)
+const file = new URL('../src/storage/items/item-structure-dictionary.ts', import.meta.url)
 writeFileSync(
   file,
   `/**

@@ -1,46 +1,24 @@
-import { createHash } from 'node:crypto'
-import { readFileSync } from 'node:fs'
 import { collectDefaultMetrics } from 'prom-client'
-import { ConfigError, loadConfig, type Config } from './config.js'
 import { build } from './http/app.js'
+import { createErpServices } from './http/erp-services.js'
 import { createServiceMetrics } from './http/metrics.js'
 import { createLogger } from './logger.js'
-import { assertRedisReachable, gatewayConnection } from './queue/connection.js'
 import { createRunGateway } from './queue/gateway.js'
-import { startWorkers, type RunWorkers } from './queue/worker.js'
-import { AccuracyTrackingHistoryStore } from './storage/accuracy-hook.js'
-import { createErpServices } from './callbacks/services.js'
-import { IdempotencyStore } from './storage/idempotency-store.js'
+import { closeSteps, type CloseStep } from './shutdown.js'
+import { configAndRedisOrExit, stopOnSignals } from './startup.js'
+import { AccuracyTrackingHistoryStore } from './storage/erp/accuracy-hook.js'
+import { IdempotencyStore } from './storage/erp/idempotency-store.js'
+import { requestConnection } from './storage/redis.js'
+import { startProcessWorkers } from './worker-main.js'
 
 /**
- * `npm start`: the HTTP API, plus in-process chunk workers unless
- * RUN_WORKER=false (then run `npm run worker` processes beside it).
- * The only file besides worker-main.ts that listens or starts anything.
+ * `npm start`: the HTTP API, plus this process's workers (worker-main.ts)
+ * unless RUN_WORKER=false (then run `npm run worker` processes beside it).
+ * This process opens the API's resources and closes them, each step even if
+ * another fails.
  */
-function configFromEnv(): Config {
-  try {
-    return loadConfig(process.env, {
-      readFile: (path) => readFileSync(path, 'utf8'),
-      hash: (key) => createHash('sha256').update(key, 'utf8').digest('hex'),
-    })
-  } catch (err) {
-    if (err instanceof ConfigError) {
-      process.stderr.write(`${err.message}\n`)
-      process.exit(1)
-    }
-    throw err
-  }
-}
-
 async function main(): Promise<void> {
-  const config = configFromEnv()
-  try {
-    await assertRedisReachable(config)
-  } catch (err) {
-    process.stderr.write(`${(err as Error).message}\n`)
-    process.exit(1)
-  }
-
+  const config = await configAndRedisOrExit()
   const logger = createLogger({ level: config.logLevel })
   if (config.apiKeys.size === 0) {
     logger.warn(
@@ -49,11 +27,10 @@ async function main(): Promise<void> {
     )
   }
 
-  const gateway = createRunGateway(config)
-  // One connection for the API's own keys: rate-limit counters, stored histories, idempotency answers.
-  const apiRedis = gatewayConnection(config)
-  apiRedis.on('error', (err) => logger.warn({ err }, 'API Redis connection error'))
-  const erp = createErpServices(config, apiRedis)
+  const gateway = createRunGateway(config, { logger })
+  // One connection for the API's own keys: rate-limit counters, stored histories, idempotency answers, ERP records.
+  const apiRedis = requestConnection(config, logger, 'api')
+  const erp = createErpServices(config, apiRedis, { logger })
   // Uploads score earlier forecasts against the actuals they bring (GET /v1/skus/{sku}/accuracy).
   const histories = new AccuracyTrackingHistoryStore(apiRedis, { prefix: config.redisPrefix }, erp.services.accuracy, (err, tenant) =>
     logger.warn({ err, tenant }, 'could not score actuals against the latest forecast'),
@@ -63,29 +40,16 @@ async function main(): Promise<void> {
   collectDefaultMetrics({ register: metrics.registry, prefix: 'almanac_process_' })
 
   const app = await build({ config, gateway, logger, rateLimitRedis: apiRedis, metrics, histories, idempotency, erp: erp.services })
-  const workers: RunWorkers | null = config.runWorker ? startWorkers(config, logger) : null
+  const workers = config.runWorker ? startProcessWorkers(config, logger) : null
 
-  let stopping = false
-  const stop = (signal: string) => {
-    if (stopping) return
-    stopping = true
-    logger.info({ signal }, 'shutting down: finishing in-flight requests and chunks')
-    const closeAll = async () => {
-      await app.close()
-      await workers?.close()
-      await gateway.close()
-      await erp.close()
-      await apiRedis.quit().catch(() => undefined)
-    }
-    closeAll()
-      .then(() => process.exit(0))
-      .catch((err) => {
-        logger.error({ err }, 'shutdown failed')
-        process.exit(1)
-      })
-  }
-  process.on('SIGTERM', () => stop('SIGTERM'))
-  process.on('SIGINT', () => stop('SIGINT'))
+  const steps: CloseStep[] = [
+    ['HTTP server', () => app.close()],
+    ...(workers ? [['workers', () => workers.close()] as const] : []),
+    ['run gateway', () => gateway.close()],
+    ['ERP services', () => erp.close()],
+    ['Redis connection api', () => apiRedis.quit()],
+  ]
+  stopOnSignals(logger, 'finishing in-flight requests and jobs', () => closeSteps(logger, steps))
 
   try {
     await app.listen({ port: config.port, host: config.host })

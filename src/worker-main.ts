@@ -1,53 +1,61 @@
-import { readFileSync } from 'node:fs'
-import { createHash } from 'node:crypto'
-import { ConfigError, loadConfig } from './config.js'
-import { createLogger } from './logger.js'
-import { assertRedisReachable } from './queue/connection.js'
-import { startWorkers } from './queue/worker.js'
+import { realpathSync } from 'node:fs'
+import { pathToFileURL } from 'node:url'
+import type { Config } from './config.js'
+import { startCallbackWorker } from './callbacks/worker.js'
+import { createLogger, type Logger } from './logger.js'
+import { createRunGateway } from './queue/gateway.js'
+import { startChunkWorker } from './queue/worker.js'
+import { submitViaGateway } from './schedules/submit.js'
+import { startScheduleWorker } from './schedules/worker.js'
+import { closeSteps } from './shutdown.js'
+import { configAndRedisOrExit, stopOnSignals } from './startup.js'
 
-/**
- * `npm run worker`: chunk workers only, against the same Redis as the API.
- * Run more of these processes (on more machines) to add capacity; each one
- * uses every core through its worker-thread pool.
- */
-async function main(): Promise<void> {
-  let config
-  try {
-    config = loadConfig(process.env, {
-      readFile: (path) => readFileSync(path, 'utf8'),
-      hash: (key) => createHash('sha256').update(key).digest('hex'),
-    })
-  } catch (err) {
-    if (err instanceof ConfigError) {
-      process.stderr.write(`${err.message}\n`)
-      process.exit(1)
-    }
-    throw err
-  }
-  try {
-    await assertRedisReachable(config)
-  } catch (err) {
-    process.stderr.write(`${(err as Error).message}\n`)
-    process.exit(1)
-  }
-  const logger = createLogger({ level: config.logLevel })
-  const workers = startWorkers(config, logger)
-
-  let stopping = false
-  const stop = (signal: string) => {
-    if (stopping) return
-    stopping = true
-    logger.info({ signal }, 'shutting down: letting in-flight chunks finish')
-    workers
-      .close()
-      .then(() => process.exit(0))
-      .catch((err) => {
-        logger.error({ err }, 'shutdown failed')
-        process.exit(1)
-      })
-  }
-  process.on('SIGTERM', () => stop('SIGTERM'))
-  process.on('SIGINT', () => stop('SIGINT'))
+export interface ProcessWorkers {
+  /** Chunk jobs at once in this process (one worker thread each). */
+  readonly concurrency: number
+  /** Stops every worker (in-flight jobs finish first) and closes what they opened, each step even if another fails. */
+  close(): Promise<void>
 }
 
-void main()
+/**
+ * The one place that decides which workers a process runs: the chunk worker
+ * (fitting, on worker threads), the callback worker (deliveries) and the
+ * schedule worker (firings, which submit runs through a gateway of their
+ * own). `npm run worker` runs them; `npm start` too, beside the API, unless
+ * RUN_WORKER=false.
+ */
+export function startProcessWorkers(config: Config, logger: Logger): ProcessWorkers {
+  const chunks = startChunkWorker(config, logger)
+  const callbacks = startCallbackWorker(config, logger)
+  const scheduleGateway = createRunGateway(config, { logger })
+  const schedules = startScheduleWorker(config, logger, {
+    submit: submitViaGateway(scheduleGateway),
+    getRun: (tenant, runId) => scheduleGateway.get(tenant, runId),
+  })
+  return {
+    concurrency: chunks.concurrency,
+    close: () =>
+      closeSteps(logger, [
+        ['chunk worker', () => chunks.close()],
+        ['schedule worker', () => schedules.close()],
+        ['schedule run gateway', () => scheduleGateway.close()],
+        ['callback worker', () => callbacks.close()],
+      ]),
+  }
+}
+
+/**
+ * `npm run worker`: workers only, against the same Redis as the API. Run
+ * more of these processes (on more machines) to add capacity; each one uses
+ * every core through its worker-thread pool.
+ */
+async function main(): Promise<void> {
+  const config = await configAndRedisOrExit()
+  const logger = createLogger({ level: config.logLevel })
+  const workers = startProcessWorkers(config, logger)
+  stopOnSignals(logger, 'letting in-flight jobs finish', () => workers.close())
+}
+
+// server.ts imports startProcessWorkers; only as the process entry does this module start anything itself.
+const entry = process.argv[1]
+if (entry !== undefined && import.meta.url === pathToFileURL(realpathSync(entry)).href) void main()

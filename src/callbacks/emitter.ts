@@ -1,5 +1,6 @@
 import { Queue } from 'bullmq'
-import type { RedisClient } from '../storage/redis-client.js'
+import { logErrors, type Logger } from '../logger.js'
+import type { RedisClient } from '../storage/redis.js'
 import { RUN_EVENT_JOB, RUN_EVENT_JOB_OPTIONS, CALLBACK_QUEUE, runEventJobId } from './names.js'
 import type { RunEventJob } from './payload.js'
 
@@ -10,12 +11,14 @@ export interface RunEventEmitter {
 }
 
 /**
- * Emits onto the callback queue. One job per run (deterministic id), so
- * emitting twice for the same run (a retried chunk) is harmless.
+ * Emits onto the callback queue over the caller's connection (which the
+ * caller closes). One job per run (deterministic id), so emitting twice for
+ * the same run (a retried chunk) is harmless. A failed add() rejects; the
+ * queue's connection errors are logged.
  */
-export function createRunEventEmitter(connection: RedisClient, prefix: string): RunEventEmitter {
+export function createRunEventEmitter(connection: RedisClient, prefix: string, log: Logger): RunEventEmitter {
   const queue = new Queue<RunEventJob>(CALLBACK_QUEUE, { connection, prefix })
-  queue.on('error', () => {}) // surfaced by the failing add()
+  logErrors(queue, log, 'run events queue')
   return {
     async runEnded(tenant, runId) {
       await queue.add(RUN_EVENT_JOB, { tenant, runId }, { ...RUN_EVENT_JOB_OPTIONS, jobId: runEventJobId(runId) })

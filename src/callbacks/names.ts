@@ -8,9 +8,6 @@ export const RUN_EVENT_JOB = 'run-event'
 /** One POST to one URL, retried with exponential backoff. */
 export const DELIVERY_JOB = 'delivery'
 
-export const RUN_EVENTS = ['run.succeeded', 'run.failed', 'run.cancelled'] as const
-export type RunEvent = (typeof RUN_EVENTS)[number]
-
 /** One event job per run: a second emit for the same run is dropped by BullMQ (same id). */
 export function runEventJobId(runId: string): string {
   return `event.${runId}`

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto'
 import { z } from 'zod'
-import type { RunRecord } from '../storage/types.js'
-import { RUN_EVENTS, type RunEvent } from './names.js'
+import type { RunRecord } from '../runs/contract.js'
+import { RUN_EVENTS, type RunEvent } from '../runs/contract.js'
 
 /** Job data and the body a receiver gets. */
 

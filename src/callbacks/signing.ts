@@ -1,4 +1,4 @@
-import { createHmac, randomBytes, timingSafeEqual } from 'node:crypto'
+import { createHmac, timingSafeEqual } from 'node:crypto'
 
 /**
  * Callback signatures. Every delivery carries
@@ -20,11 +20,6 @@ export const DELIVERY_HEADER = 'almanac-delivery'
 export const SIGNATURE_SCHEME = 'hmac-sha256'
 /** How far a receiver should accept Almanac-Sent-At from its own clock (common practice: 5 minutes). */
 export const SIGNATURE_TOLERANCE_SECONDS = 300
-
-/** A new signing secret: 32 random bytes as 64 hex characters. */
-export function newSigningSecret(): string {
-  return randomBytes(32).toString('hex')
-}
 
 export function signatureOf(secret: string, delivery: string, sentAt: number, body: string): string {
   return createHmac('sha256', secret).update(`${delivery}\n${sentAt}\n${body}`, 'utf8').digest('hex')

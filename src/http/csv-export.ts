@@ -1,4 +1,4 @@
-import type { ResultItem, ResultPage, RunRecord } from '../storage/types.js'
+import type { ResultItem, ResultPage, RunRecord } from '../runs/contract.js'
 
 /**
  * Run results as CSV (RFC 4180, CRLF line ends, a header row): one row per

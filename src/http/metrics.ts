@@ -1,11 +1,12 @@
 import { Counter, Histogram, Registry } from 'prom-client'
-import { FIT_BUCKETS_SECONDS, type FitStats } from '../storage/stats-store.js'
+import type { FitStats } from '../runs/contract.js'
+import { FIT_BUCKETS_SECONDS } from '../storage/runs/stats-store.js'
 
 /**
  * Prometheus metrics of one process. The HTTP layer feeds the request
  * histogram and, for POST /v1/forecast, the fit metrics with source="sync"
  * (this process only). Chunk workers run in other processes and threads: they
- * add their fits to Redis (storage/stats-store.ts), and GET /metrics hands the
+ * add their fits to Redis (storage/runs/stats-store.ts), and GET /metrics hands the
  * totals it read to `setWorkerFits`, so the same two families also carry
  * source="worker" series: service-wide totals, identical in every API
  * replica's scrape (aggregate them with max, not sum, across replicas).

@@ -1,5 +1,5 @@
 import type { Config } from '../config.js'
-import type { RunGateway } from '../storage/types.js'
+import type { RunGateway } from '../runs/contract.js'
 import { build } from './app.js'
 
 /** Config for building the document: values only shape descriptions, nothing connects. */

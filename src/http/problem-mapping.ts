@@ -1,8 +1,8 @@
 import type { FastifyError } from 'fastify'
 import { formatFieldPath, ProblemError, type FieldError } from '../errors.js'
 import { CursorError } from '../storage/paging.js'
-import { RunInputError } from '../storage/types.js'
 import { isFieldIssue } from './validation.js'
+import { RunInputError } from '../runs/input.js'
 
 /** Most field errors listed in one response; the detail says how many there were. */
 export const MAX_FIELD_ERRORS = 100

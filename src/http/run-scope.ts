@@ -2,7 +2,7 @@ import type { FastifyInstance } from 'fastify'
 import { ProblemError } from '../errors.js'
 import { scopeSkuErrors } from '../runs/scope.js'
 import type { RunScope, RunSettings } from '../schemas/run.js'
-import type { RunRecord } from '../storage/types.js'
+import type { RunRecord } from '../runs/contract.js'
 import { requireHistories } from './plugins/history.js'
 
 /**

@@ -1,5 +1,5 @@
 import type { Config } from '../config.js'
-import type { RunGateway } from '../storage/types.js'
+import type { RunGateway } from '../runs/contract.js'
 import type { ServiceMetrics } from './metrics.js'
 
 /** Decorations the plugins add to fastify's types. */

@@ -1,53 +1,41 @@
 import { randomUUID } from 'node:crypto'
 import { Queue } from 'bullmq'
 import { queuePrefix, type Config } from '../config.js'
+import { logErrors, type Logger } from '../logger.js'
+import type { RunGateway, RunRecord } from '../runs/contract.js'
+import { runFailure } from '../runs/failures.js'
+import { checkRunOptions, checkUniqueSkus, emptyScopeError } from '../runs/input.js'
 import type { RunRequest } from '../schemas/run.js'
-import { RunStore } from '../storage/run-store.js'
-import { HistoryStore } from '../storage/history-store.js'
-import { createRunFromHistories } from '../storage/history-runs.js'
-import { resultsPageJson } from '../storage/result-pages.js'
-import { RunInputError, type RunGateway, type RunRecord } from '../storage/types.js'
-import { checkReplenishmentOptions, EngineInputError } from '../engine/index.js'
-import { gatewayConnection } from './connection.js'
+import { closeSteps } from '../shutdown.js'
+import { HistoryStore } from '../storage/histories/history-store.js'
+import { requestConnection } from '../storage/redis.js'
+import { createRunFromHistories } from '../storage/runs/history-runs.js'
+import { resultsPageJson } from '../storage/runs/result-pages.js'
+import { RunStore, runStoreOptions } from '../storage/runs/run-store.js'
+import { createRunEventEmitter } from '../callbacks/emitter.js'
 import { CHUNK_JOB, CHUNK_JOB_OPTIONS, CHUNK_QUEUE, chunkJobId } from './names.js'
 import type { ChunkJob } from './payload.js'
-import { runFailure } from '../runs/failures.js'
-import { storeOptions } from './worker.js'
-import { createRunEventEmitter } from '../callbacks/emitter.js'
 
 export interface RunMachinery extends RunGateway {
-  /** Closes the queue and the Redis connection. */
+  /** Closes the queue and the Redis connection it opened. */
   close(): Promise<void>
 }
 
 const BATCH = 500
 
 /**
- * Cross-field checks the schema cannot express.
- * @throws RunInputError when the replenishment lead time exceeds the horizon.
- */
-export function checkRunOptions(settings: Pick<RunRequest, 'horizon' | 'replenishment'>): void {
-  if (!settings.replenishment) return
-  try {
-    checkReplenishmentOptions(settings.replenishment, settings.horizon)
-  } catch (err) {
-    if (err instanceof EngineInputError) throw new RunInputError('invalid-option', err.message, err.field ?? 'replenishment')
-    throw err
-  }
-}
-
-/**
  * The RunGateway over BullMQ and the Redis run store. `submit` stores the
  * run record and the chunk inputs, then enqueues one small job per chunk.
+ * It opens its own Redis connection and closes it in `close`.
  */
-export function createRunGateway(config: Config, deps: { now?: () => Date } = {}): RunMachinery {
+export function createRunGateway(config: Config, deps: { readonly logger: Logger; readonly now?: () => Date }): RunMachinery {
   const now = deps.now ?? (() => new Date())
-  const redis = gatewayConnection(config)
-  redis.on('error', () => {}) // surfaced through ping() and failing calls
-  const store = new RunStore(redis, storeOptions(config))
+  const log = deps.logger.child({ component: 'run-gateway' })
+  const redis = requestConnection(config, log, 'run-gateway')
+  const store = new RunStore(redis, runStoreOptions(config))
   const queue = new Queue<ChunkJob>(CHUNK_QUEUE, { connection: redis, prefix: queuePrefix(config) })
-  queue.on('error', () => {})
-  const events = createRunEventEmitter(redis, queuePrefix(config))
+  logErrors(queue, log, 'chunk queue')
+  const events = createRunEventEmitter(redis, queuePrefix(config), log)
 
   const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
   const histories = new HistoryStore(redis, { prefix: config.redisPrefix })
@@ -65,7 +53,9 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
         )
       }
     } catch (err) {
-      await store.endRun(tenant, runId, 'failed', runFailure('enqueue-failed', 'could not enqueue the run'), now()).catch(() => null)
+      await store
+        .endRun(tenant, runId, 'failed', runFailure('enqueue-failed', 'could not enqueue the run'), now())
+        .catch((e: unknown) => log.error({ err: e, tenant, runId }, 'could not mark the run failed after enqueueing failed'))
       throw err
     }
   }
@@ -73,6 +63,7 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
   return {
     async submit(tenant: string, request: RunRequest): Promise<RunRecord> {
       checkRunOptions(request)
+      checkUniqueSkus(request.series)
       const runId = randomUUID()
       const { record, chunks } = await store.createRun(tenant, runId, request, config.chunkSize, now())
       await enqueueChunks(tenant, runId, chunks)
@@ -82,7 +73,7 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
     async submitScope(tenant, settings, scope) {
       checkRunOptions(settings)
       const runId = randomUUID()
-      const { record, chunks, missingSkus } = await createRunFromHistories(redis, storeOptions(config), histories, {
+      const created = await createRunFromHistories(redis, runStoreOptions(config), histories, {
         tenant,
         runId,
         settings,
@@ -90,8 +81,9 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
         chunkSize: config.chunkSize,
         now: now(),
       })
-      await enqueueChunks(tenant, runId, chunks)
-      return { record, missingSkus }
+      if (created === null) throw emptyScopeError(scope)
+      await enqueueChunks(tenant, runId, created.chunks)
+      return { record: created.record, missingSkus: created.missingSkus }
     },
 
     get: (tenant, runId) => store.getRun(tenant, runId),
@@ -131,10 +123,11 @@ export function createRunGateway(config: Config, deps: { now?: () => Date } = {}
       return { waiting: c.waiting ?? 0, active: c.active ?? 0, delayed: c.delayed ?? 0, failed: c.failed ?? 0, runs, fits }
     },
 
-    async close() {
-      await events.close()
-      await queue.close()
-      await redis.quit().catch(() => undefined)
-    },
+    close: () =>
+      closeSteps(log, [
+        ['run events queue', () => events.close()],
+        ['chunk queue', () => queue.close()],
+        ['Redis connection run-gateway', () => redis.quit()],
+      ]),
   }
 }

@@ -22,6 +22,3 @@ export const CHUNK_JOB_OPTIONS: JobsOptions = {
   // Failed jobs stay a week for diagnosis, at most 10,000 of them.
   removeOnFail: { age: 7 * 24 * 3600, count: 10_000 },
 }
-
-/** Run record TTL relative to result retention: summaries outlive results. */
-export const RECORD_TTL_FACTOR = 2

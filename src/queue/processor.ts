@@ -1,15 +1,12 @@
 import { UnrecoverableError, type Job } from 'bullmq'
-import { EngineInputError, replenishmentFor, type ForecastResult, type SeriesInput } from '../engine/index.js'
-import type { Logger } from 'pino'
-import type { RunSettings, SeriesItem } from '../schemas/run.js'
-import { ChunkTallier, toResultItem } from '../storage/codec.js'
-import { prepareItem, type PreparedItem } from '../storage/prepared-item.js'
-import type { CommitOutcome, RunStore } from '../storage/run-store.js'
-import type { ForecastItem, ResultItem } from '../storage/types.js'
+import type { ForecastResult, SeriesInput } from '../engine/index.js'
+import type { Logger } from '../logger.js'
+import { forecastItem } from '../runs/forecast-sku.js'
+import { ChunkTallier } from '../runs/tally.js'
+import { prepareItem, type PreparedItem } from '../storage/items/prepared-item.js'
+import type { CommitOutcome, RunStore } from '../storage/runs/run-store.js'
 import { CHUNK_QUEUE } from './names.js'
 import { ChunkJob } from './payload.js'
-import { toSeriesInput } from './series-input.js'
-import { REPLENISHMENT_SKIPPED } from '../runs/failures.js'
 
 export interface ChunkProcessorDeps {
   readonly store: RunStore
@@ -25,40 +22,6 @@ export interface ChunkOutcome {
   readonly outcome: CommitOutcome | 'skipped' | 'already-done'
   readonly series: number
   readonly failed: number
-}
-
-/**
- * Forecasts one series. Input the engine rejects becomes an error item; any
- * other error propagates so the whole chunk is retried.
- */
-export function forecastItem(
-  forecast: ChunkProcessorDeps['forecast'],
-  settings: RunSettings,
-  series: SeriesItem,
-): ResultItem {
-  const input = toSeriesInput(settings, series)
-  try {
-    const result = forecast(input)
-    return withReplenishment(toResultItem(series.sku, input.frequency, result), result, settings)
-  } catch (err) {
-    if (err instanceof EngineInputError) return { sku: series.sku, frequency: input.frequency, failure: { code: err.code, message: err.message } }
-    throw err
-  }
-}
-
-/**
- * Adds replenishment figures when the settings ask for them. Options the
- * engine refuses (the gateway checks them before a run is queued) leave the
- * forecast as it is, with a warning.
- */
-function withReplenishment(item: ForecastItem, result: ForecastResult, settings: RunSettings): ResultItem {
-  if (!settings.replenishment) return item
-  try {
-    return { ...item, replenishment: replenishmentFor(result, settings.replenishment) }
-  } catch (err) {
-    if (!(err instanceof EngineInputError)) throw err
-    return { ...item, warnings: [...item.warnings, { code: REPLENISHMENT_SKIPPED, message: err.message }] }
-  }
 }
 
 /**

@@ -2,33 +2,21 @@ import { availableParallelism } from 'node:os'
 import { Worker } from 'bullmq'
 import type { Logger } from 'pino'
 import { queuePrefix, type Config } from '../config.js'
-import { RunStore } from '../storage/run-store.js'
-import { workerConnection } from './connection.js'
-import { sandboxExecArgv } from './worker-flags.js'
-import { CHUNK_QUEUE, RECORD_TTL_FACTOR } from './names.js'
-import { ChunkJob } from './payload.js'
-import { runFailure } from '../runs/failures.js'
-import type { SandboxContext } from './processors/chunk.js'
 import { createRunEventEmitter } from '../callbacks/emitter.js'
-import { startCallbackWorker } from '../callbacks/worker.js'
-import { startScheduleWorker } from '../schedules/worker.js'
-import { submitViaGateway } from '../schedules/submit.js'
-import { createRunGateway } from './gateway.js'
+import { runFailure } from '../runs/failures.js'
+import { closeSteps } from '../shutdown.js'
+import { workerConnection } from '../storage/redis.js'
+import { RunStore, runStoreOptions } from '../storage/runs/run-store.js'
+import { CHUNK_QUEUE } from './names.js'
+import { ChunkJob } from './payload.js'
+import type { SandboxContext } from './processors/chunk.js'
+import { sandboxExecArgv } from './worker-flags.js'
 
-export interface RunWorkers {
+export interface ChunkWorker {
   readonly worker: Worker
   readonly concurrency: number
-  /** Stops taking chunks, lets in-flight chunks finish, then closes Redis. */
+  /** Stops taking chunks, lets in-flight chunks finish, then closes its Redis connections. */
   close(): Promise<void>
-}
-
-/** Retention settings of the run store, derived from config. */
-export function storeOptions(config: Config) {
-  return {
-    prefix: config.redisPrefix,
-    resultTtlSeconds: config.resultRetentionSeconds,
-    recordTtlSeconds: config.resultRetentionSeconds * RECORD_TTL_FACTOR,
-  }
 }
 
 /**
@@ -52,25 +40,18 @@ export function sandboxHeapLimits(chunkSize: number): { maxOldGenerationSizeMb: 
  * cores and lock renewal on the main thread keeps up with CPU-heavy fitting.
  * A chunk that fails its last attempt fails its whole run.
  */
-export function startWorkers(config: Config, logger: Logger): RunWorkers {
+export function startChunkWorker(config: Config, logger: Logger): ChunkWorker {
   const log = logger.child({ queue: CHUNK_QUEUE })
-  const connection = workerConnection(config)
-  const storeRedis = workerConnection(config)
-  const store = new RunStore(storeRedis, storeOptions(config))
+  const connection = workerConnection(config, log, 'chunk-worker')
+  const storeRedis = workerConnection(config, log, 'chunk-worker-store')
+  const store = new RunStore(storeRedis, runStoreOptions(config))
   const concurrency = config.workerConcurrency > 0 ? config.workerConcurrency : availableParallelism()
-  const events = createRunEventEmitter(storeRedis, queuePrefix(config))
-  const callbacks = startCallbackWorker(config, logger, storeOptions(config))
-  // Schedule firings submit runs over stored histories through a gateway of their own.
-  const scheduleGateway = createRunGateway(config)
-  const schedules = startScheduleWorker(config, logger, {
-    submit: submitViaGateway(scheduleGateway),
-    getRun: (tenant, runId) => store.getRun(tenant, runId),
-  })
+  const events = createRunEventEmitter(storeRedis, queuePrefix(config), log)
   const sandbox: SandboxContext = {
     redisUrl: config.redisUrl,
     ...(config.redisClusterNodes ? { redisClusterNodes: [...config.redisClusterNodes] } : {}),
     queuePrefix: queuePrefix(config),
-    ...storeOptions(config),
+    ...runStoreOptions(config),
     logLevel: config.logLevel,
   }
 
@@ -114,12 +95,12 @@ export function startWorkers(config: Config, logger: Logger): RunWorkers {
     worker,
     concurrency,
     close: async () => {
-      await worker.close()
-      await schedules.close()
-      await scheduleGateway.close()
-      await callbacks.close()
-      await events.close()
-      await Promise.allSettled([connection.quit(), storeRedis.quit()])
+      await closeSteps(log, [
+        ['chunk worker', () => worker.close()],
+        ['run events queue', () => events.close()],
+        ['Redis connection chunk-worker', () => connection.quit()],
+        ['Redis connection chunk-worker-store', () => storeRedis.quit()],
+      ])
       log.info('chunk worker stopped')
     },
   }

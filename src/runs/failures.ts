@@ -1,4 +1,4 @@
-import type { Failure } from '../storage/types.js'
+import type { Failure } from './contract.js'
 
 /**
  * `failure.code` of a run that failed as a whole (docs/problems.md lists these

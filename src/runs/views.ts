@@ -1,4 +1,4 @@
-import type { ResultItem } from '../storage/types.js'
+import type { ResultItem } from './contract.js'
 
 /** A result item for `?view=compact`: every field but `candidates`. */
 export function compactItem(item: ResultItem): ResultItem | Omit<ResultItem, 'candidates'> {

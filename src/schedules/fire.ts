@@ -2,9 +2,10 @@ import { UnrecoverableError, type Job } from 'bullmq'
 import type { Logger } from 'pino'
 import { z } from 'zod'
 import type { RunScope, RunSettings } from '../schemas/run.js'
-import type { ScheduleStore } from '../storage/schedule-store.js'
-import { RunInputError, type Failure, type RunRecord } from '../storage/types.js'
+import type { ScheduleStore } from '../storage/erp/schedule-store.js'
+import { type Failure, type RunRecord } from '../runs/contract.js'
 import { SCHEDULE_QUEUE } from './names.js'
+import { RunInputError } from '../runs/input.js'
 
 export const FireJob = z.object({ tenant: z.string().min(1).max(64), scheduleId: z.string().min(1).max(64) })
 export type FireJob = z.infer<typeof FireJob>

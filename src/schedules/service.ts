@@ -1,15 +1,14 @@
 import type { Queue } from 'bullmq'
 import type { FieldError } from '../errors.js'
-import { checkRunOptions } from '../queue/gateway.js'
 import type { RunScope, RunSettings } from '../schemas/run.js'
 import { scopeSkuErrors } from '../runs/scope.js'
-import type { HistoryStore } from '../storage/history-store.js'
-import type { Schedule, ScheduleStore } from '../storage/schedule-store.js'
+import type { HistoryStore } from '../storage/histories/history-store.js'
+import type { Schedule, ScheduleStore } from '../storage/erp/schedule-store.js'
 import type { Page } from '../storage/paging.js'
-import { RunInputError } from '../storage/types.js'
 import { checkTiming, nextFiring } from './cron.js'
 import { FIRE_JOB, schedulerId } from './names.js'
 import type { FireJob } from './fire.js'
+import { checkRunOptions, RunInputError } from '../runs/input.js'
 
 export interface ScheduleInput {
   readonly name?: string

@@ -1,4 +1,4 @@
-import type { RunGateway } from '../storage/types.js'
+import type { RunGateway } from '../runs/contract.js'
 import type { SubmitScheduled } from './fire.js'
 
 /**

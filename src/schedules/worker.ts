@@ -1,9 +1,10 @@
 import { Queue, Worker } from 'bullmq'
-import type { Logger } from 'pino'
 import { queuePrefix, type Config } from '../config.js'
-import { workerConnection } from '../queue/connection.js'
-import { ScheduleStore } from '../storage/schedule-store.js'
-import type { RunRecord } from '../storage/types.js'
+import { logErrors, type Logger } from '../logger.js'
+import { closeSteps } from '../shutdown.js'
+import { workerConnection } from '../storage/redis.js'
+import { ScheduleStore } from '../storage/erp/schedule-store.js'
+import type { RunRecord } from '../runs/contract.js'
 import { createFireProcessor, type SubmitScheduled } from './fire.js'
 import { SCHEDULE_QUEUE, schedulerId } from './names.js'
 
@@ -22,10 +23,10 @@ export function startScheduleWorker(
   deps: { readonly submit: SubmitScheduled; readonly getRun: (tenant: string, runId: string) => Promise<RunRecord | null> },
 ): ScheduleWorker {
   const log = logger.child({ queue: SCHEDULE_QUEUE })
-  const connection = workerConnection(config)
-  const redis = workerConnection(config)
+  const connection = workerConnection(config, log, 'schedule-worker')
+  const redis = workerConnection(config, log, 'schedule-worker-store')
   const queue = new Queue(SCHEDULE_QUEUE, { connection: redis, prefix: queuePrefix(config) })
-  queue.on('error', (err) => log.warn({ err }, 'schedule queue error'))
+  logErrors(queue, log, 'schedule queue')
   const processor = createFireProcessor({
     schedules: new ScheduleStore(redis, config.redisPrefix),
     getRun: deps.getRun,
@@ -34,14 +35,16 @@ export function startScheduleWorker(
     logger,
   })
   const worker = new Worker(SCHEDULE_QUEUE, processor, { connection, prefix: queuePrefix(config), concurrency: 2 })
-  worker.on('error', (err) => log.error({ err }, 'schedule worker error'))
+  logErrors(worker, log, 'schedule worker')
   worker.on('failed', (job, err) => log.error({ err, jobId: job?.id }, 'schedule firing failed'))
   return {
     worker,
-    close: async () => {
-      await worker.close()
-      await queue.close()
-      await Promise.allSettled([connection.quit(), redis.quit()])
-    },
+    close: () =>
+      closeSteps(log, [
+        ['schedule worker', () => worker.close()],
+        ['schedule queue', () => queue.close()],
+        ['Redis connection schedule-worker', () => connection.quit()],
+        ['Redis connection schedule-worker-store', () => redis.quit()],
+      ]),
   }
 }

@@ -1,10 +1,10 @@
 import { z } from 'zod'
 import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES } from '../engine/index.js'
 import { RunScope, RunSettings } from './run.js'
-import { RUN_STATUSES } from '../storage/types.js'
+import { RUN_STATUSES } from '../runs/contract.js'
 
 /**
- * Response shapes of the v1 API. They mirror the types in storage/types.ts and
+ * Response shapes of the v1 API. They mirror the types in runs/contract.ts and
  * engine/types.ts; the response serializer parses every answer through them.
  */
 

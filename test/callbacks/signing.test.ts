@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { newSigningSecret, signatureHeaders, signatureOf, verifySignature } from '../../src/callbacks/signing.js'
+import { signatureHeaders, signatureOf, verifySignature } from '../../src/callbacks/signing.js'
+import { newSigningSecret } from '../../src/storage/erp/callback-store.js'
 
 const BODY = '{"type":"run.succeeded"}'
 const SENT_AT = 1767600000

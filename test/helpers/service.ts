@@ -4,8 +4,8 @@ import type { Config } from '../../src/config.js'
 import { build, type AppDeps } from '../../src/http/app.js'
 import { createLogger } from '../../src/logger.js'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
-import { createErpServices } from '../../src/callbacks/services.js'
+import { startProcessWorkers, type ProcessWorkers } from '../../src/worker-main.js'
+import { createErpServices } from '../../src/http/erp-services.js'
 import { runsTestConfig } from '../queue/fixtures.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from './redis.js'
 
@@ -35,7 +35,7 @@ export interface ServiceContext {
 export interface TestService extends ServiceContext {
   readonly app: FastifyInstance
   readonly gateway: RunMachinery
-  readonly workers: RunWorkers
+  readonly workers: ProcessWorkers
   /** Closes everything it started and deletes the prefix's keys. */
   close(): Promise<void>
 }
@@ -57,7 +57,7 @@ export async function startService(name: string, options: ServiceOptions = {}): 
   const logger = createLogger({ level: 'silent' })
   let app: FastifyInstance | undefined
   let gateway: RunMachinery | undefined
-  let workers: RunWorkers | undefined
+  let workers: ProcessWorkers | undefined
   let erp: ErpMachinery | undefined
   let redis: Redis | undefined
 
@@ -72,9 +72,9 @@ export async function startService(name: string, options: ServiceOptions = {}): 
 
   try {
     redis = new Redis(url, { maxRetriesPerRequest: 2 })
-    gateway = createRunGateway(config)
-    workers = startWorkers(config, logger)
-    if (options.erp) erp = createErpServices(config, redis)
+    gateway = createRunGateway(config, { logger })
+    workers = startProcessWorkers(config, logger)
+    if (options.erp) erp = createErpServices(config, redis, { logger })
     const ctx: ServiceContext = { url, prefix, config, redis, erp }
     app = await build({
       config,

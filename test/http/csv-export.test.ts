@@ -3,7 +3,7 @@ import { parse } from 'csv-parse/sync'
 import type { FastifyInstance } from 'fastify'
 import { build } from '../../src/http/app.js'
 import { prefersCsv, textCell } from '../../src/http/csv-export.js'
-import type { ResultItem } from '../../src/storage/types.js'
+import type { ResultItem } from '../../src/runs/contract.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, KEY_HEATING, auth, forecastItemFixture, testConfig } from './gateway-double.js'
 
 const REQUEST = { horizon: 2, frequency: 'month', series: [{ sku: 'X', demand: [1, 2, 3] }] }

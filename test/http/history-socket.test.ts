@@ -3,7 +3,7 @@ import { connect, type Socket } from 'node:net'
 import { Redis } from 'ioredis'
 import type { FastifyInstance } from 'fastify'
 import { build } from '../../src/http/app.js'
-import { HistoryStore } from '../../src/storage/history-store.js'
+import { HistoryStore } from '../../src/storage/histories/history-store.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, testConfig } from './gateway-double.js'
 

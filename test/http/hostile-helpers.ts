@@ -4,9 +4,9 @@ import { Redis } from 'ioredis'
 import { build } from '../../src/http/app.js'
 import { createLogger } from '../../src/logger.js'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { HistoryStore } from '../../src/storage/history-store.js'
-import { IdempotencyStore } from '../../src/storage/idempotency-store.js'
-import { createErpServices } from '../../src/callbacks/services.js'
+import { HistoryStore } from '../../src/storage/histories/history-store.js'
+import { IdempotencyStore } from '../../src/storage/erp/idempotency-store.js'
+import { createErpServices } from '../../src/http/erp-services.js'
 import type { Config } from '../../src/config.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { testConfig } from './gateway-double.js'
@@ -30,8 +30,8 @@ export async function buildHostileApp(name: string, overrides: Partial<Config> =
   const redis = new Redis(url, { maxRetriesPerRequest: 2 })
   const lines: string[] = []
   const logger = createLogger({ level: 'info', destination: { write: (s: string) => void lines.push(s) } })
-  const gateway = createRunGateway(config)
-  const erp = createErpServices(config, redis)
+  const gateway = createRunGateway(config, { logger: createLogger({ level: 'silent' }) })
+  const erp = createErpServices(config, redis, { logger: createLogger({ level: 'silent' }) })
   const app = await build({
     config,
     gateway,

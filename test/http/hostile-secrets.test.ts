@@ -5,7 +5,7 @@ import { fileURLToPath } from 'node:url'
 import { ConfigError, loadConfig } from '../../src/config.js'
 import { build } from '../../src/http/app.js'
 import { createLogger } from '../../src/logger.js'
-import type { RunGateway } from '../../src/storage/types.js'
+import type { RunGateway } from '../../src/runs/contract.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, KEY_HEATING, auth, sha256, testConfig } from './gateway-double.js'
 
 /**

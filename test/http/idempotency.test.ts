@@ -1,6 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { RunRequest } from '../../src/schemas/run.js'
-import type { RunRecord } from '../../src/storage/types.js'
+import type { RunRecord } from '../../src/runs/contract.js'
 import { KEY_GARDEN, KEY_HEATING, auth } from './gateway-double.js'
 import { buildHistoryApp, type HistoryApp } from './history-helpers.js'
 

@@ -1,12 +1,12 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
 import type { Redis } from 'ioredis'
-import { AccuracyTrackingHistoryStore } from '../../src/storage/accuracy-hook.js'
+import { AccuracyTrackingHistoryStore } from '../../src/storage/erp/accuracy-hook.js'
 import { latestKey, runKeys } from '../../src/storage/keys.js'
-import { RunStore } from '../../src/storage/run-store.js'
+import { RunStore } from '../../src/storage/runs/run-store.js'
 import type { RunMachinery } from '../../src/queue/gateway.js'
 import { startService, type ErpMachinery, type TestService } from '../helpers/service.js'
-import { prepareItems } from '../../src/storage/prepared-item.js'
+import { prepareItems } from '../../src/storage/items/prepared-item.js'
 import { waitFor } from '../queue/fixtures.js'
 
 // Accuracy tracking end to end: stored histories -> run -> new actuals uploaded -> scored.

@@ -2,10 +2,10 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Redis } from 'ioredis'
 import { createLogger } from '../../src/logger.js'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
-import { DeliveryStore, type Delivery } from '../../src/storage/delivery-store.js'
+import { startProcessWorkers, type ProcessWorkers } from '../../src/worker-main.js'
+import { DeliveryStore, type Delivery } from '../../src/storage/erp/delivery-store.js'
 import { runKeys } from '../../src/storage/keys.js'
-import { CallbackStore } from '../../src/callbacks/callback-store.js'
+import { CallbackStore } from '../../src/storage/erp/callback-store.js'
 import { verifySignature } from '../../src/callbacks/signing.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runRequest, runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
@@ -15,7 +15,7 @@ import { deadUrl, startReceiver } from '../callbacks/receiver.js'
 let url: string
 let prefix: string
 let gateway: RunMachinery
-let workers: RunWorkers
+let workers: ProcessWorkers
 let redis: Redis
 let deliveries: DeliveryStore
 let callbacks: CallbackStore
@@ -28,8 +28,8 @@ beforeAll(async () => {
   url = await redisUrlForTests()
   prefix = uniquePrefix('erp-callbacks')
   const config = runsTestConfig(url, prefix, { callbackAttempts: ATTEMPTS, callbackBackoffMs: 50, callbackTimeoutMs: 2000, callbackAllowPrivateNetworks: true })
-  gateway = createRunGateway(config)
-  workers = startWorkers(config, createLogger({ level: 'silent' }))
+  gateway = createRunGateway(config, { logger: createLogger({ level: 'silent' }) })
+  workers = startProcessWorkers(config, createLogger({ level: 'silent' }))
   redis = new Redis(url)
   deliveries = new DeliveryStore(redis, { prefix, ttlSeconds: 3600 })
   callbacks = new CallbackStore(redis, prefix)

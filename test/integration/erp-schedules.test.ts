@@ -4,11 +4,12 @@ import type { Redis } from 'ioredis'
 import { createLogger } from '../../src/logger.js'
 import type { RunMachinery } from '../../src/queue/gateway.js'
 import { createFireHandler } from '../../src/schedules/fire.js'
-import { HistoryStore } from '../../src/storage/history-store.js'
-import { ScheduleStore } from '../../src/storage/schedule-store.js'
-import { RunInputError, type RunRecord } from '../../src/storage/types.js'
+import { HistoryStore } from '../../src/storage/histories/history-store.js'
+import { ScheduleStore } from '../../src/storage/erp/schedule-store.js'
+import { type RunRecord } from '../../src/runs/contract.js'
 import { startService, type ErpMachinery, type TestService } from '../helpers/service.js'
 import { syntheticSeries, waitFor } from '../queue/fixtures.js'
+import { RunInputError } from '../../src/runs/input.js'
 
 // Schedules through the real app, Redis, BullMQ job schedulers and workers.
 let service: TestService

@@ -3,7 +3,7 @@ import { createHash } from 'node:crypto'
 import type { FastifyInstance } from 'fastify'
 import { Redis } from 'ioredis'
 import { build } from '../../src/http/app.js'
-import type { RunGateway } from '../../src/storage/types.js'
+import type { RunGateway } from '../../src/runs/contract.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runsTestConfig } from '../queue/fixtures.js'
 

@@ -2,7 +2,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Queue } from 'bullmq'
 import { Redis } from 'ioredis'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import { startProcessWorkers, type ProcessWorkers } from '../../src/worker-main.js'
 import { CHUNK_QUEUE } from '../../src/queue/names.js'
 import { createLogger } from '../../src/logger.js'
 import { runKeys } from '../../src/storage/keys.js'
@@ -12,14 +12,14 @@ import { runRequest, runsTestConfig, syntheticSeries, waitFor } from '../queue/f
 let url: string
 let prefix: string
 let gateway: RunMachinery
-let workers: RunWorkers | undefined
+let workers: ProcessWorkers | undefined
 let redis: Redis
 let queue: Queue
 
 beforeAll(async () => {
   url = await redisUrlForTests()
   prefix = uniquePrefix('runs-cancel')
-  gateway = createRunGateway(runsTestConfig(url, prefix))
+  gateway = createRunGateway(runsTestConfig(url, prefix), { logger: createLogger({ level: 'silent' }) })
   redis = new Redis(url)
   queue = new Queue(CHUNK_QUEUE, { connection: { url }, prefix })
 })
@@ -51,7 +51,7 @@ describe('cancel', { timeout: 120_000 }, () => {
     const config = runsTestConfig(url, prefix, { workerConcurrency: 1 })
     // 40 chunks of 10 long series: the single worker thread is still busy when we cancel.
     const run = await gateway.submit('acme', runRequest(syntheticSeries(400, 144), { holdoutOrigins: 4, horizon: 12 }))
-    workers = startWorkers(config, createLogger({ level: 'silent' }))
+    workers = startProcessWorkers(config, createLogger({ level: 'silent' }))
     await waitFor(async () => {
       const r = await gateway.get('acme', run.id)
       return r && r.progress.done > 0 ? r : undefined
@@ -81,7 +81,7 @@ describe('cancel', { timeout: 120_000 }, () => {
   it('reports queue depth', async () => {
     const stats = await gateway.stats()
     expect(stats).toMatchObject({ waiting: 0, active: 0, delayed: 0, failed: 0 })
-    // Runs by status (storage/stats-store.ts): the two cancelled runs and the finished one above.
+    // Runs by status (storage/runs/stats-store.ts): the two cancelled runs and the finished one above.
     expect(stats.runs).toEqual({ queued: 0, running: 0, succeeded: 1, failed: 0, cancelled: 2 })
     await expect(gateway.ping()).resolves.toBeUndefined()
   })

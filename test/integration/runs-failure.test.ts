@@ -3,7 +3,7 @@ import { Queue } from 'bullmq'
 import { Redis } from 'ioredis'
 import { CHUNK_QUEUE, chunkJobId } from '../../src/queue/names.js'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import { startChunkWorker, type ChunkWorker } from '../../src/queue/worker.js'
 import { createLogger } from '../../src/logger.js'
 import { runKeys } from '../../src/storage/keys.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
@@ -13,13 +13,13 @@ import { startWorkerProcess } from '../queue/worker-process.js'
 let url: string
 let prefix: string
 let gateway: RunMachinery
-let workers: RunWorkers | undefined
+let workers: ChunkWorker | undefined
 let redis: Redis
 
 beforeAll(async () => {
   url = await redisUrlForTests()
   prefix = uniquePrefix('runs-failure')
-  gateway = createRunGateway(runsTestConfig(url, prefix))
+  gateway = createRunGateway(runsTestConfig(url, prefix), { logger: createLogger({ level: 'silent' }) })
   redis = new Redis(url)
 })
 
@@ -34,7 +34,7 @@ describe('run failure', { timeout: 120_000 }, () => {
   it('fails the run when a chunk cannot be processed (its input expired)', async () => {
     const run = await gateway.submit('acme', runRequest(syntheticSeries(30)))
     await redis.del(runKeys(prefix, 'acme', run.id).input(1))
-    workers = startWorkers(runsTestConfig(url, prefix), createLogger({ level: 'silent' }))
+    workers = startChunkWorker(runsTestConfig(url, prefix), createLogger({ level: 'silent' }))
     const r = await waitFor(async () => {
       const x = await gateway.get('acme', run.id)
       return x?.status === 'failed' ? x : undefined
@@ -49,7 +49,7 @@ describe('retries', { timeout: 120_000 }, () => {
   it('retries a chunk that failed for a reason other than its data, with backoff, and the run succeeds', async () => {
     const queue = new Queue(CHUNK_QUEUE, { connection: { url }, prefix })
     try {
-      workers ??= startWorkers(runsTestConfig(url, prefix), createLogger({ level: 'silent' }))
+      workers ??= startChunkWorker(runsTestConfig(url, prefix), createLogger({ level: 'silent' }))
       await workers.worker.pause()
       const run = await gateway.submit('acme', runRequest(syntheticSeries(15)))
       // Break chunk 0's stored input so the first attempt throws (a SyntaxError, not an engine error).
@@ -80,8 +80,8 @@ describe('worker-main', { timeout: 120_000 }, () => {
   it('exits with one line saying what to start when Redis is unreachable', async () => {
     const w = startWorkerProcess({ REDIS_URL: 'redis://127.0.0.1:1', REDIS_PREFIX: prefix })
     expect(await w.exited).toBe(1)
-    expect(w.stderr.join('')).toBe(
-      'Redis is not reachable at redis://127.0.0.1:1: start it (redis-server) or set REDIS_URL\n',
+    expect(w.stderr.join('')).toMatch(
+      /^Redis is not reachable at redis:\/\/127\.0\.0\.1:1 \(connect ECONNREFUSED 127\.0\.0\.1:1\): start it \(redis-server\) or set REDIS_URL\n$/,
     )
   })
 

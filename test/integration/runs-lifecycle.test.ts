@@ -1,17 +1,17 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Redis } from 'ioredis'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../src/queue/worker.js'
+import { startProcessWorkers, type ProcessWorkers } from '../../src/worker-main.js'
 import { createLogger } from '../../src/logger.js'
 import { runKeys, latestKey } from '../../src/storage/keys.js'
-import type { FailedItem, ForecastItem, RunRecord } from '../../src/storage/types.js'
+import type { FailedItem, ForecastItem, RunRecord } from '../../src/runs/contract.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runRequest, runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
 
 let url: string
 let prefix: string
 let gateway: RunMachinery
-let workers: RunWorkers
+let workers: ProcessWorkers
 let redis: Redis
 
 const finished = (tenant: string, id: string) =>
@@ -24,8 +24,8 @@ beforeAll(async () => {
   url = await redisUrlForTests()
   prefix = uniquePrefix('runs-lifecycle')
   const config = runsTestConfig(url, prefix)
-  gateway = createRunGateway(config)
-  workers = startWorkers(config, createLogger({ level: 'silent' }))
+  gateway = createRunGateway(config, { logger: createLogger({ level: 'silent' }) })
+  workers = startProcessWorkers(config, createLogger({ level: 'silent' }))
   redis = new Redis(url)
 })
 

@@ -7,6 +7,7 @@ import { runKeys } from '../../src/storage/keys.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runRequest, runsTestConfig, syntheticSeries, waitFor } from '../queue/fixtures.js'
 import { startWorkerProcess, stopWorkerProcess, type WorkerProcess } from '../queue/worker-process.js'
+import { createLogger } from '../../src/logger.js'
 
 /**
  * Worker processes (`src/worker-main.ts`) sharing runs through Redis. Short
@@ -63,7 +64,7 @@ const chunkInFlight = (w: WorkerProcess, runId: string) =>
 beforeAll(async () => {
   url = await redisUrlForTests()
   prefix = uniquePrefix('runs-processes')
-  gateway = createRunGateway(runsTestConfig(url, prefix, { chunkSize: 25 }))
+  gateway = createRunGateway(runsTestConfig(url, prefix, { chunkSize: 25 }), { logger: createLogger({ level: 'silent' }) })
   redis = new Redis(url)
   queue = new Queue(CHUNK_QUEUE, { connection: { url }, prefix })
 })

@@ -5,7 +5,7 @@ import { forecastSeries } from '../../src/engine/index.js'
 import { createLogger } from '../../src/logger.js'
 import { createChunkProcessor } from '../../src/queue/processor.js'
 import { runKeys } from '../../src/storage/keys.js'
-import { RunStore } from '../../src/storage/run-store.js'
+import { RunStore } from '../../src/storage/runs/run-store.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runRequest, syntheticSeries } from './fixtures.js'
 

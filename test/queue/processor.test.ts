@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest'
 import { forecastSeries } from '../../src/engine/index.js'
-import { forecastItem } from '../../src/queue/processor.js'
 import { RunSettings } from '../../src/schemas/run.js'
 import { syntheticSeries } from './fixtures.js'
+import { forecastItem } from '../../src/runs/forecast-sku.js'
 
 const settings = RunSettings.parse({ horizon: 4 })
 

@@ -1,6 +1,6 @@
 import fp from 'fastify-plugin'
 import type { Config } from '../../config.js'
-import type { RunGateway } from '../../storage/types.js'
+import type { RunGateway } from '../../runs/contract.js'
 import type { ServiceMetrics } from '../metrics.js'
 import '../types.js'
 

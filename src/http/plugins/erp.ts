@@ -1,7 +1,7 @@
 import fp from 'fastify-plugin'
 import type { FastifyInstance } from 'fastify'
 import { ProblemError } from '../../errors.js'
-import type { ErpServices } from '../../callbacks/services.js'
+import type { ErpServices } from '../erp-services.js'
 
 declare module 'fastify' {
   interface FastifyInstance {

@@ -1,7 +1,7 @@
 import fp from 'fastify-plugin'
 import type { FastifyInstance } from 'fastify'
 import { ProblemError } from '../../errors.js'
-import type { HistoryStore } from '../../storage/history-store.js'
+import type { HistoryStore } from '../../storage/histories/history-store.js'
 
 declare module 'fastify' {
   interface FastifyInstance {

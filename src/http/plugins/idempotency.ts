@@ -3,7 +3,7 @@ import { Readable, Transform } from 'node:stream'
 import fp from 'fastify-plugin'
 import type { FastifyReply, FastifyRequest } from 'fastify'
 import { ProblemError } from '../../errors.js'
-import type { IdempotencyStore } from '../../storage/idempotency-store.js'
+import type { IdempotencyStore } from '../../storage/erp/idempotency-store.js'
 
 declare module 'fastify' {
   interface FastifyContextConfig {

@@ -1,6 +1,6 @@
 import fp from 'fastify-plugin'
 import { Gauge } from 'prom-client'
-import { RUN_STATUSES, type RunGateway } from '../../storage/types.js'
+import { RUN_STATUSES, type RunGateway } from '../../runs/contract.js'
 
 type Stats = Awaited<ReturnType<RunGateway['stats']>>
 

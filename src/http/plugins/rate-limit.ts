@@ -1,6 +1,6 @@
 import fp from 'fastify-plugin'
 import rateLimit from '@fastify/rate-limit'
-import type { RedisClient } from '../../storage/redis-client.js'
+import type { RedisClient } from '../../storage/redis.js'
 import { ProblemError } from '../../errors.js'
 
 /**

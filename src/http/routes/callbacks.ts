@@ -2,11 +2,11 @@ import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../errors.js'
 import { CallbackUrl } from '../../schemas/run.js'
-import { MAX_CALLBACKS_PER_TENANT } from '../../callbacks/callback-store.js'
-import { RUN_EVENTS } from '../../callbacks/names.js'
+import { MAX_CALLBACKS_PER_TENANT } from '../../storage/erp/callback-store.js'
 import { requireErp } from '../plugins/erp.js'
 import { PageQuery, pageSchema } from '../../schemas/params.js'
 import { READ, READ_ONE, WRITE, WRITE_ONE } from './responses.js'
+import { RUN_EVENTS } from '../../runs/contract.js'
 
 const SIGNING =
   'Every delivery is a POST with a JSON body and the headers Almanac-Event, Almanac-Delivery (an id unique to the ' +

@@ -3,11 +3,11 @@ import type { ForecastResult, SeriesInput } from '../../engine/index.js'
 import { ProblemError } from '../../errors.js'
 import { ForecastResponse, type ForecastBody } from '../../schemas/results.js'
 import { RunRequest, type RunSettings, type SeriesItem } from '../../schemas/run.js'
-import { checkRunOptions } from '../../queue/gateway.js'
-import { forecastItem } from '../../queue/processor.js'
-import type { ResultItem } from '../../storage/types.js'
+import type { ResultItem } from '../../runs/contract.js'
 import type { ServiceMetrics } from '../metrics.js'
 import { SYNC_FORECAST } from './responses.js'
+import { checkRunOptions } from '../../runs/input.js'
+import { forecastItem } from '../../runs/forecast-sku.js'
 
 export type ForecastFn = (input: SeriesInput) => ForecastResult
 

@@ -5,7 +5,7 @@ import { PageQuery, pageSchema } from '../../schemas/params.js'
 import { RunScope, RunSettings, toRunScope } from '../../schemas/run.js'
 import { Failure } from '../../schemas/results.js'
 import { ScheduleInputError, type ScheduleView } from '../../schedules/service.js'
-import { MAX_SCHEDULES_PER_TENANT } from '../../storage/schedule-store.js'
+import { MAX_SCHEDULES_PER_TENANT } from '../../storage/erp/schedule-store.js'
 import { requireErp } from '../plugins/erp.js'
 import { READ, READ_ONE, WRITE, WRITE_ONE } from './responses.js'
 

@@ -2,8 +2,8 @@ import { workerData } from 'node:worker_threads'
 import { z } from 'zod'
 import { forecastSeries } from '../../engine/index.js'
 import { createLogger } from '../../logger.js'
-import { RunStore } from '../../storage/run-store.js'
-import { workerConnection } from '../connection.js'
+import { RunStore } from '../../storage/runs/run-store.js'
+import { workerConnection } from '../../storage/redis.js'
 import { createChunkProcessor } from '../processor.js'
 import { createRunEventEmitter } from '../../callbacks/emitter.js'
 import { lowerThreadPriority } from '../thread-priority.js'
@@ -30,16 +30,16 @@ export type SandboxContext = z.infer<typeof SandboxContext>
 const ctx = SandboxContext.parse(workerData)
 // Fitting yields the cores to request handling and lock renewals (thread-priority.ts).
 lowerThreadPriority()
-const redis = workerConnection(ctx)
 const logger = createLogger({ level: ctx.logLevel })
-redis.on('error', (err) => logger.warn({ err }, 'redis connection error (sandboxed processor)'))
+// Open for the thread's life: BullMQ ends the thread, and with it the connection, when the worker closes.
+const redis = workerConnection(ctx, logger, 'sandboxed-chunk-processor')
 const store = new RunStore(redis, {
   prefix: ctx.prefix,
   resultTtlSeconds: ctx.resultTtlSeconds,
   recordTtlSeconds: ctx.recordTtlSeconds,
 })
 
-const events = createRunEventEmitter(redis, ctx.queuePrefix)
+const events = createRunEventEmitter(redis, ctx.queuePrefix, logger)
 
 export default createChunkProcessor({
   store,

@@ -5,7 +5,7 @@ import { Redis } from 'ioredis'
 import { build } from '../../../src/http/app.js'
 import { createLogger } from '../../../src/logger.js'
 import { createRunGateway, type RunMachinery } from '../../../src/queue/gateway.js'
-import { startWorkers, type RunWorkers } from '../../../src/queue/worker.js'
+import { startProcessWorkers, type ProcessWorkers } from '../../../src/worker-main.js'
 import type { Config } from '../../../src/config.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../../helpers/redis.js'
 import { runsTestConfig, syntheticSeries, waitFor } from '../../queue/fixtures.js'
@@ -20,7 +20,7 @@ let prefix: string
 let config: Config
 let app: FastifyInstance
 let gateway: RunMachinery
-let workers: RunWorkers | undefined
+let workers: ProcessWorkers | undefined
 let rateLimitRedis: Redis
 
 beforeAll(async () => {
@@ -31,7 +31,7 @@ beforeAll(async () => {
     chunkSize: 2,
     workerConcurrency: 1,
   })
-  gateway = createRunGateway(config)
+  gateway = createRunGateway(config, { logger: createLogger({ level: 'silent' }) })
   rateLimitRedis = new Redis(url, { maxRetriesPerRequest: 2 })
   app = await build({ config, gateway, logger: createLogger({ level: 'silent' }), rateLimitRedis })
 })
@@ -58,7 +58,7 @@ describe('GET /metrics with runs fitted by a worker', () => {
     const res = await app.inject({ method: 'POST', url: '/v1/runs', headers: auth, payload: { horizon: 3, frequency: 'month', series } })
     expect(res.statusCode).toBe(202)
     const runId = res.json().id
-    workers = startWorkers(config, createLogger({ level: 'silent' }))
+    workers = startProcessWorkers(config, createLogger({ level: 'silent' }))
     const run = await waitFor(async () => {
       const r = (await app.inject({ url: `/v1/runs/${runId}`, headers: auth })).json()
       return r.status === 'queued' || r.status === 'running' ? undefined : r

@@ -5,7 +5,7 @@ import { RunResource } from '../../../schemas/results.js'
 import { RunSubmission, toRunScope } from '../../../schemas/run.js'
 import { parseRunSubmissionFast } from '../../../schemas/series-check.js'
 import { validatorCompiler } from '../../validation.js'
-import type { RunRecord } from '../../../storage/types.js'
+import type { RunRecord } from '../../../runs/contract.js'
 import { submitStoredScope } from '../../run-scope.js'
 import { IDEMPOTENT, READ_ONE, WRITE, WRITE_ONE } from '../responses.js'
 

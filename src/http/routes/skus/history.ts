@@ -5,7 +5,7 @@ import { firstPeriodLabel } from '../../../history/buckets.js'
 import { normaliseTags } from '../../../history/tags.js'
 import { HistoryBody, HistoryResource } from '../../../schemas/history.js'
 import { SkuParams } from '../../../schemas/params.js'
-import type { StoredHistory } from '../../../storage/history-store.js'
+import type { StoredHistory } from '../../../storage/histories/history-store.js'
 import { requireHistories } from '../../plugins/history.js'
 import { READ_ONE, WRITE } from '../responses.js'
 

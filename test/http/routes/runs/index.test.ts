@@ -126,7 +126,7 @@ describe('/v1/runs', () => {
 
   it('a run with a duplicate SKU is refused by the machinery as a 400 with the field', async () => {
     const dup = new InMemoryGatewayDouble()
-    const { RunInputError } = await import('../../../../src/storage/types.js')
+    const { RunInputError } = await import('../../../../src/runs/input.js')
     dup.submit = async () => {
       throw new RunInputError('duplicate-sku', 'SKU HOSE-25M appears twice', 'series[1].sku')
     }

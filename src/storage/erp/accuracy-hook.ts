@@ -1,0 +1,59 @@
+import type { RedisClient } from '../redis.js'
+import { formatPeriod, parsePeriod } from '../../engine/index.js'
+import type { PendingHistory } from '../../history/accumulator.js'
+import type { HistoryData } from '../../history/types.js'
+import type { AccuracyStore, ActualsEntry } from './accuracy-store.js'
+import { HistoryStore } from '../histories/history-store.js'
+
+/**
+ * A history store that scores forecasts as actuals arrive: after every write
+ * (bulk upload batch or single PUT) the stored histories of the SKUs written
+ * go to `AccuracyStore.recordActualsMany`, which scores only the periods each
+ * SKU's latest forecast covered and skips periods already scored with the same
+ * value. Scoring never fails an upload: an error goes to `onError` and the
+ * histories are stored all the same.
+ */
+export class AccuracyTrackingHistoryStore extends HistoryStore {
+  constructor(
+    redis: RedisClient,
+    opts: ConstructorParameters<typeof HistoryStore>[1],
+    private readonly accuracy: Pick<AccuracyStore, 'recordActualsMany'>,
+    /** `what`: the SKU, or how many SKUs a failed batch held. */
+    private readonly onError: (err: unknown, tenant: string, what: string) => void,
+  ) {
+    super(redis, opts)
+  }
+
+  override async apply(
+    tenant: string,
+    batch: readonly PendingHistory[],
+    merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
+  ): Promise<({ outcome: 'created' | 'updated' } | { reason: string })[]> {
+    // What each SKU's history became (the merge result is what gets stored).
+    const stored = new Map<string, HistoryData>()
+    const results = await super.apply(tenant, batch, (current, pending) => {
+      const merged = merge(current, pending)
+      if ('data' in merged) stored.set(pending.sku, merged.data)
+      return merged
+    })
+    const entries: ActualsEntry[] = []
+    batch.forEach((p, i) => {
+      const r = results[i]
+      const data = stored.get(p.sku)
+      if (r === undefined || !('outcome' in r) || !data) return
+      try {
+        const first = parsePeriod(data.firstPeriod, data.frequency)
+        const periodValues = data.demand.map((value, t) => ({ period: formatPeriod(first + t, data.frequency), value }))
+        entries.push({ sku: p.sku, frequency: data.frequency, periodValues })
+      } catch (err) {
+        this.onError(err, tenant, p.sku)
+      }
+    })
+    try {
+      await this.accuracy.recordActualsMany(tenant, entries)
+    } catch (err) {
+      this.onError(err, tenant, entries.length === 1 ? entries[0]!.sku : `${entries.length} SKUs`)
+    }
+    return results
+  }
+}

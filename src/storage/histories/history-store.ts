@@ -1,0 +1,290 @@
+import { z } from 'zod'
+import type { RedisClient } from '../redis.js'
+import { decodeJson } from '../decode.js'
+import { FREQUENCIES, formatPeriod, parsePeriod, type Frequency } from '../../engine/index.js'
+import type { PendingHistory } from '../../history/accumulator.js'
+import type { HistoryWriter } from '../../history/ingest.js'
+import type { HistoryData } from '../../history/types.js'
+import { decodeCursor, encodeCursor } from '../paging.js'
+import { isValidTenant } from '../keys.js'
+import type { RunScope } from '../../schemas/run.js'
+
+/**
+ * Stored demand histories per tenant, in Redis. Histories are master data: no TTL.
+ *
+ *   hist:{T}:data      hash  sku -> JSON array of demand per period (null = missing period)
+ *   hist:{T}:meta      hash  sku -> JSON {f: frequency, s: firstPeriod, n: periodCount, t: tags, u: updatedAt, r: revision}
+ *   hist:{T}:skus      zset  every SKU with a history, score 0 (ordered by ZRANGEBYLEX)
+ *   hist:{T}:tag:<tag> zset  SKUs carrying the tag, score 0
+ *
+ * under `${prefix}:t:${tenant}:`. The tenant sits in a hash tag so one
+ * SKU's write (a Lua script over data, meta, the index and tag sets) stays on
+ * one slot of a cluster. A write is atomic per SKU and checks the revision it
+ * read (optimistic concurrency), so concurrent uploads never lose a write.
+ */
+
+export interface StoredHistory extends HistoryData {
+  readonly sku: string
+  readonly updatedAt: string
+}
+
+export interface HistorySummary {
+  readonly sku: string
+  readonly frequency: Frequency
+  readonly firstPeriod: string
+  readonly lastPeriod: string
+  readonly periodCount: number
+  readonly tags: readonly string[]
+  readonly updatedAt: string
+}
+
+
+interface Meta {
+  readonly f: Frequency
+  readonly s: string
+  readonly n: number
+  readonly t: readonly string[]
+  readonly u: string
+  readonly r: number
+}
+
+/** A meta field as stored: frequency, first period, period count, tags, updated at, revision. */
+const MetaRecord = z.object({
+  f: z.enum(FREQUENCIES),
+  s: z.string().min(1),
+  n: z.number().int().min(1),
+  t: z.array(z.string()),
+  u: z.string(),
+  r: z.number().int().min(0),
+})
+
+const decodeMeta = (sku: string, raw: string): Meta => decodeJson(MetaRecord, raw, `history meta of SKU ${sku}`)
+
+const DemandRecord = z.array(z.number().nullable())
+
+/**
+ * A demand field as stored. Histories are read in bulk for runs, so the plain
+ * loop checks the values; the schema runs only to say what is wrong.
+ */
+function decodeDemand(sku: string, raw: string): (number | null)[] {
+  const what = `history demand of SKU ${sku}`
+  const value = decodeJson(z.unknown(), raw, what)
+  if (Array.isArray(value) && value.every((v) => v === null || typeof v === 'number')) return value as (number | null)[]
+  return decodeJson(DemandRecord, raw, what)
+}
+
+/**
+ * KEYS: data, meta, skus, then nNew new-tag sets, then nOld old-tag sets.
+ * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld.
+ * Returns 1 when written, 0 when the meta changed since it was read.
+ */
+const PUT_HISTORY = `
+local cur = redis.call('HGET', KEYS[2], ARGV[1])
+if (cur or '') ~= ARGV[2] then return 0 end
+redis.call('HSET', KEYS[1], ARGV[1], ARGV[4])
+redis.call('HSET', KEYS[2], ARGV[1], ARGV[3])
+redis.call('ZADD', KEYS[3], 0, ARGV[1])
+local nNew = tonumber(ARGV[5])
+local nOld = tonumber(ARGV[6])
+for i = 1, nOld do redis.call('ZREM', KEYS[3 + nNew + i], ARGV[1]) end
+for i = 1, nNew do redis.call('ZADD', KEYS[3 + i], 0, ARGV[1]) end
+return 1
+`
+const PUT_COMMAND = 'almanacPutHistory'
+/** Rounds of read-merge-write per SKU before a SKU is reported as contended (with a short random pause between). */
+const MAX_ATTEMPTS = 10
+
+export class HistoryStore implements HistoryWriter {
+  constructor(
+    private readonly redis: RedisClient,
+    private readonly opts: { readonly prefix: string; readonly now?: () => Date },
+  ) {
+    if (!(PUT_COMMAND in redis)) redis.defineCommand(PUT_COMMAND, { lua: PUT_HISTORY })
+  }
+
+  private base(tenant: string): string {
+    if (!isValidTenant(tenant)) throw new Error(`invalid tenant for a Redis key: ${JSON.stringify(tenant)}`)
+    return `${this.opts.prefix}:t:${tenant}:hist:{${tenant}}`
+  }
+
+  private keys(tenant: string) {
+    const base = this.base(tenant)
+    return { data: `${base}:data`, meta: `${base}:meta`, skus: `${base}:skus`, tag: (t: string) => `${base}:tag:${t}` }
+  }
+
+  async get(tenant: string, sku: string): Promise<StoredHistory | null> {
+    return (await this.getMany(tenant, [sku]))[0] ?? null
+  }
+
+  /** Histories in the order asked, null where a SKU has none. */
+  async getMany(tenant: string, skus: readonly string[]): Promise<(StoredHistory | null)[]> {
+    if (skus.length === 0 || !isValidTenant(tenant)) return skus.map(() => null)
+    const k = this.keys(tenant)
+    const [metas, datas] = await Promise.all([this.redis.hmget(k.meta, ...skus), this.redis.hmget(k.data, ...skus)])
+    return skus.map((sku, i) => decode(sku, metas[i] ?? null, datas[i] ?? null))
+  }
+
+  /** SKUs of the list without a stored history, in list order. */
+  async missing(tenant: string, skus: readonly string[]): Promise<string[]> {
+    const k = this.keys(tenant)
+    const out: string[] = []
+    for (let i = 0; i < skus.length; i += 1000) {
+      const part = skus.slice(i, i + 1000)
+      const scores = await this.redis.zmscore(k.skus, ...part)
+      part.forEach((sku, j) => {
+        if (scores[j] === null) out.push(sku)
+      })
+    }
+    return out
+  }
+
+  /** Replace one SKU's history; says whether it was created. */
+  async put(tenant: string, sku: string, data: HistoryData): Promise<{ outcome: 'created' | 'updated'; history: StoredHistory }> {
+    const pending = { sku, incoming: { frequency: data.frequency, startOrdinal: 0, demand: [] }, rows: 0, origin: {} }
+    const [r] = await this.apply(tenant, [pending], () => ({ data }), { readValues: false })
+    if (!r || 'reason' in r) throw new Error(r ? r.reason : 'history not written')
+    return { outcome: r.outcome, history: (await this.get(tenant, sku))! }
+  }
+
+  async apply(
+    tenant: string,
+    batch: readonly PendingHistory[],
+    merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
+    opts: { readonly readValues?: boolean } = {},
+  ): Promise<({ outcome: 'created' | 'updated' } | { reason: string })[]> {
+    const k = this.keys(tenant)
+    // A merge that replaces values needs only the metadata (tags, revision): skip reading the values.
+    const readValues = opts.readValues ?? true
+    const results: ({ outcome: 'created' | 'updated' } | { reason: string })[] = new Array(batch.length)
+    let todo = batch.map((_, i) => i)
+    for (let attempt = 0; attempt < MAX_ATTEMPTS && todo.length > 0; attempt++) {
+      if (attempt > 0) await new Promise((r) => setTimeout(r, Math.random() * 5 * attempt))
+      const skus = todo.map((i) => batch[i]!.sku)
+      const [metas, datas] = await Promise.all([
+        this.redis.hmget(k.meta, ...skus),
+        readValues ? this.redis.hmget(k.data, ...skus) : skus.map(() => '[]'),
+      ])
+      const pipe = this.redis.pipeline()
+      const sent: number[] = []
+      const updatedAt = (this.opts.now?.() ?? new Date()).toISOString()
+      todo.forEach((i, j) => {
+        const p = batch[i]!
+        const rawMeta = metas[j] ?? null
+        const current = decode(p.sku, rawMeta, datas[j] ?? null)
+        const merged = merge(current, p)
+        if ('reason' in merged) {
+          results[i] = merged
+          return
+        }
+        const oldMeta = rawMeta === null ? null : decodeMeta(p.sku, rawMeta)
+        const d = merged.data
+        const meta: Meta = { f: d.frequency, s: d.firstPeriod, n: d.demand.length, t: d.tags, u: updatedAt, r: (oldMeta?.r ?? 0) + 1 }
+        const oldTags = oldMeta?.t ?? []
+        const keys = [k.data, k.meta, k.skus, ...d.tags.map(k.tag), ...oldTags.map(k.tag)]
+        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length]
+        ;(pipe as unknown as Record<string, (...a: unknown[]) => unknown>)[PUT_COMMAND]!(keys.length, ...keys, ...args)
+        results[i] = { outcome: rawMeta === null ? 'created' : 'updated' }
+        sent.push(i)
+      })
+      const replies = sent.length > 0 ? ((await pipe.exec()) ?? []) : []
+      todo = []
+      replies.forEach(([err, written], j) => {
+        if (err) throw err
+        if (written !== 1) todo.push(sent[j]!)
+      })
+    }
+    for (const i of todo) results[i] = { reason: 'the history changed concurrently several times; retry the upload' }
+    return results
+  }
+
+  /**
+   * One page of history summaries ordered by SKU (byte order), optionally only
+   * SKUs carrying `tag` and/or starting with `prefix`.
+   * @throws CursorError on a cursor this service did not issue
+   */
+  async list(
+    tenant: string,
+    page: { readonly limit: number; readonly cursor?: string; readonly tag?: string; readonly prefix?: string },
+  ): Promise<{ items: HistorySummary[]; nextCursor: string | null }> {
+    const k = this.keys(tenant)
+    const index = page.tag === undefined ? k.skus : k.tag(page.tag)
+    let min: string | Buffer = page.prefix === undefined ? '-' : `[${page.prefix}`
+    if (page.cursor !== undefined) {
+      min = `(${decodeCursor(page.cursor)}`
+    }
+    const max: string | Buffer = page.prefix === undefined ? '+' : Buffer.concat([Buffer.from(`[${page.prefix}`), Buffer.from([0xff])])
+    const limit = Math.max(1, Math.floor(page.limit))
+    const skus = await this.redis.zrangebylex(index, min, max, 'LIMIT', 0, limit + 1)
+    const pageSkus = skus.slice(0, limit)
+    const metas = pageSkus.length > 0 ? await this.redis.hmget(k.meta, ...pageSkus) : []
+    const items: HistorySummary[] = []
+    pageSkus.forEach((sku, i) => {
+      const raw = metas[i]
+      if (raw != null) items.push(summary(sku, decodeMeta(sku, raw)))
+    })
+    const last = pageSkus[pageSkus.length - 1]
+    return { items, nextCursor: skus.length > limit && last !== undefined ? encodeCursor(last) : null }
+  }
+
+  /**
+   * The histories of the scope in batches of at most `batchSize`, read page by
+   * page (never the whole scope at once). SKUs in `skus` without a history are skipped.
+   */
+  async *select(tenant: string, scope: RunScope, batchSize: number): AsyncGenerator<StoredHistory[]> {
+    const k = this.keys(tenant)
+    const size = Math.max(1, Math.floor(batchSize))
+    if ('skus' in scope) {
+      for (let i = 0; i < scope.skus.length; i += size) {
+        const found = (await this.getMany(tenant, scope.skus.slice(i, i + size))).filter((h): h is StoredHistory => h !== null)
+        if (found.length > 0) yield found
+      }
+      return
+    }
+    let driver = k.skus
+    let others: string[] = []
+    if ('tags' in scope) {
+      // Walk the smallest tag set; keep SKUs that also carry every other tag.
+      const tagKeys = [...new Set(scope.tags)].map(k.tag)
+      const sizes = await Promise.all(tagKeys.map((key) => this.redis.zcard(key)))
+      const smallest = sizes.indexOf(Math.min(...sizes))
+      driver = tagKeys[smallest]!
+      others = tagKeys.filter((_, i) => i !== smallest)
+    }
+    let min = '-'
+    for (;;) {
+      const skus = await this.redis.zrangebylex(driver, min, '+', 'LIMIT', 0, size)
+      if (skus.length === 0) return
+      let keep = skus
+      for (const other of others) {
+        const scores = await this.redis.zmscore(other, ...keep)
+        keep = keep.filter((_, i) => scores[i] !== null)
+        if (keep.length === 0) break
+      }
+      if (keep.length > 0) {
+        const found = (await this.getMany(tenant, keep)).filter((h): h is StoredHistory => h !== null)
+        if (found.length > 0) yield found
+      }
+      if (skus.length < size) return
+      min = `(${skus[skus.length - 1]}`
+    }
+  }
+}
+
+function decode(sku: string, rawMeta: string | null, rawData: string | null): StoredHistory | null {
+  if (rawMeta === null || rawData === null) return null
+  const meta = decodeMeta(sku, rawMeta)
+  return { sku, frequency: meta.f, firstPeriod: meta.s, demand: decodeDemand(sku, rawData), tags: meta.t, updatedAt: meta.u }
+}
+
+function summary(sku: string, meta: Meta): HistorySummary {
+  return {
+    sku,
+    frequency: meta.f,
+    firstPeriod: meta.s,
+    lastPeriod: formatPeriod(parsePeriod(meta.s, meta.f) + meta.n - 1, meta.f),
+    periodCount: meta.n,
+    tags: meta.t,
+    updatedAt: meta.u,
+  }
+}
+

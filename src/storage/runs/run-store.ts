@@ -1,0 +1,261 @@
+import type { Config } from '../../config.js'
+import type { RedisClient } from '../redis.js'
+import { countOf, decodeJson, oneOf } from '../decode.js'
+import { RunSettings, SeriesItem, type RunRequest } from '../../schemas/run.js'
+import { isSeriesItem } from '../../schemas/series-check.js'
+import { z } from 'zod'
+import { decodeRunRecord, encodeFailure, newRunFields } from './run-hash.js'
+import { loadItem } from '../items/item-codec.js'
+import type { PreparedItem } from '../items/prepared-item.js'
+import { readStoredPage } from './result-pages.js'
+import { latestKey, runKeys, isValidRunId, isValidTenant } from '../keys.js'
+import { decodeLatest, decodePoints, recordTail, type ForecastPoints, type LatestRecord } from '../items/latest-record.js'
+import { defineRunScripts, type RunScripts } from './scripts.js'
+import { RunStats } from './stats-store.js'
+import { RUN_STATUSES, type Failure, type LatestForecast, type ResultPage, type RunRecord, type RunStatus } from '../../runs/contract.js'
+import type { ChunkTally } from '../../runs/tally.js'
+
+/** Run record TTL relative to result retention: summaries outlive results. */
+export const RECORD_TTL_FACTOR = 2
+
+/** Retention settings of the run store, from config (RESULT_RETENTION_SECONDS). */
+export function runStoreOptions(config: Pick<Config, 'redisPrefix' | 'resultRetentionSeconds'>): RunStoreOptions {
+  return {
+    prefix: config.redisPrefix,
+    resultTtlSeconds: config.resultRetentionSeconds,
+    recordTtlSeconds: config.resultRetentionSeconds * RECORD_TTL_FACTOR,
+  }
+}
+
+export interface RunStoreOptions {
+  readonly prefix: string
+  /** TTL of results and chunk inputs (the latest-forecast index does not expire). */
+  readonly resultTtlSeconds: number
+  /** TTL of the run record (status, progress, summary); at least resultTtlSeconds. */
+  readonly recordTtlSeconds: number
+}
+
+export const COMMIT_OUTCOMES = ['committed', 'finished', 'duplicate', 'missing', 'cancelled', 'failed', 'succeeded'] as const
+export type CommitOutcome = (typeof COMMIT_OUTCOMES)[number]
+
+export interface ChunkStart {
+  readonly status: string
+  readonly settings: RunSettings
+  readonly createdAtMs: number
+}
+
+const ChunkInput = z.array(SeriesItem)
+
+/** Run records, chunk inputs and results in Redis (layout in keys.ts, scripts in scripts.ts). */
+export class RunStore {
+  private readonly scripts: RunScripts
+  /** Service-wide counters for /metrics, updated after each status change (stats-store.ts). */
+  readonly stats: RunStats
+
+  constructor(
+    private readonly redis: RedisClient,
+    private readonly opts: RunStoreOptions,
+  ) {
+    this.scripts = defineRunScripts(redis)
+    this.stats = new RunStats(redis, opts.prefix)
+  }
+
+  private keys(tenant: string, runId: string) {
+    return runKeys(this.opts.prefix, tenant, runId)
+  }
+
+  /**
+   * Writes the run record and one input key per chunk in one transaction.
+   * The caller has checked the request (runs/input.ts: one series per SKU).
+   */
+  async createRun(
+    tenant: string,
+    runId: string,
+    request: RunRequest,
+    chunkSize: number,
+    now: Date,
+  ): Promise<{ record: RunRecord; chunks: number }> {
+    const { series, ...settings } = request
+    const chunks = Math.ceil(series.length / chunkSize)
+    const k = this.keys(tenant, runId)
+    const tx = this.redis.multi()
+    const fields = newRunFields({ id: runId, tenant, createdAt: now.toISOString(), total: series.length, chunks, settings, scope: null })
+    tx.hset(k.run, fields)
+    tx.expire(k.run, this.opts.recordTtlSeconds)
+    for (let c = 0; c < chunks; c++) {
+      tx.set(k.input(c), JSON.stringify(series.slice(c * chunkSize, (c + 1) * chunkSize)), 'EX', this.opts.resultTtlSeconds)
+    }
+    await execOrThrow(tx)
+    await this.stats.created()
+    return { record: decodeRunRecord(fields)!, chunks }
+  }
+
+  async getRun(tenant: string, runId: string): Promise<RunRecord | null> {
+    if (!isValidTenant(tenant) || !isValidRunId(runId)) return null
+    return decodeRunRecord(await this.redis.hgetall(this.keys(tenant, runId).run))
+  }
+
+  /** How many chunks the run was split into (0 when the run is unknown). */
+  async chunkCount(tenant: string, runId: string): Promise<number> {
+    return countOf((await this.redis.hget(this.keys(tenant, runId).run, 'chunks')) ?? 0, `chunks of run ${runId}`)
+  }
+
+  /** Marks the run running if it was queued; null when the run is gone. */
+  async startChunk(tenant: string, runId: string, now: Date): Promise<ChunkStart | null> {
+    const r = await this.scripts.startChunk(this.keys(tenant, runId).run, now.toISOString())
+    if (r === null) return null
+    const [status, settings, createdAt, moved] = r
+    if (moved === '1') await this.stats.moved('queued', 'running')
+    return { status, settings: decodeJson(RunSettings, settings, `settings of run ${runId}`), createdAtMs: Date.parse(createdAt) }
+  }
+
+  /** The chunk's series, or null when the key is gone (chunk done, run cancelled, or expired). */
+  async readChunkInput(tenant: string, runId: string, chunkIndex: number): Promise<SeriesItem[] | null> {
+    const json = await this.redis.get(this.keys(tenant, runId).input(chunkIndex))
+    if (json === null) return null
+    // Written from a validated request or stored histories: the schema runs only if the plain check finds anything off.
+    const raw = decodeJson(z.unknown(), json, `input of chunk ${chunkIndex} of run ${runId}`)
+    return Array.isArray(raw) && raw.every(isSeriesItem) ? raw : decodeJson(ChunkInput, json, `input of chunk ${chunkIndex} of run ${runId}`)
+  }
+
+  async isChunkCommitted(tenant: string, runId: string, chunkIndex: number): Promise<boolean> {
+    return (await this.redis.sismember(this.keys(tenant, runId).chunks, String(chunkIndex))) === 1
+  }
+
+  async deleteChunkInputs(tenant: string, runId: string, chunkIndexes: readonly number[]): Promise<void> {
+    const k = this.keys(tenant, runId)
+    for (let i = 0; i < chunkIndexes.length; i += 1000) {
+      await this.redis.unlink(...chunkIndexes.slice(i, i + 1000).map((c) => k.input(c)))
+    }
+  }
+
+  /**
+   * Commits a chunk in three idempotent steps: store its items (storeItems),
+   * make them the latest forecast of their SKUs (updateLatest), then count the
+   * chunk and finish the run when it was the last (commitChunk script, guarded
+   * per chunk index). A run thus reads 'succeeded' only after every SKU's
+   * result and latest record are written; a retry after a crash between the
+   * steps rewrites the same items and records and counts the chunk once.
+   * Outcomes: 'committed' or 'finished' when this call counted the chunk
+   * (finished: it was the run's last), 'duplicate' when it was counted before,
+   * 'succeeded' when the run had already finished (so this chunk was counted),
+   * 'cancelled' | 'failed' | 'missing' when nothing was written.
+   */
+  async commitChunk(
+    tenant: string,
+    runId: string,
+    chunkIndex: number,
+    items: readonly PreparedItem[],
+    tally: ChunkTally,
+    now: Date,
+  ): Promise<CommitOutcome> {
+    const k = this.keys(tenant, runId)
+    const stored: (string | number | Buffer)[] = [this.opts.resultTtlSeconds]
+    for (const item of items) stored.push(item.sku, item.stored)
+    const [step, createdAt] = await this.scripts.storeItems([k.run, k.skus, k.items], stored)
+    if (step !== 'stored' && step !== 'succeeded') return oneOf(COMMIT_OUTCOMES, step, 'storeItems outcome')
+    await this.updateLatest(tenant, runId, Date.parse(createdAt), now, items)
+    if (step === 'succeeded') return 'succeeded'
+    const args: (string | number)[] = [
+      chunkIndex,
+      now.toISOString(),
+      this.opts.resultTtlSeconds,
+      this.opts.recordTtlSeconds,
+      tally.done,
+      tally.failed,
+      String(tally.errSum),
+      tally.errCount,
+      tally.wins.size,
+    ]
+    for (const [model, n] of tally.wins) args.push(model, n)
+    const [outcome, before] = await this.scripts.commitChunk([k.run, k.chunks], args)
+    if (before === 'queued' && outcome === 'committed') await this.stats.moved('queued', 'running')
+    if ((before === 'queued' || before === 'running') && outcome === 'finished') await this.stats.moved(before, 'succeeded')
+    return oneOf(COMMIT_OUTCOMES, outcome, 'commitChunk outcome')
+  }
+
+  /** Ends a queued or running run; returns the record afterwards (null if unknown). */
+  async endRun(tenant: string, runId: string, status: 'cancelled' | 'failed', failure: Failure | null, now: Date): Promise<RunRecord | null> {
+    if (!isValidTenant(tenant) || !isValidRunId(runId)) return null
+    const k = this.keys(tenant, runId)
+    const r = await this.scripts.endRun(
+      [k.run, k.chunks, k.skus, k.items],
+      [status, now.toISOString(), failure === null ? '' : encodeFailure(failure), this.opts.resultTtlSeconds, this.opts.recordTtlSeconds],
+    )
+    if (r === null) return null
+    const [after, before] = r
+    if (isStatus(before) && isStatus(after)) await this.stats.moved(before, after)
+    return this.getRun(tenant, runId)
+  }
+
+  /**
+   * Makes this run the latest forecast of the items' SKUs (error items are
+   * skipped) unless a newer run already holds them; each record keeps the point
+   * forecast for accuracy scoring. Returns how many records changed.
+   */
+  async updateLatest(tenant: string, runId: string, createdAtMs: number, producedAt: Date, items: readonly PreparedItem[]): Promise<number> {
+    const produced = producedAt.toISOString()
+    const args: (string | number)[] = [createdAtMs, runId]
+    for (const item of items) if (item.points !== null) args.push(item.sku, recordTail(produced, item.points))
+    if (args.length === 2) return 0
+    return this.scripts.updateLatest(latestKey(this.opts.prefix, tenant), args)
+  }
+
+  /**
+   * One page of a run's results ordered by SKU (byte order), or null when the run does not exist.
+   * @throws RunInputError on a malformed cursor.
+   */
+  async resultsPage(
+    tenant: string,
+    runId: string,
+    page: { readonly limit: number; readonly cursor?: string; readonly sku?: string },
+  ): Promise<ResultPage | null> {
+    const stored = await readStoredPage(this.redis, this.opts.prefix, tenant, runId, page)
+    if (stored === null) return null
+    return { items: stored.items.map(([sku, value]) => loadItem(sku, value)), nextCursor: stored.nextCursor }
+  }
+
+  /**
+   * The newest successful forecast of a SKU, or null when there is none or the
+   * results of the run that made it have expired (retention).
+   */
+  async latest(tenant: string, sku: string): Promise<LatestForecast | null> {
+    if (!isValidTenant(tenant)) return null
+    const value = await this.redis.hget(latestKey(this.opts.prefix, tenant), sku)
+    const record = value === null ? null : decodeLatest(value)
+    if (record === null) return null
+    const stored = await this.redis.hgetBuffer(this.keys(tenant, record.runId).items, sku)
+    return stored === null ? null : { runId: record.runId, producedAt: record.producedAt, item: loadItem(sku, stored) }
+  }
+
+  /**
+   * What accuracy scoring compares actuals with, per SKU in the order given:
+   * the run and point forecast of the SKU's latest record (null when it has
+   * none), also after the run's results have expired. One HMGET.
+   */
+  async latestPoints(tenant: string, skus: readonly string[]): Promise<(ForecastPoints | null)[]> {
+    if (skus.length === 0 || !isValidTenant(tenant)) return skus.map(() => null)
+    const records = await this.redis.hmget(latestKey(this.opts.prefix, tenant), ...skus)
+    return records.map((v) => {
+      const record = v === null ? null : decodeLatest(v)
+      return record === null ? null : pointsOf(record)
+    })
+  }
+}
+
+/** The record's points, or null when they cannot be read. */
+function pointsOf(record: LatestRecord): ForecastPoints | null {
+  try {
+    return { runId: record.runId, points: decodePoints(record.points) }
+  } catch {
+    return null
+  }
+}
+
+const isStatus = (s: string): s is RunStatus => (RUN_STATUSES as readonly string[]).includes(s)
+
+async function execOrThrow(tx: ReturnType<RedisClient['multi']>): Promise<void> {
+  const results = await tx.exec()
+  if (results === null) throw new Error('Redis transaction was aborted')
+  for (const [err] of results) if (err) throw err
+}

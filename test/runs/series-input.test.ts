@@ -1,0 +1,36 @@
+import { describe, expect, it } from 'vitest'
+import { toSeriesInput } from '../../src/runs/series-input.js'
+import { RunSettings } from '../../src/schemas/run.js'
+
+const settings = RunSettings.parse({ horizon: 6, frequency: 'month', seasonLength: 12, models: ['level-smoothing', 'trend-smoothing'] })
+
+describe('toSeriesInput', () => {
+  it('applies the run settings to a series', () => {
+    expect(toSeriesInput(settings, { sku: 'A', demand: [1, null, 3] })).toEqual({
+      demand: [1, null, 3],
+      frequency: 'month',
+      seasonLength: 12,
+      horizon: 6,
+      rankBy: 'mase',
+      models: ['level-smoothing', 'trend-smoothing'],
+      intervalLevels: [80, 95],
+      missingPeriods: 'zero',
+      allowNegativeDemand: false,
+      keepLeadingZeros: false,
+      holdoutOrigins: 1,
+    })
+  })
+
+  it('lets a series override frequency, firstPeriod and season length', () => {
+    const input = toSeriesInput(settings, { sku: 'A', demand: [1], frequency: 'week', firstPeriod: '2024-W09', seasonLength: 4 })
+    expect(input).toMatchObject({ frequency: 'week', firstPeriod: '2024-W09', seasonLength: 4, horizon: 6 })
+  })
+
+  it('leaves unset options absent so the engine applies its defaults', () => {
+    const input = toSeriesInput(RunSettings.parse({ horizon: 2 }), { sku: 'A', demand: [1] })
+    expect(Object.keys(input)).not.toContain('seasonLength')
+    expect(Object.keys(input)).not.toContain('holdoutPeriods')
+    expect(Object.keys(input)).not.toContain('models')
+    expect(Object.keys(input)).not.toContain('firstPeriod')
+  })
+})

@@ -30,7 +30,7 @@ export async function readNdjsonUpload(source: Readable, acc: HistoryAccumulator
     if (pending.length > MAX_LINE_CHARS) throw new UploadFormatError(`line ${line + 1} is longer than ${MAX_LINE_CHARS} characters`, 'body')
   }
   pending += decoder.end()
-  if (pending.length > 0) handleLine(pending, ++line, acc)
+  if (pending.length > 0) handleLine(pending, line + 1, acc)
 }
 
 function handleLine(raw: string, line: number, acc: HistoryAccumulator): void {

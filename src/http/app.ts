@@ -98,7 +98,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   app.removeContentTypeParser('application/json')
   app.addContentTypeParser('application/json', { parseAs: 'string' }, (request, body, done) => {
     if (body === '') done(null, undefined)
-    else parseJson(request, body.toString(), done)
+    else void parseJson(request, body.toString(), done)
   })
   app.addHook('onRequest', async (request, reply) => {
     reply.header('x-request-id', request.id)

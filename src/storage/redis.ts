@@ -91,6 +91,7 @@ export async function assertRedisReachable(target: RedisTarget, timeoutMs = 3000
       isClusterTarget(target)
         ? `Redis Cluster is not reachable through ${target.redisClusterNodes!.map((n) => `${n.host}:${n.port}`).join(',')} (${cause}): start it or set REDIS_CLUSTER_NODES`
         : `Redis is not reachable at ${redactUrl(target.redisUrl)} (${redactCause(cause, target.redisUrl)}): start it (redis-server) or set REDIS_URL`,
+      { cause: err },
     )
   } finally {
     probe.disconnect()

@@ -30,6 +30,7 @@ async function startContainer(): Promise<string> {
     throw new Error(
       'Integration tests need Redis: set REDIS_URL=redis://127.0.0.1:6379 or run a Docker engine for testcontainers' +
         ` (${(err as Error).message.split('\n')[0]})`,
+      { cause: err },
     )
   }
 }

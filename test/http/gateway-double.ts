@@ -3,7 +3,6 @@ import type { Config } from '../../src/config.js'
 import type { RunRequest } from '../../src/schemas/run.js'
 import { pageOf } from '../../src/storage/paging.js'
 import { type LatestForecast, type ResultItem, type ResultPage, type RunGateway, type RunRecord } from '../../src/runs/contract.js'
-import { RunInputError } from '../../src/runs/input.js'
 
 /**
  * TEST DOUBLE of the run machinery: keeps runs in a Map, never forecasts.

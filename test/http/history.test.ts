@@ -8,8 +8,6 @@ beforeAll(async () => {
 })
 afterAll(() => h?.close())
 
-const csv = (text: string) => ({ ...auth(KEY_GARDEN), 'content-type': 'text/csv' })
-
 describe('PUT and GET /v1/skus/{sku}/history', () => {
   it('creates (201), replaces (200) and reads a history; another tenant sees nothing', async () => {
     const put = await h.app.inject({

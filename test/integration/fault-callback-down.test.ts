@@ -1,6 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
-import type { RunMachinery } from '../../src/queue/gateway.js'
 import { startService, type TestService } from '../helpers/service.js'
 import { syntheticSeries, waitFor } from '../queue/fixtures.js'
 import { deadUrl } from '../callbacks/receiver.js'
@@ -17,7 +16,6 @@ const ATTEMPTS = 3
 const BACKOFF_MS = 200
 let service: TestService
 let app: FastifyInstance
-let gateway: RunMachinery
 
 beforeAll(async () => {
   service = await startService('fault-callback-down', {
@@ -29,7 +27,7 @@ beforeAll(async () => {
     },
     erp: true,
   })
-  ;({ app, gateway } = service)
+  ;({ app } = service)
 })
 
 afterAll(() => service?.close())

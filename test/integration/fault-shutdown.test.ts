@@ -5,7 +5,7 @@ import { CHUNK_QUEUE } from '../../src/queue/names.js'
 import { startApiProcess, stopProcess, until, type ApiProcess } from '../helpers/processes.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { syntheticSeries } from '../queue/fixtures.js'
-import { startWorkerProcess, stopWorkerProcess, type WorkerProcess } from '../queue/worker-process.js'
+import { startWorkerProcess, type WorkerProcess } from '../queue/worker-process.js'
 
 /**
  * SIGTERM to `npm start` (src/server.ts with its in-process chunk worker) in

@@ -128,7 +128,10 @@ describe('run lifecycle through the gateway and a sandboxed worker', { timeout: 
       redis.ttl(k.run),
       redis.ttl(latestKey(prefix, 'acme')),
     ])
-    for (const t of [items, skus]) expect(t).toBeGreaterThan(3500), expect(t).toBeLessThanOrEqual(3600)
+    for (const t of [items, skus]) {
+      expect(t).toBeGreaterThan(3500)
+      expect(t).toBeLessThanOrEqual(3600)
+    }
     expect(latest).toBe(-1)
     expect(record).toBeGreaterThan(7100)
     expect(record).toBeLessThanOrEqual(7200)

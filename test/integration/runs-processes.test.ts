@@ -116,7 +116,7 @@ describe('worker processes', { timeout: 120_000 }, () => {
     const orphanIndex = Number(orphaned[0]!.split('.').pop())
 
     const rescuer = spawnWorker()
-    let rescuerExit: number | string = 'not stopped'
+    let rescuerExit: number | string
     try {
       const r = await finished(run.id)
       expect(r.status).toBe('succeeded')

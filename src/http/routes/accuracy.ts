@@ -1,4 +1,3 @@
-import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { PageQuery, pageSchema } from '../../schemas/params.js'
 import { requireErp } from '../plugins/erp.js'

@@ -1,8 +1,8 @@
 import { z } from 'zod'
 import { FailureRecord, jsonOf, StoredValueError } from '../decode.js'
-import { METRIC_NAMES, MODEL_NAMES, type ForecastResult, type Frequency, type ModelName } from '../../engine/index.js'
+import { MODEL_NAMES, type ModelName } from '../../engine/index.js'
 import { RunScope, RunSettings, toRunScope, type RunScope as Scope } from '../../schemas/run.js'
-import { RUN_STATUSES, type Failure, type ForecastItem, type RunRecord, type ResultItem, type RunSummary } from '../../runs/contract.js'
+import { RUN_STATUSES, type Failure, type RunRecord, type RunSummary } from '../../runs/contract.js'
 
 /** Conversions between stored strings and the contract types. */
 

@@ -20,7 +20,7 @@ const truth = { level: 80, trend: 1.2, seasonal: [1.25, 0.9, 0.7, 1.15] } // mea
 function path(n: number): number[] {
   const y: number[] = []
   let l = truth.level
-  let b = truth.trend
+  const b = truth.trend
   for (let t = 0; t < n; t++) {
     l += b
     y.push(l * truth.seasonal[t % 4])

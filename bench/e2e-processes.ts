@@ -1,6 +1,7 @@
 /**
- * Service processes for the end-to-end benchmarks: the API (src/server.ts with
- * RUN_WORKER=false) and chunk worker processes (src/worker-main.ts), started as
+ * Service processes for the end-to-end benchmarks: the API (dist/server.js with
+ * RUN_WORKER=false) and worker processes (dist/worker-main.js), the compiled
+ * JavaScript production runs (the bench scripts build it first), started as
  * children with a benchmark-only Redis prefix, their peak memory read from
  * /proc/<pid>/status (VmHWM; worker threads share their process's figure).
  */
@@ -39,12 +40,9 @@ export function serviceEnv(redisUrl: string, prefix: string, port: number): Reco
   }
 }
 
-/**
- * Starts `node --import tsx <entry>` (node itself, not the tsx wrapper, so the
- * pid is the process that does the work).
- */
+/** Starts `node <entry>`, an entry of dist/ (node itself, not npm, so the pid is the process that does the work). */
 export function startService(name: string, entry: string, env: Record<string, string>, extraNodeArgs: string[] = []): ServiceProcess {
-  const child = spawn(process.execPath, [...extraNodeArgs, '--import', 'tsx', entry], {
+  const child = spawn(process.execPath, [...extraNodeArgs, entry], {
     cwd: ROOT,
     env: { ...process.env, ...env },
     stdio: ['ignore', 'pipe', 'pipe'],

@@ -1,13 +1,13 @@
 /**
  * End-to-end scale benchmark through the real HTTP API, queue and Redis: starts
- * the API (src/server.ts, RUN_WORKER=false) and chunk worker process(es)
- * (src/worker-main.ts) as child processes under a benchmark-only Redis prefix,
+ * the API (dist/server.js, RUN_WORKER=false) and worker process(es)
+ * (dist/worker-main.js), compiled as production runs them, as child processes under a benchmark-only Redis prefix,
  * submits N synthetic 60-point monthly SKUs as several POST /v1/runs, polls each
  * run and pages through all its results (limit 1000) as soon as it ends. Prints
  * submit, fit and total wall time, SKUs per second, peak RSS of every process
  * and Redis memory per stored SKU result, then stops the processes and deletes
  * every key under its prefix. A small warm-up run first loads the worker
- * threads (tsx, engine, JIT), as a long-lived worker would have them. The
+ * threads (engine, JIT), as a long-lived worker would have them. The
  * request bodies are built before the clock starts (a million SKUs: ~340 MiB of
  * JSON held by the client), so the measured part is the service's work plus
  * the client's HTTP and the parsing of every results page.
@@ -59,12 +59,12 @@ const client: Client = { baseUrl, headers: {} }
 const processes: ServiceProcess[] = []
 
 try {
-  const api = startService('api', 'src/server.ts', env, profArgs('api'))
+  const api = startService('api', 'dist/server.js', env, profArgs('api'))
   processes.push(api)
-  for (let w = 0; w < WORKERS; w++) processes.push(startService(`worker-${w + 1}`, 'src/worker-main.ts', env, [...WORKER_NODE_FLAGS, ...profArgs(`worker-${w + 1}`)]))
+  for (let w = 0; w < WORKERS; w++) processes.push(startService(`worker-${w + 1}`, 'dist/worker-main.js', env, [...WORKER_NODE_FLAGS, ...profArgs(`worker-${w + 1}`)]))
   await waitReady(api, baseUrl)
 
-  // Warm-up: the worker threads load tsx and the engine and JIT-compile during this run.
+  // Warm-up: the worker threads load the engine and JIT-compile during this run.
   const warmId = await submitRun(client, runBody(SEED + 1_000_000_007, 9_000_000, 2000))
   const warm = await waitForRun(client, warmId, 100)
   if (warm.status !== 'succeeded') throw new Error(`warm-up run ${warm.status}`)

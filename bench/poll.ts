@@ -68,7 +68,7 @@ try {
   // --cpu-prof: a CPU profile of the API process (to find what a request costs).
   const prof = process.argv.includes('--cpu-prof') ? ['--cpu-prof', '--cpu-prof-dir', join(tmpdir(), `almanac-poll-prof-${prefix}`)] : []
   if (prof.length > 0) out(`API CPU profile (written when it exits): ${prof[2]}`)
-  processes.push(startService('api', 'src/server.ts', env, prof), startService('worker-1', 'src/worker-main.ts', env, [...WORKER_NODE_FLAGS]))
+  processes.push(startService('api', 'dist/server.js', env, prof), startService('worker-1', 'dist/worker-main.js', env, [...WORKER_NODE_FLAGS]))
   await waitReady(processes[0]!, baseUrl)
   const known = await waitForRun(client, await submitRun(client, runBody(SEED, 0, KNOWN)), 100)
   if (known.status !== 'succeeded') throw new Error(`first run ${known.status}`)

@@ -35,6 +35,16 @@ export function sandboxHeapLimits(chunkSize: number): { maxOldGenerationSizeMb: 
 }
 
 /**
+ * The module BullMQ loads on each worker thread. In production this file is
+ * compiled JavaScript (dist/) and so is the processor beside it; when this
+ * file runs from source (tests, benchmarks, scripts under tsx), the processor
+ * is TypeScript and chunk-entry.mjs registers tsx on the thread first.
+ */
+function sandboxedProcessorFile(): URL {
+  return import.meta.url.endsWith('.ts') ? new URL('./processors/chunk-entry.mjs', import.meta.url) : new URL('./processors/chunk.js', import.meta.url)
+}
+
+/**
  * Starts a chunk worker. Chunks run sandboxed on a pool of worker threads
  * (one per unit of concurrency, default one per core), so a process uses all
  * cores and lock renewal on the main thread keeps up with CPU-heavy fitting.
@@ -55,7 +65,7 @@ export function startChunkWorker(config: Config, logger: Logger): ChunkWorker {
     logLevel: config.logLevel,
   }
 
-  const worker = new Worker(CHUNK_QUEUE, new URL('./processors/chunk-entry.mjs', import.meta.url), {
+  const worker = new Worker(CHUNK_QUEUE, sandboxedProcessorFile(), {
     connection,
     prefix: queuePrefix(config),
     concurrency,

@@ -72,7 +72,7 @@ export interface SpawnOptions {
    * the last output has been read.
    */
   exitEvent?: 'exit' | 'close'
-  /** Node or V8 flags before `--import tsx` (e.g. a worker's WORKER_NODE_FLAGS). */
+  /** Node or V8 flags before the entry (e.g. a worker's WORKER_NODE_FLAGS). */
   nodeFlags?: readonly string[]
 }
 
@@ -82,8 +82,17 @@ export interface SpawnOptions {
  * process in between), so signals, SIGKILL included, reach the service itself.
  */
 export function spawnTs(entry: string, env: Record<string, string>, options: SpawnOptions = {}): ChildLogs {
-  const label = options.label ?? entry
-  const child = spawn(process.execPath, [...(options.nodeFlags ?? []), '--import', 'tsx', entry], {
+  return spawnNode([...(options.nodeFlags ?? []), '--import', 'tsx', entry], env, { label: entry, ...options })
+}
+
+/** Runs `node <entry>` (compiled JavaScript, no loader) and collects its JSON log lines, as spawnTs. */
+export function spawnJs(entry: string, env: Record<string, string>, options: SpawnOptions = {}): ChildLogs {
+  return spawnNode([...(options.nodeFlags ?? []), entry], env, { label: entry, ...options })
+}
+
+function spawnNode(args: string[], env: Record<string, string>, options: SpawnOptions & { label: string }): ChildLogs {
+  const label = options.label
+  const child = spawn(process.execPath, args, {
     cwd: ROOT,
     env: { PATH: process.env.PATH ?? '', LOG_LEVEL: 'info', ...env },
     stdio: ['ignore', 'pipe', 'pipe'],

@@ -8,9 +8,9 @@ const root = new URL('../../', import.meta.url)
 describe('worker process flags', () => {
   it('are the ones every start command of a worker process uses', () => {
     const pkg = JSON.parse(readFileSync(new URL('package.json', root), 'utf8')) as { scripts: Record<string, string> }
-    expect(pkg.scripts.worker).toBe(`node ${WORKER_NODE_FLAGS.join(' ')} --import tsx src/worker-main.ts`)
+    expect(pkg.scripts.worker).toBe(`node ${WORKER_NODE_FLAGS.join(' ')} dist/worker-main.js`)
     const compose = readFileSync(new URL('docker-compose.yml', root), 'utf8')
-    const command = ['node', ...WORKER_NODE_FLAGS, '--import', 'tsx', 'src/worker-main.ts'].map((a) => JSON.stringify(a)).join(', ')
+    const command = ['node', ...WORKER_NODE_FLAGS, 'dist/worker-main.js'].map((a) => JSON.stringify(a)).join(', ')
     expect(compose).toContain(`command: [${command}]`)
   })
 

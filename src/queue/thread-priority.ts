@@ -5,7 +5,7 @@ import { setPriority } from 'node:os'
  * Niceness of the sandbox threads that fit chunks. Fitting keeps every core
  * busy for the whole run; at a lower priority the kernel runs the API's request
  * handling (same machine) and each worker's lock renewals first, and fitting
- * takes the rest. Measured with bench:poll (1,000 GET/s while a run fits).
+ * takes the rest (checked with bench:poll: polling while a run fits).
  */
 export const FITTING_NICENESS = 10
 

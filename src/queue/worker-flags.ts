@@ -7,10 +7,9 @@
  * compilation on the thread that runs the JavaScript instead of on helper
  * threads. A worker process is CPU-bound and runs one fitting thread per core,
  * so the helpers never had an idle core to use: they competed with the fitting
- * threads and added their own coordination. bench:e2e, 50,000 SKUs, runs
- * alternating with and without the flag on the shared 2-core machine: worker
- * CPU 24.1 and 23.8 s without, 21.6 and 21.6 s with; whole run 16.4 and 16.0
- * against 14.7 and 15.0 s. The API process keeps V8's defaults: its garbage
+ * threads and added their own coordination: bench:e2e showed less worker
+ * CPU and a shorter run with the flag (bench/RESULTS.md, "End to end"). The
+ * API process keeps V8's defaults: its garbage
  * collection pauses would delay requests.
  */
 export const WORKER_NODE_FLAGS: readonly string[] = ['--single-threaded']

@@ -21,14 +21,13 @@ export interface ChunkWorker {
 
 /**
  * Heap limits of each sandbox thread. Without them V8 sizes every thread's heap
- * for the machine's memory and lets it grow long before collecting: a worker
- * process with two threads peaked at 575-590 MiB RSS on 500-series chunks,
- * whatever the run size (bench:e2e, 10,000-20,000 SKUs). With a 24 MiB young
- * generation (V8's 64-bit default is 3 x 16 MiB semi-spaces) it peaked at
- * 326-331 MiB, for about 20% more worker CPU per SKU (more scavenges; measured
- * 9.6-10.6 s against 7.3-8.7 s for 10,000 SKUs on the shared machine). The old
- * generation gets 64 MiB plus 20 KB per series of a chunk, at least 256 MiB
- * (a chunk's live data is far less), so large CHUNK_SIZE values still fit.
+ * for the machine's memory and lets it grow long before collecting, and a
+ * worker process's RSS went well past the 500 MB target whatever the run size;
+ * a 24 MiB young generation kept it far below, for somewhat more worker CPU
+ * (more scavenges; figures in bench/RESULTS.md, "Figures behind choices in the
+ * code"). The old generation gets 64 MiB plus 20 KB per series of a chunk, at
+ * least 256 MiB (a chunk's live data is far less), so large CHUNK_SIZE values
+ * still fit.
  */
 export function sandboxHeapLimits(chunkSize: number): { maxOldGenerationSizeMb: number; maxYoungGenerationSizeMb: number } {
   return { maxOldGenerationSizeMb: Math.max(256, 64 + Math.ceil(chunkSize / 50)), maxYoungGenerationSizeMb: 24 }

@@ -7,8 +7,9 @@ import { MAX_ABS_VALUE, MAX_POINTS_PER_SERIES, PERIOD_PATTERN, SKU_PATTERN, RunS
  * object (so no unknown keys, which zod would strip). Anything else answers
  * false and the caller runs the schema, which gives the same result or the
  * same errors as always. Zod checks each of a run's values through its
- * generic check pipeline (~0.8 us per value, bench:e2e API profile: 50 us per
- * 60-point series); this loop is a small fraction of that.
+ * generic check pipeline, which showed in the API's profile under bench:e2e
+ * (figures: bench/RESULTS.md, "Figures behind choices in the code"); this
+ * loop costs a small fraction of that.
  */
 export function isSeriesItem(x: unknown): x is SeriesItem {
   if (typeof x !== 'object' || x === null || Array.isArray(x)) return false

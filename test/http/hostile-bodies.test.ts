@@ -225,7 +225,7 @@ describe('fixed hostile bodies', () => {
 
   it('values at the 1e15 bound are forecast without NaN or Infinity in the answer', async () => {
     // Before the bound, 1e308-sized values overflowed the holdout errors and the
-    // leaderboard score became Infinity: a 500 from the response serializer.
+    // candidate score became Infinity: a 500 from the response serializer.
     // TINY's subnormal sizes once gave "CV² NaN" in a warning (mean^2 underflowed).
     const series = [
       { sku: 'BIG', demand: Array.from({ length: 24 }, (_, i) => (i % 2 ? 9e14 : 1e15)) },

@@ -9,7 +9,8 @@ const NEGATIVE_POWERS = Array.from({ length: 7 }, (_, i) => 10 ** -i)
 
 /**
  * Math.floor(Math.log10(a)) for a finite a > 0, the same value, mostly without the
- * logarithm (about a sixth of writing a served item): for 1e-6 <= a < 1e15 the decade
+ * logarithm (a large share of writing a served item; bench/RESULTS.md, "Figures
+ * behind choices in the code"): for 1e-6 <= a < 1e15 the decade
  * is found by comparison, and the logarithm is still taken when a lies within 1e-12
  * (relative) of a power of ten, where the rounded logarithm could fall on either side.
  * Elsewhere log10, whose error is below one ulp, cannot cross an integer, so both agree.

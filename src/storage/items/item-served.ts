@@ -188,7 +188,7 @@ export function roundedJson(x: number, digits: number): string {
  * Writes the JSON text of round(x, digits) (for anything but a number: jv of
  * round, so a missing value is null), from the rounded integer mantissa instead of
  * through Number-to-String of the double: that conversion (shortest round-trip
- * digits) cost ~0.3 us per number, a third of writing an item. round's result
+ * digits) was a third of the time of writing an item (bench/RESULTS.md). round's result
  * is the double nearest m * 10^-p (m the rounded integer: one correctly rounded
  * division or product of exact doubles), and no other decimal of at most 8
  * significant digits lies within an ulp of it, so its shortest digits are m's

@@ -1,12 +1,11 @@
 /**
  * Preset DEFLATE dictionary of stored result items (item-codec.ts): the
  * structure of served items (keys, model ids, statuses, reasons, warnings)
- * without their numbers, 4552 bytes, written by
- * scripts/item-structure-dictionary.ts. Items in Redis can only be read with
- * the bytes they were written with: regenerate it with the script (never edit
- * it) when the served structure changes, knowing that items stored before
- * become unreadable. Mean stored item of the script's check set:
- * 642 B with it, 1094 B without a dictionary.
+ * without their numbers, written by scripts/item-structure-dictionary.ts
+ * (its size and what it saves: bench/RESULTS.md, "Stored result items").
+ * Items in Redis can only be read with the bytes they were written with:
+ * regenerate it with the script (never edit it) when the served structure
+ * changes, knowing that items stored before become unreadable.
  */
 export const STRUCTURE_DICTIONARY: Buffer = Buffer.from(
   [

@@ -34,8 +34,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           },
         },
       },
-      // Pages of up to 1000 stored items: parsing each through zod tripled the
-      // time of plain JSON (measured: 6.5 MB page, ~330 ms vs ~100 ms). Items
+      // Pages of up to 1000 stored items: parsing each through zod took about
+      // three times plain JSON (bench/RESULTS.md, "Figures behind choices in the code"). Items
       // come from the run store, written by the same code that defines the
       // schema, so this route serializes them directly; the schema still
       // documents them.

@@ -25,9 +25,9 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       },
       config: { etag: true },
       // As results.ts: the item comes from the run store, written by the code that
-      // defines the schema, so it is serialized directly. The zod serializer cost
-      // about 100 us per answer against 50 us (measured, bench:poll profile) on a
-      // route polled at high rates; the schema still documents it.
+      // defines the schema and checked when read back (loadItem), so it is serialized
+      // directly. The zod serializer doubled the time of an answer on a route polled
+      // at high rates (bench/RESULTS.md); the schema still documents it.
       serializerCompiler: () => (data) => JSON.stringify(data),
     },
     async (request) => {

@@ -110,10 +110,11 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
     metrics: deps.metrics ?? createServiceMetrics(),
   })
   await app.register(errorHandlerPlugin)
+  // Before any plugin that adds routes, so the OpenAPI document sees them all (/metrics too).
+  await app.register(swaggerPlugin)
   await app.register(metricsPlugin)
   await app.register(authPlugin)
   await app.register(rateLimitPlugin, { redis: deps.rateLimitRedis })
-  await app.register(swaggerPlugin)
   await app.register(historyPlugin, { histories: deps.histories })
   await app.register(idempotencyPlugin, { store: deps.idempotency })
   await app.register(etagPlugin)

@@ -22,6 +22,7 @@ describe('OpenAPI document', () => {
     const doc = JSON.parse(committed)
     expect(Object.keys(doc.paths).sort()).toEqual([
       '/healthz',
+      '/metrics',
       '/readyz',
       '/v1/accuracy/exceptions',
       '/v1/callbacks',
@@ -96,6 +97,11 @@ describe('OpenAPI operations', () => {
     }
     // Every group has operations.
     expect(new Set(ops.map(({ op }) => op.tags![0]))).toEqual(new Set(tags))
+    // The README's API table lists the same groups, in the same order.
+    const readme = readFileSync(new URL('../../README.md', import.meta.url), 'utf8')
+    const api = readme.slice(readme.indexOf('\n## API\n'), readme.indexOf('\n## Configuration\n'))
+    const groups = [...api.matchAll(/^\| ([a-z]+) \| `/gm)].map((m) => m[1])
+    expect(groups).toEqual(tags)
   })
 
   it('declare Location on 201 and 202, Retry-After on 429 and 503', () => {

@@ -55,7 +55,17 @@ export default fp(
 
     app.get(
       '/metrics',
-      { schema: { hide: true }, config: { auth: false, rateLimit: false } },
+      {
+        schema: {
+          tags: ['operations'],
+          operationId: 'getMetrics',
+          'x-problems': ['internal'],
+          summary: 'Prometheus metrics of this process, queue depth and service-wide run counters',
+          security: [],
+          'x-responseMediaTypes': { 200: { 'text/plain': { schema: { type: 'string', description: 'Prometheus text exposition format 0.0.4' } } } },
+        },
+        config: { auth: false, rateLimit: false },
+      },
       async (_request, reply) => {
         await refresh()
         reply.type(registry.contentType)

@@ -44,7 +44,7 @@ const F = [
 
 function poly(coef: readonly number[], x: number): number {
   let v = 0
-  for (let i = coef.length - 1; i >= 0; i--) v = v * x + coef[i]
+  for (let i = coef.length - 1; i >= 0; i--) v = v * x + coef[i]!
   return v
 }
 
@@ -118,7 +118,7 @@ export function buildIntervals(input: IntervalInput): IntervalBounds {
     const z = normalQuantile(0.5 + level / 200)
     const key = String(level)
     lower[key] = input.point.map((p, i) => {
-      const lo = p - z * sd[i]
+      const lo = p - z * sd[i]!
       if (!Number.isFinite(lo)) return p
       if (!input.allowNegative && lo < 0) {
         clamped = true
@@ -127,7 +127,7 @@ export function buildIntervals(input: IntervalInput): IntervalBounds {
       return lo
     })
     upper[key] = input.point.map((p, i) => {
-      const hi = p + z * sd[i]
+      const hi = p + z * sd[i]!
       return Number.isFinite(hi) ? hi : p
     })
   }

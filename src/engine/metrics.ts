@@ -33,15 +33,15 @@ function start(k: number): void {
 }
 
 function add(k: number, v: number): void {
-  const s = acc[2 * k]
+  const s = acc[2 * k]!
   const t = s + v
-  if (Math.abs(s) >= Math.abs(v)) acc[2 * k + 1] += s - t + v
-  else acc[2 * k + 1] += v - t + s
+  if (Math.abs(s) >= Math.abs(v)) acc[2 * k + 1]! += s - t + v
+  else acc[2 * k + 1]! += v - t + s
   acc[2 * k] = t
 }
 
 function total(k: number): number {
-  return acc[2 * k] + acc[2 * k + 1]
+  return acc[2 * k]! + acc[2 * k + 1]!
 }
 
 /**
@@ -52,7 +52,7 @@ export function maseScale(inSample: readonly number[], seasonLength: number): nu
   const lag = seasonLength > 1 && inSample.length > seasonLength ? seasonLength : 1
   if (inSample.length <= lag) return null
   start(0)
-  for (let t = lag; t < inSample.length; t++) add(0, Math.abs(inSample[t] - inSample[t - lag]))
+  for (let t = lag; t < inSample.length; t++) add(0, Math.abs(inSample[t]! - inSample[t - lag]!))
   const scale = total(0) / (inSample.length - lag)
   return scale > 0 && Number.isFinite(scale) ? scale : null
 }
@@ -76,16 +76,16 @@ export function computeMetrics(
   for (let k = 1; k <= 5; k++) start(k)
   let pctCount = 0
   for (let t = 0; t < n; t++) {
-    const e = actual[t] - forecast[t]
+    const e = actual[t]! - forecast[t]!
     const a = Math.abs(e)
     add(1, a)
     add(2, e * e)
-    add(3, Math.abs(actual[t]))
+    add(3, Math.abs(actual[t]!))
     if (actual[t] !== 0) {
-      add(4, a / Math.abs(actual[t]))
+      add(4, a / Math.abs(actual[t]!))
       pctCount++
     }
-    const denom = Math.abs(actual[t]) + Math.abs(forecast[t])
+    const denom = Math.abs(actual[t]!) + Math.abs(forecast[t]!)
     add(5, denom === 0 ? 0 : (2 * a) / denom)
   }
   const sumAbs = total(1)

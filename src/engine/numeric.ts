@@ -5,7 +5,7 @@ export function sum(values: ArrayLike<number>, from = 0, to = values.length): nu
   let s = 0
   let c = 0
   for (let i = from; i < to; i++) {
-    const v = values[i]
+    const v = values[i]!
     const t = s + v
     if (Math.abs(s) >= Math.abs(v)) c += s - t + v
     else c += v - t + s

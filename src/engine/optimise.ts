@@ -69,19 +69,19 @@ function acquire(d: number): Workspace {
 
 function clampInto(x: number[], lower: ArrayLike<number>, upper: ArrayLike<number>, d: number): void {
   for (let j = 0; j < d; j++) {
-    const v = x[j]
-    x[j] = v >= lower[j] ? (v <= upper[j] ? v : upper[j]) : lower[j]
+    const v = x[j]!
+    x[j] = v >= lower[j]! ? (v <= upper[j]! ? v : upper[j]!) : lower[j]!
   }
 }
 
 /** out = centroid + coef * (centroid - worst), clamped into the box. */
 function along(out: number[], centroid: readonly number[], coef: number, worst: readonly number[], lower: ArrayLike<number>, upper: ArrayLike<number>, d: number): void {
-  for (let j = 0; j < d; j++) out[j] = centroid[j] + coef * (centroid[j] - worst[j])
+  for (let j = 0; j < d; j++) out[j] = centroid[j]! + coef * (centroid[j]! - worst[j]!)
   clampInto(out, lower, upper, d)
 }
 
 function copy(to: number[], from: readonly number[], d: number): void {
-  for (let j = 0; j < d; j++) to[j] = from[j]
+  for (let j = 0; j < d; j++) to[j] = from[j]!
 }
 
 /** A non-finite objective value counts as +Infinity. */
@@ -126,14 +126,14 @@ function search(
   let evaluations = 0
 
   for (let i = 0; i <= d; i++) {
-    const p = pts[i]
-    for (let j = 0; j < d; j++) p[j] = start[j]
+    const p = pts[i]!
+    for (let j = 0; j < d; j++) p[j] = start[j]!
     clampInto(p, lower, upper, d)
     if (i > 0) {
       const j = i - 1
-      const width = upper[j] - lower[j]
+      const width = upper[j]! - lower[j]!
       const h = stepFraction * width
-      p[j] = p[j] + h <= upper[j] ? p[j] + h : p[j] - h
+      p[j] = p[j]! + h <= upper[j]! ? p[j]! + h : p[j]! - h
       clampInto(p, lower, upper, d)
     }
     evaluations++
@@ -145,17 +145,17 @@ function search(
     // Insertion sort of vertex indices by value (d is tiny; ties keep index order).
     for (let i = 0; i <= d; i++) {
       let k = i
-      while (k > 0 && vals[order[k - 1]] > vals[i]) {
-        order[k] = order[k - 1]
+      while (k > 0 && vals[order[k - 1]!]! > vals[i]!) {
+        order[k] = order[k - 1]!
         k--
       }
       order[k] = i
     }
-    const best = order[0]
-    const worst = order[d]
-    const second = order[d - 1]
-    const fb = vals[best]
-    const fw = vals[worst]
+    const best = order[0]!
+    const worst = order[d]!
+    const second = order[d - 1]!
+    const fb = vals[best]!
+    const fw = vals[worst]!
     if (fw - fb <= relTol * Math.abs(fb) + absTol) {
       converged = true
       break
@@ -165,12 +165,12 @@ function search(
     for (let j = 0; j < d; j++) centroid[j] = 0
     for (let i = 0; i <= d; i++) {
       if (i === worst) continue
-      const p = pts[i]
-      for (let j = 0; j < d; j++) centroid[j] += p[j]
+      const p = pts[i]!
+      for (let j = 0; j < d; j++) centroid[j]! += p[j]!
     }
-    for (let j = 0; j < d; j++) centroid[j] /= d
+    for (let j = 0; j < d; j++) centroid[j]! /= d
 
-    const pw = pts[worst]
+    const pw = pts[worst]!
     along(xr, centroid, 1, pw, lower, upper, d)
     evaluations++
     const fr = finiteOrInfinity(objective(xr))
@@ -187,7 +187,7 @@ function search(
       }
       continue
     }
-    if (fr < vals[second]) {
+    if (fr < vals[second]!) {
       copy(pw, xr, d)
       vals[worst] = fr
       continue
@@ -203,17 +203,17 @@ function search(
       continue
     }
     // Shrink towards the best point.
-    const pb = pts[best]
+    const pb = pts[best]!
     for (let i = 0; i <= d; i++) {
       if (i === best) continue
-      const p = pts[i]
-      for (let j = 0; j < d; j++) p[j] = pb[j] + 0.5 * (p[j] - pb[j])
+      const p = pts[i]!
+      for (let j = 0; j < d; j++) p[j] = pb[j]! + 0.5 * (p[j]! - pb[j]!)
       evaluations++
       vals[i] = finiteOrInfinity(objective(p))
     }
   }
 
   let bestIndex = 0
-  for (let i = 1; i <= d; i++) if (vals[i] < vals[bestIndex]) bestIndex = i
-  return { x: pts[bestIndex].slice(), value: vals[bestIndex], evaluations, converged }
+  for (let i = 1; i <= d; i++) if (vals[i]! < vals[bestIndex]!) bestIndex = i
+  return { x: pts[bestIndex]!.slice(), value: vals[bestIndex]!, evaluations, converged }
 }

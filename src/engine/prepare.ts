@@ -143,12 +143,12 @@ export function fillMissing(values: readonly (number | null)[], policy: 'zero' |
   let k = 0
   for (let i = 0; i < out.length; i++) {
     if (!Number.isNaN(out[i])) continue
-    while (k < known.length && known[k] < i) k++
-    const right = k < known.length ? known[k] : -1
-    const left = k > 0 ? known[k - 1] : -1
-    if (left < 0) out[i] = out[right]
-    else if (right < 0) out[i] = out[left]
-    else out[i] = out[left] + ((out[right] - out[left]) * (i - left)) / (right - left)
+    while (k < known.length && known[k]! < i) k++
+    const right = k < known.length ? known[k]! : -1
+    const left = k > 0 ? known[k - 1]! : -1
+    if (left < 0) out[i] = out[right]!
+    else if (right < 0) out[i] = out[left]!
+    else out[i] = out[left]! + ((out[right]! - out[left]!) * (i - left)) / (right - left)
   }
   return out
 }
@@ -160,7 +160,7 @@ export function prepareSeries(input: SeriesInput): PreparedSeries {
   validateDemand(input.demand, allowNegativeDemand)
   const warnings: EngineWarning[] = []
   // Validates `firstPeriod` against the frequency before any work is done.
-  const firstLabel = periodLabels(input.frequency, input.firstPeriod, 1)[0]
+  const firstLabel = periodLabels(input.frequency, input.firstPeriod, 1)[0]!
 
   const missing = input.demand.filter((v) => v === null).length
   const policy = input.missingPeriods ?? 'zero'
@@ -204,7 +204,7 @@ export function prepareSeries(input: SeriesInput): PreparedSeries {
       used: values.length,
       missing,
       trimmedLeadingZeros: trimmed,
-      firstPeriod: trimmed === 0 ? firstLabel : periodLabels(input.frequency, input.firstPeriod, 1, trimmed)[0],
+      firstPeriod: trimmed === 0 ? firstLabel : periodLabels(input.frequency, input.firstPeriod, 1, trimmed)[0]!,
     },
     warnings,
   }

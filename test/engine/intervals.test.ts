@@ -31,7 +31,7 @@ describe('normalQuantile', () => {
     // Tolerance: both evaluate AS 241; differences are rounding in the polynomial evaluation.
     expect(qnorm.p.length).toBeGreaterThan(20)
     qnorm.p.forEach((p, i) => {
-      expect(approxEqual(normalQuantile(p), qnorm.z[i], 1e-14, 1e-15), `p=${p}`).toBe(true)
+      expect(approxEqual(normalQuantile(p), qnorm.z[i]!, 1e-14, 1e-15), `p=${p}`).toBe(true)
     })
   })
 
@@ -50,8 +50,8 @@ describe('buildIntervals', () => {
   it('uses analytical variances when given', () => {
     const b = buildIntervals({ point: [10, 10], levels: [95], variance: [4, 9], residuals: [], allowNegative: false })
     expect(b.method).toBe('analytical')
-    expect(approxEqual(b.upper['95'][0], 10 + 1.959963984540054 * 2, 1e-15)).toBe(true)
-    expect(approxEqual(b.lower['95'][1], 10 - 1.959963984540054 * 3, 1e-15)).toBe(true)
+    expect(approxEqual(b.upper['95']![0]!, 10 + 1.959963984540054 * 2, 1e-15)).toBe(true)
+    expect(approxEqual(b.lower['95']![1]!, 10 - 1.959963984540054 * 3, 1e-15)).toBe(true)
   })
 
   it('falls back to residuals with sigma_h = sigma_1 * sqrt(h)', () => {
@@ -59,8 +59,8 @@ describe('buildIntervals', () => {
     const b = buildIntervals({ point: [50, 50, 50, 50], levels: [80], residuals: [3, -3, 3, -3], allowNegative: false })
     expect(b.method).toBe('empirical')
     const z = normalQuantile(0.9)
-    expect(approxEqual(b.upper['80'][3] - 50, z * 3 * 2, 1e-14)).toBe(true)
-    expect(approxEqual(b.upper['80'][0] - 50, z * 3, 1e-14)).toBe(true)
+    expect(approxEqual(b.upper['80']![3]! - 50, z * 3 * 2, 1e-14)).toBe(true)
+    expect(approxEqual(b.upper['80']![0]! - 50, z * 3, 1e-14)).toBe(true)
   })
 
   it('ignores non-finite or negative variances', () => {
@@ -72,23 +72,23 @@ describe('buildIntervals', () => {
     expect(buildIntervals({ point: [5], levels: [80], residuals: [1], allowNegative: false }).method).toBe('none')
     const b = buildIntervals({ point: [5], levels: [80], residuals: [1, 2, 3], allowNegative: false, none: true })
     expect(b.method).toBe('none')
-    expect(b.lower['80'][0]).toBe(5)
-    expect(b.upper['80'][0]).toBe(5)
+    expect(b.lower['80']![0]).toBe(5)
+    expect(b.upper['80']![0]).toBe(5)
   })
 
   it('contains the point, widens with level, and clamps at zero for demand', () => {
     const b = buildIntervals({ point: [1, 2, 3], levels: [50, 80, 95], residuals: [2, -2, 1, -1], allowNegative: false })
     expect(b.clamped).toBe(true)
     for (let i = 0; i < 3; i++) {
-      expect(b.lower['50'][i]).toBeGreaterThanOrEqual(b.lower['80'][i])
-      expect(b.lower['80'][i]).toBeGreaterThanOrEqual(b.lower['95'][i])
-      expect(b.upper['50'][i]).toBeLessThan(b.upper['80'][i])
-      expect(b.upper['80'][i]).toBeLessThan(b.upper['95'][i])
-      expect(b.lower['95'][i]).toBeGreaterThanOrEqual(0)
-      expect(b.lower['50'][i]).toBeLessThanOrEqual([1, 2, 3][i])
+      expect(b.lower['50']![i]).toBeGreaterThanOrEqual(b.lower['80']![i]!)
+      expect(b.lower['80']![i]).toBeGreaterThanOrEqual(b.lower['95']![i]!)
+      expect(b.upper['50']![i]).toBeLessThan(b.upper['80']![i]!)
+      expect(b.upper['80']![i]).toBeLessThan(b.upper['95']![i]!)
+      expect(b.lower['95']![i]).toBeGreaterThanOrEqual(0)
+      expect(b.lower['50']![i]).toBeLessThanOrEqual([1, 2, 3][i]!)
     }
     const neg = buildIntervals({ point: [1], levels: [95], residuals: [2, -2], allowNegative: true })
     expect(neg.clamped).toBe(false)
-    expect(neg.lower['95'][0]).toBeLessThan(0)
+    expect(neg.lower['95']![0]).toBeLessThan(0)
   })
 })

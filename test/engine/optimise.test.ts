@@ -3,20 +3,20 @@ import { minimiseNelderMead } from '../../src/engine/optimise.js'
 
 // Rosenbrock's function (Rosenbrock 1960), minimum 0 at (1, 1): the standard hard case
 // for simplex methods (Nelder and Mead 1965 used it too).
-const rosenbrock = (x: readonly number[]): number => 100 * (x[1] - x[0] ** 2) ** 2 + (1 - x[0]) ** 2
+const rosenbrock = (x: readonly number[]): number => 100 * (x[1]! - x[0]! ** 2) ** 2 + (1 - x[0]!) ** 2
 
 describe('minimiseNelderMead', () => {
   it('finds the Rosenbrock minimum from (-1.2, 1) inside a box', () => {
     const r = minimiseNelderMead(rosenbrock, [-1.2, 1], [-2, -2], [2, 2], { maxEvaluations: 2000, relTol: 1e-12, absTol: 1e-14 })
     expect(r.converged).toBe(true)
-    expect(Math.abs(r.x[0] - 1)).toBeLessThan(1e-3)
-    expect(Math.abs(r.x[1] - 1)).toBeLessThan(2e-3)
+    expect(Math.abs(r.x[0]! - 1)).toBeLessThan(1e-3)
+    expect(Math.abs(r.x[1]! - 1)).toBeLessThan(2e-3)
     expect(r.value).toBeLessThan(1e-6)
   })
 
   // Hand-checkable: (x - 3)^2 + (y + 1)^2 on [0, 1] x [0, 1] has its box minimum at (1, 0).
   it('stops on the bound when the minimum lies outside the box', () => {
-    const f = (x: readonly number[]) => (x[0] - 3) ** 2 + (x[1] + 1) ** 2
+    const f = (x: readonly number[]) => (x[0]! - 3) ** 2 + (x[1]! + 1) ** 2
     const r = minimiseNelderMead(f, [0.5, 0.5], [0, 0], [1, 1], { maxEvaluations: 500 })
     expect(r.x[0]).toBeCloseTo(1, 6)
     expect(r.x[1]).toBeCloseTo(0, 6)
@@ -24,7 +24,7 @@ describe('minimiseNelderMead', () => {
   })
 
   it('treats NaN and Infinity as +Infinity and never returns them when a finite point exists', () => {
-    const f = (x: readonly number[]) => (x[0] > 0.6 ? NaN : x[0] < 0.2 ? Infinity : (x[0] - 0.5) ** 2)
+    const f = (x: readonly number[]) => (x[0]! > 0.6 ? NaN : x[0]! < 0.2 ? Infinity : (x[0]! - 0.5) ** 2)
     const r = minimiseNelderMead(f, [0.3], [0], [1], { maxEvaluations: 200 })
     expect(Number.isFinite(r.value)).toBe(true)
     expect(r.x[0]).toBeCloseTo(0.5, 3)

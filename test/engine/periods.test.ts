@@ -102,7 +102,7 @@ describe('calendar arithmetic', () => {
 
   it('parses and formats every label of each frequency consistently', () => {
     for (const f of ['day', 'week', 'month', 'quarter', 'year'] as const) {
-      const first = parsePeriod(periodLabels(f, { day: '1999-12-20', week: '1998-W50', month: '1999-01', quarter: '1999-Q1', year: '1999' }[f], 1)[0], f)
+      const first = parsePeriod(periodLabels(f, { day: '1999-12-20', week: '1998-W50', month: '1999-01', quarter: '1999-Q1', year: '1999' }[f], 1)[0]!, f)
       for (let k = 0; k < 400; k++) expect(parsePeriod(formatPeriod(first + k, f), f)).toBe(first + k)
     }
   })
@@ -117,7 +117,7 @@ describe('ISO weeks against R', () => {
       // Week ordinals count Mondays from 1970-01-05 (a Monday), so the week holding a day is floor((day - 4) / 7).
       expect(formatPeriod(Math.floor((dayNumber - 4) / 7), 'week'), day).toBe(weeks[i])
       // And the label parses back to a week whose Monday is at most 6 days before the day.
-      const monday = parsePeriod(weeks[i], 'week') * 7 + 4
+      const monday = parsePeriod(weeks[i]!, 'week') * 7 + 4
       expect(dayNumber - monday).toBeGreaterThanOrEqual(0)
       expect(dayNumber - monday).toBeLessThan(7)
     })

@@ -94,11 +94,11 @@ describe('forecastSeries properties', () => {
         const a = forecastSeries({ demand: values, frequency: f, horizon: 6 })
         const b = forecastSeries({ demand: values.map((v) => v * c), frequency: f, horizon: 6 })
         if (a.model !== b.model) {
-          expect(approxEqual(a.candidates[0].score!, a.candidates[1]?.score ?? NaN, 1e-6)).toBe(true)
+          expect(approxEqual(a.candidates[0]!.score!, a.candidates[1]?.score ?? NaN, 1e-6)).toBe(true)
           return
         }
         a.forecast.forEach((p, i) => {
-          expect(approxEqual(p.demand * c, b.forecast[i].demand, 1e-6, 1e-9 * c), `${a.model} step ${i + 1}`).toBe(true)
+          expect(approxEqual(p.demand * c, b.forecast[i]!.demand, 1e-6, 1e-9 * c), `${a.model} step ${i + 1}`).toBe(true)
         })
       }),
       SETTINGS,

@@ -35,10 +35,10 @@ export function classifyDemand(series: readonly number[]): DemandClassification 
   let last = -1
   let total = 0
   for (let t = 0; t < series.length; t++) {
-    if (series[t] > 0) {
+    if (series[t]! > 0) {
       demands++
       last = t
-      total += series[t]
+      total += series[t]!
     }
   }
   if (demands < 2) {
@@ -49,7 +49,7 @@ export function classifyDemand(series: readonly number[]): DemandClassification 
   // so tiny sizes (mean^2 underflowing to 0) cannot make it 0 / 0 = NaN.
   let ss = 0
   for (let t = 0; t < series.length; t++) {
-    if (series[t] > 0) ss += (series[t] / mean - 1) * (series[t] / mean - 1)
+    if (series[t]! > 0) ss += (series[t]! / mean - 1) * (series[t]! / mean - 1)
   }
   const cv2 = ss / demands
   const adi = (last + 1) / demands

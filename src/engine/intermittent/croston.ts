@@ -39,17 +39,17 @@ interface CrostonState {
 
 /** One pass; writes fitted values when `fitted` is given. O(n), no allocation. */
 function run(y: readonly number[], first: number, alpha: number, factor: number, fitted?: number[]): CrostonState {
-  let size = y[first]
+  let size = y[first]!
   let interval = first + 1
   let last = first
   let sse = 0
   for (let t = first + 1; t < y.length; t++) {
     const f = (factor * size) / interval
     if (fitted) fitted[t] = f
-    const e = y[t] - f
+    const e = y[t]! - f
     sse += e * e
-    if (y[t] > 0) {
-      size += alpha * (y[t] - size)
+    if (y[t]! > 0) {
+      size += alpha * (y[t]! - size)
       interval += alpha * (t - last - interval)
       last = t
     }
@@ -67,7 +67,7 @@ export function fitCroston(series: readonly number[], options: CrostonOptions = 
   let first = -1
   let demands = 0
   for (let t = 0; t < series.length; t++) {
-    if (series[t] > 0) {
+    if (series[t]! > 0) {
       if (first < 0) first = t
       demands++
     }
@@ -76,11 +76,11 @@ export function fitCroston(series: readonly number[], options: CrostonOptions = 
     throw new EngineInputError('series-too-short', `${variant} needs 2 periods with demand, has ${demands}`)
   }
   const biasFactor = (a: number): number => (variant === 'croston-bias-corrected' ? 1 - a / 2 : 1)
-  let alpha = options.alpha ?? CROSTON_ALPHAS[0]
+  let alpha = options.alpha ?? CROSTON_ALPHAS[0]!
   if (options.alpha === undefined) {
     let best = run(series, first, alpha, biasFactor(alpha)).sse
     for (let i = 1; i < CROSTON_ALPHAS.length; i++) {
-      const a = CROSTON_ALPHAS[i]
+      const a = CROSTON_ALPHAS[i]!
       const s = run(series, first, a, biasFactor(a)).sse
       if (s < best) {
         best = s

@@ -58,7 +58,7 @@ export function decomposeClassical(
     let s = 0
     for (let j = 0; j < filterLength; j++) {
       const w = j === 0 || j === filterLength - 1 ? edge : inner
-      s += w * series[t + half - j]
+      s += w * series[t + half - j]!
     }
     trend[t] = s
   }
@@ -67,25 +67,25 @@ export function decomposeClassical(
   for (let t = half; t < n - half; t++) {
     let ratio: number
     if (multiplicative) {
-      if (!(trend[t] > 0)) {
+      if (!(trend[t]! > 0)) {
         throw new EngineInputError('not-positive', 'classical decomposition (multiplicative) needs positive moving averages (a full season of zeros was found)')
       }
-      ratio = series[t] / trend[t]
+      ratio = series[t]! / trend[t]!
     } else {
-      ratio = series[t] - trend[t]
+      ratio = series[t]! - trend[t]!
     }
-    figure[t % m] += ratio
-    counts[t % m] += 1
+    figure[t % m]! += ratio
+    counts[t % m]! += 1
   }
   let figureMean = 0
   for (let j = 0; j < m; j++) {
-    figure[j] /= counts[j]
-    figureMean += figure[j]
+    figure[j]! /= counts[j]!
+    figureMean += figure[j]!
   }
   figureMean /= m
   for (let j = 0; j < m; j++) {
-    figure[j] = multiplicative ? figure[j] / figureMean : figure[j] - figureMean
-    if (multiplicative && !(figure[j] > 0)) {
+    figure[j] = multiplicative ? figure[j]! / figureMean : figure[j]! - figureMean
+    if (multiplicative && !(figure[j]! > 0)) {
       throw new EngineInputError('not-positive', `multiplicative decomposition found a seasonal factor of zero at position ${j + 1}`)
     }
   }
@@ -93,8 +93,8 @@ export function decomposeClassical(
   const seasonal = new Array<number>(n)
   const random = new Array<number>(n)
   for (let t = 0; t < n; t++) {
-    seasonal[t] = figure[t % m]
-    random[t] = multiplicative ? series[t] / seasonal[t] / trend[t] : series[t] - seasonal[t] - trend[t]
+    seasonal[t] = figure[t % m]!
+    random[t] = multiplicative ? series[t]! / seasonal[t]! / trend[t]! : series[t]! - seasonal[t]! - trend[t]!
   }
   return { type, seasonLength: m, trend, figure, seasonal, random }
 }
@@ -114,18 +114,18 @@ export function seasonalPositionFactors(series: readonly number[], seasonLength:
   const factors = new Array<number>(m).fill(0)
   const counts = new Array<number>(m).fill(0)
   for (let t = 0; t < series.length; t++) {
-    factors[t % m] += series[t]
-    counts[t % m] += 1
+    factors[t % m]! += series[t]!
+    counts[t % m]! += 1
   }
   let overall = 0
   for (let j = 0; j < m; j++) {
-    factors[j] /= counts[j]
-    overall += factors[j]
+    factors[j]! /= counts[j]!
+    overall += factors[j]!
   }
   overall /= m
   for (let j = 0; j < m; j++) {
-    factors[j] /= overall
-    if (!(factors[j] > 0) || !Number.isFinite(factors[j])) {
+    factors[j]! /= overall
+    if (!(factors[j]! > 0) || !Number.isFinite(factors[j])) {
       throw new EngineInputError('not-positive', `seasonal factors require positive data; season position ${j + 1} averages zero`)
     }
   }
@@ -134,7 +134,7 @@ export function seasonalPositionFactors(series: readonly number[], seasonLength:
 
 function requireNonNegative(series: readonly number[], method: string): void {
   for (let i = 0; i < series.length; i++) {
-    if (series[i] < 0) {
+    if (series[i]! < 0) {
       throw new EngineInputError('not-positive', `${method} (multiplicative) needs demand of zero or more`, `demand[${i}]`)
     }
   }

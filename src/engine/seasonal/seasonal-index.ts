@@ -29,15 +29,15 @@ export function fitSeasonalIndex(series: readonly number[], seasonLength: number
   const adjusted = new Array<number>(n)
   const weights = new Array<number>(n)
   for (let t = 0; t < n; t++) {
-    weights[t] = factors[t % m]
-    adjusted[t] = series[t] / weights[t]
+    weights[t] = factors[t % m]!
+    adjusted[t] = series[t]! / weights[t]!
   }
   const a = alpha ?? minimiseOnInterval((x) => levelSse(adjusted, x, weights), ALPHA_MIN, 1)
   const path = levels(adjusted, a)
-  const level = path[n - 1]
+  const level = path[n - 1]!
   const fitted = new Array<number>(n)
   fitted[0] = NaN
-  for (let t = 1; t < n; t++) fitted[t] = path[t - 1] * weights[t]
+  for (let t = 1; t < n; t++) fitted[t] = path[t - 1]! * weights[t]!
   checkFinite([level], 'level-smoothing-season-averages')
   checkFitted(fitted, 1, 'level-smoothing-season-averages')
   return {
@@ -47,7 +47,7 @@ export function fitSeasonalIndex(series: readonly number[], seasonLength: number
     forecast(horizon: number): number[] {
       checkHorizon(horizon)
       const out = new Array<number>(horizon)
-      for (let h = 1; h <= horizon; h++) out[h - 1] = level * factors[(n + h - 1) % m]
+      for (let h = 1; h <= horizon; h++) out[h - 1] = level * factors[(n + h - 1) % m]!
       checkFinite(out, 'level-smoothing-season-averages')
       return out
     },

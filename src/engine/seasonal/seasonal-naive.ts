@@ -18,8 +18,8 @@ export function fitSeasonalNaive(series: readonly number[], seasonLength: number
     if (t < m) {
       fitted[t] = NaN
     } else {
-      fitted[t] = series[t - m]
-      const e = series[t] - series[t - m]
+      fitted[t] = series[t - m]!
+      const e = series[t]! - series[t - m]!
       sse += e * e
     }
   }
@@ -34,7 +34,7 @@ export function fitSeasonalNaive(series: readonly number[], seasonLength: number
     forecast(horizon: number): number[] {
       checkHorizon(horizon)
       const out = new Array<number>(horizon)
-      for (let h = 1; h <= horizon; h++) out[h - 1] = lastSeason[(h - 1) % m]
+      for (let h = 1; h <= horizon; h++) out[h - 1] = lastSeason[(h - 1) % m]!
       return out
     },
     forecastVariance(horizon: number): number[] {

@@ -22,10 +22,10 @@ export function fitTrendTimesFactor(
   const n = series.length
   const m = factors.length
   const adjusted = new Array<number>(n)
-  for (let t = 0; t < n; t++) adjusted[t] = series[t] / factors[t % m]
+  for (let t = 0; t < n; t++) adjusted[t] = series[t]! / factors[t % m]!
   const { slope, intercept } = fitTrendOnIndex(adjusted)
   const fitted = new Array<number>(n)
-  for (let t = 0; t < n; t++) fitted[t] = (intercept + slope * (t + 1)) * factors[t % m]
+  for (let t = 0; t < n; t++) fitted[t] = (intercept + slope * (t + 1)) * factors[t % m]!
   checkFinite(fitted, model)
   return {
     model,
@@ -34,7 +34,7 @@ export function fitTrendTimesFactor(
     forecast(horizon: number): number[] {
       checkHorizon(horizon)
       const out = new Array<number>(horizon)
-      for (let h = 1; h <= horizon; h++) out[h - 1] = (intercept + slope * (n + h)) * factors[(n + h - 1) % m]
+      for (let h = 1; h <= horizon; h++) out[h - 1] = (intercept + slope * (n + h)) * factors[(n + h - 1) % m]!
       checkFinite(out, model)
       return out
     },

@@ -40,7 +40,7 @@ export interface SelectionSummary {
 function residualSummary(values: readonly number[], fitted: readonly number[]): ForecastResult['residuals'] {
   const r: number[] = []
   fitted.forEach((f, t) => {
-    if (Number.isFinite(f) && t < values.length) r.push(values[t] - f)
+    if (Number.isFinite(f) && t < values.length) r.push(values[t]! - f)
   })
   if (r.length === 0) return { count: 0, mean: 0, sd: 0, mae: 0 }
   const m = mean(r)
@@ -67,7 +67,7 @@ export function assembleResult(
   }
   const residuals: number[] = []
   winner.fitted.forEach((f, t) => {
-    if (Number.isFinite(f) && t < n) residuals.push(prep.values[t] - f)
+    if (Number.isFinite(f) && t < n) residuals.push(prep.values[t]! - f)
   })
   const bounds = buildIntervals({
     point,
@@ -90,9 +90,9 @@ export function assembleResult(
   const forecast: ForecastPoint[] = point.map((demand, i) => {
     const intervals = prep.levels.map((level) => {
       const key = String(level)
-      return { level, low: bounds.lower[key][i], high: bounds.upper[key][i] }
+      return { level, low: bounds.lower[key]![i]!, high: bounds.upper[key]![i]! }
     })
-    return { period: labels[i], demand, intervals }
+    return { period: labels[i]!, demand, intervals }
   })
   return {
     model: winner.model,
@@ -129,7 +129,7 @@ export function naiveWinner(values: readonly number[], horizon: number): Winner 
     model: 'last-value',
     family: 'level',
     params: {},
-    fitted: values.map((_, t) => (t === 0 ? NaN : values[t - 1])),
+    fitted: values.map((_, t) => (t === 0 ? NaN : values[t - 1]!)),
     point: new Array(horizon).fill(last),
   }
 }

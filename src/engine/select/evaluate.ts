@@ -81,7 +81,7 @@ export function evaluateInSample(spec: ModelSpec, values: readonly number[], sea
     const fitted: number[] = []
     fit.fitted.forEach((f, t) => {
       if (Number.isFinite(f)) {
-        actual.push(values[t])
+        actual.push(values[t]!)
         fitted.push(f)
       }
     })

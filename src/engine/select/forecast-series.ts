@@ -154,9 +154,9 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
   const refits: { index: number; winner: Winner; complexity: number }[] = []
   for (const i of ranking.order) {
     if (refits.length >= want) break
-    const spec = specs[i]
+    const spec = specs[i]!
     try {
-      const fit = spec.fit(prep.values, { seasonLength: m, initialParams: evaluations[i].params })
+      const fit = spec.fit(prep.values, { seasonLength: m, initialParams: evaluations[i]!.params })
       const point = checkedForecast(fit, prep.horizon)
       const variance = fit.forecastVariance?.(prep.horizon)
       refits.push({
@@ -170,10 +170,10 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
     }
   }
   const finalOrder = orderByCriterion(prep.values, refits.map((r) => ({ fitted: r.winner.fitted, complexity: r.complexity })))
-  const chosen = refits.length > 0 ? refits[finalOrder[0]] : undefined
+  const chosen = refits.length > 0 ? refits[finalOrder[0]!] : undefined
   let winner: Winner | undefined = chosen?.winner
   const winnerEval: Evaluation | undefined = chosen ? evaluations[chosen.index] : undefined
-  const candidates = shortlistFirst(ranking.candidates, finalOrder.map((k) => specs[refits[k].index].name))
+  const candidates = shortlistFirst(ranking.candidates, finalOrder.map((k) => specs[refits[k]!.index]!.name))
   if (!winner) {
     warnings.push({ code: 'fallback-last-value', message: 'no candidate could be refitted on the full history; last-value forecast used' })
     winner = naiveWinner(prep.values, prep.horizon)

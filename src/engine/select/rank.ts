@@ -29,11 +29,11 @@ export function rankEvaluations(
   evaluations: readonly Evaluation[],
   requested: MetricName,
 ): Ranking {
-  const withMetrics = evaluations.map((e, i) => i).filter((i) => evaluations[i].metrics !== undefined)
-  const fellBack = withMetrics.some((i) => evaluations[i].metrics![requested] === null)
+  const withMetrics = evaluations.map((e, i) => i).filter((i) => evaluations[i]!.metrics !== undefined)
+  const fellBack = withMetrics.some((i) => evaluations[i]!.metrics![requested] === null)
   const metric: MetricName = fellBack ? 'mae' : requested
   const value = (i: number): number | null => {
-    const v = evaluations[i].metrics![metric]
+    const v = evaluations[i]!.metrics![metric]
     return v === null || !Number.isFinite(v) ? null : v
   }
   const scored = withMetrics.filter((i) => value(i) !== null)
@@ -42,13 +42,13 @@ export function rankEvaluations(
     const sa = score(a)
     const sb = score(b)
     if (!approxEqual(sa, sb, TIE_TOLERANCE)) return sa - sb
-    if (specs[a].complexity !== specs[b].complexity) return specs[a].complexity - specs[b].complexity
+    if (specs[a]!.complexity !== specs[b]!.complexity) return specs[a]!.complexity - specs[b]!.complexity
     return a - b
   })
-  const candidates: Candidate[] = order.map((i) => withScore(evaluations[i].entry, score(i)))
+  const candidates: Candidate[] = order.map((i) => withScore(evaluations[i]!.entry, score(i)))
   for (const i of withMetrics) {
     if (value(i) !== null) continue
-    const { score: _score, ...entry } = evaluations[i].entry
+    const { score: _score, ...entry } = evaluations[i]!.entry
     candidates.push({ ...entry, status: 'failed', reason: `${metric} is undefined for this candidate, so it cannot be ranked` })
   }
   for (const e of evaluations) if (e.metrics === undefined) candidates.push(e.entry)

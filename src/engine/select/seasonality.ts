@@ -51,14 +51,14 @@ export function chiSquareQuantile(p: number, df: number): number {
  */
 export function kruskalWallis(values: readonly number[], groups: number): number {
   const n = values.length
-  const order = values.map((_, i) => i).sort((a, b) => values[a] - values[b])
+  const order = values.map((_, i) => i).sort((a, b) => values[a]! - values[b]!)
   const rank = new Array<number>(n)
   let tieTerm = 0
   for (let i = 0; i < n; ) {
     let j = i
-    while (j + 1 < n && values[order[j + 1]] === values[order[i]]) j++
+    while (j + 1 < n && values[order[j + 1]!] === values[order[i]!]) j++
     const mid = (i + j) / 2 + 1
-    for (let k = i; k <= j; k++) rank[order[k]] = mid
+    for (let k = i; k <= j; k++) rank[order[k]!] = mid
     const t = j - i + 1
     tieTerm += t * t * t - t
     i = j + 1
@@ -68,11 +68,11 @@ export function kruskalWallis(values: readonly number[], groups: number): number
   const rankSum = new Array<number>(groups).fill(0)
   const count = new Array<number>(groups).fill(0)
   for (let t = 0; t < n; t++) {
-    rankSum[t % groups] += rank[t]
-    count[t % groups]++
+    rankSum[t % groups]! += rank[t]!
+    count[t % groups]!++
   }
   let s = 0
-  for (let g = 0; g < groups; g++) if (count[g] > 0) s += (rankSum[g] * rankSum[g]) / count[g]
+  for (let g = 0; g < groups; g++) if (count[g]! > 0) s += (rankSum[g]! * rankSum[g]!) / count[g]!
   return ((12 / (n * (n + 1))) * s - 3 * (n + 1)) / denominator
 }
 

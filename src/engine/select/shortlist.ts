@@ -61,7 +61,7 @@ export function shortlistCriteria(values: readonly number[], fits: readonly Shor
     const k = f.complexity + 1
     if (N - k - 1 < 1) return null
     let sse = 0
-    for (const t of common) sse += (values[t] - f.fitted[t]) ** 2
+    for (const t of common) sse += (values[t]! - f.fitted[t]!) ** 2
     // A perfect fit (SSE 0) has criterion -Infinity: it wins unless another ties it.
     const value = N * Math.log(sse / N) + 2 * k + (2 * k * (k + 1)) / (N - k - 1)
     if (Number.isNaN(value) || value === Infinity) return null
@@ -79,8 +79,8 @@ export function orderByCriterion(values: readonly number[], fits: readonly Short
   const criteria = fits.length > 1 ? shortlistCriteria(values, fits) : null
   if (criteria === null) return positions
   return positions.sort((a, b) => {
-    const ca = criteria[a]
-    const cb = criteria[b]
+    const ca = criteria[a]!
+    const cb = criteria[b]!
     if (ca === cb || (Number.isFinite(ca) && Number.isFinite(cb) && approxEqual(ca, cb, 1e-9))) return a - b
     return ca - cb
   })

@@ -44,10 +44,10 @@ export function smoothingFit(shape: SmoothingShape, series: readonly number[], y
   const level = est.level * scale
   const trend = est.trend * scale
   const seasonal: number[] = []
-  for (let j = 0; j < est.seasonal.length; j++) seasonal.push(kind === 'add' ? est.seasonal[j] * scale : est.seasonal[j])
+  for (let j = 0; j < est.seasonal.length; j++) seasonal.push(kind === 'add' ? est.seasonal[j]! * scale : est.seasonal[j]!)
   const forecast = (h: number): number[] => {
     const out = forecastStates(end.level, end.trend, phi, kind, seasonalAhead, h)
-    for (let i = 0; i < out.length; i++) out[i] = finite(out[i] * scale)
+    for (let i = 0; i < out.length; i++) out[i] = finite(out[i]! * scale)
     return out
   }
 
@@ -59,9 +59,9 @@ export function smoothingFit(shape: SmoothingShape, series: readonly number[], y
     if (fittedValues) return fittedValues
     const out = new Array<number>(n)
     const z = new Array<number>(n)
-    for (let t = 0; t < n; t++) z[t] = series[t] / scale
+    for (let t = 0; t < n; t++) z[t] = series[t]! / scale
     smoothingPass(z, alpha, beta, gamma, phi, kind, seasonalStart, est.level, est.trend, out, null)
-    for (let t = 0; t < n; t++) out[t] *= scale
+    for (let t = 0; t < n; t++) out[t]! *= scale
     if (firstFitted === 1) out[0] = NaN
     fittedValues = out
     return out
@@ -87,7 +87,7 @@ export function smoothingFit(shape: SmoothingShape, series: readonly number[], y
   const shapeForVariance = { alpha, beta, gamma, phi, seasonLength: m }
   const forecastVariance = (h: number): number[] => {
     const out = additiveErrorVariance(shapeForVariance, sigma2, h)
-    for (let i = 0; i < out.length; i++) out[i] = finite(out[i])
+    for (let i = 0; i < out.length; i++) out[i] = finite(out[i]!)
     return out
   }
   return new SmoothingFit(shape.name, params, fittedOnce, forecast, forecastVariance)

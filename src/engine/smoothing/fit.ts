@@ -115,7 +115,7 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   // models profile them out of every evaluation (sseTrendProfiled); SES starts at y[0].
   const refinable = shape.seasonal !== null
   const { y, scratch, s0, lsStates, lsWork } = buffersFor(n, m, shape.seasonal)
-  for (let t = 0; t < n; t++) y[t] = series[t] / scale
+  for (let t = 0; t < n; t++) y[t] = series[t]! / scale
 
   // Initial states on the scaled series.
   let l0: number
@@ -159,10 +159,10 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   const iP = damped ? start.length - 1 : -1
   const kind = shape.seasonal
   const objective = (x: readonly number[]): number => {
-    const alpha = x[0]
-    const beta = iB >= 0 ? x[iB] : 0
-    const gamma = iG >= 0 ? x[iG] * (1 - alpha) : 0
-    const phi = iP >= 0 ? x[iP] : 1
+    const alpha = x[0]!
+    const beta = iB >= 0 ? x[iB]! : 0
+    const gamma = iG >= 0 ? x[iG]! * (1 - alpha) : 0
+    const phi = iP >= 0 ? x[iP]! : 1
     if (kind === 'add') return sseSeasonalAdd(y, alpha, beta, gamma, phi, l0, b0, s0, scratch)
     if (kind === 'mul') return sseSeasonalMul(y, alpha, beta, gamma, phi, l0, b0, s0, scratch)
     if (hasTrend) return sseTrendProfiled(y, alpha, beta, phi)
@@ -180,7 +180,7 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     // A steep heuristic trend (e.g. after an outlier in the first season) can drive the
     // multiplicative base below zero for every parameter: retry from a flat trend.
     let first = 0
-    for (let j = 0; j < m; j++) first += y[j]
+    for (let j = 0; j < m; j++) first += y[j]!
     l0 = l0 > 0 ? l0 : first / m
     b0 = 0
     best = minimiseNelderMead(objective, start, lower, upper, { maxEvaluations: MAX_EVALUATIONS })
@@ -190,10 +190,10 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
     // Replace the heuristic start by states estimated for the parameters found, search
     // again from there, and re-estimate the states once more.
     const refine = (x: readonly number[]): boolean => {
-      const a = x[0]
-      const beta = iB >= 0 ? x[iB] : 0
-      const gamma = iG >= 0 ? x[iG] * (1 - a) : 0
-      const phi = iP >= 0 ? x[iP] : 1
+      const a = x[0]!
+      const beta = iB >= 0 ? x[iB]! : 0
+      const gamma = iG >= 0 ? x[iG]! * (1 - a) : 0
+      const phi = iP >= 0 ? x[iP]! : 1
       let ok: boolean
       if (kind === 'mul') {
         lsStates[0] = l0
@@ -204,8 +204,8 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
       if (!ok) return false
       const keepL = l0
       const keepB = b0
-      l0 = lsStates[0]
-      b0 = lsStates[1]
+      l0 = lsStates[0]!
+      b0 = lsStates[1]!
       scratch.set(s0) // scratch is free between evaluations
       s0.set(lsStates.subarray(2))
       if (objective(x) < best.value) return true
@@ -223,16 +223,16 @@ export function fitSmoothing(shape: SmoothingShape, series: readonly number[], c
   if (hasTrend && !kind && Number.isFinite(best.value)) {
     // A restarted search with a fresh small simplex (the first can stall along a bound).
     best = minimiseNelderMead(objective, best.x, lower, upper, { maxEvaluations: REFINE_EVALUATIONS, step: 0.05 })
-    sseTrendProfiled(y, best.x[0], iB >= 0 ? best.x[iB] : 0, iP >= 0 ? best.x[iP] : 1, lsStates)
-    l0 = lsStates[0]
-    b0 = lsStates[1]
+    sseTrendProfiled(y, best.x[0]!, iB >= 0 ? best.x[iB]! : 0, iP >= 0 ? best.x[iP]! : 1, lsStates)
+    l0 = lsStates[0]!
+    b0 = lsStates[1]!
   }
   if (!Number.isFinite(best.value)) {
     throw new EngineInputError('non-finite-value', `${shape.name} found no parameters with a finite error sum for this series`)
   }
-  const alpha = best.x[0]
-  const beta = iB >= 0 ? best.x[iB] : 0
-  const gamma = iG >= 0 ? best.x[iG] * (1 - alpha) : 0
-  const phi = iP >= 0 ? best.x[iP] : 1
+  const alpha = best.x[0]!
+  const beta = iB >= 0 ? best.x[iB]! : 0
+  const gamma = iG >= 0 ? best.x[iG]! * (1 - alpha) : 0
+  const phi = iP >= 0 ? best.x[iP]! : 1
   return smoothingFit(shape, series, y, scale, m, { alpha, beta, gamma, phi, level: l0, trend: b0, seasonal: s0 })
 }

@@ -8,7 +8,7 @@ import type { SeasonalKind } from './recursions.js'
 
 /** Level only: level = y[0] (as NIST/SEMATECH e-Handbook 6.4.3.1). */
 export function initialLevel(y: ArrayLike<number>): number {
-  return y[0]
+  return y[0]!
 }
 
 /**
@@ -19,16 +19,16 @@ export function initialLevel(y: ArrayLike<number>): number {
  */
 export function initialLevelTrend(y: ArrayLike<number>): { level: number; trend: number } {
   const k = Math.min(y.length, 10)
-  if (k < 2) return { level: y[0], trend: 0 }
+  if (k < 2) return { level: y[0]!, trend: 0 }
   const tMean = (k - 1) / 2
   let yMean = 0
-  for (let t = 0; t < k; t++) yMean += y[t]
+  for (let t = 0; t < k; t++) yMean += y[t]!
   yMean /= k
   let sxy = 0
   let sxx = 0
   for (let t = 0; t < k; t++) {
     const dt = t - tMean
-    sxy += dt * (y[t] - yMean)
+    sxy += dt * (y[t]! - yMean)
     sxx += dt * dt
   }
   const slope = sxy / sxx
@@ -64,7 +64,7 @@ export function initialSeasonalStates(
   let grand = 0
   for (let k = 0; k < seasons; k++) {
     let a = 0
-    for (let j = 0; j < m; j++) a += y[k * m + j]
+    for (let j = 0; j < m; j++) a += y[k * m + j]!
     means.push(a / m)
     grand += a / m
   }
@@ -73,7 +73,7 @@ export function initialSeasonalStates(
   let sxy = 0
   let sxx = 0
   for (let k = 0; k < seasons; k++) {
-    sxy += (k - kMean) * (means[k] - grand)
+    sxy += (k - kMean) * (means[k]! - grand)
     sxx += (k - kMean) * (k - kMean)
   }
   const trend = withTrend ? sxy / sxx / m : 0
@@ -84,21 +84,21 @@ export function initialSeasonalStates(
     let v = 0
     for (let k = 0; k < seasons; k++) {
       const t = k * m + j
-      if (kind === 'add') v += y[t] - line(t)
+      if (kind === 'add') v += y[t]! - line(t)
       else {
         const tl = line(t)
-        v += tl > 0 ? y[t] / tl : y[t] / means[k]
+        v += tl > 0 ? y[t]! / tl : y[t]! / means[k]!
       }
     }
     seasonal[j] = v / seasons
-    total += seasonal[j]
+    total += seasonal[j]!
   }
   if (kind === 'add') {
     const shift = total / m
-    for (let j = 0; j < m; j++) seasonal[j] -= shift
+    for (let j = 0; j < m; j++) seasonal[j]! -= shift
   } else {
     const factor = total / m
-    for (let j = 0; j < m; j++) seasonal[j] /= factor
+    for (let j = 0; j < m; j++) seasonal[j]! /= factor
   }
   return { level: line(-1), trend, seasonal }
 }

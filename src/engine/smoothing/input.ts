@@ -30,7 +30,7 @@ export function checkedScale(shape: SmoothingShape, series: readonly number[], m
   if (n < minimum) throw tooShort(shape.name, minimum, n)
   let scale = 0
   for (let t = 0; t < n; t++) {
-    const v = series[t]
+    const v = series[t]!
     if (!Number.isFinite(v)) throw new EngineInputError('non-finite-value', `demand[${t}] is not a finite number`, `demand[${t}]`)
     if (shape.seasonal === 'mul' && !(v > 0)) {
       throw new EngineInputError('not-positive', `${shape.name} needs demand above zero in every period (demand[${t}] is ${v})`, `demand[${t}]`)

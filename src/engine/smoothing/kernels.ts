@@ -13,7 +13,7 @@ export function sseLevel(y: Float64Array, alpha: number, level: number, from: nu
   let sse = 0
   const a1 = 1 - alpha
   for (let t = from; t < y.length; t++) {
-    const yt = y[t]
+    const yt = y[t]!
     const e = yt - l
     sse += e * e
     l = a1 * l + alpha * yt
@@ -29,7 +29,7 @@ export function sseTrend(y: Float64Array, alpha: number, beta: number, phi: numb
   const a1 = 1 - alpha
   const k = phi * alpha * beta
   for (let t = 0; t < y.length; t++) {
-    const yt = y[t]
+    const yt = y[t]!
     const base = l + pb
     const e = yt - base
     sse += e * e
@@ -61,8 +61,8 @@ export function sseSeasonalAdd(
   const a1 = 1 - alpha
   const k = phi * alpha * beta
   for (let t = 0; t < y.length; t++) {
-    const sj = s[j]
-    const ys = y[t] - sj
+    const sj = s[j]!
+    const ys = y[t]! - sj
     const base = l + pb
     const e = ys - base
     sse += e * e
@@ -102,9 +102,9 @@ export function sseSeasonalMul(
   const cp = pbeta * a1 + phi * (1 - beta)
   for (let t = 0; t < y.length; t++) {
     const base = l + pb
-    const sj = s[j]
+    const sj = s[j]!
     if (!(base > 0) || !(sj > 0)) return Infinity
-    const yt = y[t]
+    const yt = y[t]!
     const e = yt - base * sj
     sse += e * e
     const q = (alpha * yt) / sj
@@ -144,7 +144,7 @@ export function sseTrendProfiled(y: Float64Array, alpha: number, beta: number, p
   for (let t = 0; t < y.length; t++) {
     // As sseTrend: l' = (1 - alpha) base + alpha y, pb' = phi pb + k y - k base, so each
     // step's dependency chain is base -> product -> sum (the responses run on y = 0).
-    const yt = y[t]
+    const yt = y[t]!
     const by = ly + py
     const b1 = l1 + p1
     const b2 = l2 + p2

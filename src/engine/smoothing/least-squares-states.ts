@@ -34,8 +34,8 @@ function errors(
   let j = 0
   const k = phi * alpha * beta
   for (let t = 0; t < n; t++) {
-    const sj = m > 0 ? s[j] : 0
-    const e = (y ? y[t] : 0) - l - pb - sj
+    const sj = m > 0 ? s[j]! : 0
+    const e = (y ? y[t]! : 0) - l - pb - sj
     out[offset + t] = e
     l = l + pb + alpha * e
     pb = phi * pb + k * e
@@ -48,7 +48,7 @@ function errors(
 
 /** <R_j, R_k> from the lagged sums P (see leastSquaresStates). */
 function lagged(work: Float64Array, pAt: number, ms: number, j: number, k: number): number {
-  return work[pAt + Math.abs(j - k) * ms + Math.max(j, k)]
+  return work[pAt + Math.abs(j - k) * ms + Math.max(j, k)]!
 }
 
 /** Doubles of workspace `leastSquaresStates` needs for n points and season length m (0 or 1: none). */
@@ -113,12 +113,12 @@ export function leastSquaresStates(
   let tt = 0
   let te = 0
   for (let t = 0; t < n; t++) {
-    const l = work[lAt + t]
-    const e = work[eAt + t]
+    const l = work[lAt + t]!
+    const e = work[eAt + t]!
     ll += l * l
     le += l * e
     if (hasTrend) {
-      const tr = work[tAt + t]
+      const tr = work[tAt + t]!
       lt += l * tr
       tt += tr * tr
       te += tr * e
@@ -140,9 +140,9 @@ export function leastSquaresStates(
     for (let c = 0; c < ms; c++) {
       let acc = 0
       const bulk = n - ms // terms u < bulk have q = n - 1 - u >= ms: nothing to record
-      for (let u = 0; u < bulk; u++) acc += work[rAt + u] * work[rAt + u + c]
+      for (let u = 0; u < bulk; u++) acc += work[rAt + u]! * work[rAt + u + c]!
       for (let u = bulk; u + c < n; u++) {
-        acc += work[rAt + u] * work[rAt + u + c]
+        acc += work[rAt + u]! * work[rAt + u + c]!
         work[pAt + c * ms + (n - 1 - u)] = acc
       }
     }
@@ -154,10 +154,10 @@ export function leastSquaresStates(
       let xl = 0
       let xt = 0
       for (let t = j; t < n; t++) {
-        const rv = work[rAt + t - j]
-        xe += rv * work[eAt + t]
-        xl += rv * work[lAt + t]
-        xt += rv * work[tAt + t]
+        const rv = work[rAt + t - j]!
+        xe += rv * work[eAt + t]!
+        xl += rv * work[lAt + t]!
+        xt += rv * work[tAt + t]!
       }
       work[xAt + j] = xe
       work[xAt + ms + j] = xl
@@ -166,44 +166,44 @@ export function leastSquaresStates(
     const rLastLast = lagged(work, pAt, ms, last, last)
     for (let j = 0; j < last; j++) {
       const i = first + j
-      work[aAt + i * p] = work[xAt + ms + j] - work[xAt + ms + last]
-      if (hasTrend) work[aAt + i * p + 1] = work[xAt + 2 * ms + j] - work[xAt + 2 * ms + last]
+      work[aAt + i * p] = work[xAt + ms + j]! - work[xAt + ms + last]!
+      if (hasTrend) work[aAt + i * p + 1] = work[xAt + 2 * ms + j]! - work[xAt + 2 * ms + last]!
       const rjLast = lagged(work, pAt, ms, j, last)
       for (let k = 0; k <= j; k++) work[aAt + i * p + first + k] = lagged(work, pAt, ms, j, k) - rjLast - lagged(work, pAt, ms, last, k) + rLastLast
-      work[rhsAt + i] = -(work[xAt + j] - work[xAt + last])
+      work[rhsAt + i] = -(work[xAt + j]! - work[xAt + last]!)
     }
   }
   let trace = 0
-  for (let i = 0; i < p; i++) trace += work[aAt + i * p + i]
+  for (let i = 0; i < p; i++) trace += work[aAt + i * p + i]!
   const ridge = 1e-10 * (trace / p) + 1e-300
-  for (let i = 0; i < p; i++) work[aAt + i * p + i] += ridge
+  for (let i = 0; i < p; i++) work[aAt + i * p + i]! += ridge
   // Cholesky (lower triangle in place), then two triangular solves.
   for (let i = 0; i < p; i++) {
     for (let k = 0; k <= i; k++) {
-      let v = work[aAt + i * p + k]
-      for (let q = 0; q < k; q++) v -= work[aAt + i * p + q] * work[aAt + k * p + q]
+      let v = work[aAt + i * p + k]!
+      for (let q = 0; q < k; q++) v -= work[aAt + i * p + q]! * work[aAt + k * p + q]!
       if (i === k) {
         if (!(v > 0)) return false
         work[aAt + i * p + i] = Math.sqrt(v)
-      } else work[aAt + i * p + k] = v / work[aAt + k * p + k]
+      } else work[aAt + i * p + k] = v / work[aAt + k * p + k]!
     }
   }
   for (let i = 0; i < p; i++) {
-    let v = work[rhsAt + i]
-    for (let q = 0; q < i; q++) v -= work[aAt + i * p + q] * work[rhsAt + q]
-    work[rhsAt + i] = v / work[aAt + i * p + i]
+    let v = work[rhsAt + i]!
+    for (let q = 0; q < i; q++) v -= work[aAt + i * p + q]! * work[rhsAt + q]!
+    work[rhsAt + i] = v / work[aAt + i * p + i]!
   }
   for (let i = p - 1; i >= 0; i--) {
-    let v = work[rhsAt + i]
-    for (let q = i + 1; q < p; q++) v -= work[aAt + q * p + i] * work[rhsAt + q]
-    work[rhsAt + i] = v / work[aAt + i * p + i]
+    let v = work[rhsAt + i]!
+    for (let q = i + 1; q < p; q++) v -= work[aAt + q * p + i]! * work[rhsAt + q]!
+    work[rhsAt + i] = v / work[aAt + i * p + i]!
   }
   for (let i = 0; i < p; i++) if (!Number.isFinite(work[rhsAt + i])) return false
   out[0] = work[rhsAt]
-  out[1] = hasTrend ? work[rhsAt + 1] : 0
+  out[1] = hasTrend ? work[rhsAt + 1]! : 0
   let sum = 0
   for (let j = 0; j + 1 < ms; j++) {
-    const v = work[rhsAt + first + j]
+    const v = work[rhsAt + first + j]!
     out[2 + j] = v
     sum += v
   }

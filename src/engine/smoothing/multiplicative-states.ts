@@ -24,19 +24,19 @@ function errorSum(y: Float64Array, alpha: number, beta: number, gamma: number, p
   const m = s.length
   let sum = 0
   for (let j = 0; j + 1 < m; j++) {
-    s[j] = x[2 + j]
-    sum += s[j]
+    s[j] = x[2 + j]!
+    sum += s[j]!
   }
   s[m - 1] = m - sum
-  let l = x[0]
-  let b = x[1]
+  let l = x[0]!
+  let b = x[1]!
   let j = 0
   let sse = 0
   for (let t = 0; t < y.length; t++) {
     const base = l + phi * b
-    const sj = s[j]
+    const sj = s[j]!
     if (!(base > 0) || !(sj > 0)) return Infinity
-    const yt = y[t]
+    const yt = y[t]!
     const e = yt - base * sj
     sse += e * e
     const lNew = (alpha * yt) / sj + (1 - alpha) * base
@@ -88,14 +88,14 @@ function normalEquations(
   if (hasTrend) w[db + 1] = 1
   let sum = 0
   for (let j = 0; j + 1 < m; j++) {
-    s[j] = x[2 + j]
-    sum += s[j]
+    s[j] = x[2 + j]!
+    sum += s[j]!
     w[ds + j * p + 2 + j] = 1
     w[ds + (m - 1) * p + 2 + j] = -1
   }
   s[m - 1] = m - sum
-  let l = x[0]
-  let b = x[1]
+  let l = x[0]!
+  let b = x[1]!
   let j = 0
   const a1 = 1 - alpha
   const g1 = 1 - gamma
@@ -106,22 +106,22 @@ function normalEquations(
   let live = 2
   for (let t = 0; t < n; t++) {
     const base = l + phi * b
-    const sj = s[j]
+    const sj = s[j]!
     if (!(base > 0) || !(sj > 0)) return false
-    const yt = y[t]
+    const yt = y[t]!
     const e = yt - base * sj
     const cs = (alpha * yt) / (sj * sj) // -d lNew / d s_j
     const cb = (gamma * yt) / (base * base) // -d sNew / d base
     const row = ds + j * p
     if (live < p) live = t + 1 >= m - 1 ? p : Math.max(live, Math.min(p, t + 3))
     for (let i = 0; i < live; i++) {
-      const dli = w[dl + i]
-      const dbi = w[db + i]
+      const dli = w[dl + i]!
+      const dbi = w[db + i]!
       const dbase = dli + phi * dbi
-      const dsj = w[row + i]
+      const dsj = w[row + i]!
       const di = -(dbase * sj + base * dsj)
       J[i * n + t] = di
-      w[gAt + i] -= di * e
+      w[gAt + i]! -= di * e
       const dlNew = a1 * dbase - cs * dsj
       w[db + i] = beta * (dlNew - dli) + pb1 * dbi
       w[dl + i] = dlNew
@@ -149,11 +149,11 @@ function normalEquations(
       let s2 = 0
       let s3 = 0
       for (let t = from; t < n; t++) {
-        const v = J[ci + t]
-        s0 += v * J[c0 + t]
-        s1 += v * J[c1 + t]
-        s2 += v * J[c2 + t]
-        s3 += v * J[c3 + t]
+        const v = J[ci + t]!
+        s0 += v * J[c0 + t]!
+        s1 += v * J[c1 + t]!
+        s2 += v * J[c2 + t]!
+        s3 += v * J[c3 + t]!
       }
       w[at + k] = s0
       w[at + k + 1] = s1
@@ -163,7 +163,7 @@ function normalEquations(
     for (; k <= i; k++) {
       const ck = k * n
       let s0 = 0
-      for (let t = from; t < n; t++) s0 += J[ci + t] * J[ck + t]
+      for (let t = from; t < n; t++) s0 += J[ci + t]! * J[ck + t]!
       w[at + k] = s0
     }
   }
@@ -192,44 +192,44 @@ export function multiplicativeStates(
   const s = work.subarray(tAt + (m + 3) * p, tAt + (m + 3) * p + m)
   const x = work.subarray(xAt, xAt + p)
   const trial = work.subarray(trialAt, trialAt + p)
-  for (let i = 0; i < p; i++) x[i] = out[i]
+  for (let i = 0; i < p; i++) x[i] = out[i]!
   let current = errorSum(y, alpha, beta, gamma, phi, x, s)
   if (!Number.isFinite(current)) return current
   for (let step = 0; step < steps; step++) {
     if (!normalEquations(y, alpha, beta, gamma, phi, hasTrend, x, s, work, aAt, gAt, tAt)) break
     // (J'J + ridge) d = -J'e by Cholesky (lower triangle in place).
     let trace = 0
-    for (let i = 0; i < p; i++) trace += work[aAt + i * p + i]
+    for (let i = 0; i < p; i++) trace += work[aAt + i * p + i]!
     const ridge = 1e-10 * (trace / p) + 1e-300
-    for (let i = 0; i < p; i++) work[aAt + i * p + i] += ridge
+    for (let i = 0; i < p; i++) work[aAt + i * p + i]! += ridge
     let ok = true
     for (let i = 0; i < p && ok; i++) {
       for (let k = 0; k <= i; k++) {
-        let v = work[aAt + i * p + k]
-        for (let q = 0; q < k; q++) v -= work[aAt + i * p + q] * work[aAt + k * p + q]
+        let v = work[aAt + i * p + k]!
+        for (let q = 0; q < k; q++) v -= work[aAt + i * p + q]! * work[aAt + k * p + q]!
         if (i === k) {
           if (!(v > 0)) {
             ok = false
             break
           }
           work[aAt + i * p + i] = Math.sqrt(v)
-        } else work[aAt + i * p + k] = v / work[aAt + k * p + k]
+        } else work[aAt + i * p + k] = v / work[aAt + k * p + k]!
       }
     }
     if (!ok) break
     for (let i = 0; i < p; i++) {
-      let v = work[gAt + i]
-      for (let q = 0; q < i; q++) v -= work[aAt + i * p + q] * work[dAt + q]
-      work[dAt + i] = v / work[aAt + i * p + i]
+      let v = work[gAt + i]!
+      for (let q = 0; q < i; q++) v -= work[aAt + i * p + q]! * work[dAt + q]!
+      work[dAt + i] = v / work[aAt + i * p + i]!
     }
     for (let i = p - 1; i >= 0; i--) {
-      let v = work[dAt + i]
-      for (let q = i + 1; q < p; q++) v -= work[aAt + q * p + i] * work[dAt + q]
-      work[dAt + i] = v / work[aAt + i * p + i]
+      let v = work[dAt + i]!
+      for (let q = i + 1; q < p; q++) v -= work[aAt + q * p + i]! * work[dAt + q]!
+      work[dAt + i] = v / work[aAt + i * p + i]!
     }
     let accepted = false
     for (let f = 1; f >= 1 / 16 && !accepted; f /= 2) {
-      for (let i = 0; i < p; i++) trial[i] = x[i] + f * work[dAt + i]
+      for (let i = 0; i < p; i++) trial[i] = x[i]! + f * work[dAt + i]!
       const v = errorSum(y, alpha, beta, gamma, phi, trial, s)
       if (v < current) {
         x.set(trial)
@@ -240,8 +240,8 @@ export function multiplicativeStates(
     if (!accepted) break
   }
   let sum = 0
-  for (let i = 0; i < p; i++) out[i] = x[i]
-  for (let j = 0; j + 1 < m; j++) sum += x[2 + j]
+  for (let i = 0; i < p; i++) out[i] = x[i]!
+  for (let j = 0; j + 1 < m; j++) sum += x[2 + j]!
   out[1 + m] = m - sum
   return current
 }

@@ -82,7 +82,7 @@ export function runSmoothing(series: ArrayLike<number>, setup: SmoothingSetup): 
     throw new EngineInputError('invalid-option', 'seasonal models need seasonLength >= 2 and that many initial seasonal states', 'seasonLength')
   }
   const s = new Float64Array(m)
-  if (kind && init) for (let j = 0; j < m; j++) s[j] = init[j]
+  if (kind && init) for (let j = 0; j < m; j++) s[j] = init[j]!
   for (let t = 0; t < n; t++) {
     if (!Number.isFinite(series[t])) throw new EngineInputError('non-finite-value', `demand[${t}] is not a finite number`, `demand[${t}]`)
   }
@@ -141,9 +141,9 @@ export function smoothingPass(
   let first = NaN
   let j = 0
   for (let t = 0; t < n; t++) {
-    const y = series[t]
+    const y = series[t]!
     const base = l + phi * b
-    const sj = s[j]
+    const sj = s[j]!
     let f: number
     let lNew: number
     if (kind === 'add') {
@@ -179,7 +179,7 @@ export function smoothingPass(
 export function seasonalAheadOf(s: Float64Array, kind: SeasonalKind | null, n: number): number[] {
   const m = s.length
   const out = new Array<number>(m)
-  for (let k = 0; k < m; k++) out[k] = kind ? s[(n + k) % m] : 0
+  for (let k = 0; k < m; k++) out[k] = kind ? s[(n + k) % m]! : 0
   return out
 }
 
@@ -200,7 +200,7 @@ export function forecastStates(
     pow *= phi
     damp += pow
     const base = level + damp * trend
-    out[h] = kind === 'add' ? base + seasonalAhead[h % m] : kind === 'mul' ? base * seasonalAhead[h % m] : base
+    out[h] = kind === 'add' ? base + seasonalAhead[h % m]! : kind === 'mul' ? base * seasonalAhead[h % m]! : base
   }
   return out
 }

@@ -24,7 +24,7 @@ export function checkSeries(series: readonly number[], model: string, minimum: n
 /** @throws EngineInputError 'negative-value' at the first negative value. */
 export function checkNonNegative(series: readonly number[], model: string): void {
   for (let i = 0; i < series.length; i++) {
-    if (series[i] < 0) {
+    if (series[i]! < 0) {
       throw new EngineInputError('negative-value', `${model} needs demand of zero or more (demand[${i}] is ${series[i]})`, `demand[${i}]`)
     }
   }

@@ -13,11 +13,11 @@
  * With weights omitted every w[t] is 1. O(n), no allocation.
  */
 export function levelSse(x: readonly number[], alpha: number, weights?: readonly number[]): number {
-  let level = x[0]
+  let level = x[0]!
   let sse = 0
   for (let t = 1; t < x.length; t++) {
-    const e = x[t] - level
-    const we = weights === undefined ? e : e * weights[t]
+    const e = x[t]! - level
+    const we = weights === undefined ? e : e * weights[t]!
     sse += we * we
     level += alpha * e
   }
@@ -26,18 +26,18 @@ export function levelSse(x: readonly number[], alpha: number, weights?: readonly
 
 /** The level after the whole series (the flat SES forecast). */
 export function finalLevel(x: readonly number[], alpha: number): number {
-  let level = x[0]
-  for (let t = 1; t < x.length; t++) level += alpha * (x[t] - level)
+  let level = x[0]!
+  for (let t = 1; t < x.length; t++) level += alpha * (x[t]! - level)
   return level
 }
 
 /** Levels level[0..n-1]; level[t] is the one-step forecast of x[t+1]. */
 export function levels(x: readonly number[], alpha: number): number[] {
   const out = new Array<number>(x.length)
-  let level = x[0]
+  let level = x[0]!
   out[0] = level
   for (let t = 1; t < x.length; t++) {
-    level += alpha * (x[t] - level)
+    level += alpha * (x[t]! - level)
     out[t] = level
   }
   return out

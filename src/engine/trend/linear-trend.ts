@@ -40,9 +40,9 @@ export function fitLinearTrend(x: readonly number[], y: readonly number[]): Line
   let sxy = 0
   let sxyC = 0
   for (let i = 0; i < n; i++) {
-    const dx = x[i] - xMean
+    const dx = x[i]! - xMean
     const dxx = dx * dx
-    const dxy = dx * (y[i] - yMean)
+    const dxy = dx * (y[i]! - yMean)
     let t = sxx + dxx
     sxxC += Math.abs(sxx) >= Math.abs(dxx) ? sxx - t + dxx : dxx - t + sxx
     sxx = t
@@ -57,7 +57,7 @@ export function fitLinearTrend(x: readonly number[], y: readonly number[]): Line
   const intercept = yMean - slope * xMean
   let sse = 0
   for (let i = 0; i < n; i++) {
-    const e = y[i] - intercept - slope * x[i]
+    const e = y[i]! - intercept - slope * x[i]!
     sse += e * e
   }
   const fit = { slope, intercept, n, xMean, sxx, sse }
@@ -69,8 +69,8 @@ function compensatedMean(v: readonly number[]): number {
   let s = 0
   let c = 0
   for (let i = 0; i < v.length; i++) {
-    const t = s + v[i]
-    c += Math.abs(s) >= Math.abs(v[i]) ? s - t + v[i] : v[i] - t + s
+    const t = s + v[i]!
+    c += Math.abs(s) >= Math.abs(v[i]!) ? s - t + v[i]! : v[i]! - t + s
     s = t
   }
   return (s + c) / v.length

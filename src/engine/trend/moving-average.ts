@@ -18,7 +18,7 @@ const MAX_WINDOW = 12
 
 function windowMean(y: readonly number[], end: number, k: number): number {
   let s = 0
-  for (let i = end - k; i < end; i++) s += y[i]
+  for (let i = end - k; i < end; i++) s += y[i]!
   return s / k
 }
 
@@ -26,7 +26,7 @@ function windowMean(y: readonly number[], end: number, k: number): number {
 function windowScore(y: readonly number[], k: number, from: number): number {
   let sse = 0
   for (let t = from; t < y.length; t++) {
-    const e = y[t] - windowMean(y, t, k)
+    const e = y[t]! - windowMean(y, t, k)
     sse += e * e
   }
   return sse / (y.length - from)

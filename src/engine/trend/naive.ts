@@ -10,13 +10,13 @@ import { checkFinite, checkFitted, checkHorizon, checkSeries } from './guards.js
 export function fitNaive(series: readonly number[]): ModelFit {
   checkSeries(series, 'last-value', 1)
   const n = series.length
-  const last = series[n - 1]
+  const last = series[n - 1]!
   const fitted = new Array<number>(n)
   fitted[0] = NaN
   let sse = 0
   for (let t = 1; t < n; t++) {
-    fitted[t] = series[t - 1]
-    const e = series[t] - series[t - 1]
+    fitted[t] = series[t - 1]!
+    const e = series[t]! - series[t - 1]!
     sse += e * e
   }
   const sigma2 = n > 1 ? sse / (n - 1) : NaN

@@ -41,16 +41,16 @@ export function isSeasonal(series: readonly number[], seasonLength: number): boo
   const m = seasonLength
   if (m < 2 || n <= m) return false
   let mu = 0
-  for (let t = 0; t < n; t++) mu += series[t]
+  for (let t = 0; t < n; t++) mu += series[t]!
   mu /= n
   let c0 = 0
-  for (let t = 0; t < n; t++) c0 += (series[t] - mu) * (series[t] - mu)
+  for (let t = 0; t < n; t++) c0 += (series[t]! - mu) * (series[t]! - mu)
   if (!(c0 > 0)) return false
   let bartlett = 1
   let rm = 0
   for (let k = 1; k <= m; k++) {
     let ck = 0
-    for (let t = k; t < n; t++) ck += (series[t] - mu) * (series[t - k] - mu)
+    for (let t = k; t < n; t++) ck += (series[t]! - mu) * (series[t - k]! - mu)
     const r = ck / c0
     if (k < m) bartlett += 2 * r * r
     else rm = r
@@ -70,30 +70,30 @@ export function fitTheta(series: readonly number[], seasonLength: number, option
   let multiplicative = true
   if (seasonalAdjustment === 'auto' && m >= 2 && n >= 2 * m && isSeasonal(series, m)) {
     let min = Infinity
-    for (let t = 0; t < n; t++) if (series[t] < min) min = series[t]
+    for (let t = 0; t < n; t++) if (series[t]! < min) min = series[t]!
     multiplicative = min > 0
     figure = decomposeClassical(series, m, multiplicative ? 'multiplicative' : 'additive').figure
   }
   const adjusted = new Array<number>(n)
   for (let t = 0; t < n; t++) {
-    if (figure.length === 0) adjusted[t] = series[t]
-    else adjusted[t] = multiplicative ? series[t] / figure[t % m] : series[t] - figure[t % m]
+    if (figure.length === 0) adjusted[t] = series[t]!
+    else adjusted[t] = multiplicative ? series[t]! / figure[t % m]! : series[t]! - figure[t % m]!
   }
   const slope = fitTrendOnIndex(adjusted).slope
   const drift = slope / 2
   const alpha = fixedAlpha ?? minimiseOnInterval((a) => levelSse(adjusted, a), THETA_ALPHA_MIN, 1)
   const path = levels(adjusted, alpha)
-  const level = path[n - 1]
+  const level = path[n - 1]!
   const reseason = (value: number, index: number): number => {
     if (figure.length === 0) return value
-    return multiplicative ? value * figure[index % m] : value + figure[index % m]
+    return multiplicative ? value * figure[index % m]! : value + figure[index % m]!
   }
   // (1 - (1 - alpha)^k) / alpha, the drift multiplier for h = 1 from origin k.
   const fitted = new Array<number>(n)
   fitted[0] = NaN
   let decay = 1 - alpha
   for (let t = 1; t < n; t++) {
-    fitted[t] = reseason(path[t - 1] + drift * ((1 - decay) / alpha), t)
+    fitted[t] = reseason(path[t - 1]! + drift * ((1 - decay) / alpha), t)
     decay *= 1 - alpha
   }
   const tail = (1 - Math.pow(1 - alpha, n)) / alpha

@@ -10,7 +10,7 @@ function mse(series: readonly number[], fitted: readonly number[]): number {
   let k = 0
   for (let t = 0; t < series.length; t++) {
     if (Number.isNaN(fitted[t])) continue
-    s += (series[t] - fitted[t]) ** 2
+    s += (series[t]! - fitted[t]!) ** 2
     k++
   }
   return s / k
@@ -61,8 +61,8 @@ describe('croston and sba', () => {
     const fit = fitCroston(series, { alpha: 0.1, variant: 'croston-bias-corrected' })
     expect(fit.model).toBe('croston-bias-corrected')
     expect(fit.params.biasFactor).toBe(0.95)
-    expect(approxEqual(fit.forecast(1)[0], (0.95 * 3.98) / 2.09, 1e-14)).toBe(true)
-    expect(approxEqual(fit.fitted[3], 0.95 * 2, 1e-14)).toBe(true)
+    expect(approxEqual(fit.forecast(1)[0]!, (0.95 * 3.98) / 2.09, 1e-14)).toBe(true)
+    expect(approxEqual(fit.fitted[3]!, 0.95 * 2, 1e-14)).toBe(true)
   })
 
   it('chooses alpha from the grid by the smallest in-sample mean squared error', () => {

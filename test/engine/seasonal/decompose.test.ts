@@ -8,7 +8,7 @@ import { expectEngineError } from '../trend/spec-checks.js'
 const closeR = (a: readonly number[], b: readonly (number | null)[], tol: number, absTol = 0): void => {
   expect(a).toHaveLength(b.length)
   a.forEach((v, i) => {
-    const ref = b[i]
+    const ref = b[i]!
     if (ref === null) expect(v, `index ${i}`).toBeNaN()
     else expect(approxEqual(v, ref, tol, absTol), `index ${i}: ${v} vs ${ref}`).toBe(true)
   })

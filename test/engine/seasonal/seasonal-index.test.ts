@@ -8,7 +8,7 @@ import { expectEngineError, expectInputGuards, expectSane } from '../trend/spec-
 /** Sum of squared one-step errors on the original scale, computed independently. */
 function sse(series: readonly number[], fitted: readonly number[]): number {
   let s = 0
-  for (let t = 1; t < series.length; t++) s += (series[t] - fitted[t]) ** 2
+  for (let t = 1; t < series.length; t++) s += (series[t]! - fitted[t]!) ** 2
   return s
 }
 
@@ -28,7 +28,7 @@ describe('level-smoothing-season-averages', () => {
   it('repeats an exact seasonal pattern', () => {
     const pattern = [5, 10, 15, 10]
     const fit = fitSeasonalIndex([...pattern, ...pattern, ...pattern], 4)
-    fit.forecast(4).forEach((v, i) => expect(approxEqual(v, pattern[i], 1e-12)).toBe(true))
+    fit.forecast(4).forEach((v, i) => expect(approxEqual(v, pattern[i]!, 1e-12)).toBe(true))
   })
 
   // Source: R stats::HoltWinters(x / factors, alpha = 0.3, beta = FALSE, gamma = FALSE)
@@ -36,7 +36,7 @@ describe('level-smoothing-season-averages', () => {
   it('matches R HoltWinters level at a fixed alpha on AirPassengers', () => {
     const fit = fitSeasonalIndex(r.series, 12, r.seasonalIndex.alpha)
     expect(approxEqual(fit.params.level as number, r.seasonalIndex.level, 1e-12)).toBe(true)
-    fit.forecast(r.horizon).forEach((v, i) => expect(approxEqual(v, r.seasonalIndex.forecast[i], 1e-12)).toBe(true))
+    fit.forecast(r.horizon).forEach((v, i) => expect(approxEqual(v, r.seasonalIndex.forecast[i]!, 1e-12)).toBe(true))
   })
 
   it('estimates an alpha no worse than any point of a fine grid', () => {

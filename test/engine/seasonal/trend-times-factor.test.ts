@@ -7,7 +7,7 @@ import { expectEngineError, expectInputGuards, expectSane } from '../trend/spec-
 
 const close = (a: readonly number[], b: readonly number[], tol: number): void => {
   expect(a).toHaveLength(b.length)
-  a.forEach((v, i) => expect(approxEqual(v, b[i], tol), `index ${i}: ${v} vs ${b[i]}`).toBe(true))
+  a.forEach((v, i) => expect(approxEqual(v, b[i]!, tol), `index ${i}: ${v} vs ${b[i]}`).toBe(true))
 }
 
 describe('decomposition and decomposition-cma', () => {
@@ -31,22 +31,22 @@ describe('decomposition and decomposition-cma', () => {
     // 1. Quarter means: Q1 (20+24+28)/3 = 24, Q2 34, Q3 44, Q4 14; their mean 29.
     const factors = [24 / 29, 34 / 29, 44 / 29, 14 / 29]
     // 2. De-seasonalise: value / factor of its quarter.
-    const d = y.map((v, t) => v / factors[t % 4])
+    const d = y.map((v, t) => v / factors[t % 4]!)
     // 3. Least squares on t = 1..12: tMean 6.5, Sxx = sum (t - 6.5)^2 = 143.
     const dMean = d.reduce((s, v) => s + v, 0) / 12
     let sxy = 0
-    for (let t = 1; t <= 12; t++) sxy += (t - 6.5) * (d[t - 1] - dMean)
+    for (let t = 1; t <= 12; t++) sxy += (t - 6.5) * (d[t - 1]! - dMean)
     const slope = sxy / 143
     const intercept = dMean - slope * 6.5
     // 4. Forecast quarter 13 (a Q1) and 14 (a Q2).
-    const expected = [(intercept + slope * 13) * factors[0], (intercept + slope * 14) * factors[1]]
+    const expected = [(intercept + slope * 13) * factors[0]!, (intercept + slope * 14) * factors[1]!]
 
     const fit = fitDecomposition(y, 4)
     close(fit.params.seasonFactors as number[], factors, 1e-14)
     expect(approxEqual(fit.params.slope as number, slope, 1e-12)).toBe(true)
     expect(approxEqual(fit.params.intercept as number, intercept, 1e-12)).toBe(true)
     close(fit.forecast(2), expected, 1e-12)
-    expect(approxEqual(fit.fitted[0], (intercept + slope) * factors[0], 1e-12)).toBe(true)
+    expect(approxEqual(fit.fitted[0]!, (intercept + slope) * factors[0]!, 1e-12)).toBe(true)
     // A growing series gives a positive slope.
     expect(slope).toBeGreaterThan(0)
   })

@@ -30,7 +30,7 @@ export function fakeSpec(o: FakeOptions): ModelSpec {
     fit(series, ctx): ModelFit {
       o.onFit?.(series, ctx)
       // One-step fitted value at t: the forecast made from y[0..t).
-      const fitted = series.map((_, t) => (t === 0 ? NaN : o.forecast(series.slice(0, t), 1)[0]))
+      const fitted = series.map((_, t) => (t === 0 ? NaN : o.forecast(series.slice(0, t), 1)[0]!))
       return {
         model: o.name,
         params: o.params?.(series) ?? { n: series.length },

@@ -51,16 +51,16 @@ describe('forecastSeries with test doubles: the candidates', () => {
     const byName = Object.fromEntries(r.candidates.map((e) => [e.model, e]))
     expect(byName['trend-smoothing-multiplicative-season']).toMatchObject({ status: 'skipped', reason: 'needs demand above zero in every period' })
     expect(byName['trend-smoothing-additive-season']).toMatchObject({ status: 'skipped' })
-    expect(byName['trend-smoothing-additive-season'].reason).toBe('needs 20 periods in the training part, has 9')
+    expect(byName['trend-smoothing-additive-season']!.reason).toBe('needs 20 periods in the training part, has 9')
     expect(byName['theta']).toMatchObject({ status: 'failed', reason: 'boom' })
     expect(byName['trend-smoothing']).toMatchObject({ status: 'skipped', reason: 'cannot fit this' })
-    expect(byName['last-season'].status).toBe('scored')
+    expect(byName['last-season']!.status).toBe('scored')
     // Scored entries come first, best first, each with every metric.
     const scored = r.candidates.filter((e) => e.status === 'scored')
     expect(r.candidates.slice(0, scored.length)).toEqual(scored)
-    for (let i = 1; i < scored.length; i++) expect(scored[i].score!).toBeGreaterThanOrEqual(scored[i - 1].score!)
+    for (let i = 1; i < scored.length; i++) expect(scored[i]!.score!).toBeGreaterThanOrEqual(scored[i - 1]!.score!)
     for (const e of scored) expect(Object.keys(e.holdoutErrors!).sort()).toEqual(['mae', 'mape', 'mase', 'rmse', 'smape', 'wape'])
-    expect(r.model).toBe(scored[0].model)
+    expect(r.model).toBe(scored[0]!.model)
   })
 
   it('says a seasonal model needs a season length of at least 2', () => {
@@ -88,7 +88,7 @@ describe('forecastSeries with test doubles: the candidates', () => {
     const expected = computeMetrics(v.slice(9), new Array(3).fill(train.reduce((a, b) => a + b) / 9), train, 4)
     expect(r.modelChoice).toEqual({ method: 'holdout', rankBy: 'rmse', holdoutPeriods: 3, holdoutOrigins: 1 })
     expect(r.holdoutErrors).toEqual(expected)
-    expect(r.candidates[0].score).toBe(expected.rmse)
+    expect(r.candidates[0]!.score).toBe(expected.rmse)
   })
 
   it('averages metrics over rolling origins ending at n - holdout - k', () => {
@@ -96,9 +96,9 @@ describe('forecastSeries with test doubles: the candidates', () => {
     const r = forecastSeriesWith({ ...series, holdoutPeriods: 2, holdoutOrigins: 3 }, withFakes(fakeLast('last-value')))
     const sets = [0, 1, 2].map((k) => {
       const end = v.length - 2 - k
-      return computeMetrics(v.slice(end, end + 2), [v[end - 1], v[end - 1]], v.slice(0, end), 4)
+      return computeMetrics(v.slice(end, end + 2), [v[end - 1]!, v[end - 1]!], v.slice(0, end), 4)
     })
-    expect(approxEqual(r.holdoutErrors!.mae!, (sets[0].mae! + sets[1].mae! + sets[2].mae!) / 3, 1e-14)).toBe(true)
+    expect(approxEqual(r.holdoutErrors!.mae!, (sets[0]!.mae! + sets[1]!.mae! + sets[2]!.mae!) / 3, 1e-14)).toBe(true)
     expect(r.modelChoice.holdoutOrigins).toBe(3)
   })
 
@@ -112,7 +112,7 @@ describe('forecastSeries with test doubles: the candidates', () => {
     })
     const r = forecastSeriesWith({ ...series, holdoutPeriods: 4 }, withFakes(spy))
     expect(calls.map((c) => c.length)).toEqual([8, 12])
-    expect(calls[1].ctx.initialParams).toEqual({ trainedOn: 8 })
+    expect(calls[1]!.ctx.initialParams).toEqual({ trainedOn: 8 })
     expect(r.params).toEqual({ trainedOn: 12 })
   })
 
@@ -125,7 +125,7 @@ describe('forecastSeries with test doubles: the candidates', () => {
   })
 
   it('ranks in-sample when no model beyond last-value can be trained on a holdout', () => {
-    const long = fakeSpec({ name: 'trend-smoothing', minLength: () => 3, forecast: (s, h) => new Array(h).fill(s[s.length - 1] + 1) })
+    const long = fakeSpec({ name: 'trend-smoothing', minLength: () => 3, forecast: (s, h) => new Array(h).fill(s[s.length - 1]! + 1) })
     const r = forecastSeriesWith({ ...series, demand: [4, 6, 5] }, withFakes(fakeLast('last-value'), long))
     expect(r.modelChoice.method).toBe('in-sample')
     expect(r.modelChoice.holdoutPeriods).toBe(0)
@@ -167,7 +167,7 @@ describe('forecastSeries with test doubles: output', () => {
   })
 
   it('raises negative forecasts and lower bounds to zero unless negatives are allowed', () => {
-    const down = fakeSpec({ name: 'linear-trend', forecast: (s, h) => Array.from({ length: h }, (_, i) => s[s.length - 1] - 8 * (i + 1)) })
+    const down = fakeSpec({ name: 'linear-trend', forecast: (s, h) => Array.from({ length: h }, (_, i) => s[s.length - 1]! - 8 * (i + 1)) })
     const r = forecastSeriesWith({ ...series, demand: [40, 32, 24, 16, 8], horizon: 3, holdoutPeriods: 1 }, withFakes(down))
     expect(r.forecast.map((p) => p.demand)).toEqual([0, 0, 0])
     // residuals are all zero (a linear series): no interval bound had to be raised
@@ -181,7 +181,7 @@ describe('forecastSeries with test doubles: output', () => {
     const withVar = fakeSpec({ name: 'level-smoothing', forecast: (s, h) => new Array(h).fill(100), variance: (h) => new Array(h).fill(4) })
     const r = forecastSeriesWith({ ...series, demand: [100, 102, 98, 101, 99, 100] }, withFakes(withVar))
     expect(r.intervalMethod).toBe('analytical')
-    expect(approxEqual(high(r.forecast[0], 95), 100 + 1.959963984540054 * 2, 1e-15)).toBe(true)
+    expect(approxEqual(high(r.forecast[0]!, 95), 100 + 1.959963984540054 * 2, 1e-15)).toBe(true)
   })
 
   it('summarises residuals and reports fitted values with null where undefined', () => {

@@ -55,7 +55,7 @@ describe('chiSquareQuantile (Wilson-Hilferty)', () => {
       [11, 17.2750085175000727],
       [51, 64.2954003352158452],
     ]
-    for (const [df, q] of r) expect(Math.abs(chiSquareQuantile(0.9, df) / q - 1)).toBeLessThan(0.01)
+    for (const [df, q] of r) expect(Math.abs(chiSquareQuantile(0.9, df!) / q! - 1)).toBeLessThan(0.01)
   })
 })
 

@@ -52,7 +52,7 @@ describe('forecastSeries: the shortlist decides among the best holdout candidate
     const mean = fakeSpec({ name: 'level-smoothing', complexity: 1, forecast: (s, h) => new Array(h).fill(s.reduce((a, b) => a + b, 0) / s.length) })
     const r = forecastSeriesWith(base, withFakes(lucky, mean))
     expect(r.candidates.map((e) => e.model)).toEqual(['level-smoothing', 'trend-smoothing'])
-    expect(r.candidates[1].score!).toBeLessThan(r.candidates[0].score!)
+    expect(r.candidates[1]!.score!).toBeLessThan(r.candidates[0]!.score!)
     expect(r.model).toBe('level-smoothing')
   })
 
@@ -63,7 +63,7 @@ describe('forecastSeries: the shortlist decides among the best holdout candidate
       withFakes(mean, fakeConstant('trend-smoothing', 108, 1), fakeConstant('theta', 107, 1), fakeConstant('last-value', 109, 1)),
     )
     // ses is fourth on the holdoutPeriods: not refitted, so it cannot win on the criterion.
-    expect(r.candidates[3].model).toBe('level-smoothing')
+    expect(r.candidates[3]!.model).toBe('level-smoothing')
     expect(r.model).not.toBe('level-smoothing')
   })
 })

@@ -23,8 +23,8 @@ const SEEDS = [1, 2, 3, 4, 5, 6, 7, 8]
 
 const generators = {
   trend: (r: () => number) => Array.from({ length: N }, (_, t) => 50 + 3 * t + 2 * normal(r)),
-  seasonal: (r: () => number) => Array.from({ length: N }, (_, t) => 200 * PROFILE[t % 12] + 4 * normal(r)),
-  seasonalTrend: (r: () => number) => Array.from({ length: N }, (_, t) => (100 + 2 * t) * PROFILE[t % 12] + 3 * normal(r)),
+  seasonal: (r: () => number) => Array.from({ length: N }, (_, t) => 200 * PROFILE[t % 12]! + 4 * normal(r)),
+  seasonalTrend: (r: () => number) => Array.from({ length: N }, (_, t) => (100 + 2 * t) * PROFILE[t % 12]! + 3 * normal(r)),
   intermittent: (r: () => number) => Array.from({ length: N }, () => (r() < 0.3 ? 5 + Math.round(2 * r()) : 0)),
 }
 
@@ -115,8 +115,8 @@ describe('selection on a public series', () => {
 
   it('forecasts 1960 from 1949-1959 better than the seasonal naive benchmark', () => {
     const r = forecastSeries({ demand: air.train, frequency: 'month', firstPeriod: '1949-01', horizon: 12 })
-    expect(r.forecast[0].period).toBe('1960-01')
-    expect(r.forecast[11].period).toBe('1960-12')
+    expect(r.forecast[0]!.period).toBe('1960-01')
+    expect(r.forecast[11]!.period).toBe('1960-12')
     const mase = computeMetrics(air.test, r.forecast.map((p) => p.demand), air.train, 12).mase!
     expect(mase).toBeLessThan(air.seasonalNaive.mase)
     expect(isSeasonalForecast(r)).toBe(true)

@@ -10,7 +10,7 @@ function solve(y: Float64Array, alpha: number, beta: number, gamma: number, phi:
   const ms = m > 1 ? m : 0
   const out = new Float64Array(2 + ms)
   const ok = leastSquaresStates(y, alpha, beta, gamma, phi, true, m, new Float64Array(leastSquaresWorkspace(y.length, m)), out)
-  return ok ? { level: out[0], trend: out[1], seasonal: out.slice(2) } : null
+  return ok ? { level: out[0]!, trend: out[1]!, seasonal: out.slice(2) } : null
 }
 
 describe('leastSquaresStates', () => {
@@ -22,11 +22,11 @@ describe('leastSquaresStates', () => {
   // with the innovations set to zero, is matched with zero error only by those states.
   it('recovers the states of a noise-free additive Holt-Winters path', () => {
     const seasonal = [3, -1, -4, 2] // sums to zero
-    const y = Array.from({ length: 20 }, (_, t) => 50 + 1.5 * (t + 1) + seasonal[t % 4])
+    const y = Array.from({ length: 20 }, (_, t) => 50 + 1.5 * (t + 1) + seasonal[t % 4]!)
     const states = solve(Float64Array.from(y), 0.3, 0.2, 0.1, 1, 4)!
     expect(approxEqual(states.level, 50, 1e-9)).toBe(true)
     expect(approxEqual(states.trend, 1.5, 1e-9)).toBe(true)
-    states.seasonal.forEach((v, j) => expect(approxEqual(v, seasonal[j], 1e-9, 1e-9)).toBe(true))
+    states.seasonal.forEach((v, j) => expect(approxEqual(v, seasonal[j]!, 1e-9, 1e-9)).toBe(true))
     const run = runHoltWinters(y, {
       alpha: 0.3, beta: 0.2, gamma: 0.1, seasonLength: 4, seasonal: 'add',
       initial: { level: states.level, trend: states.trend, seasonal: Array.from(states.seasonal) },

@@ -110,7 +110,7 @@ describe('smoothingModels: special cases', () => {
       for (const c of [1e-300, 1e-12, 1e250]) {
         const fit = s.fit(base.map((v) => v * c), quarterly)
         expectFinite(fit, 5)
-        fit.forecast(5).forEach((v, i) => expect(approxEqual(v / c, ref[i], 1e-8)).toBe(true))
+        fit.forecast(5).forEach((v, i) => expect(approxEqual(v / c, ref[i]!, 1e-8)).toBe(true))
       }
     }
   })
@@ -120,7 +120,7 @@ describe('smoothingModels: special cases', () => {
       const fit = s.fit(y, { seasonLength: 12 })
       expectFinite(fit, 24)
       const v = fit.forecastVariance?.(24)
-      if (v) for (let h = 1; h < v.length; h++) expect(v[h]).toBeGreaterThanOrEqual(v[h - 1])
+      if (v) for (let h = 1; h < v.length; h++) expect(v[h]).toBeGreaterThanOrEqual(v[h - 1]!)
       expect(fit.fitted.length).toBe(y.length)
     }
   })
@@ -155,32 +155,32 @@ describe('smoothingModels: hand-checkable cases', () => {
     const y = Array.from({ length: 30 }, (_, t) => 5 + 3 * t)
     const fit = byName('trend-smoothing').fit(y, quarterly)
     fit.forecast(4).forEach((v, i) => expect(approxEqual(v, 5 + 3 * (30 + i), 1e-9)).toBe(true))
-    fit.fitted.forEach((v, t) => expect(approxEqual(v, y[t], 1e-9)).toBe(true))
+    fit.fitted.forEach((v, t) => expect(approxEqual(v, y[t]!, 1e-9)).toBe(true))
   })
   // Line plus a fixed quarterly pattern summing to zero: the seasonal start recovers
   // both exactly, so additive Holt-Winters continues the pattern.
   it('additive Holt-Winters continues a line plus a fixed seasonal pattern', () => {
     const pattern = [6, -2, -5, 1]
-    const y = Array.from({ length: 32 }, (_, t) => 100 + 0.5 * t + pattern[t % 4])
+    const y = Array.from({ length: 32 }, (_, t) => 100 + 0.5 * t + pattern[t % 4]!)
     const fit = byName('trend-smoothing-additive-season').fit(y, quarterly)
     fit.forecast(8).forEach((v, i) => {
       const t = 32 + i
-      expect(approxEqual(v, 100 + 0.5 * t + pattern[t % 4], 1e-9)).toBe(true)
+      expect(approxEqual(v, 100 + 0.5 * t + pattern[t % 4]!, 1e-9)).toBe(true)
     })
   })
   // Level times a fixed pattern with mean 1: multiplicative Holt-Winters continues it.
   it('multiplicative Holt-Winters continues a flat level times a fixed pattern', () => {
     const pattern = [1.2, 0.9, 0.7, 1.2]
-    const y = Array.from({ length: 24 }, (_, t) => 80 * pattern[t % 4])
+    const y = Array.from({ length: 24 }, (_, t) => 80 * pattern[t % 4]!)
     const fit = byName('trend-smoothing-multiplicative-season').fit(y, quarterly)
-    fit.forecast(8).forEach((v, i) => expect(approxEqual(v, 80 * pattern[(24 + i) % 4], 1e-9)).toBe(true))
+    fit.forecast(8).forEach((v, i) => expect(approxEqual(v, 80 * pattern[(24 + i) % 4]!, 1e-9)).toBe(true))
   })
   it('SES on a random walk chooses a large alpha and forecasts near the last value', () => {
     let level = 100
     const y = noise(80, 19).map((e) => (level += 10 * e))
     const fit = byName('level-smoothing').fit(y, quarterly)
     expect(fit.params.levelWeight as number).toBeGreaterThan(0.8)
-    expect(Math.abs(fit.forecast(1)[0] - y[79])).toBeLessThan(2)
+    expect(Math.abs(fit.forecast(1)[0]! - y[79]!)).toBeLessThan(2)
   })
   // sigma^2 = SSE / (n - k) (HKOS 2008, ch. 6), k = alpha + initial level for SES; the first
   // point seeds the level, so n counts the remaining points.
@@ -188,15 +188,15 @@ describe('smoothingModels: hand-checkable cases', () => {
     const y = noise(30, 23).map((e) => 10 + e)
     const fit = byName('level-smoothing').fit(y, quarterly)
     let sse = 0
-    for (let t = 1; t < y.length; t++) sse += (y[t] - fit.fitted[t]) ** 2
-    expect(approxEqual(fit.forecastVariance!(1)[0], sse / (29 - 2), 1e-12)).toBe(true)
+    for (let t = 1; t < y.length; t++) sse += (y[t]! - fit.fitted[t]!) ** 2
+    expect(approxEqual(fit.forecastVariance!(1)[0]!, sse / (29 - 2), 1e-12)).toBe(true)
   })
   it('starting from given parameters (refit) lands on the same optimum', () => {
     const y = noise(48, 29).map((e, t) => 30 + 0.2 * t + 3 * Math.sin((2 * Math.PI * t) / 4) + 2 * e)
     const spec = byName('trend-smoothing-additive-season')
     const first = spec.fit(y, quarterly)
     const again = spec.fit(y, { ...quarterly, initialParams: first.params })
-    const sse = (f: ModelFit) => f.fitted.reduce((a, v, t) => a + (y[t] - v) ** 2, 0)
+    const sse = (f: ModelFit) => f.fitted.reduce((a, v, t) => a + (y[t]! - v) ** 2, 0)
     expect(sse(again)).toBeLessThanOrEqual(sse(first) * 1.001)
   })
 })
@@ -212,7 +212,7 @@ describe('smoothingModels: in-sample SSE near statsmodels optimised fits', () =>
       const fit = byName(c.model).fit(c.series, { seasonLength: c.seasonLength })
       let sse = 0
       fit.fitted.forEach((v, t) => {
-        if (!Number.isNaN(v)) sse += (c.series[t] - v) ** 2
+        if (!Number.isNaN(v)) sse += (c.series[t]! - v) ** 2
       })
       expect(sse / c.sse).toBeLessThan(1.05)
     })

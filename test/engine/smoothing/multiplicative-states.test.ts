@@ -10,7 +10,7 @@ function refine(y: number[], p: { alpha: number; beta: number; gamma: number; ph
   const out = Float64Array.from(start)
   const work = new Float64Array(multiplicativeWorkspace(start.length - 2))
   const sse = multiplicativeStates(Float64Array.from(y), p.alpha, p.beta, p.gamma, p.phi, hasTrend, steps, work, out)
-  return { sse, level: out[0], trend: out[1], seasonal: Array.from(out.subarray(2)) }
+  return { sse, level: out[0]!, trend: out[1]!, seasonal: Array.from(out.subarray(2)) }
 }
 
 const params = { alpha: 0.3, beta: 0.2, gamma: 0.1, phi: 1 }
@@ -23,7 +23,7 @@ function path(n: number): number[] {
   const b = truth.trend
   for (let t = 0; t < n; t++) {
     l += b
-    y.push(l * truth.seasonal[t % 4])
+    y.push(l * truth.seasonal[t % 4]!)
   }
   return y
 }
@@ -43,14 +43,14 @@ describe('multiplicativeStates', () => {
     const r = refine(y, params, [76, 0.8, 1.2, 0.95, 0.72, 1.13], 8)
     expect(approxEqual(r.level, truth.level, 1e-6)).toBe(true)
     expect(approxEqual(r.trend, truth.trend, 1e-5)).toBe(true)
-    r.seasonal.forEach((v, j) => expect(approxEqual(v, truth.seasonal[j], 1e-6)).toBe(true))
+    r.seasonal.forEach((v, j) => expect(approxEqual(v, truth.seasonal[j]!, 1e-6)).toBe(true))
     const run = runHoltWinters(y, { ...params, seasonLength: 4, seasonal: 'mul', initial: { level: r.level, trend: r.trend, seasonal: r.seasonal } })
     expect(run.sse).toBeLessThan(1e-6)
     expect(Math.abs(r.seasonal.reduce((a, b) => a + b, 0) - 4)).toBeLessThan(1e-12) // mean one kept
   })
 
   it('keeps the trend at zero for a model without trend', () => {
-    const y = Array.from({ length: 16 }, (_, t) => 50 * truth.seasonal[t % 4] * (1 + 0.02 * Math.sin(t)))
+    const y = Array.from({ length: 16 }, (_, t) => 50 * truth.seasonal[t % 4]! * (1 + 0.02 * Math.sin(t)))
     const r = refine(y, { ...params, beta: 0 }, [45, 0, 1.1, 0.95, 0.8, 1.15], 3, false)
     expect(r.trend).toBe(0)
     expect(Number.isFinite(r.sse)).toBe(true)

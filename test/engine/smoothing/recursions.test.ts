@@ -33,7 +33,7 @@ function run(c: RecursionCase): SmoothingRun {
 
 function maxRelError(a: readonly number[], b: readonly number[]): number {
   let worst = 0
-  for (let i = 0; i < a.length; i++) worst = Math.max(worst, Math.abs(a[i] - b[i]) / Math.max(Math.abs(b[i]), 1e-300))
+  for (let i = 0; i < a.length; i++) worst = Math.max(worst, Math.abs(a[i]! - b[i]!) / Math.max(Math.abs(b[i]!), 1e-300))
   return worst
 }
 
@@ -79,7 +79,7 @@ describe('runSmoothing: special cases', () => {
   it('Holt started on a straight line stays on it', () => {
     const y = Array.from({ length: 20 }, (_, t) => 10 + 2 * t)
     const r = runHolt(y, { alpha: 0.4, beta: 0.3, initial: { level: 8, trend: 2 } })
-    for (let t = 0; t < y.length; t++) expect(approxEqual(r.fitted[t], y[t], 1e-12)).toBe(true)
+    for (let t = 0; t < y.length; t++) expect(approxEqual(r.fitted[t]!, y[t]!, 1e-12)).toBe(true)
     expect(r.forecast(2).map((v) => Math.round(v * 1e9) / 1e9)).toEqual([50, 52])
   })
   it('forecast(0) and negative horizons give no points', () => {
@@ -111,7 +111,7 @@ describe('runSmoothing matches statsmodels with fixed parameters', () => {
       const m = c.seasonLength ?? 1
       const steps = f.map((_, i) => i).filter((i) => c.seasonal === null || (i + 1) % m !== 0)
       expect(steps.length).toBeGreaterThan(0)
-      expect(maxRelError(steps.map((i) => f[i]), steps.map((i) => c.forecast[i]))).toBeLessThan(1e-9)
+      expect(maxRelError(steps.map((i) => f[i]!), steps.map((i) => c.forecast[i]!))).toBeLessThan(1e-9)
     })
     // Final states against holtwinters' level/trend/season components: with the step checks
     // above this pins the forecast at h = m, 2m, ... (level + phi_h trend, latest seasonal state).

@@ -42,7 +42,7 @@ describe('additiveErrorVariance: published formulas', () => {
   // v_5 = 1 + 3 alpha^2 + (alpha + gamma)^2.
   it('seasonal step adds gamma once per full season', () => {
     const v = additiveErrorVariance({ alpha: 0.4, beta: 0, gamma: 0.2, phi: 1, seasonLength: 4 }, 1, 5)
-    expect(approxEqual(v[4], 1 + 3 * 0.16 + 0.36, 1e-14)).toBe(true)
+    expect(approxEqual(v[4]!, 1 + 3 * 0.16 + 0.36, 1e-14)).toBe(true)
   })
 })
 
@@ -62,7 +62,7 @@ describe('additiveErrorVariance matches statsmodels ETSModel', () => {
         seasonLength: c.seasonLength,
       }
       const v = additiveErrorVariance(shape, 1, c.relativeVariance.length)
-      v.forEach((x, i) => expect(approxEqual(x, c.relativeVariance[i], 1e-9)).toBe(true))
+      v.forEach((x, i) => expect(approxEqual(x, c.relativeVariance[i]!, 1e-9)).toBe(true))
     })
   }
 })

@@ -9,7 +9,7 @@ import { expectEngineError, expectInputGuards, expectSane } from './spec-checks.
 
 const close = (a: readonly number[], b: readonly number[], tol: number): void => {
   expect(a).toHaveLength(b.length)
-  a.forEach((v, i) => expect(approxEqual(v, b[i], tol), `index ${i}: ${v} vs ${b[i]}`).toBe(true))
+  a.forEach((v, i) => expect(approxEqual(v, b[i]!, tol), `index ${i}: ${v} vs ${b[i]}`).toBe(true))
 }
 
 describe('fitLinearTrend', () => {

@@ -8,7 +8,7 @@ import { expectEngineError, expectInputGuards, expectSane } from './spec-checks.
 
 const close = (a: readonly number[], b: readonly number[], tol: number): void => {
   expect(a).toHaveLength(b.length)
-  a.forEach((v, i) => expect(approxEqual(v, b[i], tol), `index ${i}: ${v} vs ${b[i]}`).toBe(true))
+  a.forEach((v, i) => expect(approxEqual(v, b[i]!, tol), `index ${i}: ${v} vs ${b[i]}`).toBe(true))
 }
 
 describe('theta', () => {
@@ -76,9 +76,9 @@ describe('theta', () => {
       const factors = ours.params.seasonFactors as number[] | undefined
       const terms = ours.params.seasonOffsets as number[] | undefined
       const adjusted = factors
-        ? ref.series.map((v, t) => v / factors[t % seasonLength])
+        ? ref.series.map((v, t) => v / factors[t % seasonLength]!)
         : terms
-          ? ref.series.map((v, t) => v - terms[t % seasonLength])
+          ? ref.series.map((v, t) => v - terms[t % seasonLength]!)
           : ref.series
       expect(levelSse(adjusted, alpha)).toBeLessThanOrEqual(levelSse(adjusted, ref.alpha) * (1 + 1e-12))
       close(fit, ref.forecast.slice(0, 12), 1e-4)

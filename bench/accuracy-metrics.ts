@@ -13,22 +13,22 @@ export function seasonalNaiveScale(train: readonly number[], seasonLength: numbe
   const m = Math.max(1, seasonLength)
   if (train.length <= m) return null
   let sum = 0
-  for (let t = m; t < train.length; t++) sum += Math.abs(train[t] - train[t - m])
+  for (let t = m; t < train.length; t++) sum += Math.abs(train[t]! - train[t - m]!)
   const scale = sum / (train.length - m)
   return scale > 0 && Number.isFinite(scale) ? scale : null
 }
 
 export function mase(actual: readonly number[], forecast: readonly number[], scale: number): number {
   let sum = 0
-  for (let i = 0; i < actual.length; i++) sum += Math.abs(actual[i] - forecast[i])
+  for (let i = 0; i < actual.length; i++) sum += Math.abs(actual[i]! - forecast[i]!)
   return sum / actual.length / scale
 }
 
 export function smape(actual: readonly number[], forecast: readonly number[]): number {
   let sum = 0
   for (let i = 0; i < actual.length; i++) {
-    const denominator = Math.abs(actual[i]) + Math.abs(forecast[i])
-    sum += denominator === 0 ? 0 : (200 * Math.abs(actual[i] - forecast[i])) / denominator
+    const denominator = Math.abs(actual[i]!) + Math.abs(forecast[i]!)
+    sum += denominator === 0 ? 0 : (200 * Math.abs(actual[i]! - forecast[i]!)) / denominator
   }
   return sum / actual.length
 }
@@ -36,7 +36,7 @@ export function smape(actual: readonly number[], forecast: readonly number[]): n
 /** Points inside [lower, upper] (bounds included) and the number of points. */
 export function covered(actual: readonly number[], lower: readonly number[], upper: readonly number[]): { inside: number; total: number } {
   let inside = 0
-  for (let i = 0; i < actual.length; i++) if (actual[i] >= lower[i] && actual[i] <= upper[i]) inside++
+  for (let i = 0; i < actual.length; i++) if (actual[i]! >= lower[i]! && actual[i]! <= upper[i]!) inside++
   return { inside, total: actual.length }
 }
 
@@ -48,7 +48,7 @@ export function median(values: readonly number[]): number {
   if (values.length === 0) return NaN
   const sorted = [...values].sort((a, b) => a - b)
   const mid = Math.floor(sorted.length / 2)
-  return sorted.length % 2 === 1 ? sorted[mid] : (sorted[mid - 1] + sorted[mid]) / 2
+  return sorted.length % 2 === 1 ? sorted[mid]! : (sorted[mid - 1]! + sorted[mid]!) / 2
 }
 
 /**
@@ -73,14 +73,14 @@ export function bootstrapRatioInterval(
     let b = 0
     for (let i = 0; i < n; i++) {
       const k = Math.min(n - 1, Math.floor(random() * n))
-      a += numerator[k]
-      b += denominator[k]
+      a += numerator[k]!
+      b += denominator[k]!
     }
     const ratio = a / b
     if (Number.isFinite(ratio)) ratios.push(ratio)
   }
   if (ratios.length === 0) return null
   ratios.sort((x, y) => x - y)
-  const at = (p: number): number => ratios[Math.min(ratios.length - 1, Math.max(0, Math.floor(p * ratios.length)))]
+  const at = (p: number): number => ratios[Math.min(ratios.length - 1, Math.max(0, Math.floor(p * ratios.length)))]!
   return { lower: at((1 - level) / 2), upper: at((1 + level) / 2) }
 }

@@ -107,7 +107,7 @@ function summary(method: Method) {
 }
 const table = METHODS.map(summary)
 const [alm, , ets] = table
-const maseRatio = alm.meanMase / ets.meanMase
+const maseRatio = alm!.meanMase / ets!.meanMase
 // AvgRelMAE: geometric mean over series of MAE(Almanac) / MAE(ETS); equal to the MASE
 // ratio per series since both share the scale (Davydenko and Fildes 2013, from memory).
 // Robust to one reference fit going astray, unlike the ratio of mean MASE.
@@ -119,7 +119,7 @@ const ratioInterval = bootstrapRatioInterval(
 const wins = rows.filter((r) => r.scores.almanac.mase < r.scores.ets.mase).length
 const targets = {
   maseTenPercentBelowEts: { met: failures.length === 0 && maseRatio <= 0.9, ratio: maseRatio, bootstrap90: ratioInterval },
-  coverage95Between90And98: { met: alm.coverage95 !== null && alm.coverage95 >= 0.9 && alm.coverage95 <= 0.98, coverage: alm.coverage95 },
+  coverage95Between90And98: { met: alm!.coverage95 !== null && alm!.coverage95 >= 0.9 && alm!.coverage95 <= 0.98, coverage: alm!.coverage95 },
 }
 
 if (asJson) {
@@ -158,7 +158,7 @@ if (asJson) {
   if (ratioInterval) {
     out(`  90% bootstrap interval of the ratio, series resampled (2,000 draws): ${ratioInterval.lower.toFixed(3)} to ${ratioInterval.upper.toFixed(3)}`)
   }
-  out(`Target 95% coverage in [90%, 98%]: ${targets.coverage95Between90And98.met ? 'MET' : 'NOT MET'} (${pct(alm.coverage95).trim()})`)
+  out(`Target 95% coverage in [90%, 98%]: ${targets.coverage95Between90And98.met ? 'MET' : 'NOT MET'} (${pct(alm!.coverage95).trim()})`)
   if (origin !== 'last') out('(The targets are judged at the last origin; at this earlier one the two lines above are for comparison.)')
   if (process.argv.includes('--per-model')) {
     const diag = perModel(fixture.series)

@@ -126,7 +126,7 @@ try {
   const workerPeak = Math.max(...rss.filter((r) => r.name.startsWith('worker')).map((r) => r.peakMiB ?? Infinity))
 
   out(`End-to-end benchmark: ${f(SKUS)} SKUs x ${60} monthly points, horizon 12, ${runs.length} runs of up to ${f(BATCH)}`)
-  out(`machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(2)} at the end; ` +
+  out(`machine: ${availableParallelism()} cores, load average ${loadavg()[0]!.toFixed(2)} at the end; ` +
     `${WORKERS} worker process(es), CHUNK_SIZE ${env.CHUNK_SIZE ?? 'default'}, WORKER_CONCURRENCY ${env.WORKER_CONCURRENCY ?? 'default (one per core)'}`)
   out(`results: ${f(items)} items read in ${f(pages)} pages (${f(pageBytes / 2 ** 20, 1)} MiB of JSON), ${f(errors)} error items; ` +
     `runs report ${f(done)} done`)

@@ -37,7 +37,7 @@ function pass(count: number): { ms: number; cpuMs: number; winners: Map<ModelNam
   const cpuBefore = process.cpuUsage()
   const began = performance.now()
   for (let i = 0; i < count; i++) {
-    const result = forecastSeries({ demand: set[i].values, frequency: 'month', horizon: HORIZON })
+    const result = forecastSeries({ demand: set[i]!.values, frequency: 'month', horizon: HORIZON })
     winners.set(result.model, (winners.get(result.model) ?? 0) + 1)
     if (i % 250 === 0) sampleMemory()
   }
@@ -64,7 +64,7 @@ const perCpuSecond = cpuRuns.map((ms) => (SERIES / ms) * 1000)
 const report = {
   node: process.version,
   cpu: cpus()[0]?.model ?? 'unknown',
-  loadAverage1m: loadavg()[0],
+  loadAverage1m: loadavg()[0]!,
   series: SERIES,
   length: LENGTH,
   horizon: HORIZON,

@@ -52,7 +52,7 @@ const rows: [string, number][] = [
   ['page item (servedItemJson)', time((i) => servedItemJson(items[i]!.sku, stored[i]!))],
   ['loadItem (to an object)', time((i) => loadItem(items[i]!.sku, stored[i]!))],
 ]
-out(`Stored result items: ${ITEMS} engine results, ${REPS} repetitions, load average ${loadavg()[0].toFixed(2)}`)
+out(`Stored result items: ${ITEMS} engine results, ${REPS} repetitions, load average ${loadavg()[0]!.toFixed(2)}`)
 for (const [name, us] of rows) out(`${name.padEnd(48)} ${us.toFixed(1).padStart(7)} us CPU per item`)
 const size = (list: Buffer[]) => {
   const b = list.map((x) => x.length).sort((a, c) => a - c)

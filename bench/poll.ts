@@ -96,7 +96,7 @@ try {
   const sample = await pageResults(client, known.id, 10)
 
   out(`Poll benchmark: ${f(RATE)} requests/s for up to ${SECONDS} s (half each route), ${CONNECTIONS} connections, loopback`)
-  out(`machine: ${availableParallelism()} cores, load average ${loadavg()[0].toFixed(2)}; while fitting ${f(SKUS)} SKUs in ${runIds.length} runs ` +
+  out(`machine: ${availableParallelism()} cores, load average ${loadavg()[0]!.toFixed(2)}; while fitting ${f(SKUS)} SKUs in ${runIds.length} runs ` +
     `(1 worker process, one thread per core)`)
   out(`polled run progress: ${before.status} ${f(before.progress.done)}/${f(before.progress.total)} at the start, ` +
     `${after.status} ${f(after.progress.done)}/${f(after.progress.total)} at the end; ` +

@@ -35,7 +35,7 @@ export function syntheticSeries(random: () => number, shape: Shape, length: numb
 export function syntheticSet(seed: number, count: number, length: number): { shape: Shape; values: number[] }[] {
   const random = createRandom(seed)
   return Array.from({ length: count }, (_, i) => {
-    const shape = SHAPES[i % SHAPES.length]
+    const shape = SHAPES[i % SHAPES.length]!
     return { shape, values: syntheticSeries(random, shape, length) }
   })
 }

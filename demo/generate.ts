@@ -69,7 +69,7 @@ function regular(sku: string, months: number, level: number, monthlyGrowth: numb
   const firstMonth = Number(start.slice(5, 7)) - 1
   const values: number[] = []
   for (let t = 0; t < months; t++) {
-    const s = 1 + seasonStrength * (season[(firstMonth + t) % 12] - 1)
+    const s = 1 + seasonStrength * (season[(firstMonth + t) % 12]! - 1)
     const mean = level * Math.pow(1 + monthlyGrowth, t) * s * Math.exp(0.08 * normal())
     values.push(poisson(mean))
   }
@@ -114,7 +114,7 @@ function build(): DemoSeries[] {
   for (let i = 0; i < 20; i++) out.push(slowMover(`${prefixes[i % 3]}-${7001 + i}`, integer(36, 60)))
   const seasons = [GARDEN, HEATING, WORKWEAR]
   for (let i = 0; i < 12; i++) {
-    out.push(newProduct(`${prefixes[i % 3]}-${8001 + i}`, seasons[i % 3], uniform(20, 150)))
+    out.push(newProduct(`${prefixes[i % 3]}-${8001 + i}`, seasons[i % 3]!, uniform(20, 150)))
   }
   // Null gaps: months lost in a warehouse system change (invented), on a few long series.
   for (const sku of ['GRD-1003', 'HTG-2005', 'WRK-3010']) {

@@ -19,7 +19,7 @@ function documentedTypes(): { slug: string; status: number; title: string }[] {
     .filter((line) => line.startsWith('| `'))
     .map((line) => {
       const cells = line.split('|').map((c) => c.trim())
-      return { slug: cells[1].replace(/`/g, ''), status: Number(cells[2]), title: cells[3] }
+      return { slug: cells[1]!.replace(/`/g, ''), status: Number(cells[2]), title: cells[3]! }
     })
 }
 

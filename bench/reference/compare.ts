@@ -115,30 +115,30 @@ out(`statsmodels loop on the first ${f(REFERENCE_SERIES)} series; our engine on 
 const reference = runReference(set.slice(0, REFERENCE_SERIES).map((s) => s.values))
 out(`reference: ${Object.entries(reference.versions).map(([k, v]) => `${k} ${v}`).join(', ')}`)
 
-for (let i = 0; i < Math.min(SERIES, 1000); i++) runOurs(set[i].values) // warm-up: JIT compilation
+for (let i = 0; i < Math.min(SERIES, 1000); i++) runOurs(set[i]!.values) // warm-up: JIT compilation
 const ours = set.map((s) => runOurs(s.values))
 
 // Holdout MASE computed here, the same way for both (scale: training part, lag 12).
 const refMase: (number | null)[] = reference.results.map((r, i) => {
-  const values = set[i].values
+  const values = set[i]!.values
   const train = values.slice(0, LENGTH - HOLDOUT)
   const scale = seasonalNaiveScale(train, SEASON)
   return r.holdoutForecast === null || scale === null ? null : mase(values.slice(LENGTH - HOLDOUT), r.holdoutForecast, scale)
 })
 const futureMase = (i: number, forecast: number[] | null): number | null => {
-  const scale = seasonalNaiveScale(set[i].values, SEASON)
-  return forecast === null || scale === null ? null : mase(future[i], forecast, scale)
+  const scale = seasonalNaiveScale(set[i]!.values, SEASON)
+  return forecast === null || scale === null ? null : mase(future[i]!, forecast, scale)
 }
 const outOfSample = reference.results
-  .map((r, i) => ({ ref: futureMase(i, r.forecast), ours: futureMase(i, ours[i].forecast) }))
+  .map((r, i) => ({ ref: futureMase(i, r.forecast), ours: futureMase(i, ours[i]!.forecast) }))
   .filter((p): p is { ref: number; ours: number } => p.ref !== null && p.ours !== null)
-const oursBest = reference.results.map((_, i) => ours[i].bestHoldoutMase).filter((m): m is number => m !== null)
-const both = refMase.map((m, i) => (m !== null && ours[i].mase !== null ? i : -1)).filter((i) => i >= 0)
-const oursMase = both.map((i) => ours[i].mase!)
+const oursBest = reference.results.map((_, i) => ours[i]!.bestHoldoutMase).filter((m): m is number => m !== null)
+const both = refMase.map((m, i) => (m !== null && ours[i]!.mase !== null ? i : -1)).filter((i) => i >= 0)
+const oursMase = both.map((i) => ours[i]!.mase!)
 const theirsMase = both.map((i) => refMase[i]!)
-const better = both.filter((i) => ours[i].mase! < refMase[i]! - 1e-9).length
-const worse = both.filter((i) => ours[i].mase! > refMase[i]! + 1e-9).length
-const sameWinner = both.filter((i) => ours[i].model === reference.results[i].model).length
+const better = both.filter((i) => ours[i]!.mase! < refMase[i]! - 1e-9).length
+const worse = both.filter((i) => ours[i]!.mase! > refMase[i]! + 1e-9).length
+const sameWinner = both.filter((i) => ours[i]!.model === reference.results[i]!.model).length
 
 const refMs = median(reference.results.map((r) => r.seconds * 1000))
 const ourMs = median(ours.map((r) => r.ms))

@@ -40,6 +40,6 @@ describe('logging', () => {
     const { logger, lines } = capture()
     logger.info({ req: { headers: { authorization: `Bearer ${KEY_GARDEN}`, host: 'x' } } }, 'incoming')
     expect(lines[0]).not.toContain(KEY_GARDEN)
-    expect(JSON.parse(lines[0]).req.headers).toEqual({ authorization: '[redacted]', host: 'x' })
+    expect(JSON.parse(lines[0]!).req.headers).toEqual({ authorization: '[redacted]', host: 'x' })
   })
 })

@@ -92,7 +92,7 @@ describe('API process restarted mid-run', { timeout: 120_000 }, () => {
     expect(skus.length).toBe(200)
     expect([...skus].sort()).toEqual(series.map((s) => s.sku).sort())
     // The latest forecast of a SKU is served by the new process too.
-    expect((await call(second, `/v1/skus/${series[0].sku}/forecast`)).body.runId).toBe(runId)
+    expect((await call(second, `/v1/skus/${series[0]!.sku}/forecast`)).body.runId).toBe(runId)
     expect(serverErrors).toEqual([])
   })
 })

@@ -58,7 +58,7 @@ describe('rate limit in Redis', () => {
   it('counts a tenant across API processes and answers 429 with Retry-After', async () => {
     const codes: number[] = []
     for (let i = 0; i < 4; i++) {
-      const res = await apps[i % 2].inject({ url: '/v1/runs/run-x', headers: { authorization: `Bearer ${KEY}` } })
+      const res = await apps[i % 2]!.inject({ url: '/v1/runs/run-x', headers: { authorization: `Bearer ${KEY}` } })
       codes.push(res.statusCode)
       if (res.statusCode === 429) {
         expect(Number(res.headers['retry-after'])).toBeGreaterThan(0)
@@ -67,7 +67,7 @@ describe('rate limit in Redis', () => {
       }
     }
     expect(codes).toEqual([404, 404, 404, 429])
-    const other = await apps[0].inject({ url: '/v1/runs/run-x', headers: { authorization: `Bearer ${OTHER}` } })
+    const other = await apps[0]!.inject({ url: '/v1/runs/run-x', headers: { authorization: `Bearer ${OTHER}` } })
     expect(other.statusCode).toBe(404)
   })
 

@@ -106,16 +106,16 @@ describe('runs over HTTP with the real queue and worker', () => {
   })
 
   it('serves the latest forecast of a SKU', async () => {
-    const res = await app.inject({ url: `/v1/skus/${series[3].sku}/forecast`, headers: as(GARDEN) })
+    const res = await app.inject({ url: `/v1/skus/${series[3]!.sku}/forecast`, headers: as(GARDEN) })
     expect(res.statusCode).toBe(200)
     const body = res.json()
-    expect(body).toMatchObject({ sku: series[3].sku, runId })
+    expect(body).toMatchObject({ sku: series[3]!.sku, runId })
     expect(body.forecast).toHaveLength(6)
     expect(Number.isNaN(Date.parse(body.producedAt))).toBe(false)
   })
 
   it('keeps tenants apart: the other key sees neither the run, its results nor the SKU', async () => {
-    for (const path of [`/v1/runs/${runId}`, `/v1/runs/${runId}/results`, `/v1/skus/${series[3].sku}/forecast`]) {
+    for (const path of [`/v1/runs/${runId}`, `/v1/runs/${runId}/results`, `/v1/skus/${series[3]!.sku}/forecast`]) {
       const res = await app.inject({ url: path, headers: as(HEATING) })
       expect(res.statusCode, path).toBe(404)
     }

@@ -46,7 +46,7 @@ export default fp(
           'www-authenticate': 'Bearer realm="almanac"',
         })
       }
-      const presented = createHash('sha256').update(match[1], 'utf8').digest()
+      const presented = createHash('sha256').update(match[1] ?? '', 'utf8').digest()
       let tenant: string | undefined
       for (const entry of entries) {
         const equal = entry.digest.length === presented.length && timingSafeEqual(entry.digest, presented)

@@ -21,7 +21,7 @@ export default fp(
     })
 
     app.setNotFoundHandler((request, reply) => {
-      const path = request.url.split('?')[0].slice(0, 200)
+      const path = (request.url.split('?')[0] ?? '').slice(0, 200)
       const problem = new ProblemError('not-found', `No route ${request.method} ${path}`)
       reply.code(404).type(PROBLEM_CONTENT_TYPE)
       return problem.toBody()

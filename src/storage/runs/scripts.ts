@@ -1,4 +1,5 @@
 import type { RedisClient } from '../redis.js'
+import { countOf, StoredValueError } from '../decode.js'
 
 /**
  * Lua scripts of the run store. Each runs atomically on one Redis node; the
@@ -169,23 +170,33 @@ export function defineRunScripts(redis: RedisClient): RunScripts {
     if (!(name in redis)) redis.defineCommand(name, { numberOfKeys, lua })
   }
   const cmd = (name: keyof typeof scripts): Call => {
-    const fn = (redis as unknown as Record<string, Call>)[name]
+    const fn = (redis as unknown as Record<string, Call | undefined>)[name]
+    if (fn === undefined) throw new Error(`Redis script ${name} is not defined on this connection`)
     return fn.bind(redis)
   }
   return {
-    startChunk: async (run, nowIso) => (await cmd('almanacStartChunk')(run, nowIso)) as [string, string, string, string] | null,
-    storeItems: async (keys, args) => {
-      const [outcome, created] = (await cmd('almanacStoreItems')(...keys, ...args)) as [unknown, unknown]
-      return [String(outcome), String(created)]
+    startChunk: async (run, nowIso) => {
+      const r = await cmd('almanacStartChunk')(run, nowIso)
+      return r === null ? null : strings(r, 4, 'almanacStartChunk')
     },
-    commitChunk: async (keys, args) => {
-      const [outcome, before] = (await cmd('almanacCommitCounts')(...keys, ...args)) as [unknown, unknown]
-      return [String(outcome), String(before)]
-    },
+    storeItems: async (keys, args) => strings(await cmd('almanacStoreItems')(...keys, ...args), 2, 'almanacStoreItems'),
+    commitChunk: async (keys, args) => strings(await cmd('almanacCommitCounts')(...keys, ...args), 2, 'almanacCommitCounts'),
     endRun: async (keys, args) => {
-      const r = (await cmd('almanacEndRun')(...keys, ...args)) as [unknown, unknown] | null
-      return r === null ? null : [String(r[0]), String(r[1])]
+      const r = await cmd('almanacEndRun')(...keys, ...args)
+      return r === null ? null : strings(r, 2, 'almanacEndRun')
     },
-    updateLatest: async (key, args) => Number(await cmd('almanacUpdateLatest')(key, ...args)),
+    updateLatest: async (key, args) => countOf(await cmd('almanacUpdateLatest')(key, ...args), 'almanacUpdateLatest reply'),
   }
+}
+
+/**
+ * A script's reply as the `n` strings it returns (Redis hands Lua strings and
+ * numbers back as strings or integers).
+ * @throws StoredValueError on any other reply.
+ */
+function strings<N extends 2 | 4>(reply: unknown, n: N, script: string): N extends 2 ? [string, string] : [string, string, string, string] {
+  if (!Array.isArray(reply) || reply.length !== n || !reply.every((v) => typeof v === 'string' || typeof v === 'number')) {
+    throw new StoredValueError(`${script} replied ${JSON.stringify(reply)?.slice(0, 200)}, not ${n} strings`)
+  }
+  return reply.map(String) as N extends 2 ? [string, string] : [string, string, string, string]
 }

@@ -73,6 +73,6 @@ describe('without configured keys', () => {
     const res = await app.inject({ method: 'POST', url: '/v1/runs', payload: RUN })
     await app.close()
     expect(res.statusCode).toBe(202)
-    expect(gateway.submitted[0].tenant).toBe('default')
+    expect(gateway.submitted[0]!.tenant).toBe('default')
   })
 })

@@ -3,7 +3,9 @@ import js from '@eslint/js'
 import tseslint from 'typescript-eslint'
 
 export default tseslint.config(
-  { ignores: ['dist/**', 'node_modules/**', 'test/client/almanac-api.ts', 'coverage/**'] },
+  { ignores: ['dist/**', 'node_modules/**', 'test/client/almanac-api.ts', 'coverage/**',
+    // Installed only to re-run the chart-library comparison (npm install --no-save echarts).
+    'bench/workbench-charts/echarts.ts'] },
   js.configs.recommended,
   ...tseslint.configs.recommended,
   {
@@ -27,6 +29,11 @@ export default tseslint.config(
     // SKU and cell checks match control characters on purpose (they refuse them).
     files: ['src/history/cells.ts', 'src/schemas/run.ts', 'test/schemas/series-check.test.ts'],
     rules: { 'no-control-regex': 'off' },
+  },
+  {
+    // Browser code of the chart comparison: checked with the pages' compiler settings.
+    files: ['bench/workbench-charts/*.ts'],
+    languageOptions: { parserOptions: { projectService: false, project: ['web/tsconfig.json'] } },
   },
   {
     files: ['**/*.mjs', '**/*.js'],

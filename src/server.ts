@@ -1,6 +1,7 @@
 import { collectDefaultMetrics } from 'prom-client'
 import { build } from './http/app.js'
 import { createErpServices } from './http/erp-services.js'
+import { defaultWorkbenchRoot } from './http/plugins/workbench.js'
 import { createServiceMetrics } from './http/metrics.js'
 import { createLogger } from './logger.js'
 import { createRunGateway } from './queue/gateway.js'
@@ -39,7 +40,10 @@ async function main(): Promise<void> {
   const metrics = createServiceMetrics()
   collectDefaultMetrics({ register: metrics.registry, prefix: 'almanac_process_' })
 
-  const app = await build({ config, gateway, logger, rateLimitRedis: apiRedis, metrics, histories, idempotency, erp: erp.services })
+  const app = await build({
+    config, gateway, logger, rateLimitRedis: apiRedis, metrics, histories, idempotency, erp: erp.services,
+    workbenchRoot: defaultWorkbenchRoot(),
+  })
   const workers = config.runWorker ? startProcessWorkers(config, logger) : null
 
   const steps: CloseStep[] = [

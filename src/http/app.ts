@@ -32,6 +32,8 @@ import { PROBLEM_CONTENT_TYPE } from '../errors.js'
 import type { ErpServices } from './erp-services.js'
 import erpPlugin from './plugins/erp.js'
 import accuracyRoutes from './routes/accuracy.js'
+import accessRoutes from './routes/access.js'
+import workbenchPlugin from './plugins/workbench.js'
 import callbackRoutes from './routes/callbacks.js'
 import deliveryRoutes from './routes/runs/deliveries.js'
 import scheduleRoutes from './routes/schedules.js'
@@ -55,6 +57,8 @@ export interface AppDeps {
   readonly idempotency?: IdempotencyStore
   /** Callbacks, deliveries, schedules and accuracy; without them those routes answer 503. */
   readonly erp?: ErpServices
+  /** Folder of the built workbench pages served at /app/; without it /app/ answers 503. */
+  readonly workbenchRoot?: string | null
 }
 
 /** Time to receive a whole request when the config does not say (REQUEST_TIMEOUT_MS). */
@@ -133,5 +137,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(scheduleRoutes, { prefix: '/v1/schedules' })
   await app.register(skuAccuracyRoutes, { prefix: '/v1/skus' })
   await app.register(accuracyRoutes)
+  await app.register(accessRoutes)
+  await app.register(workbenchPlugin, { root: deps.workbenchRoot ?? null })
   return app
 }

@@ -381,6 +381,26 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/access": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Whether an API key is required
+         * @description Answers without a key. The workbench at /app/ asks for a key only when apiKeyRequired is true.
+         */
+        get: operations["getAccess"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
 }
 export type webhooks = Record<string, never>;
 export interface components {
@@ -845,6 +865,10 @@ export interface components {
             /** @description Tracking-signal limit (4, common practice) */
             trackingLimit: number;
             updatedAt: string;
+        };
+        Access: {
+            /** @description true: every /v1 route needs Authorization: Bearer <key>; false: no keys are configured */
+            apiKeyRequired: boolean;
         };
         Callback: {
             id: string;
@@ -3371,6 +3395,26 @@ export interface operations {
                 };
                 content: {
                     "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    getAccess: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["Access"];
                 };
             };
         };

@@ -21,6 +21,7 @@ describe('OpenAPI document', () => {
   it('documents every v1 route, problem responses and the cautions', () => {
     const doc = JSON.parse(committed)
     expect(Object.keys(doc.paths).sort()).toEqual([
+      '/access',
       '/healthz',
       '/metrics',
       '/readyz',

@@ -1,0 +1,369 @@
+import { useEffect, useMemo } from 'preact/hooks'
+import { ApiError, describeError, getJson, skuPath } from '../api'
+import { ChartView } from '../chart/chart-view'
+import type { ChartInput } from '../chart/forecast-chart'
+import type { BandLevel } from '../chart/palette'
+import { formatNumber, formatPrecise, formatTime, modelLabel } from '../format'
+import { Icon } from '../icons'
+import { periodLabels } from '../periods'
+import { Link, hrefs } from '../router'
+import { useAsync } from '../use-async'
+import type { Candidate, ForecastPoint, History, SkuForecast } from '../types'
+
+interface SkuData {
+  /** null when only a run with inline series has forecast the SKU. */
+  readonly history: History | null
+  readonly forecast: SkuForecast | null
+}
+
+async function loadSku(sku: string, signal: AbortSignal): Promise<SkuData> {
+  const forecast = getJson<SkuForecast>(skuPath(sku, '/forecast'), signal).catch((err: unknown) => {
+    if (err instanceof ApiError && err.status === 404) return null
+    throw err
+  })
+  const history = await getJson<History>(skuPath(sku, '/history'), signal).catch((err: unknown) => {
+    if (err instanceof ApiError && err.status === 404) return null
+    throw err
+  })
+  const found = { history, forecast: await forecast }
+  if (found.history === null && found.forecast === null) throw new ApiError(404, { detail: `No stored history or forecast for ${sku}` })
+  return found
+}
+
+function band(p: ForecastPoint, level: number) {
+  return p.intervals.find((i) => i.level === level)
+}
+
+/** The chart's time line: the history's periods, then forecast periods past its end. */
+function chartInput(data: SkuData): ChartInput {
+  const { history, forecast } = data
+  const labels =
+    history === null
+      ? []
+      : (periodLabels(history.frequency, history.firstPeriod, history.periodCount) ?? history.demand.map((_, i) => String(i + 1)))
+  const points = forecast?.forecast ?? []
+  let start = points.length > 0 ? labels.indexOf(points[0]!.period) : -1
+  if (start < 0) start = labels.length
+  const periods = [...labels.slice(0, start), ...points.map((p) => p.period)]
+  for (let i = periods.length; i < labels.length; i++) periods.push(labels[i]!)
+  return {
+    periods,
+    history: history?.demand ?? [],
+    forecastStart: start,
+    forecast: points.map((p) => {
+      const bands: Partial<Record<BandLevel, { low: number; high: number }>> = {}
+      for (const level of [80, 95] as const) {
+        const i = band(p, level)
+        if (i) bands[level] = { low: i.low, high: i.high }
+      }
+      return { demand: p.demand, bands }
+    }),
+    holdoutPeriods: forecast?.modelChoice.holdoutPeriods ?? 0,
+  }
+}
+
+const ERROR_LABELS: Record<string, string> = {
+  mae: 'MAE',
+  rmse: 'RMSE',
+  mape: 'MAPE %',
+  smape: 'sMAPE %',
+  mase: 'MASE',
+  wape: 'WAPE %',
+  msis: 'MSIS',
+  pinball: 'Pinball',
+}
+
+function errorKeys(candidates: readonly Candidate[]): string[] {
+  const keys = new Set<string>()
+  for (const c of candidates) for (const k of Object.keys(c.holdoutErrors ?? {})) keys.add(k)
+  const known = Object.keys(ERROR_LABELS).filter((k) => keys.has(k))
+  return [...known, ...[...keys].filter((k) => !(k in ERROR_LABELS))]
+}
+
+function Caution() {
+  return (
+    <aside class="caution" role="note" aria-label="Caution" data-testid="caution">
+      <Icon name="alert" />
+      <p>
+        <strong>Statistical estimates — review before ordering.</strong> The forecast, its bands and the replenishment figures
+        are computed from past demand alone. Promotions, lost or new customers, price changes and supply problems are not in
+        them. Check the model, its holdout errors and the warnings before a figure drives an order or a stock target.
+      </p>
+    </aside>
+  )
+}
+
+function Candidates({ forecast }: { forecast: SkuForecast }) {
+  const candidates = forecast.candidates ?? []
+  if (candidates.length === 0) return <p class="muted">This answer carries no candidates table.</p>
+  const keys = errorKeys(candidates)
+  const rankBy = forecast.modelChoice.rankBy
+  return (
+    <div class="table-wrap">
+      <table class="data" data-testid="candidates">
+        <caption>
+          Candidate models and their errors on the {forecast.modelChoice.holdoutPeriods} holdout periods, ranked by{' '}
+          {ERROR_LABELS[rankBy] ?? rankBy} (lower is better)
+        </caption>
+        <thead>
+          <tr>
+            <th scope="col">Model</th>
+            <th scope="col">Family</th>
+            <th scope="col">Status</th>
+            {keys.map((k) => (
+              <th key={k} scope="col" class={`num ${k === rankBy ? 'ranked' : ''}`}>
+                {ERROR_LABELS[k] ?? k}
+                {k === rankBy ? <span class="visually-hidden"> (ranks the models)</span> : null}
+              </th>
+            ))}
+            <th scope="col">Note</th>
+          </tr>
+        </thead>
+        <tbody>
+          {candidates.map((c) => {
+            const chosen = c.model === forecast.model
+            return (
+              <tr key={c.model} class={chosen ? 'chosen' : ''}>
+                <th scope="row">
+                  {chosen ? (
+                    <span class="chosen-mark">
+                      <Icon name="chosen" /> chosen:{' '}
+                    </span>
+                  ) : null}
+                  {modelLabel(c.model)}
+                </th>
+                <td>{c.family}</td>
+                <td>{c.status}</td>
+                {keys.map((k) => (
+                  <td key={k} class="num">
+                    {formatPrecise(c.holdoutErrors?.[k])}
+                  </td>
+                ))}
+                <td>{c.reason ?? ''}</td>
+              </tr>
+            )
+          })}
+        </tbody>
+      </table>
+    </div>
+  )
+}
+
+const REPLENISHMENT_LABELS: Record<string, string> = {
+  leadTimePeriods: 'Lead time (periods)',
+  leadTimeDays: 'Lead time (days)',
+  serviceLevel: 'Target service level',
+  leadTimeDemand: 'Demand over the lead time',
+  sigma: 'Spread of lead-time demand (σ)',
+  z: 'Service factor (z)',
+  safetyStock: 'Safety stock',
+  reorderPoint: 'Reorder point',
+  formula: 'Formula',
+}
+
+function Replenishment({ figures }: { figures: Readonly<Record<string, unknown>> }) {
+  const entries = Object.entries(figures).filter(([, v]) => typeof v === 'number' || typeof v === 'string' || v === null)
+  return (
+    <dl class="figures" data-testid="replenishment">
+      {entries.map(([k, v]) => (
+        <div key={k}>
+          <dt>{REPLENISHMENT_LABELS[k] ?? k}</dt>
+          <dd>{typeof v === 'number' ? (k === 'serviceLevel' && v < 1 ? `${formatPrecise(v * 100)}%` : formatPrecise(v)) : String(v ?? '–')}</dd>
+        </div>
+      ))}
+    </dl>
+  )
+}
+
+function ForecastTable({ forecast }: { forecast: SkuForecast }) {
+  const levels = [...new Set(forecast.forecast.flatMap((p) => p.intervals.map((i) => i.level)))].sort((a, b) => a - b)
+  return (
+    <details class="figures-table">
+      <summary>Forecast figures as a table</summary>
+      <div class="table-wrap">
+        <table class="data" data-testid="forecast-table">
+          <thead>
+            <tr>
+              <th scope="col">Period</th>
+              <th scope="col" class="num">Forecast</th>
+              {levels.map((l) => (
+                <th key={l} scope="col" class="num">
+                  {l}% band
+                </th>
+              ))}
+            </tr>
+          </thead>
+          <tbody>
+            {forecast.forecast.map((p) => (
+              <tr key={p.period}>
+                <th scope="row" class="mono">
+                  {p.period}
+                </th>
+                <td class="num">{formatNumber(p.demand)}</td>
+                {levels.map((l) => {
+                  const i = band(p, l)
+                  return (
+                    <td key={l} class="num">
+                      {i ? `${formatNumber(i.low)} – ${formatNumber(i.high)}` : '–'}
+                    </td>
+                  )
+                })}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+    </details>
+  )
+}
+
+function Params({ params }: { params: SkuForecast['params'] }) {
+  const entries = Object.entries(params)
+  if (entries.length === 0) return null
+  return (
+    <dl class="figures params">
+      {entries.map(([k, v]) => (
+        <div key={k}>
+          <dt class="mono">{k}</dt>
+          <dd>{Array.isArray(v) ? v.map((x) => formatPrecise(x)).join(', ') : formatPrecise(v as number)}</dd>
+        </div>
+      ))}
+    </dl>
+  )
+}
+
+export function SkuPage({ sku }: { sku: string }) {
+  const loaded = useAsync((signal) => loadSku(sku, signal), [sku])
+  const data = loaded.state === 'done' ? loaded.value : null
+  const input = useMemo(() => (data ? chartInput(data) : null), [data])
+
+  useEffect(() => {
+    document.title = `${sku} · Almanac workbench`
+  }, [sku])
+
+  const describe = (i: number): string => {
+    if (!input) return ''
+    const period = input.periods[i] ?? ''
+    if (i >= input.forecastStart && data?.forecast) {
+      const p = data.forecast.forecast[i - input.forecastStart]
+      if (p) {
+        const ranges = p.intervals.map((b) => `${b.level}% band ${formatNumber(b.low)} to ${formatNumber(b.high)}`).join(', ')
+        return `${period}: forecast ${formatNumber(p.demand)}${ranges ? `; ${ranges}` : ''}`
+      }
+    }
+    const value = input.history[i]
+    const holdout = i < input.forecastStart && i >= input.forecastStart - input.holdoutPeriods
+    return `${period}: demand ${value === null || value === undefined ? 'missing' : formatNumber(value)}${holdout ? ' (holdout period)' : ''}`
+  }
+
+  return (
+    <div data-testid="sku-page" data-ready={input ? 'true' : undefined}>
+      <p class="crumbs">
+        <Link href={hrefs.skus()}>SKUs</Link> <span aria-hidden="true">›</span> <span class="mono">{sku}</span>
+      </p>
+      <h1 tabIndex={-1} class="mono">
+        {sku}
+      </h1>
+      {loaded.state === 'loading' ? <p class="muted">Loading the history and forecast…</p> : null}
+      {loaded.state === 'failed' ? (
+        <p class="error" role="alert">
+          {loaded.error instanceof ApiError && loaded.error.status === 404
+            ? `No stored history or forecast for ${sku}.`
+            : `Could not load ${sku}: ${describeError(loaded.error)}`}
+        </p>
+      ) : null}
+      {data && input ? (
+        <>
+          {data.history ? (
+            <p class="subtitle">
+              {data.history.frequency} history {data.history.firstPeriod} – {data.history.lastPeriod} ({formatNumber(data.history.periodCount)}{' '}
+              periods)
+              {data.history.tags.map((t) => (
+                <Link key={t} href={hrefs.skus('', t)} class="tag">
+                  {t}
+                </Link>
+              ))}
+            </p>
+          ) : (
+            <p class="subtitle">No stored history: this forecast came from a run with the series sent inline.</p>
+          )}
+          <Caution />
+          <ChartView input={input} describe={describe} onDrawn={() => performance.mark('sku-page-drawn')} />
+          {data.forecast === null ? (
+            <p>This SKU has not been forecast yet (or its last results have expired). Its history is shown alone.</p>
+          ) : (
+            <SkuForecastDetails forecast={data.forecast} />
+          )}
+        </>
+      ) : null}
+    </div>
+  )
+}
+
+function SkuForecastDetails({ forecast }: { forecast: SkuForecast }) {
+  const choice = forecast.modelChoice
+  return (
+    <>
+      <ForecastTable forecast={forecast} />
+      <section aria-labelledby="model-heading">
+        <h2 id="model-heading">Model</h2>
+        <dl class="figures">
+          <div>
+            <dt>Chosen model</dt>
+            <dd data-testid="chosen-model">{modelLabel(forecast.model)}</dd>
+          </div>
+          <div>
+            <dt>Family</dt>
+            <dd>{forecast.family}</dd>
+          </div>
+          <div>
+            <dt>Chosen by</dt>
+            <dd>
+              {choice.method === 'holdout'
+                ? `lowest ${ERROR_LABELS[choice.rankBy] ?? choice.rankBy} on ${choice.holdoutPeriods} holdout periods${choice.holdoutOrigins > 1 ? ` × ${choice.holdoutOrigins} origins` : ''}`
+                : choice.method}
+            </dd>
+          </div>
+          <div>
+            <dt>Bands</dt>
+            <dd>{forecast.intervalMethod}</dd>
+          </div>
+          <div>
+            <dt>Forecast made</dt>
+            <dd>
+              {formatTime(forecast.producedAt)} by run <Link href={hrefs.run(forecast.runId)} class="mono">{forecast.runId}</Link>
+            </dd>
+          </div>
+        </dl>
+        <h3>Fitted parameters</h3>
+        <Params params={forecast.params} />
+      </section>
+      <section aria-labelledby="warnings-heading">
+        <h2 id="warnings-heading">Warnings</h2>
+        {forecast.warnings.length === 0 ? (
+          <p class="muted">No warnings for this forecast.</p>
+        ) : (
+          <ul class="warnings" data-testid="warnings">
+            {forecast.warnings.map((w) => (
+              <li key={w.code}>
+                <Icon name="alert" /> <span class="mono">{w.code}</span>: {w.message}
+              </li>
+            ))}
+          </ul>
+        )}
+      </section>
+      <section aria-labelledby="candidates-heading">
+        <h2 id="candidates-heading">Candidates</h2>
+        <Candidates forecast={forecast} />
+      </section>
+      <section aria-labelledby="replenishment-heading">
+        <h2 id="replenishment-heading">Replenishment</h2>
+        {forecast.replenishment ? (
+          <Replenishment figures={forecast.replenishment} />
+        ) : (
+          <p class="muted">The run that made this forecast had no replenishment settings.</p>
+        )}
+      </section>
+    </>
+  )
+}

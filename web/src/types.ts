@@ -1,0 +1,121 @@
+/**
+ * The API shapes the workbench reads, in the contract's words (docs/http-api.md,
+ * /openapi.json). Only the fields the pages use; the server sends more.
+ */
+
+export type RunStatus = 'queued' | 'running' | 'succeeded' | 'failed' | 'cancelled'
+export const FINISHED_STATUSES: readonly RunStatus[] = ['succeeded', 'failed', 'cancelled']
+
+export interface Failure {
+  readonly code: string
+  readonly message: string
+}
+
+export interface Run {
+  readonly id: string
+  readonly status: RunStatus
+  readonly progress: { readonly total: number; readonly done: number; readonly failed: number }
+  readonly createdAt: string
+  readonly startedAt: string | null
+  readonly finishedAt: string | null
+  readonly settings: { readonly horizon?: number; readonly frequency?: string; readonly rankBy?: string }
+  readonly summary: {
+    readonly rankBy: string
+    readonly modelCounts: Readonly<Record<string, number>>
+    readonly meanHoldoutError: number | null
+  } | null
+  readonly failure?: Failure | null
+}
+
+export interface SkuSummary {
+  readonly sku: string
+  readonly frequency: string
+  readonly firstPeriod: string
+  readonly lastPeriod: string
+  readonly periodCount: number
+  readonly tags: readonly string[]
+  readonly updatedAt: string
+}
+
+export interface Page<T> {
+  readonly items: readonly T[]
+  readonly nextCursor: string | null
+}
+
+export interface History extends SkuSummary {
+  readonly demand: readonly (number | null)[]
+}
+
+export type HoldoutErrors = Readonly<Record<string, number | null>>
+
+export interface Interval {
+  readonly level: number
+  readonly low: number
+  readonly high: number
+}
+
+export interface ForecastPoint {
+  readonly period: string
+  readonly demand: number
+  readonly intervals: readonly Interval[]
+}
+
+export interface Candidate {
+  readonly model: string
+  readonly family: string
+  readonly status: 'scored' | 'skipped' | 'failed'
+  readonly holdoutErrors?: HoldoutErrors
+  readonly score?: number
+  readonly reason?: string
+}
+
+export interface Warning {
+  readonly code: string
+  readonly message: string
+}
+
+export interface SkuForecast {
+  readonly sku: string
+  readonly frequency: string
+  readonly model: string
+  readonly family: string
+  readonly params: Readonly<Record<string, number | readonly number[]>>
+  readonly modelChoice: {
+    readonly method: string
+    readonly rankBy: string
+    readonly holdoutPeriods: number
+    readonly holdoutOrigins: number
+  }
+  readonly holdoutErrors: HoldoutErrors | null
+  readonly candidates?: readonly Candidate[]
+  readonly forecast: readonly ForecastPoint[]
+  readonly intervalMethod: string
+  readonly warnings: readonly Warning[]
+  readonly replenishment?: Readonly<Record<string, unknown>>
+  readonly runId: string
+  readonly producedAt: string
+}
+
+export interface UploadReport {
+  readonly mode: string
+  readonly frequency: string
+  readonly rows: { readonly accepted: number; readonly rejected: number }
+  readonly skus: { readonly created: number; readonly updated: number; readonly rejected: number }
+  readonly errors: readonly {
+    readonly line?: number
+    readonly item?: number
+    readonly column?: string
+    readonly sku?: string
+    readonly reason: string
+  }[]
+  readonly errorsNotListed: number
+}
+
+/** RFC 9457 problem details, as every error answer of the API. */
+export interface Problem {
+  readonly type?: string
+  readonly title?: string
+  readonly status?: number
+  readonly detail?: string
+  readonly errors?: readonly { readonly path: string; readonly message: string }[]
+}

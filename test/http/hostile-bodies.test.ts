@@ -96,8 +96,13 @@ const hostileValue: fc.Arbitrary<unknown> = fc.oneof(
   fc.string({ unit: 'binary', maxLength: 50 }),
 )
 
-/** Own enumerable property, even for `__proto__`, so JSON.stringify writes it. */
+/**
+ * Own enumerable property, even for `__proto__`, so JSON.stringify writes it.
+ * An array's non-index keys never reach the JSON text (and its `length` cannot be
+ * redefined), so adding one to an array leaves the body as it was.
+ */
 function setOwn(target: Record<string, unknown>, key: string, value: unknown) {
+  if (Array.isArray(target) && !/^(0|[1-9]\d*)$/.test(key)) return
   Object.defineProperty(target, key, { value, enumerable: true, configurable: true, writable: true })
 }
 

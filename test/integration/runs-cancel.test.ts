@@ -79,7 +79,11 @@ describe('cancel', { timeout: 120_000 }, () => {
   })
 
   it('reports queue depth', async () => {
-    const stats = await gateway.stats()
+    // A run is marked succeeded before its last chunk job leaves the active list; wait for the queue to settle.
+    const stats = await waitFor(async () => {
+      const s = await gateway.stats()
+      return s.active === 0 && s.waiting === 0 ? s : undefined
+    }, 30_000, 'queue to settle')
     expect(stats).toMatchObject({ waiting: 0, active: 0, delayed: 0, failed: 0 })
     // Runs by status (storage/runs/stats-store.ts): the two cancelled runs and the finished one above.
     expect(stats.runs).toEqual({ queued: 0, running: 0, succeeded: 1, failed: 0, cancelled: 2 })

@@ -1,3 +1,4 @@
+import fc from 'fast-check'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { KEY_GARDEN, auth } from './gateway-double.js'
 import { buildHostileApp, type HostileApp } from './hostile-helpers.js'
@@ -62,5 +63,76 @@ describe('finding 4: more cells than the header', () => {
       errors: [{ line: 2, reason: 'the row has 4 fields but the header has 3 (a thousands separator, or a delimiter in an unquoted cell?)' }],
     })
     expect(await history('MULCH-40L')).toMatchObject({ firstPeriod: '2025-02', demand: [12] })
+  })
+})
+
+describe('finding 6: histories that would end after year 9999', () => {
+  const LATE: Record<string, (n: number) => string> = {
+    day: (n) => `9999-12-${String(32 - n).padStart(2, '0')}`,
+    week: (n) => `9999-W${String(53 - n).padStart(2, '0')}`,
+    month: (n) => `9999-${String(13 - n).padStart(2, '0')}`,
+    quarter: (n) => `9999-Q${5 - n}`,
+    year: () => '9999',
+  }
+
+  // Before the fix the PUT wrote the history and then answered 500, and every later read of the SKU,
+  // alone or in a GET /v1/skus page, answered 500 (seen failing).
+  it('a PUT is either stored and readable or refused before writing, never written and then failed', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.constantFrom('day', 'week', 'month', 'quarter', 'year'),
+        fc.integer({ min: 1, max: 4 }),
+        fc.integer({ min: 1, max: 8 }),
+        async (frequency, back, count) => {
+          const sku = `LATE-${frequency}-${back}-${count}`
+          const firstPeriod = LATE[frequency]!(frequency === 'week' ? back + 1 : back)
+          const put = await h.app.inject({
+            method: 'PUT',
+            url: `/v1/skus/${sku}/history`,
+            headers: auth(KEY_GARDEN),
+            payload: { frequency, firstPeriod, demand: Array.from({ length: count }, () => 1) },
+          })
+          const read = await history(sku)
+          if (put.statusCode === 201 || put.statusCode === 200) {
+            expect(read).toMatchObject({ firstPeriod, periodCount: count, lastPeriod: expect.stringMatching(/^9999/) })
+          } else {
+            expect(put.statusCode).toBe(400)
+            expect(put.json().errors).toEqual([{ path: 'demand', message: expect.stringMatching(/^the history would end after year 9999/) }])
+            expect(read).toBe(404)
+          }
+        },
+      ),
+      { numRuns: 40 },
+    )
+    const page = await h.app.inject({ url: '/v1/skus?prefix=LATE-&limit=200', headers: auth(KEY_GARDEN) })
+    expect(page.statusCode).toBe(200)
+  })
+
+  it('an upload refuses the SKU whose merged history would pass 9999 and keeps its stored history', async () => {
+    const stored = await h.app.inject({
+      method: 'PUT',
+      url: '/v1/skus/KINDLING-9/history',
+      headers: auth(KEY_GARDEN),
+      payload: { frequency: 'month', firstPeriod: '9999-10', demand: [1, 2] },
+    })
+    expect(stored.statusCode).toBe(201)
+    const res = await h.app.inject({
+      method: 'POST',
+      url: '/v1/history',
+      headers: auth(KEY_GARDEN),
+      payload: {
+        series: [
+          { sku: 'KINDLING-9', firstPeriod: '9999-12', demand: [3, 4] },
+          { sku: 'KINDLING-10', firstPeriod: '9999-12', demand: [5] },
+        ],
+      },
+    })
+    expect(res.statusCode).toBe(200)
+    expect(res.json()).toMatchObject({
+      rows: { accepted: 1, rejected: 1 },
+      errors: [{ item: 0, sku: 'KINDLING-9', reason: 'the history would end after year 9999 (4 month periods from 9999-10)' }],
+    })
+    expect(await history('KINDLING-9')).toMatchObject({ firstPeriod: '9999-10', demand: [1, 2] })
+    expect(await history('KINDLING-10')).toMatchObject({ lastPeriod: '9999-12' })
   })
 })

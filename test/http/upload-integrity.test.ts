@@ -1,5 +1,7 @@
 import fc from 'fast-check'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { parseSku } from '../../src/history/cells.js'
+import { Sku } from '../../src/schemas/run.js'
 import { KEY_GARDEN, auth } from './gateway-double.js'
 import { buildHostileApp, type HostileApp } from './hostile-helpers.js'
 
@@ -134,5 +136,53 @@ describe('finding 6: histories that would end after year 9999', () => {
     })
     expect(await history('KINDLING-9')).toMatchObject({ firstPeriod: '9999-10', demand: [1, 2] })
     expect(await history('KINDLING-10')).toMatchObject({ lastPeriod: '9999-12' })
+  })
+})
+
+describe('finding 5: SKUs that are not well-formed Unicode', () => {
+  // Any UTF-16 string, lone surrogates included.
+  const utf16 = fc.string({ unit: fc.integer({ min: 0, max: 0xffff }).map((c) => String.fromCharCode(c)), minLength: 1, maxLength: 6 })
+  // Node's UTF-8 codec is the oracle: a SKU is kept apart in storage exactly when it survives the round trip.
+  const survivesUtf8 = (s: string) => Buffer.from(s, 'utf8').toString('utf8') === s
+
+  it('the Sku schema accepts a SKU without control characters exactly when it survives UTF-8', () => {
+    fc.assert(
+      fc.property(utf16, (s) => {
+        fc.pre(![...s].some((c) => c.charCodeAt(0) < 0x20 || c === '\u007f'))
+        expect(Sku.safeParse(s).success).toBe(survivesUtf8(s))
+        expect('sku' in parseSku(` ${s} `)).toBe(s.trim() !== '' && survivesUtf8(s))
+      }),
+      { numRuns: 2000 },
+    )
+  })
+
+  // Before the fix the run was accepted with three SKUs and stored one result (seen failing).
+  it('a run naming "\\ud800", "\\ud801" and "\\ufffd" is a 400 naming each lone surrogate', async () => {
+    const series = ['\ud800', '\ud801', '\ufffd'].map((sku) => ({ sku, demand: [1, 2, 3] }))
+    const res = await h.app.inject({ method: 'POST', url: '/v1/runs', headers: auth(KEY_GARDEN), payload: { horizon: 2, series } })
+    expect(res.statusCode).toBe(400)
+    expect(res.json().errors).toEqual([
+      { path: 'series[0].sku', message: 'must not contain control characters or lone UTF-16 surrogates' },
+      { path: 'series[1].sku', message: 'must not contain control characters or lone UTF-16 surrogates' },
+    ])
+  })
+
+  // Before the fix all three rows were accepted and one history stored under U+FFFD (seen failing).
+  it('an NDJSON upload refuses rows with a lone surrogate and keeps U+FFFD apart', async () => {
+    const lines = ['\\ud800', '\\udbff', '\\ufffd'].map((sku) => `{"sku":"${sku}","period":"2025-01","demand":2}`)
+    const res = await h.app.inject({
+      method: 'POST',
+      url: '/v1/history',
+      headers: { ...auth(KEY_GARDEN), 'content-type': 'application/x-ndjson' },
+      payload: lines.join('\n'),
+    })
+    expect(res.json()).toMatchObject({
+      rows: { accepted: 1, rejected: 2 },
+      skus: { created: 1 },
+      errors: [
+        { line: 1, column: 'sku', reason: 'SKU contains a lone UTF-16 surrogate (not well-formed Unicode)' },
+        { line: 2, column: 'sku', reason: 'SKU contains a lone UTF-16 surrogate (not well-formed Unicode)' },
+      ],
+    })
   })
 })

@@ -3,7 +3,7 @@ import { Readable, Transform } from 'node:stream'
 import fp from 'fastify-plugin'
 import type { FastifyReply, FastifyRequest } from 'fastify'
 import { ProblemError } from '../../errors.js'
-import type { IdempotencyStore } from '../../storage/erp/idempotency-store.js'
+import type { IdempotencyStore, Lease } from '../../storage/erp/idempotency-store.js'
 
 declare module 'fastify' {
   interface FastifyContextConfig {
@@ -17,6 +17,9 @@ declare module 'fastify' {
 
 interface IdempotencyState {
   readonly key: string
+  readonly lease: Lease
+  /** Renews the lease while the request works; cleared when it settles. */
+  readonly renewal: NodeJS.Timeout
   /** Known up front for JSON bodies; for streamed bodies once the stream ended. */
   hash: string | null
   settled: boolean
@@ -34,7 +37,8 @@ export const REUSED_ANSWER_HEADER = 'almanac-reused-answer'
  * same key and hash gets that answer again with `Almanac-Reused-Answer: true`,
  * one with another hash a 422 `idempotency-key-reused`, and one arriving while
  * the first is still in flight a 409 `idempotency-key-in-use`. A 5xx answer
- * frees the key. JSON bodies are hashed as parsed (JSON.stringify, so
+ * frees the key. While in flight the key is a lease the request renews; if the
+ * server dies, renewals stop and the key frees itself within one lease. JSON bodies are hashed as parsed (JSON.stringify, so
  * whitespace does not matter but key order does); streamed CSV/NDJSON bodies
  * are hashed as their bytes pass to the parser.
  */
@@ -56,7 +60,8 @@ export default fp<{ store?: IdempotencyStore }>(
       const hash = createHash('sha256').update(`${request.method} ${request.url}\n${request.headers['content-type'] ?? ''}\n`)
       const existing = await store.get(request.tenant, key)
       // A streamed body left unread: close the connection rather than drain it.
-      const unread: Record<string, string> = streamed ? { connection: 'close' } : {}
+      // Retry-After: a key left by a crashed server is free within one lease.
+      const unread: Record<string, string> = { 'retry-after': String(Math.ceil(store.leaseMs / 1000)), ...(streamed ? { connection: 'close' } : {}) }
       if (existing?.state === 'pending') throw inUse(unread)
       if (existing?.state === 'done') {
         const digest = streamed
@@ -65,8 +70,17 @@ export default fp<{ store?: IdempotencyStore }>(
         if (digest !== existing.hash) throw reused()
         return replay(reply, existing)
       }
-      if (!(await store.claim(request.tenant, key))) throw inUse(unread)
-      const state: IdempotencyState = { key, hash: null, settled: false }
+      const lease = await store.claim(request.tenant, key)
+      if (lease === null) throw inUse(unread)
+      const tenant = request.tenant
+      const renewal = setInterval(() => {
+        store.renew(tenant, key, lease).then(
+          (held) => held || request.log.warn('idempotency lease lost while the request was in flight'),
+          (err: unknown) => request.log.warn({ err }, 'could not renew the idempotency lease'),
+        )
+      }, Math.max(1, Math.floor(store.leaseMs / 3)))
+      renewal.unref()
+      const state: IdempotencyState = { key, lease, renewal, hash: null, settled: false }
       request.idempotency = state
       if (!streamed) {
         state.hash = hash.update(JSON.stringify(request.body ?? null)).digest('hex')
@@ -91,17 +105,19 @@ export default fp<{ store?: IdempotencyStore }>(
       const state = request.idempotency
       if (!state || state.settled || store === null) return payload
       state.settled = true
+      clearInterval(state.renewal)
       try {
         if (reply.statusCode >= 500 || state.hash === null || typeof payload !== 'string') {
-          await store.release(request.tenant, state.key)
+          await store.release(request.tenant, state.key, state.lease)
         } else {
-          await store.complete(request.tenant, state.key, {
+          const kept = await store.complete(request.tenant, state.key, state.lease, {
             hash: state.hash,
             status: reply.statusCode,
             contentType: headerText(reply.getHeader('content-type')),
             location: headerText(reply.getHeader('location')),
             body: payload,
           })
+          if (!kept) request.log.warn('idempotency lease lost before the answer: it is not kept for replay')
         }
       } catch (err) {
         request.log.error({ err }, 'could not record the idempotency key')
@@ -114,7 +130,8 @@ export default fp<{ store?: IdempotencyStore }>(
       const state = request.idempotency
       if (!state || state.settled || store === null) return
       state.settled = true
-      await store.release(request.tenant, state.key).catch((err) => request.log.error({ err }, 'could not free the idempotency key'))
+      clearInterval(state.renewal)
+      await store.release(request.tenant, state.key, state.lease).catch((err) => request.log.error({ err }, 'could not free the idempotency key'))
     })
   },
   { name: 'idempotency', dependencies: ['config', 'auth'] },

@@ -117,7 +117,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   // Before any plugin that adds routes, so the OpenAPI document sees them all (/metrics too).
   await app.register(swaggerPlugin)
   await app.register(metricsPlugin)
-  await app.register(authPlugin)
+  await app.register(authPlugin, { redis: deps.rateLimitRedis })
   await app.register(rateLimitPlugin, { redis: deps.rateLimitRedis })
   await app.register(historyPlugin, { histories: deps.histories })
   await app.register(idempotencyPlugin, { store: deps.idempotency })

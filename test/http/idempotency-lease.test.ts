@@ -8,6 +8,7 @@ import { IdempotencyStore } from '../../src/storage/erp/idempotency-store.js'
 import { HistoryStore } from '../../src/storage/histories/history-store.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, auth, testConfig } from './gateway-double.js'
+import { buildHostileApp, type HostileApp } from './hostile-helpers.js'
 
 /**
  * Issue 14 finding 7: an in-flight Idempotency-Key is a lease its request
@@ -95,5 +96,43 @@ describe('Idempotency-Key lease', () => {
     expect(await store.get('garden', 'taken-key')).toEqual({ state: 'pending' })
     expect(await store.complete('garden', 'taken-key', fresh, { ...answer, body: 'fresh' })).toBe(true)
     expect(await store.get('garden', 'taken-key')).toMatchObject({ state: 'done', body: 'fresh' })
+  })
+})
+
+describe('Idempotency-Key and answers that depend on stored state (finding 15)', () => {
+  // The real run gateway (without workers): runs over stored histories need it.
+  let h: HostileApp
+  beforeAll(async () => {
+    h = await buildHostileApp('idempotency-state')
+  })
+  afterAll(() => h?.close())
+  // Before the fix the 400 "no stored history" was kept for 24 h: the retry after storing the
+  // history got the old 400 again, marked as reused (seen failing).
+  it('does not keep a 400 for a SKU without a stored history: the retry after storing it runs', async () => {
+    const body = { horizon: 2, frequency: 'month', scope: { skus: ['FIREWOOD-20KG'] } }
+    const post = () => h.app.inject({ method: 'POST', url: '/v1/runs', headers: { ...auth(KEY_GARDEN), 'idempotency-key': 'scope-key' }, payload: body })
+    const first = await post()
+    expect(first.statusCode).toBe(400)
+    expect(first.json().errors).toEqual([{ path: 'scope.skus[0]', message: 'no stored history for SKU "FIREWOOD-20KG"' }])
+    const put = await h.app.inject({
+      method: 'PUT',
+      url: '/v1/skus/FIREWOOD-20KG/history',
+      headers: auth(KEY_GARDEN),
+      payload: { frequency: 'month', firstPeriod: '2025-01', demand: [5, 6, 7, 8] },
+    })
+    expect(put.statusCode).toBe(201)
+    const retry = await post()
+    expect(retry.statusCode).toBe(202)
+    expect(retry.headers['almanac-reused-answer']).toBeUndefined()
+    expect((await post()).headers['almanac-reused-answer']).toBe('true')
+  })
+
+  it('still keeps and replays a refusal of the request itself', async () => {
+    const bad = { horizon: 0, series: [{ sku: 'X', demand: [1] }] }
+    const post = () => h.app.inject({ method: 'POST', url: '/v1/runs', headers: { ...auth(KEY_GARDEN), 'idempotency-key': 'bad-body-key' }, payload: bad })
+    expect((await post()).statusCode).toBe(400)
+    const again = await post()
+    expect(again.statusCode).toBe(400)
+    expect(again.headers['almanac-reused-answer']).toBe('true')
   })
 })

@@ -23,6 +23,8 @@ interface IdempotencyState {
   /** Known up front for JSON bodies; for streamed bodies once the stream ended. */
   hash: string | null
   settled: boolean
+  /** False once the answer turned out to depend on stored state (see keptForReplay). */
+  replayable: boolean
 }
 
 /** Visible ASCII, 1-255 characters. */
@@ -36,8 +38,8 @@ export const REUSED_ANSWER_HEADER = 'almanac-reused-answer'
  * method, URL (with query), content type and body; a later request with the
  * same key and hash gets that answer again with `Almanac-Reused-Answer: true`,
  * one with another hash a 422 `idempotency-key-reused`, and one arriving while
- * the first is still in flight a 409 `idempotency-key-in-use`. A 5xx answer
- * frees the key. While in flight the key is a lease the request renews; if the
+ * the first is still in flight a 409 `idempotency-key-in-use`. A 5xx answer,
+ * or a 4xx a later attempt could pass (keptForReplay), frees the key. While in flight the key is a lease the request renews; if the
  * server dies, renewals stop and the key frees itself within one lease. JSON bodies are hashed as parsed (JSON.stringify, so
  * whitespace does not matter but key order does); streamed CSV/NDJSON bodies
  * are hashed as their bytes pass to the parser.
@@ -80,7 +82,7 @@ export default fp<{ store?: IdempotencyStore }>(
         )
       }, Math.max(1, Math.floor(store.leaseMs / 3)))
       renewal.unref()
-      const state: IdempotencyState = { key, lease, renewal, hash: null, settled: false }
+      const state: IdempotencyState = { key, lease, renewal, hash: null, settled: false, replayable: true }
       request.idempotency = state
       if (!streamed) {
         state.hash = hash.update(JSON.stringify(request.body ?? null)).digest('hex')
@@ -101,13 +103,17 @@ export default fp<{ store?: IdempotencyStore }>(
       request.body = source.pipe(tap)
     })
 
+    app.addHook('onError', async (request, _reply, error) => {
+      if (request.idempotency && error instanceof ProblemError && error.opts.dependsOnState === true) request.idempotency.replayable = false
+    })
+
     app.addHook('onSend', async (request, reply, payload) => {
       const state = request.idempotency
       if (!state || state.settled || store === null) return payload
       state.settled = true
       clearInterval(state.renewal)
       try {
-        if (reply.statusCode >= 500 || state.hash === null || typeof payload !== 'string') {
+        if (!keptForReplay(reply.statusCode, state) || state.hash === null || typeof payload !== 'string') {
           await store.release(request.tenant, state.key, state.lease)
         } else {
           const kept = await store.complete(request.tenant, state.key, state.lease, {
@@ -136,6 +142,18 @@ export default fp<{ store?: IdempotencyStore }>(
   },
   { name: 'idempotency', dependencies: ['config', 'auth'] },
 )
+
+/**
+ * Answers kept for replay: successes, and refusals that only the request
+ * itself caused (invalid body, too large, wrong type), since sending it again
+ * would be refused again. Not kept: 5xx, and 4xx a later attempt could pass
+ * without changing the request: not found, conflicts and limits (404, 409),
+ * rate limits (429), and any problem that says it depends on stored state.
+ */
+function keptForReplay(status: number, state: IdempotencyState): boolean {
+  if (status >= 500 || !state.replayable) return false
+  return status < 400 || ![401, 403, 404, 408, 409, 423, 425, 429].includes(status)
+}
 
 function replay(reply: FastifyReply, answer: { status: number; contentType: string | null; location: string | null; body: string }) {
   reply.code(answer.status).header(REUSED_ANSWER_HEADER, 'true')

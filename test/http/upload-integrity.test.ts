@@ -186,3 +186,36 @@ describe('finding 5: SKUs that are not well-formed Unicode', () => {
     })
   })
 })
+
+describe('finding 12: long SKUs by path', () => {
+  // Before the fix a SKU of 101-200 characters was stored but its path answered 404 "No route" (seen failing).
+  it('a SKU of any accepted length is readable by path; a longer one is a 400 naming sku', async () => {
+    // Characters of 1 and 2 UTF-16 units (the limit counts units), some percent-encoded in the path.
+    const char = fc.constantFrom('A', 'z', '7', '-', '/', 'Ä', '€', '🌱')
+    await fc.assert(
+      fc.asyncProperty(fc.integer({ min: 2, max: 200 }), char, async (length, c) => {
+        const sku = c.repeat(Math.floor(length / c.length))
+        const path = `/v1/skus/${encodeURIComponent(sku)}/history`
+        const put = await h.app.inject({ method: 'PUT', url: path, headers: auth(KEY_GARDEN), payload: { frequency: 'year', firstPeriod: '2024', demand: [length] } })
+        expect([200, 201]).toContain(put.statusCode)
+        expect(await history(sku)).toMatchObject({ sku, demand: [length] })
+      }),
+      { numRuns: 60 },
+    )
+    const tooLong = await h.app.inject({ url: `/v1/skus/${'x'.repeat(201)}/history`, headers: auth(KEY_GARDEN) })
+    expect(tooLong.statusCode).toBe(400)
+    expect(tooLong.json().errors).toEqual([{ path: 'sku', message: expect.stringContaining('200') }])
+  })
+
+  it('a SKU of 101-200 characters stored by upload is read back by path', async () => {
+    const sku = 'GREENHOUSE-FILM-'.padEnd(180, 'Z')
+    const res = await h.app.inject({
+      method: 'POST',
+      url: '/v1/history',
+      headers: auth(KEY_GARDEN),
+      payload: { series: [{ sku, firstPeriod: '2025-01', demand: [3] }] },
+    })
+    expect(res.json().skus.created).toBe(1)
+    expect(await history(sku)).toMatchObject({ sku, demand: [3] })
+  })
+})

@@ -63,6 +63,9 @@ export const ConfigSchema = z.object({
   /** Requests per tenant per window. */
   RATE_LIMIT_MAX: intFromEnv(600, 1, 1_000_000),
   RATE_LIMIT_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
+  /** Failed authentications per client address per window before further attempts get 429. */
+  AUTH_FAILURE_MAX: intFromEnv(20, 1, 1_000_000),
+  AUTH_FAILURE_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   /** Callback delivery: attempts in all, first retry delay (doubling after), per-request timeout. */
   CALLBACK_ATTEMPTS: intFromEnv(5, 1, 20),
@@ -119,6 +122,10 @@ export interface Config {
   readonly syncMaxSeries: number
   readonly rateLimitMax: number
   readonly rateLimitWindowMs: number
+  /** Failed authentications per client address per window; default 20 when absent. */
+  readonly authFailureMax?: number
+  /** Window of authFailureMax; default 60000 when absent. */
+  readonly authFailureWindowMs?: number
   readonly logLevel: z.infer<typeof ConfigSchema>['LOG_LEVEL']
   /** Callback delivery attempts; default 5 when absent. */
   readonly callbackAttempts?: number
@@ -223,6 +230,8 @@ export function loadConfig(
     syncMaxSeries: e.SYNC_MAX_SERIES,
     rateLimitMax: e.RATE_LIMIT_MAX,
     rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,
+    authFailureMax: e.AUTH_FAILURE_MAX,
+    authFailureWindowMs: e.AUTH_FAILURE_WINDOW_MS,
     logLevel: e.LOG_LEVEL,
     callbackAttempts: e.CALLBACK_ATTEMPTS,
     callbackBackoffMs: e.CALLBACK_BACKOFF_MS,

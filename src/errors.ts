@@ -67,6 +67,12 @@ export class ProblemError extends Error {
     readonly errors?: readonly FieldError[],
     /** Extra response headers, e.g. `WWW-Authenticate` or `Retry-After`. */
     readonly headers: Readonly<Record<string, string>> = {},
+    /**
+     * dependsOnState: the same request could succeed once stored data changes
+     * (e.g. a SKU without a stored history), so the answer is not kept for
+     * Idempotency-Key replay.
+     */
+    readonly opts: { readonly dependsOnState?: boolean } = {},
   ) {
     super(detail ?? PROBLEM_TYPES[slug].title)
     this.statusCode = PROBLEM_TYPES[slug].status

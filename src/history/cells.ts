@@ -1,4 +1,4 @@
-import { MAX_ABS_VALUE } from '../schemas/run.js'
+import { MAX_ABS_VALUE, SKU_PATTERN } from '../schemas/run.js'
 
 /** A plain decimal number: optional sign, digits, optional fraction and exponent. No hex, no Infinity. */
 const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/
@@ -18,11 +18,12 @@ export function parseDemand(cell: string): { value: number } | { reason: string 
   return { value }
 }
 
-/** Same rule as the Sku schema: 1-200 characters, no control characters. Surrounding blanks are trimmed. */
+/** Same rule as the Sku schema: 1-200 characters, no control characters, well-formed Unicode. Surrounding blanks are trimmed. */
 export function parseSku(cell: string): { sku: string } | { reason: string } {
   const sku = cell.trim()
   if (sku === '') return { reason: 'SKU is empty' }
   if (sku.length > 200) return { reason: 'SKU is longer than 200 characters' }
   if (/[\u0000-\u001f\u007f]/.test(sku)) return { reason: 'SKU contains control characters' }
+  if (!SKU_PATTERN.test(sku)) return { reason: 'SKU contains a lone UTF-16 surrogate (not well-formed Unicode)' }
   return { sku }
 }

@@ -1,5 +1,5 @@
 import type { Readable } from 'node:stream'
-import { parse } from 'csv-parse'
+import { CsvError, parse } from 'csv-parse'
 import type { HistoryAccumulator } from './accumulator.js'
 import { bucketOf } from './buckets.js'
 import { parseDemand, parseSku } from './cells.js'
@@ -30,10 +30,16 @@ const MAX_RECORD_CHARS = 64 * 1024
 
 /**
  * Read a long-layout CSV (a header row, then one `sku, period, demand` row
- * per line; other columns are ignored) into the accumulator, incrementally:
+ * per line; other header columns are ignored) into the accumulator, incrementally:
  * records are parsed and aggregated as the bytes arrive (RFC 4180 quoting by csv-parse).
  * Each bad row is recorded with its line number, column and reason; good rows are kept.
- * @throws UploadFormatError when the header lacks a required column or the file is empty
+ * A row with more cells than the header is refused: an unquoted `1,000` would otherwise
+ * lose its thousands.
+ * A record the parser cannot delimit (over-long, or broken quoting) refuses the whole
+ * upload: past such a record csv-parse cannot tell where the next one starts, and
+ * skipping would drop the following rows without counting them.
+ * @throws UploadFormatError when the header lacks a required column, the file is empty
+ *   or a record cannot be delimited
  */
 export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: HistoryAccumulator): Promise<void> {
   const parser = parse({
@@ -41,19 +47,26 @@ export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: Hi
     bom: true,
     relax_column_count: true,
     skip_empty_lines: true,
-    skip_records_with_error: true,
     max_record_size: MAX_RECORD_CHARS,
     info: true,
   })
-  parser.on('skip', (err: Error & { lines?: number }) => {
-    acc.errors.add({ ...(err.lines === undefined ? {} : { line: err.lines }), reason: `unreadable CSV record: ${err.message}` })
-  })
   source.on('error', (err) => parser.destroy(err))
   source.pipe(parser)
+  try {
+    await readRecords(parser as AsyncIterable<{ record: string[]; info: { lines: number } }>, layout, acc)
+  } catch (err) {
+    throw unreadable(err)
+  }
+}
 
+async function readRecords(
+  records: AsyncIterable<{ record: string[]; info: { lines: number } }>,
+  layout: CsvLayout,
+  acc: HistoryAccumulator,
+): Promise<void> {
   let columns: { sku: number; period: number; demand: number } | null = null
   let names: readonly string[] = []
-  for await (const entry of parser as AsyncIterable<{ record: string[]; info: { lines: number } }>) {
+  for await (const entry of records) {
     const { record, info } = entry
     const line = info.lines
     if (columns === null) {
@@ -63,6 +76,13 @@ export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: Hi
         period: findColumn(names, layout.periodColumn, 'periodColumn'),
         demand: findColumn(names, layout.demandColumn, 'demandColumn'),
       }
+      continue
+    }
+    if (record.length > names.length) {
+      acc.errors.add({
+        line,
+        reason: `the row has ${record.length} fields but the header has ${names.length} (a thousands separator, or a delimiter in an unquoted cell?)`,
+      })
       continue
     }
     const need = Math.max(columns.sku, columns.period, columns.demand)
@@ -88,6 +108,18 @@ export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: Hi
     acc.addRow(sku.sku, bucket.ordinal, demand.value, { line })
   }
   if (columns === null) throw new UploadFormatError('the CSV upload is empty: expected a header row', 'body')
+}
+
+/** A csv-parse error (it carries the line where the record broke) as a refusal of the upload. */
+function unreadable(err: unknown): unknown {
+  if (!(err instanceof CsvError)) return err
+  const lines = (err as { lines?: unknown }).lines
+  const at = typeof lines === 'number' ? ` near line ${lines}` : ''
+  const why =
+    err.code === 'CSV_MAX_RECORD_SIZE'
+      ? `a record is longer than ${MAX_RECORD_CHARS} characters (wrong delimiter, or an unclosed quote?)`
+      : `the CSV cannot be read (${err.message})`
+  return new UploadFormatError(`${why}${at}; nothing was stored`, 'body')
 }
 
 function findColumn(names: readonly string[], wanted: string, param: string): number {

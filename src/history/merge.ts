@@ -1,5 +1,6 @@
 import { formatPeriod, parsePeriod } from '../engine/index.js'
 import { MAX_POINTS_PER_SERIES } from '../schemas/run.js'
+import { lastPeriodOf } from './period-range.js'
 import type { HistoryData, IncomingHistory, UploadMode } from './types.js'
 
 /**
@@ -12,9 +13,22 @@ import type { HistoryData, IncomingHistory, UploadMode } from './types.js'
  *    The frequencies must match.
  *
  * Tags: incoming tags replace the stored ones; absent, the stored tags stay.
- * @returns the merged history, or why the SKU is refused (the stored history then stays as it was)
+ * @returns the merged history, or why the SKU is refused (the stored history then stays as it was),
+ *   e.g. when it would end after year 9999
  */
 export function mergeHistory(
+  current: HistoryData | null,
+  incoming: IncomingHistory,
+  mode: UploadMode,
+): { data: HistoryData } | { reason: string } {
+  const merged = mergeRanges(current, incoming, mode)
+  if ('reason' in merged) return merged
+  const { frequency, firstPeriod, demand } = merged.data
+  const last = lastPeriodOf(parsePeriod(firstPeriod, frequency), demand.length, frequency)
+  return 'reason' in last ? last : merged
+}
+
+function mergeRanges(
   current: HistoryData | null,
   incoming: IncomingHistory,
   mode: UploadMode,

@@ -66,6 +66,14 @@ export const DEFAULT_REQUEST_TIMEOUT_MS = 120_000
 
 const CLIENT_REQUEST_ID = /^[A-Za-z0-9._-]{1,64}$/
 
+/**
+ * Longest path parameter the router matches, in characters after decoding. Above
+ * every id and SKU a route accepts (SKUs: 200), so an over-long one reaches the
+ * route's schema and gets a 400 naming the field; the router's default (100)
+ * made SKUs of 101-200 characters storable but unreadable by path.
+ */
+const MAX_PATH_PARAM_CHARS = 1000
+
 /** The HTTP app, ready for inject() or listen(); never listens itself. */
 export async function build(deps: AppDeps): Promise<FastifyInstance> {
   const { config } = deps
@@ -73,6 +81,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   const app = Fastify({
     loggerInstance: (deps.logger ?? createLogger({ level: 'silent' })) as FastifyBaseLogger,
     bodyLimit: config.bodyLimitBytes,
+    maxParamLength: MAX_PATH_PARAM_CHARS,
     // Slow clients (a trickled body, half-sent headers) get a 408 and are cut off.
     requestTimeout: requestTimeoutMs,
     http: {
@@ -117,7 +126,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   // Before any plugin that adds routes, so the OpenAPI document sees them all (/metrics too).
   await app.register(swaggerPlugin)
   await app.register(metricsPlugin)
-  await app.register(authPlugin)
+  await app.register(authPlugin, { redis: deps.rateLimitRedis })
   await app.register(rateLimitPlugin, { redis: deps.rateLimitRedis })
   await app.register(historyPlugin, { histories: deps.histories })
   await app.register(idempotencyPlugin, { store: deps.idempotency })

@@ -13,8 +13,8 @@ import type { ResultItem, ResultPage, RunRecord } from '../runs/contract.js'
  * (`code: message`).
  *
  * Spreadsheet formula injection (OWASP "CSV Injection"; common practice): a
- * text cell (sku, model, failure) starting with `=`, `+`, `-`, `@`, tab or CR is
- * prefixed with `'`. Numeric cells are written as numbers and never changed,
+ * text cell (sku, model, failure) starting with `=`, `+`, `-`, `@` (after any
+ * leading whitespace), tab or CR is prefixed with `'`. Numeric cells are written as numbers and never changed,
  * so `-3.5` stays a negative number.
  */
 
@@ -37,7 +37,11 @@ export function prefersCsv(accept: string | undefined): boolean {
   return csv > 0 && csv >= json
 }
 
-const FORMULA_START = /^[=+\-@\t\r]/
+/**
+ * Tab or CR first, or a formula sign after any leading whitespace (spreadsheets
+ * skip blanks, no-break spaces included, before looking for `=`).
+ */
+const FORMULA_START = /^(?:[\t\r]|\s*[=+\-@])/
 
 /** A text cell: neutralised against formula injection, quoted when needed. */
 export function textCell(value: string): string {

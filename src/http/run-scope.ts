@@ -15,7 +15,8 @@ export async function submitStoredScope(app: FastifyInstance, tenant: string, se
   if ('skus' in scope) {
     const histories = requireHistories(app)
     const bad = await scopeSkuErrors(scope.skus, (skus) => histories.missing(tenant, skus))
-    if (bad) throw new ProblemError('validation-failed', bad.summary, bad.errors)
+    // Not kept for Idempotency-Key replay: storing the missing histories makes the same request valid.
+    if (bad) throw new ProblemError('validation-failed', bad.summary, bad.errors, {}, { dependsOnState: true })
   }
   return (await app.gateway.submitScope(tenant, settings, scope)).record
 }

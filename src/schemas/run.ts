@@ -26,8 +26,12 @@ export const DemandValue = z
   .max(MAX_ABS_VALUE, 'must be between -1e15 and 1e15')
   .nullable()
 
-/** A SKU has no control characters (C0 and DEL). */
-export const SKU_PATTERN = /^[^\u0000-\u001f\u007f]+$/
+/**
+ * A SKU has no control characters (C0 and DEL) and is well-formed Unicode: a
+ * lone UTF-16 surrogate (JSON allows "\ud800") becomes U+FFFD when stored as
+ * UTF-8, so two different SKUs would collide in storage.
+ */
+export const SKU_PATTERN = /^(?:[^\u0000-\u001f\u007f\ud800-\udfff]|[\ud800-\udbff][\udc00-\udfff])+$/
 /** Period labels: 2024, 2024-Q2, 2024-03, 2024-W09 or 2024-03-05. */
 export const PERIOD_PATTERN = /^\d{4}(-(Q[1-4]|W\d{2}|\d{2}(-\d{2})?))?$/
 
@@ -35,7 +39,7 @@ export const Sku = z
   .string()
   .min(1)
   .max(200)
-  .regex(SKU_PATTERN, 'must not contain control characters')
+  .regex(SKU_PATTERN, 'must not contain control characters or lone UTF-16 surrogates')
   .describe('Stock-keeping unit code, unique within the tenant')
 
 export const PeriodLabel = z

@@ -1,3 +1,4 @@
+import fc from 'fast-check'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { parse } from 'csv-parse/sync'
 import type { FastifyInstance } from 'fastify'
@@ -106,5 +107,18 @@ describe('CSV helpers', () => {
     ])
     expect(textCell('a,"b"')).toBe('"a,""b"""')
     expect(textCell('HOSE-25M')).toBe('HOSE-25M')
+  })
+
+  // Issue 14 finding 13. Before the fix " =1+1" and "\u00a0=1+1" went out unchanged (seen failing).
+  it('textCell neutralises a formula sign after any leading whitespace, no-break spaces included', () => {
+    const blank = fc.constantFrom(' ', '\u00a0', '\u2007', '\u202f', '\u3000', '\ufeff', '\t', '\n', '\v', '\f')
+    fc.assert(
+      fc.property(fc.array(blank, { maxLength: 4 }), fc.constantFrom('=', '+', '-', '@'), fc.string({ maxLength: 10 }), (blanks, sign, rest) => {
+        const cell = textCell(blanks.join('') + sign + rest)
+        expect(cell.startsWith("'") || cell.startsWith(`"'`)).toBe(true)
+      }),
+      { numRuns: 500 },
+    )
+    expect(textCell(' 12 pipes')).toBe(' 12 pipes')
   })
 })

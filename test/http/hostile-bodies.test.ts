@@ -286,13 +286,13 @@ describe('fixed hostile bodies', () => {
     expect(intervals.json().errors.length).toBeLessThanOrEqual(100)
   })
 
-  it('empty, 10 KB and control-character SKU codes are refused by field; unicode SKUs are fine', async () => {
-    for (const sku of ['', 'x'.repeat(10_240), 'A\u0000B', 'tab\there']) {
+  it('empty, 10 KB, control-character and lone-surrogate SKU codes are refused by field; unicode SKUs are fine', async () => {
+    for (const sku of ['', 'x'.repeat(10_240), 'A\u0000B', 'tab\there', 'a\ud800b']) {
       const res = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku, demand: [1, 2, 3] }] }))
       expect(res.statusCode).toBe(400)
       expect(res.json().errors[0].path).toBe('series[0].sku')
     }
-    for (const sku of ['Gießkanne-ÄÖÜ', 'مجرفة-٤٢', '\u202eRTL', '🌱-seeds', 'a\ud800b']) {
+    for (const sku of ['Gießkanne-ÄÖÜ', 'مجرفة-٤٢', '\u202eRTL', '🌱-seeds']) {
       const res = await send('POST', '/v1/runs', JSON.stringify({ horizon: 3, series: [{ sku, demand: [1, 2, 3] }] }))
       expect(res.statusCode, sku).toBe(202)
     }

@@ -7,9 +7,9 @@ import { isSeriesItem, parseRunSubmissionFast } from '../../src/schemas/series-c
  * The plain check must never vouch for something the schema would refuse or
  * change: whenever it says yes, zod accepts the same value and returns an equal
  * one. Generated near-misses probe every rule (lengths, control characters,
- * value range, period labels, frequencies, season lengths, unknown keys).
+ * lone surrogates, value range, period labels, frequencies, season lengths, unknown keys).
  */
-const sku = fc.oneof(fc.string({ minLength: 1, maxLength: 12 }), fc.constantFrom('', 'a\u0007b', 'x'.repeat(200), 'x'.repeat(201), 'tab\tsku'), fc.integer())
+const sku = fc.oneof(fc.string({ minLength: 1, maxLength: 12 }), fc.constantFrom('', 'a\u0007b', 'x'.repeat(200), 'x'.repeat(201), 'tab\tsku', '\ud800', 'a\udc00b', '\ud83d\ude00', '\ude00\ud83d'), fc.integer())
 const value = fc.oneof(
   fc.double(),
   fc.constant(null),

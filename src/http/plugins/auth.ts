@@ -2,6 +2,8 @@ import { createHash, timingSafeEqual } from 'node:crypto'
 import fp from 'fastify-plugin'
 import type { FastifyRequest } from 'fastify'
 import { ProblemError } from '../../errors.js'
+import { MemoryAuthFailureCounts, RedisAuthFailureCounts, type AuthFailureCounts } from '../../storage/auth-failures.js'
+import type { RedisClient } from '../../storage/redis.js'
 
 export const DEFAULT_TENANT = 'default'
 
@@ -22,9 +24,30 @@ function isPublic(request: FastifyRequest): boolean {
  * SHA-256 and compared with every configured digest in constant time, so
  * neither the match nor its position leaks through timing.
  * Without configured keys every request is tenant `default`.
+ *
+ * Failed attempts (no key, or a wrong one) are counted per client address
+ * (`request.ip`: the socket's peer unless fastify's trustProxy is set): past
+ * authFailureMax in a window, that address gets 429 without its key being
+ * checked, so guessing keys is throttled. The per-tenant rate limit cannot do
+ * this, as it only runs once the tenant is known. If Redis fails, the count is
+ * skipped and the request goes on (as the rate limit does).
  */
-export default fp(
-  async (app) => {
+export default fp<{ redis?: RedisClient }>(
+  async (app, opts) => {
+    const max = app.config.authFailureMax ?? 20
+    const windowMs = app.config.authFailureWindowMs ?? 60_000
+    const failures: AuthFailureCounts = opts.redis
+      ? new RedisAuthFailureCounts(opts.redis, { prefix: app.config.redisPrefix, windowMs })
+      : new MemoryAuthFailureCounts(windowMs)
+    const guarded = async <T>(what: string, request: FastifyRequest, op: () => Promise<T>): Promise<T | null> => {
+      try {
+        return await op()
+      } catch (err) {
+        request.log.warn({ err }, `could not ${what} failed authentications`)
+        return null
+      }
+    }
+
     const entries: KeyEntry[] = []
     for (const [tenant, digests] of app.config.apiKeys) {
       for (const hex of digests) entries.push({ tenant, digest: Buffer.from(hex, 'hex') })
@@ -40,8 +63,20 @@ export default fp(
         return
       }
       if (isPublic(request)) return
+      const address = request.ip
+      const seen = await guarded('read', request, () => failures.current(address))
+      if (seen !== null && seen.count >= max) {
+        const retryAfter = Math.max(1, Math.ceil(seen.resetMs / 1000))
+        throw new ProblemError(
+          'rate-limited',
+          `Too many failed authentications from this address (at most ${max} per ${Math.round(windowMs / 1000)} s); retry in ${retryAfter} s`,
+          undefined,
+          { 'retry-after': String(retryAfter) },
+        )
+      }
       const match = /^Bearer +(\S+) *$/i.exec(request.headers.authorization ?? '')
       if (!match) {
+        await guarded('count', request, () => failures.record(address))
         throw new ProblemError('unauthorized', 'Send an API key as Authorization: Bearer <key>', undefined, {
           'www-authenticate': 'Bearer realm="almanac"',
         })
@@ -53,6 +88,7 @@ export default fp(
         if (equal && tenant === undefined) tenant = entry.tenant
       }
       if (tenant === undefined) {
+        await guarded('count', request, () => failures.record(address))
         throw new ProblemError('unauthorized', 'The API key is not valid', undefined, {
           'www-authenticate': 'Bearer realm="almanac", error="invalid_token"',
         })

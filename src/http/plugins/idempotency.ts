@@ -3,7 +3,7 @@ import { Readable, Transform } from 'node:stream'
 import fp from 'fastify-plugin'
 import type { FastifyReply, FastifyRequest } from 'fastify'
 import { ProblemError } from '../../errors.js'
-import type { IdempotencyStore } from '../../storage/erp/idempotency-store.js'
+import type { IdempotencyStore, Lease } from '../../storage/erp/idempotency-store.js'
 
 declare module 'fastify' {
   interface FastifyContextConfig {
@@ -17,9 +17,14 @@ declare module 'fastify' {
 
 interface IdempotencyState {
   readonly key: string
+  readonly lease: Lease
+  /** Renews the lease while the request works; cleared when it settles. */
+  readonly renewal: NodeJS.Timeout
   /** Known up front for JSON bodies; for streamed bodies once the stream ended. */
   hash: string | null
   settled: boolean
+  /** False once the answer turned out to depend on stored state (see keptForReplay). */
+  replayable: boolean
 }
 
 /** Visible ASCII, 1-255 characters. */
@@ -33,8 +38,9 @@ export const REUSED_ANSWER_HEADER = 'almanac-reused-answer'
  * method, URL (with query), content type and body; a later request with the
  * same key and hash gets that answer again with `Almanac-Reused-Answer: true`,
  * one with another hash a 422 `idempotency-key-reused`, and one arriving while
- * the first is still in flight a 409 `idempotency-key-in-use`. A 5xx answer
- * frees the key. JSON bodies are hashed as parsed (JSON.stringify, so
+ * the first is still in flight a 409 `idempotency-key-in-use`. A 5xx answer,
+ * or a 4xx a later attempt could pass (keptForReplay), frees the key. While in flight the key is a lease the request renews; if the
+ * server dies, renewals stop and the key frees itself within one lease. JSON bodies are hashed as parsed (JSON.stringify, so
  * whitespace does not matter but key order does); streamed CSV/NDJSON bodies
  * are hashed as their bytes pass to the parser.
  */
@@ -56,7 +62,8 @@ export default fp<{ store?: IdempotencyStore }>(
       const hash = createHash('sha256').update(`${request.method} ${request.url}\n${request.headers['content-type'] ?? ''}\n`)
       const existing = await store.get(request.tenant, key)
       // A streamed body left unread: close the connection rather than drain it.
-      const unread: Record<string, string> = streamed ? { connection: 'close' } : {}
+      // Retry-After: a key left by a crashed server is free within one lease.
+      const unread: Record<string, string> = { 'retry-after': String(Math.ceil(store.leaseMs / 1000)), ...(streamed ? { connection: 'close' } : {}) }
       if (existing?.state === 'pending') throw inUse(unread)
       if (existing?.state === 'done') {
         const digest = streamed
@@ -65,8 +72,17 @@ export default fp<{ store?: IdempotencyStore }>(
         if (digest !== existing.hash) throw reused()
         return replay(reply, existing)
       }
-      if (!(await store.claim(request.tenant, key))) throw inUse(unread)
-      const state: IdempotencyState = { key, hash: null, settled: false }
+      const lease = await store.claim(request.tenant, key)
+      if (lease === null) throw inUse(unread)
+      const tenant = request.tenant
+      const renewal = setInterval(() => {
+        store.renew(tenant, key, lease).then(
+          (held) => held || request.log.warn('idempotency lease lost while the request was in flight'),
+          (err: unknown) => request.log.warn({ err }, 'could not renew the idempotency lease'),
+        )
+      }, Math.max(1, Math.floor(store.leaseMs / 3)))
+      renewal.unref()
+      const state: IdempotencyState = { key, lease, renewal, hash: null, settled: false, replayable: true }
       request.idempotency = state
       if (!streamed) {
         state.hash = hash.update(JSON.stringify(request.body ?? null)).digest('hex')
@@ -87,21 +103,27 @@ export default fp<{ store?: IdempotencyStore }>(
       request.body = source.pipe(tap)
     })
 
+    app.addHook('onError', async (request, _reply, error) => {
+      if (request.idempotency && error instanceof ProblemError && error.opts.dependsOnState === true) request.idempotency.replayable = false
+    })
+
     app.addHook('onSend', async (request, reply, payload) => {
       const state = request.idempotency
       if (!state || state.settled || store === null) return payload
       state.settled = true
+      clearInterval(state.renewal)
       try {
-        if (reply.statusCode >= 500 || state.hash === null || typeof payload !== 'string') {
-          await store.release(request.tenant, state.key)
+        if (!keptForReplay(reply.statusCode, state) || state.hash === null || typeof payload !== 'string') {
+          await store.release(request.tenant, state.key, state.lease)
         } else {
-          await store.complete(request.tenant, state.key, {
+          const kept = await store.complete(request.tenant, state.key, state.lease, {
             hash: state.hash,
             status: reply.statusCode,
             contentType: headerText(reply.getHeader('content-type')),
             location: headerText(reply.getHeader('location')),
             body: payload,
           })
+          if (!kept) request.log.warn('idempotency lease lost before the answer: it is not kept for replay')
         }
       } catch (err) {
         request.log.error({ err }, 'could not record the idempotency key')
@@ -114,11 +136,24 @@ export default fp<{ store?: IdempotencyStore }>(
       const state = request.idempotency
       if (!state || state.settled || store === null) return
       state.settled = true
-      await store.release(request.tenant, state.key).catch((err) => request.log.error({ err }, 'could not free the idempotency key'))
+      clearInterval(state.renewal)
+      await store.release(request.tenant, state.key, state.lease).catch((err) => request.log.error({ err }, 'could not free the idempotency key'))
     })
   },
   { name: 'idempotency', dependencies: ['config', 'auth'] },
 )
+
+/**
+ * Answers kept for replay: successes, and refusals that only the request
+ * itself caused (invalid body, too large, wrong type), since sending it again
+ * would be refused again. Not kept: 5xx, and 4xx a later attempt could pass
+ * without changing the request: not found, conflicts and limits (404, 409),
+ * rate limits (429), and any problem that says it depends on stored state.
+ */
+function keptForReplay(status: number, state: IdempotencyState): boolean {
+  if (status >= 500 || !state.replayable) return false
+  return status < 400 || ![401, 403, 404, 408, 409, 423, 425, 429].includes(status)
+}
 
 function replay(reply: FastifyReply, answer: { status: number; contentType: string | null; location: string | null; body: string }) {
   reply.code(answer.status).header(REUSED_ANSWER_HEADER, 'true')

@@ -141,7 +141,7 @@ describe('POST /v1/forecast (real engine)', () => {
             "path": "series[1].sku",
           },
           {
-            "message": "must not contain control characters",
+            "message": "must not contain control characters or lone UTF-16 surrogates",
             "path": "series[1].sku",
           },
           {

@@ -2,6 +2,7 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { formatPeriod, parsePeriod } from '../../../engine/index.js'
 import { ProblemError } from '../../../errors.js'
 import { firstPeriodLabel } from '../../../history/buckets.js'
+import { lastPeriodOf } from '../../../history/period-range.js'
 import { normaliseTags } from '../../../history/tags.js'
 import { HistoryBody, HistoryResource } from '../../../schemas/history.js'
 import { SkuParams } from '../../../schemas/params.js'
@@ -46,11 +47,15 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       const { sku } = request.params
       const { frequency, demand, tags } = request.body
       const firstPeriod = firstPeriodLabel(request.body.firstPeriod, frequency)
+      let firstOrdinal: number
       try {
-        parsePeriod(firstPeriod, frequency)
+        firstOrdinal = parsePeriod(firstPeriod, frequency)
       } catch (err) {
         throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'firstPeriod', message: (err as Error).message }])
       }
+      // Checked before writing: a history without a last label would be stored and then unreadable.
+      const last = lastPeriodOf(firstOrdinal, demand.length, frequency)
+      if ('reason' in last) throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'demand', message: last.reason }])
       const normalised = normaliseTags(tags ?? [])
       if ('reason' in normalised) {
         throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'tags', message: normalised.reason }])

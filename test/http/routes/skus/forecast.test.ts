@@ -62,6 +62,6 @@ describe('GET /v1/skus/{sku}/forecast', () => {
   it('rejects a SKU with control characters', async () => {
     const res = await app.inject({ url: '/v1/skus/A%01B/forecast', headers: auth(KEY_GARDEN) })
     expect(res.statusCode).toBe(400)
-    expect(res.json().errors).toEqual([{ path: 'sku', message: 'must not contain control characters' }])
+    expect(res.json().errors).toEqual([{ path: 'sku', message: 'must not contain control characters or lone UTF-16 surrogates' }])
   })
 })

@@ -28,6 +28,9 @@ export const PROBLEM_TYPES = {
 
 export type ProblemSlug = keyof typeof PROBLEM_TYPES
 
+/** Most field errors listed in one response; validation stops looking after them. */
+export const MAX_FIELD_ERRORS = 100
+
 /** One offending field: `series[3].values[2]` and what is wrong with it. */
 export interface FieldError {
   readonly path: string

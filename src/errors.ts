@@ -19,6 +19,7 @@ export const PROBLEM_TYPES = {
   'limit-reached': { status: 409, title: 'Limit reached' },
   'payload-too-large': { status: 413, title: 'Payload too large' },
   'too-many-series': { status: 413, title: 'Too many series for a synchronous forecast' },
+  'fit-cost-too-high': { status: 413, title: 'Too much fitting work for a synchronous forecast' },
   'unsupported-media-type': { status: 415, title: 'Unsupported media type' },
   'idempotency-key-reused': { status: 422, title: 'Idempotency key reused' },
   'rate-limited': { status: 429, title: 'Too many requests' },

@@ -63,7 +63,7 @@ export interface paths {
         put?: never;
         /**
          * Forecast a few series now
-         * @description Selects and fits a model per series and answers with the forecasts. At most the configured number of series (default 100; more gives 413 too-many-series): use POST /v1/runs for more. A series the engine rejects (too short, negative demand...) comes back as an item with `failure`.
+         * @description Selects and fits a model per series and answers with the forecasts. At most the configured number of series (default 100; more gives 413 too-many-series) and fitting work (points x season length x holdout origins x candidate models, summed over the series; default at most 50,000,000, more gives 413 fit-cost-too-high): use POST /v1/runs for more. A series the engine rejects (too short, negative demand...) comes back as an item with `failure`, and so does one whose fit runs past the time limit (fit-time-limit).
          */
         post: operations["forecastSeries"];
         delete?: never;
@@ -1142,7 +1142,7 @@ export interface operations {
                     "application/problem+json": components["schemas"]["Problem"];
                 };
             };
-            /** @description Payload too large (payload-too-large); Too many series for a synchronous forecast (too-many-series) */
+            /** @description Payload too large (payload-too-large); Too many series for a synchronous forecast (too-many-series); Too much fitting work for a synchronous forecast (fit-cost-too-high) */
             413: {
                 headers: {
                     [name: string]: unknown;

@@ -66,6 +66,10 @@ export const ConfigSchema = z.object({
   SYNC_SERIES_TIMEOUT_MS: intFromEnv(10_000, 100, 600_000),
   /** Threads fitting POST /v1/forecast's series; 0: half the cores, at least one. */
   SYNC_FIT_THREADS: intFromEnv(0, 0, 256),
+  /** How long GET /metrics reuses the queue and run figures it read from Redis; 0 reads them on every scrape. */
+  METRICS_CACHE_MS: intFromEnv(5000, 0, 300_000),
+  /** When set, GET /metrics needs `Authorization: Bearer <this token>` (at least 16 characters). */
+  METRICS_TOKEN: z.string().min(16).optional(),
   /** Requests per tenant per window. */
   RATE_LIMIT_MAX: intFromEnv(600, 1, 1_000_000),
   RATE_LIMIT_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
@@ -129,6 +133,10 @@ export interface Config {
   readonly syncSeriesTimeoutMs?: number
   /** Sync-fit threads; 0 or absent: half the cores, at least one. */
   readonly syncFitThreads?: number
+  /** GET /metrics reuses Redis figures this long; default 5000 when absent. */
+  readonly metricsCacheMs?: number
+  /** Bearer token GET /metrics requires; absent: open (keep the port private). */
+  readonly metricsToken?: string
   readonly rateLimitMax: number
   readonly rateLimitWindowMs: number
   readonly logLevel: z.infer<typeof ConfigSchema>['LOG_LEVEL']
@@ -236,6 +244,8 @@ export function loadConfig(
     syncMaxCost: e.SYNC_MAX_COST,
     syncSeriesTimeoutMs: e.SYNC_SERIES_TIMEOUT_MS,
     syncFitThreads: e.SYNC_FIT_THREADS,
+    metricsCacheMs: e.METRICS_CACHE_MS,
+    ...(e.METRICS_TOKEN === undefined ? {} : { metricsToken: e.METRICS_TOKEN }),
     rateLimitMax: e.RATE_LIMIT_MAX,
     rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,
     logLevel: e.LOG_LEVEL,

@@ -8,7 +8,10 @@ export interface paths {
             path?: never;
             cookie?: never;
         };
-        /** Prometheus metrics of this process, queue depth and service-wide run counters */
+        /**
+         * Prometheus metrics of this process, queue depth and service-wide run counters
+         * @description Queue and run figures are read from Redis at most once per METRICS_CACHE_MS (default 5 s). When the server has METRICS_TOKEN set, send it as Authorization: Bearer <token>; otherwise the route is open (keep it on a private network).
+         */
         get: operations["getMetrics"];
         put?: never;
         post?: never;
@@ -1012,6 +1015,17 @@ export interface operations {
                 };
                 content: {
                     "text/plain": string;
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
                 };
             };
             /** @description Internal Server Error (internal) */

@@ -60,6 +60,16 @@ export const ConfigSchema = z.object({
   REQUEST_TIMEOUT_MS: intFromEnv(120_000, 1000, 3_600_000),
   /** Most series accepted by the synchronous POST /v1/forecast. */
   SYNC_MAX_SERIES: intFromEnv(100, 1, 10_000),
+  /** Most fitting work one POST /v1/forecast may ask for: points x season length x holdout origins x candidate models, summed over its series. */
+  SYNC_MAX_COST: intFromEnv(50_000_000, 1, 1_000_000_000_000),
+  /** Longest one series may fit in POST /v1/forecast before it is stopped and answered as a failed item. */
+  SYNC_SERIES_TIMEOUT_MS: intFromEnv(10_000, 100, 600_000),
+  /** Threads fitting POST /v1/forecast's series; 0: half the cores, at least one. */
+  SYNC_FIT_THREADS: intFromEnv(0, 0, 256),
+  /** How long GET /metrics reuses the queue and run figures it read from Redis; 0 reads them on every scrape. */
+  METRICS_CACHE_MS: intFromEnv(5000, 0, 300_000),
+  /** When set, GET /metrics needs `Authorization: Bearer <this token>` (at least 16 characters). */
+  METRICS_TOKEN: z.string().min(16).optional(),
   /** Requests per tenant per window. */
   RATE_LIMIT_MAX: intFromEnv(600, 1, 1_000_000),
   RATE_LIMIT_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
@@ -120,6 +130,16 @@ export interface Config {
   /** Time to receive a whole request before a 408; default 120000 when absent. */
   readonly requestTimeoutMs?: number
   readonly syncMaxSeries: number
+  /** Most fitting work of one sync forecast (see fit-cost.ts); default 50,000,000 when absent. */
+  readonly syncMaxCost?: number
+  /** Longest fit of one series in a sync forecast; default 10000 when absent. */
+  readonly syncSeriesTimeoutMs?: number
+  /** Sync-fit threads; 0 or absent: half the cores, at least one. */
+  readonly syncFitThreads?: number
+  /** GET /metrics reuses Redis figures this long; default 5000 when absent. */
+  readonly metricsCacheMs?: number
+  /** Bearer token GET /metrics requires; absent: open (keep the port private). */
+  readonly metricsToken?: string
   readonly rateLimitMax: number
   readonly rateLimitWindowMs: number
   /** Failed authentications per client address per window; default 20 when absent. */
@@ -228,6 +248,11 @@ export function loadConfig(
     bodyLimitBytes: e.BODY_LIMIT_BYTES,
     requestTimeoutMs: e.REQUEST_TIMEOUT_MS,
     syncMaxSeries: e.SYNC_MAX_SERIES,
+    syncMaxCost: e.SYNC_MAX_COST,
+    syncSeriesTimeoutMs: e.SYNC_SERIES_TIMEOUT_MS,
+    syncFitThreads: e.SYNC_FIT_THREADS,
+    metricsCacheMs: e.METRICS_CACHE_MS,
+    ...(e.METRICS_TOKEN === undefined ? {} : { metricsToken: e.METRICS_TOKEN }),
     rateLimitMax: e.RATE_LIMIT_MAX,
     rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,
     authFailureMax: e.AUTH_FAILURE_MAX,

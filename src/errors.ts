@@ -19,6 +19,7 @@ export const PROBLEM_TYPES = {
   'limit-reached': { status: 409, title: 'Limit reached' },
   'payload-too-large': { status: 413, title: 'Payload too large' },
   'too-many-series': { status: 413, title: 'Too many series for a synchronous forecast' },
+  'fit-cost-too-high': { status: 413, title: 'Too much fitting work for a synchronous forecast' },
   'unsupported-media-type': { status: 415, title: 'Unsupported media type' },
   'idempotency-key-reused': { status: 422, title: 'Idempotency key reused' },
   'rate-limited': { status: 429, title: 'Too many requests' },
@@ -27,6 +28,9 @@ export const PROBLEM_TYPES = {
 } as const satisfies Record<string, { status: number; title: string }>
 
 export type ProblemSlug = keyof typeof PROBLEM_TYPES
+
+/** Most field errors listed in one response; validation stops looking after them. */
+export const MAX_FIELD_ERRORS = 100
 
 /** One offending field: `series[3].values[2]` and what is wrong with it. */
 export interface FieldError {

@@ -2,7 +2,7 @@ import { readdirSync, readFileSync, statSync } from 'node:fs'
 import { join } from 'node:path'
 import { describe, expect, it } from 'vitest'
 import { DELIVERY_FAILURE_CODES } from '../src/callbacks/processor.js'
-import { RUN_FAILURE_CODES, SERVICE_WARNING_CODES } from '../src/runs/failures.js'
+import { RUN_FAILURE_CODES, SERVICE_ITEM_FAILURE_CODES, SERVICE_WARNING_CODES } from '../src/runs/failures.js'
 import { FIRING_FAILURE_CODES } from '../src/schedules/fire.js'
 
 const root = new URL('..', import.meta.url).pathname
@@ -55,11 +55,11 @@ describe('docs/warnings.md', () => {
 describe('docs/problems.md failure codes', () => {
   const doc = read('docs/problems.md')
 
-  it('lists exactly the engine input error codes for failed items', () => {
+  it('lists exactly the engine input error codes and the service codes for failed items', () => {
     const union = /export type EngineErrorCode =([^;]*?)\n\n/s.exec(read('src/engine/errors.ts'))![1]!
     const engineCodes = [...union.matchAll(/'([a-z-]+)'/g)].map((m) => m[1]!)
     expect(engineCodes.length).toBeGreaterThan(3)
-    expect(sorted(codesUnder(doc, '### A result item (`items[].failure`)'))).toEqual(sorted(engineCodes))
+    expect(sorted(codesUnder(doc, '### A result item (`items[].failure`)'))).toEqual(sorted([...engineCodes, ...SERVICE_ITEM_FAILURE_CODES]))
   })
 
   it('lists exactly the run, delivery and firing failure codes', () => {

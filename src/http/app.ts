@@ -3,7 +3,6 @@ import Fastify, { type FastifyBaseLogger, type FastifyInstance, type FastifyRepl
 import { serializerCompiler } from 'fastify-type-provider-zod'
 import type { RedisClient } from '../storage/redis.js'
 import type { Config } from '../config.js'
-import { forecastSeries } from '../engine/index.js'
 import { createLogger, type Logger } from '../logger.js'
 import type { HistoryStore } from '../storage/histories/history-store.js'
 import type { IdempotencyStore } from '../storage/erp/idempotency-store.js'
@@ -18,7 +17,9 @@ import idempotencyPlugin from './plugins/idempotency.js'
 import metricsPlugin from './plugins/metrics.js'
 import rateLimitPlugin from './plugins/rate-limit.js'
 import swaggerPlugin from './plugins/swagger.js'
-import { forecastRoutes, type ForecastFn } from './routes/forecast.js'
+import forecastRoutes from './routes/forecast.js'
+import syncFitsPlugin from './plugins/sync-fits.js'
+import type { SyncFitter } from './sync-fits/pool.js'
 import healthRoutes from './routes/health.js'
 import historyRoutes from './routes/history.js'
 import runRoutes from './routes/runs/index.js'
@@ -49,8 +50,8 @@ export interface AppDeps {
   readonly rateLimitRedis?: RedisClient
   /** Default: a fresh registry per app. */
   readonly metrics?: ServiceMetrics
-  /** Default: the engine's forecastSeries. */
-  readonly forecast?: ForecastFn
+  /** Fits POST /v1/forecast's series; default a worker-thread pool the app opens and closes. */
+  readonly syncFits?: SyncFitter
   /** Stored demand histories; without it the history routes answer 503. */
   readonly histories?: HistoryStore
   /** Idempotency-Key answers; without it a request carrying the header gets 503. */
@@ -134,7 +135,8 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(erpPlugin, { erp: deps.erp })
 
   await app.register(healthRoutes)
-  await app.register(forecastRoutes(deps.forecast ?? forecastSeries))
+  await app.register(syncFitsPlugin, { fitter: deps.syncFits })
+  await app.register(forecastRoutes)
   await app.register(runRoutes, { prefix: '/v1/runs' })
   await app.register(resultRoutes, { prefix: '/v1/runs' })
   await app.register(skuRoutes, { prefix: '/v1/skus' })

@@ -1,11 +1,10 @@
 import type { FastifyError } from 'fastify'
-import { formatFieldPath, ProblemError, type FieldError } from '../errors.js'
+import { formatFieldPath, MAX_FIELD_ERRORS, ProblemError, type FieldError } from '../errors.js'
 import { CursorError } from '../storage/paging.js'
 import { isFieldIssue } from './validation.js'
 import { RunInputError } from '../runs/input.js'
 
-/** Most field errors listed in one response; the detail says how many there were. */
-export const MAX_FIELD_ERRORS = 100
+export { MAX_FIELD_ERRORS }
 
 /**
  * Turn anything a handler, hook or fastify itself threw into a ProblemError.
@@ -79,7 +78,13 @@ function validationProblem(issues: readonly unknown[], part: string): ProblemErr
     }
   })
   const where = part === 'querystring' ? 'query string' : part === 'params' ? 'path' : part
-  const more = issues.length > MAX_FIELD_ERRORS ? `; the first ${MAX_FIELD_ERRORS} are listed` : ''
-  const count = issues.length === 1 ? '1 invalid field' : `${issues.length} invalid fields`
+  // Validation stops after the issues it reports (validation.ts): then the total is unknown.
+  const truncated = (issues as { truncated?: boolean }).truncated === true
+  const more = truncated || issues.length > MAX_FIELD_ERRORS ? `; the first ${MAX_FIELD_ERRORS} are listed` : ''
+  const count = truncated
+    ? `more than ${MAX_FIELD_ERRORS} invalid fields`
+    : issues.length === 1
+      ? '1 invalid field'
+      : `${issues.length} invalid fields`
   return new ProblemError('validation-failed', `The request ${where} has ${count}${more}`, errors)
 }

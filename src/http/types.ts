@@ -1,6 +1,7 @@
 import type { Config } from '../config.js'
 import type { RunGateway } from '../runs/contract.js'
 import type { ServiceMetrics } from './metrics.js'
+import type { SyncFitter } from './sync-fits/pool.js'
 
 /** Decorations the plugins add to fastify's types. */
 declare module 'fastify' {
@@ -8,6 +9,8 @@ declare module 'fastify' {
     config: Config
     gateway: RunGateway
     metrics: ServiceMetrics
+    /** Fits POST /v1/forecast's series on worker threads. */
+    syncFits: SyncFitter
   }
   interface FastifyRequest {
     /** Tenant the API key belongs to (`default` when auth is off). */

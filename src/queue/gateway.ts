@@ -12,6 +12,7 @@ import { requestConnection } from '../storage/redis.js'
 import { createRunFromHistories } from '../storage/runs/history-runs.js'
 import { resultsPageJson } from '../storage/runs/result-pages.js'
 import { RunStore, runStoreOptions } from '../storage/runs/run-store.js'
+import { FairShare } from '../storage/runs/fair-share.js'
 import { createRunEventEmitter } from '../callbacks/emitter.js'
 import { CHUNK_JOB, CHUNK_JOB_OPTIONS, CHUNK_QUEUE, chunkJobId } from './names.js'
 import type { ChunkJob } from './payload.js'
@@ -39,16 +40,25 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
 
   const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
   const histories = new HistoryStore(redis, { prefix: config.redisPrefix })
+  const fair = new FairShare(redis, queuePrefix(config))
 
-  /** Enqueues one job per stored chunk, in batches; on failure the run is ended as failed. */
+  /**
+   * Enqueues one job per stored chunk, in batches; on failure the run is ended
+   * as failed. Each chunk's priority comes from the tenant's fair share
+   * (storage/runs/fair-share.ts), so a small run is not queued behind a large
+   * run of another tenant.
+   */
   async function enqueueChunks(tenant: string, runId: string, chunks: number): Promise<void> {
     try {
+      const c = await queue.getJobCounts('prioritized', 'waiting', 'delayed')
+      const idle = (c.prioritized ?? 0) + (c.waiting ?? 0) + (c.delayed ?? 0) === 0
+      const priorities = await fair.reserve(tenant, chunks, idle)
       for (let i = 0; i < chunks; i += BATCH) {
         await queue.addBulk(
           chunkIndexes(Math.min(BATCH, chunks - i)).map((j) => ({
             name: CHUNK_JOB,
             data: { tenant, runId, chunkIndex: i + j },
-            opts: { ...CHUNK_JOB_OPTIONS, jobId: chunkJobId(runId, i + j) },
+            opts: { ...CHUNK_JOB_OPTIONS, jobId: chunkJobId(runId, i + j), priority: priorities[i + j]! },
           })),
         )
       }
@@ -116,11 +126,12 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
 
     async stats() {
       const [c, runs, fits] = await Promise.all([
-        queue.getJobCounts('waiting', 'active', 'delayed', 'failed'),
+        queue.getJobCounts('waiting', 'prioritized', 'active', 'delayed', 'failed'),
         store.stats.runs(),
         store.stats.fits(),
       ])
-      return { waiting: c.waiting ?? 0, active: c.active ?? 0, delayed: c.delayed ?? 0, failed: c.failed ?? 0, runs, fits }
+      // Chunks carry fair-share priorities, so BullMQ keeps the waiting ones as 'prioritized'.
+      return { waiting: (c.waiting ?? 0) + (c.prioritized ?? 0), active: c.active ?? 0, delayed: c.delayed ?? 0, failed: c.failed ?? 0, runs, fits }
     },
 
     close: () =>

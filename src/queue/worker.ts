@@ -7,6 +7,7 @@ import { runFailure } from '../runs/failures.js'
 import { closeSteps } from '../shutdown.js'
 import { workerConnection } from '../storage/redis.js'
 import { RunStore, runStoreOptions } from '../storage/runs/run-store.js'
+import { FairShare } from '../storage/runs/fair-share.js'
 import { CHUNK_QUEUE } from './names.js'
 import { ChunkJob } from './payload.js'
 import type { SandboxContext } from './processors/chunk.js'
@@ -81,7 +82,12 @@ export function startChunkWorker(config: Config, logger: Logger): ChunkWorker {
     maxStalledCount: 2,
   })
 
+  const fair = new FairShare(storeRedis, queuePrefix(config))
   worker.on('error', (err) => log.error({ err }, 'worker error'))
+  // Moves the fair-share clock (fair-share.ts); a missed update only delays newcomers a little.
+  worker.on('active', (job) => {
+    fair.started(job.priority).catch((err: unknown) => log.warn({ err, jobId: job.id }, 'could not record a started chunk for fair sharing'))
+  })
   worker.on('failed', (job, err) => {
     if (!job) return
     const jlog = log.child({ jobId: job.id, runId: job.data?.runId, tenant: job.data?.tenant })

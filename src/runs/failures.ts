@@ -17,3 +17,9 @@ export const REPLENISHMENT_SKIPPED = 'replenishment-skipped'
 
 /** Warning codes the service adds to result items beside the engine's own (docs/warnings.md). */
 export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED] as const
+
+/** `failure.code` of a series whose synchronous fit ran past SYNC_SERIES_TIMEOUT_MS (its thread was ended). */
+export const FIT_TIME_LIMIT = 'fit-time-limit'
+
+/** Item failure codes the service adds beside the engine's input error codes (docs/problems.md). */
+export const SERVICE_ITEM_FAILURE_CODES = [FIT_TIME_LIMIT] as const

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { DEFAULT_SEASON_LENGTH, FREQUENCIES, METRIC_NAMES, MODEL_NAMES, SERVICE_LEVEL_MAX, SERVICE_LEVEL_MIN } from '../engine/index.js'
 import { TAG_PATTERN } from '../history/types.js'
+import { MAX_FIELD_ERRORS } from '../errors.js'
 
 /**
  * The request contract shared by `POST /v1/forecast`, `POST /v1/runs` and the
@@ -129,10 +130,16 @@ export type RunSettings = z.infer<typeof RunSettings>
 function refuseDuplicateSkus(series: readonly { sku: string }[] | undefined, ctx: z.RefinementCtx): void {
   if (series === undefined) return
   const seen = new Set<string>()
-  series.forEach((s, i) => {
-    if (seen.has(s.sku)) ctx.addIssue({ code: 'custom', path: ['series', i, 'sku'], message: `SKU ${JSON.stringify(s.sku)} appears more than once` })
-    seen.add(s.sku)
-  })
+  let found = 0
+  for (let i = 0; i < series.length && found <= MAX_FIELD_ERRORS; i++) {
+    const sku = series[i]!.sku
+    if (seen.has(sku)) {
+      // One past the reported ones tells the error handler there are more; a million copies of one SKU make no more issues.
+      ctx.addIssue({ code: 'custom', path: ['series', i, 'sku'], message: `SKU ${JSON.stringify(sku)} appears more than once` })
+      found++
+    }
+    seen.add(sku)
+  }
 }
 
 export const RunRequest = RunSettings.extend({

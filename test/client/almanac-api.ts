@@ -8,7 +8,10 @@ export interface paths {
             path?: never;
             cookie?: never;
         };
-        /** Prometheus metrics of this process, queue depth and service-wide run counters */
+        /**
+         * Prometheus metrics of this process, queue depth and service-wide run counters
+         * @description Queue and run figures are read from Redis at most once per METRICS_CACHE_MS (default 5 s). When the server has METRICS_TOKEN set, send it as Authorization: Bearer <token>; otherwise the route is open (keep it on a private network).
+         */
         get: operations["getMetrics"];
         put?: never;
         post?: never;
@@ -63,7 +66,7 @@ export interface paths {
         put?: never;
         /**
          * Forecast a few series now
-         * @description Selects and fits a model per series and answers with the forecasts. At most the configured number of series (default 100; more gives 413 too-many-series): use POST /v1/runs for more. A series the engine rejects (too short, negative demand...) comes back as an item with `failure`.
+         * @description Selects and fits a model per series and answers with the forecasts. At most the configured number of series (default 100; more gives 413 too-many-series) and fitting work (points x season length x holdout origins x candidate models, summed over the series; default at most 50,000,000, more gives 413 fit-cost-too-high): use POST /v1/runs for more. A series the engine rejects (too short, negative demand...) comes back as an item with `failure`, and so does one whose fit runs past the time limit (fit-time-limit).
          */
         post: operations["forecastSeries"];
         delete?: never;
@@ -1014,6 +1017,17 @@ export interface operations {
                     "text/plain": string;
                 };
             };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
             /** @description Internal Server Error (internal) */
             500: {
                 headers: {
@@ -1142,7 +1156,7 @@ export interface operations {
                     "application/problem+json": components["schemas"]["Problem"];
                 };
             };
-            /** @description Payload too large (payload-too-large); Too many series for a synchronous forecast (too-many-series) */
+            /** @description Payload too large (payload-too-large); Too many series for a synchronous forecast (too-many-series); Too much fitting work for a synchronous forecast (fit-cost-too-high) */
             413: {
                 headers: {
                     [name: string]: unknown;

@@ -31,4 +31,4 @@ export const WRITE_ONE: readonly ProblemSlug[] = [...WRITE, 'not-found']
 /** Routes that honour Idempotency-Key. */
 export const IDEMPOTENT: readonly ProblemSlug[] = ['idempotency-key-in-use', 'idempotency-key-reused']
 /** POST /v1/forecast: no store involved (rate limits let requests through while Redis is away). */
-export const SYNC_FORECAST: readonly ProblemSlug[] = [...AUTHENTICATED, ...BODY, 'too-many-series']
+export const SYNC_FORECAST: readonly ProblemSlug[] = [...AUTHENTICATED, ...BODY, 'too-many-series', 'fit-cost-too-high']

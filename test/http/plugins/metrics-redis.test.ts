@@ -30,6 +30,8 @@ beforeAll(async () => {
     apiKeys: new Map([['garden', [createHash('sha256').update(KEY, 'utf8').digest('hex')]]]),
     chunkSize: 2,
     workerConcurrency: 1,
+    // Scraped before and after the run: read Redis on every scrape.
+    metricsCacheMs: 0,
   })
   gateway = createRunGateway(config, { logger: createLogger({ level: 'silent' }) })
   rateLimitRedis = new Redis(url, { maxRetriesPerRequest: 2 })

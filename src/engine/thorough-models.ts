@@ -4,6 +4,7 @@
  * own folder and exports its `ModelSpec`s.
  */
 import { stateSpaceModels } from './state-space/index.js'
+import { thetaModels } from './theta/index.js'
 import type { ModelSpec } from './types.js'
 
-export const thoroughModels: readonly ModelSpec[] = [...stateSpaceModels]
+export const thoroughModels: readonly ModelSpec[] = [...stateSpaceModels, ...thetaModels]

@@ -19,7 +19,7 @@ import { heuristicStates } from './initial.js'
 
 const LOW = 1e-4
 const HIGH = 1 - 1e-4
-const MAX_RESTARTS = 4
+const MAX_RESTARTS = 2
 /** Searches started from the best points of the weight grid below. */
 const STARTS = 2
 
@@ -161,9 +161,9 @@ export function estimateForm(form: StateSpaceForm, series: readonly number[], se
   const d = start.length
   let best: NelderMeadResult | undefined
   for (const from of gridStarts(start, lay, objective)) {
-    let run = minimiseNelderMead(objective, from, lower, upper, { maxEvaluations: 150 * d, relTol: 1e-10, step: 0.1 })
+    let run = minimiseNelderMead(objective, from, lower, upper, { maxEvaluations: 40 * d, relTol: 1e-10, step: 0.1 })
     for (let r = 0; r < MAX_RESTARTS; r++) {
-      const again = minimiseNelderMead(objective, run.x, lower, upper, { maxEvaluations: 100 * d, relTol: 1e-10, step: 0.05 })
+      const again = minimiseNelderMead(objective, run.x, lower, upper, { maxEvaluations: 30 * d, relTol: 1e-10, step: 0.05 })
       const gain = run.value - again.value
       if (again.value < run.value) run = again
       if (!(gain > 1e-7 * Math.abs(run.value) + 1e-9)) break

@@ -47,10 +47,14 @@ export const MODEL_NAMES = [
   'croston',
   'croston-bias-corrected',
   'theta',
+  'optimised-theta',
+  'dynamic-optimised-theta',
+  'state-space-smoothing',
+  'median-combination',
 ] as const
 export type ModelName = (typeof MODEL_NAMES)[number]
 
-export type ModelFamily = 'level' | 'trend' | 'seasonal' | 'seasonal-trend' | 'intermittent'
+export type ModelFamily = 'level' | 'trend' | 'seasonal' | 'seasonal-trend' | 'intermittent' | 'combination'
 
 export type ParamValue = number | readonly number[]
 export type ModelParams = Readonly<Record<string, ParamValue>>

@@ -10,7 +10,7 @@ import { RUN_STATUSES } from '../runs/contract.js'
 
 const ModelName = z.enum(MODEL_NAMES)
 const MetricName = z.enum(METRIC_NAMES)
-const ModelFamily = z.enum(['level', 'trend', 'seasonal', 'seasonal-trend', 'intermittent'])
+const ModelFamily = z.enum(['level', 'trend', 'seasonal', 'seasonal-trend', 'intermittent', 'combination'])
 
 const HoldoutErrors = z
   .object({

@@ -444,7 +444,7 @@ export interface components {
              */
             rankBy: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
             /** @description Candidates; default all the history allows */
-            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta")[];
+            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
             /**
              * @description Central prediction-interval levels in percent
              * @default [
@@ -542,9 +542,9 @@ export interface components {
              * @description The chosen model
              * @enum {string}
              */
-            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta";
+            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
             /** @enum {string} */
-            family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent";
+            family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
             /** @description Fitted parameters; one key means the same in every model: levelWeight, trendWeight, seasonWeight, damping, startLevel, startTrend, startSeason, seasonFactors, seasonOffsets, slope, intercept, residualVariance, window, level, demandSize, demandInterval, biasFactor */
             params: {
                 [key: string]: number | number[];
@@ -574,9 +574,9 @@ export interface components {
             /** @description Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact */
             candidates?: {
                 /** @enum {string} */
-                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta";
+                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
                 /** @enum {string} */
-                family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent";
+                family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
                 /** @enum {string} */
                 status: "scored" | "skipped" | "failed";
                 /** @description Error measures on the holdout; null where undefined (e.g. MAPE when every actual is zero) */
@@ -674,7 +674,7 @@ export interface components {
                  */
                 rankBy: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
                 /** @description Candidates; default all the history allows */
-                models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta")[];
+                models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
                 /**
                  * @description Central prediction-interval levels in percent
                  * @default [
@@ -730,9 +730,9 @@ export interface components {
              * @description The chosen model
              * @enum {string}
              */
-            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta";
+            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
             /** @enum {string} */
-            family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent";
+            family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
             /** @description Fitted parameters; one key means the same in every model: levelWeight, trendWeight, seasonWeight, damping, startLevel, startTrend, startSeason, seasonFactors, seasonOffsets, slope, intercept, residualVariance, window, level, demandSize, demandInterval, biasFactor */
             params: {
                 [key: string]: number | number[];
@@ -762,9 +762,9 @@ export interface components {
             /** @description Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact */
             candidates?: {
                 /** @enum {string} */
-                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta";
+                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
                 /** @enum {string} */
-                family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent";
+                family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
                 /** @enum {string} */
                 status: "scored" | "skipped" | "failed";
                 /** @description Error measures on the holdout; null where undefined (e.g. MAPE when every actual is zero) */
@@ -933,7 +933,7 @@ export interface components {
              */
             rankBy: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
             /** @description Candidates; default all the history allows */
-            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta")[];
+            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
             /**
              * @description Central prediction-interval levels in percent
              * @default [
@@ -1232,7 +1232,7 @@ export interface operations {
                      */
                     rankBy?: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
                     /** @description Candidates; default all the history allows */
-                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta")[];
+                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
                     /**
                      * @description Central prediction-interval levels in percent
                      * @default [
@@ -2911,7 +2911,7 @@ export interface operations {
                      */
                     rankBy?: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
                     /** @description Candidates; default all the history allows */
-                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta")[];
+                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
                     /**
                      * @description Central prediction-interval levels in percent
                      * @default [

@@ -58,6 +58,42 @@ export function isSeasonal(series: readonly number[], seasonLength: number): boo
   return Math.abs(rm) > 1.645 * Math.sqrt(bartlett / n)
 }
 
+/** The seasonal figure Theta divides out (empty when the series is treated as non-seasonal). */
+export interface ThetaAdjustment {
+  readonly figure: readonly number[]
+  readonly multiplicative: boolean
+}
+
+const NO_ADJUSTMENT: ThetaAdjustment = { figure: [], multiplicative: true }
+
+/** Step 1 above: the classical-decomposition figure when m >= 2, n >= 2m and the test passes. */
+export function thetaSeasonalAdjustment(series: readonly number[], seasonLength: number): ThetaAdjustment {
+  const n = series.length
+  const m = seasonLength
+  if (!(m >= 2 && n >= 2 * m && isSeasonal(series, m))) return NO_ADJUSTMENT
+  let min = Infinity
+  for (let t = 0; t < n; t++) if (series[t]! < min) min = series[t]!
+  const multiplicative = min > 0
+  const figure = decomposeClassical(series, m, multiplicative ? 'multiplicative' : 'additive').figure
+  return { figure, multiplicative }
+}
+
+/** The series with the figure divided out (multiplicative) or subtracted (additive). */
+export function applyAdjustment(
+  series: readonly number[],
+  adjustment: ThetaAdjustment,
+  seasonLength: number,
+): { figure: readonly number[]; multiplicative: boolean; adjusted: number[] } {
+  const { figure, multiplicative } = adjustment
+  const m = seasonLength
+  const adjusted = new Array<number>(series.length)
+  for (let t = 0; t < series.length; t++) {
+    if (figure.length === 0) adjusted[t] = series[t]!
+    else adjusted[t] = multiplicative ? series[t]! / figure[t % m]! : series[t]! - figure[t % m]!
+  }
+  return { figure, multiplicative, adjusted }
+}
+
 export function fitTheta(series: readonly number[], seasonLength: number, options: ThetaOptions = {}): ModelFit {
   checkSeries(series, 'theta', MIN_LENGTH)
   const { alpha: fixedAlpha, seasonalAdjustment = 'auto' } = options
@@ -66,19 +102,8 @@ export function fitTheta(series: readonly number[], seasonLength: number, option
   }
   const n = series.length
   const m = seasonLength
-  let figure: number[] = []
-  let multiplicative = true
-  if (seasonalAdjustment === 'auto' && m >= 2 && n >= 2 * m && isSeasonal(series, m)) {
-    let min = Infinity
-    for (let t = 0; t < n; t++) if (series[t]! < min) min = series[t]!
-    multiplicative = min > 0
-    figure = decomposeClassical(series, m, multiplicative ? 'multiplicative' : 'additive').figure
-  }
-  const adjusted = new Array<number>(n)
-  for (let t = 0; t < n; t++) {
-    if (figure.length === 0) adjusted[t] = series[t]!
-    else adjusted[t] = multiplicative ? series[t]! / figure[t % m]! : series[t]! - figure[t % m]!
-  }
+  const adjustment = seasonalAdjustment === 'auto' ? thetaSeasonalAdjustment(series, m) : NO_ADJUSTMENT
+  const { figure, multiplicative, adjusted } = applyAdjustment(series, adjustment, m)
   const slope = fitTrendOnIndex(adjusted).slope
   const drift = slope / 2
   const alpha = fixedAlpha ?? minimiseOnInterval((a) => levelSse(adjusted, a), THETA_ALPHA_MIN, 1)
@@ -100,7 +125,7 @@ export function fitTheta(series: readonly number[], seasonLength: number, option
   checkFinite([slope, alpha, level, tail], 'theta')
   checkFitted(fitted, 1, 'theta')
   const params: Record<string, number | number[]> = { levelWeight: alpha, slope, drift, level }
-  if (figure.length > 0) params[multiplicative ? 'seasonFactors' : 'seasonOffsets'] = figure
+  if (figure.length > 0) params[multiplicative ? 'seasonFactors' : 'seasonOffsets'] = figure.slice()
   return {
     model: 'theta',
     params,

@@ -1,20 +1,33 @@
 /**
- * Prediction intervals around point forecasts.
+ * Prediction intervals and quantiles around point forecasts.
  *
+ * The model's own spread sd[h] per step:
  * - 'analytical': the fit provides forecastVariance(h) (a published formula, see types.ts);
- *   bounds = point ± z · sqrt(var[h]).
+ *   sd[h] = sqrt(var[h]).
  * - 'empirical': otherwise sigma_1 = root mean square of the in-sample one-step residuals
- *   and sigma_h = sigma_1 · sqrt(h) (common practice: it is exact for a random walk and
- *   a rough, usually optimistic-for-trends guide elsewhere). We prefer residuals over the
- *   few holdout errors because the holdout holds at most one error per step, too few to
- *   estimate a spread per step.
+ *   and sd[h] = sigma_1 · sqrt(h) (common practice: it is exact for a random walk and
+ *   a rough, usually optimistic-for-trends guide elsewhere).
  * - 'none': no spread can be estimated (fewer than 2 residuals, or a constant history);
  *   lower = upper = point.
  *
- * z is the standard normal quantile at (1 + level/100) / 2. Unless negatives are allowed,
- * lower bounds below zero are raised to zero and `clamped` is set. Pure.
+ * The half-width at central level p is k(p) · sd[h]. Without calibration k(p) is the
+ * Student t quantile at (1 + p) / 2 with the fit's residual degrees of freedom (the normal
+ * quantile when they are many): the t quantile adds the uncertainty of the estimated
+ * spread, which matters for short histories (common practice for regression intervals).
+ * 'calibrated': k(p) comes from the model's own standardised errors at rolling origins
+ * inside the history (select/calibrate.ts): the split-conformal quantile of |error| / sd
+ * (Vovk, Gammerman & Shafer 2005; Lei, G'Sell, Rinaldo, Tibshirani & Wasserman 2018, from
+ * memory), in the spirit of the empirical intervals of Williams & Goodman (1971). Where
+ * too few errors exist for level p, the spread ratio (root mean square of the standardised
+ * errors) times the t quantile is used instead. A `floor` per step (the naive method's
+ * spread for histories too short to tell models apart) bounds sd from below.
+ *
+ * A quantile tau is the bound of the central interval at level |2 tau - 1| on its side,
+ * so quantiles and intervals agree. Unless negatives are allowed, values below zero are
+ * raised to zero and `clamped` is set. Pure.
  */
 import { sum } from './numeric.js'
+import type { IntervalMethod } from './types.js'
 
 /** Wichura's PPND16 (Applied Statistics algorithm AS 241, 1988), about 1e-16 relative accuracy. */
 const A = [
@@ -73,17 +86,50 @@ export function normalQuantile(p: number): number {
   return q < 0 ? -z : z
 }
 
+/**
+ * Student t quantile with `df` degrees of freedom: exact for df 1 and 2, the Cornish-Fisher
+ * expansion in the normal quantile for df >= 3 (Abramowitz & Stegun 1964, 26.7.5, from
+ * memory), the normal quantile from df 200 on. Checked against R qt in the tests.
+ */
+export function studentQuantile(p: number, df: number): number {
+  if (!(df > 0)) return NaN
+  if (df >= 200) return normalQuantile(p)
+  if (df === 1) return Math.tan(Math.PI * (p - 0.5))
+  if (df === 2) return (2 * p - 1) / Math.sqrt(2 * p * (1 - p))
+  const x = normalQuantile(p)
+  const x2 = x * x
+  const g1 = (x * (x2 + 1)) / 4
+  const g2 = (x * ((5 * x2 + 16) * x2 + 3)) / 96
+  const g3 = (x * (((3 * x2 + 19) * x2 + 17) * x2 - 15)) / 384
+  const g4 = (x * ((((79 * x2 + 776) * x2 + 1482) * x2 - 1920) * x2 - 945)) / 92160
+  return x + g1 / df + g2 / df ** 2 + g3 / df ** 3 + g4 / df ** 4
+}
+
+/**
+ * Split-conformal quantile of `sortedScores` (ascending) at coverage p: the
+ * ceil((N + 1) p)-th smallest; null when N is too small for p (that rank exceeds N).
+ */
+export function conformalQuantile(sortedScores: readonly number[], p: number): number | null {
+  const n = sortedScores.length
+  const rank = Math.ceil((n + 1) * p)
+  return rank >= 1 && rank <= n ? sortedScores[rank - 1]! : null
+}
+
 export interface IntervalBounds {
-  readonly method: 'analytical' | 'empirical' | 'none'
+  readonly method: IntervalMethod
   /** lower[levelKey][h], upper[levelKey][h]; levelKey is String(level). */
   readonly lower: Record<string, number[]>
   readonly upper: Record<string, number[]>
+  /** quantiles[String(tau)][h] for each requested quantile. */
+  readonly quantiles: Record<string, number[]>
   readonly clamped: boolean
 }
 
 export interface IntervalInput {
   readonly point: readonly number[]
   readonly levels: readonly number[]
+  /** Quantiles in (0, 1) to report per step. */
+  readonly quantiles?: readonly number[]
   /** Analytical variances for steps 1..h, when the model has them. */
   readonly variance?: readonly number[]
   /** In-sample one-step residuals (finite values only). */
@@ -91,45 +137,122 @@ export interface IntervalInput {
   readonly allowNegative: boolean
   /** Force 'none' (e.g. a constant history, where residuals say nothing about the future). */
   readonly none?: boolean
+  /** Residual degrees of freedom of the fit (residual count minus parameters); absent: normal quantiles. */
+  readonly degreesOfFreedom?: number
+  /** Forecast errors at rolling origins inside the history (select/calibrate.ts). */
+  readonly calibration?: readonly { readonly step: number; readonly error: number }[]
+  /** Lower bound of sd per step (model uncertainty of short histories). */
+  readonly floor?: readonly number[]
 }
 
-/** Standard deviations per step by the method described in the module comment. */
-function stepSpreads(input: IntervalInput): { method: IntervalBounds['method']; sd: number[] } {
-  const h = input.point.length
-  if (input.none) return { method: 'none', sd: new Array(h).fill(0) }
-  const v = input.variance
-  if (v && v.length >= h && v.slice(0, h).every((x) => Number.isFinite(x) && x >= 0)) {
-    return { method: 'analytical', sd: v.slice(0, h).map(Math.sqrt) }
+/** The model's own spread per step, by the rules in the module comment. */
+export function modelSpread(
+  horizon: number,
+  variance: readonly number[] | undefined,
+  residuals: readonly number[],
+): { method: 'analytical' | 'empirical' | 'none'; sd: number[] } {
+  if (variance && variance.length >= horizon && variance.slice(0, horizon).every((x) => Number.isFinite(x) && x >= 0)) {
+    return { method: 'analytical', sd: variance.slice(0, horizon).map(Math.sqrt) }
   }
-  const r = input.residuals
-  if (r.length < 2) return { method: 'none', sd: new Array(h).fill(0) }
-  const sigma1 = Math.sqrt(sum(r.map((e) => e * e)) / r.length)
-  if (!Number.isFinite(sigma1)) return { method: 'none', sd: new Array(h).fill(0) }
-  return { method: 'empirical', sd: input.point.map((_, i) => sigma1 * Math.sqrt(i + 1)) }
+  if (residuals.length < 2) return { method: 'none', sd: new Array(horizon).fill(0) }
+  const sigma1 = Math.sqrt(sum(residuals.map((e) => e * e)) / residuals.length)
+  if (!Number.isFinite(sigma1)) return { method: 'none', sd: new Array(horizon).fill(0) }
+  const sd = new Array<number>(horizon)
+  for (let i = 0; i < horizon; i++) sd[i] = sigma1 * Math.sqrt(i + 1)
+  return { method: 'empirical', sd }
 }
 
-/** Bounds for every level; each interval contains its point and widens with level. */
+/** Fewest calibration errors for a calibrated interval; fewer and the model's spread stands. */
+export const MIN_CALIBRATION_ERRORS = 5
+
+/** Standardised errors |error| / sd[step], ascending, each weighted 1 / (errors at its step). */
+interface Scores {
+  readonly values: readonly number[]
+  readonly weights: readonly number[]
+  /** Number of steps with errors (the sum of the weights). */
+  readonly totalWeight: number
+}
+
+function standardised(errors: IntervalInput['calibration'], sd: readonly number[]): Scores | null {
+  if (!errors) return null
+  const perStep = new Map<number, number>()
+  const kept: { z: number; step: number }[] = []
+  for (const { step, error } of errors) {
+    const s = sd[step - 1]
+    if (s === undefined || !(s > 0) || !Number.isFinite(error / s)) continue
+    kept.push({ z: Math.abs(error) / s, step })
+    perStep.set(step, (perStep.get(step) ?? 0) + 1)
+  }
+  if (kept.length < MIN_CALIBRATION_ERRORS) return null
+  kept.sort((a, b) => a.z - b.z)
+  return { values: kept.map((k) => k.z), weights: kept.map((k) => 1 / perStep.get(k.step)!), totalWeight: perStep.size }
+}
+
+/**
+ * Weighted split-conformal quantile: each score weighs 1 / (scores at its step), so every
+ * step counts once whatever its number of origins (near steps have the most); the
+ * smallest score whose cumulative weight reaches p (total + largest weight), the weighted
+ * form of ceil((N + 1) p) (Tibshirani, Barber, Candes & Ramdas 2019, from memory). Null
+ * when no score reaches it.
+ */
+function weightedConformal(scores: Scores, p: number): number | null {
+  let wMax = 0
+  for (const w of scores.weights) wMax = Math.max(wMax, w)
+  const target = p * (scores.totalWeight + wMax)
+  let acc = 0
+  for (let i = 0; i < scores.values.length; i++) {
+    acc += scores.weights[i]!
+    if (acc >= target - 1e-12) return scores.values[i]!
+  }
+  return null
+}
+
+/**
+ * The multiplier k(p) of sd at central coverage p (0 < p < 1). Calibration only widens:
+ * the rolling origins lie in the stretch the model was selected on, so their errors are
+ * optimistic, and narrowing on them would promise too much. Where too few errors exist
+ * for p, the weighted root mean square of the scores times the t quantile is used.
+ */
+function multiplier(p: number, degreesOfFreedom: number | undefined, scores: Scores | null): number {
+  const df = degreesOfFreedom
+  const base = df !== undefined && df >= 1 ? studentQuantile(0.5 + p / 2, df) : normalQuantile(0.5 + p / 2)
+  if (!scores) return base
+  const q = weightedConformal(scores, p)
+  if (q !== null) return Math.max(base, q)
+  let ss = 0
+  for (let i = 0; i < scores.values.length; i++) ss += scores.weights[i]! * scores.values[i]! ** 2
+  return Math.max(base, Math.sqrt(ss / scores.totalWeight) * base)
+}
+
+/** Bounds for every level and the requested quantiles; each interval contains its point and widens with level. */
 export function buildIntervals(input: IntervalInput): IntervalBounds {
-  const { method, sd } = stepSpreads(input)
-  const lower: Record<string, number[]> = {}
-  const upper: Record<string, number[]> = {}
+  const h = input.point.length
+  const own = input.none ? { method: 'none' as const, sd: new Array<number>(h).fill(0) } : modelSpread(h, input.variance, input.residuals)
+  let sd = own.sd
+  const floor = input.floor
+  if (own.method !== 'none' && floor) sd = sd.map((s, i) => (floor[i]! > s ? floor[i]! : s))
+  const scores = own.method === 'none' ? null : standardised(input.calibration, sd)
+  const method: IntervalMethod = scores ? 'calibrated' : own.method
   let clamped = false
-  for (const level of input.levels) {
-    const z = normalQuantile(0.5 + level / 200)
-    const key = String(level)
-    lower[key] = input.point.map((p, i) => {
-      const lo = p - z * sd[i]!
-      if (!Number.isFinite(lo)) return p
-      if (!input.allowNegative && lo < 0) {
+  const value = (p: number, side: 1 | -1): number[] => {
+    const k = p > 0 ? multiplier(p, input.degreesOfFreedom, scores) : 0
+    return input.point.map((x, i) => {
+      const v = x + side * k * sd[i]!
+      if (!Number.isFinite(v)) return x
+      if (!input.allowNegative && v < 0) {
         clamped = true
         return 0
       }
-      return lo
-    })
-    upper[key] = input.point.map((p, i) => {
-      const hi = p + z * sd[i]!
-      return Number.isFinite(hi) ? hi : p
+      return v
     })
   }
-  return { method, lower, upper, clamped }
+  const lower: Record<string, number[]> = {}
+  const upper: Record<string, number[]> = {}
+  for (const level of input.levels) {
+    lower[String(level)] = value(level / 100, -1)
+    upper[String(level)] = value(level / 100, 1)
+  }
+  const quantiles: Record<string, number[]> = {}
+  for (const tau of input.quantiles ?? []) quantiles[String(tau)] = value(Math.abs(2 * tau - 1), tau < 0.5 ? -1 : 1)
+  return { method, lower, upper, quantiles, clamped }
 }

@@ -14,10 +14,20 @@
  *          accuracy", IJF 22(4), eq. for q_t); null when the scale is 0 or undefined
  *  - wape  100 * sum |e| / sum |actual| (percent, like mape); null when sum |actual| is 0
  *
+ * Interval measures (intervalMetrics), from a normal spread sd[k] around the forecast:
+ *  - msis     mean scaled interval score of the 95% interval [L, U] = f -/+ 1.96 sd:
+ *             mean(U - L + (2/0.05)(L - y)1{y < L} + (2/0.05)(y - U)1{y > U}) / scale, with the
+ *             MASE scale (the M4 competition's measure; Gneiting & Raftery 2007 for the
+ *             interval score, from memory); null when the scale is undefined
+ *  - pinball  mean quantile (pinball) loss over the quantiles PINBALL_QUANTILES, in demand
+ *             units: loss_tau(y, q) = (y - q) tau if y >= q, else (q - y)(1 - tau)
+ *             (Koenker & Bassett 1978, from memory)
+ *
  * All sums are compensated (Neumaier, as numeric.sum, accumulated in one pass without
  * intermediate arrays). Pure.
  */
 import { EngineInputError } from './errors.js'
+import { normalQuantile } from './intervals.js'
 import { METRIC_NAMES, type MetricName, type MetricSet } from './types.js'
 
 /**
@@ -132,4 +142,44 @@ export function averageMetrics(sets: readonly MetricSet[]): MetricSet {
     out[name] = defined > 0 ? total(0) / defined : null
   }
   return out
+}
+
+/** The quantiles the pinball loss averages over: the bounds of the 80% and 95% intervals and the median. */
+export const PINBALL_QUANTILES: readonly number[] = [0.025, 0.1, 0.5, 0.9, 0.975]
+const Z_PINBALL = PINBALL_QUANTILES.map((tau) => normalQuantile(tau))
+const Z_975 = normalQuantile(0.975)
+
+/**
+ * MSIS (95%) and mean pinball loss of `forecast` with normal spreads `sd` per step against
+ * `actual` (module comment). Both null when no spread is known (sd missing or not finite).
+ */
+export function intervalMetrics(
+  actual: readonly number[],
+  forecast: readonly number[],
+  sd: readonly number[] | null,
+  inSample: readonly number[],
+  seasonLength: number,
+): { msis: number | null; pinball: number | null } {
+  const n = actual.length
+  if (!sd || sd.length < n || n === 0 || forecast.length !== n) return { msis: null, pinball: null }
+  const scale = maseScale(inSample, seasonLength) // first: it uses accumulator 0 too
+  start(0)
+  start(1)
+  for (let t = 0; t < n; t++) {
+    const y = actual[t]!
+    const f = forecast[t]!
+    const s = sd[t]!
+    if (!(s >= 0) || !Number.isFinite(s)) return { msis: null, pinball: null }
+    const lo = f - Z_975 * s
+    const hi = f + Z_975 * s
+    add(0, hi - lo + (y < lo ? 40 * (lo - y) : 0) + (y > hi ? 40 * (y - hi) : 0))
+    for (let j = 0; j < Z_PINBALL.length; j++) {
+      const tau = PINBALL_QUANTILES[j]!
+      const q = f + Z_PINBALL[j]! * s
+      add(1, y >= q ? (y - q) * tau : (q - y) * (1 - tau))
+    }
+  }
+  const msis = scale === null ? null : total(0) / n / scale
+  const pinball = total(1) / (n * PINBALL_QUANTILES.length)
+  return { msis: msis !== null && Number.isFinite(msis) ? msis : null, pinball: Number.isFinite(pinball) ? pinball : null }
 }

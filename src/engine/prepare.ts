@@ -22,6 +22,8 @@ import {
   type Frequency,
   type MetricName,
   type ModelName,
+  type ModelSearch,
+  MODEL_SEARCHES,
   type SeriesInput,
 } from './types.js'
 
@@ -32,7 +34,11 @@ export const ENGINE_LIMITS = {
   maxHoldout: 1000,
   maxOrigins: 12,
   maxLevels: 10,
+  maxQuantiles: 20,
 } as const
+
+/** Fewer points than this: the history cannot tell models apart (warning `short-history`). */
+export const SHORT_HISTORY = 10
 
 export const DEFAULT_LEVELS: readonly number[] = [80, 95]
 
@@ -50,6 +56,9 @@ export interface PreparedSeries {
   readonly models?: readonly ModelName[]
   /** Sorted ascending, deduplicated. */
   readonly levels: readonly number[]
+  /** Requested quantiles, sorted ascending, deduplicated (empty when none). */
+  readonly quantiles: readonly number[]
+  readonly modelSearch: ModelSearch
   readonly allowNegativeDemand: boolean
   readonly holdoutOrigins: number
   /** Periods trimmed from the front: labels of `values[0]` = firstPeriod + offset. */
@@ -110,6 +119,21 @@ function validateOptions(input: SeriesInput): void {
   }
 }
 
+function validateQuantiles(input: SeriesInput): void {
+  if (input.modelSearch !== undefined && !MODEL_SEARCHES.includes(input.modelSearch)) {
+    throw option(`modelSearch must be one of ${MODEL_SEARCHES.join(', ')}`, 'modelSearch')
+  }
+  if (input.quantiles === undefined) return
+  if (!Array.isArray(input.quantiles) || input.quantiles.length > ENGINE_LIMITS.maxQuantiles) {
+    throw option(`quantiles may list at most ${ENGINE_LIMITS.maxQuantiles} values`, 'quantiles')
+  }
+  input.quantiles.forEach((q, i) => {
+    if (typeof q !== 'number' || !(q > 0 && q < 1)) {
+      throw option(`a quantile must be a number strictly between 0 and 1 (got ${q})`, `quantiles[${i}]`)
+    }
+  })
+}
+
 function validateDemand(demand: readonly (number | null)[], allowNegativeDemand: boolean): void {
   if (!Array.isArray(demand) || demand.length === 0) {
     throw new EngineInputError('empty-series', 'demand must hold at least one period', 'demand')
@@ -156,6 +180,7 @@ export function fillMissing(values: readonly (number | null)[], policy: 'zero' |
 /** Validate and prepare one series. @throws EngineInputError with a code and field. */
 export function prepareSeries(input: SeriesInput): PreparedSeries {
   validateOptions(input)
+  validateQuantiles(input)
   const allowNegativeDemand = input.allowNegativeDemand === true
   validateDemand(input.demand, allowNegativeDemand)
   const warnings: EngineWarning[] = []
@@ -184,17 +209,21 @@ export function prepareSeries(input: SeriesInput): PreparedSeries {
   }
 
   const flat = !isConstant(values) ? null : values[0] === 0 ? 'all-zero' : 'constant'
+  const seasonLength = input.seasonLength ?? DEFAULT_SEASON_LENGTH[input.frequency]
+  warnings.push(...historyWarnings(values.length, seasonLength))
   const levels = [...new Set(input.intervalLevels ?? DEFAULT_LEVELS)].sort((a, b) => a - b)
   return {
     values,
     frequency: input.frequency,
     firstPeriod: input.firstPeriod,
-    seasonLength: input.seasonLength ?? DEFAULT_SEASON_LENGTH[input.frequency],
+    seasonLength,
     horizon: input.horizon,
     holdoutPeriods: input.holdoutPeriods,
     rankBy: input.rankBy ?? 'mase',
     models: input.models === undefined ? undefined : [...new Set(input.models)],
     levels,
+    quantiles: [...new Set(input.quantiles ?? [])].sort((a, b) => a - b),
+    modelSearch: input.modelSearch ?? 'fast',
     allowNegativeDemand,
     holdoutOrigins: input.holdoutOrigins ?? 1,
     offset: trimmed,
@@ -208,4 +237,26 @@ export function prepareSeries(input: SeriesInput): PreparedSeries {
     },
     warnings,
   }
+}
+
+/**
+ * Warnings for histories too short to trust: fewer than SHORT_HISTORY points (too few to
+ * tell a trend from noise or one model from another), and fewer than two full seasons
+ * (a season cannot be seen in less: seasonal models are not tried).
+ */
+function historyWarnings(used: number, seasonLength: number): EngineWarning[] {
+  const out: EngineWarning[] = []
+  if (used < SHORT_HISTORY) {
+    out.push({
+      code: 'short-history',
+      message: `the history has ${used} period(s), fewer than ${SHORT_HISTORY}: the model cannot be checked well and the intervals were widened for that`,
+    })
+  }
+  if (seasonLength > 1 && used < 2 * seasonLength) {
+    out.push({
+      code: 'fewer-than-two-seasons',
+      message: `seasonal models need two full seasons (${2 * seasonLength} periods), the history has ${used}: any seasonality is not modelled`,
+    })
+  }
+  return out
 }

@@ -21,6 +21,7 @@
 import { EngineInputError } from './errors.js'
 import { normalQuantile } from './intervals.js'
 import { sum } from './numeric.js'
+import type { IntervalMethod } from './types.js'
 
 /** Service levels accepted: (0.5, 0.9999). At 0.5 z is 0 and safety stock vanishes. */
 export const SERVICE_LEVEL_MIN = 0.5
@@ -126,7 +127,7 @@ export function replenishmentFor(
   result: {
     readonly forecast: readonly { readonly demand: number }[]
     readonly residuals: { readonly count: number; readonly mean: number; readonly sd: number }
-    readonly intervalMethod?: 'analytical' | 'empirical' | 'none'
+    readonly intervalMethod?: IntervalMethod
   },
   options: ReplenishmentOptions,
 ): ReplenishmentFigures {

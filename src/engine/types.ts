@@ -130,15 +130,33 @@ export interface SeriesInput {
   readonly keepLeadingZeros?: boolean
   /** Rolling forecast origins used in selection. Default 1. */
   readonly holdoutOrigins?: number
+  /** Quantiles in (0, 1) to report per forecast point, e.g. [0.5, 0.9, 0.95]; at most 20. */
+  readonly quantiles?: readonly number[]
+  /**
+   * 'fast' (default): the default candidate pool, one holdout origin, a few calibration
+   * origins. 'thorough': more rolling origins in selection and calibration and the wider
+   * pool (select/pools.ts); slower.
+   */
+  readonly modelSearch?: ModelSearch
 }
+
+export const MODEL_SEARCHES = ['fast', 'thorough'] as const
+export type ModelSearch = (typeof MODEL_SEARCHES)[number]
 
 export interface EngineWarning {
   readonly code: string
   readonly message: string
 }
 
-/** Error measures of a forecast against actuals; null where undefined (e.g. MAPE with zero actuals). */
-export type MetricSet = Readonly<Record<MetricName, number | null>>
+/**
+ * Error measures of a forecast against actuals; null where undefined (e.g. MAPE with zero
+ * actuals). `msis` and `pinball` judge the intervals (metrics.ts) and are null where the
+ * forecast has none; they are not ranking measures.
+ */
+export type MetricSet = Readonly<Record<MetricName, number | null>> & {
+  readonly msis?: number | null
+  readonly pinball?: number | null
+}
 
 /** One row of a result's candidate table. */
 export interface Candidate {
@@ -165,9 +183,17 @@ export interface ForecastPoint {
   readonly demand: number
   /** One interval per requested level, ascending. */
   readonly intervals: readonly ForecastInterval[]
+  /** One value per requested quantile, ascending; present only when quantiles were requested. */
+  readonly quantiles?: readonly ForecastQuantile[]
 }
 
-export type IntervalMethod = 'analytical' | 'empirical' | 'none'
+/** The demand that actual demand stays at or below with probability `quantile`. */
+export interface ForecastQuantile {
+  readonly quantile: number
+  readonly demand: number
+}
+
+export type IntervalMethod = 'analytical' | 'empirical' | 'calibrated' | 'none'
 
 export interface ModelChoice {
   readonly method: 'holdout' | 'in-sample' | 'none'

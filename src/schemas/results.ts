@@ -20,6 +20,22 @@ const HoldoutErrors = z
     smape: z.number().nullable().describe('Symmetric mean absolute percentage error, in percent (0..200)'),
     mase: z.number().nullable().describe('Mean absolute scaled error, unitless (below 1: better than the in-sample last-value or last-season method)'),
     wape: z.number().nullable().describe('Weighted absolute percentage error, in percent: sum |error| / sum |demand|'),
+    msis: z
+      .number()
+      .nullable()
+      .optional()
+      .describe(
+        "Mean scaled interval score of the model's own 95% interval (M4 competition), unitless like mase; null when the model gave no spread. " +
+          'Given for the chosen model (every scored candidate with modelSearch thorough)',
+      ),
+    pinball: z
+      .number()
+      .nullable()
+      .optional()
+      .describe(
+        "Mean pinball (quantile) loss of the model's own quantiles 0.025, 0.1, 0.5, 0.9, 0.975, in demand units; null when the model gave no spread. " +
+          'Given for the chosen model (every scored candidate with modelSearch thorough)',
+      ),
   })
   .describe('Error measures on the holdout; null where undefined (e.g. MAPE when every actual is zero)')
 
@@ -41,6 +57,15 @@ export const ForecastPointSchema = z.object({
   period: z.string(),
   demand: z.number().describe('Point forecast of demand for the period'),
   intervals: z.array(ForecastInterval).describe('One prediction interval per requested level, ascending'),
+  quantiles: z
+    .array(
+      z.object({
+        quantile: z.number().describe('Probability in (0, 1)'),
+        demand: z.number().describe('Demand that actual demand stays at or below with this probability (an estimate)'),
+      }),
+    )
+    .optional()
+    .describe('One value per requested quantile, ascending; only when the request listed quantiles'),
 })
 
 const Candidate = z.object({
@@ -94,7 +119,9 @@ export const ForecastItem = z
       .optional()
       .describe('Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact'),
     forecast: z.array(ForecastPointSchema),
-    intervalMethod: z.enum(['analytical', 'empirical', 'none']),
+    intervalMethod: z
+      .enum(['analytical', 'empirical', 'calibrated', 'none'])
+      .describe('How the intervals were made: calibrated (the model spread widened by its errors at rolling origins in the history), analytical, empirical, or none'),
     warnings: z.array(Warning),
     replenishment: ReplenishmentSchema.optional(),
   })

@@ -570,6 +570,10 @@ export interface components {
                 mase: number | null;
                 /** @description Weighted absolute percentage error, in percent: sum |error| / sum |demand| */
                 wape: number | null;
+                /** @description Mean scaled interval score of the model's own 95% interval (M4 competition), unitless like mase; null when the model gave no spread. Given for the chosen model (every scored candidate with modelSearch thorough) */
+                msis?: number | null;
+                /** @description Mean pinball (quantile) loss of the model's own quantiles 0.025, 0.1, 0.5, 0.9, 0.975, in demand units; null when the model gave no spread. Given for the chosen model (every scored candidate with modelSearch thorough) */
+                pinball?: number | null;
             } | null;
             /** @description Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact */
             candidates?: {
@@ -593,6 +597,10 @@ export interface components {
                     mase: number | null;
                     /** @description Weighted absolute percentage error, in percent: sum |error| / sum |demand| */
                     wape: number | null;
+                    /** @description Mean scaled interval score of the model's own 95% interval (M4 competition), unitless like mase; null when the model gave no spread. Given for the chosen model (every scored candidate with modelSearch thorough) */
+                    msis?: number | null;
+                    /** @description Mean pinball (quantile) loss of the model's own quantiles 0.025, 0.1, 0.5, 0.9, 0.975, in demand units; null when the model gave no spread. Given for the chosen model (every scored candidate with modelSearch thorough) */
+                    pinball?: number | null;
                 };
                 /** @description The holdout error named by rankBy (lower is better) */
                 score?: number;
@@ -610,9 +618,19 @@ export interface components {
                     low: number;
                     high: number;
                 }[];
+                /** @description One value per requested quantile, ascending; only when the request listed quantiles */
+                quantiles?: {
+                    /** @description Probability in (0, 1) */
+                    quantile: number;
+                    /** @description Demand that actual demand stays at or below with this probability (an estimate) */
+                    demand: number;
+                }[];
             }[];
-            /** @enum {string} */
-            intervalMethod: "analytical" | "empirical" | "none";
+            /**
+             * @description How the intervals were made: calibrated (the model spread widened by its errors at rolling origins in the history), analytical, empirical, or none
+             * @enum {string}
+             */
+            intervalMethod: "analytical" | "empirical" | "calibrated" | "none";
             warnings: {
                 /** @description See docs/warnings.md */
                 code: string;
@@ -758,6 +776,10 @@ export interface components {
                 mase: number | null;
                 /** @description Weighted absolute percentage error, in percent: sum |error| / sum |demand| */
                 wape: number | null;
+                /** @description Mean scaled interval score of the model's own 95% interval (M4 competition), unitless like mase; null when the model gave no spread. Given for the chosen model (every scored candidate with modelSearch thorough) */
+                msis?: number | null;
+                /** @description Mean pinball (quantile) loss of the model's own quantiles 0.025, 0.1, 0.5, 0.9, 0.975, in demand units; null when the model gave no spread. Given for the chosen model (every scored candidate with modelSearch thorough) */
+                pinball?: number | null;
             } | null;
             /** @description Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact */
             candidates?: {
@@ -781,6 +803,10 @@ export interface components {
                     mase: number | null;
                     /** @description Weighted absolute percentage error, in percent: sum |error| / sum |demand| */
                     wape: number | null;
+                    /** @description Mean scaled interval score of the model's own 95% interval (M4 competition), unitless like mase; null when the model gave no spread. Given for the chosen model (every scored candidate with modelSearch thorough) */
+                    msis?: number | null;
+                    /** @description Mean pinball (quantile) loss of the model's own quantiles 0.025, 0.1, 0.5, 0.9, 0.975, in demand units; null when the model gave no spread. Given for the chosen model (every scored candidate with modelSearch thorough) */
+                    pinball?: number | null;
                 };
                 /** @description The holdout error named by rankBy (lower is better) */
                 score?: number;
@@ -798,9 +824,19 @@ export interface components {
                     low: number;
                     high: number;
                 }[];
+                /** @description One value per requested quantile, ascending; only when the request listed quantiles */
+                quantiles?: {
+                    /** @description Probability in (0, 1) */
+                    quantile: number;
+                    /** @description Demand that actual demand stays at or below with this probability (an estimate) */
+                    demand: number;
+                }[];
             }[];
-            /** @enum {string} */
-            intervalMethod: "analytical" | "empirical" | "none";
+            /**
+             * @description How the intervals were made: calibrated (the model spread widened by its errors at rolling origins in the history), analytical, empirical, or none
+             * @enum {string}
+             */
+            intervalMethod: "analytical" | "empirical" | "calibrated" | "none";
             warnings: {
                 /** @description See docs/warnings.md */
                 code: string;

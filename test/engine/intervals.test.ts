@@ -1,6 +1,6 @@
 import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
-import { buildIntervals, normalQuantile } from '../../src/engine/intervals.js'
+import { buildIntervals, conformalQuantile, normalQuantile, studentQuantile } from '../../src/engine/intervals.js'
 import { approxEqual } from '../../src/engine/numeric.js'
 
 // Source: base R 4.2.2 stats::qnorm (make.R beside the JSON).
@@ -90,5 +90,60 @@ describe('buildIntervals', () => {
     const neg = buildIntervals({ point: [1], levels: [95], residuals: [2, -2], allowNegative: true })
     expect(neg.clamped).toBe(false)
     expect(neg.lower['95']![0]).toBeLessThan(0)
+  })
+})
+
+describe('studentQuantile', () => {
+  // Source: R 4.x, print(qt(c(0.975, 0.975, 0.9, 0.975, 0.995, 0.6, 0.975, 0.9), c(4, 10, 3, 3, 5, 7, 30, 1)), digits = 10).
+  const r = [
+    [0.975, 4, 2.7764451052], [0.975, 10, 2.228138852], [0.9, 3, 1.6377443537], [0.975, 3, 3.1824463053],
+    [0.995, 5, 4.0321429836], [0.6, 7, 0.2631668614], [0.975, 30, 2.0422724563], [0.9, 1, 3.0776835372],
+  ] as const
+  it('matches R qt: exact for 1 df, within 1.5e-3 relative from 3 df on', () => {
+    // Tolerance: the Cornish-Fisher expansion's measured error (largest at 3 df), rounded up.
+    for (const [p, df, t] of r) expect(approxEqual(studentQuantile(p, df), t, df === 1 ? 1e-9 : 1.5e-3), `p=${p} df=${df}`).toBe(true)
+  })
+  it('is the normal quantile from 200 df and NaN without degrees of freedom', () => {
+    expect(studentQuantile(0.975, 500)).toBe(normalQuantile(0.975))
+    expect(studentQuantile(0.975, 0)).toBeNaN()
+  })
+})
+
+describe('conformalQuantile', () => {
+  it('takes the ceil((N + 1) p)-th smallest score, null when N is too small', () => {
+    const scores = [1, 2, 3, 4, 5, 6, 7, 8, 9]
+    expect(conformalQuantile(scores, 0.8)).toBe(8) // ceil(10 * 0.8) = 8
+    expect(conformalQuantile(scores, 0.5)).toBe(5)
+    expect(conformalQuantile(scores, 0.95)).toBeNull() // ceil(9.5) = 10 > 9
+  })
+})
+
+describe('calibrated intervals', () => {
+  const sd1 = { point: [100, 100], levels: [80, 95], variance: [1, 1], residuals: [], allowNegative: false }
+  it('widen to the weighted conformal quantile of |error| / sd when the origins erred more than the model claims', () => {
+    // 20 errors at step 1 of sizes 1..20 against sd 1: the 80% quantile is the 17th
+    // smallest (cumulative weight 17/20 >= 0.8 * (1 + 1/20) = 0.84), 17.
+    const calibration = Array.from({ length: 20 }, (_, i) => ({ step: 1, error: (i % 2 === 0 ? 1 : -1) * (i + 1) }))
+    const b = buildIntervals({ ...sd1, levels: [80, 95, 99], calibration })
+    expect(b.method).toBe('calibrated')
+    expect(b.upper['80']![0]).toBe(117)
+    expect(b.lower['80']![1]).toBe(83)
+    // 95%: weight 0.95 * 1.05 = 0.9975 is reached by the largest score, 20.
+    expect(b.upper['95']![0]).toBe(120)
+    // 99%: 0.99 * 1.05 > 1, no score reaches it: the RMS of the scores times z.
+    const rms = Math.sqrt(Array.from({ length: 20 }, (_, i) => (i + 1) ** 2).reduce((a, b) => a + b, 0) / 20)
+    expect(approxEqual(b.upper['99']![0]! - 100, rms * normalQuantile(0.995), 1e-12)).toBe(true)
+  })
+  it('never narrow below the model spread', () => {
+    const calibration = Array.from({ length: 20 }, () => ({ step: 1, error: 0.01 }))
+    const b = buildIntervals({ ...sd1, calibration })
+    expect(approxEqual(b.upper['95']![0]! - 100, normalQuantile(0.975), 1e-15)).toBe(true)
+  })
+  it('give quantiles on the bounds of the matching central interval', () => {
+    const b = buildIntervals({ ...sd1, levels: [80, 95], quantiles: [0.025, 0.1, 0.5, 0.9, 0.975] })
+    expect(b.quantiles['0.5']).toEqual([100, 100])
+    expect(b.quantiles['0.975']).toEqual(b.upper['95'])
+    expect(b.quantiles['0.025']).toEqual(b.lower['95'])
+    expect(b.quantiles['0.9']).toEqual(b.upper['80'])
   })
 })

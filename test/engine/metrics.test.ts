@@ -1,7 +1,7 @@
 import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import { EngineInputError } from '../../src/engine/errors.js'
-import { averageMetrics, computeMetrics, maseScale } from '../../src/engine/metrics.js'
+import { averageMetrics, computeMetrics, intervalMetrics, maseScale } from '../../src/engine/metrics.js'
 import { approxEqual } from '../../src/engine/numeric.js'
 import { METRIC_NAMES } from '../../src/engine/types.js'
 
@@ -99,5 +99,25 @@ describe('averageMetrics', () => {
     expect(avg.mae).toBe(1)
     expect(avg.mape).toBe(50)
     expect(averageMetrics([a]).mape).toBeNull()
+  })
+})
+
+describe('intervalMetrics', () => {
+  it('is null without a spread', () => {
+    expect(intervalMetrics([1, 2], [1, 2], null, [1, 2, 3], 1)).toEqual({ msis: null, pinball: null })
+  })
+  // Hand-checked: y = 10, f = 10, sd = 1: the 95% interval 10 -/+ 1.959964 holds y, width 3.919928;
+  // scale of [0, 1, 2] at lag 1 is 1. Pinball at the median is 0; at tau = 0.9, q = 11.281552,
+  // loss (q - y)(1 - tau) = 0.1281552; symmetric for 0.1, and 0.025/0.975 give 0.025 * 1.959964 each.
+  it('scores an interval that holds the actual by its width, and the pinball loss by hand', () => {
+    const r = intervalMetrics([10], [10], [1], [0, 1, 2], 1)
+    expect(r.msis).toBeCloseTo(3.919928, 6)
+    expect(r.pinball).toBeCloseTo((2 * 0.1281552 + 2 * 0.025 * 1.959964) / 5, 6)
+  })
+  // M4 competition interval score: a miss below the lower bound costs (2/0.05) times the miss.
+  it('charges 40 times a miss outside the 95% interval', () => {
+    const inside = intervalMetrics([10], [10], [1], [0, 1, 2], 1).msis!
+    const below = intervalMetrics([5], [10], [1], [0, 1, 2], 1).msis!
+    expect(below - inside).toBeCloseTo(40 * (10 - 1.959964 - 5), 4)
   })
 })

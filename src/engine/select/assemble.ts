@@ -3,6 +3,7 @@
  * residual summary. Also the flat result for constant and all-zero histories.
  */
 import { buildIntervals } from '../intervals.js'
+import type { CalibrationError } from './calibrate.js'
 import { mean, sum } from '../numeric.js'
 import { periodLabels } from '../periods.js'
 import type { PreparedSeries } from '../prepare.js'
@@ -26,6 +27,12 @@ export interface Winner {
   readonly fitted: readonly number[]
   readonly point: readonly number[]
   readonly variance?: readonly number[]
+  /** Residual degrees of freedom (residual count minus parameters), for t quantiles. */
+  readonly degreesOfFreedom?: number
+  /** Forecast errors at rolling origins inside the history (calibrate.ts). */
+  readonly calibration?: readonly CalibrationError[]
+  /** Lower bound of the spread per step (short histories). */
+  readonly floor?: readonly number[]
 }
 
 export interface SelectionSummary {
@@ -72,8 +79,12 @@ export function assembleResult(
   const bounds = buildIntervals({
     point,
     levels: prep.levels,
+    quantiles: prep.quantiles,
     variance: winner.variance,
     residuals,
+    degreesOfFreedom: winner.degreesOfFreedom,
+    calibration: winner.calibration,
+    floor: winner.floor,
     allowNegative: prep.allowNegativeDemand,
     none: constantHistory,
   })
@@ -92,7 +103,9 @@ export function assembleResult(
       const key = String(level)
       return { level, low: bounds.lower[key]![i]!, high: bounds.upper[key]![i]! }
     })
-    return { period: labels[i]!, demand, intervals }
+    if (prep.quantiles.length === 0) return { period: labels[i]!, demand, intervals }
+    const quantiles = prep.quantiles.map((quantile) => ({ quantile, demand: bounds.quantiles[String(quantile)]![i]! }))
+    return { period: labels[i]!, demand, intervals, quantiles }
   })
   return {
     model: winner.model,

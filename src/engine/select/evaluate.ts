@@ -7,7 +7,8 @@
  * each origin comes from that origin's training part.
  */
 import { EngineInputError } from '../errors.js'
-import { averageMetrics, computeMetrics } from '../metrics.js'
+import { modelSpread } from '../intervals.js'
+import { averageMetrics, computeMetrics, intervalMetrics } from '../metrics.js'
 import type { Candidate, MetricSet, ModelFit, ModelParams, ModelSpec } from '../types.js'
 import { lengthReason, structuralReason } from './candidates.js'
 
@@ -16,6 +17,19 @@ export interface Evaluation {
   readonly metrics?: MetricSet
   /** Parameters of the fit at the latest origin (starting point for the refit). */
   readonly params?: ModelParams
+  /**
+   * The holdout's interval measures (msis, pinball), averaged over the origins, from each
+   * fit's own spread. Computed on demand: the spread of a model without a variance formula
+   * needs its in-sample residuals, which cost about as much as the fit.
+   */
+  readonly intervalScores?: () => { msis: number | null; pinball: number | null }
+}
+
+/** The evaluation with msis and pinball added to its metrics and candidate row. */
+export function withIntervalScores(e: Evaluation): Evaluation {
+  if (!e.intervalScores || !e.metrics) return e
+  const metrics = { ...e.metrics, ...e.intervalScores() }
+  return { ...e, metrics, entry: { ...e.entry, holdoutErrors: metrics } }
 }
 
 function failure(spec: ModelSpec, err: unknown): Evaluation {
@@ -40,6 +54,25 @@ export function checkedForecast(fit: ModelFit, horizon: number): number[] {
   return f
 }
 
+/**
+ * The fit's own (uncalibrated) spread per step for the holdout's interval measures
+ * (intervals.modelSpread); null when it has none.
+ */
+function ownSpread(fit: ModelFit, train: readonly number[], steps: number): number[] | null {
+  const variance = fit.forecastVariance?.(steps)
+  let residuals: number[] = []
+  if (!variance || !variance.every((v) => Number.isFinite(v) && v >= 0)) {
+    const fitted = fit.fitted
+    residuals = []
+    for (let t = 0; t < train.length; t++) {
+      const f = fitted[t]
+      if (f !== undefined && Number.isFinite(f)) residuals.push(train[t]! - f)
+    }
+  }
+  const { method, sd } = modelSpread(steps, variance, residuals)
+  return method === 'none' ? null : sd
+}
+
 export function evaluateHoldout(
   spec: ModelSpec,
   values: readonly number[],
@@ -54,17 +87,26 @@ export function evaluateHoldout(
   if (why) return skipped(spec, why)
   try {
     const sets: MetricSet[] = []
+    const kept: { fit: ModelFit; train: number[]; actual: number[]; forecast: number[] }[] = []
     let params: ModelParams | undefined
     for (let k = 0; k < origins; k++) {
       const end = n - holdout - k
       const train = values.slice(0, end)
       const fit = spec.fit(train, { seasonLength })
       const forecast = checkedForecast(fit, holdout)
-      sets.push(computeMetrics(values.slice(end, end + holdout), forecast, train, seasonLength))
+      const actual = values.slice(end, end + holdout)
+      sets.push(computeMetrics(actual, forecast, train, seasonLength))
+      kept.push({ fit, train, actual, forecast })
       if (k === 0) params = fit.params
     }
     const metrics = averageMetrics(sets)
-    return { entry: { model: spec.name, family: spec.family, status: 'scored', holdoutErrors: metrics }, metrics, params }
+    const intervalScores = (): { msis: number | null; pinball: number | null } => {
+      const each = kept.map((o) => intervalMetrics(o.actual, o.forecast, ownSpread(o.fit, o.train, holdout), o.train, seasonLength))
+      const avg = (key: 'msis' | 'pinball'): number | null =>
+        each.every((x) => x[key] !== null) ? each.reduce((a, x) => a + x[key]!, 0) / each.length : null
+      return { msis: avg('msis'), pinball: avg('pinball') }
+    }
+    return { entry: { model: spec.name, family: spec.family, status: 'scored', holdoutErrors: metrics }, metrics, params, intervalScores }
   } catch (err) {
     return failure(spec, err)
   }

@@ -19,11 +19,13 @@ import { prepareSeries, type PreparedSeries } from '../prepare.js'
 import type { EngineWarning, ForecastResult, ModelSpec, SeriesInput } from '../types.js'
 import { assembleResult, naiveWinner, type Winner } from './assemble.js'
 import { candidateModels, lengthReason, requiredLength, structuralReason } from './candidates.js'
-import { checkedForecast, evaluateHoldout, evaluateInSample, skipped, type Evaluation } from './evaluate.js'
+import { checkedForecast, evaluateHoldout, evaluateInSample, skipped, withIntervalScores, type Evaluation } from './evaluate.js'
 import { MIN_TRAINING, planHoldout } from './holdout.js'
 import { rankEvaluations, shortlistFirst } from './rank.js'
 import { hasSeasonality } from './seasonality.js'
 import { orderByCriterion, parameterCount, SHORTLIST_SIZE } from './shortlist.js'
+import { calibrationErrors, type CalibrationBudget } from './calibrate.js'
+import { SHORT_HISTORY } from '../prepare.js'
 
 export interface EngineModels {
   readonly registry: readonly ModelSpec[]
@@ -43,6 +45,8 @@ const DEFAULT_MODELS: EngineModels = { registry: MODEL_REGISTRY, classify: class
 function seasonalExclusion(prep: PreparedSeries, models: EngineModels): string | null {
   const m = prep.seasonLength
   if (prep.models !== undefined || m < 2 || !models.seasonalityTest) return null
+  // Below two seasons no test can show a season: the length rule's reason says what is missing.
+  if (prep.values.length < 2 * m) return null
   return models.seasonalityTest(prep.values, m) ? null : `no significant seasonality at lag ${m} (${prep.values.length >= 3 * m ? 'autocorrelation' : 'Kruskal-Wallis'} test at the 10% level)`
 }
 
@@ -94,6 +98,26 @@ function canTrain(specs: readonly ModelSpec[], prep: PreparedSeries, length: num
   )
 }
 
+/** Calibration origins per model search (select/calibrate.ts); more origins, more fits. */
+const CALIBRATION: Record<'fast' | 'thorough', CalibrationBudget> = {
+  fast: { extra: 2, maxFits: 5 },
+  thorough: { extra: 12, maxFits: 24 },
+}
+
+/**
+ * The last-value method's spread per step, sigma_1 sqrt(h) with sigma_1 the root mean square
+ * of its one-step errors: the floor of the intervals of histories shorter than
+ * SHORT_HISTORY, where the data cannot show that the chosen model beats it (model
+ * uncertainty). Empty below 2 points.
+ */
+function naiveSpread(values: readonly number[], horizon: number): number[] | undefined {
+  if (values.length < 2) return undefined
+  let ss = 0
+  for (let t = 1; t < values.length; t++) ss += (values[t]! - values[t - 1]!) ** 2
+  const sigma = Math.sqrt(ss / (values.length - 1))
+  return Array.from({ length: horizon }, (_, i) => sigma * Math.sqrt(i + 1))
+}
+
 export function forecastSeriesWith(input: SeriesInput, models: EngineModels): ForecastResult {
   const prep = prepareSeries(input)
   const warnings: EngineWarning[] = [...prep.warnings]
@@ -133,6 +157,7 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
       message: `history of ${n} periods is too short for a holdout; models were ranked by in-sample one-step errors`,
     })
   }
+  if (prep.modelSearch === 'thorough') evaluations = evaluations.map(withIntervalScores)
   const ranking = rankEvaluations(specs, evaluations, prep.rankBy)
   if (ranking.order.length === 0) {
     // Report a length problem if there is one (more data helps); else every reason.
@@ -152,6 +177,7 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
   // (holdout selection), or only the first (in-sample selection); then pick by AICc.
   const want = method === 'holdout' ? SHORTLIST_SIZE : 1
   const refits: { index: number; winner: Winner; complexity: number }[] = []
+  const residualCount = (fitted: readonly number[]): number => fitted.reduce((c, f) => (Number.isFinite(f) ? c + 1 : c), 0)
   for (const i of ranking.order) {
     if (refits.length >= want) break
     const spec = specs[i]!
@@ -159,10 +185,15 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
       const fit = spec.fit(prep.values, { seasonLength: m, initialParams: evaluations[i]!.params })
       const point = checkedForecast(fit, prep.horizon)
       const variance = fit.forecastVariance?.(prep.horizon)
+      const complexity = parameterCount(spec, fit.params, m)
+      const fitted = fit.fitted
       refits.push({
         index: i,
-        complexity: parameterCount(spec, fit.params, m),
-        winner: { model: spec.name, family: spec.family, params: fit.params, fitted: fit.fitted, point, variance },
+        complexity,
+        winner: {
+          model: spec.name, family: spec.family, params: fit.params, fitted, point, variance,
+          degreesOfFreedom: residualCount(fitted) - complexity,
+        },
       })
     } catch (err) {
       const why = err instanceof Error ? err.message : String(err)
@@ -172,11 +203,17 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
   const finalOrder = orderByCriterion(prep.values, refits.map((r) => ({ fitted: r.winner.fitted, complexity: r.complexity })))
   const chosen = refits.length > 0 ? refits[finalOrder[0]!] : undefined
   let winner: Winner | undefined = chosen?.winner
-  const winnerEval: Evaluation | undefined = chosen ? evaluations[chosen.index] : undefined
-  const candidates = shortlistFirst(ranking.candidates, finalOrder.map((k) => specs[refits[k]!.index]!.name))
+  // The chosen model's interval measures (every candidate's with modelSearch thorough, above).
+  const winnerEval: Evaluation | undefined = chosen ? withIntervalScores(evaluations[chosen.index]!) : undefined
+  const rows = winnerEval ? ranking.candidates.map((c) => (c.model === winnerEval.entry.model && c.status === 'scored' ? { ...c, holdoutErrors: winnerEval.metrics } : c)) : ranking.candidates
+  const candidates = shortlistFirst(rows, finalOrder.map((k) => specs[refits[k]!.index]!.name))
   if (!winner) {
     warnings.push({ code: 'fallback-last-value', message: 'no candidate could be refitted on the full history; last-value forecast used' })
     winner = naiveWinner(prep.values, prep.horizon)
+  } else if (chosen) {
+    const spec = specs[chosen.index]!
+    const calibration = calibrationErrors(spec, prep.values, m, prep.horizon, winner.params, CALIBRATION[prep.modelSearch])
+    winner = { ...winner, calibration, floor: n < SHORT_HISTORY ? naiveSpread(prep.values, prep.horizon) : undefined }
   }
   return assembleResult(
     prep,

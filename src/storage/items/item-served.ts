@@ -67,7 +67,19 @@ export function servedBytes(item: ResultItem): Buffer {
     rounded(p.demand, 7)
     text(',"intervals":[')
     intervals(p.intervals)
-    text(']}')
+    text(']')
+    const qs = p.quantiles
+    if (qs) {
+      for (let j = 0; j < qs.length; j++) {
+        text(j === 0 ? ',"quantiles":[{"quantile":' : ',{"quantile":')
+        value(qs[j]!.quantile)
+        text(',"demand":')
+        rounded(qs[j]!.demand, 7)
+        text('}')
+      }
+      text(qs.length === 0 ? ',"quantiles":[]' : ']')
+    }
+    text('}')
   }
   text('],"intervalMethod":')
   value(item.intervalMethod)
@@ -269,6 +281,17 @@ function errors(m: MetricSet | null | undefined): void {
     const v = m[METRIC_NAMES[i]!]
     if (v === null) text('null')
     else rounded(v, 4)
+  }
+  // Interval measures: on the chosen model's row (every row with modelSearch thorough).
+  if (m.msis !== undefined) {
+    text(',"msis":')
+    if (m.msis === null) text('null')
+    else rounded(m.msis, 4)
+  }
+  if (m.pinball !== undefined) {
+    text(',"pinball":')
+    if (m.pinball === null) text('null')
+    else rounded(m.pinball, 4)
   }
   text('}')
 }

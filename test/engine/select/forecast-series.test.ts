@@ -1,7 +1,7 @@
 import { high, low } from '../points.js'
 import { describe, expect, it } from 'vitest'
 import { EngineInputError } from '../../../src/engine/errors.js'
-import { computeMetrics } from '../../../src/engine/metrics.js'
+import { computeMetrics, intervalMetrics } from '../../../src/engine/metrics.js'
 import { approxEqual } from '../../../src/engine/numeric.js'
 import { forecastSeriesWith, type EngineModels } from '../../../src/engine/select/index.js'
 import type { FitContext, ModelSpec, SeriesInput } from '../../../src/engine/types.js'
@@ -25,14 +25,15 @@ describe('forecastSeries with test doubles: flat histories', () => {
     expect(r.forecast[0]).toEqual({ period: '2021-Q4', demand: 7, intervals: [{ level: 80, low: 7, high: 7 }, { level: 95, low: 7, high: 7 }] })
     expect(r.intervalMethod).toBe('none')
     expect(r.candidates).toEqual([])
-    expect(r.warnings.map((w) => w.code)).toEqual(['constant-series'])
+    // Three quarters: too short to trust and shorter than two seasons, besides constant.
+    expect(r.warnings.map((w) => w.code)).toEqual(['short-history', 'fewer-than-two-seasons', 'constant-series'])
     expect(r.fitted).toEqual([null, 7, 7])
   })
 
   it('forecasts zero for an all-zero history', () => {
     const r = forecastSeriesWith({ ...series, demand: [0, null, 0] }, withFakes(fakeMean()))
     expect(r.forecast.every((p) => p.demand === 0 && low(p, 95) === 0 && high(p, 95) === 0)).toBe(true)
-    expect(r.warnings.map((w) => w.code)).toEqual(['missing-filled', 'all-zero-series'])
+    expect(r.warnings.map((w) => w.code)).toEqual(['missing-filled', 'short-history', 'fewer-than-two-seasons', 'all-zero-series'])
   })
 })
 
@@ -59,8 +60,15 @@ describe('forecastSeries with test doubles: the candidates', () => {
     const scored = r.candidates.filter((e) => e.status === 'scored')
     expect(r.candidates.slice(0, scored.length)).toEqual(scored)
     for (let i = 1; i < scored.length; i++) expect(scored[i]!.score!).toBeGreaterThanOrEqual(scored[i - 1]!.score!)
-    for (const e of scored) expect(Object.keys(e.holdoutErrors!).sort()).toEqual(['mae', 'mape', 'mase', 'rmse', 'smape', 'wape'])
+    // Every point measure on every row; the interval measures on the chosen model's row
+    // (on every row with modelSearch thorough: they need each model's residuals).
+    const all = ['mae', 'mape', 'mase', 'msis', 'pinball', 'rmse', 'smape', 'wape']
+    for (const e of scored) {
+      expect(Object.keys(e.holdoutErrors!).sort()).toEqual(e.model === r.model ? all : all.filter((k) => k !== 'msis' && k !== 'pinball'))
+    }
     expect(r.model).toBe(scored[0]!.model)
+    const thorough = forecastSeriesWith({ ...series, modelSearch: 'thorough' }, models)
+    for (const e of thorough.candidates.filter((c) => c.status === 'scored')) expect(Object.keys(e.holdoutErrors!).sort()).toEqual(all)
   })
 
   it('says a seasonal model needs a season length of at least 2', () => {
@@ -87,8 +95,15 @@ describe('forecastSeries with test doubles: the candidates', () => {
     const train = v.slice(0, 9)
     const expected = computeMetrics(v.slice(9), new Array(3).fill(train.reduce((a, b) => a + b) / 9), train, 4)
     expect(r.modelChoice).toEqual({ method: 'holdout', rankBy: 'rmse', holdoutPeriods: 3, holdoutOrigins: 1 })
-    expect(r.holdoutErrors).toEqual(expected)
+    expect(r.holdoutErrors).toMatchObject(expected)
     expect(r.candidates[0]!.score).toBe(expected.rmse)
+    // The fake has no variance: its spread is the RMS of its one-step residuals times sqrt(h)
+    // (intervals.modelSpread), and the interval measures use it.
+    const residuals = train.slice(1).map((y, t) => y - train.slice(0, t + 1).reduce((a, b) => a + b) / (t + 1))
+    const sigma = Math.sqrt(residuals.reduce((a, e) => a + e * e, 0) / residuals.length)
+    const own = intervalMetrics(v.slice(9), new Array(3).fill(train.reduce((a, b) => a + b) / 9), [1, 2, 3].map((h) => sigma * Math.sqrt(h)), train, 4)
+    expect(r.holdoutErrors!.msis).toBeCloseTo(own.msis!, 12)
+    expect(r.holdoutErrors!.pinball).toBeCloseTo(own.pinball!, 12)
   })
 
   it('averages metrics over rolling origins ending at n - holdout - k', () => {
@@ -111,8 +126,12 @@ describe('forecastSeries with test doubles: the candidates', () => {
       params: (s) => ({ trainedOn: s.length }),
     })
     const r = forecastSeriesWith({ ...series, holdoutPeriods: 4 }, withFakes(spy))
-    expect(calls.map((c) => c.length)).toEqual([8, 12])
+    // Holdout fit on 8, refit on 12, then the calibration origins (select/calibrate.ts):
+    // offsets 1 .. horizon + 2 = 6 (leaving the 6 training points an origin needs), five
+    // of them evenly spread: 1, 2, 4, 5, 6.
+    expect(calls.map((c) => c.length)).toEqual([8, 12, 11, 10, 8, 7, 6])
     expect(calls[1]!.ctx.initialParams).toEqual({ trainedOn: 8 })
+    expect(calls[2]!.ctx.initialParams).toEqual({ trainedOn: 12 })
     expect(r.params).toEqual({ trainedOn: 12 })
   })
 
@@ -170,9 +189,11 @@ describe('forecastSeries with test doubles: output', () => {
     const down = fakeSpec({ name: 'linear-trend', forecast: (s, h) => Array.from({ length: h }, (_, i) => s[s.length - 1]! - 8 * (i + 1)) })
     const r = forecastSeriesWith({ ...series, demand: [40, 32, 24, 16, 8], horizon: 3, holdoutPeriods: 1 }, withFakes(down))
     expect(r.forecast.map((p) => p.demand)).toEqual([0, 0, 0])
-    // residuals are all zero (a linear series): no interval bound had to be raised
-    expect(r.warnings.map((w) => w.code)).not.toContain('intervals-raised-to-zero')
+    // The residuals are all zero (a linear series), but five points are a short history:
+    // the intervals take the last-value method's spread as a floor, and reach below zero.
+    expect(r.warnings.map((w) => w.code)).toContain('intervals-raised-to-zero')
     expect(r.warnings.map((w) => w.code)).toContain('forecast-raised-to-zero')
+    expect(r.forecast.every((p) => low(p, 95) === 0 && high(p, 95) > 0)).toBe(true)
     const free = forecastSeriesWith({ ...series, demand: [40, 32, 24, 16, 8], horizon: 3, holdoutPeriods: 1, allowNegativeDemand: true }, withFakes(down))
     expect(free.forecast.map((p) => p.demand)).toEqual([0, -8, -16])
   })
@@ -181,7 +202,17 @@ describe('forecastSeries with test doubles: output', () => {
     const withVar = fakeSpec({ name: 'level-smoothing', forecast: (s, h) => new Array(h).fill(100), variance: (h) => new Array(h).fill(4) })
     const r = forecastSeriesWith({ ...series, demand: [100, 102, 98, 101, 99, 100] }, withFakes(withVar))
     expect(r.intervalMethod).toBe('analytical')
-    expect(approxEqual(high(r.forecast[0]!, 95), 100 + 1.959963984540054 * 2, 1e-15)).toBe(true)
+    // Six points: short history, so the Student t quantile with 5 residuals - 1 parameter
+    // = 4 degrees of freedom (R: qt(0.975, 4) = 2.776445) and the last-value spread as a
+    // floor: one-step differences 2, -4, 3, -2, 1, RMS sqrt(34/5) > 2.
+    const floor = Math.sqrt(34 / 5)
+    // Tolerance 5e-4 relative: the t quantile's Cornish-Fisher expansion at 4 df (intervals.test.ts).
+    expect(approxEqual((high(r.forecast[0]!, 95) - 100) / floor, 2.776445, 5e-4)).toBe(true)
+    const long = forecastSeriesWith({ ...series, demand: [100, 102, 98, 101, 99, 100, 101, 99, 100, 102, 98, 100] }, withFakes(withVar))
+    // Twelve points: calibrated on rolling origins; their errors (at most 2 = one sd) are
+    // inside the model's spread, so calibration does not widen: t quantile, 10 df (R: qt(0.975, 10) = 2.228139).
+    expect(long.intervalMethod).toBe('calibrated')
+    expect(approxEqual((high(long.forecast[0]!, 95) - 100) / 2, 2.228139, 1e-5)).toBe(true)
   })
 
   it('summarises residuals and reports fitted values with null where undefined', () => {

@@ -20,7 +20,11 @@ function reference(sku: string, item: ResultItem): string {
   if ('failure' in item) return JSON.stringify({ sku, frequency: item.frequency, failure: { code: item.failure.code, message: item.failure.message } })
   const r7 = (x: number) => round(x, 7)
   const r4 = (x: number) => round(x, 4)
-  const errors = (m: MetricSet) => Object.fromEntries(METRIC_NAMES.map((k) => [k, m[k] === null ? null : r4(m[k])]))
+  const errors = (m: MetricSet) => ({
+    ...Object.fromEntries(METRIC_NAMES.map((k) => [k, m[k] === null ? null : r4(m[k])])),
+    ...(m.msis !== undefined ? { msis: m.msis === null ? null : r4(m.msis) } : {}),
+    ...(m.pinball !== undefined ? { pinball: m.pinball === null ? null : r4(m.pinball) } : {}),
+  })
   const c = item.modelChoice
   const r = item.replenishment
   return JSON.stringify({
@@ -43,6 +47,7 @@ function reference(sku: string, item: ResultItem): string {
       period: p.period,
       demand: r7(p.demand),
       intervals: p.intervals.map((i) => ({ level: i.level, low: r7(i.low), high: r7(i.high) })),
+      ...(p.quantiles ? { quantiles: p.quantiles.map((q) => ({ quantile: q.quantile, demand: r7(q.demand) })) } : {}),
     })),
     intervalMethod: item.intervalMethod,
     warnings: item.warnings.map((w) => ({ code: w.code, message: w.message })),
@@ -53,7 +58,10 @@ function reference(sku: string, item: ResultItem): string {
 const text = fc.string({ unit: 'grapheme', maxLength: 12 })
 const num = fc.double()
 const nullableNum = fc.option(num, { nil: null })
-const errorSet = fc.record(Object.fromEntries(METRIC_NAMES.map((m) => [m, nullableNum])) as Record<(typeof METRIC_NAMES)[number], typeof nullableNum>)
+const errorSet = fc.record(
+  { ...(Object.fromEntries(METRIC_NAMES.map((m) => [m, nullableNum])) as Record<(typeof METRIC_NAMES)[number], typeof nullableNum>), msis: nullableNum, pinball: nullableNum },
+  { requiredKeys: [...METRIC_NAMES] },
+)
 const modelName = fc.constantFrom(...MODEL_REGISTRY.map((m) => m.name))
 const family = fc.constantFrom('level', 'trend', 'seasonal', 'seasonal-trend', 'intermittent')
 const frequency = fc.constantFrom(...FREQUENCIES)
@@ -98,7 +106,7 @@ const forecastItem = fc
     candidates: fc.array(candidate, { maxLength: 4 }),
     levels,
     points: fc.array(fc.record({ period: text, demand: num, bounds: fc.array(num, { minLength: 6, maxLength: 6 }) }), { maxLength: 5 }),
-    intervalMethod: fc.constantFrom('analytical', 'empirical', 'none'),
+    intervalMethod: fc.constantFrom('analytical', 'empirical', 'calibrated', 'none'),
     warnings: fc.array(fc.record({ code: text, message: text }), { maxLength: 2 }),
     replenishment: fc.option(
       fc.record({

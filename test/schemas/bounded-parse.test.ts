@@ -30,6 +30,17 @@ describe('boundedSafeParse (issue 14, finding 1: a huge invalid body must not co
     expect(pathKey(r.issues[99]!.path)).toBe('series/4/demand/3')
   })
 
+  it('an unknown key named like an Object.prototype member is an unknown field, not a schema', () => {
+    // Seen failing before the fix: `constructor` found Object.prototype.constructor as its "schema" (a 500).
+    for (const key of ['constructor', 'toString', 'hasOwnProperty', 'valueOf']) {
+      const body = JSON.parse(`{"horizon": 3, "series": [{"sku": "A", "demand": [1, 2, 3]}], "${key}": 1}`) as unknown
+      const r = boundedSafeParse(RunSubmission, body, 100)
+      expect(r.success, key).toBe(false)
+      if (r.success) continue
+      expect(r.issues, key).toEqual([{ path: [key], message: 'is not a field of this request', code: 'unrecognized_keys' }])
+    }
+  })
+
   it('names unknown fields of strict objects one by one, also stopping', () => {
     const body = { horizon: 3, series: Array.from({ length: 500 }, (_, i) => ({ sku: `S${i}`, demand: [1], extra: 1 })) }
     const r = boundedSafeParse(RunSubmission, body, 100)

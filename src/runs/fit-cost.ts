@@ -1,4 +1,4 @@
-import { DEFAULT_SEASON_LENGTH, MODEL_NAMES } from '../engine/index.js'
+import { DEFAULT_SEASON_LENGTH, MODEL_REGISTRY } from '../engine/index.js'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 
 /**
@@ -11,7 +11,8 @@ import type { RunSettings, SeriesItem } from '../schemas/run.js'
 export function seriesFitCost(settings: RunSettings, series: SeriesItem): number {
   const frequency = series.frequency ?? settings.frequency
   const seasonLength = series.seasonLength ?? settings.seasonLength ?? DEFAULT_SEASON_LENGTH[frequency]
-  const candidates = settings.models?.length ?? MODEL_NAMES.length
+  // Unlisted models mean the default pool: the registry's models (model ids outside it are never fitted by default).
+  const candidates = settings.models?.length ?? MODEL_REGISTRY.length
   return series.demand.length * seasonLength * settings.holdoutOrigins * candidates
 }
 

@@ -1,14 +1,14 @@
 import { describe, expect, it } from 'vitest'
-import { MODEL_NAMES } from '../../src/engine/index.js'
+import { MODEL_REGISTRY } from '../../src/engine/index.js'
 import { requestFitCost, seriesFitCost } from '../../src/runs/fit-cost.js'
 import { RunSettings } from '../../src/schemas/run.js'
 
 const settings = (extra: object = {}) => RunSettings.parse({ horizon: 3, ...extra })
 
 describe('fit cost: points x season length x holdout origins x candidates', () => {
-  it('uses the frequency default season and every model when none are listed', () => {
+  it('uses the frequency default season and the default pool of models when none are listed', () => {
     // Monthly: season 12 by default; one origin by default.
-    expect(seriesFitCost(settings(), { sku: 'A', demand: [1, 2, 3, 4] })).toBe(4 * 12 * 1 * MODEL_NAMES.length)
+    expect(seriesFitCost(settings(), { sku: 'A', demand: [1, 2, 3, 4] })).toBe(4 * 12 * 1 * MODEL_REGISTRY.length)
   })
 
   it('takes the series settings over the run settings', () => {

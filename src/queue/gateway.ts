@@ -4,7 +4,7 @@ import { queuePrefix, type Config } from '../config.js'
 import { logErrors, type Logger } from '../logger.js'
 import type { RunGateway, RunRecord } from '../runs/contract.js'
 import { runFailure } from '../runs/failures.js'
-import { checkRunOptions, checkUniqueSkus, emptyScopeError } from '../runs/input.js'
+import { checkInlineOptions, checkRunOptions, checkUniqueSkus, emptyScopeError } from '../runs/input.js'
 import type { RunRequest } from '../schemas/run.js'
 import { closeSteps } from '../shutdown.js'
 import { HistoryStore } from '../storage/histories/history-store.js'
@@ -64,8 +64,10 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
     async submit(tenant: string, request: RunRequest): Promise<RunRecord> {
       checkRunOptions(request)
       checkUniqueSkus(request.series)
+      checkInlineOptions(request)
       const runId = randomUUID()
-      const { record, chunks } = await store.createRun(tenant, runId, request, config.chunkSize, now())
+      // Inline series are a what-if unless the caller asks to publish them.
+      const { record, chunks } = await store.createRun(tenant, runId, { ...request, publish: request.publish ?? false }, config.chunkSize, now())
       await enqueueChunks(tenant, runId, chunks)
       return record
     },
@@ -76,7 +78,8 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
       const created = await createRunFromHistories(redis, runStoreOptions(config), histories, {
         tenant,
         runId,
-        settings,
+        // Runs over stored histories (and so schedules) publish unless told not to.
+        settings: { ...settings, publish: settings.publish ?? true },
         scope,
         chunkSize: config.chunkSize,
         now: now(),

@@ -75,7 +75,7 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     }
     const computeMs = Math.round(performance.now() - started)
     const tally = tallier.tally()
-    const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now())
+    const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now(), run.settings.publish === true)
     // Counted once per chunk: only the call whose commit took the items (a retried chunk is not counted twice).
     if (outcome === 'committed' || outcome === 'finished') await store.stats.recordFits(fitSeconds, tally.failed)
     // Before the input is deleted, so a failed emit retries the chunk (the commit is then a no-op).

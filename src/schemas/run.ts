@@ -115,6 +115,21 @@ export const RunSettings = z.strictObject({
   keepLeadingZeros: z.boolean().default(false),
   replenishment: ReplenishmentSettings.optional(),
   callbackUrl: CallbackUrl.optional(),
+  publish: z
+    .boolean()
+    .optional()
+    .describe(
+      'true: the results become the SKUs\' published forecasts (served at /v1/skus/{sku}/forecast, scored against ' +
+        'actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) ' +
+        'and schedules, false for inline series.',
+    ),
+  openPeriods: z
+    .enum(['exclude', 'include'])
+    .optional()
+    .describe(
+      'Stored periods after the tenant\'s closed-through period of their frequency: exclude (default) leaves them out ' +
+        'of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.',
+    ),
 })
 export type RunSettings = z.infer<typeof RunSettings>
 

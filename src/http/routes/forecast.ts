@@ -6,7 +6,7 @@ import { RunRequest, type RunSettings, type SeriesItem } from '../../schemas/run
 import type { ResultItem } from '../../runs/contract.js'
 import type { ServiceMetrics } from '../metrics.js'
 import { SYNC_FORECAST } from './responses.js'
-import { checkRunOptions } from '../../runs/input.js'
+import { checkInlineOptions, checkRunOptions } from '../../runs/input.js'
 import { forecastItem } from '../../runs/forecast-sku.js'
 
 export type ForecastFn = (input: SeriesInput) => ForecastResult
@@ -58,7 +58,12 @@ export function forecastRoutes(fn: ForecastFn): FastifyPluginAsyncZod {
           const message = 'only runs call back; POST /v1/forecast answers in the response'
           throw new ProblemError('validation-failed', message, [{ path: 'callbackUrl', message }])
         }
+        if (settings.publish === true) {
+          const message = 'a synchronous forecast is never published; submit a run with POST /v1/runs and publish: true'
+          throw new ProblemError('validation-failed', message, [{ path: 'publish', message }])
+        }
         checkRunOptions(settings) // same option checks as a run: RunInputError -> 400
+        checkInlineOptions(settings)
         // Fitting is CPU work on the event loop: yield every ~20 ms so health checks and other requests keep flowing.
         const items: ResultItem[] = []
         let slice = performance.now()

@@ -472,6 +472,13 @@ export interface components {
              * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
              */
             callbackUrl?: string;
+            /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+            publish?: boolean;
+            /**
+             * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+             * @enum {string}
+             */
+            openPeriods?: "exclude" | "include";
             series: {
                 /** @description Stock-keeping unit code, unique within the tenant */
                 sku: string;
@@ -702,6 +709,13 @@ export interface components {
                  * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
                  */
                 callbackUrl?: string;
+                /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+                publish?: boolean;
+                /**
+                 * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+                 * @enum {string}
+                 */
+                openPeriods?: "exclude" | "include";
             };
             /** @description The stored histories the run covers; null for a run over inline series */
             scope: components["schemas"]["Scope"] | null;
@@ -860,10 +874,16 @@ export interface components {
             mape: number | null;
             /** @description Sum of deviations / MAE */
             trackingSignal: number | null;
-            /** @description |trackingSignal| > trackingLimit with at least 4 periods scored */
+            /** @description Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, in [-1, 1] */
+            smoothedTrackingSignal: number | null;
+            /** @description flaggedBy is not empty */
             flagged: boolean;
+            /** @description Rules that fired, each needing at least ceil(trackingLimit) periods scored: |trackingSignal| >= trackingLimit; |smoothedTrackingSignal| > smoothedTrackingLimit */
+            flaggedBy: ("tracking-signal" | "smoothed-tracking-signal")[];
             /** @description Tracking-signal limit (4, common practice) */
             trackingLimit: number;
+            /** @description Limit of the smoothed signal: its approximate 95 % bound for unbiased errors */
+            smoothedTrackingLimit: number;
             updatedAt: string;
         };
         Access: {
@@ -961,6 +981,13 @@ export interface components {
              * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
              */
             callbackUrl?: string;
+            /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+            publish?: boolean;
+            /**
+             * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+             * @enum {string}
+             */
+            openPeriods?: "exclude" | "include";
             id: string;
             name: string | null;
             cron: string;
@@ -1249,6 +1276,13 @@ export interface operations {
                      * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
                      */
                     callbackUrl?: string;
+                    /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+                    publish?: boolean;
+                    /**
+                     * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+                     * @enum {string}
+                     */
+                    openPeriods?: "exclude" | "include";
                     /** @description Series given inline */
                     series?: {
                         /** @description Stock-keeping unit code, unique within the tenant */
@@ -2928,6 +2962,13 @@ export interface operations {
                      * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
                      */
                     callbackUrl?: string;
+                    /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+                    publish?: boolean;
+                    /**
+                     * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+                     * @enum {string}
+                     */
+                    openPeriods?: "exclude" | "include";
                     name?: string;
                     /** @description Cron pattern: minute hour day-of-month month day-of-week (or 6 fields with seconds first), e.g. `0 2 * * 1-5` */
                     cron: string;
@@ -3239,10 +3280,16 @@ export interface operations {
                         mape: number | null;
                         /** @description Sum of deviations / MAE */
                         trackingSignal: number | null;
-                        /** @description |trackingSignal| > trackingLimit with at least 4 periods scored */
+                        /** @description Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, in [-1, 1] */
+                        smoothedTrackingSignal: number | null;
+                        /** @description flaggedBy is not empty */
                         flagged: boolean;
+                        /** @description Rules that fired, each needing at least ceil(trackingLimit) periods scored: |trackingSignal| >= trackingLimit; |smoothedTrackingSignal| > smoothedTrackingLimit */
+                        flaggedBy: ("tracking-signal" | "smoothed-tracking-signal")[];
                         /** @description Tracking-signal limit (4, common practice) */
                         trackingLimit: number;
+                        /** @description Limit of the smoothed signal: its approximate 95 % bound for unbiased errors */
+                        smoothedTrackingLimit: number;
                         updatedAt: string;
                         periods: {
                             period: string;

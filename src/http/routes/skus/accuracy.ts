@@ -13,8 +13,19 @@ export const AccuracySummarySchema = z
     bias: z.number().nullable().describe('Mean deviation, actual − forecast demand: positive means demand above the forecast'),
     mape: z.number().nullable().describe('Mean absolute percentage error over non-zero actuals; null if none'),
     trackingSignal: z.number().nullable().describe('Sum of deviations / MAE'),
-    flagged: z.boolean().describe('|trackingSignal| > trackingLimit with at least 4 periods scored'),
+    smoothedTrackingSignal: z
+      .number()
+      .nullable()
+      .describe("Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, in [-1, 1]"),
+    flagged: z.boolean().describe('flaggedBy is not empty'),
+    flaggedBy: z
+      .array(z.enum(['tracking-signal', 'smoothed-tracking-signal']))
+      .describe(
+        'Rules that fired, each needing at least ceil(trackingLimit) periods scored: |trackingSignal| >= trackingLimit; ' +
+          '|smoothedTrackingSignal| > smoothedTrackingLimit',
+      ),
     trackingLimit: z.number().describe('Tracking-signal limit (4, common practice)'),
+    smoothedTrackingLimit: z.number().describe('Limit of the smoothed signal: its approximate 95 % bound for unbiased errors'),
     updatedAt: z.string(),
   })
   .meta({ id: 'AccuracySummary' })

@@ -8,6 +8,7 @@ import { checkInlineOptions, checkRunOptions, checkUniqueSkus, emptyScopeError }
 import type { RunRequest } from '../schemas/run.js'
 import { closeSteps } from '../shutdown.js'
 import { HistoryStore } from '../storage/histories/history-store.js'
+import { ClosingStore } from '../storage/erp/closing-store.js'
 import { requestConnection } from '../storage/redis.js'
 import { createRunFromHistories } from '../storage/runs/history-runs.js'
 import { resultsPageJson } from '../storage/runs/result-pages.js'
@@ -39,6 +40,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
 
   const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
   const histories = new HistoryStore(redis, { prefix: config.redisPrefix })
+  const closing = new ClosingStore(redis, config.redisPrefix)
 
   /** Enqueues one job per stored chunk, in batches; on failure the run is ended as failed. */
   async function enqueueChunks(tenant: string, runId: string, chunks: number): Promise<void> {
@@ -83,8 +85,10 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
         scope,
         chunkSize: config.chunkSize,
         now: now(),
+        closed: await closing.ordinals(tenant),
       })
       if (created === null) throw emptyScopeError(scope)
+      if (created.openOnlySkus > 0) log.info({ tenant, runId, openOnlySkus: created.openOnlySkus }, 'SKUs with only open periods left out of the run')
       await enqueueChunks(tenant, runId, created.chunks)
       return { record: created.record, missingSkus: created.missingSkus }
     },

@@ -15,5 +15,8 @@ export function runFailure(code: RunFailureCode, message: string): Failure {
 /** Replenishment figures were asked for but do not fit the series (the forecast stands without them). */
 export const REPLENISHMENT_SKIPPED = 'replenishment-skipped'
 
+/** A stored history was fitted with periods after the closed-through period (`openPeriods: "include"`). */
+export const OPEN_PERIODS_FITTED = 'open-periods-fitted'
+
 /** Warning codes the service adds to result items beside the engine's own (docs/warnings.md). */
-export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED] as const
+export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED, OPEN_PERIODS_FITTED] as const

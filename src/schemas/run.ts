@@ -71,6 +71,16 @@ export const SeriesItem = z.strictObject({
 })
 export type SeriesItem = z.infer<typeof SeriesItem>
 
+/**
+ * A series as a chunk job reads it: a SeriesItem, plus for a stored history
+ * fitted with its open periods (`openPeriods: "include"`) how many there are,
+ * so the result item can say so. Never part of a request.
+ */
+export const ChunkSeriesItem = SeriesItem.extend({
+  openPeriods: z.number().int().min(1).optional(),
+})
+export type ChunkSeriesItem = z.infer<typeof ChunkSeriesItem>
+
 export const ReplenishmentSettings = z
   .strictObject({
     leadTimePeriods: z.number().int().min(1).max(MAX_HORIZON).describe('Lead time in periods (1..horizon)'),

@@ -1,7 +1,7 @@
 import type { Config } from '../../config.js'
 import type { RedisClient } from '../redis.js'
 import { countOf, decodeJson, oneOf } from '../decode.js'
-import { RunSettings, SeriesItem, type RunRequest } from '../../schemas/run.js'
+import { ChunkSeriesItem, RunSettings, type RunRequest } from '../../schemas/run.js'
 import { isSeriesItem } from '../../schemas/series-check.js'
 import { z } from 'zod'
 import { decodeRunRecord, encodeFailure, newRunFields } from './run-hash.js'
@@ -58,7 +58,7 @@ export interface ChunkStart {
   readonly createdAtMs: number
 }
 
-const ChunkInput = z.array(SeriesItem)
+const ChunkInput = z.array(ChunkSeriesItem)
 
 /** Run records, chunk inputs and results in Redis (layout in keys.ts, scripts in scripts.ts). */
 export class RunStore {
@@ -124,7 +124,7 @@ export class RunStore {
   }
 
   /** The chunk's series, or null when the key is gone (chunk done, run cancelled, or expired). */
-  async readChunkInput(tenant: string, runId: string, chunkIndex: number): Promise<SeriesItem[] | null> {
+  async readChunkInput(tenant: string, runId: string, chunkIndex: number): Promise<ChunkSeriesItem[] | null> {
     const json = await this.redis.get(this.keys(tenant, runId).input(chunkIndex))
     if (json === null) return null
     // Written from a validated request or stored histories: the schema runs only if the plain check finds anything off.

@@ -144,8 +144,8 @@ export interface paths {
             cookie?: never;
         };
         /**
-         * Latest successful forecast of a SKU
-         * @description URL-encode the SKU (e.g. / as %2F). 404 when no run has forecast it yet, or when the results of the run that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.
+         * Latest published forecast of a SKU
+         * @description The forecast of the newest publishing run (what-if runs never replace it). URL-encode the SKU (e.g. / as %2F). 404 when no run has published it yet, or when the results of the run that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.
          */
         get: operations["getSkuForecast"];
         put?: never;

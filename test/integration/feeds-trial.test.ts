@@ -190,6 +190,20 @@ describe('nightly feeds: the trial in miniature', { timeout: 180_000 }, () => {
     expect(garden.wape).toBeCloseTo(100 * 50 / 450, 12)
   })
 
+  it('refuses to close an earlier period, or a label of another frequency, naming the field', async () => {
+    const back = await close('2026-02')
+    expect(back.statusCode).toBe(409)
+    expect(back.json()).toMatchObject({ type: 'https://almanac.example/problems/period-closed', detail: 'month periods are already closed through 2026-04; closing only moves forward' })
+    const wrong = await close('2026-Q2')
+    expect(wrong.statusCode).toBe(400)
+    expect(wrong.json().errors[0].path).toBe('closedThrough')
+    expect((await app.inject({ url: '/v1/closed-periods' })).json()).toEqual({ closedThrough: { month: '2026-04' } })
+    // The what-if inline run may not ask for open periods: they belong to stored histories.
+    const inline = await app.inject({ method: 'POST', url: '/v1/runs', payload: { horizon: 2, openPeriods: 'include', series: [{ sku: GLOVE, demand: [1, 2, 3] }] } })
+    expect(inline.statusCode).toBe(400)
+    expect(inline.json().errors[0].path).toBe('openPeriods')
+  })
+
   it('acknowledges and snoozes flagged SKUs until their next published forecast', async () => {
     const ack = await app.inject({ method: 'POST', url: `/v1/accuracy/exceptions/${HOSE}/acknowledge`, payload: { note: 'spring promotion' } })
     expect(ack.json().review).toMatchObject({ state: 'acknowledged', note: 'spring promotion', runId: published })

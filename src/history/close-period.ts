@@ -14,7 +14,7 @@ import type { HistoryData } from './types.js'
 /** The history carried forward to `throughOrdinal`, or why it is left alone. */
 export function extendWithZeros(current: HistoryData | null, frequency: Frequency, throughOrdinal: number): { data: HistoryData } | { reason: string } {
   if (current === null) return { reason: 'the history was deleted meanwhile' }
-  if (current.frequency !== frequency) return { reason: `the history is ${current.frequency}ly` }
+  if (current.frequency !== frequency) return { reason: `the history is by ${current.frequency}` }
   const last = parsePeriod(current.firstPeriod, frequency) + current.demand.length - 1
   if (last >= throughOrdinal) return { reason: `the history already reaches ${formatPeriod(throughOrdinal, frequency)}` }
   return { data: { ...current, demand: [...current.demand, ...new Array<number>(throughOrdinal - last).fill(0)] } }

@@ -85,6 +85,8 @@ export const ConfigSchema = z.object({
   CALLBACK_ALLOW_PRIVATE_NETWORKS: boolFromEnv(false),
   /** Closest two firings of one schedule may be, in seconds. */
   SCHEDULE_MIN_INTERVAL_SECONDS: intFromEnv(300, 1, 86_400),
+  /** Published forecasts kept per SKU, newest first, for accuracy at a fixed lag (docs/feeds.md). */
+  PUBLISHED_FORECASTS_KEPT: intFromEnv(12, 1, 120),
 })
 
 /** One seed node of a Redis Cluster. */
@@ -157,6 +159,8 @@ export interface Config {
   readonly callbackAllowPrivateNetworks?: boolean
   /** Closest two firings of a schedule may be; default 300 when absent. */
   readonly scheduleMinIntervalSeconds?: number
+  /** Published forecasts kept per SKU for accuracy at a fixed lag; default 12 when absent. */
+  readonly publishedForecastsKept?: number
 }
 
 export class ConfigError extends Error {
@@ -263,6 +267,7 @@ export function loadConfig(
     callbackTimeoutMs: e.CALLBACK_TIMEOUT_MS,
     callbackAllowPrivateNetworks: e.CALLBACK_ALLOW_PRIVATE_NETWORKS,
     scheduleMinIntervalSeconds: e.SCHEDULE_MIN_INTERVAL_SECONDS,
+    publishedForecastsKept: e.PUBLISHED_FORECASTS_KEPT,
   }
 }
 

@@ -17,6 +17,7 @@ export const PROBLEM_TYPES = {
   'not-found': { status: 404, title: 'Not found' },
   'idempotency-key-in-use': { status: 409, title: 'Idempotency key in use' },
   'limit-reached': { status: 409, title: 'Limit reached' },
+  'period-closed': { status: 409, title: 'A later period is closed' },
   'payload-too-large': { status: 413, title: 'Payload too large' },
   'too-many-series': { status: 413, title: 'Too many series for a synchronous forecast' },
   'fit-cost-too-high': { status: 413, title: 'Too much fitting work for a synchronous forecast' },

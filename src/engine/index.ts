@@ -18,4 +18,20 @@ export {
   type ReplenishmentOptions,
   type ReplenishmentFigures,
 } from './replenishment.js'
-export { summariseAccuracy, TRACKING_SIGNAL_LIMIT, type ScoredPeriod, type AccuracySummary, type TrackingOptions } from './tracking.js'
+export {
+  summariseAccuracy,
+  smoothedTrackingSignals,
+  smoothedTrackingLimit,
+  minScoredPeriods,
+  poolAccuracy,
+  pairsAtLag,
+  TRACKING_SIGNAL_LIMIT,
+  TRACKING_SMOOTHING_WEIGHT,
+  type ScoredPeriod,
+  type AccuracySummary,
+  type TrackingOptions,
+  type TrackingFlag,
+  type PooledAccuracy,
+  type IssuedForecast,
+  type LaggedPair,
+} from './tracking.js'

@@ -39,6 +39,7 @@ import callbackRoutes from './routes/callbacks.js'
 import deliveryRoutes from './routes/runs/deliveries.js'
 import scheduleRoutes from './routes/schedules.js'
 import skuAccuracyRoutes from './routes/skus/accuracy.js'
+import closedPeriodRoutes from './routes/closed-periods.js'
 import './types.js'
 
 export interface AppDeps {
@@ -148,6 +149,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(scheduleRoutes, { prefix: '/v1/schedules' })
   await app.register(skuAccuracyRoutes, { prefix: '/v1/skus' })
   await app.register(accuracyRoutes)
+  await app.register(closedPeriodRoutes, { prefix: '/v1/closed-periods' })
   await app.register(accessRoutes)
   await app.register(workbenchPlugin, { root: deps.workbenchRoot ?? null })
   return app

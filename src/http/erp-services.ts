@@ -11,6 +11,7 @@ import { logErrors, type Logger } from '../logger.js'
 import { ScheduleStore } from '../storage/erp/schedule-store.js'
 import { HistoryStore } from '../storage/histories/history-store.js'
 import { CallbackStore } from '../storage/erp/callback-store.js'
+import { ClosingStore } from '../storage/erp/closing-store.js'
 
 /** What the HTTP routes of the ERP features (callbacks, deliveries, schedules, accuracy) use. */
 export interface ErpServices {
@@ -18,6 +19,7 @@ export interface ErpServices {
   readonly deliveries: DeliveryStore
   readonly schedules: ScheduleService
   readonly accuracy: AccuracyStore
+  readonly closing: ClosingStore
 }
 
 /**
@@ -32,6 +34,7 @@ export function createErpServices(
 ): { services: ErpServices; close(): Promise<void> } {
   const prefix = config.redisPrefix
   const runs = new RunStore(redis, runStoreOptions(config))
+  const closing = new ClosingStore(redis, prefix)
   let queue: Queue<FireJob> | null = null
   const scheduleQueue = () => {
     if (queue === null) {
@@ -47,7 +50,8 @@ export function createErpServices(
       schedules: new ScheduleService(new ScheduleStore(redis, prefix), new HistoryStore(redis, { prefix }), scheduleQueue, {
         minIntervalSeconds: opts.minIntervalSeconds ?? config.scheduleMinIntervalSeconds ?? DEFAULT_MIN_INTERVAL_SECONDS,
       }),
-      accuracy: new AccuracyStore(redis, runs, { prefix }),
+      accuracy: new AccuracyStore(redis, runs, closing, { prefix }),
+      closing,
     },
     close: async () => {
       await (queue as Queue<FireJob> | null)?.close()

@@ -4,10 +4,11 @@ import { queuePrefix, type Config } from '../config.js'
 import { logErrors, type Logger } from '../logger.js'
 import type { RunGateway, RunRecord } from '../runs/contract.js'
 import { runFailure } from '../runs/failures.js'
-import { checkRunOptions, checkUniqueSkus, emptyScopeError } from '../runs/input.js'
+import { checkInlineOptions, checkRunOptions, checkUniqueSkus, emptyScopeError } from '../runs/input.js'
 import type { RunRequest } from '../schemas/run.js'
 import { closeSteps } from '../shutdown.js'
 import { HistoryStore } from '../storage/histories/history-store.js'
+import { ClosingStore } from '../storage/erp/closing-store.js'
 import { requestConnection } from '../storage/redis.js'
 import { createRunFromHistories } from '../storage/runs/history-runs.js'
 import { resultsPageJson } from '../storage/runs/result-pages.js'
@@ -41,6 +42,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
   const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
   const histories = new HistoryStore(redis, { prefix: config.redisPrefix })
   const fair = new FairShare(redis, queuePrefix(config))
+  const closing = new ClosingStore(redis, config.redisPrefix)
 
   /**
    * Enqueues one job per stored chunk, in batches; on failure the run is ended
@@ -74,8 +76,10 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
     async submit(tenant: string, request: RunRequest): Promise<RunRecord> {
       checkRunOptions(request)
       checkUniqueSkus(request.series)
+      checkInlineOptions(request)
       const runId = randomUUID()
-      const { record, chunks } = await store.createRun(tenant, runId, request, config.chunkSize, now())
+      // Inline series are a what-if unless the caller asks to publish them.
+      const { record, chunks } = await store.createRun(tenant, runId, { ...request, publish: request.publish ?? false }, config.chunkSize, now())
       await enqueueChunks(tenant, runId, chunks)
       return record
     },
@@ -86,12 +90,15 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
       const created = await createRunFromHistories(redis, runStoreOptions(config), histories, {
         tenant,
         runId,
-        settings,
+        // Runs over stored histories (and so schedules) publish unless told not to.
+        settings: { ...settings, publish: settings.publish ?? true },
         scope,
         chunkSize: config.chunkSize,
         now: now(),
+        closed: await closing.ordinals(tenant),
       })
       if (created === null) throw emptyScopeError(scope)
+      if (created.openOnlySkus > 0) log.info({ tenant, runId, openOnlySkus: created.openOnlySkus }, 'SKUs with only open periods left out of the run')
       await enqueueChunks(tenant, runId, created.chunks)
       return { record: created.record, missingSkus: created.missingSkus }
     },

@@ -2,6 +2,7 @@ import { UnrecoverableError, type Job } from 'bullmq'
 import type { ForecastResult, SeriesInput } from '../engine/index.js'
 import type { Logger } from '../logger.js'
 import { forecastItem } from '../runs/forecast-sku.js'
+import { withOpenPeriodsWarning } from '../runs/open-periods.js'
 import { ChunkTallier } from '../runs/tally.js'
 import { prepareItem, type PreparedItem } from '../storage/items/prepared-item.js'
 import type { CommitOutcome, RunStore } from '../storage/runs/run-store.js'
@@ -68,14 +69,14 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     const items: PreparedItem[] = []
     for (const s of series) {
       const t0 = performance.now()
-      const item = forecastItem(deps.forecast, run.settings, s)
+      const item = withOpenPeriodsWarning(forecastItem(deps.forecast, run.settings, s), s.openPeriods)
       fitSeconds.push((performance.now() - t0) / 1000)
       tallier.add(item)
       items.push(prepareItem(item))
     }
     const computeMs = Math.round(performance.now() - started)
     const tally = tallier.tally()
-    const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now())
+    const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now(), run.settings.publish === true)
     // Counted once per chunk: only the call whose commit took the items (a retried chunk is not counted twice).
     if (outcome === 'committed' || outcome === 'finished') await store.stats.recordFits(fitSeconds, tally.failed)
     // Before the input is deleted, so a failed emit retries the chunk (the commit is then a no-op).

@@ -15,8 +15,11 @@ export function runFailure(code: RunFailureCode, message: string): Failure {
 /** Replenishment figures were asked for but do not fit the series (the forecast stands without them). */
 export const REPLENISHMENT_SKIPPED = 'replenishment-skipped'
 
+/** A stored history was fitted with periods after the closed-through period (`openPeriods: "include"`). */
+export const OPEN_PERIODS_FITTED = 'open-periods-fitted'
+
 /** Warning codes the service adds to result items beside the engine's own (docs/warnings.md). */
-export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED] as const
+export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED, OPEN_PERIODS_FITTED] as const
 
 /** `failure.code` of a series whose synchronous fit ran past SYNC_SERIES_TIMEOUT_MS (its thread was ended). */
 export const FIT_TIME_LIMIT = 'fit-time-limit'

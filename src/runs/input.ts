@@ -48,3 +48,13 @@ export function emptyScopeError(scope: { readonly skus: readonly string[] } | { 
   const field = 'skus' in scope ? 'scope.skus' : 'tags' in scope ? 'scope.tags' : 'scope.all'
   return new RunInputError('empty-scope', 'the scope matches no stored history', field)
 }
+
+/**
+ * Settings that only mean something for stored histories.
+ * @throws RunInputError naming `openPeriods` on a run over inline series.
+ */
+export function checkInlineOptions(settings: Pick<RunRequest, 'openPeriods'>): void {
+  if (settings.openPeriods !== undefined) {
+    throw new RunInputError('invalid-option', 'openPeriods applies to stored histories (scope); inline series are fitted as sent', 'openPeriods')
+  }
+}

@@ -76,6 +76,16 @@ export const SeriesItem = z.strictObject({
 })
 export type SeriesItem = z.infer<typeof SeriesItem>
 
+/**
+ * A series as a chunk job reads it: a SeriesItem, plus for a stored history
+ * fitted with its open periods (`openPeriods: "include"`) how many there are,
+ * so the result item can say so. Never part of a request.
+ */
+export const ChunkSeriesItem = SeriesItem.extend({
+  openPeriods: z.number().int().min(1).optional(),
+})
+export type ChunkSeriesItem = z.infer<typeof ChunkSeriesItem>
+
 export const ReplenishmentSettings = z
   .strictObject({
     leadTimePeriods: z.number().int().min(1).max(MAX_HORIZON).describe('Lead time in periods (1..horizon)'),
@@ -120,6 +130,21 @@ export const RunSettings = z.strictObject({
   keepLeadingZeros: z.boolean().default(false),
   replenishment: ReplenishmentSettings.optional(),
   callbackUrl: CallbackUrl.optional(),
+  publish: z
+    .boolean()
+    .optional()
+    .describe(
+      'true: the results become the SKUs\' published forecasts (served at /v1/skus/{sku}/forecast, scored against ' +
+        'actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) ' +
+        'and schedules, false for inline series.',
+    ),
+  openPeriods: z
+    .enum(['exclude', 'include'])
+    .optional()
+    .describe(
+      'Stored periods after the tenant\'s closed-through period of their frequency: exclude (default) leaves them out ' +
+        'of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.',
+    ),
 })
 export type RunSettings = z.infer<typeof RunSettings>
 

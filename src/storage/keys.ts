@@ -9,7 +9,10 @@
  *   run:{R}:items      hash   sku -> compact JSON result item (without the sku)
  *   latest             hash   sku -> `${createdAtMs}|${runId}|${producedAt}|${points}` of the
  *                             newest run with a successful forecast for that SKU, its point
- *                             forecast compact (latest-record.ts); no TTL, one field per SKU
+ *                             forecast compact (latest-record.ts); no TTL, one field per SKU.
+ *                             Only published runs write it.
+ *   published          hash   sku -> the SKU's last N published records (same form as `latest`),
+ *                             newest first, one per line; no TTL (accuracy at a fixed lag)
  *
  * Redis Cluster (REDIS_CLUSTER_NODES): the run id sits in a hash tag (`{R}`), so
  * every key of one run hashes to one slot and the Lua scripts and MULTI that
@@ -60,6 +63,10 @@ export function runKeys(prefix: string, tenant: string, runId: string): RunKeys 
 
 export function latestKey(prefix: string, tenant: string): string {
   return `${tenantBase(prefix, tenant)}:latest`
+}
+
+export function publishedKey(prefix: string, tenant: string): string {
+  return `${tenantBase(prefix, tenant)}:published`
 }
 
 /**

@@ -147,8 +147,8 @@ export interface paths {
             cookie?: never;
         };
         /**
-         * Latest successful forecast of a SKU
-         * @description URL-encode the SKU (e.g. / as %2F). 404 when no run has forecast it yet, or when the results of the run that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.
+         * Latest published forecast of a SKU
+         * @description The forecast of the newest publishing run (what-if runs never replace it). URL-encode the SKU (e.g. / as %2F). 404 when no run has published it yet, or when the results of the run that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.
          */
         get: operations["getSkuForecast"];
         put?: never;
@@ -353,11 +353,35 @@ export interface paths {
         };
         /**
          * Realised forecast accuracy of a SKU
-         * @description When a SKU's stored history gets actuals for periods its latest forecast covered, each such period is scored once. 404 until a period has been scored.
+         * @description Each closed period of the SKU's stored history is scored against the newest published forecast that covered it; what-if runs are never scored. With ?lag=k, accuracy at that fixed lag instead, computed from the kept published forecasts. 404 until a period has been scored (or, with lag, when the SKU has no history).
          */
         get: operations["getSkuAccuracy"];
         put?: never;
         post?: never;
+        /**
+         * Start a SKU's accuracy afresh
+         * @description Deletes the SKU's scored periods, summary, exception and review, and from now on scores only periods after the last closed period of its stored history (for example after the item was replaced by another one under the same SKU). 204; 404 when there was nothing to delete.
+         */
+        delete: operations["resetSkuAccuracy"];
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/skus/{sku}/accuracy/recompute": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        /**
+         * Score a SKU's accuracy again from scratch
+         * @description Drops the SKU's scored periods and scores every closed period of its stored history again against the newest kept published forecast that covered it. Uploads rescore by themselves (a corrected actual replaces the old one); use this after changing many periods at once. Periods older than the kept forecasts can no longer be scored. 404 when the SKU has no stored history or nothing could be scored.
+         */
+        post: operations["recomputeSkuAccuracy"];
         delete?: never;
         options?: never;
         head?: never;
@@ -372,11 +396,108 @@ export interface paths {
             cookie?: never;
         };
         /**
-         * SKUs whose tracking signal is beyond ±4
-         * @description The exception list for planners, ordered by SKU: |tracking signal| > 4 (common practice) means the forecast errors lean one way. Review the model or the data of these SKUs before ordering on their forecasts.
+         * SKUs whose forecasts lean one way
+         * @description The exception list for planners, ordered by SKU: |tracking signal| >= 4 (common practice) or Trigg's smoothed signal beyond its limit, each after at least 4 scored periods. Review the model or the data of these SKUs before ordering on their forecasts. SKUs snoozed until their next published forecast are left out unless includeSnoozed=true, so a page may hold fewer than limit items.
          */
         get: operations["listAccuracyExceptions"];
         put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/accuracy/exceptions/{sku}/acknowledge": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        /**
+         * Acknowledge a flagged SKU, with a note
+         * @description Marks the SKU as seen; it stays on the list, with the note, until it is no longer flagged. 404 when it is not on the list.
+         */
+        post: operations["acknowledgeAccuracyException"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/accuracy/exceptions/{sku}/snooze": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        /**
+         * Snooze a flagged SKU until its next published forecast
+         * @description Hides the SKU from the list until a newer forecast of it is published (the next run that publishes it). 404 when it is not on the list.
+         */
+        post: operations["snoozeAccuracyException"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/accuracy/by-tag": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Accuracy pooled over the SKUs of a tag
+         * @description Every scored period of every SKU carrying the tag, pooled (optionally at a fixed lag). Reads every SKU of the tag, so it takes longer the larger the tag.
+         */
+        get: operations["getTagAccuracy"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/closed-periods": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /** Closed-through period per frequency */
+        get: operations["getClosedPeriods"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/closed-periods/{frequency}": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        /**
+         * Close periods through the one given
+         * @description Marks every period of the frequency up to closedThrough as complete. Stored histories of the frequency that end earlier are carried forward to it with zero demand (nothing sent means no demand), and every history of the frequency is rescored, zeros included. Periods after it stay open: runs leave them out of the fit (openPeriods) and they are never scored. Closing only moves forward (409 period-closed); repeating a call is safe. The call walks every stored history of the tenant, so it takes longer the more there are.
+         */
+        put: operations["closePeriod"];
         post?: never;
         delete?: never;
         options?: never;
@@ -475,6 +596,13 @@ export interface components {
              * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
              */
             callbackUrl?: string;
+            /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+            publish?: boolean;
+            /**
+             * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+             * @enum {string}
+             */
+            openPeriods?: "exclude" | "include";
             series: {
                 /** @description Stock-keeping unit code, unique within the tenant */
                 sku: string;
@@ -490,6 +618,10 @@ export interface components {
                 /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
                 seasonLength?: number;
             }[];
+        };
+        ClosePeriodInput: {
+            /** @description The last closed period, e.g. 2026-03 for month: it and every earlier period are complete */
+            closedThrough: string;
         };
         Problem: {
             /** @description Problem type URI under https://almanac.example/problems/ */
@@ -723,6 +855,13 @@ export interface components {
                  * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
                  */
                 callbackUrl?: string;
+                /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+                publish?: boolean;
+                /**
+                 * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+                 * @enum {string}
+                 */
+                openPeriods?: "exclude" | "include";
             };
             /** @description The stored histories the run covers; null for a run over inline series */
             scope: components["schemas"]["Scope"] | null;
@@ -887,7 +1026,7 @@ export interface components {
             /** @description Rejections beyond the listed ones */
             errorsNotListed: number;
         };
-        AccuracySummary: {
+        SkuAccuracy: {
             sku: string;
             /** @description Forecast periods scored against their actual demand */
             scoredPeriods: number;
@@ -895,15 +1034,86 @@ export interface components {
             mae: number | null;
             /** @description Mean deviation, actual − forecast demand: positive means demand above the forecast */
             bias: number | null;
-            /** @description Mean absolute percentage error over non-zero actuals; null if none */
+            /** @description Mean absolute percentage error over non-zero actuals, in percent; null if none */
             mape: number | null;
             /** @description Sum of deviations / MAE */
             trackingSignal: number | null;
-            /** @description |trackingSignal| > trackingLimit with at least 4 periods scored */
+            /** @description Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, in [-1, 1] */
+            smoothedTrackingSignal: number | null;
+            /** @description flaggedBy is not empty */
             flagged: boolean;
+            /** @description Rules that fired, each needing at least ceil(trackingLimit) periods scored: |trackingSignal| >= trackingLimit; |smoothedTrackingSignal| > smoothedTrackingLimit */
+            flaggedBy: ("tracking-signal" | "smoothed-tracking-signal")[];
             /** @description Tracking-signal limit (4, common practice) */
             trackingLimit: number;
+            /** @description Limit of the smoothed signal: its approximate 95 % bound for unbiased errors */
+            smoothedTrackingLimit: number;
             updatedAt: string;
+            /** @description The lag asked for; null: each period against the newest published forecast that covered it */
+            lag: number | null;
+            periods: {
+                period: string;
+                /** @description Published run whose forecast was scored */
+                runId: string;
+                /** @description The point forecast the period was scored against */
+                forecastDemand: number;
+                actualDemand: number;
+                /** @description actualDemand − forecastDemand */
+                deviation: number;
+            }[];
+        };
+        ExceptionReview: {
+            /**
+             * @description acknowledged: seen, stays listed; snoozed: hidden until a newer forecast of the SKU is published
+             * @enum {string}
+             */
+            state: "acknowledged" | "snoozed";
+            note: string;
+            /** @description When it was acknowledged or snoozed */
+            at: string;
+            /** @description The SKU's newest published run at that time */
+            runId: string | null;
+        };
+        AccuracyException: {
+            sku: string;
+            /** @description Forecast periods scored against their actual demand */
+            scoredPeriods: number;
+            /** @description Mean absolute error */
+            mae: number | null;
+            /** @description Mean deviation, actual − forecast demand: positive means demand above the forecast */
+            bias: number | null;
+            /** @description Mean absolute percentage error over non-zero actuals, in percent; null if none */
+            mape: number | null;
+            /** @description Sum of deviations / MAE */
+            trackingSignal: number | null;
+            /** @description Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, in [-1, 1] */
+            smoothedTrackingSignal: number | null;
+            /** @description flaggedBy is not empty */
+            flagged: boolean;
+            /** @description Rules that fired, each needing at least ceil(trackingLimit) periods scored: |trackingSignal| >= trackingLimit; |smoothedTrackingSignal| > smoothedTrackingLimit */
+            flaggedBy: ("tracking-signal" | "smoothed-tracking-signal")[];
+            /** @description Tracking-signal limit (4, common practice) */
+            trackingLimit: number;
+            /** @description Limit of the smoothed signal: its approximate 95 % bound for unbiased errors */
+            smoothedTrackingLimit: number;
+            updatedAt: string;
+            /** @description Set by acknowledge or snooze; cleared when the SKU leaves the list */
+            review: components["schemas"]["ExceptionReview"] | null;
+        };
+        PooledAccuracy: {
+            tag: string;
+            lag: number | null;
+            /** @description SKUs of the tag with at least one scored period */
+            skus: number;
+            scoredPeriods: number;
+            /** @description Mean absolute error over every scored period of every SKU */
+            mae: number | null;
+            /** @description Mean deviation (actual − forecast) */
+            bias: number | null;
+            /** @description 100 · sum |deviation| / sum |actual|, in percent; null when every actual is 0 */
+            wape: number | null;
+            /** @description SKUs whose own tracking signals flag them */
+            flaggedSkus: number;
         };
         Access: {
             /** @description true: every /v1 route needs Authorization: Bearer <key>; false: no keys are configured */
@@ -1000,6 +1210,13 @@ export interface components {
              * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
              */
             callbackUrl?: string;
+            /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+            publish?: boolean;
+            /**
+             * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+             * @enum {string}
+             */
+            openPeriods?: "exclude" | "include";
             id: string;
             name: string | null;
             cron: string;
@@ -1025,6 +1242,32 @@ export interface components {
                 /** @description Why the latest firing that failed could not submit its run; cleared by a successful one */
                 lastFailure: components["schemas"]["Failure"] | null;
             };
+        };
+        ClosedPeriods: {
+            /** @description Closed-through period per frequency; a frequency not listed has never been closed (all its periods count as closed) */
+            closedThrough: {
+                day?: string;
+                week?: string;
+                month?: string;
+                quarter?: string;
+                year?: string;
+            };
+        };
+        ClosingReport: {
+            /** @enum {string} */
+            frequency: "day" | "week" | "month" | "quarter" | "year";
+            closedThrough: string;
+            /** @description The closed-through period before this call */
+            previous: string | null;
+            /**
+             * @description unchanged: it was already closed through this period (the walk ran again)
+             * @enum {string}
+             */
+            outcome: "moved" | "unchanged";
+            /** @description Stored histories of the frequency looked at (and rescored) */
+            checkedSkus: number;
+            /** @description Histories carried forward to closedThrough with zero demand */
+            advancedSkus: number;
         };
     };
     responses: never;
@@ -1299,6 +1542,13 @@ export interface operations {
                      * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
                      */
                     callbackUrl?: string;
+                    /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+                    publish?: boolean;
+                    /**
+                     * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+                     * @enum {string}
+                     */
+                    openPeriods?: "exclude" | "include";
                     /** @description Series given inline */
                     series?: {
                         /** @description Stock-keeping unit code, unique within the tenant */
@@ -2978,6 +3228,13 @@ export interface operations {
                      * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
                      */
                     callbackUrl?: string;
+                    /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
+                    publish?: boolean;
+                    /**
+                     * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
+                     * @enum {string}
+                     */
+                    openPeriods?: "exclude" | "include";
                     name?: string;
                     /** @description Cron pattern: minute hour day-of-month month day-of-week (or 6 fields with seconds first), e.g. `0 2 * * 1-5` */
                     cron: string;
@@ -3261,7 +3518,10 @@ export interface operations {
     };
     getSkuAccuracy: {
         parameters: {
-            query?: never;
+            query?: {
+                /** @description Score at a fixed lag k instead: each kept published forecast against the period k periods after its origin (1 = one step ahead). Covers at most PUBLISHED_FORECASTS_KEPT periods. */
+                lag?: number;
+            };
             header?: never;
             path: {
                 /** @description Stock-keeping unit code, unique within the tenant */
@@ -3277,34 +3537,7 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content: {
-                    "application/json": {
-                        sku: string;
-                        /** @description Forecast periods scored against their actual demand */
-                        scoredPeriods: number;
-                        /** @description Mean absolute error */
-                        mae: number | null;
-                        /** @description Mean deviation, actual − forecast demand: positive means demand above the forecast */
-                        bias: number | null;
-                        /** @description Mean absolute percentage error over non-zero actuals; null if none */
-                        mape: number | null;
-                        /** @description Sum of deviations / MAE */
-                        trackingSignal: number | null;
-                        /** @description |trackingSignal| > trackingLimit with at least 4 periods scored */
-                        flagged: boolean;
-                        /** @description Tracking-signal limit (4, common practice) */
-                        trackingLimit: number;
-                        updatedAt: string;
-                        periods: {
-                            period: string;
-                            /** @description Run whose forecast was scored */
-                            runId: string;
-                            /** @description The point forecast the period was scored against */
-                            forecastDemand: number;
-                            actualDemand: number;
-                            /** @description actualDemand − forecastDemand */
-                            deviation: number;
-                        }[];
-                    };
+                    "application/json": components["schemas"]["SkuAccuracy"];
                 };
             };
             /** @description Bad request (bad-request); Validation failed (validation-failed) */
@@ -3369,6 +3602,206 @@ export interface operations {
             };
         };
     };
+    resetSkuAccuracy: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description Deleted */
+            204: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content?: never;
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    recomputeSkuAccuracy: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["SkuAccuracy"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
     listAccuracyExceptions: {
         parameters: {
             query?: {
@@ -3376,6 +3809,8 @@ export interface operations {
                 limit?: number;
                 /** @description nextCursor of the previous page; a cursor this API did not issue is a 400 */
                 cursor?: string;
+                /** @description Also list SKUs snoozed until their next published forecast */
+                includeSnoozed?: "true" | "false";
             };
             header?: never;
             path?: never;
@@ -3390,7 +3825,7 @@ export interface operations {
                 };
                 content: {
                     "application/json": {
-                        items: components["schemas"]["AccuracySummary"][];
+                        items: components["schemas"]["AccuracyException"][];
                         /** @description Pass back as cursor for the next page; null on the last page */
                         nextCursor: string | null;
                     };
@@ -3410,6 +3845,479 @@ export interface operations {
                 headers: {
                     /** @description Bearer */
                     "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    acknowledgeAccuracyException: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": {
+                    /**
+                     * @description Why, for the next planner (up to 2000 characters)
+                     * @default
+                     */
+                    note?: string;
+                };
+            };
+        };
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["AccuracyException"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    snoozeAccuracyException: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": {
+                    /**
+                     * @description Why, for the next planner (up to 2000 characters)
+                     * @default
+                     */
+                    note?: string;
+                };
+            };
+        };
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["AccuracyException"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    getTagAccuracy: {
+        parameters: {
+            query: {
+                /** @description SKUs carrying this tag, e.g. category:garden */
+                tag: string;
+                /** @description Score at this fixed lag instead (see GET /v1/skus/{sku}/accuracy) */
+                lag?: number;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["PooledAccuracy"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    getClosedPeriods: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["ClosedPeriods"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    closePeriod: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                frequency: "day" | "week" | "month" | "quarter" | "year";
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": components["schemas"]["ClosePeriodInput"];
+            };
+        };
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["ClosingReport"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description A later period is closed (period-closed) */
+            409: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
                     [name: string]: unknown;
                 };
                 content: {

@@ -100,7 +100,7 @@ describe('the README walk-through through a generated client', () => {
   })
 
   it('queues a run of 300 SKUs, polls it and pages through the results', async () => {
-    const { data, response } = await client.POST('/v1/runs', { body: demo('run-request.json') })
+    const { data, response } = await client.POST('/v1/runs', { body: { ...demo('run-request.json'), publish: true } })
     expect(response.status).toBe(202)
     runId = data!.id
     expect(response.headers.get('location')).toBe(`/v1/runs/${runId}`)

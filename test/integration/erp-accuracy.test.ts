@@ -111,8 +111,10 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     expect(acc).toMatchObject({ scoredPeriods: 5, trackingSignal: 5 })
   })
 
-  // Correcting 2026-05 from 120 to 80: errors +30, +25, +40, +35, -20: sum 110, MAE 30, TS 3.67, no longer flagged.
-  it('a corrected actual replaces the old one and the SKU leaves the list', async () => {
+  // Correcting 2026-05 from 120 to 80: errors +30, +25, +40, +35, -20: sum 110, MAE 30, TS 3.67, below 4.
+  // The smoothed signal (weight 0.1, from 0) still flags it: E = 10.1808 - 2 = 8.1808, M = 10.1808 + 2 = 12.1808,
+  // T = 0.6716 > 0.5635; a further unbiased period would take it off.
+  it('a corrected actual replaces the old one and rescores the SKU', async () => {
     await app.inject({
       method: 'POST',
       url: '/v1/history?frequency=month',
@@ -121,8 +123,9 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
     expect(acc.scoredPeriods).toBe(5)
     expect(acc.trackingSignal).toBeCloseTo(110 / 30, 12)
-    expect(acc.flagged).toBe(false)
-    expect((await app.inject({ url: '/v1/accuracy/exceptions' })).json().items).toEqual([])
+    expect(acc.smoothedTrackingSignal).toBeCloseTo(8.1808 / 12.1808, 12)
+    expect(acc.flaggedBy).toEqual(['smoothed-tracking-signal'])
+    expect((await app.inject({ url: '/v1/accuracy/exceptions' })).json().items.map((i: { sku: string }) => i.sku)).toEqual(['HOSE-BIASED'])
   })
 
   it('keeps the forecast of the run created last, whichever finishes last', async () => {
@@ -140,8 +143,8 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     expect(latest?.runId).toBe('run-new')
     expect([...latest!.points]).toEqual([['2027-01', 7]])
     // Scored against run-new's forecast: 7 vs 10.
-    const out = await erp.services.accuracy.recordActuals('default', 'RAKE', 'month', [{ period: '2027-01', value: 10 }])
-    expect(out).toMatchObject({ added: 1, corrected: 0, summary: { scoredPeriods: 1, bias: 3 } })
+    const out = await erp.services.accuracy.rescore('default', { sku: 'RAKE', frequency: 'month', firstPeriod: '2027-01', demand: [10] })
+    expect(out).toMatchObject({ added: 1, corrected: 0, removed: 0, summary: { scoredPeriods: 1, bias: 3 } })
   })
 
   it('pages the exception list by SKU with a cursor', async () => {
@@ -156,7 +159,7 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
         },
       ]))
       // Errors +5 in each of 5 periods: TS = 25 / 5 = 5.
-      await erp.services.accuracy.recordActuals('paging', sku, 'month', periods.map((period) => ({ period, value: 15 })))
+      await erp.services.accuracy.rescore('paging', { sku, frequency: 'month', firstPeriod: '2027-01', demand: periods.map(() => 15) })
     }
     const first = await erp.services.accuracy.exceptions('paging', 2)
     expect(first.items.map((i) => [i.sku, i.trackingSignal])).toEqual([['PAGE-A', 5], ['PAGE-B', 5]])
@@ -166,8 +169,8 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
   })
 
   it('records nothing for a SKU without a forecast, and pages the list with a cursor', async () => {
-    const out = await erp.services.accuracy.recordActuals('default', 'NO-RUN', 'month', [{ period: '2026-01', value: 3 }])
-    expect(out).toEqual({ added: 0, corrected: 0, reason: 'no-forecast', summary: null })
+    const out = await erp.services.accuracy.rescore('default', { sku: 'NO-RUN', frequency: 'month', firstPeriod: '2026-01', demand: [3] })
+    expect(out).toEqual({ added: 0, corrected: 0, removed: 0, summary: null })
     const bad = await app.inject({ url: '/v1/accuracy/exceptions?cursor=not-ours!' })
     expect(bad.statusCode).toBe(400)
   })

@@ -26,7 +26,7 @@ describe('replenishment figures in run results', { timeout: 120_000 }, () => {
     const res = await app.inject({
       method: 'POST',
       url: '/v1/runs',
-      payload: { horizon: 6, series, replenishment: { leadTimePeriods: 3, serviceLevel: 0.95 } },
+      payload: { horizon: 6, series, replenishment: { leadTimePeriods: 3, serviceLevel: 0.95 }, publish: true },
     })
     expect(res.statusCode).toBe(202)
     const id = res.json().id as string

@@ -56,7 +56,7 @@ describe('API process restarted mid-run', { timeout: 120_000 }, () => {
     const series = syntheticSeries(200, 144, 'APIKILL')
     const submitted = await call(first, '/v1/runs', {
       method: 'POST',
-      body: JSON.stringify({ horizon: 12, frequency: 'month', holdoutOrigins: 4, series }),
+      body: JSON.stringify({ horizon: 12, frequency: 'month', holdoutOrigins: 4, series, publish: true }),
     })
     expect(submitted.status).toBe(202)
     const runId: string = submitted.body.id

@@ -47,7 +47,7 @@ describe('runs over HTTP with the real queue and worker', () => {
       method: 'POST',
       url: '/v1/runs',
       headers: as(GARDEN),
-      payload: { horizon: 6, frequency: 'month', series },
+      payload: { horizon: 6, frequency: 'month', series, publish: true },
     })
     expect(res.statusCode).toBe(202)
     runId = res.json().id

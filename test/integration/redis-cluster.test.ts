@@ -84,7 +84,7 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     const submitted = await call('/v1/runs', {
       method: 'POST',
       headers: { 'idempotency-key': 'cluster-run-1' },
-      body: JSON.stringify({ horizon: 6, frequency: 'month', series }),
+      body: JSON.stringify({ horizon: 6, frequency: 'month', series, publish: true }),
     })
     expect(submitted.status).toBe(202)
     const runId: string = submitted.body.id
@@ -117,7 +117,7 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     const again = await call('/v1/runs', {
       method: 'POST',
       headers: { 'idempotency-key': 'cluster-run-1' },
-      body: JSON.stringify({ horizon: 6, frequency: 'month', series }),
+      body: JSON.stringify({ horizon: 6, frequency: 'month', series, publish: true }),
     })
     expect(again.body.id).toBe(runId)
 

@@ -43,7 +43,7 @@ describe('run lifecycle through the gateway and a sandboxed worker', { timeout: 
   series[7] = { sku: 'SKU-00007', demand: [3, -2, 5, 4, 6, 5, 7, 6, 8, 7, 9, 8] }
 
   beforeAll(async () => {
-    run = await gateway.submit('acme', runRequest(series))
+    run = await gateway.submit('acme', runRequest(series, { publish: true }))
   })
 
   it('returns a queued run with its progress total', () => {
@@ -143,8 +143,8 @@ describe('run lifecycle through the gateway and a sandboxed worker', { timeout: 
 describe('a later run owns the latest forecast', { timeout: 120_000 }, () => {
   it('is not overwritten by an earlier run finishing late', async () => {
     const series = syntheticSeries(3, 36, 'LATE')
-    const first = await gateway.submit('acme', runRequest(series))
-    const second = await gateway.submit('acme', runRequest(series, { horizon: 3 }))
+    const first = await gateway.submit('acme', runRequest(series, { publish: true }))
+    const second = await gateway.submit('acme', runRequest(series, { horizon: 3, publish: true }))
     await finished('acme', first.id)
     await finished('acme', second.id)
     const latest = await gateway.latestForecast('acme', 'LATE-00001')

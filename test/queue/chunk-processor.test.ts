@@ -56,7 +56,7 @@ describe('chunk processor', () => {
   })
 
   it('completes the steps after the commit when the last chunk is retried after a crash', async () => {
-    const request = runRequest(syntheticSeries(2))
+    const request = runRequest(syntheticSeries(2), { publish: true })
     await store.createRun('acme', 'p-2', request, 2, new Date())
     const k = runKeys(prefix, 'acme', 'p-2')
     const input = await redis.get(k.input(0))

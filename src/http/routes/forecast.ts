@@ -4,7 +4,7 @@ import { ForecastResponse, type ForecastBody } from '../../schemas/results.js'
 import { RunRequest } from '../../schemas/run.js'
 import type { ResultItem } from '../../runs/contract.js'
 import { SYNC_FORECAST } from './responses.js'
-import { checkRunOptions } from '../../runs/input.js'
+import { checkInlineOptions, checkRunOptions } from '../../runs/input.js'
 import { requestFitCost } from '../../runs/fit-cost.js'
 
 /** Default of SYNC_MAX_COST: fitting work one POST /v1/forecast may ask for. */
@@ -43,7 +43,12 @@ const forecastRoutes: FastifyPluginAsyncZod = async (app) => {
         const message = 'only runs call back; POST /v1/forecast answers in the response'
         throw new ProblemError('validation-failed', message, [{ path: 'callbackUrl', message }])
       }
+      if (settings.publish === true) {
+        const message = 'a synchronous forecast is never published; submit a run with POST /v1/runs and publish: true'
+        throw new ProblemError('validation-failed', message, [{ path: 'publish', message }])
+      }
       checkRunOptions(settings) // same option checks as a run: RunInputError -> 400
+      checkInlineOptions(settings)
       const maxCost = app.config.syncMaxCost ?? DEFAULT_SYNC_MAX_COST
       const cost = requestFitCost(settings, series)
       if (cost > maxCost) {

@@ -23,6 +23,7 @@ export const SandboxContext = z.object({
   queuePrefix: z.string(),
   resultTtlSeconds: z.number().int().positive(),
   recordTtlSeconds: z.number().int().positive(),
+  publishedKept: z.number().int().positive().optional(),
   logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
 })
 export type SandboxContext = z.infer<typeof SandboxContext>
@@ -37,6 +38,7 @@ const store = new RunStore(redis, {
   prefix: ctx.prefix,
   resultTtlSeconds: ctx.resultTtlSeconds,
   recordTtlSeconds: ctx.recordTtlSeconds,
+  ...(ctx.publishedKept === undefined ? {} : { publishedKept: ctx.publishedKept }),
 })
 
 const events = createRunEventEmitter(redis, ctx.queuePrefix, logger)

@@ -1,23 +1,22 @@
 import type { RedisClient } from '../redis.js'
-import { formatPeriod, parsePeriod } from '../../engine/index.js'
 import type { PendingHistory } from '../../history/accumulator.js'
 import type { HistoryData } from '../../history/types.js'
-import type { AccuracyStore, ActualsEntry } from './accuracy-store.js'
+import type { AccuracyStore, HistoryEntry } from './accuracy-store.js'
 import { HistoryStore } from '../histories/history-store.js'
 
 /**
  * A history store that scores forecasts as actuals arrive: after every write
- * (bulk upload batch or single PUT) the stored histories of the SKUs written
- * go to `AccuracyStore.recordActualsMany`, which scores only the periods each
- * SKU's latest forecast covered and skips periods already scored with the same
- * value. Scoring never fails an upload: an error goes to `onError` and the
- * histories are stored all the same.
+ * (bulk upload batch, single PUT, a closing) the stored histories of the SKUs
+ * written go to `AccuracyStore.rescoreMany`, which scores the closed periods
+ * that a published forecast covered, follows corrections, and leaves periods
+ * already scored with the same value alone. Scoring never fails an upload: an
+ * error goes to `onError` and the histories are stored all the same.
  */
 export class AccuracyTrackingHistoryStore extends HistoryStore {
   constructor(
     redis: RedisClient,
     opts: ConstructorParameters<typeof HistoryStore>[1],
-    private readonly accuracy: Pick<AccuracyStore, 'recordActualsMany'>,
+    private readonly accuracy: Pick<AccuracyStore, 'rescoreMany'>,
     /** `what`: the SKU, or how many SKUs a failed batch held. */
     private readonly onError: (err: unknown, tenant: string, what: string) => void,
   ) {
@@ -36,21 +35,15 @@ export class AccuracyTrackingHistoryStore extends HistoryStore {
       if ('data' in merged) stored.set(pending.sku, merged.data)
       return merged
     })
-    const entries: ActualsEntry[] = []
+    const entries: HistoryEntry[] = []
     batch.forEach((p, i) => {
       const r = results[i]
       const data = stored.get(p.sku)
       if (r === undefined || !('outcome' in r) || !data) return
-      try {
-        const first = parsePeriod(data.firstPeriod, data.frequency)
-        const periodValues = data.demand.map((value, t) => ({ period: formatPeriod(first + t, data.frequency), value }))
-        entries.push({ sku: p.sku, frequency: data.frequency, periodValues })
-      } catch (err) {
-        this.onError(err, tenant, p.sku)
-      }
+      entries.push({ sku: p.sku, frequency: data.frequency, firstPeriod: data.firstPeriod, demand: data.demand })
     })
     try {
-      await this.accuracy.recordActualsMany(tenant, entries)
+      await this.accuracy.rescoreMany(tenant, entries)
     } catch (err) {
       this.onError(err, tenant, entries.length === 1 ? entries[0]!.sku : `${entries.length} SKUs`)
     }

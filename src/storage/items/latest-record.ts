@@ -36,6 +36,11 @@ export interface ForecastPoints {
   readonly points: ReadonlyMap<string, number>
 }
 
+/** One of a SKU's kept published forecasts: ForecastPoints plus when its run was created. */
+export interface PublishedPoints extends ForecastPoints {
+  readonly createdAtMs: number
+}
+
 const CODES: Readonly<Record<Frequency, string>> = { day: 'd', week: 'w', month: 'm', quarter: 'q', year: 'y' }
 const FREQUENCY_OF: Readonly<Record<string, Frequency>> = { d: 'day', w: 'week', m: 'month', q: 'quarter', y: 'year' }
 
@@ -147,4 +152,23 @@ export function decodeLatest(value: string): LatestRecord | null {
   const producedAt = value.slice(b + 1, c)
   if (!Number.isFinite(createdAtMs) || !isValidRunId(runId) || producedAt === '') return null
   return { createdAtMs, runId, producedAt, points: value.slice(c + 1) }
+}
+
+/**
+ * A SKU's field of the `published` hash: its kept published forecasts, newest
+ * first (one record per line, each as a `latest` record). Records that do not
+ * decode are left out.
+ */
+export function decodePublished(value: string): PublishedPoints[] {
+  const out: PublishedPoints[] = []
+  for (const line of value.split('\n')) {
+    const record = decodeLatest(line)
+    if (record === null) continue
+    try {
+      out.push({ runId: record.runId, createdAtMs: record.createdAtMs, points: decodePoints(record.points) })
+    } catch {
+      // A points field this codec did not write: that forecast cannot be scored.
+    }
+  }
+  return out
 }

@@ -1,5 +1,7 @@
 import type { RedisClient } from '../redis.js'
-import type { RunScope, RunSettings, SeriesItem } from '../../schemas/run.js'
+import type { ChunkSeriesItem, RunScope, RunSettings } from '../../schemas/run.js'
+import { parsePeriod } from '../../engine/index.js'
+import type { ClosedOrdinals } from '../erp/closing-store.js'
 import { decodeRunRecord, newRunFields } from './run-hash.js'
 import { RunStats } from './stats-store.js'
 import type { HistoryStore } from '../histories/history-store.js'
@@ -14,8 +16,12 @@ import type { RunRecord } from '../../runs/contract.js'
  * scope. The run record goes last, when the total is known; inputs of a
  * run that never got its record expire with the result TTL.
  * Each stored history becomes the series `{ sku, firstPeriod, demand, frequency }`,
- * exactly as if it had been sent inline. SKUs of `scope.skus` without a stored
- * history are skipped and counted (`missingSkus`).
+ * exactly as if it had been sent inline, except for open periods (after the
+ * tenant's closed-through period of its frequency, `closed`): they are cut off
+ * unless `settings.openPeriods` is 'include', when the series keeps them and
+ * says how many (`openPeriods`, for the item's warning). A history with nothing
+ * but open periods is left out and counted (`openOnlySkus`). SKUs of
+ * `scope.skus` without a stored history are skipped and counted (`missingSkus`).
  * Null when nothing matched (no run is created).
  */
 export async function createRunFromHistories(
@@ -29,13 +35,17 @@ export async function createRunFromHistories(
     readonly scope: RunScope
     readonly chunkSize: number
     readonly now: Date
+    /** The tenant's closed-through period ordinals (closing-store.ts). */
+    readonly closed?: ClosedOrdinals
   },
-): Promise<{ record: RunRecord; chunks: number; missingSkus: number } | null> {
+): Promise<{ record: RunRecord; chunks: number; missingSkus: number; openOnlySkus: number } | null> {
   const { tenant, runId, settings, scope, chunkSize } = args
   const k = runKeys(opts.prefix, tenant, runId)
   let chunks = 0
   let total = 0
-  let chunk: SeriesItem[] = []
+  let chunk: ChunkSeriesItem[] = []
+  let openOnlySkus = 0
+  let found = 0
   const flush = async () => {
     await redis.set(k.input(chunks), JSON.stringify(chunk), 'EX', opts.resultTtlSeconds)
     chunks++
@@ -44,7 +54,17 @@ export async function createRunFromHistories(
   }
   for await (const batch of histories.select(tenant, scope, chunkSize)) {
     for (const h of batch) {
-      chunk.push({ sku: h.sku, firstPeriod: h.firstPeriod, demand: [...h.demand], frequency: h.frequency })
+      found++
+      const through = args.closed?.[h.frequency]
+      const open = through === undefined ? 0 : parsePeriod(h.firstPeriod, h.frequency) + h.demand.length - 1 - through
+      const series: ChunkSeriesItem = { sku: h.sku, firstPeriod: h.firstPeriod, demand: [...h.demand], frequency: h.frequency }
+      if (open > 0 && settings.openPeriods === 'include') chunk.push({ ...series, openPeriods: open })
+      else if (open <= 0) chunk.push(series)
+      else if (open < h.demand.length) chunk.push({ ...series, demand: series.demand.slice(0, h.demand.length - open) })
+      else {
+        openOnlySkus++
+        continue
+      }
       if (chunk.length >= chunkSize) await flush()
     }
   }
@@ -54,5 +74,5 @@ export async function createRunFromHistories(
   const results = await redis.multi().hset(k.run, fields).expire(k.run, opts.recordTtlSeconds).exec()
   for (const [err] of results ?? []) if (err) throw err
   await new RunStats(redis, opts.prefix).created()
-  return { record: decodeRunRecord(fields)!, chunks, missingSkus: 'skus' in scope ? scope.skus.length - total : 0 }
+  return { record: decodeRunRecord(fields)!, chunks, missingSkus: 'skus' in scope ? scope.skus.length - found : 0, openOnlySkus }
 }

@@ -1,15 +1,23 @@
 import type { Config } from '../../config.js'
 import type { RedisClient } from '../redis.js'
 import { countOf, decodeJson, oneOf } from '../decode.js'
-import { RunSettings, SeriesItem, type RunRequest } from '../../schemas/run.js'
+import { ChunkSeriesItem, RunSettings, type RunRequest } from '../../schemas/run.js'
 import { isSeriesItem } from '../../schemas/series-check.js'
 import { z } from 'zod'
 import { decodeRunRecord, encodeFailure, newRunFields } from './run-hash.js'
 import { loadItem } from '../items/item-codec.js'
 import type { PreparedItem } from '../items/prepared-item.js'
 import { readStoredPage } from './result-pages.js'
-import { latestKey, runKeys, isValidRunId, isValidTenant } from '../keys.js'
-import { decodeLatest, decodePoints, recordTail, type ForecastPoints, type LatestRecord } from '../items/latest-record.js'
+import { latestKey, publishedKey, runKeys, isValidRunId, isValidTenant } from '../keys.js'
+import {
+  decodeLatest,
+  decodePoints,
+  decodePublished,
+  recordTail,
+  type ForecastPoints,
+  type LatestRecord,
+  type PublishedPoints,
+} from '../items/latest-record.js'
 import { defineRunScripts, type RunScripts } from './scripts.js'
 import { RunStats } from './stats-store.js'
 import { RUN_STATUSES, type Failure, type LatestForecast, type ResultPage, type RunRecord, type RunStatus } from '../../runs/contract.js'
@@ -19,13 +27,17 @@ import type { ChunkTally } from '../../runs/tally.js'
 export const RECORD_TTL_FACTOR = 2
 
 /** Retention settings of the run store, from config (RESULT_RETENTION_SECONDS). */
-export function runStoreOptions(config: Pick<Config, 'redisPrefix' | 'resultRetentionSeconds'>): RunStoreOptions {
+export function runStoreOptions(config: Pick<Config, 'redisPrefix' | 'resultRetentionSeconds' | 'publishedForecastsKept'>): RunStoreOptions {
   return {
     prefix: config.redisPrefix,
     resultTtlSeconds: config.resultRetentionSeconds,
     recordTtlSeconds: config.resultRetentionSeconds * RECORD_TTL_FACTOR,
+    publishedKept: config.publishedForecastsKept ?? DEFAULT_PUBLISHED_KEPT,
   }
 }
+
+/** Published forecasts kept per SKU when the config does not say (PUBLISHED_FORECASTS_KEPT). */
+export const DEFAULT_PUBLISHED_KEPT = 12
 
 export interface RunStoreOptions {
   readonly prefix: string
@@ -33,6 +45,8 @@ export interface RunStoreOptions {
   readonly resultTtlSeconds: number
   /** TTL of the run record (status, progress, summary); at least resultTtlSeconds. */
   readonly recordTtlSeconds: number
+  /** Published forecasts kept per SKU (accuracy at a fixed lag); default DEFAULT_PUBLISHED_KEPT. */
+  readonly publishedKept?: number
 }
 
 export const COMMIT_OUTCOMES = ['committed', 'finished', 'duplicate', 'missing', 'cancelled', 'failed', 'succeeded'] as const
@@ -44,7 +58,7 @@ export interface ChunkStart {
   readonly createdAtMs: number
 }
 
-const ChunkInput = z.array(SeriesItem)
+const ChunkInput = z.array(ChunkSeriesItem)
 
 /** Run records, chunk inputs and results in Redis (layout in keys.ts, scripts in scripts.ts). */
 export class RunStore {
@@ -110,7 +124,7 @@ export class RunStore {
   }
 
   /** The chunk's series, or null when the key is gone (chunk done, run cancelled, or expired). */
-  async readChunkInput(tenant: string, runId: string, chunkIndex: number): Promise<SeriesItem[] | null> {
+  async readChunkInput(tenant: string, runId: string, chunkIndex: number): Promise<ChunkSeriesItem[] | null> {
     const json = await this.redis.get(this.keys(tenant, runId).input(chunkIndex))
     if (json === null) return null
     // Written from a validated request or stored histories: the schema runs only if the plain check finds anything off.
@@ -131,7 +145,8 @@ export class RunStore {
 
   /**
    * Commits a chunk in three idempotent steps: store its items (storeItems),
-   * make them the latest forecast of their SKUs (updateLatest), then count the
+   * when the run publishes make them the latest forecast of their SKUs
+   * (updateLatest; a what-if run leaves that alone), then count the
    * chunk and finish the run when it was the last (commitChunk script, guarded
    * per chunk index). A run thus reads 'succeeded' only after every SKU's
    * result and latest record are written; a retry after a crash between the
@@ -148,13 +163,15 @@ export class RunStore {
     items: readonly PreparedItem[],
     tally: ChunkTally,
     now: Date,
+    /** The run's `publish` setting; a what-if run (false) writes no latest or published record. */
+    publish = false,
   ): Promise<CommitOutcome> {
     const k = this.keys(tenant, runId)
     const stored: (string | number | Buffer)[] = [this.opts.resultTtlSeconds]
     for (const item of items) stored.push(item.sku, item.stored)
     const [step, createdAt] = await this.scripts.storeItems([k.run, k.skus, k.items], stored)
     if (step !== 'stored' && step !== 'succeeded') return oneOf(COMMIT_OUTCOMES, step, 'storeItems outcome')
-    await this.updateLatest(tenant, runId, Date.parse(createdAt), now, items)
+    if (publish) await this.updateLatest(tenant, runId, Date.parse(createdAt), now, items)
     if (step === 'succeeded') return 'succeeded'
     const args: (string | number)[] = [
       chunkIndex,
@@ -189,16 +206,30 @@ export class RunStore {
   }
 
   /**
-   * Makes this run the latest forecast of the items' SKUs (error items are
-   * skipped) unless a newer run already holds them; each record keeps the point
-   * forecast for accuracy scoring. Returns how many records changed.
+   * Publishes the items' forecasts (error items are skipped): adds them to each
+   * SKU's kept published forecasts, then makes this run the latest forecast of
+   * the SKUs unless a newer run already holds them; each record keeps the point
+   * forecast for accuracy scoring. Both steps are idempotent (a retried chunk
+   * changes nothing). Returns how many latest records changed.
    */
   async updateLatest(tenant: string, runId: string, createdAtMs: number, producedAt: Date, items: readonly PreparedItem[]): Promise<number> {
     const produced = producedAt.toISOString()
-    const args: (string | number)[] = [createdAtMs, runId]
-    for (const item of items) if (item.points !== null) args.push(item.sku, recordTail(produced, item.points))
-    if (args.length === 2) return 0
-    return this.scripts.updateLatest(latestKey(this.opts.prefix, tenant), args)
+    const pairs: (string | number)[] = []
+    for (const item of items) if (item.points !== null) pairs.push(item.sku, recordTail(produced, item.points))
+    if (pairs.length === 0) return 0
+    // The kept list first: a crash in between leaves latest one run behind, which the retry fixes.
+    await this.scripts.pushPublished(publishedKey(this.opts.prefix, tenant), [this.opts.publishedKept ?? DEFAULT_PUBLISHED_KEPT, createdAtMs, runId, ...pairs])
+    return this.scripts.updateLatest(latestKey(this.opts.prefix, tenant), [createdAtMs, runId, ...pairs])
+  }
+
+  /**
+   * Each SKU's kept published forecasts, newest first ([] when it has none), in
+   * the order asked; they outlive the runs' results. One HMGET.
+   */
+  async publishedPoints(tenant: string, skus: readonly string[]): Promise<PublishedPoints[][]> {
+    if (skus.length === 0 || !isValidTenant(tenant)) return skus.map(() => [])
+    const values = await this.redis.hmget(publishedKey(this.opts.prefix, tenant), ...skus)
+    return values.map((v) => (v === null ? [] : decodePublished(v)))
   }
 
   /**

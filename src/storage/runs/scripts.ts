@@ -140,6 +140,46 @@ end
 return changed
 `
 
+/**
+ * pushPublished. KEYS: published. ARGV: keep, createdAtMs, runId, then pairs (sku, tail).
+ * Adds `createdAtMs|runId|tail` to each SKU's list of published records (newest
+ * first, one per line, ordered as updateLatest orders runs) and keeps the newest
+ * `keep`. A run already in the list is not added again (a retried chunk), and a
+ * run older than every kept one falls off at once. Returns how many lists changed.
+ */
+const PUSH_PUBLISHED = `
+local keep = tonumber(ARGV[1])
+local created = tonumber(ARGV[2])
+local runId = ARGV[3]
+local head = ARGV[2] .. '|' .. ARGV[3] .. '|'
+local changed = 0
+for i = 4, #ARGV, 2 do
+  local cur = redis.call('HGET', KEYS[1], ARGV[i])
+  local recs = {}
+  if cur then
+    for rec in string.gmatch(cur, '[^\\n]+') do recs[#recs + 1] = rec end
+  end
+  local pos = #recs + 1
+  local dup = false
+  for j = #recs, 1, -1 do
+    local rec = recs[j]
+    local a = string.find(rec, '|', 1, true)
+    local b = a and string.find(rec, '|', a + 1, true)
+    local c = b and tonumber(string.sub(rec, 1, a - 1))
+    local r = b and string.sub(rec, a + 1, b - 1)
+    if r == runId then dup = true end
+    if c == nil or c < created or (c == created and r < runId) then pos = j end
+  end
+  if not dup and pos <= keep then
+    table.insert(recs, pos, head .. ARGV[i + 1])
+    while #recs > keep do table.remove(recs) end
+    redis.call('HSET', KEYS[1], ARGV[i], table.concat(recs, '\\n'))
+    changed = changed + 1
+  end
+end
+return changed
+`
+
 export interface RunScripts {
   /** [status, settingsJson, createdAt, moved ('1' when this call moved queued to running)]. */
   startChunk(run: string, nowIso: string): Promise<[string, string, string, string] | null>
@@ -150,6 +190,7 @@ export interface RunScripts {
   /** [status after, status before], or null when the run does not exist. */
   endRun(keys: readonly [string, string, string, string], args: readonly (string | number)[]): Promise<[string, string] | null>
   updateLatest(key: string, args: readonly (string | number)[]): Promise<number>
+  pushPublished(key: string, args: readonly (string | number)[]): Promise<number>
 }
 
 type Call = (...args: (string | number | Buffer)[]) => Promise<unknown>
@@ -165,6 +206,7 @@ export function defineRunScripts(redis: RedisClient): RunScripts {
     almanacCommitCounts: [2, COMMIT_CHUNK],
     almanacEndRun: [4, END_RUN],
     almanacUpdateLatest: [1, UPDATE_LATEST],
+    almanacPushPublished: [1, PUSH_PUBLISHED],
   } as const
   for (const [name, [numberOfKeys, lua]] of Object.entries(scripts)) {
     if (!(name in redis)) redis.defineCommand(name, { numberOfKeys, lua })
@@ -186,6 +228,7 @@ export function defineRunScripts(redis: RedisClient): RunScripts {
       return r === null ? null : strings(r, 2, 'almanacEndRun')
     },
     updateLatest: async (key, args) => countOf(await cmd('almanacUpdateLatest')(key, ...args), 'almanacUpdateLatest reply'),
+    pushPublished: async (key, args) => countOf(await cmd('almanacPushPublished')(key, ...args), 'almanacPushPublished reply'),
   }
 }
 

@@ -67,9 +67,9 @@ describe('RunStore', () => {
     // A client polling the run and then each SKU's latest forecast must never get a 404 in between.
     await store.createRun('acme', 'order-1', runRequest(syntheticSeries(4)), 2, t0)
     const first = okItems(['SKU-00000', 'SKU-00001'])
-    expect(await store.commitChunk('acme', 'order-1', 0, prepareItems(first), tallyItems(first, 'mase'), t0)).toBe('committed')
+    expect(await store.commitChunk('acme', 'order-1', 0, prepareItems(first), tallyItems(first, 'mase'), t0, true)).toBe('committed')
     const second = okItems(['SKU-00002', 'SKU-00003'], [5])
-    expect(await store.commitChunk('acme', 'order-1', 1, prepareItems(second), tallyItems(second, 'mase'), t0)).toBe('finished')
+    expect(await store.commitChunk('acme', 'order-1', 1, prepareItems(second), tallyItems(second, 'mase'), t0, true)).toBe('finished')
     expect((await store.getRun('acme', 'order-1'))?.status).toBe('succeeded')
     for (const sku of ['SKU-00000', 'SKU-00001', 'SKU-00002', 'SKU-00003']) {
       const latest = await store.latest('acme', sku)
@@ -77,8 +77,37 @@ describe('RunStore', () => {
       expect('failure' in latest!.item).toBe(false)
     }
     // A retry of the last chunk after the run finished rewrites nothing it counts and answers 'succeeded'.
-    expect(await store.commitChunk('acme', 'order-1', 1, prepareItems(second), tallyItems(second, 'mase'), t0)).toBe('succeeded')
+    expect(await store.commitChunk('acme', 'order-1', 1, prepareItems(second), tallyItems(second, 'mase'), t0, true)).toBe('succeeded')
     expect((await store.getRun('acme', 'order-1'))?.progress).toEqual({ total: 4, done: 4, failed: 0 })
+  })
+
+  it('leaves the latest and published forecasts alone for a what-if run', async () => {
+    await store.createRun('whatif', 'pub-1', runRequest(syntheticSeries(1)), 1, t0)
+    const published = okItems(['SKU-00000'], [4])
+    expect(await store.commitChunk('whatif', 'pub-1', 0, prepareItems(published), tallyItems(published, 'mase'), t0, true)).toBe('finished')
+    await store.createRun('whatif', 'what-1', runRequest(syntheticSeries(1)), 1, new Date(t0.getTime() + 1000))
+    const whatIf = okItems(['SKU-00000'], [1])
+    expect(await store.commitChunk('whatif', 'what-1', 0, prepareItems(whatIf), tallyItems(whatIf, 'mase'), t0)).toBe('finished')
+    // The what-if result is readable under its run; the SKU's forecast is still the published one.
+    expect((await store.resultsPage('whatif', 'what-1', { limit: 10 }))?.items).toHaveLength(1)
+    expect((await store.latest('whatif', 'SKU-00000'))?.runId).toBe('pub-1')
+    expect((await store.publishedPoints('whatif', ['SKU-00000']))[0]!.map((p) => p.runId)).toEqual(['pub-1'])
+  })
+
+  it('keeps the newest N published forecasts per SKU, newest first, each run once', async () => {
+    const kept = new RunStore(redis, { prefix, resultTtlSeconds: 600, recordTtlSeconds: 1200, publishedKept: 3 })
+    const at = (i: number) => t0.getTime() + i * 1000
+    for (const i of [1, 2, 4, 3]) await kept.updateLatest('kept', `run-${i}`, at(i), t0, prepareItems(okItems(['A'], [i])))
+    // A retried chunk of run-4 adds nothing; run-0 is older than every kept one and falls off at once.
+    await kept.updateLatest('kept', 'run-4', at(4), t0, prepareItems(okItems(['A'], [4])))
+    await kept.updateLatest('kept', 'run-0', at(0), t0, prepareItems(okItems(['A'], [0])))
+    const [list] = await kept.publishedPoints('kept', ['A', 'B'])
+    expect(list!.map((p) => [p.runId, p.createdAtMs, [...p.points.values()]])).toEqual([
+      ['run-4', at(4), [4]],
+      ['run-3', at(3), [3]],
+      ['run-2', at(2), [2]],
+    ])
+    expect((await kept.publishedPoints('kept', ['B']))[0]).toEqual([])
   })
 
   it('counts a chunk whose items were stored by an attempt that died before counting', async () => {

@@ -5,7 +5,7 @@ import { compactItem } from '../../../runs/views.js'
 import { SkuForecast, type SkuForecastBody } from '../../../schemas/results.js'
 import { READ_ONE } from '../responses.js'
 
-/** GET /v1/skus/{sku}/forecast: the latest successful forecast of a SKU. */
+/** GET /v1/skus/{sku}/forecast: the latest published forecast of a SKU. */
 const routes: FastifyPluginAsyncZod = async (app) => {
   app.get(
     '/:sku/forecast',
@@ -15,9 +15,10 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         operationId: 'getSkuForecast',
         'x-etag': true,
         'x-problems': READ_ONE,
-        summary: 'Latest successful forecast of a SKU',
+        summary: 'Latest published forecast of a SKU',
         description:
-          'URL-encode the SKU (e.g. / as %2F). 404 when no run has forecast it yet, or when the results of the run ' +
+          'The forecast of the newest publishing run (what-if runs never replace it). ' +
+          'URL-encode the SKU (e.g. / as %2F). 404 when no run has published it yet, or when the results of the run ' +
           'that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.',
         params: SkuParams,
         querystring: ViewQuery,

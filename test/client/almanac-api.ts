@@ -441,7 +441,7 @@ export interface components {
              */
             rankBy: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
             /** @description Candidates; default all the history allows */
-            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
             /**
              * @description Central prediction-interval levels in percent
              * @default [
@@ -539,7 +539,7 @@ export interface components {
              * @description The chosen model
              * @enum {string}
              */
-            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
+            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima";
             /** @enum {string} */
             family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
             /** @description Fitted parameters; one key means the same in every model: levelWeight, trendWeight, seasonWeight, damping, startLevel, startTrend, startSeason, seasonFactors, seasonOffsets, slope, intercept, residualVariance, window, level, demandSize, demandInterval, biasFactor */
@@ -571,7 +571,7 @@ export interface components {
             /** @description Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact */
             candidates?: {
                 /** @enum {string} */
-                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
+                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima";
                 /** @enum {string} */
                 family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
                 /** @enum {string} */
@@ -671,7 +671,7 @@ export interface components {
                  */
                 rankBy: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
                 /** @description Candidates; default all the history allows */
-                models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+                models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
                 /**
                  * @description Central prediction-interval levels in percent
                  * @default [
@@ -727,7 +727,7 @@ export interface components {
              * @description The chosen model
              * @enum {string}
              */
-            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
+            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima";
             /** @enum {string} */
             family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
             /** @description Fitted parameters; one key means the same in every model: levelWeight, trendWeight, seasonWeight, damping, startLevel, startTrend, startSeason, seasonFactors, seasonOffsets, slope, intercept, residualVariance, window, level, demandSize, demandInterval, biasFactor */
@@ -759,7 +759,7 @@ export interface components {
             /** @description Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact */
             candidates?: {
                 /** @enum {string} */
-                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
+                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima";
                 /** @enum {string} */
                 family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
                 /** @enum {string} */
@@ -930,7 +930,7 @@ export interface components {
              */
             rankBy: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
             /** @description Candidates; default all the history allows */
-            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
             /**
              * @description Central prediction-interval levels in percent
              * @default [
@@ -1218,7 +1218,7 @@ export interface operations {
                      */
                     rankBy?: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
                     /** @description Candidates; default all the history allows */
-                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
                     /**
                      * @description Central prediction-interval levels in percent
                      * @default [
@@ -2897,7 +2897,7 @@ export interface operations {
                      */
                     rankBy?: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
                     /** @description Candidates; default all the history allows */
-                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
                     /**
                      * @description Central prediction-interval levels in percent
                      * @default [

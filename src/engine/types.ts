@@ -51,6 +51,7 @@ export const MODEL_NAMES = [
   'dynamic-optimised-theta',
   'state-space-smoothing',
   'median-combination',
+  'auto-arima',
 ] as const
 export type ModelName = (typeof MODEL_NAMES)[number]
 

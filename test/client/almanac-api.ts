@@ -565,7 +565,7 @@ export interface components {
              */
             rankBy: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
             /** @description Candidates; default all the history allows */
-            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
             /**
              * @description Central prediction-interval levels in percent
              * @default [
@@ -674,7 +674,7 @@ export interface components {
              * @description The chosen model
              * @enum {string}
              */
-            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
+            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima";
             /** @enum {string} */
             family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
             /** @description Fitted parameters; one key means the same in every model: levelWeight, trendWeight, seasonWeight, damping, startLevel, startTrend, startSeason, seasonFactors, seasonOffsets, slope, intercept, residualVariance, window, level, demandSize, demandInterval, biasFactor */
@@ -710,7 +710,7 @@ export interface components {
             /** @description Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact */
             candidates?: {
                 /** @enum {string} */
-                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
+                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima";
                 /** @enum {string} */
                 family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
                 /** @enum {string} */
@@ -824,7 +824,7 @@ export interface components {
                  */
                 rankBy: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
                 /** @description Candidates; default all the history allows */
-                models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+                models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
                 /**
                  * @description Central prediction-interval levels in percent
                  * @default [
@@ -887,7 +887,7 @@ export interface components {
              * @description The chosen model
              * @enum {string}
              */
-            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
+            model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima";
             /** @enum {string} */
             family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
             /** @description Fitted parameters; one key means the same in every model: levelWeight, trendWeight, seasonWeight, damping, startLevel, startTrend, startSeason, seasonFactors, seasonOffsets, slope, intercept, residualVariance, window, level, demandSize, demandInterval, biasFactor */
@@ -923,7 +923,7 @@ export interface components {
             /** @description Every candidate model: scored ones best first, then skipped and failed ones. Left out with ?view=compact */
             candidates?: {
                 /** @enum {string} */
-                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination";
+                model: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima";
                 /** @enum {string} */
                 family: "level" | "trend" | "seasonal" | "seasonal-trend" | "intermittent" | "combination";
                 /** @enum {string} */
@@ -1179,7 +1179,7 @@ export interface components {
              */
             rankBy: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
             /** @description Candidates; default all the history allows */
-            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
             /**
              * @description Central prediction-interval levels in percent
              * @default [
@@ -1511,7 +1511,7 @@ export interface operations {
                      */
                     rankBy?: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
                     /** @description Candidates; default all the history allows */
-                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
                     /**
                      * @description Central prediction-interval levels in percent
                      * @default [
@@ -3197,7 +3197,7 @@ export interface operations {
                      */
                     rankBy?: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
                     /** @description Candidates; default all the history allows */
-                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination")[];
+                    models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[];
                     /**
                      * @description Central prediction-interval levels in percent
                      * @default [

@@ -38,6 +38,9 @@ import callbackRoutes from './routes/callbacks.js'
 import deliveryRoutes from './routes/runs/deliveries.js'
 import scheduleRoutes from './routes/schedules.js'
 import skuAccuracyRoutes from './routes/skus/accuracy.js'
+import adjustmentsPlugin from './plugins/adjustments.js'
+import skuAdjustmentRoutes from './routes/skus/adjustments.js'
+import type { AdjustmentService } from '../runs/adjustment-service.js'
 import './types.js'
 
 export interface AppDeps {
@@ -59,6 +62,8 @@ export interface AppDeps {
   readonly erp?: ErpServices
   /** Folder of the built workbench pages served at /app/; without it /app/ answers 503. */
   readonly workbenchRoot?: string | null
+  /** Adjustments of SKU forecasts; without them those routes answer 503 and forecasts show none. */
+  readonly adjustments?: AdjustmentService
 }
 
 /** Time to receive a whole request when the config does not say (REQUEST_TIMEOUT_MS). */
@@ -123,6 +128,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(idempotencyPlugin, { store: deps.idempotency })
   await app.register(etagPlugin)
   await app.register(erpPlugin, { erp: deps.erp })
+  await app.register(adjustmentsPlugin, { adjustments: deps.adjustments })
 
   await app.register(healthRoutes)
   await app.register(forecastRoutes(deps.forecast ?? forecastSeries))
@@ -136,6 +142,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(callbackRoutes, { prefix: '/v1/callbacks' })
   await app.register(scheduleRoutes, { prefix: '/v1/schedules' })
   await app.register(skuAccuracyRoutes, { prefix: '/v1/skus' })
+  await app.register(skuAdjustmentRoutes, { prefix: '/v1/skus' })
   await app.register(accuracyRoutes)
   await app.register(accessRoutes)
   await app.register(workbenchPlugin, { root: deps.workbenchRoot ?? null })

@@ -96,6 +96,8 @@ if redis.call('HLEN', KEYS[1]) == 0 then redis.call('ZREM', KEYS[3], ARGV[1]) el
 return n
 `
 const COMMAND = 'almanacApplyAdjustments'
+/** SKUs looked up in the index per command. */
+const INDEX_PART = 1000
 
 export class AdjustmentStore {
   constructor(
@@ -121,7 +123,11 @@ export class AdjustmentStore {
   /** inForce of many SKUs, in the order asked: one round trip finds the SKUs that have any. */
   async inForceMany(tenant: string, skus: readonly string[]): Promise<Map<string, StoredAdjustment>[]> {
     if (!isValidTenant(tenant) || skus.length === 0) return skus.map(() => new Map())
-    const scores = await this.redis.zmscore(this.keys(tenant, '').skus, ...skus)
+    // In parts, so a bulk upload's batch never becomes one command with tens of thousands of arguments.
+    const scores: (string | null)[] = []
+    for (let i = 0; i < skus.length; i += INDEX_PART) {
+      scores.push(...(await this.redis.zmscore(this.keys(tenant, '').skus, ...skus.slice(i, i + INDEX_PART))))
+    }
     const out = skus.map(() => new Map<string, StoredAdjustment>())
     const todo = skus.flatMap((sku, i) => (scores[i] === null ? [] : [{ sku, i }]))
     const sets = await Promise.all(todo.map(({ sku }) => this.redis.hgetall(this.keys(tenant, sku).set)))

@@ -1,6 +1,7 @@
 import { collectDefaultMetrics } from 'prom-client'
 import { build } from './http/app.js'
 import { createErpServices } from './http/erp-services.js'
+import { createAdjustmentService } from './http/adjustment-services.js'
 import { defaultWorkbenchRoot } from './http/plugins/workbench.js'
 import { createServiceMetrics } from './http/metrics.js'
 import { createLogger } from './logger.js'
@@ -33,15 +34,21 @@ async function main(): Promise<void> {
   const apiRedis = requestConnection(config, logger, 'api')
   const erp = createErpServices(config, apiRedis, { logger })
   // Uploads score earlier forecasts against the actuals they bring (GET /v1/skus/{sku}/accuracy).
-  const histories = new AccuracyTrackingHistoryStore(apiRedis, { prefix: config.redisPrefix }, erp.services.accuracy, (err, tenant) =>
-    logger.warn({ err, tenant }, 'could not score actuals against the latest forecast'),
+  // Adjustments of forecasts: uploads also record their value added and expire those whose periods passed.
+  const adjustments = createAdjustmentService(config, apiRedis, gateway)
+  const histories = new AccuracyTrackingHistoryStore(
+    apiRedis,
+    { prefix: config.redisPrefix },
+    erp.services.accuracy,
+    (err, tenant) => logger.warn({ err, tenant }, 'could not score actuals against the latest forecast'),
+    (tenant, entries) => adjustments.historiesStored(tenant, entries),
   )
   const idempotency = new IdempotencyStore(apiRedis, { prefix: config.redisPrefix })
   const metrics = createServiceMetrics()
   collectDefaultMetrics({ register: metrics.registry, prefix: 'almanac_process_' })
 
   const app = await build({
-    config, gateway, logger, rateLimitRedis: apiRedis, metrics, histories, idempotency, erp: erp.services,
+    config, gateway, logger, rateLimitRedis: apiRedis, metrics, histories, idempotency, erp: erp.services, adjustments,
     workbenchRoot: defaultWorkbenchRoot(),
   })
   const workers = config.runWorker ? startProcessWorkers(config, logger) : null

@@ -40,6 +40,9 @@ import deliveryRoutes from './routes/runs/deliveries.js'
 import scheduleRoutes from './routes/schedules.js'
 import skuAccuracyRoutes from './routes/skus/accuracy.js'
 import closedPeriodRoutes from './routes/closed-periods.js'
+import adjustmentsPlugin from './plugins/adjustments.js'
+import skuAdjustmentRoutes from './routes/skus/adjustments.js'
+import type { AdjustmentService } from '../runs/adjustment-service.js'
 import './types.js'
 
 export interface AppDeps {
@@ -61,6 +64,8 @@ export interface AppDeps {
   readonly erp?: ErpServices
   /** Folder of the built workbench pages served at /app/; without it /app/ answers 503. */
   readonly workbenchRoot?: string | null
+  /** Adjustments of SKU forecasts; without them those routes answer 503 and forecasts show none. */
+  readonly adjustments?: AdjustmentService
 }
 
 /** Time to receive a whole request when the config does not say (REQUEST_TIMEOUT_MS). */
@@ -134,6 +139,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(idempotencyPlugin, { store: deps.idempotency })
   await app.register(etagPlugin)
   await app.register(erpPlugin, { erp: deps.erp })
+  await app.register(adjustmentsPlugin, { adjustments: deps.adjustments })
 
   await app.register(healthRoutes)
   await app.register(syncFitsPlugin, { fitter: deps.syncFits })
@@ -148,6 +154,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(callbackRoutes, { prefix: '/v1/callbacks' })
   await app.register(scheduleRoutes, { prefix: '/v1/schedules' })
   await app.register(skuAccuracyRoutes, { prefix: '/v1/skus' })
+  await app.register(skuAdjustmentRoutes, { prefix: '/v1/skus' })
   await app.register(accuracyRoutes)
   await app.register(closedPeriodRoutes, { prefix: '/v1/closed-periods' })
   await app.register(accessRoutes)

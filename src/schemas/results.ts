@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { AdjustmentView } from './adjustments.js'
 import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES } from '../engine/index.js'
 import { RunScope, RunSettings } from './run.js'
 import { RUN_STATUSES } from '../runs/contract.js'
@@ -174,7 +175,17 @@ export const RunResource = z
   })
   .meta({ id: 'Run' })
 
+/** A point of a SKU's forecast: `demand` is the statistical forecast; adjustments add the rest. */
+const SkuForecastPoint = ForecastPointSchema.extend({
+  demand: z.number().describe('Statistical point forecast of demand for the period (before adjustments)'),
+  finalDemand: z.number().describe('The demand to plan with: demand with the adjustment in force applied; equal to demand when none'),
+  adjustment: AdjustmentView.nullable().describe('The adjustment in force for the period; null when none'),
+})
+
 export const SkuForecast = ForecastItem.extend({
+  forecast: z
+    .array(SkuForecastPoint)
+    .describe('Intervals are those of the statistical forecast: an adjustment moves finalDemand, not the intervals'),
   runId: z.string(),
   producedAt: z.string().describe('ISO-8601'),
 }).meta({ id: 'SkuForecast' })

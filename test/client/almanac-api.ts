@@ -148,7 +148,7 @@ export interface paths {
         };
         /**
          * Latest published forecast of a SKU
-         * @description The forecast of the newest publishing run (what-if runs never replace it). URL-encode the SKU (e.g. / as %2F). 404 when no run has published it yet, or when the results of the run that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.
+         * @description The forecast of the newest publishing run (what-if runs never replace it). Each point carries the statistical demand (demand), the adjustment in force (adjustment) and the final demand to plan with (finalDemand); see /v1/skus/{sku}/adjustments. Figures are estimates to review before ordering. URL-encode the SKU (e.g. / as %2F). 404 when no run has published it yet, or when the results of the run that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.
          */
         get: operations["getSkuForecast"];
         put?: never;
@@ -388,6 +388,94 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/v1/skus/{sku}/adjustments": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Adjustments in force for a SKU
+         * @description Each adjustment in force, oldest period first, with the current forecast's statistical demand of its period and the final demand. An adjustment expires once the SKU's stored history contains its period.
+         */
+        get: operations["listSkuAdjustments"];
+        put?: never;
+        /**
+         * Adjust periods of a SKU's current forecast
+         * @description Sets the same adjustment (setDemand or changePercent, with reason and author) for each listed period of the SKU's current forecast. All or nothing: a period the forecast does not have, or one the SKU's history already contains, is a 422 naming it. A period whose adjustment already says the same is left alone (no new trail entry), so a repeated request changes nothing. Adjusted figures feed ordering decisions: they are planning estimates to review, not commitments.
+         */
+        post: operations["adjustSkuForecast"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/skus/{sku}/adjustments/{period}": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        /**
+         * Set the adjustment of one period of a SKU's forecast
+         * @description 201 when the period had no adjustment, 200 when it replaced one or was already the same (idempotent: the same body again changes nothing and adds no trail entry). Adjusted figures feed ordering decisions: they are planning estimates to review, not commitments.
+         */
+        put: operations["putSkuAdjustment"];
+        post?: never;
+        /**
+         * Remove the adjustment of one period
+         * @description The period goes back to its statistical demand. 204 whether or not it had an adjustment (idempotent); a removal is recorded in the trail with the author (and reason) given in the query.
+         */
+        delete: operations["deleteSkuAdjustment"];
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/skus/{sku}/adjustments/trail": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Audit trail of a SKU's adjustments
+         * @description Every change, newest first: who, when, the period, the adjustment before and after, the statistical demand then, the final demand before and after, and why. Entries are kept without expiry.
+         */
+        get: operations["getSkuAdjustmentTrail"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/skus/{sku}/value-added": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Forecast value added of a SKU
+         * @description Once actual demand arrives for periods of the SKU's forecast, each is scored for the statistical forecast, the final (adjusted) forecast and the naive forecast (the last value known when the forecast was made). Did the adjustments beat the statistical forecast, and did both beat naive? 404 until a period is scored.
+         */
+        get: operations["getSkuValueAdded"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/v1/accuracy/exceptions": {
         parameters: {
             query?: never;
@@ -619,6 +707,30 @@ export interface components {
                 seasonLength?: number;
             }[];
         };
+        /** @description An adjustment of one period: setDemand or changePercent, with a reason and an author */
+        AdjustmentRequestInput: {
+            /** @description The final demand of the period. Give setDemand or changePercent, not both */
+            setDemand?: number;
+            /** @description Change of the statistical demand in percent (-15 lowers it by 15 %); it follows a newer run of the same period */
+            changePercent?: number;
+            /** @description Why: a promotion, a lost customer... */
+            reason: string;
+            /** @description Who: the planner, or the system sending it */
+            author: string;
+        };
+        /** @description The same adjustment for several periods */
+        AdjustmentsRequestInput: {
+            /** @description Periods of the SKU's current forecast to adjust the same way */
+            periods: string[];
+            /** @description The final demand of the period. Give setDemand or changePercent, not both */
+            setDemand?: number;
+            /** @description Change of the statistical demand in percent (-15 lowers it by 15 %); it follows a newer run of the same period */
+            changePercent?: number;
+            /** @description Why: a promotion, a lost customer... */
+            reason: string;
+            /** @description Who: the planner, or the system sending it */
+            author: string;
+        };
         ClosePeriodInput: {
             /** @description The last closed period, e.g. 2026-03 for month: it and every earlier period are complete */
             closedThrough: string;
@@ -646,6 +758,146 @@ export interface components {
              * @constant
              */
             all?: true;
+        };
+        AdjustmentOnPoint: {
+            /** @description Present when the adjustment sets the demand */
+            setDemand?: number;
+            /** @description Present when the adjustment changes the statistical demand by a percentage */
+            changePercent?: number;
+            reason: string;
+            author: string;
+            /** @description ISO-8601 */
+            setAt: string;
+        };
+        Adjustment: {
+            period: string;
+            /** @description Present when the adjustment sets the demand */
+            setDemand?: number;
+            /** @description Present when the adjustment changes the statistical demand by a percentage */
+            changePercent?: number;
+            reason: string;
+            author: string;
+            /** @description ISO-8601 */
+            setAt: string;
+            /** @description The run whose forecast was current when the adjustment was set */
+            runId: string;
+            /** @description The current forecast's demand for the period; null if it has none */
+            statisticalDemand: number | null;
+            /** @description statisticalDemand with the adjustment applied; null if there is no statistical demand */
+            finalDemand: number | null;
+        };
+        AdjustmentList: {
+            sku: string;
+            /** @description The run of the SKU's current forecast */
+            runId: string | null;
+            items: components["schemas"]["Adjustment"][];
+        };
+        AdjustmentTrailEntry: {
+            /** @description ISO-8601 */
+            at: string;
+            /**
+             * @description set (new or changed), removed (DELETE), expired (the period passed)
+             * @enum {string}
+             */
+            action: "set" | "removed" | "expired";
+            period: string;
+            /** @description Who set or removed it; for expired, who had set it */
+            author: string;
+            reason: string;
+            /** @description The adjustment before; null if there was none */
+            before: {
+                /** @description Present when the adjustment sets the demand */
+                setDemand?: number;
+                /** @description Present when the adjustment changes the statistical demand by a percentage */
+                changePercent?: number;
+            } | null;
+            /** @description The adjustment after; null once removed or expired */
+            after: {
+                /** @description Present when the adjustment sets the demand */
+                setDemand?: number;
+                /** @description Present when the adjustment changes the statistical demand by a percentage */
+                changePercent?: number;
+            } | null;
+            /** @description The statistical demand of the period at that time; null if no forecast had it */
+            statisticalDemand: number | null;
+            finalDemandBefore: number | null;
+            finalDemandAfter: number | null;
+            /** @description The run of the SKU's forecast at that time */
+            runId: string | null;
+        };
+        AdjustmentTrail: {
+            /** @description Newest first */
+            items: components["schemas"]["AdjustmentTrailEntry"][];
+            /** @description Pass back as cursor for the next (older) page; null on the last page */
+            nextCursor: string | null;
+        };
+        SkuValueAdded: {
+            /** @description Periods scored: actual demand arrived for a forecast period */
+            scoredPeriods: number;
+            /** @description Of those, periods that had an adjustment */
+            adjustedPeriods: number;
+            /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods */
+            mae: {
+                statistical: number | null;
+                final: number | null;
+                naive: number | null;
+            };
+            /** @description Forecast value added, in demand units */
+            valueAdded: {
+                /** @description mae.statistical − mae.final: positive when the adjustments made the forecast better */
+                adjustments: number | null;
+                /** @description mae.naive − mae.statistical: positive when the model beat the naive forecast */
+                statistical: number | null;
+                /** @description mae.naive − mae.final */
+                final: number | null;
+            };
+            /** @description mae.final < mae.statistical; null with no adjusted period */
+            adjustmentsBeatStatistical: boolean | null;
+            /** @description mae.statistical < mae.naive; null with no scored period */
+            statisticalBeatsNaive: boolean | null;
+            /** @description mae.final < mae.naive; null with no scored period */
+            finalBeatsNaive: boolean | null;
+            sku: string;
+            /** @description Per author: only the periods they adjusted */
+            byAuthor: {
+                /** @description Periods scored: actual demand arrived for a forecast period */
+                scoredPeriods: number;
+                /** @description Of those, periods that had an adjustment */
+                adjustedPeriods: number;
+                /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods */
+                mae: {
+                    statistical: number | null;
+                    final: number | null;
+                    naive: number | null;
+                };
+                /** @description Forecast value added, in demand units */
+                valueAdded: {
+                    /** @description mae.statistical − mae.final: positive when the adjustments made the forecast better */
+                    adjustments: number | null;
+                    /** @description mae.naive − mae.statistical: positive when the model beat the naive forecast */
+                    statistical: number | null;
+                    /** @description mae.naive − mae.final */
+                    final: number | null;
+                };
+                /** @description mae.final < mae.statistical; null with no adjusted period */
+                adjustmentsBeatStatistical: boolean | null;
+                /** @description mae.statistical < mae.naive; null with no scored period */
+                statisticalBeatsNaive: boolean | null;
+                /** @description mae.final < mae.naive; null with no scored period */
+                finalBeatsNaive: boolean | null;
+                author: string;
+            }[];
+            periods: {
+                period: string;
+                runId: string;
+                statisticalDemand: number;
+                finalDemand: number;
+                /** @description Demand of the forecast's last history period (the naive, last-value forecast) */
+                naiveDemand: number;
+                actualDemand: number;
+                /** @description Author of the adjustment in force; null if none */
+                author: string | null;
+            }[];
         };
         /** @description Textbook estimate (independent one-step errors, fixed lead time): review before ordering. Errors of smoothing models are correlated across steps, so sigma_L is often understated for trending series. */
         Replenishment: {
@@ -952,9 +1204,10 @@ export interface components {
                 /** @description Why the candidate was skipped or failed, e.g. "needs 24 periods, has 20" */
                 reason?: string;
             }[];
+            /** @description Intervals are those of the statistical forecast: an adjustment moves finalDemand, not the intervals */
             forecast: {
                 period: string;
-                /** @description Point forecast of demand for the period */
+                /** @description Statistical point forecast of demand for the period (before adjustments) */
                 demand: number;
                 /** @description One prediction interval per requested level, ascending */
                 intervals: {
@@ -970,6 +1223,10 @@ export interface components {
                     /** @description Demand that actual demand stays at or below with this probability (an estimate) */
                     demand: number;
                 }[];
+                /** @description The demand to plan with: demand with the adjustment in force applied; equal to demand when none */
+                finalDemand: number;
+                /** @description The adjustment in force for the period; null when none */
+                adjustment: components["schemas"]["AdjustmentOnPoint"] | null;
             }[];
             /**
              * @description How the intervals were made: calibrated (the model spread widened by its errors at rolling origins in the history), analytical, empirical, or none
@@ -3762,6 +4019,618 @@ export interface operations {
             };
             /** @description Unsupported media type (unsupported-media-type) */
             415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    listSkuAdjustments: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["AdjustmentList"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    adjustSkuForecast: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": components["schemas"]["AdjustmentsRequestInput"];
+            };
+        };
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": {
+                        items: components["schemas"]["Adjustment"][];
+                    };
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Adjustment conflict (adjustment-conflict) */
+            409: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Period not adjustable (period-not-adjustable) */
+            422: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    putSkuAdjustment: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+                /** @description A period of the SKU's current forecast */
+                period: string;
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": components["schemas"]["AdjustmentRequestInput"];
+            };
+        };
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["Adjustment"];
+                };
+            };
+            /** @description Created */
+            201: {
+                headers: {
+                    /** @description URL of the resource created */
+                    Location?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["Adjustment"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Adjustment conflict (adjustment-conflict) */
+            409: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Period not adjustable (period-not-adjustable) */
+            422: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    deleteSkuAdjustment: {
+        parameters: {
+            query: {
+                /** @description Who removes it (recorded in the trail) */
+                author: string;
+                /** @description Why (recorded in the trail) */
+                reason?: string;
+            };
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+                /** @description A period of the SKU's current forecast */
+                period: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description Removed, or there was none */
+            204: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content?: never;
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Adjustment conflict (adjustment-conflict) */
+            409: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    getSkuAdjustmentTrail: {
+        parameters: {
+            query?: {
+                /** @description Items per page (1..1000, default 100) */
+                limit?: number;
+                /** @description nextCursor of the previous page; a cursor this API did not issue is a 400 */
+                cursor?: string;
+            };
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["AdjustmentTrail"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    getSkuValueAdded: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["SkuValueAdded"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
                 headers: {
                     [name: string]: unknown;
                 };

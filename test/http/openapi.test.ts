@@ -45,8 +45,12 @@ describe('OpenAPI document', () => {
       '/v1/skus',
       '/v1/skus/{sku}/accuracy',
       '/v1/skus/{sku}/accuracy/recompute',
+      '/v1/skus/{sku}/adjustments',
+      '/v1/skus/{sku}/adjustments/trail',
+      '/v1/skus/{sku}/adjustments/{period}',
       '/v1/skus/{sku}/forecast',
       '/v1/skus/{sku}/history',
+      '/v1/skus/{sku}/value-added',
     ])
     expect(doc.paths['/v1/runs'].post.responses['202']).toBeDefined()
     expect(doc.paths['/v1/runs/{runId}'].delete.responses['404'].content['application/problem+json']).toBeDefined()

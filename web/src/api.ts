@@ -80,7 +80,9 @@ export async function request<T>(path: string, options: RequestOptions = {}): Pr
     }
     throw new ApiError(response.status, problem)
   }
-  return { notModified: false, body: (await response.json()) as T, etag: response.headers.get('etag') }
+  // 204 No Content (a DELETE) has no body to read.
+  const body = response.status === 204 ? (null as T) : ((await response.json()) as T)
+  return { notModified: false, body, etag: response.headers.get('etag') }
 }
 
 /** GET and return the body. */

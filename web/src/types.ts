@@ -54,10 +54,42 @@ export interface Interval {
   readonly high: number
 }
 
+/** An adjustment as a forecast point shows it (docs/adjustments.md): exactly one of setDemand and changePercent. */
+export interface AdjustmentOnPoint {
+  readonly setDemand?: number
+  readonly changePercent?: number
+  readonly reason: string
+  readonly author: string
+  readonly setAt: string
+}
+
 export interface ForecastPoint {
+  /** The statistical forecast. */
   readonly period: string
   readonly demand: number
   readonly intervals: readonly Interval[]
+  /** The demand to plan with: demand with the adjustment applied (served by GET /v1/skus/{sku}/forecast). */
+  readonly finalDemand?: number
+  readonly adjustment?: AdjustmentOnPoint | null
+}
+
+export interface AdjustmentChange {
+  readonly setDemand?: number
+  readonly changePercent?: number
+}
+
+/** One entry of a SKU's adjustment trail. */
+export interface TrailEntry {
+  readonly at: string
+  readonly action: 'set' | 'removed' | 'expired'
+  readonly period: string
+  readonly author: string
+  readonly reason: string
+  readonly before: AdjustmentChange | null
+  readonly after: AdjustmentChange | null
+  readonly statisticalDemand: number | null
+  readonly finalDemandBefore: number | null
+  readonly finalDemandAfter: number | null
 }
 
 export interface Candidate {

@@ -19,6 +19,8 @@ export class AccuracyTrackingHistoryStore extends HistoryStore {
     private readonly accuracy: Pick<AccuracyStore, 'rescoreMany'>,
     /** `what`: the SKU, or how many SKUs a failed batch held. */
     private readonly onError: (err: unknown, tenant: string, what: string) => void,
+    /** Also told of every history stored (adjustments: value added and expiry); its errors go to onError. */
+    private readonly alsoStored?: (tenant: string, entries: readonly (HistoryData & { readonly sku: string })[]) => Promise<void>,
   ) {
     super(redis, opts)
   }
@@ -47,6 +49,7 @@ export class AccuracyTrackingHistoryStore extends HistoryStore {
     } catch (err) {
       this.onError(err, tenant, entries.length === 1 ? entries[0]!.sku : `${entries.length} SKUs`)
     }
+    await this.alsoStored?.(tenant, batch.flatMap((p, i) => (results[i] && 'outcome' in results[i] && stored.has(p.sku) ? [{ sku: p.sku, ...stored.get(p.sku)! }] : []))).catch((err: unknown) => this.onError(err, tenant, `${stored.size} SKUs`))
     return results
   }
 }

@@ -18,11 +18,12 @@ function Swatch({ level }: { level: BandLevel }) {
   return <canvas ref={ref} class="swatch" aria-hidden="true" />
 }
 
-function LineSwatch({ colour, dashed }: { colour: string; dashed?: boolean }) {
+function LineSwatch({ colour, dashed, squares }: { colour: string; dashed?: boolean; squares?: boolean }) {
   return (
     <svg class="swatch" viewBox="0 0 28 14" aria-hidden="true">
       <line x1="1" y1="7" x2="27" y2="7" stroke={colour} stroke-width="2.5" stroke-dasharray={dashed ? '6 3' : undefined} />
       {dashed ? <circle cx="14" cy="7" r="3" fill="#fff" stroke={colour} stroke-width="1.5" /> : null}
+      {squares ? <rect x="10" y="3" width="8" height="8" fill={colour} /> : null}
     </svg>
   )
 }
@@ -82,6 +83,7 @@ export function ChartView({ input, describe, onDrawn }: Props) {
       data-testid="sku-chart"
       data-history-points={drawn?.historyPoints}
       data-forecast-points={drawn?.forecastPoints}
+      data-adjusted-points={drawn?.adjustedPoints}
       data-bands={drawn?.bands.map((b) => `${b.level}:${b.points}`).join(',')}
       data-holdout-periods={drawn?.holdoutPeriods}
       data-probes={drawn ? JSON.stringify(drawn.probes) : undefined}
@@ -105,6 +107,11 @@ export function ChartView({ input, describe, onDrawn }: Props) {
           <li>
             <LineSwatch colour={CHART_COLOURS.forecast} dashed /> Forecast (dashed line with dots)
           </li>
+          {input.forecast.some((p) => p.adjusted !== undefined && p.adjusted !== null) ? (
+            <li>
+              <LineSwatch colour={CHART_COLOURS.adjusted} squares /> Adjusted forecast (solid line with squares, labelled “adjusted”)
+            </li>
+          ) : null}
           {levels.map((level) => (
             <li key={level}>
               <Swatch level={level} /> {level}% band ({level === 95 ? 'pale, hatched' : 'solid'})

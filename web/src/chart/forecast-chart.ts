@@ -20,14 +20,19 @@ export interface ChartInput {
    */
   readonly forecastStart: number
   /** Forecast points, in order, from forecastStart on. */
-  readonly forecast: readonly { readonly demand: number; readonly bands: Partial<Record<BandLevel, { low: number; high: number }>> }[]
+  readonly forecast: readonly {
+    readonly demand: number
+    readonly bands: Partial<Record<BandLevel, { low: number; high: number }>>
+    /** The final demand of a period a planner adjusted; absent or null when not adjusted. */
+    readonly adjusted?: number | null
+  }[]
   /** The `holdoutPeriods` periods before forecastStart were held back to score the models. */
   readonly holdoutPeriods: number
 }
 
 /** Where a test (or a person) can look to see each drawn element: canvas (device) pixels from its top left. */
 export interface DrawnProbe {
-  readonly name: 'band-80' | 'band-95' | 'outside-bands' | 'holdout' | 'history'
+  readonly name: 'band-80' | 'band-95' | 'outside-bands' | 'holdout' | 'history' | 'adjusted'
   readonly x: number
   readonly y: number
 }
@@ -35,6 +40,8 @@ export interface DrawnProbe {
 export interface DrawnSummary {
   readonly historyPoints: number
   readonly forecastPoints: number
+  /** Adjusted periods drawn (the adjusted forecast's markers). */
+  readonly adjustedPoints: number
   readonly bands: readonly { readonly level: BandLevel; readonly points: number }[]
   readonly holdoutPeriods: number
   readonly probes: readonly DrawnProbe[]
@@ -57,8 +64,11 @@ function compact(value: number): string {
   return value.toFixed(1)
 }
 
-/** Columns for uPlot: x, history, high/low of each band, then the forecast (drawn last, over the bands). */
-function columns(input: ChartInput): { data: uPlot.AlignedData; levels: BandLevel[] } {
+/**
+ * Columns for uPlot: x, history, high/low of each band, the forecast (over the bands), then the
+ * adjusted forecast when any period was adjusted (drawn last, over everything).
+ */
+function columns(input: ChartInput): { data: uPlot.AlignedData; levels: BandLevel[]; adjusted: boolean } {
   const n = input.periods.length
   const h = input.history.length
   const f = input.forecastStart
@@ -71,7 +81,25 @@ function columns(input: ChartInput): { data: uPlot.AlignedData; levels: BandLeve
     bandColumns.push(Array.from({ length: n }, (_, i) => (i >= f ? input.forecast[i - f]?.bands[level]?.high ?? null : null)))
     bandColumns.push(Array.from({ length: n }, (_, i) => (i >= f ? input.forecast[i - f]?.bands[level]?.low ?? null : null)))
   }
-  return { data: [x, history, ...bandColumns, forecast] as uPlot.AlignedData, levels }
+  const adjusted = input.forecast.some((p) => p.adjusted !== undefined && p.adjusted !== null)
+  const adjustedColumn: (number | null)[] = Array.from({ length: n }, (_, i) => (i >= f ? input.forecast[i - f]?.adjusted ?? null : null))
+  const data = [x, history, ...bandColumns, forecast, ...(adjusted ? [adjustedColumn] : [])] as uPlot.AlignedData
+  return { data, levels, adjusted }
+}
+
+/** Markers drawn as filled squares (uPlot draws circles by default). */
+const squarePoints: uPlot.Series.Points.PathBuilder = (u, seriesIdx, idx0, idx1) => {
+  const fill = new Path2D()
+  const size = 9 * uPlot.pxRatio
+  const values = u.data[seriesIdx]!
+  for (let i = idx0; i <= idx1; i++) {
+    const v = values[i]
+    if (v === null || v === undefined) continue
+    const x = u.valToPos(i, 'x', true)
+    const y = u.valToPos(v, 'y', true)
+    fill.rect(x - size / 2, y - size / 2, size, size)
+  }
+  return { stroke: fill, fill }
 }
 
 /** Period steps that read well for weekly, monthly and quarterly labels. */
@@ -83,7 +111,7 @@ export function drawForecastChart(
   width: number,
   events: { onCursor(index: number | null): void; onDrawn(summary: DrawnSummary): void },
 ): ForecastChart {
-  const { data, levels } = columns(input)
+  const { data, levels, adjusted } = columns(input)
   const f = input.forecastStart
   const holdoutStart = Math.max(0, f - input.holdoutPeriods)
   const bandSeries: uPlot.Series[] = []
@@ -96,6 +124,7 @@ export function drawForecastChart(
     bands.push({ series: [2 + 2 * k, 3 + 2 * k], fill: (u: uPlot) => bandFill(u.ctx, level) })
   })
   const forecastIndex = 2 + 2 * levels.length
+  const adjustedIndex = forecastIndex + 1
 
   const drawDecor = (u: uPlot) => {
     const ctx = u.ctx
@@ -145,6 +174,14 @@ export function drawForecastChart(
       if (high === null || high === undefined) return
       ctx.fillText(`${level}%`, xr, u.valToPos(high, 'y', true) - 2 * uPlot.pxRatio)
     })
+    // The adjusted forecast is named on the chart too, so its colour carries no meaning alone.
+    const firstAdjusted = adjusted ? data[adjustedIndex]!.findIndex((v) => v !== null && v !== undefined) : -1
+    if (firstAdjusted >= 0) {
+      ctx.textAlign = 'left'
+      ctx.fillStyle = CHART_COLOURS.adjusted
+      const y = u.valToPos(data[adjustedIndex]![firstAdjusted]!, 'y', true)
+      ctx.fillText('adjusted', u.valToPos(firstAdjusted, 'x', true) + 7 * uPlot.pxRatio, y - 6 * uPlot.pxRatio)
+    }
     ctx.restore()
   }
 
@@ -187,9 +224,12 @@ export function drawForecastChart(
     }
     const lastHistory = input.history.findLastIndex((v) => v !== null)
     if (lastHistory >= 0) at('history', lastHistory, input.history[lastHistory]!)
+    const adjustedAt = adjusted ? data[adjustedIndex]!.findIndex((v) => v !== null && v !== undefined) : -1
+    if (adjustedAt >= 0) at('adjusted', adjustedAt, data[adjustedIndex]![adjustedAt]!)
     return {
       historyPoints: input.history.filter((v) => v !== null).length,
       forecastPoints: input.forecast.length,
+      adjustedPoints: input.forecast.filter((p) => p.adjusted !== undefined && p.adjusted !== null).length,
       bands: levels.map((level) => ({ level, points: input.forecast.filter((p) => p.bands[level] !== undefined).length })),
       holdoutPeriods: Math.min(input.holdoutPeriods, f),
       probes,
@@ -228,6 +268,18 @@ export function drawForecastChart(
         dash: [7, 4],
         points: { show: true, size: 5, stroke: CHART_COLOURS.forecast, fill: '#ffffff' },
       },
+      ...(adjusted
+        ? [
+            {
+              label: 'Adjusted forecast',
+              stroke: CHART_COLOURS.adjusted,
+              width: 2.5,
+              spanGaps: false,
+              // Filled squares, unlike the forecast's hollow dots: the shape tells them apart.
+              points: { show: true, size: 11, width: 0, stroke: CHART_COLOURS.adjusted, fill: CHART_COLOURS.adjusted, paths: squarePoints },
+            } satisfies uPlot.Series,
+          ]
+        : []),
     ],
     bands,
     hooks: {

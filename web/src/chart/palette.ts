@@ -9,6 +9,7 @@ export type BandLevel = 80 | 95
 export const CHART_COLOURS = {
   history: '#1b2a4a',
   forecast: '#9a3b0c',
+  adjusted: '#0f6b63',
   band80: '#f0bf94',
   band95Base: '#fcebdc',
   band95Hatch: '#c9824a',

@@ -1,4 +1,4 @@
-import { useEffect, useMemo } from 'preact/hooks'
+import { useEffect, useMemo, useRef, useState } from 'preact/hooks'
 import { ApiError, describeError, getJson, skuPath } from '../api'
 import { ChartView } from '../chart/chart-view'
 import type { ChartInput } from '../chart/forecast-chart'
@@ -8,6 +8,7 @@ import { Icon } from '../icons'
 import { periodLabels } from '../periods'
 import { Link, hrefs } from '../router'
 import { useAsync } from '../use-async'
+import { SkuAdjustments } from './sku-adjustments'
 import type { Candidate, ForecastPoint, History, SkuForecast } from '../types'
 
 interface SkuData {
@@ -56,7 +57,7 @@ function chartInput(data: SkuData): ChartInput {
         const i = band(p, level)
         if (i) bands[level] = { low: i.low, high: i.high }
       }
-      return { demand: p.demand, bands }
+      return { demand: p.demand, bands, adjusted: p.adjustment ? (p.finalDemand ?? null) : null }
     }),
     holdoutPeriods: forecast?.modelChoice.holdoutPeriods ?? 0,
   }
@@ -186,6 +187,7 @@ function ForecastTable({ forecast }: { forecast: SkuForecast }) {
             <tr>
               <th scope="col">Period</th>
               <th scope="col" class="num">Forecast</th>
+              <th scope="col" class="num">Final (adjusted)</th>
               {levels.map((l) => (
                 <th key={l} scope="col" class="num">
                   {l}% band
@@ -200,6 +202,7 @@ function ForecastTable({ forecast }: { forecast: SkuForecast }) {
                   {p.period}
                 </th>
                 <td class="num">{formatNumber(p.demand)}</td>
+                <td class="num">{p.adjustment ? <strong>{formatNumber(p.finalDemand)}</strong> : formatNumber(p.finalDemand ?? p.demand)}</td>
                 {levels.map((l) => {
                   const i = band(p, l)
                   return (
@@ -233,8 +236,13 @@ function Params({ params }: { params: SkuForecast['params'] }) {
 }
 
 export function SkuPage({ sku }: { sku: string }) {
-  const loaded = useAsync((signal) => loadSku(sku, signal), [sku])
-  const data = loaded.state === 'done' ? loaded.value : null
+  // Bumped after an adjustment: the forecast is read again, and the page keeps showing the
+  // figures it has meanwhile (so the form and the chart do not vanish while it loads).
+  const [version, setVersion] = useState(0)
+  const loaded = useAsync((signal) => loadSku(sku, signal), [sku, version])
+  const last = useRef<{ sku: string; data: SkuData } | null>(null)
+  if (loaded.state === 'done') last.current = { sku, data: loaded.value }
+  const data = loaded.state === 'done' ? loaded.value : loaded.state === 'loading' && last.current?.sku === sku ? last.current.data : null
   const input = useMemo(() => (data ? chartInput(data) : null), [data])
 
   useEffect(() => {
@@ -248,7 +256,8 @@ export function SkuPage({ sku }: { sku: string }) {
       const p = data.forecast.forecast[i - input.forecastStart]
       if (p) {
         const ranges = p.intervals.map((b) => `${b.level}% band ${formatNumber(b.low)} to ${formatNumber(b.high)}`).join(', ')
-        return `${period}: forecast ${formatNumber(p.demand)}${ranges ? `; ${ranges}` : ''}`
+        const adjusted = p.adjustment ? `; adjusted to ${formatNumber(p.finalDemand)}` : ''
+        return `${period}: forecast ${formatNumber(p.demand)}${adjusted}${ranges ? `; ${ranges}` : ''}`
       }
     }
     const value = input.history[i]
@@ -264,7 +273,7 @@ export function SkuPage({ sku }: { sku: string }) {
       <h1 tabIndex={-1} class="mono">
         {sku}
       </h1>
-      {loaded.state === 'loading' ? <p class="muted">Loading the history and forecast…</p> : null}
+      {loaded.state === 'loading' && !data ? <p class="muted">Loading the history and forecast…</p> : null}
       {loaded.state === 'failed' ? (
         <p class="error" role="alert">
           {loaded.error instanceof ApiError && loaded.error.status === 404
@@ -292,7 +301,10 @@ export function SkuPage({ sku }: { sku: string }) {
           {data.forecast === null ? (
             <p>This SKU has not been forecast yet (or its last results have expired). Its history is shown alone.</p>
           ) : (
-            <SkuForecastDetails forecast={data.forecast} />
+            <>
+              <SkuForecastDetails forecast={data.forecast} />
+              <SkuAdjustments sku={sku} forecast={data.forecast} onChanged={() => setVersion((v) => v + 1)} />
+            </>
           )}
         </>
       ) : null}

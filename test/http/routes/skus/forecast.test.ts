@@ -3,6 +3,11 @@ import type { FastifyInstance } from 'fastify'
 import { build } from '../../../../src/http/app.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, KEY_HEATING, auth, forecastItemFixture, testConfig } from '../../gateway-double.js'
 
+/** As served without adjustments: each point's finalDemand is its (statistical) demand, adjustment null. */
+function served<T extends { forecast: readonly { demand: number }[] }>(item: T): T {
+  return { ...item, forecast: item.forecast.map((p) => ({ ...p, finalDemand: p.demand, adjustment: null })) }
+}
+
 describe('GET /v1/skus/{sku}/forecast', () => {
   let app: FastifyInstance
   let runId: string
@@ -29,7 +34,7 @@ describe('GET /v1/skus/{sku}/forecast', () => {
     const res = await app.inject({ url: `/v1/skus/${encodeURIComponent('SEED/TOMATO 50G')}/forecast`, headers: auth(KEY_GARDEN) })
     expect(res.statusCode).toBe(200)
     expect(res.json()).toEqual({
-      ...forecastItemFixture('SEED/TOMATO 50G'),
+      ...served(forecastItemFixture('SEED/TOMATO 50G') as Extract<ReturnType<typeof forecastItemFixture>, { forecast: unknown }>),
       runId,
       producedAt: '2026-01-05T08:00:02.000Z',
     })
@@ -39,7 +44,7 @@ describe('GET /v1/skus/{sku}/forecast', () => {
     const res = await app.inject({ url: `/v1/skus/${encodeURIComponent('SEED/TOMATO 50G')}/forecast?view=compact`, headers: auth(KEY_GARDEN) })
     expect(res.statusCode).toBe(200)
     const { candidates: _c, ...rest } = forecastItemFixture('SEED/TOMATO 50G') as ReturnType<typeof forecastItemFixture> & { candidates: unknown }
-    expect(res.json()).toEqual({ ...rest, runId, producedAt: '2026-01-05T08:00:02.000Z' })
+    expect(res.json()).toEqual({ ...served(rest as typeof rest & { forecast: { demand: number }[] }), runId, producedAt: '2026-01-05T08:00:02.000Z' })
   })
 
   it('404 for a SKU never forecast, for a failed one, and for another tenant', async () => {

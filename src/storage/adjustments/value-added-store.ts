@@ -1,0 +1,86 @@
+import { z } from 'zod'
+import type { RedisClient } from '../redis.js'
+import { countOf, decodeJson, finiteOf } from '../decode.js'
+import { isValidTenant } from '../keys.js'
+import type { ValueAddedRecord } from '../../runs/value-added.js'
+
+/**
+ * Forecast value added records: per SKU and period, the statistical, final
+ * and naive forecasts it had when its actual demand arrived.
+ *
+ *   fva:<b64url(sku)>   hash  period -> `${actual}|${JSON {runId, statisticalDemand, finalDemand, naiveDemand, author}}`
+ *
+ * under `${prefix}:t:${tenant}:`, no TTL. A period is recorded once with the
+ * forecasts in force when its actual first arrived; a corrected actual
+ * replaces only the actual (as the accuracy records do), so an adjustment
+ * made later can never rewrite how an earlier one was judged.
+ */
+
+/** KEYS: records. ARGV: triples (period, actual, forecasts JSON). Returns {added, corrected}. */
+const RECORD = `
+local added, corrected = 0, 0
+for i = 1, #ARGV, 3 do
+  local cur = redis.call('HGET', KEYS[1], ARGV[i])
+  if not cur then
+    redis.call('HSET', KEYS[1], ARGV[i], ARGV[i + 1] .. '|' .. ARGV[i + 2])
+    added = added + 1
+  else
+    local bar = string.find(cur, '|', 1, true)
+    if bar and string.sub(cur, 1, bar - 1) ~= ARGV[i + 1] then
+      redis.call('HSET', KEYS[1], ARGV[i], ARGV[i + 1] .. string.sub(cur, bar))
+      corrected = corrected + 1
+    end
+  end
+end
+return {added, corrected}
+`
+const COMMAND = 'almanacRecordValueAdded'
+
+const Forecasts = z.object({
+  runId: z.string(),
+  statisticalDemand: z.number(),
+  finalDemand: z.number(),
+  naiveDemand: z.number(),
+  author: z.string().nullable(),
+})
+
+export class ValueAddedStore {
+  constructor(
+    private readonly redis: RedisClient,
+    private readonly opts: { readonly prefix: string },
+  ) {
+    if (!(COMMAND in redis)) redis.defineCommand(COMMAND, { numberOfKeys: 1, lua: RECORD })
+  }
+
+  private key(tenant: string, sku: string): string {
+    if (!isValidTenant(tenant)) throw new Error(`invalid tenant for a Redis key: ${JSON.stringify(tenant)}`)
+    return `${this.opts.prefix}:t:${tenant}:fva:${Buffer.from(sku, 'utf8').toString('base64url')}`
+  }
+
+  /** Records periods of one SKU (idempotent per period; a changed actual is a correction). */
+  async record(tenant: string, sku: string, records: readonly ValueAddedRecord[]): Promise<{ added: number; corrected: number }> {
+    if (records.length === 0) return { added: 0, corrected: 0 }
+    const args: string[] = []
+    for (const r of records) {
+      const { runId, statisticalDemand, finalDemand, naiveDemand, author } = r
+      args.push(r.period, String(r.actualDemand), JSON.stringify({ runId, statisticalDemand, finalDemand, naiveDemand, author }))
+    }
+    const run = (this.redis as unknown as Record<string, (...a: string[]) => Promise<unknown[]>>)[COMMAND]!
+    const reply = await run.call(this.redis, this.key(tenant, sku), ...args)
+    return { added: countOf(reply[0], 'periods added'), corrected: countOf(reply[1], 'periods corrected') }
+  }
+
+  /** Every recorded period of a SKU, oldest first (labels of one frequency sort as text). */
+  async records(tenant: string, sku: string): Promise<ValueAddedRecord[]> {
+    if (!isValidTenant(tenant)) return []
+    const h = await this.redis.hgetall(this.key(tenant, sku))
+    return Object.entries(h)
+      .map(([period, v]) => {
+        const bar = v.indexOf('|')
+        const actualDemand = finiteOf(bar < 0 ? undefined : v.slice(0, bar), `actual of value-added period ${period}`)
+        const f = decodeJson(Forecasts, v.slice(bar + 1), `value-added record of SKU ${sku} for ${period}`)
+        return { period, actualDemand, ...f }
+      })
+      .sort((a, b) => (a.period < b.period ? -1 : a.period > b.period ? 1 : 0))
+  }
+}

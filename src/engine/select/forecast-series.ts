@@ -22,7 +22,7 @@ import { candidateModels, lengthReason, requiredLength, structuralReason } from 
 import { checkedForecast, evaluateHoldout, evaluateInSample, skipped, withIntervalScores, type Evaluation } from './evaluate.js'
 import { MIN_TRAINING, planHoldout } from './holdout.js'
 import { rankEvaluations, shortlistFirst } from './rank.js'
-import { hasSeasonality } from './seasonality.js'
+import { seasonalityVerdict, type SeasonalityVerdict } from './seasonality.js'
 import { orderByCriterion, parameterCount, SHORTLIST_SIZE } from './shortlist.js'
 import { calibrationErrors, type CalibrationBudget } from './calibrate.js'
 import { SHORT_HISTORY } from '../prepare.js'
@@ -30,24 +30,27 @@ import { SHORT_HISTORY } from '../prepare.js'
 export interface EngineModels {
   readonly registry: readonly ModelSpec[]
   readonly classify: ((series: readonly number[]) => DemandClassification) | null
-  /** Seasonality pre-test for the default pool; null: every seasonal model is tried. */
-  readonly seasonalityTest: ((series: readonly number[], seasonLength: number) => boolean) | null
+  /** Seasonality pre-test for the default pool ('none' excludes seasonal models); null: every seasonal model is tried. */
+  readonly seasonalityTest: ((series: readonly number[], seasonLength: number) => SeasonalityVerdict) | null
 }
 
-const DEFAULT_MODELS: EngineModels = { registry: MODEL_REGISTRY, classify: classifyDemand, seasonalityTest: hasSeasonality }
+const DEFAULT_MODELS: EngineModels = { registry: MODEL_REGISTRY, classify: classifyDemand, seasonalityTest: seasonalityVerdict }
 
 /**
- * Seasonal models join the default pool only if the history shows seasonality at lag m
- * (seasonality.ts: an autocorrelation test from three seasons on, a rank test below). Without the test, on a plain trend the seasonal models fit the noise and
- * win about a quarter of the holdout comparisons in our seeded trials. Listing `models`
- * skips the test.
+ * Seasonal models join the default pool unless the history shows no sign of seasonality
+ * at lag m (seasonality.ts: 'clear' and 'doubt' let them in; in doubt the holdout and the
+ * AICc shortlist decide). Without any test, on a plain trend the seasonal models fit the
+ * noise and win about a quarter of the holdout comparisons in our seeded trials. Listing
+ * `models` skips the test.
  */
 function seasonalExclusion(prep: PreparedSeries, models: EngineModels): string | null {
   const m = prep.seasonLength
   if (prep.models !== undefined || m < 2 || !models.seasonalityTest) return null
   // Below two seasons no test can show a season: the length rule's reason says what is missing.
   if (prep.values.length < 2 * m) return null
-  return models.seasonalityTest(prep.values, m) ? null : `no significant seasonality at lag ${m} (${prep.values.length >= 3 * m ? 'autocorrelation' : 'Kruskal-Wallis'} test at the 10% level)`
+  return models.seasonalityTest(prep.values, m) !== 'none'
+    ? null
+    : `no sign of seasonality at lag ${m} (autocorrelation and Kruskal-Wallis tests on the detrended history)`
 }
 
 function flatResult(prep: PreparedSeries, warnings: EngineWarning[]): ForecastResult {

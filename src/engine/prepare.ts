@@ -12,6 +12,7 @@
  */
 import { EngineInputError } from './errors.js'
 import { isConstant } from './numeric.js'
+import { SEARCH } from './select/pools.js'
 import { periodLabels } from './periods.js'
 import {
   DEFAULT_SEASON_LENGTH,
@@ -225,7 +226,8 @@ export function prepareSeries(input: SeriesInput): PreparedSeries {
     quantiles: [...new Set(input.quantiles ?? [])].sort((a, b) => a - b),
     modelSearch: input.modelSearch ?? 'fast',
     allowNegativeDemand,
-    holdoutOrigins: input.holdoutOrigins ?? 1,
+    // A search's origins are a minimum: the service's settings always carry holdoutOrigins (default 1).
+    holdoutOrigins: Math.max(input.holdoutOrigins ?? 1, SEARCH[input.modelSearch ?? 'fast'].holdoutOrigins),
     offset: trimmed,
     flat,
     history: {

@@ -450,6 +450,13 @@ export interface components {
              *     ]
              */
             intervalLevels: number[];
+            /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+            quantiles?: number[];
+            /**
+             * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+             * @enum {string}
+             */
+            modelSearch?: "fast" | "thorough";
             /**
              * @description How missing periods (null) are filled
              * @default zero
@@ -698,6 +705,13 @@ export interface components {
                  *     ]
                  */
                 intervalLevels: number[];
+                /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+                quantiles?: number[];
+                /**
+                 * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+                 * @enum {string}
+                 */
+                modelSearch?: "fast" | "thorough";
                 /**
                  * @description How missing periods (null) are filled
                  * @default zero
@@ -975,6 +989,13 @@ export interface components {
              *     ]
              */
             intervalLevels: number[];
+            /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+            quantiles?: number[];
+            /**
+             * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+             * @enum {string}
+             */
+            modelSearch?: "fast" | "thorough";
             /**
              * @description How missing periods (null) are filled
              * @default zero
@@ -1263,6 +1284,13 @@ export interface operations {
                      *     ]
                      */
                     intervalLevels?: number[];
+                    /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+                    quantiles?: number[];
+                    /**
+                     * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+                     * @enum {string}
+                     */
+                    modelSearch?: "fast" | "thorough";
                     /**
                      * @description How missing periods (null) are filled
                      * @default zero
@@ -2942,6 +2970,13 @@ export interface operations {
                      *     ]
                      */
                     intervalLevels?: number[];
+                    /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+                    quantiles?: number[];
+                    /**
+                     * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+                     * @enum {string}
+                     */
+                    modelSearch?: "fast" | "thorough";
                     /**
                      * @description How missing periods (null) are filled
                      * @default zero

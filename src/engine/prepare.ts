@@ -62,6 +62,8 @@ export interface PreparedSeries {
   readonly modelSearch: ModelSearch
   readonly allowNegativeDemand: boolean
   readonly holdoutOrigins: number
+  /** Origins the request asked for (1 when absent): fewer than this is worth a warning, fewer than the search's minimum is not. */
+  readonly requestedOrigins: number
   /** Periods trimmed from the front: labels of `values[0]` = firstPeriod + offset. */
   readonly offset: number
   /** 'all-zero' or 'constant' history: flat forecast, no selection. */
@@ -228,6 +230,7 @@ export function prepareSeries(input: SeriesInput): PreparedSeries {
     allowNegativeDemand,
     // A search's origins are a minimum: the service's settings always carry holdoutOrigins (default 1).
     holdoutOrigins: Math.max(input.holdoutOrigins ?? 1, SEARCH[input.modelSearch ?? 'fast'].holdoutOrigins),
+    requestedOrigins: input.holdoutOrigins ?? 1,
     offset: trimmed,
     flat,
     history: {

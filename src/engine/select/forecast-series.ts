@@ -144,7 +144,8 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
     .filter((s) => structuralReason(s, m, prep.values) === null)
     .map((s) => requiredLength(s, m))
   const plan = planHoldout(n, prep.horizon, m, prep.holdoutPeriods, prep.holdoutOrigins, requirements)
-  if (plan.reduced) {
+  const holdoutCut = prep.holdoutPeriods !== undefined && plan.holdout < prep.holdoutPeriods
+  if (plan.reduced && (holdoutCut || plan.origins < prep.requestedOrigins)) {
     warnings.push({
       code: 'holdout-reduced',
       message: `holdoutPeriods/holdoutOrigins reduced to ${plan.holdout}/${plan.origins} to leave at least ${MIN_TRAINING} training periods`,

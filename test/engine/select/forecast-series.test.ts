@@ -246,3 +246,13 @@ describe('modelSearch', () => {
     expect(() => forecastSeriesWith({ ...series, modelSearch: 'exhaustive' as never }, withFakes(fakeMean()))).toThrow(/modelSearch must be one of fast, thorough/)
   })
 })
+
+describe('modelSearch on a short history', () => {
+  it('cuts the thorough minimum of origins to fit without warning, but warns when a requested count is cut', () => {
+    const short = { ...series, demand: [4, 6, 5, 7] }
+    const r = forecastSeriesWith({ ...short, modelSearch: 'thorough' }, withFakes(fakeMean()))
+    expect(r.warnings.map((w) => w.code)).not.toContain('holdout-reduced')
+    const asked = forecastSeriesWith({ ...short, holdoutOrigins: 3 }, withFakes(fakeMean()))
+    expect(asked.warnings.map((w) => w.code)).toContain('holdout-reduced')
+  })
+})

@@ -30,8 +30,7 @@ function choice<T extends string>(name: string, allowed: readonly T[], fallback:
   return v as T
 }
 
-// 'thorough' joins when the engine has the modelSearch option.
-const MODES = ['fast'] as const
+const MODES = ['fast', 'thorough'] as const
 type Mode = (typeof MODES)[number]
 const mode: Mode = choice('mode', MODES, 'fast')
 const split = choice('split', ['test', 'train'] as const, 'test')
@@ -50,6 +49,7 @@ function engineInput(s: M3Series): SeriesInput {
     seasonLength: s.seasonLength,
     horizon: s.h,
     intervalLevels: [80, 95],
+    modelSearch: mode,
   }
 }
 

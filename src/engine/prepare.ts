@@ -12,6 +12,7 @@
  */
 import { EngineInputError } from './errors.js'
 import { isConstant } from './numeric.js'
+import { SEARCH } from './select/pools.js'
 import { periodLabels } from './periods.js'
 import {
   DEFAULT_SEASON_LENGTH,
@@ -61,6 +62,8 @@ export interface PreparedSeries {
   readonly modelSearch: ModelSearch
   readonly allowNegativeDemand: boolean
   readonly holdoutOrigins: number
+  /** Origins the request asked for (1 when absent): fewer than this is worth a warning, fewer than the search's minimum is not. */
+  readonly requestedOrigins: number
   /** Periods trimmed from the front: labels of `values[0]` = firstPeriod + offset. */
   readonly offset: number
   /** 'all-zero' or 'constant' history: flat forecast, no selection. */
@@ -225,7 +228,9 @@ export function prepareSeries(input: SeriesInput): PreparedSeries {
     quantiles: [...new Set(input.quantiles ?? [])].sort((a, b) => a - b),
     modelSearch: input.modelSearch ?? 'fast',
     allowNegativeDemand,
-    holdoutOrigins: input.holdoutOrigins ?? 1,
+    // A search's origins are a minimum: the service's settings always carry holdoutOrigins (default 1).
+    holdoutOrigins: Math.max(input.holdoutOrigins ?? 1, SEARCH[input.modelSearch ?? 'fast'].holdoutOrigins),
+    requestedOrigins: input.holdoutOrigins ?? 1,
     offset: trimmed,
     flat,
     history: {

@@ -134,9 +134,9 @@ export interface SeriesInput {
   /** Quantiles in (0, 1) to report per forecast point, e.g. [0.5, 0.9, 0.95]; at most 20. */
   readonly quantiles?: readonly number[]
   /**
-   * 'fast' (default): the default candidate pool, one holdout origin, a few calibration
-   * origins. 'thorough': more rolling origins in selection and calibration and the wider
-   * pool (select/pools.ts); slower.
+   * 'fast' (default): the default candidate pool, a few calibration origins. 'thorough':
+   * at least 3 rolling holdout origins, more calibration origins and the wider pool
+   * (select/pools.ts); slower.
    */
   readonly modelSearch?: ModelSearch
 }

@@ -25,5 +25,7 @@ export function toSeriesInput(settings: RunSettings, item: SeriesItem): SeriesIn
   if (seasonLength !== undefined) input.seasonLength = seasonLength
   if (settings.holdoutPeriods !== undefined) input.holdoutPeriods = settings.holdoutPeriods
   if (settings.models !== undefined) input.models = settings.models
+  if (settings.quantiles !== undefined) input.quantiles = settings.quantiles
+  if (settings.modelSearch !== undefined) input.modelSearch = settings.modelSearch
   return input
 }

@@ -1,5 +1,5 @@
 import { z } from 'zod'
-import { DEFAULT_SEASON_LENGTH, FREQUENCIES, METRIC_NAMES, MODEL_NAMES, SERVICE_LEVEL_MAX, SERVICE_LEVEL_MIN } from '../engine/index.js'
+import { DEFAULT_SEASON_LENGTH, FREQUENCIES, METRIC_NAMES, MODEL_NAMES, MODEL_SEARCHES, SERVICE_LEVEL_MAX, SERVICE_LEVEL_MIN } from '../engine/index.js'
 import { TAG_PATTERN } from '../history/types.js'
 import { MAX_FIELD_ERRORS } from '../errors.js'
 
@@ -125,6 +125,18 @@ export const RunSettings = z.strictObject({
     .max(5)
     .default([80, 95])
     .describe('Central prediction-interval levels in percent'),
+  quantiles: z
+    .array(z.number().gt(0).lt(1))
+    .max(20)
+    .optional()
+    .describe(
+      'Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below ' +
+        'with that probability. Estimates: they assume the past error pattern continues',
+    ),
+  modelSearch: z
+    .enum(MODEL_SEARCHES)
+    .optional()
+    .describe('fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost'),
   missingPeriods: z.enum(['zero', 'interpolate']).default('zero').describe('How missing periods (null) are filled'),
   allowNegativeDemand: z.boolean().default(false),
   keepLeadingZeros: z.boolean().default(false),

@@ -662,6 +662,13 @@ export interface components {
              *     ]
              */
             intervalLevels: number[];
+            /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+            quantiles?: number[];
+            /**
+             * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+             * @enum {string}
+             */
+            modelSearch?: "fast" | "thorough";
             /**
              * @description How missing periods (null) are filled
              * @default zero
@@ -1085,6 +1092,13 @@ export interface components {
                  *     ]
                  */
                 intervalLevels: number[];
+                /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+                quantiles?: number[];
+                /**
+                 * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+                 * @enum {string}
+                 */
+                modelSearch?: "fast" | "thorough";
                 /**
                  * @description How missing periods (null) are filled
                  * @default zero
@@ -1445,6 +1459,13 @@ export interface components {
              *     ]
              */
             intervalLevels: number[];
+            /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+            quantiles?: number[];
+            /**
+             * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+             * @enum {string}
+             */
+            modelSearch?: "fast" | "thorough";
             /**
              * @description How missing periods (null) are filled
              * @default zero
@@ -1777,6 +1798,13 @@ export interface operations {
                      *     ]
                      */
                     intervalLevels?: number[];
+                    /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+                    quantiles?: number[];
+                    /**
+                     * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+                     * @enum {string}
+                     */
+                    modelSearch?: "fast" | "thorough";
                     /**
                      * @description How missing periods (null) are filled
                      * @default zero
@@ -3463,6 +3491,13 @@ export interface operations {
                      *     ]
                      */
                     intervalLevels?: number[];
+                    /** @description Quantiles to report per forecast point, e.g. [0.5, 0.9, 0.95] for replenishment: the demand that actual demand stays at or below with that probability. Estimates: they assume the past error pattern continues */
+                    quantiles?: number[];
+                    /**
+                     * @description fast (default) or thorough: at least 3 rolling holdout origins, more calibration origins and a wider pool of models, at several times the cost
+                     * @enum {string}
+                     */
+                    modelSearch?: "fast" | "thorough";
                     /**
                      * @description How missing periods (null) are filled
                      * @default zero

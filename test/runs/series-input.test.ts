@@ -34,3 +34,22 @@ describe('toSeriesInput', () => {
     expect(Object.keys(input)).not.toContain('firstPeriod')
   })
 })
+
+describe('quantiles and modelSearch', () => {
+  it('are carried to the engine when set', () => {
+    const s = RunSettings.parse({ horizon: 2, quantiles: [0.5, 0.95], modelSearch: 'thorough' })
+    expect(toSeriesInput(s, { sku: 'A', demand: [1, 2] })).toMatchObject({ quantiles: [0.5, 0.95], modelSearch: 'thorough' })
+    const plain = toSeriesInput(RunSettings.parse({ horizon: 2 }), { sku: 'A', demand: [1, 2] })
+    expect('quantiles' in plain || 'modelSearch' in plain).toBe(false)
+  })
+
+  it('are refused outside (0, 1), beyond 20 values, or for an unknown search, naming the field', () => {
+    const bad = (body: object): string[] => {
+      const r = RunSettings.safeParse({ horizon: 2, ...body })
+      return r.success ? [] : r.error.issues.map((i) => i.path.join('.'))
+    }
+    expect(bad({ quantiles: [0.5, 1] })).toEqual(['quantiles.1'])
+    expect(bad({ quantiles: Array.from({ length: 21 }, () => 0.5) })).toEqual(['quantiles'])
+    expect(bad({ modelSearch: 'exhaustive' })).toEqual(['modelSearch'])
+  })
+})

@@ -22,32 +22,43 @@ import { candidateModels, lengthReason, requiredLength, structuralReason } from 
 import { checkedForecast, evaluateHoldout, evaluateInSample, skipped, withIntervalScores, type Evaluation } from './evaluate.js'
 import { MIN_TRAINING, planHoldout } from './holdout.js'
 import { rankEvaluations, shortlistFirst } from './rank.js'
-import { hasSeasonality } from './seasonality.js'
+import { seasonalityVerdict, type SeasonalityVerdict } from './seasonality.js'
 import { orderByCriterion, parameterCount, SHORTLIST_SIZE } from './shortlist.js'
-import { calibrationErrors, type CalibrationBudget } from './calibrate.js'
+import { calibrationErrors } from './calibrate.js'
+import { SEARCH, THOROUGH_EXTRA } from './pools.js'
 import { SHORT_HISTORY } from '../prepare.js'
 
 export interface EngineModels {
   readonly registry: readonly ModelSpec[]
   readonly classify: ((series: readonly number[]) => DemandClassification) | null
-  /** Seasonality pre-test for the default pool; null: every seasonal model is tried. */
-  readonly seasonalityTest: ((series: readonly number[], seasonLength: number) => boolean) | null
+  /** Models the thorough search adds (select/pools.ts). */
+  readonly thoroughExtra?: readonly ModelSpec[]
+  /** Seasonality pre-test for the default pool ('none' excludes seasonal models); null: every seasonal model is tried. */
+  readonly seasonalityTest: ((series: readonly number[], seasonLength: number) => SeasonalityVerdict) | null
 }
 
-const DEFAULT_MODELS: EngineModels = { registry: MODEL_REGISTRY, classify: classifyDemand, seasonalityTest: hasSeasonality }
+const DEFAULT_MODELS: EngineModels = {
+  registry: MODEL_REGISTRY,
+  thoroughExtra: THOROUGH_EXTRA,
+  classify: classifyDemand,
+  seasonalityTest: seasonalityVerdict,
+}
 
 /**
- * Seasonal models join the default pool only if the history shows seasonality at lag m
- * (seasonality.ts: an autocorrelation test from three seasons on, a rank test below). Without the test, on a plain trend the seasonal models fit the noise and
- * win about a quarter of the holdout comparisons in our seeded trials. Listing `models`
- * skips the test.
+ * Seasonal models join the default pool unless the history shows no sign of seasonality
+ * at lag m (seasonality.ts: 'clear' and 'doubt' let them in; in doubt the holdout and the
+ * AICc shortlist decide). Without any test, on a plain trend the seasonal models fit the
+ * noise and win about a quarter of the holdout comparisons in our seeded trials. Listing
+ * `models` skips the test.
  */
 function seasonalExclusion(prep: PreparedSeries, models: EngineModels): string | null {
   const m = prep.seasonLength
   if (prep.models !== undefined || m < 2 || !models.seasonalityTest) return null
   // Below two seasons no test can show a season: the length rule's reason says what is missing.
   if (prep.values.length < 2 * m) return null
-  return models.seasonalityTest(prep.values, m) ? null : `no significant seasonality at lag ${m} (${prep.values.length >= 3 * m ? 'autocorrelation' : 'Kruskal-Wallis'} test at the 10% level)`
+  return models.seasonalityTest(prep.values, m) !== 'none'
+    ? null
+    : `no sign of seasonality at lag ${m} (autocorrelation and Kruskal-Wallis tests on the detrended history)`
 }
 
 function flatResult(prep: PreparedSeries, warnings: EngineWarning[]): ForecastResult {
@@ -98,12 +109,6 @@ function canTrain(specs: readonly ModelSpec[], prep: PreparedSeries, length: num
   )
 }
 
-/** Calibration origins per model search (select/calibrate.ts); more origins, more fits. */
-const CALIBRATION: Record<'fast' | 'thorough', CalibrationBudget> = {
-  fast: { extra: 2, maxFits: 5 },
-  thorough: { extra: 12, maxFits: 24 },
-}
-
 /**
  * The last-value method's spread per step, sigma_1 sqrt(h) with sigma_1 the root mean square
  * of its one-step errors: the floor of the intervals of histories shorter than
@@ -126,7 +131,8 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
   const n = prep.values.length
   const m = prep.seasonLength
   const intermittent = isIntermittent(prep, models, warnings)
-  const { specs, unavailable } = candidateModels(models.registry, prep.models, intermittent)
+  const registry = prep.modelSearch === 'thorough' && models.thoroughExtra ? [...models.registry, ...models.thoroughExtra] : models.registry
+  const { specs, unavailable } = candidateModels(registry, prep.models, intermittent)
   if (unavailable.length > 0) {
     warnings.push({ code: 'model-unavailable', message: `not available in this build: ${unavailable.join(', ')}` })
   }
@@ -138,7 +144,8 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
     .filter((s) => structuralReason(s, m, prep.values) === null)
     .map((s) => requiredLength(s, m))
   const plan = planHoldout(n, prep.horizon, m, prep.holdoutPeriods, prep.holdoutOrigins, requirements)
-  if (plan.reduced) {
+  const holdoutCut = prep.holdoutPeriods !== undefined && plan.holdout < prep.holdoutPeriods
+  if (plan.reduced && (holdoutCut || plan.origins < prep.requestedOrigins)) {
     warnings.push({
       code: 'holdout-reduced',
       message: `holdoutPeriods/holdoutOrigins reduced to ${plan.holdout}/${plan.origins} to leave at least ${MIN_TRAINING} training periods`,
@@ -157,7 +164,7 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
       message: `history of ${n} periods is too short for a holdout; models were ranked by in-sample one-step errors`,
     })
   }
-  if (prep.modelSearch === 'thorough') evaluations = evaluations.map(withIntervalScores)
+  if (SEARCH[prep.modelSearch].intervalScoresForAll) evaluations = evaluations.map(withIntervalScores)
   const ranking = rankEvaluations(specs, evaluations, prep.rankBy)
   if (ranking.order.length === 0) {
     // Report a length problem if there is one (more data helps); else every reason.
@@ -212,7 +219,7 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
     winner = naiveWinner(prep.values, prep.horizon)
   } else if (chosen) {
     const spec = specs[chosen.index]!
-    const calibration = calibrationErrors(spec, prep.values, m, prep.horizon, winner.params, CALIBRATION[prep.modelSearch])
+    const calibration = calibrationErrors(spec, prep.values, m, prep.horizon, winner.params, SEARCH[prep.modelSearch].calibration)
     winner = { ...winner, calibration, floor: n < SHORT_HISTORY ? naiveSpread(prep.values, prep.horizon) : undefined }
   }
   return assembleResult(

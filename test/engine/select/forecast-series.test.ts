@@ -225,3 +225,34 @@ describe('forecastSeries with test doubles: output', () => {
     expect(approxEqual(r.residuals.mae, 5 / 3, 1e-15)).toBe(true)
   })
 })
+
+describe('modelSearch', () => {
+  it('thorough: three rolling origins by default, the extra pool, and interval measures on every row', () => {
+    const extra = fakeConstant('theta', 14, 2)
+    const models: EngineModels = { ...withFakes(fakeMean('level-smoothing')), thoroughExtra: [extra] }
+    const fast = forecastSeriesWith(series, models)
+    expect(fast.modelChoice.holdoutOrigins).toBe(1)
+    expect(fast.candidates.map((c) => c.model)).toEqual(['level-smoothing'])
+    const thorough = forecastSeriesWith({ ...series, modelSearch: 'thorough' }, models)
+    expect(thorough.modelChoice.holdoutOrigins).toBe(3)
+    expect(thorough.candidates.map((c) => c.model).sort()).toEqual(['level-smoothing', 'theta'])
+    for (const c of thorough.candidates) expect(c.holdoutErrors!.msis).not.toBeUndefined()
+    // Three is a minimum: a request may set more, not fewer.
+    expect(forecastSeriesWith({ ...series, modelSearch: 'thorough', holdoutOrigins: 1 }, models).modelChoice.holdoutOrigins).toBe(3)
+    expect(forecastSeriesWith({ ...series, modelSearch: 'thorough', holdoutOrigins: 4 }, models).modelChoice.holdoutOrigins).toBe(4)
+  })
+
+  it('refuses an unknown search', () => {
+    expect(() => forecastSeriesWith({ ...series, modelSearch: 'exhaustive' as never }, withFakes(fakeMean()))).toThrow(/modelSearch must be one of fast, thorough/)
+  })
+})
+
+describe('modelSearch on a short history', () => {
+  it('cuts the thorough minimum of origins to fit without warning, but warns when a requested count is cut', () => {
+    const short = { ...series, demand: [4, 6, 5, 7] }
+    const r = forecastSeriesWith({ ...short, modelSearch: 'thorough' }, withFakes(fakeMean()))
+    expect(r.warnings.map((w) => w.code)).not.toContain('holdout-reduced')
+    const asked = forecastSeriesWith({ ...short, holdoutOrigins: 3 }, withFakes(fakeMean()))
+    expect(asked.warnings.map((w) => w.code)).toContain('holdout-reduced')
+  })
+})

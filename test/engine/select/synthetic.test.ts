@@ -65,7 +65,7 @@ describe('selection on clear synthetic series (real registry)', () => {
     const r = forecastSeries({ demand: values, frequency: 'month', horizon: 12 })
     const hw = r.candidates.find((e) => e.model === 'trend-smoothing-additive-season')
     expect(hw?.status).toBe('skipped')
-    expect(hw?.reason).toMatch(/no significant seasonality at lag 12/)
+    expect(hw?.reason).toMatch(/no sign of seasonality at lag 12/)
     const listed = forecastSeries({ demand: values, frequency: 'month', horizon: 12, models: ['trend-smoothing-additive-season', 'trend-smoothing'] })
     expect(listed.candidates.find((e) => e.model === 'trend-smoothing-additive-season')?.status).toBe('scored')
   })

@@ -25,7 +25,7 @@ import { rankEvaluations, shortlistFirst } from './rank.js'
 import { seasonalityVerdict, type SeasonalityVerdict } from './seasonality.js'
 import { orderByCriterion, parameterCount, SHORTLIST_SIZE } from './shortlist.js'
 import { calibrationErrors } from './calibrate.js'
-import { SEARCH, THOROUGH_EXTRA } from './pools.js'
+import { LISTABLE_MODELS, SEARCH, THOROUGH_EXTRA } from './pools.js'
 import { SHORT_HISTORY } from '../prepare.js'
 
 export interface EngineModels {
@@ -33,6 +33,8 @@ export interface EngineModels {
   readonly classify: ((series: readonly number[]) => DemandClassification) | null
   /** Models the thorough search adds (select/pools.ts). */
   readonly thoroughExtra?: readonly ModelSpec[]
+  /** Models a request may name in `models` (default: the registry and the thorough extras). */
+  readonly listable?: readonly ModelSpec[]
   /** Seasonality pre-test for the default pool ('none' excludes seasonal models); null: every seasonal model is tried. */
   readonly seasonalityTest: ((series: readonly number[], seasonLength: number) => SeasonalityVerdict) | null
 }
@@ -40,6 +42,7 @@ export interface EngineModels {
 const DEFAULT_MODELS: EngineModels = {
   registry: MODEL_REGISTRY,
   thoroughExtra: THOROUGH_EXTRA,
+  listable: LISTABLE_MODELS,
   classify: classifyDemand,
   seasonalityTest: seasonalityVerdict,
 }
@@ -131,7 +134,13 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
   const n = prep.values.length
   const m = prep.seasonLength
   const intermittent = isIntermittent(prep, models, warnings)
-  const registry = prep.modelSearch === 'thorough' && models.thoroughExtra ? [...models.registry, ...models.thoroughExtra] : models.registry
+  // Listed models are fitted whatever the search; unlisted, thorough adds its extra pool to the default.
+  const registry =
+    prep.models !== undefined && models.listable
+      ? models.listable
+      : prep.modelSearch === 'thorough' && models.thoroughExtra
+        ? [...models.registry, ...models.thoroughExtra]
+        : models.registry
   const { specs, unavailable } = candidateModels(registry, prep.models, intermittent)
   if (unavailable.length > 0) {
     warnings.push({ code: 'model-unavailable', message: `not available in this build: ${unavailable.join(', ')}` })

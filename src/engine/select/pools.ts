@@ -9,15 +9,21 @@
  *   and the interval measures for every candidate. Costs and gains: bench/RESULTS.md
  *   (bench:competition --mode thorough).
  */
+import { MODEL_REGISTRY } from '../models.js'
+import { thoroughModels } from '../thorough-models.js'
 import type { ModelSearch, ModelSpec } from '../types.js'
 import type { CalibrationBudget } from './calibrate.js'
 
 /**
- * Models only the thorough search tries, after the default pool. Empty in this build:
- * every model the engine has is in the default pool already. Slower model families join
- * here (one line each) when they are too costly for the nightly default.
+ * Models only the thorough search tries, after the default pool: the state-space family,
+ * the optimised Thetas and the median combination, which cost tens to hundreds of times a
+ * default candidate (bench/RESULTS.md). auto-arima is left out of the search: on monthly
+ * series one fit costs seconds; it is fitted when a request lists it in `models`.
  */
-export const THOROUGH_EXTRA: readonly ModelSpec[] = []
+export const THOROUGH_EXTRA: readonly ModelSpec[] = thoroughModels.filter((spec) => spec.name !== 'auto-arima')
+
+/** Every model a request may list in `models`, whatever its search. */
+export const LISTABLE_MODELS: readonly ModelSpec[] = [...MODEL_REGISTRY, ...thoroughModels]
 
 export interface SearchSettings {
   /** Fewest rolling holdout origins (a request may set more). */

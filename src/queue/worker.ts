@@ -13,6 +13,9 @@ import { ChunkJob } from './payload.js'
 import type { SandboxContext } from './processors/chunk.js'
 import { sandboxExecArgv } from './worker-flags.js'
 
+/** Niceness of the express lane's thread: between request handling (0) and large runs' fitting (10). */
+const EXPRESS_NICENESS = 5
+
 export interface ChunkWorker {
   readonly worker: Worker
   readonly concurrency: number
@@ -65,14 +68,14 @@ export function startChunkWorker(config: Config, logger: Logger): ChunkWorker {
     logLevel: config.logLevel,
   }
 
-  const startWorker = (queueName: string, threads: number) => {
+  const startWorker = (queueName: string, threads: number, niceness?: number) => {
     const worker = new Worker(queueName, sandboxedProcessorFile(), {
       connection,
       prefix: queuePrefix(config),
       concurrency: threads,
       useWorkerThreads: true,
       workerThreadsOptions: {
-        workerData: sandbox,
+        workerData: niceness === undefined ? sandbox : { ...sandbox, niceness },
         resourceLimits: sandboxHeapLimits(config.chunkSize),
         // Without V8 flags such as --single-threaded (worker-flags.ts), which Node refuses in a thread's execArgv.
         execArgv: sandboxExecArgv(process.execArgv),
@@ -108,8 +111,9 @@ export function startChunkWorker(config: Config, logger: Logger): ChunkWorker {
     return worker
   }
   const worker = startWorker(CHUNK_QUEUE, concurrency)
-  // The express lane's own thread: small runs never wait behind large runs' chunks (names.ts).
-  const express = (config.expressMaxSeries ?? DEFAULT_EXPRESS_MAX_SERIES) > 0 ? startWorker(EXPRESS_CHUNK_QUEUE, 1) : null
+  // The express lane's own thread: small runs never wait behind large runs' chunks (names.ts). Its work is
+  // small by construction, so it runs ahead of the fitting threads (which stay below request handling).
+  const express = (config.expressMaxSeries ?? DEFAULT_EXPRESS_MAX_SERIES) > 0 ? startWorker(EXPRESS_CHUNK_QUEUE, 1, EXPRESS_NICENESS) : null
   log.info({ concurrency, prefix: config.redisPrefix, queuePrefix: queuePrefix(config) }, 'chunk worker started')
 
   return {

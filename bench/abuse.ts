@@ -47,7 +47,9 @@ interface Outcome {
 interface Scenario {
   readonly finding: number
   readonly name: string
-  readonly run: (ctx: Ctx) => Promise<Outcome>
+  /** Builds the request body before the probe starts, so building it never delays the probe's own answers. */
+  readonly prepare?: () => string
+  readonly run: (ctx: Ctx, body: string) => Promise<Outcome>
 }
 
 const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms))
@@ -100,8 +102,8 @@ const SCENARIOS: readonly Scenario[] = [
   {
     finding: 1,
     name: '25 MB run body of 200,000 series x 24 string values',
-    run: async (ctx) => {
-      const body = invalidRunBody(200_000, 24)
+    prepare: () => invalidRunBody(200_000, 24),
+    run: async (ctx, body) => {
       const res = await send(ctx, 'POST', '/v1/runs', GARDEN_KEY, body)
       return { answer: `${(body.length / 1e6).toFixed(1)} MB -> ${summarise(res.status, res.text)}` }
     },
@@ -109,9 +111,9 @@ const SCENARIOS: readonly Scenario[] = [
   {
     finding: 1,
     name: 'invalid run body just under the default 64 MiB limit',
-    run: async (ctx) => {
-      // About 133 bytes per series: 500,000 series come to about 63 MiB.
-      const body = invalidRunBody(500_000, 24)
+    // About 130 bytes per series: 500,000 series come to about 62 MiB.
+    prepare: () => invalidRunBody(500_000, 24),
+    run: async (ctx, body) => {
       const res = await send(ctx, 'POST', '/v1/runs', GARDEN_KEY, body)
       return { answer: `${(body.length / 1024 / 1024).toFixed(1)} MiB -> ${summarise(res.status, res.text)}`, atBodyLimit: true }
     },
@@ -119,19 +121,26 @@ const SCENARIOS: readonly Scenario[] = [
   {
     finding: 2,
     name: 'sync forecast: 10,000 daily points, season 366, 12 origins, horizon 1000',
-    run: async (ctx) => {
-      const body = { horizon: 1000, frequency: 'day', seasonLength: 366, holdoutOrigins: 12, series: [{ sku: 'HEAVY', demand: daily(10_000, 366) }] }
-      const res = await send(ctx, 'POST', '/v1/forecast', GARDEN_KEY, JSON.stringify(body))
+    prepare: () =>
+      JSON.stringify({ horizon: 1000, frequency: 'day', seasonLength: 366, holdoutOrigins: 12, series: [{ sku: 'HEAVY', demand: daily(10_000, 366) }] }),
+    run: async (ctx, body) => {
+      const res = await send(ctx, 'POST', '/v1/forecast', GARDEN_KEY, body)
       return { answer: summarise(res.status, res.text) }
     },
   },
   {
     finding: 2,
     name: 'sync forecast under the cost limit: 3 series of 2,000 daily points, season 366',
-    run: async (ctx) => {
-      // 2,000 daily points x season 366 x 19 models = 13,908,000 units each; 3 of them fit within the cost limit.
-      const series = Array.from({ length: 3 }, (_, i) => ({ sku: `SLOW-${i}`, demand: daily(2000 + i, 366) }))
-      const res = await send(ctx, 'POST', '/v1/forecast', GARDEN_KEY, JSON.stringify({ horizon: 60, frequency: 'day', seasonLength: 366, series }))
+    // 2,000 daily points x season 366 x 19 models = 13,908,000 units each; 3 of them fit within the cost limit.
+    prepare: () =>
+      JSON.stringify({
+        horizon: 60,
+        frequency: 'day',
+        seasonLength: 366,
+        series: Array.from({ length: 3 }, (_, i) => ({ sku: `SLOW-${i}`, demand: daily(2000 + i, 366) })),
+      }),
+    run: async (ctx, body) => {
+      const res = await send(ctx, 'POST', '/v1/forecast', GARDEN_KEY, body)
       let items: string
       try {
         const parsed = JSON.parse(res.text) as { items?: { failure?: { code: string } }[] }
@@ -145,30 +154,37 @@ const SCENARIOS: readonly Scenario[] = [
   {
     finding: 3,
     name: 'CSV upload: one line over 64 KiB, then 100,000 good rows',
-    run: async (ctx) => {
+    prepare: () => {
       const rows = ['sku,period,demand', `LONG,2024-01,${'9'.repeat(70_000)}`]
       for (let i = 0; i < 100_000; i++) rows.push(`CSV-${i % 1000},${2000 + Math.floor(i / 1000 / 12)}-${String(((i / 1000) % 12 | 0) + 1).padStart(2, '0')},${i % 17}`)
-      const res = await send(ctx, 'POST', '/v1/history?frequency=month', HEATING_KEY, rows.join('\n'), 'text/csv')
+      return rows.join('\n')
+    },
+    run: async (ctx, body) => {
+      const res = await send(ctx, 'POST', '/v1/history?frequency=month', HEATING_KEY, body, 'text/csv')
       return { answer: summarise(res.status, res.text) }
     },
   },
   {
     finding: 9,
     name: 'CSV upload of 500,000 distinct SKUs (about 9.5 MB)',
-    run: async (ctx) => {
+    prepare: () => {
       const rows = ['sku,period,demand']
       for (let i = 0; i < 500_000; i++) rows.push(`Q-${i},2024-01,${i % 9}`)
-      const res = await send(ctx, 'POST', '/v1/history?frequency=month', HEATING_KEY, rows.join('\n'), 'text/csv')
+      return rows.join('\n')
+    },
+    run: async (ctx, body) => {
+      const res = await send(ctx, 'POST', '/v1/history?frequency=month', HEATING_KEY, body, 'text/csv')
       return { answer: summarise(res.status, res.text) }
     },
   },
   {
     finding: 10,
     name: "a small tenant's 6-point run while another tenant's heavy run fits",
-    run: async (ctx) => {
-      // 2,000 monthly series of 120 points: 4 chunks at the default CHUNK_SIZE, so every worker thread is busy with them.
-      const heavy = Array.from({ length: 2000 }, (_, i) => ({ sku: `BIG-${i}`, demand: daily(120 + (i % 7), 12) }))
-      const big = await send(ctx, 'POST', '/v1/runs', GARDEN_KEY, JSON.stringify({ horizon: 12, frequency: 'month', series: heavy }))
+    // 2,000 monthly series of 120 points: 4 chunks at the default CHUNK_SIZE, so every worker thread is busy with them.
+    prepare: () =>
+      JSON.stringify({ horizon: 12, frequency: 'month', series: Array.from({ length: 2000 }, (_, i) => ({ sku: `BIG-${i}`, demand: daily(120 + (i % 7), 12) })) }),
+    run: async (ctx, body) => {
+      const big = await send(ctx, 'POST', '/v1/runs', GARDEN_KEY, body)
       const bigId = (JSON.parse(big.text) as { id: string }).id
       // Let the heavy run's chunks start fitting first.
       for (;;) {
@@ -267,11 +283,12 @@ async function main(): Promise<void> {
     for (const scenario of SCENARIOS) {
       if (only !== null && !only.has(scenario.finding)) continue
       process.stdout.write(`finding ${scenario.finding}: ${scenario.name} ... `)
+      const body = scenario.prepare?.() ?? ''
       resetPeakRss(api.child.pid)
       const p = probe(baseUrl)
       let outcome: Outcome | { answer: string }
       try {
-        outcome = await scenario.run({ baseUrl, api })
+        outcome = await scenario.run({ baseUrl, api }, body)
       } catch (err) {
         outcome = { answer: `request failed: ${(err as Error).message}` }
       }

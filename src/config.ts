@@ -50,6 +50,8 @@ export const ConfigSchema = z.object({
   WORKER_LOCK_DURATION_MS: intFromEnv(30_000, 1000, 3_600_000),
   /** How often workers look for chunks whose worker died (stalled) and requeue them. */
   WORKER_STALLED_INTERVAL_MS: intFromEnv(30_000, 500, 3_600_000),
+  /** Runs of at most this many series take the express lane (a worker thread of their own); 0: no express lane. */
+  EXPRESS_MAX_SERIES: intFromEnv(50, 0, 100_000),
   /** Start an in-process worker with the API (npm start). */
   RUN_WORKER: boolFromEnv(true),
   /** How long run results are kept, in seconds. */
@@ -123,6 +125,8 @@ export interface Config {
   /** 0 means one per core. */
   readonly workerConcurrency: number
   readonly runWorker: boolean
+  /** Largest run (series) that takes the express lane; 0 turns it off; default 50 when absent. */
+  readonly expressMaxSeries?: number
   /** Chunk lock duration; default 30000 when absent. */
   readonly workerLockDurationMs?: number
   /** Stalled-chunk check interval; default 30000 when absent. */
@@ -246,6 +250,7 @@ export function loadConfig(
     chunkSize: e.CHUNK_SIZE,
     workerConcurrency: e.WORKER_CONCURRENCY,
     runWorker: e.RUN_WORKER,
+    expressMaxSeries: e.EXPRESS_MAX_SERIES,
     workerLockDurationMs: e.WORKER_LOCK_DURATION_MS,
     workerStalledIntervalMs: e.WORKER_STALLED_INTERVAL_MS,
     resultRetentionSeconds: e.RESULT_RETENTION_SECONDS,

@@ -15,7 +15,7 @@ import { resultsPageJson } from '../storage/runs/result-pages.js'
 import { RunStore, runStoreOptions } from '../storage/runs/run-store.js'
 import { FairShare } from '../storage/runs/fair-share.js'
 import { createRunEventEmitter } from '../callbacks/emitter.js'
-import { CHUNK_JOB, CHUNK_JOB_OPTIONS, CHUNK_QUEUE, chunkJobId } from './names.js'
+import { CHUNK_JOB, CHUNK_JOB_OPTIONS, CHUNK_QUEUE, chunkJobId, DEFAULT_EXPRESS_MAX_SERIES, EXPRESS_CHUNK_QUEUE } from './names.js'
 import type { ChunkJob } from './payload.js'
 
 export interface RunMachinery extends RunGateway {
@@ -37,11 +37,19 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
   const store = new RunStore(redis, runStoreOptions(config))
   const queue = new Queue<ChunkJob>(CHUNK_QUEUE, { connection: redis, prefix: queuePrefix(config) })
   logErrors(queue, log, 'chunk queue')
+  const expressQueue = new Queue<ChunkJob>(EXPRESS_CHUNK_QUEUE, { connection: redis, prefix: queuePrefix(config) })
+  logErrors(expressQueue, log, 'express chunk queue')
+  const expressMaxSeries = config.expressMaxSeries ?? DEFAULT_EXPRESS_MAX_SERIES
+  /** Small runs take the express lane (names.ts), with fair shares of its own. */
+  const lanes = {
+    main: { queue, fair: new FairShare(redis, queuePrefix(config), CHUNK_QUEUE) },
+    express: { queue: expressQueue, fair: new FairShare(redis, queuePrefix(config), EXPRESS_CHUNK_QUEUE) },
+  }
+  const laneFor = (series: number) => (series <= expressMaxSeries ? lanes.express : lanes.main)
   const events = createRunEventEmitter(redis, queuePrefix(config), log)
 
   const chunkIndexes = (n: number) => Array.from({ length: n }, (_, i) => i)
   const histories = new HistoryStore(redis, { prefix: config.redisPrefix })
-  const fair = new FairShare(redis, queuePrefix(config))
   const closing = new ClosingStore(redis, config.redisPrefix)
 
   /**
@@ -50,8 +58,9 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
    * (storage/runs/fair-share.ts), so a small run is not queued behind a large
    * run of another tenant.
    */
-  async function enqueueChunks(tenant: string, runId: string, chunks: number): Promise<void> {
+  async function enqueueChunks(tenant: string, runId: string, chunks: number, series: number): Promise<void> {
     try {
+      const { queue, fair } = laneFor(series)
       const c = await queue.getJobCounts('prioritized', 'waiting', 'delayed')
       const idle = (c.prioritized ?? 0) + (c.waiting ?? 0) + (c.delayed ?? 0) === 0
       const priorities = await fair.reserve(tenant, chunks, idle)
@@ -80,7 +89,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
       const runId = randomUUID()
       // Inline series are a what-if unless the caller asks to publish them.
       const { record, chunks } = await store.createRun(tenant, runId, { ...request, publish: request.publish ?? false }, config.chunkSize, now())
-      await enqueueChunks(tenant, runId, chunks)
+      await enqueueChunks(tenant, runId, chunks, request.series.length)
       return record
     },
 
@@ -99,7 +108,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
       })
       if (created === null) throw emptyScopeError(scope)
       if (created.openOnlySkus > 0) log.info({ tenant, runId, openOnlySkus: created.openOnlySkus }, 'SKUs with only open periods left out of the run')
-      await enqueueChunks(tenant, runId, created.chunks)
+      await enqueueChunks(tenant, runId, created.chunks, created.record.progress.total)
       return { record: created.record, missingSkus: created.missingSkus }
     },
 
@@ -117,7 +126,8 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
         const all = chunkIndexes(await store.chunkCount(tenant, runId))
         for (let i = 0; i < all.length; i += BATCH) {
           // Active (locked) chunks cannot be removed; their workers see the cancelled status and skip them.
-          await Promise.allSettled(all.slice(i, i + BATCH).map((c) => queue.remove(chunkJobId(runId, c))))
+          const ids = all.slice(i, i + BATCH).map((c) => chunkJobId(runId, c))
+          await Promise.allSettled([...ids.map((id) => queue.remove(id)), ...ids.map((id) => expressQueue.remove(id))])
         }
         await store.deleteChunkInputs(tenant, runId, all)
         await events.runEnded(tenant, runId)
@@ -132,19 +142,22 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
     },
 
     async stats() {
-      const [c, runs, fits] = await Promise.all([
+      const [main, express, runs, fits] = await Promise.all([
         queue.getJobCounts('waiting', 'prioritized', 'active', 'delayed', 'failed'),
+        expressQueue.getJobCounts('waiting', 'prioritized', 'active', 'delayed', 'failed'),
         store.stats.runs(),
         store.stats.fits(),
       ])
+      const n = (state: string) => (main[state] ?? 0) + (express[state] ?? 0)
       // Chunks carry fair-share priorities, so BullMQ keeps the waiting ones as 'prioritized'.
-      return { waiting: (c.waiting ?? 0) + (c.prioritized ?? 0), active: c.active ?? 0, delayed: c.delayed ?? 0, failed: c.failed ?? 0, runs, fits }
+      return { waiting: n('waiting') + n('prioritized'), active: n('active'), delayed: n('delayed'), failed: n('failed'), runs, fits }
     },
 
     close: () =>
       closeSteps(log, [
         ['run events queue', () => events.close()],
         ['chunk queue', () => queue.close()],
+        ['express chunk queue', () => expressQueue.close()],
         ['Redis connection run-gateway', () => redis.quit()],
       ]),
   }

@@ -3,6 +3,15 @@ import type { JobsOptions } from 'bullmq'
 /** Queue and job names, job ids and job options of the run machinery. */
 
 export const CHUNK_QUEUE = 'run-chunks'
+/**
+ * Chunks of small runs (at most EXPRESS_MAX_SERIES series): served by a thread
+ * of their own in each worker process, so a small run never waits for the
+ * chunks of large runs that hold the other threads.
+ */
+export const EXPRESS_CHUNK_QUEUE = 'run-chunks-express'
+
+/** Default of EXPRESS_MAX_SERIES: runs of at most this many series take the express lane. */
+export const DEFAULT_EXPRESS_MAX_SERIES = 50
 export const CHUNK_JOB = 'forecast-chunk'
 
 /** Deterministic, so a run's chunk jobs can be found (cancel) and never enqueued twice. */

@@ -8,10 +8,13 @@ import { closeSteps } from '../shutdown.js'
 import { workerConnection } from '../storage/redis.js'
 import { RunStore, runStoreOptions } from '../storage/runs/run-store.js'
 import { FairShare } from '../storage/runs/fair-share.js'
-import { CHUNK_QUEUE } from './names.js'
+import { CHUNK_QUEUE, DEFAULT_EXPRESS_MAX_SERIES, EXPRESS_CHUNK_QUEUE } from './names.js'
 import { ChunkJob } from './payload.js'
 import type { SandboxContext } from './processors/chunk.js'
 import { sandboxExecArgv } from './worker-flags.js'
+
+/** Niceness of the express lane's thread: between request handling (0) and large runs' fitting (10). */
+const EXPRESS_NICENESS = 5
 
 export interface ChunkWorker {
   readonly worker: Worker
@@ -65,45 +68,52 @@ export function startChunkWorker(config: Config, logger: Logger): ChunkWorker {
     logLevel: config.logLevel,
   }
 
-  const worker = new Worker(CHUNK_QUEUE, sandboxedProcessorFile(), {
-    connection,
-    prefix: queuePrefix(config),
-    concurrency,
-    useWorkerThreads: true,
-    workerThreadsOptions: {
-      workerData: sandbox,
-      resourceLimits: sandboxHeapLimits(config.chunkSize),
-      // Without V8 flags such as --single-threaded (worker-flags.ts), which Node refuses in a thread's execArgv.
-      execArgv: sandboxExecArgv(process.execArgv),
-    },
-    lockDuration: config.workerLockDurationMs ?? 30_000,
-    stalledInterval: config.workerStalledIntervalMs ?? 30_000,
-    // A chunk whose worker died twice is given up (and its run failed) rather than retried forever.
-    maxStalledCount: 2,
-  })
-
-  const fair = new FairShare(storeRedis, queuePrefix(config))
-  worker.on('error', (err) => log.error({ err }, 'worker error'))
-  // Moves the fair-share clock (fair-share.ts); a missed update only delays newcomers a little.
-  worker.on('active', (job) => {
-    fair.started(job.priority).catch((err: unknown) => log.warn({ err, jobId: job.id }, 'could not record a started chunk for fair sharing'))
-  })
-  worker.on('failed', (job, err) => {
-    if (!job) return
-    const jlog = log.child({ jobId: job.id, runId: job.data?.runId, tenant: job.data?.tenant })
-    void (async () => {
-      if (!(await job.isFailed())) {
-        jlog.warn({ err, attemptsMade: job.attemptsMade }, 'chunk attempt failed; will retry')
-        return
-      }
-      const data = ChunkJob.safeParse(job.data)
-      if (!data.success) return jlog.error({ err }, 'chunk with invalid data failed')
-      const { tenant, runId, chunkIndex } = data.data
-      const ended = await store.endRun(tenant, runId, 'failed', runFailure('chunk-failed', `chunk ${chunkIndex} failed: ${err.message}`), new Date())
-      if (ended?.status === 'failed') await events.runEnded(tenant, runId)
-      jlog.error({ err, attemptsMade: job.attemptsMade }, 'chunk failed for good: run failed')
-    })().catch((e) => jlog.error({ err: e }, 'could not record failed chunk'))
-  })
+  const startWorker = (queueName: string, threads: number, niceness?: number) => {
+    const worker = new Worker(queueName, sandboxedProcessorFile(), {
+      connection,
+      prefix: queuePrefix(config),
+      concurrency: threads,
+      useWorkerThreads: true,
+      workerThreadsOptions: {
+        workerData: niceness === undefined ? sandbox : { ...sandbox, niceness },
+        resourceLimits: sandboxHeapLimits(config.chunkSize),
+        // Without V8 flags such as --single-threaded (worker-flags.ts), which Node refuses in a thread's execArgv.
+        execArgv: sandboxExecArgv(process.execArgv),
+      },
+      lockDuration: config.workerLockDurationMs ?? 30_000,
+      stalledInterval: config.workerStalledIntervalMs ?? 30_000,
+      // A chunk whose worker died twice is given up (and its run failed) rather than retried forever.
+      maxStalledCount: 2,
+    })
+    const fair = new FairShare(storeRedis, queuePrefix(config), queueName)
+    const qlog = log.child({ lane: queueName })
+    worker.on('error', (err) => qlog.error({ err }, 'worker error'))
+    // Moves the fair-share clock (fair-share.ts); a missed update only delays newcomers a little.
+    worker.on('active', (job) => {
+      fair.started(job.priority).catch((err: unknown) => qlog.warn({ err, jobId: job.id }, 'could not record a started chunk for fair sharing'))
+    })
+    worker.on('failed', (job, err) => {
+      if (!job) return
+      const jlog = qlog.child({ jobId: job.id, runId: job.data?.runId, tenant: job.data?.tenant })
+      void (async () => {
+        if (!(await job.isFailed())) {
+          jlog.warn({ err, attemptsMade: job.attemptsMade }, 'chunk attempt failed; will retry')
+          return
+        }
+        const data = ChunkJob.safeParse(job.data)
+        if (!data.success) return jlog.error({ err }, 'chunk with invalid data failed')
+        const { tenant, runId, chunkIndex } = data.data
+        const ended = await store.endRun(tenant, runId, 'failed', runFailure('chunk-failed', `chunk ${chunkIndex} failed: ${err.message}`), new Date())
+        if (ended?.status === 'failed') await events.runEnded(tenant, runId)
+        jlog.error({ err, attemptsMade: job.attemptsMade }, 'chunk failed for good: run failed')
+      })().catch((e) => jlog.error({ err: e }, 'could not record failed chunk'))
+    })
+    return worker
+  }
+  const worker = startWorker(CHUNK_QUEUE, concurrency)
+  // The express lane's own thread: small runs never wait behind large runs' chunks (names.ts). Its work is
+  // small by construction, so it runs ahead of the fitting threads (which stay below request handling).
+  const express = (config.expressMaxSeries ?? DEFAULT_EXPRESS_MAX_SERIES) > 0 ? startWorker(EXPRESS_CHUNK_QUEUE, 1, EXPRESS_NICENESS) : null
   log.info({ concurrency, prefix: config.redisPrefix, queuePrefix: queuePrefix(config) }, 'chunk worker started')
 
   return {
@@ -112,6 +122,7 @@ export function startChunkWorker(config: Config, logger: Logger): ChunkWorker {
     close: async () => {
       await closeSteps(log, [
         ['chunk worker', () => worker.close()],
+        ...(express ? [['express chunk worker', () => express.close()] as const] : []),
         ['run events queue', () => events.close()],
         ['Redis connection chunk-worker', () => connection.quit()],
         ['Redis connection chunk-worker-store', () => storeRedis.quit()],

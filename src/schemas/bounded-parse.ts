@@ -68,7 +68,7 @@ function walk(schema: $ZodType, data: unknown, path: PropertyKey[], sink: Bounde
     const strict = d.catchall !== undefined && def(d.catchall).type === 'never'
     for (const key in data) {
       if (!Object.prototype.hasOwnProperty.call(data, key)) continue
-      // Own keys only: a body key such as `constructor` must not find Object.prototype's.
+      // Own keys only: a body key such as "constructor" must not find Object's own members on the shape.
       const field = Object.prototype.hasOwnProperty.call(d.shape, key) ? d.shape[key] : undefined
       if (field === undefined) {
         if (strict && push(sink, limit, { path: [...path, key], message: 'is not a field of this request', code: 'unrecognized_keys' })) return true

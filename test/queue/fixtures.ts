@@ -12,6 +12,8 @@ export function runsTestConfig(redisUrl: string, redisPrefix: string, overrides:
     chunkSize: 10,
     workerConcurrency: 2,
     runWorker: false,
+    // One lane, so tests that look into the chunk queue see every chunk there (the express lane has its own test).
+    expressMaxSeries: 0,
     workerLockDurationMs: 30_000,
     workerStalledIntervalMs: 30_000,
     resultRetentionSeconds: 3600,

@@ -61,6 +61,14 @@ describe('boundedSafeParse (issue 14, finding 1: a huge invalid body must not co
     expect(r.issues[0]?.message).toBe('SKU "SAME" appears more than once')
   })
 
+  it('names keys that are members of every object ("constructor", "__proto__") as unknown fields', () => {
+    const body = JSON.parse('{"horizon":1,"constructor":1,"__proto__":2,"series":[{"sku":"A","demand":[1],"toString":3}]}')
+    const r = boundedSafeParse(RunSubmission, body, 100)
+    expect(r.success).toBe(false)
+    if (r.success) return
+    expect(r.issues.map((i) => pathKey(i.path)).sort()).toEqual(['__proto__', 'constructor', 'series/0/toString'])
+  })
+
   it('a valid body parses exactly as the schema parses it', () => {
     const body = { horizon: 2, series: Array.from({ length: 100 }, (_, i) => ({ sku: `S${i}`, demand: [1, 2, null] })) }
     const r = boundedSafeParse(RunSubmission, body, 100)

@@ -25,12 +25,14 @@ export const SandboxContext = z.object({
   recordTtlSeconds: z.number().int().positive(),
   publishedKept: z.number().int().positive().optional(),
   logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
+  /** Niceness of this thread; absent: FITTING_NICENESS (the express lane's thread runs nicer to small runs). */
+  niceness: z.number().int().min(0).max(19).optional(),
 })
 export type SandboxContext = z.infer<typeof SandboxContext>
 
 const ctx = SandboxContext.parse(workerData)
 // Fitting yields the cores to request handling and lock renewals (thread-priority.ts).
-lowerThreadPriority()
+lowerThreadPriority(ctx.niceness)
 const logger = createLogger({ level: ctx.logLevel })
 // Open for the thread's life: BullMQ ends the thread, and with it the connection, when the worker closes.
 const redis = workerConnection(ctx, logger, 'sandboxed-chunk-processor')

@@ -34,15 +34,17 @@ return 0
 /**
  * Chunk priorities that share workers fairly between tenants (issue 14,
  * finding 10): one hash beside the chunk queue's keys (a single key, so it
- * works on a cluster too).
+ * works on a cluster too), per queue.
  */
 export class FairShare {
   private readonly key: string
+  /** One per queue: `queueName` keeps the numbers of two queues apart. */
   constructor(
     private readonly redis: RedisClient,
     queuePrefix: string,
+    queueName: string,
   ) {
-    this.key = `${queuePrefix}:fair-share`
+    this.key = `${queuePrefix}:${queueName}:fair-share`
   }
 
   /**

@@ -19,7 +19,7 @@ afterAll(async () => {
 
 describe('FairShare: chunk priorities per tenant', () => {
   it('numbers a first run from 1 and a newcomer from the clock, not behind the queue', async () => {
-    const fair = new FairShare(redis, `${prefix}:a`)
+    const fair = new FairShare(redis, prefix, 'queue-a')
     expect(await fair.reserve('garden', 5, true)).toEqual([1, 2, 3, 4, 5])
     await fair.started(1)
     await fair.started(2)
@@ -30,7 +30,7 @@ describe('FairShare: chunk priorities per tenant', () => {
   })
 
   it('the clock only moves forward', async () => {
-    const fair = new FairShare(redis, `${prefix}:b`)
+    const fair = new FairShare(redis, prefix, 'queue-b')
     await fair.reserve('garden', 10, true)
     await fair.started(8)
     await fair.started(3) // a retried chunk
@@ -38,7 +38,7 @@ describe('FairShare: chunk priorities per tenant', () => {
   })
 
   it('starts numbering again when the queue was idle, and never passes the ceiling', async () => {
-    const fair = new FairShare(redis, `${prefix}:c`)
+    const fair = new FairShare(redis, prefix, 'queue-c')
     await fair.reserve('garden', 100, true)
     await fair.started(100)
     expect(await fair.reserve('garden', 2, true)).toEqual([1, 2])

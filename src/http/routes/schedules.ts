@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import { checkCallbackUrl } from '../callback-url.js'
 import { ProblemError } from '../../errors.js'
 import { PageQuery, pageSchema } from '../../schemas/params.js'
 import { RunScope, RunSettings, toRunScope } from '../../schemas/run.js'
@@ -83,6 +84,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
+      checkCallbackUrl(app, request.body.callbackUrl, 'callbackUrl')
       const erp = requireErp(app)
       let created
       try {

@@ -169,6 +169,11 @@ export function parseApiKeys(
         problems.push(`API key entry ${i + 1}: expected tenant:key with a tenant of [A-Za-z0-9_-] and a key of 16+ characters`)
         return
       }
+      // The auth header carries the key as one token of visible ASCII: any other key could never match.
+      if (!/^[\x21-\x7e]+$/.test(key)) {
+        problems.push(`API key entry ${i + 1}: the key of tenant ${tenant} holds spaces or characters other than visible ASCII, so no request could send it`)
+        return
+      }
       keys.set(tenant, [...(keys.get(tenant) ?? []), hash(key)])
     })
   if (problems.length > 0) throw new ConfigError(problems)
@@ -193,7 +198,12 @@ export function loadConfig(
   const merge = (m: Map<string, string[]>) => {
     for (const [t, ks] of m) apiKeys.set(t, [...(apiKeys.get(t) ?? []), ...ks])
   }
-  if (e.API_KEYS) merge(parseApiKeys(e.API_KEYS, /,/, deps.hash))
+  // Set but without a single key would silently turn authentication off: refused. An empty value counts as unset.
+  if (e.API_KEYS) {
+    const keys = parseApiKeys(e.API_KEYS, /,/, deps.hash)
+    if (keys.size === 0) throw new ConfigError(['API_KEYS: set but holds no tenant:key entry; unset it to run without authentication'])
+    merge(keys)
+  }
   if (e.API_KEYS_FILE) {
     let text: string
     try {
@@ -201,8 +211,12 @@ export function loadConfig(
     } catch (err) {
       throw new ConfigError([`API_KEYS_FILE: cannot read (${(err as Error).message})`])
     }
-    merge(parseApiKeys(text, /\r?\n/, deps.hash))
+    const keys = parseApiKeys(text, /\r?\n/, deps.hash)
+    if (keys.size === 0) throw new ConfigError(['API_KEYS_FILE: holds no tenant:key entry (only blanks or comments); unset it to run without authentication'])
+    merge(keys)
   }
+  const duplicates = duplicateKeys(apiKeys)
+  if (duplicates.length > 0) throw new ConfigError(duplicates)
   if (e.REDIS_CLUSTER_NODES && !/^\/?0?$/.test(new URL(e.REDIS_URL).pathname)) {
     throw new ConfigError(['REDIS_URL: a Redis Cluster has only database 0; drop the database number when REDIS_CLUSTER_NODES is set'])
   }
@@ -239,6 +253,15 @@ export function loadConfig(
     callbackAllowPrivateNetworks: e.CALLBACK_ALLOW_PRIVATE_NETWORKS,
     scheduleMinIntervalSeconds: e.SCHEDULE_MIN_INTERVAL_SECONDS,
   }
+}
+
+/** One problem per key digest given more than once: the first tenant would win and the others never authenticate. */
+function duplicateKeys(apiKeys: ReadonlyMap<string, readonly string[]>): string[] {
+  const owners = new Map<string, string[]>()
+  for (const [tenant, digests] of apiKeys) for (const d of digests) owners.set(d, [...(owners.get(d) ?? []), tenant])
+  return [...owners.values()]
+    .filter((tenants) => tenants.length > 1)
+    .map((tenants) => `API keys: one key is given ${tenants.length} times (tenants ${[...new Set(tenants)].join(', ')}); every key must be unique`)
 }
 
 /** The prefix BullMQ queues use (see Config.queuePrefix). */

@@ -66,6 +66,10 @@ export const ConfigSchema = z.object({
   /** Failed authentications per client address per window before further attempts get 429. */
   AUTH_FAILURE_MAX: intFromEnv(20, 1, 1_000_000),
   AUTH_FAILURE_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
+  /** Most SKUs with a stored history per tenant; uploads and PUTs past it are refused. */
+  QUOTA_SKUS_PER_TENANT: intFromEnv(250_000, 1, 100_000_000),
+  /** Most SKUs a schedule's scope.skus may name (larger selections: use tags or all). */
+  SCHEDULE_MAX_SKUS: intFromEnv(1000, 1, 100_000),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   /** Callback delivery: attempts in all, first retry delay (doubling after), per-request timeout. */
   CALLBACK_ATTEMPTS: intFromEnv(5, 1, 20),
@@ -90,6 +94,9 @@ export function parseRedisNode(text: string): RedisNode | null {
   if (!m || port < 1 || port > 65535) return null
   return { host: (m[1] ?? m[2])!, port }
 }
+
+export const DEFAULT_QUOTA_SKUS_PER_TENANT = 250_000
+export const DEFAULT_SCHEDULE_MAX_SKUS = 1000
 
 export interface Config {
   readonly port: number
@@ -126,6 +133,10 @@ export interface Config {
   readonly authFailureMax?: number
   /** Window of authFailureMax; default 60000 when absent. */
   readonly authFailureWindowMs?: number
+  /** Most stored SKUs per tenant; default DEFAULT_QUOTA_SKUS_PER_TENANT when absent. */
+  readonly quotaSkusPerTenant?: number
+  /** Most SKUs in a schedule's scope.skus; default DEFAULT_SCHEDULE_MAX_SKUS when absent. */
+  readonly scheduleMaxSkus?: number
   readonly logLevel: z.infer<typeof ConfigSchema>['LOG_LEVEL']
   /** Callback delivery attempts; default 5 when absent. */
   readonly callbackAttempts?: number
@@ -246,6 +257,8 @@ export function loadConfig(
     rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,
     authFailureMax: e.AUTH_FAILURE_MAX,
     authFailureWindowMs: e.AUTH_FAILURE_WINDOW_MS,
+    quotaSkusPerTenant: e.QUOTA_SKUS_PER_TENANT,
+    scheduleMaxSkus: e.SCHEDULE_MAX_SKUS,
     logLevel: e.LOG_LEVEL,
     callbackAttempts: e.CALLBACK_ATTEMPTS,
     callbackBackoffMs: e.CALLBACK_BACKOFF_MS,

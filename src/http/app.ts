@@ -81,7 +81,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   const app = Fastify({
     loggerInstance: (deps.logger ?? createLogger({ level: 'silent' })) as FastifyBaseLogger,
     bodyLimit: config.bodyLimitBytes,
-    maxParamLength: MAX_PATH_PARAM_CHARS,
+    routerOptions: { maxParamLength: MAX_PATH_PARAM_CHARS },
     // Slow clients (a trickled body, half-sent headers) get a 408 and are cut off.
     requestTimeout: requestTimeoutMs,
     http: {

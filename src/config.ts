@@ -78,6 +78,10 @@ export const ConfigSchema = z.object({
   /** Failed authentications per client address per window before further attempts get 429. */
   AUTH_FAILURE_MAX: intFromEnv(20, 1, 1_000_000),
   AUTH_FAILURE_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
+  /** Most SKUs with a stored history per tenant; uploads and PUTs past it are refused. */
+  QUOTA_SKUS_PER_TENANT: intFromEnv(250_000, 1, 100_000_000),
+  /** Most SKUs a schedule's scope.skus may name (larger selections: use tags or all). */
+  SCHEDULE_MAX_SKUS: intFromEnv(1000, 1, 100_000),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   /** Callback delivery: attempts in all, first retry delay (doubling after), per-request timeout. */
   CALLBACK_ATTEMPTS: intFromEnv(5, 1, 20),
@@ -104,6 +108,9 @@ export function parseRedisNode(text: string): RedisNode | null {
   if (!m || port < 1 || port > 65535) return null
   return { host: (m[1] ?? m[2])!, port }
 }
+
+export const DEFAULT_QUOTA_SKUS_PER_TENANT = 250_000
+export const DEFAULT_SCHEDULE_MAX_SKUS = 1000
 
 export interface Config {
   readonly port: number
@@ -152,6 +159,10 @@ export interface Config {
   readonly authFailureMax?: number
   /** Window of authFailureMax; default 60000 when absent. */
   readonly authFailureWindowMs?: number
+  /** Most stored SKUs per tenant; default DEFAULT_QUOTA_SKUS_PER_TENANT when absent. */
+  readonly quotaSkusPerTenant?: number
+  /** Most SKUs in a schedule's scope.skus; default DEFAULT_SCHEDULE_MAX_SKUS when absent. */
+  readonly scheduleMaxSkus?: number
   readonly logLevel: z.infer<typeof ConfigSchema>['LOG_LEVEL']
   /** Callback delivery attempts; default 5 when absent. */
   readonly callbackAttempts?: number
@@ -197,6 +208,11 @@ export function parseApiKeys(
         problems.push(`API key entry ${i + 1}: expected tenant:key with a tenant of [A-Za-z0-9_-] and a key of 16+ characters`)
         return
       }
+      // The auth header carries the key as one token of visible ASCII: any other key could never match.
+      if (!/^[\x21-\x7e]+$/.test(key)) {
+        problems.push(`API key entry ${i + 1}: the key of tenant ${tenant} holds spaces or characters other than visible ASCII, so no request could send it`)
+        return
+      }
       keys.set(tenant, [...(keys.get(tenant) ?? []), hash(key)])
     })
   if (problems.length > 0) throw new ConfigError(problems)
@@ -221,7 +237,12 @@ export function loadConfig(
   const merge = (m: Map<string, string[]>) => {
     for (const [t, ks] of m) apiKeys.set(t, [...(apiKeys.get(t) ?? []), ...ks])
   }
-  if (e.API_KEYS) merge(parseApiKeys(e.API_KEYS, /,/, deps.hash))
+  // Set but without a single key would silently turn authentication off: refused. An empty value counts as unset.
+  if (e.API_KEYS) {
+    const keys = parseApiKeys(e.API_KEYS, /,/, deps.hash)
+    if (keys.size === 0) throw new ConfigError(['API_KEYS: set but holds no tenant:key entry; unset it to run without authentication'])
+    merge(keys)
+  }
   if (e.API_KEYS_FILE) {
     let text: string
     try {
@@ -229,8 +250,12 @@ export function loadConfig(
     } catch (err) {
       throw new ConfigError([`API_KEYS_FILE: cannot read (${(err as Error).message})`])
     }
-    merge(parseApiKeys(text, /\r?\n/, deps.hash))
+    const keys = parseApiKeys(text, /\r?\n/, deps.hash)
+    if (keys.size === 0) throw new ConfigError(['API_KEYS_FILE: holds no tenant:key entry (only blanks or comments); unset it to run without authentication'])
+    merge(keys)
   }
+  const duplicates = duplicateKeys(apiKeys)
+  if (duplicates.length > 0) throw new ConfigError(duplicates)
   if (e.REDIS_CLUSTER_NODES && !/^\/?0?$/.test(new URL(e.REDIS_URL).pathname)) {
     throw new ConfigError(['REDIS_URL: a Redis Cluster has only database 0; drop the database number when REDIS_CLUSTER_NODES is set'])
   }
@@ -266,6 +291,8 @@ export function loadConfig(
     rateLimitWindowMs: e.RATE_LIMIT_WINDOW_MS,
     authFailureMax: e.AUTH_FAILURE_MAX,
     authFailureWindowMs: e.AUTH_FAILURE_WINDOW_MS,
+    quotaSkusPerTenant: e.QUOTA_SKUS_PER_TENANT,
+    scheduleMaxSkus: e.SCHEDULE_MAX_SKUS,
     logLevel: e.LOG_LEVEL,
     callbackAttempts: e.CALLBACK_ATTEMPTS,
     callbackBackoffMs: e.CALLBACK_BACKOFF_MS,
@@ -274,6 +301,15 @@ export function loadConfig(
     scheduleMinIntervalSeconds: e.SCHEDULE_MIN_INTERVAL_SECONDS,
     publishedForecastsKept: e.PUBLISHED_FORECASTS_KEPT,
   }
+}
+
+/** One problem per key digest given more than once: the first tenant would win and the others never authenticate. */
+function duplicateKeys(apiKeys: ReadonlyMap<string, readonly string[]>): string[] {
+  const owners = new Map<string, string[]>()
+  for (const [tenant, digests] of apiKeys) for (const d of digests) owners.set(d, [...(owners.get(d) ?? []), tenant])
+  return [...owners.values()]
+    .filter((tenants) => tenants.length > 1)
+    .map((tenants) => `API keys: one key is given ${tenants.length} times (tenants ${[...new Set(tenants)].join(', ')}); every key must be unique`)
 }
 
 /** The prefix BullMQ queues use (see Config.queuePrefix). */

@@ -1,3 +1,4 @@
+import fc from 'fast-check'
 import { createHash } from 'node:crypto'
 import { describe, expect, it } from 'vitest'
 import { ConfigError, isLoopback, loadConfig, parseRedisNode, queuePrefix } from '../src/config.js'
@@ -49,6 +50,34 @@ describe('loadConfig', () => {
   it('rejects malformed key entries and short keys', () => {
     const problems = problemsOf(() => load({ API_KEYS: 'garden:short,no-colon-here-0123456789' }))
     expect(problems).toHaveLength(2)
+  })
+
+  // Issue 14 finding 11. Before the fix each of these started, with auth off or a key that could never match (seen failing).
+  it('refuses key settings that would turn auth off or hold unusable or shared keys', () => {
+    for (const value of [' ', ',', ' , ,']) {
+      expect(problemsOf(() => load({ API_KEYS: value }))).toEqual(['API_KEYS: set but holds no tenant:key entry; unset it to run without authentication'])
+    }
+    expect(problemsOf(() => load({ API_KEYS_FILE: '/keys' }, () => '# no keys yet\n\n   \n# still none\n'))).toEqual([
+      'API_KEYS_FILE: holds no tenant:key entry (only blanks or comments); unset it to run without authentication',
+    ])
+    expect(problemsOf(() => load({ API_KEYS: 'garden:shared-key-0123456789,heating:shared-key-0123456789' }))).toEqual([
+      'API keys: one key is given 2 times (tenants garden, heating); every key must be unique',
+    ])
+    expect(problemsOf(() => load({ API_KEYS: 'garden:shared-key-0123456789', API_KEYS_FILE: '/keys' }, () => 'heating:shared-key-0123456789\n'))).toHaveLength(1)
+    expect(load({ API_KEYS: '' }).apiKeys.size).toBe(0)
+  })
+
+  it('refuses any key holding a space or a character other than visible ASCII', () => {
+    const visible = fc.string({ unit: fc.integer({ min: 0x21, max: 0x7e }).map((c) => String.fromCharCode(c)), minLength: 8, maxLength: 12 }).filter((k) => !k.includes(','))
+    const bad = fc.constantFrom(' ', '\t', '\u00a0', '\u3000', 'é', '\u0007')
+    fc.assert(
+      fc.property(visible, bad, visible, (a, c, b) => {
+        const problems = problemsOf(() => load({ API_KEYS: `garden:${a}${c}${b}` }))
+        expect(problems).toEqual(['API key entry 1: the key of tenant garden holds spaces or characters other than visible ASCII, so no request could send it'])
+      }),
+      { numRuns: 200 },
+    )
+    expect(problemsOf(() => load({ API_KEYS: 'garden: leading-space-key-0123' }))).toHaveLength(1)
   })
 
   it('says when the key file cannot be read', () => {

@@ -1,31 +1,19 @@
 import { lookup as dnsLookup, type LookupAddress } from 'node:dns'
 import { request as httpRequest } from 'node:http'
 import { request as httpsRequest } from 'node:https'
-import { BlockList, isIP } from 'node:net'
+import { isIP } from 'node:net'
+import { isAllowedAddress, PRIVATE_NETWORKS_SETTING } from './addresses.js'
 
 /**
  * One callback POST with node:http(s): no redirects followed, a hard timeout,
- * and (unless private networks are allowed) a refusal to connect to loopback,
- * private, link-local, shared or multicast addresses. The check runs in the
- * DNS lookup the connection itself uses, so a name that resolves differently
- * on a second lookup (DNS rebinding) cannot slip through.
+ * and a refusal to connect to addresses addresses.ts does not allow (without
+ * private networks: loopback, private, link-local, shared, multicast and
+ * IPv4-carrying IPv6 forms; with them: still link-local). The check runs in
+ * the DNS lookup the connection itself uses, so a name that resolves
+ * differently on a second lookup (DNS rebinding) cannot slip through.
  */
 
-const PRIVATE = new BlockList()
-for (const [net, prefix] of [
-  ['0.0.0.0', 8], ['10.0.0.0', 8], ['100.64.0.0', 10], ['127.0.0.0', 8], ['169.254.0.0', 16],
-  ['172.16.0.0', 12], ['192.0.0.0', 24], ['192.168.0.0', 16], ['198.18.0.0', 15], ['224.0.0.0', 3],
-] as const) PRIVATE.addSubnet(net, prefix, 'ipv4')
-for (const [net, prefix] of [['::', 127], ['fc00::', 7], ['fe80::', 10], ['ff00::', 8]] as const) PRIVATE.addSubnet(net, prefix, 'ipv6')
-
-/** True for addresses a callback must not reach unless private networks are allowed. */
-export function isPrivateAddress(address: string): boolean {
-  const family = isIP(address)
-  if (family === 4) return PRIVATE.check(address, 'ipv4')
-  if (family !== 6) return true
-  const mapped = /^::ffff:(\d+\.\d+\.\d+\.\d+)$/i.exec(address)
-  return mapped ? PRIVATE.check(mapped[1]!, 'ipv4') : PRIVATE.check(address, 'ipv6')
-}
+export { isPrivateAddress } from './addresses.js'
 
 export class BlockedAddressError extends Error {
   override readonly name = 'BlockedAddressError'
@@ -34,15 +22,25 @@ export class BlockedAddressError extends Error {
 
 type LookupCallback = (err: NodeJS.ErrnoException | null, address: string | LookupAddress[], family?: number) => void
 
-function guardedLookup(hostname: string, options: object, callback: LookupCallback): void {
-  dnsLookup(hostname, { ...options, all: true }, (err, addresses) => {
-    if (err) return callback(err, '')
-    const list = addresses as LookupAddress[]
-    const blocked = list.find((a) => isPrivateAddress(a.address))
-    if (blocked || list.length === 0) return callback(new BlockedAddressError(`${hostname} resolves to a private address`), '')
-    if ((options as { all?: boolean }).all) return callback(null, list)
-    callback(null, list[0]!.address, list[0]!.family)
-  })
+function refusal(what: string, allowPrivateNetworks: boolean): BlockedAddressError {
+  return new BlockedAddressError(
+    allowPrivateNetworks
+      ? `${what} a link-local address; callbacks never call one`
+      : `${what} a private address; set ${PRIVATE_NETWORKS_SETTING}=true to allow private networks`,
+  )
+}
+
+function guardedLookup(allowPrivateNetworks: boolean) {
+  return (hostname: string, options: object, callback: LookupCallback): void => {
+    dnsLookup(hostname, { ...options, all: true }, (err, addresses) => {
+      if (err) return callback(err, '')
+      const list = addresses as LookupAddress[]
+      const blocked = list.find((a) => !isAllowedAddress(a.address, allowPrivateNetworks))
+      if (blocked || list.length === 0) return callback(refusal(`${hostname} resolves to`, allowPrivateNetworks), '')
+      if ((options as { all?: boolean }).all) return callback(null, list)
+      callback(null, list[0]!.address, list[0]!.family)
+    })
+  }
 }
 
 export interface PostOptions {
@@ -61,8 +59,8 @@ export function postJson(url: string, body: string, headers: Record<string, stri
     }
     if (target.protocol !== 'http:' && target.protocol !== 'https:') return reject(new Error('only http and https URLs are called'))
     const host = target.hostname.replace(/^\[|\]$/g, '')
-    if (!opts.allowPrivateNetworks && isIP(host) !== 0 && isPrivateAddress(host)) {
-      return reject(new BlockedAddressError(`${host} is a private address`))
+    if (isIP(host) !== 0 && !isAllowedAddress(host, opts.allowPrivateNetworks)) {
+      return reject(refusal(`${host} is`, opts.allowPrivateNetworks))
     }
     const send = target.protocol === 'https:' ? httpsRequest : httpRequest
     const req = send(
@@ -71,7 +69,7 @@ export function postJson(url: string, body: string, headers: Record<string, stri
         method: 'POST',
         headers: { ...headers, 'content-length': String(Buffer.byteLength(body)) },
         timeout: opts.timeoutMs,
-        ...(opts.allowPrivateNetworks ? {} : { lookup: guardedLookup as never }),
+        lookup: guardedLookup(opts.allowPrivateNetworks) as never,
       },
       (res) => {
         res.resume() // the answer body is not needed

@@ -44,14 +44,24 @@ function requestFailure(err: unknown): Failure {
   return { code: 'network-error', message: (e?.code ?? e?.message ?? 'request failed').slice(0, 200) }
 }
 
+/** Scheme, host and port only: a callback URL's path or query may carry a token. */
+function redactedUrl(url: string): string {
+  try {
+    return new URL(url).origin
+  } catch {
+    return '(invalid URL)'
+  }
+}
+
 /**
  * The callback queue's processor:
  *  - `run-event`: reads the run; for a terminal status it opens one delivery per
  *    target (the run's callbackUrl, then standing callbacks subscribed to the
  *    event) and enqueues a job for each;
  *  - `delivery`: one signed POST; any answer but 2xx (redirects included, they
- *    are not followed), a timeout, a network error or a private address (unless
- *    allowed) is a failed attempt.
+ *    are not followed), a timeout or a network error is a failed attempt, retried
+ *    with backoff; an address the configuration refuses fails the delivery at
+ *    once (`dead` after one attempt), as no retry could pass.
  * Every attempt is logged on the run (GET /v1/runs/{id}/deliveries); after the
  * last one the delivery is `dead`.
  */
@@ -130,8 +140,14 @@ export function createCallbackProcessor(deps: CallbackProcessorDeps) {
       failure = requestFailure(err)
     }
     const durationMs = Math.round(performance.now() - t0)
-    const status: DeliveryStatus = failure === null ? 'delivered' : attempt >= maxAttempts ? 'dead' : 'retrying'
+    // A refused address is a configuration matter: retrying cannot change the answer.
+    const final = failure !== null && (failure.code === 'address-not-allowed' || attempt >= maxAttempts)
+    const status: DeliveryStatus = failure === null ? 'delivered' : final ? 'dead' : 'retrying'
     await deps.deliveries.recordAttempt(tenant, runId, deliveryId, { attempt, at: started.toISOString(), httpStatus, failure, durationMs }, status)
+    if (failure?.code === 'address-not-allowed') {
+      log.error({ failure, url: redactedUrl(url) }, 'callback address refused by configuration; not retried')
+      throw new UnrecoverableError(failure.message)
+    }
     if (failure !== null) {
       log.warn({ httpStatus, failure, durationMs, status }, 'callback attempt failed')
       throw new AttemptFailed(failure.message)

@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../errors.js'
+import { checkCallbackUrl } from '../callback-url.js'
 import { CallbackUrl } from '../../schemas/run.js'
 import { MAX_CALLBACKS_PER_TENANT } from '../../storage/erp/callback-store.js'
 import { requireErp } from '../plugins/erp.js'
@@ -55,6 +56,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
+      checkCallbackUrl(app, request.body.url, 'url')
       const erp = requireErp(app)
       const fresh = !(await erp.callbacks.hasSecret(request.tenant))
       const cb = await erp.callbacks.add(request.tenant, request.body.url, request.body.events, new Date())

@@ -4,6 +4,8 @@ import { z } from 'zod'
 import { HistoryAccumulator } from '../../history/accumulator.js'
 import { readCsvUpload, UploadFormatError } from '../../history/csv-reader.js'
 import { commitUpload } from '../../history/ingest.js'
+import { withSkuQuota } from '../../history/quota.js'
+import { DEFAULT_QUOTA_SKUS_PER_TENANT } from '../../config.js'
 import { readNdjsonUpload } from '../../history/ndjson-reader.js'
 import { parseUploadSeries, UploadSeries } from '../../history/series-item.js'
 import { MAX_FIELD_ERRORS } from '../problem-mapping.js'
@@ -131,7 +133,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           else acc.addSeries(s.sku, s.incoming, { item })
         })
       }
-      const report = await commitUpload(acc, store, request.tenant, mode ?? 'append')
+      const quota = app.config.quotaSkusPerTenant ?? DEFAULT_QUOTA_SKUS_PER_TENANT
+      const report = await commitUpload(acc, withSkuQuota(store, store, quota), request.tenant, mode ?? 'append')
       request.log.info({ type, mode: report.mode, rows: report.rows, skus: report.skus }, 'history upload')
       return { ...report, errors: [...report.errors] }
     },

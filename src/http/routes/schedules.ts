@@ -1,5 +1,7 @@
 import { z } from 'zod'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import { checkCallbackUrl } from '../callback-url.js'
+import { DEFAULT_SCHEDULE_MAX_SKUS } from '../../config.js'
 import { ProblemError } from '../../errors.js'
 import { PageQuery, pageSchema } from '../../schemas/params.js'
 import { RunScope, RunSettings, toRunScope } from '../../schemas/run.js'
@@ -83,6 +85,14 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       },
     },
     async (request, reply) => {
+      checkCallbackUrl(app, request.body.callbackUrl, 'callbackUrl')
+      // A schedule's selection is stored and listed with it: bounded far below a run's.
+      const maxSkus = app.config.scheduleMaxSkus ?? DEFAULT_SCHEDULE_MAX_SKUS
+      const named = request.body.scope.skus?.length ?? 0
+      if (named > maxSkus) {
+        const why = `a schedule names at most ${maxSkus} SKUs (SCHEDULE_MAX_SKUS), this one ${named}; select by tags or all instead`
+        throw new ProblemError('validation-failed', why, [{ path: 'scope.skus', message: why }])
+      }
       const erp = requireErp(app)
       let created
       try {

@@ -26,6 +26,9 @@ export type StandingCallback = z.infer<typeof StandingCallbackRecord>
 
 export const MAX_CALLBACKS_PER_TENANT = 20
 
+/** HSET field ARGV[1] = ARGV[2] unless the hash already holds ARGV[3] fields; 1 when added. */
+const ADD_WITHIN_LIMIT = `if redis.call('HLEN', KEYS[1]) >= tonumber(ARGV[3]) then return 0 end redis.call('HSET', KEYS[1], ARGV[1], ARGV[2]) return 1`
+
 /** How long deliveries are also signed with the secret a rotation replaced (a day: common practice for key roll-over). */
 export const SECRET_GRACE_SECONDS = 24 * 3600
 
@@ -65,10 +68,10 @@ export class CallbackStore {
   /** Adds a callback; null when the tenant already has the maximum. */
   async add(tenant: string, url: string, events: readonly RunEvent[], now: Date): Promise<StandingCallback | null> {
     const key = this.callbacksKey(tenant)
-    if ((await this.redis.hlen(key)) >= MAX_CALLBACKS_PER_TENANT) return null
     const cb: StandingCallback = { id: randomUUID(), url, events: [...new Set(events)], createdAt: now.toISOString() }
-    await this.redis.hset(key, cb.id, JSON.stringify(cb))
-    return cb
+    // Count and add in one script: concurrent adds cannot all pass the check.
+    const added = await this.redis.eval(ADD_WITHIN_LIMIT, 1, key, cb.id, JSON.stringify(cb), String(MAX_CALLBACKS_PER_TENANT))
+    return added === 1 ? cb : null
   }
 
   /** Every callback of the tenant, oldest first. */

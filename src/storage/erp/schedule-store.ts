@@ -63,6 +63,9 @@ export type Schedule = ScheduleDefinition & { readonly firings: Firings }
 
 export const MAX_SCHEDULES_PER_TENANT = 100
 
+/** ZADD ARGV[1] ARGV[2] unless the index already holds ARGV[3] members; 1 when added. */
+const CLAIM_PLACE = `if redis.call('ZCARD', KEYS[1]) >= tonumber(ARGV[3]) then return 0 end redis.call('ZADD', KEYS[1], ARGV[1], ARGV[2]) return 1`
+
 const SCHEDULE_ID = /^[A-Za-z0-9-]{1,64}$/
 
 const Count = z.coerce.number().int().min(0)
@@ -94,10 +97,17 @@ export class ScheduleStore {
 
   /** Stores a new schedule; null when the tenant has the maximum already. */
   async create(tenant: string, def: Omit<ScheduleDefinition, 'id' | 'createdAt'>, now: Date): Promise<ScheduleDefinition | null> {
-    if ((await this.redis.zcard(`${this.base(tenant)}:index`)) >= MAX_SCHEDULES_PER_TENANT) return null
     const full: ScheduleDefinition = { id: randomUUID(), ...def, createdAt: now.toISOString() }
-    await this.redis.hset(this.key(tenant, full.id), 'def', JSON.stringify(full), 'submitted', 0, 'skipped', 0, 'failed', 0, 'missingSkus', 0)
-    await this.redis.zadd(`${this.base(tenant)}:index`, now.getTime(), full.id)
+    // The index entry is the claim on a place, counted and added in one script so concurrent
+    // creates cannot all pass the check (the schedule's own hash lies on another cluster slot).
+    const index = `${this.base(tenant)}:index`
+    if ((await this.redis.eval(CLAIM_PLACE, 1, index, String(now.getTime()), full.id, String(MAX_SCHEDULES_PER_TENANT))) !== 1) return null
+    try {
+      await this.redis.hset(this.key(tenant, full.id), 'def', JSON.stringify(full), 'submitted', 0, 'skipped', 0, 'failed', 0, 'missingSkus', 0)
+    } catch (err) {
+      await this.redis.zrem(index, full.id).catch(() => undefined)
+      throw err
+    }
     return full
   }
 

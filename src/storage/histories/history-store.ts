@@ -124,6 +124,11 @@ export class HistoryStore implements HistoryWriter {
     return skus.map((sku, i) => decode(sku, metas[i] ?? null, datas[i] ?? null))
   }
 
+  /** How many SKUs of the tenant have a stored history. */
+  async count(tenant: string): Promise<number> {
+    return isValidTenant(tenant) ? this.redis.zcard(this.keys(tenant).skus) : 0
+  }
+
   /** SKUs of the list without a stored history, in list order. */
   async missing(tenant: string, skus: readonly string[]): Promise<string[]> {
     const k = this.keys(tenant)

@@ -1,3 +1,4 @@
+import { checkCallbackUrl } from '../../callback-url.js'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../../errors.js'
 import { RunIdParams } from '../../../schemas/params.js'
@@ -51,6 +52,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     },
     async (request, reply) => {
       const { series, scope, ...settings } = request.body
+      checkCallbackUrl(app, settings.callbackUrl, 'callbackUrl')
       // The schema lets exactly one of series and scope through.
       const run = series
         ? await app.gateway.submit(request.tenant, { ...settings, series })

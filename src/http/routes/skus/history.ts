@@ -3,6 +3,8 @@ import { formatPeriod, parsePeriod } from '../../../engine/index.js'
 import { ProblemError } from '../../../errors.js'
 import { firstPeriodLabel } from '../../../history/buckets.js'
 import { lastPeriodOf } from '../../../history/period-range.js'
+import { skuQuotaReason } from '../../../history/quota.js'
+import { DEFAULT_QUOTA_SKUS_PER_TENANT } from '../../../config.js'
 import { normaliseTags } from '../../../history/tags.js'
 import { HistoryBody, HistoryResource } from '../../../schemas/history.js'
 import { SkuParams } from '../../../schemas/params.js'
@@ -32,7 +34,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       schema: {
         tags: ['histories'],
         operationId: 'putSkuHistory',
-        'x-problems': WRITE,
+        'x-problems': [...WRITE, 'limit-reached'],
         summary: "Replace a SKU's stored demand history",
         description:
           'Stores the whole history (demand and tags) of one SKU, replacing what was stored. 201 when the SKU ' +
@@ -56,6 +58,14 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       // Checked before writing: a history without a last label would be stored and then unreadable.
       const last = lastPeriodOf(firstOrdinal, demand.length, frequency)
       if ('reason' in last) throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'demand', message: last.reason }])
+      const quota = app.config.quotaSkusPerTenant ?? DEFAULT_QUOTA_SKUS_PER_TENANT
+      if ((await store.missing(request.tenant, [sku])).length === 1) {
+        const held = await store.count(request.tenant)
+        if (held >= quota) {
+          const why = skuQuotaReason(held, quota)
+          throw new ProblemError('limit-reached', `SKU ${sku} is new and ${why}`, [{ path: 'sku', message: why }], {}, { dependsOnState: true })
+        }
+      }
       const normalised = normaliseTags(tags ?? [])
       if ('reason' in normalised) {
         throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'tags', message: normalised.reason }])

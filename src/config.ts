@@ -72,6 +72,8 @@ export const ConfigSchema = z.object({
   CALLBACK_ALLOW_PRIVATE_NETWORKS: boolFromEnv(false),
   /** Closest two firings of one schedule may be, in seconds. */
   SCHEDULE_MIN_INTERVAL_SECONDS: intFromEnv(300, 1, 86_400),
+  /** How long a feed batch id of a history upload is remembered, so a resent batch is not added twice. */
+  UPLOAD_BATCH_TTL_SECONDS: intFromEnv(35 * 24 * 3600, 60, 366 * 24 * 3600),
 })
 
 /** One seed node of a Redis Cluster. */
@@ -130,6 +132,8 @@ export interface Config {
   readonly callbackAllowPrivateNetworks?: boolean
   /** Closest two firings of a schedule may be; default 300 when absent. */
   readonly scheduleMinIntervalSeconds?: number
+  /** How long a history upload's feed batch id is remembered (default 35 days). */
+  readonly uploadBatchTtlSeconds?: number
 }
 
 export class ConfigError extends Error {
@@ -229,6 +233,7 @@ export function loadConfig(
     callbackTimeoutMs: e.CALLBACK_TIMEOUT_MS,
     callbackAllowPrivateNetworks: e.CALLBACK_ALLOW_PRIVATE_NETWORKS,
     scheduleMinIntervalSeconds: e.SCHEDULE_MIN_INTERVAL_SECONDS,
+    uploadBatchTtlSeconds: e.UPLOAD_BATCH_TTL_SECONDS,
   }
 }
 

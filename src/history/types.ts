@@ -2,8 +2,20 @@ import type { Frequency } from '../engine/index.js'
 
 /** Shared shapes of history parsing and ingest. Pure data. */
 
-export const UPLOAD_MODES = ['append', 'replace'] as const
+/**
+ * How an upload meets the stored history of a SKU:
+ *  - add: uploaded quantities are added to the stored periods (incremental transaction files);
+ *  - overwrite: each period sent replaces the stored one, other periods stay;
+ *  - replace: the upload is the SKU's whole history;
+ *  - replace-open-period: the upload is the whole of one open period for every stored SKU of
+ *    its frequency (a month-to-date file); SKUs left out of it get 0 in that period.
+ * Without a mode, dated transaction rows add and period rows or series overwrite (history/ingest.ts).
+ */
+export const UPLOAD_MODES = ['add', 'overwrite', 'replace', 'replace-open-period'] as const
 export type UploadMode = (typeof UPLOAD_MODES)[number]
+
+/** A feed batch id: 1-200 visible ASCII characters (a file name or the ERP's export id). */
+export const BATCH_ID_PATTERN = /^[\x21-\x7e]{1,200}$/
 
 export const DUPLICATE_POLICIES = ['sum', 'last'] as const
 export type DuplicatePolicy = (typeof DUPLICATE_POLICIES)[number]

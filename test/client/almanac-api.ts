@@ -208,7 +208,7 @@ export interface paths {
         put?: never;
         /**
          * Upload demand histories in bulk (JSON, NDJSON or CSV)
-         * @description Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`; application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand" }`; text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn, periodColumn, demandColumn; other columns ignored). CSV and NDJSON are read as a stream. A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label (2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU's first and last row without rows become 0. Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written atomically, and a SKU without good rows keeps its stored history. Idempotency-Key is honoured.
+         * @description Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`; application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand" }`; text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn, periodColumn, demandColumn; other columns ignored). CSV and NDJSON are read as a stream. A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label (2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU's first and last row without rows become 0. Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written atomically, and a SKU without good rows keeps its stored history. `mode`: add (default for dated rows: transactions are added to the stored periods), overwrite (default for period rows and series: each period sent replaces the stored one), replace (the whole history), or replace-open-period (a month-to-date file: the one open period of every stored SKU of the frequency). Resending is safe with Idempotency-Key (the same answer again) or `batch` (each SKU is written once per batch id while it is remembered).
          */
         post: operations["uploadHistories"];
         delete?: never;
@@ -821,10 +821,17 @@ export interface components {
             updatedAt: string;
         };
         UploadReport: {
-            /** @enum {string} */
-            mode: "append" | "replace";
+            /**
+             * @description The mode applied (the default resolved when none was named)
+             * @enum {string}
+             */
+            mode: "add" | "overwrite" | "replace" | "replace-open-period";
             /** @enum {string} */
             frequency: "day" | "week" | "month" | "quarter" | "year";
+            /** @description The feed batch id the upload was sent under */
+            batch?: string;
+            /** @description replace-open-period: the period replaced */
+            openPeriod?: string;
             rows: {
                 accepted: number;
                 rejected: number;
@@ -833,6 +840,10 @@ export interface components {
                 created: number;
                 updated: number;
                 rejected: number;
+                /** @description SKUs this batch id had already written: left as they were */
+                alreadyApplied: number;
+                /** @description replace-open-period: stored SKUs left out of the upload, set to 0 in the open period */
+                zeroed: number;
             };
             /** @description The first 1000 rejections */
             errors: {
@@ -2076,8 +2087,12 @@ export interface operations {
     uploadHistories: {
         parameters: {
             query?: {
-                /** @description append (default): new periods added, overlapping periods overwritten, others kept; replace: the upload is the whole history */
-                mode?: "append" | "replace";
+                /** @description add: quantities added to the stored periods (incremental transaction files); overwrite: each period sent replaces the stored one, others kept; replace: the upload is the whole history; replace-open-period: the upload is the whole of one open period (month to date) for every stored SKU of its frequency, SKUs left out get 0 there. Default: add for dated rows (transactions), overwrite for period rows and series */
+                mode?: "add" | "overwrite" | "replace" | "replace-open-period";
+                /** @description The feed's batch id (e.g. its file name): each SKU is written once per batch id while it is remembered (UPLOAD_BATCH_TTL_SECONDS, default 35 days), so a resent file is not added twice */
+                batch?: string;
+                /** @description replace-open-period: the open period (e.g. 2026-12); default the one period every row falls in */
+                openPeriod?: string;
                 /** @description Bucket of stored histories; dated rows are summed into it (week = ISO week) */
                 frequency?: "day" | "week" | "month" | "quarter" | "year";
                 /** @description Several rows for one SKU and bucket: sum them (default) or keep the last */
@@ -2101,8 +2116,11 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": {
-                    /** @enum {string} */
-                    mode?: "append" | "replace";
+                    /**
+                     * @description add: quantities added to the stored periods (incremental transaction files); overwrite: each period sent replaces the stored one, others kept; replace: the upload is the whole history; replace-open-period: the upload is the whole of one open period (month to date) for every stored SKU of its frequency, SKUs left out get 0 there. Default: add for dated rows (transactions), overwrite for period rows and series
+                     * @enum {string}
+                     */
+                    mode?: "add" | "overwrite" | "replace" | "replace-open-period";
                     series: {
                         /** @description Stock-keeping unit code, unique within the tenant */
                         sku: string;

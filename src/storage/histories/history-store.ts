@@ -3,7 +3,7 @@ import type { RedisClient } from '../redis.js'
 import { decodeJson } from '../decode.js'
 import { FREQUENCIES, formatPeriod, parsePeriod, type Frequency } from '../../engine/index.js'
 import type { PendingHistory } from '../../history/accumulator.js'
-import type { HistoryWriter } from '../../history/ingest.js'
+import type { FeedBatch, HistoryWriter, WriteOutcome } from '../../history/ingest.js'
 import type { HistoryData } from '../../history/types.js'
 import { decodeCursor, encodeCursor } from '../paging.js'
 import { isValidTenant } from '../keys.js'
@@ -16,6 +16,7 @@ import type { RunScope } from '../../schemas/run.js'
  *   hist:{T}:meta      hash  sku -> JSON {f: frequency, s: firstPeriod, n: periodCount, t: tags, u: updatedAt, r: revision}
  *   hist:{T}:skus      zset  every SKU with a history, score 0 (ordered by ZRANGEBYLEX)
  *   hist:{T}:tag:<tag> zset  SKUs carrying the tag, score 0
+ *   hist:{T}:batch:<id> set  SKUs a feed batch has written (expires: a resent batch is not added twice)
  *
  * under `${prefix}:t:${tenant}:`. The tenant sits in a hash tag so one
  * SKU's write (a Lua script over data, meta, the index and tag sets) stays on
@@ -74,20 +75,31 @@ function decodeDemand(sku: string, raw: string): (number | null)[] {
 }
 
 /**
- * KEYS: data, meta, skus, then nNew new-tag sets, then nOld old-tag sets.
- * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld.
- * Returns 1 when written, 0 when the meta changed since it was read.
+ * KEYS: data, meta, skus, then nNew new-tag sets, then nOld old-tag sets, then the batch set when a batch is given.
+ * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld, batch TTL in seconds ('' without a batch).
+ * Returns 1 when written, 0 when the meta changed since it was read, 2 when the batch already wrote this SKU.
+ * The batch check and mark sit in the same script as the write, so a batch resent after a partial failure
+ * adds exactly the SKUs it had not written yet.
  */
 const PUT_HISTORY = `
+local nNew = tonumber(ARGV[5])
+local nOld = tonumber(ARGV[6])
+local batchKey = nil
+if ARGV[7] ~= '' then
+  batchKey = KEYS[3 + nNew + nOld + 1]
+  if redis.call('SISMEMBER', batchKey, ARGV[1]) == 1 then return 2 end
+end
 local cur = redis.call('HGET', KEYS[2], ARGV[1])
 if (cur or '') ~= ARGV[2] then return 0 end
 redis.call('HSET', KEYS[1], ARGV[1], ARGV[4])
 redis.call('HSET', KEYS[2], ARGV[1], ARGV[3])
 redis.call('ZADD', KEYS[3], 0, ARGV[1])
-local nNew = tonumber(ARGV[5])
-local nOld = tonumber(ARGV[6])
 for i = 1, nOld do redis.call('ZREM', KEYS[3 + nNew + i], ARGV[1]) end
 for i = 1, nNew do redis.call('ZADD', KEYS[3 + i], 0, ARGV[1]) end
+if batchKey then
+  redis.call('SADD', batchKey, ARGV[1])
+  redis.call('EXPIRE', batchKey, tonumber(ARGV[7]))
+end
 return 1
 `
 const PUT_COMMAND = 'almanacPutHistory'
@@ -109,7 +121,13 @@ export class HistoryStore implements HistoryWriter {
 
   private keys(tenant: string) {
     const base = this.base(tenant)
-    return { data: `${base}:data`, meta: `${base}:meta`, skus: `${base}:skus`, tag: (t: string) => `${base}:tag:${t}` }
+    return {
+      data: `${base}:data`,
+      meta: `${base}:meta`,
+      skus: `${base}:skus`,
+      tag: (t: string) => `${base}:tag:${t}`,
+      batch: (id: string) => `${base}:batch:${id}`,
+    }
   }
 
   async get(tenant: string, sku: string): Promise<StoredHistory | null> {
@@ -142,7 +160,7 @@ export class HistoryStore implements HistoryWriter {
   async put(tenant: string, sku: string, data: HistoryData): Promise<{ outcome: 'created' | 'updated'; history: StoredHistory }> {
     const pending = { sku, incoming: { frequency: data.frequency, startOrdinal: 0, demand: [] }, rows: 0, origin: {} }
     const [r] = await this.apply(tenant, [pending], () => ({ data }), { readValues: false })
-    if (!r || 'reason' in r) throw new Error(r ? r.reason : 'history not written')
+    if (!r || 'reason' in r || r.outcome === 'already-applied') throw new Error(r && 'reason' in r ? r.reason : 'history not written')
     return { outcome: r.outcome, history: (await this.get(tenant, sku))! }
   }
 
@@ -150,12 +168,15 @@ export class HistoryStore implements HistoryWriter {
     tenant: string,
     batch: readonly PendingHistory[],
     merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
-    opts: { readonly readValues?: boolean } = {},
-  ): Promise<({ outcome: 'created' | 'updated' } | { reason: string })[]> {
+    opts: { readonly readValues?: boolean; readonly feedBatch?: FeedBatch } = {},
+  ): Promise<WriteOutcome[]> {
     const k = this.keys(tenant)
+    const feed = opts.feedBatch
+    const batchKeys = feed === undefined ? [] : [k.batch(feed.id)]
+    const batchTtl = feed === undefined ? '' : String(Math.max(1, Math.floor(feed.ttlSeconds)))
     // A merge that replaces values needs only the metadata (tags, revision): skip reading the values.
     const readValues = opts.readValues ?? true
-    const results: ({ outcome: 'created' | 'updated' } | { reason: string })[] = new Array(batch.length)
+    const results: WriteOutcome[] = new Array(batch.length)
     let todo = batch.map((_, i) => i)
     for (let attempt = 0; attempt < MAX_ATTEMPTS && todo.length > 0; attempt++) {
       if (attempt > 0) await new Promise((r) => setTimeout(r, Math.random() * 5 * attempt))
@@ -180,8 +201,8 @@ export class HistoryStore implements HistoryWriter {
         const d = merged.data
         const meta: Meta = { f: d.frequency, s: d.firstPeriod, n: d.demand.length, t: d.tags, u: updatedAt, r: (oldMeta?.r ?? 0) + 1 }
         const oldTags = oldMeta?.t ?? []
-        const keys = [k.data, k.meta, k.skus, ...d.tags.map(k.tag), ...oldTags.map(k.tag)]
-        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length]
+        const keys = [k.data, k.meta, k.skus, ...d.tags.map(k.tag), ...oldTags.map(k.tag), ...batchKeys]
+        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length, batchTtl]
         ;(pipe as unknown as Record<string, (...a: unknown[]) => unknown>)[PUT_COMMAND]!(keys.length, ...keys, ...args)
         results[i] = { outcome: rawMeta === null ? 'created' : 'updated' }
         sent.push(i)
@@ -190,7 +211,8 @@ export class HistoryStore implements HistoryWriter {
       todo = []
       replies.forEach(([err, written], j) => {
         if (err) throw err
-        if (written !== 1) todo.push(sent[j]!)
+        if (written === 2) results[sent[j]!] = { outcome: 'already-applied' }
+        else if (written !== 1) todo.push(sent[j]!)
       })
     }
     for (const i of todo) results[i] = { reason: 'the history changed concurrently several times; retry the upload' }

@@ -11,11 +11,11 @@ export {
   computeReplenishment,
   replenishmentFor,
   checkReplenishmentOptions,
-  oneStepRms,
   SERVICE_LEVEL_MIN,
   SERVICE_LEVEL_MAX,
   REPLENISHMENT_FORMULA,
   type ReplenishmentOptions,
   type ReplenishmentFigures,
+  type ReplenishmentPeriod,
 } from './replenishment.js'
 export { summariseAccuracy, TRACKING_SIGNAL_LIMIT, type ScoredPeriod, type AccuracySummary, type TrackingOptions } from './tracking.js'

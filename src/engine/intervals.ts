@@ -79,6 +79,8 @@ export interface IntervalBounds {
   readonly lower: Record<string, number[]>
   readonly upper: Record<string, number[]>
   readonly clamped: boolean
+  /** The forecast error's standard deviation per step 1..h (0 for method 'none'). */
+  readonly sd: readonly number[]
 }
 
 export interface IntervalInput {
@@ -131,5 +133,5 @@ export function buildIntervals(input: IntervalInput): IntervalBounds {
       return Number.isFinite(hi) ? hi : p
     })
   }
-  return { method, lower, upper, clamped }
+  return { method, lower, upper, clamped, sd }
 }

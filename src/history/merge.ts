@@ -15,7 +15,7 @@ import type { HistoryData, IncomingHistory, UploadMode } from './types.js'
  *
  * In every mode but replace, periods between the two ranges become 0 and the
  * frequencies must match.
- * Tags: incoming tags replace the stored ones; absent, the stored tags stay.
+ * Tags and the stock policy (replenishment): incoming ones replace the stored ones; absent, the stored ones stay.
  * @returns the merged history, or why the SKU is refused (the stored history then stays as it was)
  */
 export function mergeHistory(
@@ -24,17 +24,17 @@ export function mergeHistory(
   mode: UploadMode,
 ): { data: HistoryData } | { reason: string } {
   const tags = incoming.tags ?? current?.tags ?? []
+  const policy = incoming.replenishment ?? current?.replenishment
+  const withPolicy = (data: HistoryData): { data: HistoryData } => ({ data: policy === undefined ? data : { ...data, replenishment: policy } })
   try {
     if (mode === 'replace' || current === null) {
       if (incoming.demand.length > MAX_POINTS_PER_SERIES) return tooLong(incoming.demand.length)
-      return {
-        data: {
-          frequency: incoming.frequency,
-          firstPeriod: formatPeriod(incoming.startOrdinal, incoming.frequency),
-          demand: incoming.demand,
-          tags,
-        },
-      }
+      return withPolicy({
+        frequency: incoming.frequency,
+        firstPeriod: formatPeriod(incoming.startOrdinal, incoming.frequency),
+        demand: incoming.demand,
+        tags,
+      })
     }
     if (current.frequency !== incoming.frequency) {
       return {
@@ -61,7 +61,7 @@ export function mergeHistory(
       }
       demand[at] = next
     }
-    return { data: { frequency, firstPeriod: formatPeriod(lo, frequency), demand, tags } }
+    return withPolicy({ frequency, firstPeriod: formatPeriod(lo, frequency), demand, tags })
   } catch (err) {
     return { reason: (err as Error).message }
   }

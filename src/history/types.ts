@@ -1,4 +1,5 @@
 import type { Frequency } from '../engine/index.js'
+import type { StockPolicy } from '../schemas/run.js'
 
 /** Shared shapes of history parsing and ingest. Pure data. */
 
@@ -50,6 +51,8 @@ export interface IncomingHistory {
   readonly startOrdinal: number
   readonly demand: readonly (number | null)[]
   readonly tags?: readonly string[]
+  /** The SKU's stock policy; absent: the stored one is kept. */
+  readonly replenishment?: StockPolicy
 }
 
 /** A history as stored for one SKU. */
@@ -59,6 +62,8 @@ export interface HistoryData {
   readonly firstPeriod: string
   readonly demand: readonly (number | null)[]
   readonly tags: readonly string[]
+  /** The SKU's stock policy (replenishment parameters), when one was given. */
+  readonly replenishment?: StockPolicy
 }
 
 /** Where a row or series came from, for error reports. */

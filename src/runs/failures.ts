@@ -15,5 +15,11 @@ export function runFailure(code: RunFailureCode, message: string): Failure {
 /** Replenishment figures were asked for but do not fit the series (the forecast stands without them). */
 export const REPLENISHMENT_SKIPPED = 'replenishment-skipped'
 
+/** A run-level duration in periods was converted to the periods of a SKU of another frequency. */
+export const PERIOD_SETTING_CONVERTED = 'period-setting-converted'
+
+/** A run-level setting counted in periods of the run's frequency was not applied to a SKU of another frequency. */
+export const PERIOD_SETTING_NOT_APPLIED = 'period-setting-not-applied'
+
 /** Warning codes the service adds to result items beside the engine's own (docs/warnings.md). */
-export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED] as const
+export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED, PERIOD_SETTING_CONVERTED, PERIOD_SETTING_NOT_APPLIED] as const

@@ -1,7 +1,7 @@
 import { z } from 'zod'
 import { FREQUENCIES } from '../engine/index.js'
 import { BATCH_ID_PATTERN, DUPLICATE_POLICIES, MAX_TAGS, TAG_PATTERN, UPLOAD_MODES } from '../history/types.js'
-import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel } from './run.js'
+import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, StockPolicy } from './run.js'
 import { PageQuery, pageSchema } from './params.js'
 
 /** Request and response shapes of the stored-history routes. */
@@ -20,6 +20,7 @@ export const HistoryBody = z.strictObject({
     .max(MAX_POINTS_PER_SERIES)
     .describe('Demand per period, oldest first; null marks a missing period'),
   tags: z.array(Tag).max(MAX_TAGS).optional().describe('Replaces the stored tags; absent means no tags'),
+  replenishment: StockPolicy.optional().describe("The SKU's stock policy, used by runs that ask for replenishment; absent means none"),
 })
 
 export const HistoryResource = z
@@ -31,6 +32,7 @@ export const HistoryResource = z
     periodCount: z.number().int().min(1),
     demand: z.array(z.number().nullable()),
     tags: z.array(z.string()),
+    replenishment: StockPolicy.optional(),
     updatedAt: z.string().describe('ISO-8601'),
   })
   .meta({ id: 'History' })

@@ -405,6 +405,26 @@ export interface paths {
 export type webhooks = Record<string, never>;
 export interface components {
     schemas: {
+        StockPolicyInput: {
+            /** @description Lead time in calendar days */
+            leadTimeDays?: number;
+            /** @description Lead time in periods (may be fractional) */
+            leadTimePeriods?: number;
+            /** @description Standard deviation of the lead time in days (default 0: a fixed lead time) */
+            leadTimeSdDays?: number;
+            /** @description Standard deviation of the lead time in periods */
+            leadTimeSdPeriods?: number;
+            /** @description Review period in days (default 0: continuous review) */
+            reviewDays?: number;
+            /** @description Review period in periods */
+            reviewPeriods?: number;
+            /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
+            serviceLevel?: number;
+            /** @description Smallest order in units (default 0) */
+            minimumOrder?: number;
+            /** @description Units per pack; orders are whole packs (default 1) */
+            packSize?: number;
+        };
         ScopeInput: {
             /** @description These SKUs; a SKU without a stored history is a 400 listing it (for schedules: when the schedule is created) */
             skus?: string[];
@@ -460,13 +480,8 @@ export interface components {
             allowNegativeDemand: boolean;
             /** @default false */
             keepLeadingZeros: boolean;
-            /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-            replenishment?: {
-                /** @description Lead time in periods (1..horizon) */
-                leadTimePeriods: number;
-                /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                serviceLevel: number;
-            };
+            /** @description Ask for lead-time demand, safety stock, reorder point and order quantity per SKU (estimates to review). These are defaults: each SKU's own policy (stored with its history or given with the series) wins field by field */
+            replenishment?: components["schemas"]["StockPolicyInput"];
             /**
              * Format: uri
              * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
@@ -486,6 +501,8 @@ export interface components {
                 frequency?: "day" | "week" | "month" | "quarter" | "year";
                 /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
                 seasonLength?: number;
+                /** @description This SKU's stock policy; wins over the run's replenishment field by field */
+                replenishment?: components["schemas"]["StockPolicyInput"];
             }[];
         };
         Problem: {
@@ -501,6 +518,26 @@ export interface components {
                 message: string;
             }[];
         };
+        StockPolicy: {
+            /** @description Lead time in calendar days */
+            leadTimeDays?: number;
+            /** @description Lead time in periods (may be fractional) */
+            leadTimePeriods?: number;
+            /** @description Standard deviation of the lead time in days (default 0: a fixed lead time) */
+            leadTimeSdDays?: number;
+            /** @description Standard deviation of the lead time in periods */
+            leadTimeSdPeriods?: number;
+            /** @description Review period in days (default 0: continuous review) */
+            reviewDays?: number;
+            /** @description Review period in periods */
+            reviewPeriods?: number;
+            /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
+            serviceLevel?: number;
+            /** @description Smallest order in units (default 0) */
+            minimumOrder?: number;
+            /** @description Units per pack; orders are whole packs (default 1) */
+            packSize?: number;
+        };
         Scope: {
             /** @description These SKUs; a SKU without a stored history is a 400 listing it (for schedules: when the schedule is created) */
             skus?: string[];
@@ -512,24 +549,45 @@ export interface components {
              */
             all?: true;
         };
-        /** @description Textbook estimate (independent one-step errors, fixed lead time): review before ordering. Errors of smoothing models are correlated across steps, so sigma_L is often understated for trending series. */
+        /** @description Estimate from the forecast's own error variances and the lead-time variability formula (Silver, Pyke & Peterson 1998): review before ordering. Step errors are treated as uncorrelated, so sigma is, if anything, understated. */
         Replenishment: {
-            /** @description Lead time L in periods */
+            /** @description Lead time L in this SKU's periods (days converted by the calendar rule) */
             leadTimePeriods: number;
+            /** @description Review period R in periods (0: continuous review) */
+            reviewPeriods: number;
+            /** @description Standard deviation of the lead time in periods */
+            leadTimeSdPeriods: number;
             /** @description Target cycle service level */
             serviceLevel: number;
-            /** @description Sum of the point forecasts for periods 1..L */
+            /** @description Smallest order in units */
+            minimumOrder: number;
+            /** @description Units per pack */
+            packSize: number;
+            /** @description Forecast demand over the lead time */
             leadTimeDemand: number;
-            /** @description sigma_L = sigma_1 * sqrt(L), sigma_1 the RMS of one-step in-sample errors; null when unknown */
+            /** @description Forecast demand over the protection interval L + R */
+            coverDemand: number;
+            /** @description sqrt(sum of the forecast's step variances over L + R + (coverDemand / (L + R))^2 * leadTimeSdPeriods^2); null when unknown */
             sigma: number | null;
             /** @description Standard normal quantile at serviceLevel */
             z: number;
-            /** @description z * sigma_L */
+            /** @description z * sigma, rounded up to whole units */
             safetyStock: number | null;
-            /** @description leadTimeDemand + safetyStock */
+            /** @description coverDemand + z * sigma, rounded up: the reorder point (R = 0) or order-up-to level (R > 0) */
             reorderPoint: number | null;
+            /** @description Demand over max(R, 1) periods, raised to minimumOrder, rounded up to whole packs */
+            orderQuantity: number;
             /** @constant */
-            formula: "sigma1-sqrt-lead-time";
+            formula: "summed-step-variance";
+            /** @description The same figures for an order placed at the start of each forecast period, as far as the horizon reaches */
+            periods: {
+                /** @description An order placed at the start of this period: its protection interval starts here */
+                period: string;
+                coverDemand: number;
+                sigma: number | null;
+                safetyStock: number | null;
+                reorderPoint: number | null;
+            }[];
         };
         ForecastItem: {
             sku: string;
@@ -690,13 +748,8 @@ export interface components {
                 allowNegativeDemand: boolean;
                 /** @default false */
                 keepLeadingZeros: boolean;
-                /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-                replenishment?: {
-                    /** @description Lead time in periods (1..horizon) */
-                    leadTimePeriods: number;
-                    /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                    serviceLevel: number;
-                };
+                /** @description Ask for lead-time demand, safety stock, reorder point and order quantity per SKU (estimates to review). These are defaults: each SKU's own policy (stored with its history or given with the series) wins field by field */
+                replenishment?: components["schemas"]["StockPolicy"];
                 /**
                  * Format: uri
                  * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
@@ -817,6 +870,7 @@ export interface components {
             periodCount: number;
             demand: (number | null)[];
             tags: string[];
+            replenishment?: components["schemas"]["StockPolicy"];
             /** @description ISO-8601 */
             updatedAt: string;
         };
@@ -960,13 +1014,8 @@ export interface components {
             allowNegativeDemand: boolean;
             /** @default false */
             keepLeadingZeros: boolean;
-            /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-            replenishment?: {
-                /** @description Lead time in periods (1..horizon) */
-                leadTimePeriods: number;
-                /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                serviceLevel: number;
-            };
+            /** @description Ask for lead-time demand, safety stock, reorder point and order quantity per SKU (estimates to review). These are defaults: each SKU's own policy (stored with its history or given with the series) wins field by field */
+            replenishment?: components["schemas"]["StockPolicy"];
             /**
              * Format: uri
              * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
@@ -1248,13 +1297,7 @@ export interface operations {
                     allowNegativeDemand?: boolean;
                     /** @default false */
                     keepLeadingZeros?: boolean;
-                    /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-                    replenishment?: {
-                        /** @description Lead time in periods (1..horizon) */
-                        leadTimePeriods: number;
-                        /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                        serviceLevel: number;
-                    };
+                    replenishment?: components["schemas"]["StockPolicyInput"];
                     /**
                      * Format: uri
                      * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
@@ -1275,6 +1318,7 @@ export interface operations {
                         frequency?: "day" | "week" | "month" | "quarter" | "year";
                         /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
                         seasonLength?: number;
+                        replenishment?: components["schemas"]["StockPolicyInput"];
                     }[];
                     scope?: components["schemas"]["ScopeInput"];
                 };
@@ -1896,6 +1940,7 @@ export interface operations {
                     demand: (number | null)[];
                     /** @description Replaces the stored tags; absent means no tags */
                     tags?: string[];
+                    replenishment?: components["schemas"]["StockPolicyInput"];
                 };
             };
         };
@@ -2130,6 +2175,26 @@ export interface operations {
                         firstPeriod: string;
                         demand: (number | null)[];
                         tags?: string[];
+                        replenishment?: {
+                            /** @description Lead time in calendar days */
+                            leadTimeDays?: number;
+                            /** @description Lead time in periods (may be fractional) */
+                            leadTimePeriods?: number;
+                            /** @description Standard deviation of the lead time in days (default 0: a fixed lead time) */
+                            leadTimeSdDays?: number;
+                            /** @description Standard deviation of the lead time in periods */
+                            leadTimeSdPeriods?: number;
+                            /** @description Review period in days (default 0: continuous review) */
+                            reviewDays?: number;
+                            /** @description Review period in periods */
+                            reviewPeriods?: number;
+                            /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
+                            serviceLevel?: number;
+                            /** @description Smallest order in units (default 0) */
+                            minimumOrder?: number;
+                            /** @description Units per pack; orders are whole packs (default 1) */
+                            packSize?: number;
+                        };
                     }[];
                 };
                 "application/x-ndjson": string;
@@ -2934,13 +2999,7 @@ export interface operations {
                     allowNegativeDemand?: boolean;
                     /** @default false */
                     keepLeadingZeros?: boolean;
-                    /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-                    replenishment?: {
-                        /** @description Lead time in periods (1..horizon) */
-                        leadTimePeriods: number;
-                        /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                        serviceLevel: number;
-                    };
+                    replenishment?: components["schemas"]["StockPolicyInput"];
                     /**
                      * Format: uri
                      * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature

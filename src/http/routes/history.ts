@@ -42,17 +42,29 @@ export function limitBytes(source: Readable, max: number): Readable {
  * one bad series does not reject the rest) and streams the other two.
  */
 function uploadBodies(): Record<string, unknown> {
-  const { $schema: _drop, ...json } = z.toJSONSchema(z.strictObject({ mode: UploadMode.optional(), series: z.array(UploadSeries).min(1) }), {
+  const { $schema: _drop, $defs: defs, ...json } = z.toJSONSchema(z.strictObject({ mode: UploadMode.optional(), series: z.array(UploadSeries).min(1) }), {
     io: 'input',
   })
   const text = (description: string) => ({ schema: { type: 'string', description } })
   const ndjson = text('One JSON object per line: a series { sku, frequency?, firstPeriod, demand, tags? } or a row { sku, period, demand }')
   return {
-    'application/json': { schema: json },
+    'application/json': { schema: inlineDefs(json, defs ?? {}) },
     'application/x-ndjson': ndjson,
     'application/ndjson': ndjson,
     'text/csv': text('A header row, then one sku,period,demand row per line (column names set by the query)'),
   }
+}
+
+/**
+ * The schema with each `#/$defs/<id>` reference replaced by its definition: this
+ * body sits inside the OpenAPI document, where a local `$defs` does not resolve.
+ */
+function inlineDefs(node: unknown, defs: Record<string, unknown>): unknown {
+  if (Array.isArray(node)) return node.map((n) => inlineDefs(n, defs))
+  if (typeof node !== 'object' || node === null) return node
+  const ref = (node as { $ref?: unknown }).$ref
+  if (typeof ref === 'string' && ref.startsWith('#/$defs/')) return inlineDefs(defs[ref.slice('#/$defs/'.length)], defs)
+  return Object.fromEntries(Object.entries(node).map(([k, v]) => [k, inlineDefs(v, defs)]))
 }
 
 /** POST /v1/history: bulk upsert of stored histories from JSON, NDJSON or CSV. */

@@ -7,13 +7,13 @@ import type { FeedBatch, HistoryWriter, WriteOutcome } from '../../history/inges
 import type { HistoryData } from '../../history/types.js'
 import { decodeCursor, encodeCursor } from '../paging.js'
 import { isValidTenant } from '../keys.js'
-import type { RunScope } from '../../schemas/run.js'
+import { StockPolicy, type RunScope } from '../../schemas/run.js'
 
 /**
  * Stored demand histories per tenant, in Redis. Histories are master data: no TTL.
  *
  *   hist:{T}:data      hash  sku -> JSON array of demand per period (null = missing period)
- *   hist:{T}:meta      hash  sku -> JSON {f: frequency, s: firstPeriod, n: periodCount, t: tags, u: updatedAt, r: revision}
+ *   hist:{T}:meta      hash  sku -> JSON {f: frequency, s: firstPeriod, n: periodCount, t: tags, u: updatedAt, r: revision, p?: stock policy}
  *   hist:{T}:skus      zset  every SKU with a history, score 0 (ordered by ZRANGEBYLEX)
  *   hist:{T}:tag:<tag> zset  SKUs carrying the tag, score 0
  *   hist:{T}:batch:<id> set  SKUs a feed batch has written (expires: a resent batch is not added twice)
@@ -47,6 +47,7 @@ interface Meta {
   readonly t: readonly string[]
   readonly u: string
   readonly r: number
+  readonly p?: StockPolicy
 }
 
 /** A meta field as stored: frequency, first period, period count, tags, updated at, revision. */
@@ -57,6 +58,7 @@ const MetaRecord = z.object({
   t: z.array(z.string()),
   u: z.string(),
   r: z.number().int().min(0),
+  p: StockPolicy.optional(),
 })
 
 const decodeMeta = (sku: string, raw: string): Meta => decodeJson(MetaRecord, raw, `history meta of SKU ${sku}`)
@@ -199,7 +201,15 @@ export class HistoryStore implements HistoryWriter {
         }
         const oldMeta = rawMeta === null ? null : decodeMeta(p.sku, rawMeta)
         const d = merged.data
-        const meta: Meta = { f: d.frequency, s: d.firstPeriod, n: d.demand.length, t: d.tags, u: updatedAt, r: (oldMeta?.r ?? 0) + 1 }
+        const meta: Meta = {
+          f: d.frequency,
+          s: d.firstPeriod,
+          n: d.demand.length,
+          t: d.tags,
+          u: updatedAt,
+          r: (oldMeta?.r ?? 0) + 1,
+          ...(d.replenishment === undefined ? {} : { p: d.replenishment }),
+        }
         const oldTags = oldMeta?.t ?? []
         const keys = [k.data, k.meta, k.skus, ...d.tags.map(k.tag), ...oldTags.map(k.tag), ...batchKeys]
         const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length, batchTtl]
@@ -295,7 +305,15 @@ export class HistoryStore implements HistoryWriter {
 function decode(sku: string, rawMeta: string | null, rawData: string | null): StoredHistory | null {
   if (rawMeta === null || rawData === null) return null
   const meta = decodeMeta(sku, rawMeta)
-  return { sku, frequency: meta.f, firstPeriod: meta.s, demand: decodeDemand(sku, rawData), tags: meta.t, updatedAt: meta.u }
+  return {
+    sku,
+    frequency: meta.f,
+    firstPeriod: meta.s,
+    demand: decodeDemand(sku, rawData),
+    tags: meta.t,
+    updatedAt: meta.u,
+    ...(meta.p === undefined ? {} : { replenishment: meta.p }),
+  }
 }
 
 function summary(sku: string, meta: Meta): HistorySummary {

@@ -44,7 +44,13 @@ export async function createRunFromHistories(
   }
   for await (const batch of histories.select(tenant, scope, chunkSize)) {
     for (const h of batch) {
-      chunk.push({ sku: h.sku, firstPeriod: h.firstPeriod, demand: [...h.demand], frequency: h.frequency })
+      chunk.push({
+        sku: h.sku,
+        firstPeriod: h.firstPeriod,
+        demand: [...h.demand],
+        frequency: h.frequency,
+        ...(h.replenishment === undefined ? {} : { replenishment: h.replenishment }),
+      })
       if (chunk.length >= chunkSize) await flush()
     }
   }

@@ -19,6 +19,7 @@ export function toHistoryResource(h: StoredHistory) {
     periodCount: h.demand.length,
     demand: [...h.demand],
     tags: [...h.tags],
+    ...(h.replenishment === undefined ? {} : { replenishment: h.replenishment }),
     updatedAt: h.updatedAt,
   }
 }
@@ -44,7 +45,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     async (request, reply) => {
       const store = requireHistories(app)
       const { sku } = request.params
-      const { frequency, demand, tags } = request.body
+      const { frequency, demand, tags, replenishment } = request.body
       const firstPeriod = firstPeriodLabel(request.body.firstPeriod, frequency)
       try {
         parsePeriod(firstPeriod, frequency)
@@ -55,7 +56,13 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       if ('reason' in normalised) {
         throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'tags', message: normalised.reason }])
       }
-      const { outcome, history } = await store.put(request.tenant, sku, { frequency, firstPeriod, demand, tags: normalised.tags })
+      const { outcome, history } = await store.put(request.tenant, sku, {
+        frequency,
+        firstPeriod,
+        demand,
+        tags: normalised.tags,
+        ...(replenishment === undefined ? {} : { replenishment }),
+      })
       request.log.info({ sku, periodCount: demand.length, outcome }, 'history stored')
       if (outcome === 'created') reply.code(201).header('location', `/v1/skus/${encodeURIComponent(sku)}/history`)
       return toHistoryResource(history)

@@ -1,5 +1,17 @@
 import type { Frequency } from '../engine/index.js'
-import type { StockPolicy } from '../schemas/run.js'
+
+/** A SKU's stock policy as stored with its history (validated by the StockPolicy schema in schemas/run.ts). */
+export interface StockPolicy {
+  readonly leadTimeDays?: number
+  readonly leadTimePeriods?: number
+  readonly leadTimeSdDays?: number
+  readonly leadTimeSdPeriods?: number
+  readonly reviewDays?: number
+  readonly reviewPeriods?: number
+  readonly serviceLevel?: number
+  readonly minimumOrder?: number
+  readonly packSize?: number
+}
 
 /** Shared shapes of history parsing and ingest. Pure data. */
 

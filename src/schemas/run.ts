@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { DEFAULT_SEASON_LENGTH, FREQUENCIES, METRIC_NAMES, MODEL_NAMES, SERVICE_LEVEL_MAX, SERVICE_LEVEL_MIN } from '../engine/index.js'
-import { TAG_PATTERN } from '../history/types.js'
+import { TAG_PATTERN, type StockPolicy as StoredStockPolicy } from '../history/types.js'
 
 /**
  * The request contract shared by `POST /v1/forecast`, `POST /v1/runs` and the
@@ -100,6 +100,10 @@ export const StockPolicy = z
   })
   .meta({ id: 'StockPolicy' })
 export type StockPolicy = z.infer<typeof StockPolicy>
+
+/** Compile-time check: the stored policy's interface (history/types.ts) has exactly the schema's fields. */
+const samePolicyFields: [keyof StockPolicy] extends [keyof StoredStockPolicy] ? ([keyof StoredStockPolicy] extends [keyof StockPolicy] ? true : false) : false = true
+void samePolicyFields
 
 export const ReplenishmentSettings = StockPolicy.describe(
   'Ask for lead-time demand, safety stock, reorder point and order quantity per SKU (estimates to review). ' +

@@ -171,7 +171,11 @@ export interface paths {
          */
         put: operations["putSkuHistory"];
         post?: never;
-        delete?: never;
+        /**
+         * Delete a SKU's stored history and its records
+         * @description Deletes the SKU's history and stock policy, its tags, its latest forecast and its accuracy records. Results of earlier runs stay under their run until they expire. 204 when deleted, 404 when the SKU had no history.
+         */
+        delete: operations["deleteSkuHistory"];
         options?: never;
         head?: never;
         patch?: never;
@@ -1979,6 +1983,105 @@ export interface operations {
                 headers: {
                     /** @description Bearer */
                     "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    deleteSkuHistory: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description Deleted */
+            204: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content?: never;
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
                     [name: string]: unknown;
                 };
                 content: {

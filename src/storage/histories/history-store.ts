@@ -105,6 +105,20 @@ end
 return 1
 `
 const PUT_COMMAND = 'almanacPutHistory'
+
+/**
+ * KEYS: data, meta, skus, then the SKU's tag sets. ARGV: sku, expected meta.
+ * Returns 1 when deleted, 0 when the meta changed since it was read.
+ */
+const DELETE_HISTORY = `
+if (redis.call('HGET', KEYS[2], ARGV[1]) or '') ~= ARGV[2] then return 0 end
+redis.call('HDEL', KEYS[1], ARGV[1])
+redis.call('HDEL', KEYS[2], ARGV[1])
+redis.call('ZREM', KEYS[3], ARGV[1])
+for i = 4, #KEYS do redis.call('ZREM', KEYS[i], ARGV[1]) end
+return 1
+`
+const DELETE_COMMAND = 'almanacDeleteHistory'
 /** Rounds of read-merge-write per SKU before a SKU is reported as contended (with a short random pause between). */
 const MAX_ATTEMPTS = 10
 
@@ -114,6 +128,7 @@ export class HistoryStore implements HistoryWriter {
     private readonly opts: { readonly prefix: string; readonly now?: () => Date },
   ) {
     if (!(PUT_COMMAND in redis)) redis.defineCommand(PUT_COMMAND, { lua: PUT_HISTORY })
+    if (!(DELETE_COMMAND in redis)) redis.defineCommand(DELETE_COMMAND, { lua: DELETE_HISTORY })
   }
 
   private base(tenant: string): string {
@@ -156,6 +171,23 @@ export class HistoryStore implements HistoryWriter {
       })
     }
     return out
+  }
+
+  /**
+   * Delete one SKU's history, its place in the SKU index and its tag sets, atomically
+   * (retried if the SKU is written meanwhile).
+   * @returns false when the SKU had no history
+   */
+  async delete(tenant: string, sku: string): Promise<boolean> {
+    const k = this.keys(tenant)
+    for (let attempt = 0; attempt < MAX_ATTEMPTS; attempt++) {
+      const raw = await this.redis.hget(k.meta, sku)
+      if (raw === null) return false
+      const keys = [k.data, k.meta, k.skus, ...decodeMeta(sku, raw).t.map(k.tag)]
+      const run = (this.redis as unknown as Record<string, (...a: unknown[]) => Promise<unknown>>)[DELETE_COMMAND]!
+      if ((await run.call(this.redis, keys.length, ...keys, sku, raw)) === 1) return true
+    }
+    throw new Error(`the history of SKU ${sku} changed concurrently several times; retry the delete`)
   }
 
   /** Replace one SKU's history; says whether it was created. */

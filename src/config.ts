@@ -93,6 +93,8 @@ export const ConfigSchema = z.object({
   SCHEDULE_MIN_INTERVAL_SECONDS: intFromEnv(300, 1, 86_400),
   /** Published forecasts kept per SKU, newest first, for accuracy at a fixed lag (docs/feeds.md). */
   PUBLISHED_FORECASTS_KEPT: intFromEnv(12, 1, 120),
+  /** How long a feed batch id of a history upload is remembered, so a resent batch is not added twice. */
+  UPLOAD_BATCH_TTL_SECONDS: intFromEnv(35 * 24 * 3600, 60, 366 * 24 * 3600),
 })
 
 /** One seed node of a Redis Cluster. */
@@ -176,6 +178,8 @@ export interface Config {
   readonly scheduleMinIntervalSeconds?: number
   /** Published forecasts kept per SKU for accuracy at a fixed lag; default 12 when absent. */
   readonly publishedForecastsKept?: number
+  /** How long a history upload's feed batch id is remembered (default 35 days). */
+  readonly uploadBatchTtlSeconds?: number
 }
 
 export class ConfigError extends Error {
@@ -300,6 +304,7 @@ export function loadConfig(
     callbackAllowPrivateNetworks: e.CALLBACK_ALLOW_PRIVATE_NETWORKS,
     scheduleMinIntervalSeconds: e.SCHEDULE_MIN_INTERVAL_SECONDS,
     publishedForecastsKept: e.PUBLISHED_FORECASTS_KEPT,
+    uploadBatchTtlSeconds: e.UPLOAD_BATCH_TTL_SECONDS,
   }
 }
 

@@ -11,12 +11,12 @@ export {
   computeReplenishment,
   replenishmentFor,
   checkReplenishmentOptions,
-  oneStepRms,
   SERVICE_LEVEL_MIN,
   SERVICE_LEVEL_MAX,
   REPLENISHMENT_FORMULA,
   type ReplenishmentOptions,
   type ReplenishmentFigures,
+  type ReplenishmentPeriod,
 } from './replenishment.js'
 export {
   summariseAccuracy,

@@ -123,6 +123,8 @@ export interface IntervalBounds {
   /** quantiles[String(tau)][h] for each requested quantile. */
   readonly quantiles: Record<string, number[]>
   readonly clamped: boolean
+  /** The forecast error's standard deviation per step 1..h (0 for method 'none'), widened as calibration widened the 95% band. */
+  readonly sd: readonly number[]
 }
 
 export interface IntervalInput {
@@ -254,5 +256,8 @@ export function buildIntervals(input: IntervalInput): IntervalBounds {
   }
   const quantiles: Record<string, number[]> = {}
   for (const tau of input.quantiles ?? []) quantiles[String(tau)] = value(Math.abs(2 * tau - 1), tau < 0.5 ? -1 : 1)
-  return { method, lower, upper, quantiles, clamped }
+  // The spread replenishment sizes safety stock with: the model's own, widened as the calibration
+  // widened the 95% interval (so a safety stock at 95% agrees with the calibrated band).
+  const widen = scores ? multiplier(0.95, input.degreesOfFreedom, scores) / normalQuantile(0.975) : 1
+  return { method, lower, upper, quantiles, clamped, sd: sd.map((s) => s * widen) }
 }

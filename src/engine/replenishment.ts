@@ -1,139 +1,217 @@
 /**
- * Replenishment figures from a forecast: lead-time demand, safety stock and
- * reorder point for a target cycle service level. Pure.
+ * Replenishment figures from a forecast: demand over the protection interval,
+ * safety stock, reorder point (order-up-to level under periodic review) and an
+ * order quantity rounded to packs. Pure.
  *
- *   leadTimeDemand D_L = sum of the point forecasts for steps 1..L
- *   sigma_L           = sigma_1 · sqrt(L)
- *   z                 = standard normal quantile at the service level
- *   safetyStock       = z · sigma_L
- *   reorderPoint      = D_L + safetyStock
+ * Symbols (periods of the forecast's frequency; L and R may be fractional):
+ *   L  leadTimePeriods, R reviewPeriods (0: continuous review), c = L + R the protection interval
+ *   w_h weight of step h in the interval: 1 for whole steps, the fraction for the last part-step
+ *       (demand is taken as spread evenly within a period: common practice)
+ *   D_c = sum_h w_h · yhat_h                (coverDemand; leadTimeDemand is the same over L)
+ *   V_c = sum_h w_h · sd_h^2                (the forecast's own h-step error variances, summed)
+ *   d   = D_c / c                           (mean demand per period over the interval)
+ *   sigma = sqrt(V_c + d^2 · sigma_LT^2)     (sigma_LT: lead-time standard deviation in periods)
+ *   safetyStock = ceil(z · sigma), reorderPoint = ceil(D_c + z · sigma), z = Phi^-1(serviceLevel)
  *
- * sigma_1 is the root mean square of the model's in-sample one-step forecast
- * errors (the same spread the engine's empirical intervals start from). The
- * sqrt(L) rule is the classic textbook approximation (Silver, Pyke & Peterson,
- * "Inventory Management and Production Planning and Scheduling", 3rd ed.,
- * ch. 7; cited from memory): it assumes independent one-step errors and a fixed
- * lead time. Errors of smoothing models are correlated across steps (a level
- * error persists), so for trending or slowly adapting series sigma_L tends to
- * be understated; for an over-fitted model sigma_1 itself is optimistic. The
- * figures are estimates for a planner to review, never an order instruction.
+ * sigma is the standard formula for demand over a variable lead time,
+ * sigma = sqrt(E[L] · sigma_d^2 + d^2 · sigma_L^2) (Silver, Pyke & Peterson,
+ * "Inventory Management and Production Planning and Scheduling", 3rd ed. 1998,
+ * section 7.12; cited from memory), with E[L] · sigma_d^2 replaced by the
+ * forecast's own error variances over the interval; under periodic review the
+ * protection interval is R + L (same book, the (R, S) system). Summing the
+ * step variances treats the step errors as uncorrelated; for smoothing models
+ * they are positively correlated, so sigma is, if anything, understated.
+ * Rounding: safety stock and reorder point up to whole units (rounded once, at
+ * the end); the order quantity (demand over max(R, 1) periods) raised to the
+ * minimum order, then up to a whole number of packs. The figures are estimates
+ * for a planner to review, never an order instruction.
+ *
+ * `periods`: the same figures for an order placed at the start of each forecast
+ * period t (interval t .. t + c - 1), as far as the horizon reaches, so seasonal
+ * items show their peaks. Later rows use the larger variances of steps further
+ * out: they are what is known today and narrow when the forecast is remade.
  */
 import { EngineInputError } from './errors.js'
 import { normalQuantile } from './intervals.js'
-import { sum } from './numeric.js'
 import type { IntervalMethod } from './types.js'
 
 /** Service levels accepted: (0.5, 0.9999). At 0.5 z is 0 and safety stock vanishes. */
 export const SERVICE_LEVEL_MIN = 0.5
 export const SERVICE_LEVEL_MAX = 0.9999
 
-export const REPLENISHMENT_FORMULA = 'sigma1-sqrt-lead-time' as const
+export const REPLENISHMENT_FORMULA = 'summed-step-variance' as const
 
+/** A SKU's stock policy, every duration in periods of its forecast's frequency. */
 export interface ReplenishmentOptions {
-  /** Lead time L in periods, integer, 1 <= L <= horizon. */
+  /** Lead time L, > 0 (fractional allowed: converted from days). */
   readonly leadTimePeriods: number
   /** Target cycle service level: probability of no stock-out in a replenishment cycle. */
   readonly serviceLevel: number
+  /** Review period R, >= 0 (0: continuous review). Default 0. */
+  readonly reviewPeriods?: number
+  /** Standard deviation of the lead time, >= 0. Default 0 (a fixed lead time). */
+  readonly leadTimeSdPeriods?: number
+  /** Smallest order in units, >= 0. Default 0. */
+  readonly minimumOrder?: number
+  /** Units per pack, > 0; orders are whole packs. Default 1. */
+  readonly packSize?: number
+}
+
+/** The figures for an order placed at the start of one forecast period. */
+export interface ReplenishmentPeriod {
+  readonly period: string
+  readonly coverDemand: number
+  readonly sigma: number | null
+  readonly safetyStock: number | null
+  readonly reorderPoint: number | null
 }
 
 export interface ReplenishmentFigures {
   readonly leadTimePeriods: number
+  readonly reviewPeriods: number
+  readonly leadTimeSdPeriods: number
   readonly serviceLevel: number
+  readonly minimumOrder: number
+  readonly packSize: number
+  /** Forecast demand over the lead time. */
   readonly leadTimeDemand: number
-  /** sigma_L, the standard deviation of lead-time demand error; null when it cannot be estimated. */
+  /** Forecast demand over the protection interval L + R. */
+  readonly coverDemand: number
+  /** Standard deviation of the demand over L + R around its forecast; null when it cannot be estimated. */
   readonly sigma: number | null
   readonly z: number
+  /** Whole units. */
   readonly safetyStock: number | null
+  /** Whole units: the reorder point (R = 0) or order-up-to level (R > 0). */
   readonly reorderPoint: number | null
+  /** Whole packs, at least the minimum order. */
+  readonly orderQuantity: number
   readonly formula: typeof REPLENISHMENT_FORMULA
+  readonly periods: readonly ReplenishmentPeriod[]
 }
 
 /**
- * @throws EngineInputError ('invalid-option') when the lead time is not an integer in
- * 1..horizon or the service level is outside (0.5, 0.9999).
+ * @throws EngineInputError ('invalid-option') when a duration is out of range, the protection
+ * interval does not fit the horizon, or the service level is outside (0.5, 0.9999).
  */
 export function checkReplenishmentOptions(options: ReplenishmentOptions, horizon: number): void {
   const { leadTimePeriods, serviceLevel } = options
-  if (!Number.isInteger(leadTimePeriods) || leadTimePeriods < 1) {
-    throw new EngineInputError('invalid-option', 'leadTimePeriods must be a whole number of periods >= 1', 'replenishment.leadTimePeriods')
-  }
-  if (leadTimePeriods > horizon) {
-    throw new EngineInputError(
-      'invalid-option',
-      `leadTimePeriods (${leadTimePeriods}) must not exceed the horizon (${horizon}): lead-time demand needs a forecast for every period of the lead time`,
-      'replenishment.leadTimePeriods',
+  const review = options.reviewPeriods ?? 0
+  const bad = (field: string, message: string) => new EngineInputError('invalid-option', message, `replenishment.${field}`)
+  if (!(Number.isFinite(leadTimePeriods) && leadTimePeriods > 0)) throw bad('leadTimePeriods', 'leadTimePeriods must be a number of periods > 0')
+  if (!(Number.isFinite(review) && review >= 0)) throw bad('reviewPeriods', 'reviewPeriods must be a number of periods >= 0')
+  const sdLt = options.leadTimeSdPeriods ?? 0
+  if (!(Number.isFinite(sdLt) && sdLt >= 0)) throw bad('leadTimeSdPeriods', 'leadTimeSdPeriods must be >= 0')
+  const cover = Math.ceil(roundNoise(leadTimePeriods + review))
+  if (cover > horizon) {
+    throw bad(
+      'leadTimePeriods',
+      `lead time plus review period (${round6(leadTimePeriods + review)} periods) must not exceed the horizon (${horizon}): the demand over them needs a forecast for every period`,
     )
   }
   if (!(serviceLevel > SERVICE_LEVEL_MIN && serviceLevel < SERVICE_LEVEL_MAX)) {
-    throw new EngineInputError(
-      'invalid-option',
-      `serviceLevel must be in (${SERVICE_LEVEL_MIN}, ${SERVICE_LEVEL_MAX})`,
-      'replenishment.serviceLevel',
-    )
+    throw bad('serviceLevel', `serviceLevel must be in (${SERVICE_LEVEL_MIN}, ${SERVICE_LEVEL_MAX})`)
   }
+  const moq = options.minimumOrder ?? 0
+  if (!(Number.isFinite(moq) && moq >= 0)) throw bad('minimumOrder', 'minimumOrder must be >= 0')
+  const pack = options.packSize ?? 1
+  if (!(Number.isFinite(pack) && pack > 0)) throw bad('packSize', 'packSize must be > 0')
 }
 
 /**
- * Root mean square of the one-step residuals from their summary
- * (mean m, sample sd s with n - 1 in the denominator, count n):
- * RMS^2 = m^2 + s^2 (n - 1) / n. Null with fewer than 2 residuals.
- */
-export function oneStepRms(residuals: { readonly count: number; readonly mean: number; readonly sd: number }): number | null {
-  const { count, mean, sd } = residuals
-  if (!(count >= 2) || !Number.isFinite(mean) || !Number.isFinite(sd)) return null
-  const rms = Math.sqrt(mean * mean + (sd * sd * (count - 1)) / count)
-  return Number.isFinite(rms) ? rms : null
-}
-
-/**
- * Figures for one SKU from its point forecasts (steps 1..horizon) and the
- * one-step error spread sigma_1 (null: unknown, then only lead-time demand is given).
+ * Figures for one SKU from its forecast points (steps 1..horizon) and the forecast
+ * error's standard deviation per step (null: unknown, then only demands and the
+ * order quantity are given).
  * @throws EngineInputError on invalid options (see checkReplenishmentOptions) or non-finite forecasts.
  */
 export function computeReplenishment(
-  point: readonly number[],
-  sigmaOneStep: number | null,
+  points: readonly { readonly period: string; readonly demand: number }[],
+  stepSd: readonly number[] | null,
   options: ReplenishmentOptions,
 ): ReplenishmentFigures {
-  checkReplenishmentOptions(options, point.length)
-  const { leadTimePeriods, serviceLevel } = options
-  const leadTimeDemand = sum(point, 0, leadTimePeriods)
-  if (!Number.isFinite(leadTimeDemand)) {
-    throw new EngineInputError('non-finite-value', 'lead-time demand is not finite', 'forecast')
+  checkReplenishmentOptions(options, points.length)
+  const L = options.leadTimePeriods
+  const R = options.reviewPeriods ?? 0
+  const sdLt = options.leadTimeSdPeriods ?? 0
+  const minimumOrder = options.minimumOrder ?? 0
+  const packSize = options.packSize ?? 1
+  const demand = points.map((p) => p.demand)
+  if (!demand.every(Number.isFinite)) throw new EngineInputError('non-finite-value', 'the forecast is not finite', 'forecast')
+  const known = stepSd !== null && stepSd.length >= points.length && stepSd.every((s) => Number.isFinite(s) && s >= 0)
+  const variance = known ? stepSd.map((s) => s * s) : null
+  const z = normalQuantile(options.serviceLevel)
+  const cover = L + R
+  const span = Math.ceil(roundNoise(cover))
+
+  const window = (start: number) => {
+    const coverDemand = weightedSum(demand, start, cover)
+    if (variance === null) return { coverDemand, sigma: null, safetyStock: null, reorderPoint: null }
+    const d = coverDemand / cover
+    const sigma = Math.sqrt(weightedSum(variance, start, cover) + d * d * sdLt * sdLt)
+    return { coverDemand, sigma, safetyStock: ceilUnits(z * sigma), reorderPoint: ceilUnits(coverDemand + z * sigma) }
   }
-  const z = normalQuantile(serviceLevel)
-  const known = sigmaOneStep !== null && Number.isFinite(sigmaOneStep) && sigmaOneStep >= 0
-  const sigma = known ? sigmaOneStep * Math.sqrt(leadTimePeriods) : null
-  const safetyStock = sigma === null ? null : z * sigma
+
+  const first = window(0)
+  const periods: ReplenishmentPeriod[] = []
+  for (let t = 0; t + span <= points.length; t++) periods.push({ period: points[t]!.period, ...window(t) })
+  const cycle = weightedSum(demand, 0, Math.min(Math.max(R, 1), points.length))
+  const packs = Math.ceil(roundNoise(Math.max(cycle, minimumOrder, 0) / packSize))
   return {
-    leadTimePeriods,
-    serviceLevel,
-    leadTimeDemand,
-    sigma,
+    leadTimePeriods: L,
+    reviewPeriods: R,
+    leadTimeSdPeriods: sdLt,
+    serviceLevel: options.serviceLevel,
+    minimumOrder,
+    packSize,
+    leadTimeDemand: weightedSum(demand, 0, L),
+    coverDemand: first.coverDemand,
+    sigma: first.sigma,
     z,
-    safetyStock,
-    reorderPoint: safetyStock === null ? null : leadTimeDemand + safetyStock,
+    safetyStock: first.safetyStock,
+    reorderPoint: first.reorderPoint,
+    orderQuantity: packs * packSize,
     formula: REPLENISHMENT_FORMULA,
+    periods,
   }
 }
 
 /**
- * Figures for an engine result: its point forecasts and the RMS of its one-step
- * residuals. When the engine gave no intervals (a constant history, or too few
+ * Figures for an engine result: its forecast points and its per-step error
+ * spread. When the engine gave no intervals (a constant history, or too few
  * residuals) the spread is unknown: a flat past is no evidence of a certain
  * future, so sigma, safety stock and reorder point are null rather than 0.
  */
 export function replenishmentFor(
   result: {
-    readonly forecast: readonly { readonly demand: number }[]
-    readonly residuals: { readonly count: number; readonly mean: number; readonly sd: number }
-    readonly intervalMethod?: IntervalMethod
+    readonly forecast: readonly { readonly period: string; readonly demand: number }[]
+    readonly stepSd: readonly number[]
+    readonly intervalMethod: IntervalMethod
   },
   options: ReplenishmentOptions,
 ): ReplenishmentFigures {
-  return computeReplenishment(
-    result.forecast.map((p) => p.demand),
-    result.intervalMethod === 'none' ? null : oneStepRms(result.residuals),
-    options,
-  )
+  return computeReplenishment(result.forecast, result.intervalMethod === 'none' ? null : result.stepSd, options)
+}
+
+/** sum over steps start+1 .. start+length of values, the last part-step weighted by its fraction. */
+function weightedSum(values: readonly number[], start: number, length: number): number {
+  const whole = Math.floor(roundNoise(length))
+  const part = roundNoise(length) - whole
+  let total = 0
+  for (let i = 0; i < whole; i++) total += values[start + i]!
+  if (part > 0) total += part * values[start + whole]!
+  return total
+}
+
+/** Rounds away binary noise (e.g. 0.1 + 0.2) so that ceil does not add a unit for it. */
+function roundNoise(x: number): number {
+  return Number(x.toPrecision(12))
+}
+
+/** Up to a whole unit. */
+function ceilUnits(x: number): number {
+  return Math.ceil(roundNoise(x))
+}
+
+function round6(x: number): number {
+  return Number(x.toFixed(6))
 }

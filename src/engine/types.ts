@@ -216,6 +216,11 @@ export interface ForecastResult {
   readonly forecast: readonly ForecastPoint[]
   /** How the intervals were made; lower bounds raised to zero are reported by the warning `intervals-raised-to-zero`. */
   readonly intervalMethod: IntervalMethod
+  /**
+   * Standard deviation of the forecast error per step 1..horizon, as the intervals use it
+   * (the model's own h-step variance when it has one, else sigma_1 · sqrt(h); 0 for method 'none').
+   */
+  readonly stepSd: readonly number[]
   readonly candidates: readonly Candidate[]
   readonly warnings: readonly EngineWarning[]
   readonly history: {

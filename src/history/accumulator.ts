@@ -34,6 +34,11 @@ export interface PendingHistory {
 export class HistoryAccumulator {
   private readonly rowGroups = new Map<string, RowGroup>()
   private readonly seriesBySku = new Map<string, SeriesEntry>()
+  /** Accepted rows whose period was a date (transactions) / a period label (period totals); series count as period rows. */
+  private rowKinds = { dated: 0, period: 0 }
+  /** Lowest and highest bucket ordinal of everything accepted so far. */
+  private lo = Infinity
+  private hi = -Infinity
 
   constructor(
     private readonly opts: { readonly frequency: Frequency; readonly duplicates: DuplicatePolicy },
@@ -44,7 +49,22 @@ export class HistoryAccumulator {
     return this.opts.frequency
   }
 
-  addRow(sku: string, ordinal: number, demand: number, origin: Origin): void {
+  /** What kinds of rows were accepted: dated transaction rows and/or period rows (series included). */
+  get kinds(): { readonly dated: number; readonly period: number } {
+    return { ...this.rowKinds }
+  }
+
+  /** The lowest and highest period ordinal accepted so far; null when nothing was accepted. */
+  get span(): { readonly lo: number; readonly hi: number } | null {
+    return this.lo <= this.hi ? { lo: this.lo, hi: this.hi } : null
+  }
+
+  private widen(lo: number, hi: number): void {
+    if (lo < this.lo) this.lo = lo
+    if (hi > this.hi) this.hi = hi
+  }
+
+  addRow(sku: string, ordinal: number, demand: number, origin: Origin, dated = false): void {
     const series = this.seriesBySku.get(sku)
     if (series) {
       this.errors.add({ ...origin, sku, reason: `SKU was already given as a whole series${where(series.origin)}` })
@@ -58,6 +78,9 @@ export class HistoryAccumulator {
     const before = group.cells.get(ordinal)
     group.cells.set(ordinal, this.opts.duplicates === 'sum' && before !== undefined ? before + demand : demand)
     group.rows++
+    if (dated) this.rowKinds.dated++
+    else this.rowKinds.period++
+    this.widen(ordinal, ordinal)
   }
 
   addSeries(sku: string, incoming: IncomingHistory, origin: Origin): void {
@@ -68,6 +91,8 @@ export class HistoryAccumulator {
       return
     }
     this.seriesBySku.set(sku, { incoming, origin })
+    this.rowKinds.period++
+    this.widen(incoming.startOrdinal, incoming.startOrdinal + incoming.demand.length - 1)
   }
 
   /** SKUs gathered so far. */

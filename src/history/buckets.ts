@@ -13,9 +13,10 @@ import { formatPeriod, parsePeriod, type Frequency } from '../engine/index.js'
  *
  * Week buckets are ISO-8601 weeks (Monday first; week 1 holds the year's
  * first Thursday), so 2021-01-03 falls in 2020-W53.
- * @returns the bucket's period ordinal (as engine/periods.ts numbers them), or why the cell is refused
+ * @returns the bucket's period ordinal (as engine/periods.ts numbers them) and whether the cell was a
+ * date (a transaction row) rather than a period label (a period total), or why the cell is refused
  */
-export function bucketOf(cell: string, target: Frequency): { ordinal: number } | { reason: string } {
+export function bucketOf(cell: string, target: Frequency): { ordinal: number; dated: boolean } | { reason: string } {
   const text = cell.trim()
   const date = /^(\d{4})-(\d{2})-(\d{2})(?:[T ].*)?$/.exec(text)
   try {
@@ -25,16 +26,16 @@ export function bucketOf(cell: string, target: Frequency): { ordinal: number } |
       const day = parsePeriod(`${date[1]}-${date[2]}-${date[3]}`, 'day')
       switch (target) {
         case 'day':
-          return { ordinal: day }
+          return { ordinal: day, dated: true }
         case 'week':
           // Day 4 (1970-01-05) was a Monday; week ordinals count Mondays from there.
-          return { ordinal: Math.floor((day - 4) / 7) }
+          return { ordinal: Math.floor((day - 4) / 7), dated: true }
         case 'month':
-          return { ordinal: year * 12 + month - 1 }
+          return { ordinal: year * 12 + month - 1, dated: true }
         case 'quarter':
-          return { ordinal: year * 4 + Math.floor((month - 1) / 3) }
+          return { ordinal: year * 4 + Math.floor((month - 1) / 3), dated: true }
         case 'year':
-          return { ordinal: year }
+          return { ordinal: year, dated: true }
       }
     }
     const kind = labelKind(text)
@@ -44,7 +45,7 @@ export function bucketOf(cell: string, target: Frequency): { ordinal: number } |
     const ordinal = parsePeriod(text, kind)
     const nested = convert(ordinal, kind, target)
     if (nested === null) return { reason: `a ${kind} period (${text}) cannot be placed in ${target} buckets` }
-    return { ordinal: nested }
+    return { ordinal: nested, dated: false }
   } catch (err) {
     return { reason: `period ${JSON.stringify(cell)} is not valid: ${(err as Error).message}` }
   }

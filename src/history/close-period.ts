@@ -1,3 +1,4 @@
+import type { WriteOutcome } from './ingest.js'
 import { formatPeriod, parsePeriod, type Frequency } from '../engine/index.js'
 import type { PendingHistory } from './accumulator.js'
 import type { HistoryData } from './types.js'
@@ -43,7 +44,7 @@ export interface ClosingDeps {
       tenant: string,
       batch: readonly PendingHistory[],
       merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
-    ): Promise<({ outcome: 'created' | 'updated' } | { reason: string })[]>
+    ): Promise<readonly WriteOutcome[]>
   }
   readonly closing: {
     close(tenant: string, frequency: Frequency, period: string): Promise<{ outcome: 'moved' | 'unchanged' | 'behind'; previous: string | null }>

@@ -105,7 +105,7 @@ async function readRecords(
       acc.errors.add({ line, column: names[columns.demand], sku: sku.sku, reason: demand.reason })
       continue
     }
-    acc.addRow(sku.sku, bucket.ordinal, demand.value, { line })
+    acc.addRow(sku.sku, bucket.ordinal, demand.value, { line }, bucket.dated)
   }
   if (columns === null) throw new UploadFormatError('the CSV upload is empty: expected a header row', 'body')
 }

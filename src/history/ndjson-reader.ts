@@ -69,5 +69,5 @@ function handleLine(raw: string, line: number, acc: HistoryAccumulator): void {
       ? parseDemand(String(row.demand))
       : { reason: 'demand must be a number' }
   if ('reason' in demand) return acc.errors.add({ line, column: 'demand', sku: sku.sku, reason: demand.reason })
-  acc.addRow(sku.sku, bucket.ordinal, demand.value, { line })
+  acc.addRow(sku.sku, bucket.ordinal, demand.value, { line }, bucket.dated)
 }

@@ -29,5 +29,6 @@ export function withSkuQuota(writer: HistoryWriter, counter: SkuCounter, max: nu
       let next = 0
       return batch.map((p) => (allowed[next] === p ? written[next++]! : { reason: skuQuotaReason(held, max) }))
     },
+    select: (tenant, scope, batchSize) => writer.select(tenant, scope, batchSize),
   }
 }

@@ -1,18 +1,19 @@
 import { z } from 'zod'
 import { FREQUENCIES, parsePeriod, type Frequency } from '../engine/index.js'
-import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, Sku } from '../schemas/run.js'
+import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, Sku, StockPolicy } from '../schemas/run.js'
 import { firstPeriodLabel } from './buckets.js'
 import { normaliseTags } from './tags.js'
 import { fieldIssues, formatFieldPath } from '../errors.js'
 import type { IncomingHistory } from './types.js'
 
-/** One whole series of a JSON or NDJSON upload: `{ sku, frequency?, firstPeriod, demand, tags? }`. */
+/** One whole series of a JSON or NDJSON upload: `{ sku, frequency?, firstPeriod, demand, tags?, replenishment? }`. */
 export const UploadSeries = z.object({
   sku: Sku,
   frequency: z.enum(FREQUENCIES).optional(),
   firstPeriod: PeriodLabel,
   demand: z.array(DemandValue).min(1).max(MAX_POINTS_PER_SERIES),
   tags: z.array(z.string()).optional(),
+  replenishment: StockPolicy.optional(),
 }).strict()
 
 /**
@@ -43,5 +44,6 @@ export function parseUploadSeries(
     if ('reason' in t) return { sku: s.sku, column: 'tags', reason: t.reason }
     tags = t.tags
   }
-  return { sku: s.sku, incoming: { frequency, startOrdinal, demand: s.demand, ...(tags === undefined ? {} : { tags }) } }
+  const policy = s.replenishment === undefined ? {} : { replenishment: s.replenishment }
+  return { sku: s.sku, incoming: { frequency, startOrdinal, demand: s.demand, ...(tags === undefined ? {} : { tags }), ...policy } }
 }

@@ -1,11 +1,18 @@
-import type { ResultItem, ResultPage, RunRecord } from '../runs/contract.js'
+import type { ForecastItem, ResultItem, ResultPage, RunRecord } from '../runs/contract.js'
 
 /**
  * Run results as CSV (RFC 4180, CRLF line ends, a header row): one row per
  * SKU and forecast period with
  *
  *   sku, period, demand, low<L>, high<L> (per interval level L of the run),
- *   model, rankBy, holdoutError, failure
+ *   model, rankBy, holdoutError, [replenishment columns], failure
+ *
+ * When the run asked for replenishment figures, REPLENISHMENT_COLUMNS come
+ * before `failure`: the SKU's policy (lead time, review period and lead-time
+ * spread in its periods, service level, minimum order, pack size, order
+ * quantity) on every row, and coverDemand, safetyStock and reorderPoint for an
+ * order placed at the start of the row's period (empty where the protection
+ * interval runs past the horizon).
  *
  * `holdoutError` is the chosen model's holdout error named by `rankBy` when
  * the model was chosen on a holdout (empty otherwise or where undefined). A SKU
@@ -59,9 +66,48 @@ function levelsOf(run: RunRecord): number[] {
   return [...new Set(run.settings.intervalLevels)].sort((a, b) => a - b)
 }
 
+/** The replenishment columns, in order (present when the run asked for the figures). */
+export const REPLENISHMENT_COLUMNS = [
+  'leadTimePeriods',
+  'reviewPeriods',
+  'leadTimeSdPeriods',
+  'serviceLevel',
+  'coverDemand',
+  'safetyStock',
+  'reorderPoint',
+  'orderQuantity',
+  'minimumOrder',
+  'packSize',
+] as const
+
+function replenishmentColumns(run: RunRecord): readonly string[] {
+  return run.settings.replenishment ? REPLENISHMENT_COLUMNS : []
+}
+
 export function csvHeader(run: RunRecord): string {
   const bounds = levelsOf(run).flatMap((l) => [`low${l}`, `high${l}`])
-  return ['sku', 'period', 'demand', ...bounds, 'model', 'rankBy', 'holdoutError', 'failure'].join(',') + '\r\n'
+  return ['sku', 'period', 'demand', ...bounds, 'model', 'rankBy', 'holdoutError', ...replenishmentColumns(run), 'failure'].join(',') + '\r\n'
+}
+
+/** The replenishment cells of one row: the SKU's policy, and the figures for an order placed in `period`. */
+function replenishmentCells(item: ForecastItem, period: string, run: RunRecord): string[] {
+  if (!run.settings.replenishment) return []
+  const r = item.replenishment
+  if (!r) return REPLENISHMENT_COLUMNS.map(() => '')
+  const at = r.periods.find((p) => p.period === period)
+  const cells: Record<(typeof REPLENISHMENT_COLUMNS)[number], number | null | undefined> = {
+    leadTimePeriods: r.leadTimePeriods,
+    reviewPeriods: r.reviewPeriods,
+    leadTimeSdPeriods: r.leadTimeSdPeriods,
+    serviceLevel: r.serviceLevel,
+    coverDemand: at?.coverDemand,
+    safetyStock: at?.safetyStock,
+    reorderPoint: at?.reorderPoint,
+    orderQuantity: r.orderQuantity,
+    minimumOrder: r.minimumOrder,
+    packSize: r.packSize,
+  }
+  return REPLENISHMENT_COLUMNS.map((c) => numberCell(cells[c]))
 }
 
 /** The CSV rows of one result item. */
@@ -69,7 +115,7 @@ export function itemRows(item: ResultItem, run: RunRecord): string {
   const levels = levelsOf(run)
   const rankBy = run.settings.rankBy
   if ('failure' in item) {
-    const empty = new Array(2 + levels.length * 2 + 3).fill('')
+    const empty = new Array(2 + levels.length * 2 + 3 + replenishmentColumns(run).length).fill('')
     return [textCell(item.sku), ...empty, textCell(`${item.failure.code}: ${item.failure.message}`)].join(',') + '\r\n'
   }
   const holdout = item.modelChoice.method === 'holdout' ? numberCell(item.holdoutErrors?.[rankBy]) : ''
@@ -80,7 +126,17 @@ export function itemRows(item: ResultItem, run: RunRecord): string {
       return [numberCell(iv?.low), numberCell(iv?.high)]
     })
     out +=
-      [textCell(item.sku), textCell(point.period), numberCell(point.demand), ...bounds, textCell(item.model), rankBy, holdout, ''].join(',') +
+      [
+        textCell(item.sku),
+        textCell(point.period),
+        numberCell(point.demand),
+        ...bounds,
+        textCell(item.model),
+        rankBy,
+        holdout,
+        ...replenishmentCells(item, point.period, run),
+        '',
+      ].join(',') +
       '\r\n'
   }
   return out

@@ -136,6 +136,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
     },
 
     latestForecast: (tenant, sku) => store.latest(tenant, sku),
+    forgetLatestForecast: (tenant, sku) => store.forgetLatest(tenant, sku),
 
     async ping() {
       await redis.ping()

@@ -108,6 +108,8 @@ export interface RunGateway {
   /** Cancel a queued or running run; a finished run is returned unchanged. */
   cancel(tenant: string, runId: string): Promise<RunRecord | null>
   latestForecast(tenant: string, sku: string): Promise<LatestForecast | null>
+  /** Forget a SKU's latest forecast (its history was deleted). Optional: gateways without stored forecasts leave it out. */
+  forgetLatestForecast?(tenant: string, sku: string): Promise<void>
   /** Throws when Redis or the queue is not usable (readiness). */
   ping(): Promise<void>
   /**

@@ -18,8 +18,14 @@ export const REPLENISHMENT_SKIPPED = 'replenishment-skipped'
 /** A stored history was fitted with periods after the closed-through period (`openPeriods: "include"`). */
 export const OPEN_PERIODS_FITTED = 'open-periods-fitted'
 
+/** A run-level duration in periods was converted to the periods of a SKU of another frequency. */
+export const PERIOD_SETTING_CONVERTED = 'period-setting-converted'
+
+/** A run-level setting counted in periods of the run's frequency was not applied to a SKU of another frequency. */
+export const PERIOD_SETTING_NOT_APPLIED = 'period-setting-not-applied'
+
 /** Warning codes the service adds to result items beside the engine's own (docs/warnings.md). */
-export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED, OPEN_PERIODS_FITTED] as const
+export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED, OPEN_PERIODS_FITTED, PERIOD_SETTING_CONVERTED, PERIOD_SETTING_NOT_APPLIED] as const
 
 /** `failure.code` of a series whose synchronous fit ran past SYNC_SERIES_TIMEOUT_MS (its thread was ended). */
 export const FIT_TIME_LIMIT = 'fit-time-limit'

@@ -1,8 +1,9 @@
 import { EngineInputError, replenishmentFor, type ForecastResult, type Frequency, type SeriesInput } from '../engine/index.js'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 import type { ForecastItem, ResultItem } from './contract.js'
-import { REPLENISHMENT_SKIPPED } from './failures.js'
+import { PERIOD_SETTING_NOT_APPLIED, REPLENISHMENT_SKIPPED } from './failures.js'
 import { toSeriesInput } from './series-input.js'
+import { resolveStockPolicy, type ItemWarning } from './stock-policy.js'
 
 /**
  * Forecasts one series. Input the engine rejects becomes an error item; any
@@ -16,7 +17,9 @@ export function forecastItem(
   const input = toSeriesInput(settings, series)
   try {
     const result = forecast(input)
-    return withReplenishment(toResultItem(series.sku, input.frequency, result), result, settings)
+    const item = toResultItem(series.sku, input.frequency, result)
+    const notes = settingWarnings(settings, series, input.frequency)
+    return withReplenishment(notes.length === 0 ? item : { ...item, warnings: [...item.warnings, ...notes] }, result, settings, series)
   } catch (err) {
     if (err instanceof EngineInputError) return { sku: series.sku, frequency: input.frequency, failure: { code: err.code, message: err.message } }
     throw err
@@ -24,17 +27,36 @@ export function forecastItem(
 }
 
 /**
- * Adds replenishment figures when the settings ask for them. Options the
- * engine refuses (the gateway checks them before a run is queued) leave the
- * forecast as it is, with a warning.
+ * A run-level seasonLength counts periods of the run's `frequency`: a SKU of
+ * another frequency keeps its own default (52 weeks would make a monthly SKU
+ * non-seasonal), and its item says so.
  */
-function withReplenishment(item: ForecastItem, result: ForecastResult, settings: RunSettings): ResultItem {
+function settingWarnings(settings: RunSettings, series: SeriesItem, frequency: Frequency): ItemWarning[] {
+  if (settings.seasonLength === undefined || series.seasonLength !== undefined || frequency === settings.frequency) return []
+  return [
+    {
+      code: PERIOD_SETTING_NOT_APPLIED,
+      message: `seasonLength ${settings.seasonLength} counts ${settings.frequency} periods (the run's frequency); this ${frequency} SKU uses its own default`,
+    },
+  ]
+}
+
+/**
+ * Adds replenishment figures when the run asks for them, from the SKU's stock
+ * policy over the run's defaults. A SKU whose policy is incomplete or does not
+ * fit the forecast keeps the forecast as it is, with a warning.
+ */
+function withReplenishment(item: ForecastItem, result: ForecastResult, settings: RunSettings, series: SeriesItem): ResultItem {
   if (!settings.replenishment) return item
+  const skip = (message: string): ResultItem => ({ ...item, warnings: [...item.warnings, { code: REPLENISHMENT_SKIPPED, message }] })
+  const policy = resolveStockPolicy(settings.replenishment, series.replenishment, settings.frequency, item.frequency)
+  if ('reason' in policy) return skip(policy.reason)
   try {
-    return { ...item, replenishment: replenishmentFor(result, settings.replenishment) }
+    const replenishment = replenishmentFor(result, policy.options)
+    return { ...item, warnings: [...item.warnings, ...policy.warnings], replenishment }
   } catch (err) {
     if (!(err instanceof EngineInputError)) throw err
-    return { ...item, warnings: [...item.warnings, { code: REPLENISHMENT_SKIPPED, message: err.message }] }
+    return skip(err.message)
   }
 }
 

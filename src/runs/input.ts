@@ -1,5 +1,6 @@
-import { checkReplenishmentOptions, EngineInputError } from '../engine/index.js'
+import { EngineInputError } from '../engine/index.js'
 import type { RunRequest, SeriesItem } from '../schemas/run.js'
+import { checkRunStockPolicy } from './stock-policy.js'
 
 /**
  * A request or page parameter the run machinery refuses (maps to HTTP 400).
@@ -18,12 +19,12 @@ export class RunInputError extends Error {
 
 /**
  * Cross-field checks the schema cannot express.
- * @throws RunInputError when the replenishment lead time exceeds the horizon.
+ * @throws RunInputError when the replenishment lead time plus review period exceeds the horizon.
  */
-export function checkRunOptions(settings: Pick<RunRequest, 'horizon' | 'replenishment'>): void {
+export function checkRunOptions(settings: Pick<RunRequest, 'horizon' | 'replenishment' | 'frequency'>): void {
   if (!settings.replenishment) return
   try {
-    checkReplenishmentOptions(settings.replenishment, settings.horizon)
+    checkRunStockPolicy(settings.replenishment, settings.frequency, settings.horizon)
   } catch (err) {
     if (err instanceof EngineInputError) throw new RunInputError('invalid-option', err.message, err.field ?? 'replenishment')
     throw err

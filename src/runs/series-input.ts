@@ -4,7 +4,8 @@ import type { RunSettings, SeriesItem } from '../schemas/run.js'
 
 /**
  * One request series as engine input: the run's settings, overridden by the
- * series' own `frequency`, `firstPeriod` and `seasonLength`. Absent options stay
+ * series' own `frequency`, `firstPeriod` and `seasonLength` (a run-level
+ * seasonLength applies only to series of the run's frequency). Absent options stay
  * absent so the engine applies its defaults. A weekly series may start at a
  * calendar date: its ISO week.
  */
@@ -20,7 +21,9 @@ export function toSeriesInput(settings: RunSettings, item: SeriesItem): SeriesIn
     keepLeadingZeros: settings.keepLeadingZeros,
     holdoutOrigins: settings.holdoutOrigins,
   }
-  const seasonLength = item.seasonLength ?? settings.seasonLength
+  // A run-level seasonLength counts periods of the run's frequency: other frequencies keep their default.
+  const frequency = item.frequency ?? settings.frequency
+  const seasonLength = item.seasonLength ?? (frequency === settings.frequency ? settings.seasonLength : undefined)
   if (item.firstPeriod !== undefined) input.firstPeriod = firstPeriodLabel(item.firstPeriod, input.frequency)
   if (seasonLength !== undefined) input.seasonLength = seasonLength
   if (settings.holdoutPeriods !== undefined) input.holdoutPeriods = settings.holdoutPeriods

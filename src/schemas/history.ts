@@ -1,7 +1,7 @@
 import { z } from 'zod'
 import { FREQUENCIES } from '../engine/index.js'
-import { DUPLICATE_POLICIES, MAX_TAGS, TAG_PATTERN, UPLOAD_MODES } from '../history/types.js'
-import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel } from './run.js'
+import { BATCH_ID_PATTERN, DUPLICATE_POLICIES, MAX_TAGS, TAG_PATTERN, UPLOAD_MODES } from '../history/types.js'
+import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, StockPolicy } from './run.js'
 import { PageQuery, pageSchema } from './params.js'
 
 /** Request and response shapes of the stored-history routes. */
@@ -20,6 +20,7 @@ export const HistoryBody = z.strictObject({
     .max(MAX_POINTS_PER_SERIES)
     .describe('Demand per period, oldest first; null marks a missing period'),
   tags: z.array(Tag).max(MAX_TAGS).optional().describe('Replaces the stored tags; absent means no tags'),
+  replenishment: StockPolicy.optional().describe("The SKU's stock policy, used by runs that ask for replenishment; absent means none"),
 })
 
 export const HistoryResource = z
@@ -31,6 +32,7 @@ export const HistoryResource = z
     periodCount: z.number().int().min(1),
     demand: z.array(z.number().nullable()),
     tags: z.array(z.string()),
+    replenishment: StockPolicy.optional(),
     updatedAt: z.string().describe('ISO-8601'),
   })
   .meta({ id: 'History' })
@@ -54,11 +56,28 @@ export const SkuListPage = pageSchema(HistorySummarySchema)
 
 const ColumnName = z.string().min(1).max(100)
 
+export const UploadMode = z
+  .enum(UPLOAD_MODES)
+  .describe(
+    'add: quantities added to the stored periods (incremental transaction files); overwrite: each period sent replaces ' +
+      'the stored one, others kept; replace: the upload is the whole history; replace-open-period: the upload is the ' +
+      'whole of one open period (month to date) for every stored SKU of its frequency, SKUs left out get 0 there. ' +
+      'Default: add for dated rows (transactions), overwrite for period rows and series',
+  )
+
 export const UploadQuery = z.object({
-  mode: z
-    .enum(UPLOAD_MODES)
+  mode: UploadMode.optional(),
+  batch: z
+    .string()
+    .regex(BATCH_ID_PATTERN, 'must be 1-200 visible ASCII characters')
     .optional()
-    .describe('append (default): new periods added, overlapping periods overwritten, others kept; replace: the upload is the whole history'),
+    .describe(
+      "The feed's batch id (e.g. its file name): each SKU is written once per batch id while it is remembered " +
+        '(UPLOAD_BATCH_TTL_SECONDS, default 35 days), so a resent file is not added twice',
+    ),
+  openPeriod: PeriodLabel.optional().describe(
+    'replace-open-period: the open period (e.g. 2026-12); default the one period every row falls in',
+  ),
   frequency: z.enum(FREQUENCIES).default('month').describe('Bucket of stored histories; dated rows are summed into it (week = ISO week)'),
   duplicates: z
     .enum(DUPLICATE_POLICIES)
@@ -71,7 +90,7 @@ export const UploadQuery = z.object({
 })
 
 export const JsonUpload = z.strictObject({
-  mode: z.enum(UPLOAD_MODES).optional(),
+  mode: UploadMode.optional(),
   series: z.array(z.unknown()).min(1),
 })
 
@@ -85,10 +104,18 @@ export const UploadErrorSchema = z.object({
 
 export const UploadReportSchema = z
   .object({
-    mode: z.enum(UPLOAD_MODES),
+    mode: z.enum(UPLOAD_MODES).describe('The mode applied (the default resolved when none was named)'),
     frequency: z.enum(FREQUENCIES),
+    batch: z.string().optional().describe('The feed batch id the upload was sent under'),
+    openPeriod: z.string().optional().describe('replace-open-period: the period replaced'),
     rows: z.object({ accepted: z.number().int().min(0), rejected: z.number().int().min(0) }),
-    skus: z.object({ created: z.number().int().min(0), updated: z.number().int().min(0), rejected: z.number().int().min(0) }),
+    skus: z.object({
+      created: z.number().int().min(0),
+      updated: z.number().int().min(0),
+      rejected: z.number().int().min(0),
+      alreadyApplied: z.number().int().min(0).describe('SKUs this batch id had already written: left as they were'),
+      zeroed: z.number().int().min(0).describe('replace-open-period: stored SKUs left out of the upload, set to 0 in the open period'),
+    }),
     errors: z.array(UploadErrorSchema).describe('The first 1000 rejections'),
     errorsNotListed: z.number().int().min(0).describe('Rejections beyond the listed ones'),
   })

@@ -80,25 +80,40 @@ const Candidate = z.object({
 
 const Warning = z.object({ code: z.string().describe('See docs/warnings.md'), message: z.string() })
 
+const ReplenishmentPeriodSchema = z.object({
+  period: z.string().describe('An order placed at the start of this period: its protection interval starts here'),
+  coverDemand: z.number(),
+  sigma: z.number().nullable(),
+  safetyStock: z.number().int().nullable(),
+  reorderPoint: z.number().int().nullable(),
+})
+
 export const ReplenishmentSchema = z
   .object({
-    leadTimePeriods: z.number().int().min(1).describe('Lead time L in periods'),
+    leadTimePeriods: z.number().describe("Lead time L in this SKU's periods (days converted by the calendar rule)"),
+    reviewPeriods: z.number().describe('Review period R in periods (0: continuous review)'),
+    leadTimeSdPeriods: z.number().describe('Standard deviation of the lead time in periods'),
     serviceLevel: z.number().describe('Target cycle service level'),
-    leadTimeDemand: z.number().describe('Sum of the point forecasts for periods 1..L'),
+    minimumOrder: z.number().describe('Smallest order in units'),
+    packSize: z.number().describe('Units per pack'),
+    leadTimeDemand: z.number().describe('Forecast demand over the lead time'),
+    coverDemand: z.number().describe('Forecast demand over the protection interval L + R'),
     sigma: z
       .number()
       .nullable()
-      .describe('sigma_L = sigma_1 * sqrt(L), sigma_1 the RMS of one-step in-sample errors; null when unknown'),
+      .describe("sqrt(sum of the forecast's step variances over L + R + (coverDemand / (L + R))^2 * leadTimeSdPeriods^2); null when unknown"),
     z: z.number().describe('Standard normal quantile at serviceLevel'),
-    safetyStock: z.number().nullable().describe('z * sigma_L'),
-    reorderPoint: z.number().nullable().describe('leadTimeDemand + safetyStock'),
-    formula: z.literal('sigma1-sqrt-lead-time'),
+    safetyStock: z.number().int().nullable().describe('z * sigma, rounded up to whole units'),
+    reorderPoint: z.number().int().nullable().describe('coverDemand + z * sigma, rounded up: the reorder point (R = 0) or order-up-to level (R > 0)'),
+    orderQuantity: z.number().describe('Demand over max(R, 1) periods, raised to minimumOrder, rounded up to whole packs'),
+    formula: z.literal('summed-step-variance'),
+    periods: z.array(ReplenishmentPeriodSchema).describe('The same figures for an order placed at the start of each forecast period, as far as the horizon reaches'),
   })
   .meta({
     id: 'Replenishment',
     description:
-      'Textbook estimate (independent one-step errors, fixed lead time): review before ordering. ' +
-      'Errors of smoothing models are correlated across steps, so sigma_L is often understated for trending series.',
+      "Estimate from the forecast's own error variances and the lead-time variability formula " +
+      '(Silver, Pyke & Peterson 1998): review before ordering. Step errors are treated as uncorrelated, so sigma is, if anything, understated.',
   })
 
 export const ForecastItem = z

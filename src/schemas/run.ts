@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import { DEFAULT_SEASON_LENGTH, FREQUENCIES, METRIC_NAMES, MODEL_NAMES, MODEL_SEARCHES, SERVICE_LEVEL_MAX, SERVICE_LEVEL_MIN } from '../engine/index.js'
-import { TAG_PATTERN } from '../history/types.js'
+import { TAG_PATTERN, type StockPolicy as StoredStockPolicy } from '../history/types.js'
 import { MAX_FIELD_ERRORS } from '../errors.js'
 
 /**
@@ -63,6 +63,58 @@ const SeasonLength = z
       .join(', ')}`,
   )
 
+/** Longest duration accepted in days: ten years. */
+const MAX_DAYS = 3660
+
+/** Pairs of a policy that say one thing in days or in periods: at most one of each pair. */
+const DURATION_PAIRS = [
+  ['leadTimeDays', 'leadTimePeriods'],
+  ['leadTimeSdDays', 'leadTimeSdPeriods'],
+  ['reviewDays', 'reviewPeriods'],
+] as const
+
+/**
+ * A stock policy: the replenishment parameters of one SKU (stored with its
+ * history or given with an inline series) or a run's defaults for them.
+ * Durations in days are converted to each SKU's frequency (docs/replenishment-and-callbacks.md);
+ * durations in periods count periods of the SKU's own frequency (per SKU) or of the run's `frequency` (run level).
+ */
+export const StockPolicy = z
+  .strictObject({
+    leadTimeDays: z.number().gt(0).max(MAX_DAYS).optional().describe('Lead time in calendar days'),
+    leadTimePeriods: z.number().gt(0).max(MAX_HORIZON).optional().describe('Lead time in periods (may be fractional)'),
+    leadTimeSdDays: z.number().min(0).max(MAX_DAYS).optional().describe('Standard deviation of the lead time in days (default 0: a fixed lead time)'),
+    leadTimeSdPeriods: z.number().min(0).max(MAX_HORIZON).optional().describe('Standard deviation of the lead time in periods'),
+    reviewDays: z.number().min(0).max(MAX_DAYS).optional().describe('Review period in days (default 0: continuous review)'),
+    reviewPeriods: z.number().min(0).max(MAX_HORIZON).optional().describe('Review period in periods'),
+    serviceLevel: z
+      .number()
+      .gt(SERVICE_LEVEL_MIN)
+      .lt(SERVICE_LEVEL_MAX)
+      .optional()
+      .describe('Target cycle service level, e.g. 0.95 (in (0.5, 0.9999))'),
+    minimumOrder: z.number().min(0).max(MAX_ABS_VALUE).optional().describe('Smallest order in units (default 0)'),
+    packSize: z.number().gt(0).max(MAX_ABS_VALUE).optional().describe('Units per pack; orders are whole packs (default 1)'),
+  })
+  .superRefine((policy, ctx) => {
+    for (const [days, periods] of DURATION_PAIRS) {
+      if (policy[days] !== undefined && policy[periods] !== undefined) {
+        ctx.addIssue({ code: 'custom', path: [periods], message: `give ${days} or ${periods}, not both` })
+      }
+    }
+  })
+  .meta({ id: 'StockPolicy' })
+export type StockPolicy = z.infer<typeof StockPolicy>
+
+/** Compile-time check: the stored policy's interface (history/types.ts) has exactly the schema's fields. */
+const samePolicyFields: [keyof StockPolicy] extends [keyof StoredStockPolicy] ? ([keyof StoredStockPolicy] extends [keyof StockPolicy] ? true : false) : false = true
+void samePolicyFields
+
+export const ReplenishmentSettings = StockPolicy.describe(
+  'Ask for lead-time demand, safety stock, reorder point and order quantity per SKU (estimates to review). ' +
+    "These are defaults: each SKU's own policy (stored with its history or given with the series) wins field by field",
+)
+
 export const SeriesItem = z.strictObject({
   sku: Sku,
   firstPeriod: PeriodLabel.optional(),
@@ -73,6 +125,7 @@ export const SeriesItem = z.strictObject({
     .describe('Demand per period, oldest first; null marks a missing period'),
   frequency: z.enum(FREQUENCIES).optional().describe("This series' frequency; default the run's"),
   seasonLength: SeasonLength.optional(),
+  replenishment: StockPolicy.optional().describe("This SKU's stock policy; wins over the run's replenishment field by field"),
 })
 export type SeriesItem = z.infer<typeof SeriesItem>
 
@@ -85,17 +138,6 @@ export const ChunkSeriesItem = SeriesItem.extend({
   openPeriods: z.number().int().min(1).optional(),
 })
 export type ChunkSeriesItem = z.infer<typeof ChunkSeriesItem>
-
-export const ReplenishmentSettings = z
-  .strictObject({
-    leadTimePeriods: z.number().int().min(1).max(MAX_HORIZON).describe('Lead time in periods (1..horizon)'),
-    serviceLevel: z
-      .number()
-      .gt(SERVICE_LEVEL_MIN)
-      .lt(SERVICE_LEVEL_MAX)
-      .describe('Target cycle service level, e.g. 0.95 (in (0.5, 0.9999))'),
-  })
-  .describe('Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review)')
 
 export const CallbackUrl = z
   .string()

@@ -174,7 +174,11 @@ export interface paths {
          */
         put: operations["putSkuHistory"];
         post?: never;
-        delete?: never;
+        /**
+         * Delete a SKU's stored history and its records
+         * @description Deletes the SKU's history and stock policy, its tags, its latest forecast and its accuracy records. Results of earlier runs stay under their run until they expire. 204 when deleted, 404 when the SKU had no history.
+         */
+        delete: operations["deleteSkuHistory"];
         options?: never;
         head?: never;
         patch?: never;
@@ -211,7 +215,7 @@ export interface paths {
         put?: never;
         /**
          * Upload demand histories in bulk (JSON, NDJSON or CSV)
-         * @description Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`; application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand" }`; text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn, periodColumn, demandColumn; other columns ignored). CSV and NDJSON are read as a stream. A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label (2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU's first and last row without rows become 0. Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written atomically, and a SKU without good rows keeps its stored history. Idempotency-Key is honoured.
+         * @description Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`; application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand" }`; text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn, periodColumn, demandColumn; other columns ignored). CSV and NDJSON are read as a stream. A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label (2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU's first and last row without rows become 0. Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written atomically, and a SKU without good rows keeps its stored history. `mode`: add (default for dated rows: transactions are added to the stored periods), overwrite (default for period rows and series: each period sent replaces the stored one), replace (the whole history), or replace-open-period (a month-to-date file: the one open period of every stored SKU of the frequency). Resending is safe with Idempotency-Key (the same answer again) or `batch` (each SKU is written once per batch id while it is remembered).
          */
         post: operations["uploadHistories"];
         delete?: never;
@@ -617,6 +621,26 @@ export interface paths {
 export type webhooks = Record<string, never>;
 export interface components {
     schemas: {
+        StockPolicyInput: {
+            /** @description Lead time in calendar days */
+            leadTimeDays?: number;
+            /** @description Lead time in periods (may be fractional) */
+            leadTimePeriods?: number;
+            /** @description Standard deviation of the lead time in days (default 0: a fixed lead time) */
+            leadTimeSdDays?: number;
+            /** @description Standard deviation of the lead time in periods */
+            leadTimeSdPeriods?: number;
+            /** @description Review period in days (default 0: continuous review) */
+            reviewDays?: number;
+            /** @description Review period in periods */
+            reviewPeriods?: number;
+            /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
+            serviceLevel?: number;
+            /** @description Smallest order in units (default 0) */
+            minimumOrder?: number;
+            /** @description Units per pack; orders are whole packs (default 1) */
+            packSize?: number;
+        };
         ScopeInput: {
             /** @description These SKUs; a SKU without a stored history is a 400 listing it (for schedules: when the schedule is created) */
             skus?: string[];
@@ -679,13 +703,8 @@ export interface components {
             allowNegativeDemand: boolean;
             /** @default false */
             keepLeadingZeros: boolean;
-            /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-            replenishment?: {
-                /** @description Lead time in periods (1..horizon) */
-                leadTimePeriods: number;
-                /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                serviceLevel: number;
-            };
+            /** @description Ask for lead-time demand, safety stock, reorder point and order quantity per SKU (estimates to review). These are defaults: each SKU's own policy (stored with its history or given with the series) wins field by field */
+            replenishment?: components["schemas"]["StockPolicyInput"];
             /**
              * Format: uri
              * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
@@ -712,6 +731,8 @@ export interface components {
                 frequency?: "day" | "week" | "month" | "quarter" | "year";
                 /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
                 seasonLength?: number;
+                /** @description This SKU's stock policy; wins over the run's replenishment field by field */
+                replenishment?: components["schemas"]["StockPolicyInput"];
             }[];
         };
         /** @description An adjustment of one period: setDemand or changePercent, with a reason and an author */
@@ -754,6 +775,26 @@ export interface components {
                 path: string;
                 message: string;
             }[];
+        };
+        StockPolicy: {
+            /** @description Lead time in calendar days */
+            leadTimeDays?: number;
+            /** @description Lead time in periods (may be fractional) */
+            leadTimePeriods?: number;
+            /** @description Standard deviation of the lead time in days (default 0: a fixed lead time) */
+            leadTimeSdDays?: number;
+            /** @description Standard deviation of the lead time in periods */
+            leadTimeSdPeriods?: number;
+            /** @description Review period in days (default 0: continuous review) */
+            reviewDays?: number;
+            /** @description Review period in periods */
+            reviewPeriods?: number;
+            /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
+            serviceLevel?: number;
+            /** @description Smallest order in units (default 0) */
+            minimumOrder?: number;
+            /** @description Units per pack; orders are whole packs (default 1) */
+            packSize?: number;
         };
         Scope: {
             /** @description These SKUs; a SKU without a stored history is a 400 listing it (for schedules: when the schedule is created) */
@@ -906,24 +947,45 @@ export interface components {
                 author: string | null;
             }[];
         };
-        /** @description Textbook estimate (independent one-step errors, fixed lead time): review before ordering. Errors of smoothing models are correlated across steps, so sigma_L is often understated for trending series. */
+        /** @description Estimate from the forecast's own error variances and the lead-time variability formula (Silver, Pyke & Peterson 1998): review before ordering. Step errors are treated as uncorrelated, so sigma is, if anything, understated. */
         Replenishment: {
-            /** @description Lead time L in periods */
+            /** @description Lead time L in this SKU's periods (days converted by the calendar rule) */
             leadTimePeriods: number;
+            /** @description Review period R in periods (0: continuous review) */
+            reviewPeriods: number;
+            /** @description Standard deviation of the lead time in periods */
+            leadTimeSdPeriods: number;
             /** @description Target cycle service level */
             serviceLevel: number;
-            /** @description Sum of the point forecasts for periods 1..L */
+            /** @description Smallest order in units */
+            minimumOrder: number;
+            /** @description Units per pack */
+            packSize: number;
+            /** @description Forecast demand over the lead time */
             leadTimeDemand: number;
-            /** @description sigma_L = sigma_1 * sqrt(L), sigma_1 the RMS of one-step in-sample errors; null when unknown */
+            /** @description Forecast demand over the protection interval L + R */
+            coverDemand: number;
+            /** @description sqrt(sum of the forecast's step variances over L + R + (coverDemand / (L + R))^2 * leadTimeSdPeriods^2); null when unknown */
             sigma: number | null;
             /** @description Standard normal quantile at serviceLevel */
             z: number;
-            /** @description z * sigma_L */
+            /** @description z * sigma, rounded up to whole units */
             safetyStock: number | null;
-            /** @description leadTimeDemand + safetyStock */
+            /** @description coverDemand + z * sigma, rounded up: the reorder point (R = 0) or order-up-to level (R > 0) */
             reorderPoint: number | null;
+            /** @description Demand over max(R, 1) periods, raised to minimumOrder, rounded up to whole packs */
+            orderQuantity: number;
             /** @constant */
-            formula: "sigma1-sqrt-lead-time";
+            formula: "summed-step-variance";
+            /** @description The same figures for an order placed at the start of each forecast period, as far as the horizon reaches */
+            periods: {
+                /** @description An order placed at the start of this period: its protection interval starts here */
+                period: string;
+                coverDemand: number;
+                sigma: number | null;
+                safetyStock: number | null;
+                reorderPoint: number | null;
+            }[];
         };
         ForecastItem: {
             sku: string;
@@ -1109,13 +1171,8 @@ export interface components {
                 allowNegativeDemand: boolean;
                 /** @default false */
                 keepLeadingZeros: boolean;
-                /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-                replenishment?: {
-                    /** @description Lead time in periods (1..horizon) */
-                    leadTimePeriods: number;
-                    /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                    serviceLevel: number;
-                };
+                /** @description Ask for lead-time demand, safety stock, reorder point and order quantity per SKU (estimates to review). These are defaults: each SKU's own policy (stored with its history or given with the series) wins field by field */
+                replenishment?: components["schemas"]["StockPolicy"];
                 /**
                  * Format: uri
                  * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
@@ -1266,14 +1323,22 @@ export interface components {
             periodCount: number;
             demand: (number | null)[];
             tags: string[];
+            replenishment?: components["schemas"]["StockPolicy"];
             /** @description ISO-8601 */
             updatedAt: string;
         };
         UploadReport: {
-            /** @enum {string} */
-            mode: "append" | "replace";
+            /**
+             * @description The mode applied (the default resolved when none was named)
+             * @enum {string}
+             */
+            mode: "add" | "overwrite" | "replace" | "replace-open-period";
             /** @enum {string} */
             frequency: "day" | "week" | "month" | "quarter" | "year";
+            /** @description The feed batch id the upload was sent under */
+            batch?: string;
+            /** @description replace-open-period: the period replaced */
+            openPeriod?: string;
             rows: {
                 accepted: number;
                 rejected: number;
@@ -1282,6 +1347,10 @@ export interface components {
                 created: number;
                 updated: number;
                 rejected: number;
+                /** @description SKUs this batch id had already written: left as they were */
+                alreadyApplied: number;
+                /** @description replace-open-period: stored SKUs left out of the upload, set to 0 in the open period */
+                zeroed: number;
             };
             /** @description The first 1000 rejections */
             errors: {
@@ -1476,13 +1545,8 @@ export interface components {
             allowNegativeDemand: boolean;
             /** @default false */
             keepLeadingZeros: boolean;
-            /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-            replenishment?: {
-                /** @description Lead time in periods (1..horizon) */
-                leadTimePeriods: number;
-                /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                serviceLevel: number;
-            };
+            /** @description Ask for lead-time demand, safety stock, reorder point and order quantity per SKU (estimates to review). These are defaults: each SKU's own policy (stored with its history or given with the series) wins field by field */
+            replenishment?: components["schemas"]["StockPolicy"];
             /**
              * Format: uri
              * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
@@ -1815,13 +1879,7 @@ export interface operations {
                     allowNegativeDemand?: boolean;
                     /** @default false */
                     keepLeadingZeros?: boolean;
-                    /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-                    replenishment?: {
-                        /** @description Lead time in periods (1..horizon) */
-                        leadTimePeriods: number;
-                        /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                        serviceLevel: number;
-                    };
+                    replenishment?: components["schemas"]["StockPolicyInput"];
                     /**
                      * Format: uri
                      * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature
@@ -1849,6 +1907,7 @@ export interface operations {
                         frequency?: "day" | "week" | "month" | "quarter" | "year";
                         /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
                         seasonLength?: number;
+                        replenishment?: components["schemas"]["StockPolicyInput"];
                     }[];
                     scope?: components["schemas"]["ScopeInput"];
                 };
@@ -2470,6 +2529,7 @@ export interface operations {
                     demand: (number | null)[];
                     /** @description Replaces the stored tags; absent means no tags */
                     tags?: string[];
+                    replenishment?: components["schemas"]["StockPolicyInput"];
                 };
             };
         };
@@ -2516,6 +2576,105 @@ export interface operations {
             };
             /** @description Limit reached (limit-reached) */
             409: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    deleteSkuHistory: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description Deleted */
+            204: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content?: never;
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
                 headers: {
                     [name: string]: unknown;
                 };
@@ -2670,8 +2829,12 @@ export interface operations {
     uploadHistories: {
         parameters: {
             query?: {
-                /** @description append (default): new periods added, overlapping periods overwritten, others kept; replace: the upload is the whole history */
-                mode?: "append" | "replace";
+                /** @description add: quantities added to the stored periods (incremental transaction files); overwrite: each period sent replaces the stored one, others kept; replace: the upload is the whole history; replace-open-period: the upload is the whole of one open period (month to date) for every stored SKU of its frequency, SKUs left out get 0 there. Default: add for dated rows (transactions), overwrite for period rows and series */
+                mode?: "add" | "overwrite" | "replace" | "replace-open-period";
+                /** @description The feed's batch id (e.g. its file name): each SKU is written once per batch id while it is remembered (UPLOAD_BATCH_TTL_SECONDS, default 35 days), so a resent file is not added twice */
+                batch?: string;
+                /** @description replace-open-period: the open period (e.g. 2026-12); default the one period every row falls in */
+                openPeriod?: string;
                 /** @description Bucket of stored histories; dated rows are summed into it (week = ISO week) */
                 frequency?: "day" | "week" | "month" | "quarter" | "year";
                 /** @description Several rows for one SKU and bucket: sum them (default) or keep the last */
@@ -2695,8 +2858,11 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": {
-                    /** @enum {string} */
-                    mode?: "append" | "replace";
+                    /**
+                     * @description add: quantities added to the stored periods (incremental transaction files); overwrite: each period sent replaces the stored one, others kept; replace: the upload is the whole history; replace-open-period: the upload is the whole of one open period (month to date) for every stored SKU of its frequency, SKUs left out get 0 there. Default: add for dated rows (transactions), overwrite for period rows and series
+                     * @enum {string}
+                     */
+                    mode?: "add" | "overwrite" | "replace" | "replace-open-period";
                     series: {
                         /** @description Stock-keeping unit code, unique within the tenant */
                         sku: string;
@@ -2706,6 +2872,26 @@ export interface operations {
                         firstPeriod: string;
                         demand: (number | null)[];
                         tags?: string[];
+                        replenishment?: {
+                            /** @description Lead time in calendar days */
+                            leadTimeDays?: number;
+                            /** @description Lead time in periods (may be fractional) */
+                            leadTimePeriods?: number;
+                            /** @description Standard deviation of the lead time in days (default 0: a fixed lead time) */
+                            leadTimeSdDays?: number;
+                            /** @description Standard deviation of the lead time in periods */
+                            leadTimeSdPeriods?: number;
+                            /** @description Review period in days (default 0: continuous review) */
+                            reviewDays?: number;
+                            /** @description Review period in periods */
+                            reviewPeriods?: number;
+                            /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
+                            serviceLevel?: number;
+                            /** @description Smallest order in units (default 0) */
+                            minimumOrder?: number;
+                            /** @description Units per pack; orders are whole packs (default 1) */
+                            packSize?: number;
+                        };
                     }[];
                 };
                 "application/x-ndjson": string;
@@ -3517,13 +3703,7 @@ export interface operations {
                     allowNegativeDemand?: boolean;
                     /** @default false */
                     keepLeadingZeros?: boolean;
-                    /** @description Ask for lead-time demand, safety stock and reorder point per SKU (estimates to review) */
-                    replenishment?: {
-                        /** @description Lead time in periods (1..horizon) */
-                        leadTimePeriods: number;
-                        /** @description Target cycle service level, e.g. 0.95 (in (0.5, 0.9999)) */
-                        serviceLevel: number;
-                    };
+                    replenishment?: components["schemas"]["StockPolicyInput"];
                     /**
                      * Format: uri
                      * @description Called (signed POST) when the run ends; see /v1/callbacks for the signature

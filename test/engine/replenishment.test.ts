@@ -1,88 +1,66 @@
 import { describe, expect, it } from 'vitest'
 import { readFileSync } from 'node:fs'
 import { approxEqual } from '../../src/engine/numeric.js'
-import {
-  EngineInputError,
-  computeReplenishment,
-  oneStepRms,
-  replenishmentFor,
-} from '../../src/engine/index.js'
+import { EngineInputError, computeReplenishment, forecastSeries, replenishmentFor } from '../../src/engine/index.js'
 
-// Made by test/engine/fixtures/r-replenishment/make.R (base R stats::qnorm; R version inside the JSON).
-const ref = JSON.parse(
-  readFileSync(new URL('./fixtures/r-replenishment/replenishment.json', import.meta.url), 'utf8'),
-) as {
+// Made by test/engine/fixtures/r-replenishment/make.R (base R stats::qnorm and arithmetic; R version inside the JSON).
+const ref = JSON.parse(readFileSync(new URL('./fixtures/r-replenishment/replenishment.json', import.meta.url), 'utf8')) as {
   qnorm: { level: number[]; z: number[] }
-  safetyStock: {
-    residuals: number[]
+  summed: {
     point: number[]
+    sd: number[]
     leadTime: number
+    review: number
+    leadTimeSd: number
     serviceLevel: number
-    rms: number
+    coverDemand: number
     sigma: number
-    z: number
-    safetyStock: number
-    leadTimeDemand: number
-    reorderPoint: number
+    rawReorderPoint: number
+    coverDemand2: number
+    sigma2: number
   }
 }
 
-const summary = (r: readonly number[]) => {
-  const m = r.reduce((a, b) => a + b, 0) / r.length
-  const sd = Math.sqrt(r.reduce((a, b) => a + (b - m) ** 2, 0) / (r.length - 1))
-  return { count: r.length, mean: m, sd }
-}
+const points = (demand: readonly number[]) => demand.map((d, i) => ({ period: `2026-${String(i + 1).padStart(2, '0')}`, demand: d }))
 
 describe('computeReplenishment: special cases', () => {
-  it('rejects a lead time beyond the horizon, below 1 or fractional', () => {
-    for (const leadTimePeriods of [0, 4, 1.5]) {
-      expect(() => computeReplenishment([1, 2, 3], 1, { leadTimePeriods, serviceLevel: 0.95 })).toThrow(EngineInputError)
+  it('rejects a protection interval beyond the horizon, a lead time of 0 and negative durations', () => {
+    const bad: [number, number | undefined][] = [[0, undefined], [4, undefined], [2.5, 1], [-1, undefined], [1, -0.5]]
+    for (const [leadTimePeriods, reviewPeriods] of bad) {
+      const opts = { leadTimePeriods, serviceLevel: 0.95, ...(reviewPeriods === undefined ? {} : { reviewPeriods }) }
+      expect(() => computeReplenishment(points([1, 2, 3]), [1, 1, 1], opts)).toThrow(EngineInputError)
     }
     try {
-      computeReplenishment([1, 2, 3], 1, { leadTimePeriods: 4, serviceLevel: 0.95 })
+      computeReplenishment(points([1, 2, 3]), [1, 1, 1], { leadTimePeriods: 3.5, serviceLevel: 0.95 })
+      expect.unreachable()
     } catch (err) {
       expect((err as EngineInputError).code).toBe('invalid-option')
       expect((err as EngineInputError).field).toBe('replenishment.leadTimePeriods')
     }
   })
 
-  it('rejects service levels outside (0.5, 0.9999), and NaN', () => {
+  it('rejects service levels outside (0.5, 0.9999), and NaN; a pack size of 0 and a negative minimum order', () => {
     for (const serviceLevel of [0.5, 0.4, 0.9999, 1, Number.NaN]) {
-      expect(() => computeReplenishment([1, 2], 1, { leadTimePeriods: 1, serviceLevel })).toThrow(/serviceLevel/)
+      expect(() => computeReplenishment(points([1, 2]), [1, 1], { leadTimePeriods: 1, serviceLevel })).toThrow(/serviceLevel/)
     }
+    expect(() => computeReplenishment(points([1]), [1], { leadTimePeriods: 1, serviceLevel: 0.9, packSize: 0 })).toThrow(/packSize/)
+    expect(() => computeReplenishment(points([1]), [1], { leadTimePeriods: 1, serviceLevel: 0.9, minimumOrder: -1 })).toThrow(/minimumOrder/)
   })
 
-  it('gives only lead-time demand when the error spread is unknown', () => {
-    const r = computeReplenishment([10, 20], null, { leadTimePeriods: 2, serviceLevel: 0.9 })
-    expect(r.leadTimeDemand).toBe(30)
-    expect(r.sigma).toBeNull()
-    expect(r.safetyStock).toBeNull()
-    expect(r.reorderPoint).toBeNull()
+  it('gives only demands and the order quantity when the error spread is unknown', () => {
+    const r = computeReplenishment(points([10, 20]), null, { leadTimePeriods: 2, serviceLevel: 0.9 })
+    expect(r).toMatchObject({ leadTimeDemand: 30, coverDemand: 30, sigma: null, safetyStock: null, reorderPoint: null, orderQuantity: 10 })
+    const none = replenishmentFor({ forecast: points([10, 10]), stepSd: [0, 0], intervalMethod: 'none' }, { leadTimePeriods: 2, serviceLevel: 0.95 })
+    expect(none).toMatchObject({ sigma: null, safetyStock: null })
   })
 
-  it('a perfect fit (zero residuals) needs no safety stock', () => {
-    const r = computeReplenishment([5, 5, 5], oneStepRms({ count: 12, mean: 0, sd: 0 }), { leadTimePeriods: 3, serviceLevel: 0.99 })
+  it('a perfect fit with a fixed lead time needs no safety stock; NaN never escapes', () => {
+    const r = computeReplenishment(points([5, 5, 5]), [0, 0, 0], { leadTimePeriods: 3, serviceLevel: 0.99 })
     expect(r).toMatchObject({ leadTimeDemand: 15, sigma: 0, safetyStock: 0, reorderPoint: 15 })
-  })
-
-  it('all-zero forecasts give zero lead-time demand, and NaN never escapes', () => {
-    const r = computeReplenishment([0, 0, 0], 2, { leadTimePeriods: 2, serviceLevel: 0.95 })
-    expect(r.leadTimeDemand).toBe(0)
-    expect(Number.isFinite(r.reorderPoint!)).toBe(true)
-    expect(() => computeReplenishment([Number.NaN, 1], 1, { leadTimePeriods: 1, serviceLevel: 0.9 })).toThrow(EngineInputError)
-  })
-
-  it('leaves the spread unknown when the engine gave no intervals (constant history)', () => {
-    const r = replenishmentFor(
-      { forecast: [{ demand: 10 }, { demand: 10 }], residuals: { count: 23, mean: 0, sd: 0 }, intervalMethod: 'none' },
-      { leadTimePeriods: 2, serviceLevel: 0.95 },
-    )
-    expect(r).toMatchObject({ leadTimeDemand: 20, sigma: null, safetyStock: null, reorderPoint: null })
-  })
-
-  it('oneStepRms needs two residuals', () => {
-    expect(oneStepRms({ count: 1, mean: 3, sd: 0 })).toBeNull()
-    expect(oneStepRms({ count: 0, mean: 0, sd: 0 })).toBeNull()
+    const zero = computeReplenishment(points([0, 0, 0]), [2, 2, 2], { leadTimePeriods: 2, serviceLevel: 0.95 })
+    expect(zero.coverDemand).toBe(0)
+    expect(Number.isFinite(zero.reorderPoint!)).toBe(true)
+    expect(() => computeReplenishment(points([Number.NaN, 1]), [1, 1], { leadTimePeriods: 1, serviceLevel: 0.9 })).toThrow(EngineInputError)
   })
 })
 
@@ -90,54 +68,63 @@ describe('z against R qnorm', () => {
   // Source: base R stats::qnorm (fixture). Standard normal table values: 0.90 -> 1.2816,
   // 0.95 -> 1.6449, 0.975 -> 1.9600, 0.99 -> 2.3263 (four decimals).
   it.each(ref.qnorm.level.map((level, i) => [level, ref.qnorm.z[i]!]))('service level %s -> z %s', (level, z) => {
-    const r = computeReplenishment([1], 1, { leadTimePeriods: 1, serviceLevel: level })
+    const r = computeReplenishment(points([1]), [1], { leadTimePeriods: 1, serviceLevel: level })
     // Tolerance 1e-14 relative: AS 241 on both sides, measured error rounded up.
     expect(approxEqual(r.z, z, 1e-14)).toBe(true)
   })
-
-  it('matches the four-decimal table values', () => {
-    const z = (serviceLevel: number) => computeReplenishment([1], 1, { leadTimePeriods: 1, serviceLevel }).z
-    expect(z(0.9)).toBeCloseTo(1.2816, 4)
-    expect(z(0.95)).toBeCloseTo(1.6449, 4)
-    expect(z(0.975)).toBeCloseTo(1.96, 4)
-    expect(z(0.99)).toBeCloseTo(2.3263, 4)
-  })
 })
 
-describe('safety stock and reorder point', () => {
-  // Hand-computed: residuals 4, -6, 3, -1, 5, -2, 0, -3 have squares summing to 100, so
-  // sigma_1 = sqrt(100 / 8) = 3.5355; L = 3: sigma_L = 3.5355 * sqrt(3) = 6.1237;
-  // 95 %: safety stock = 1.6449 * 6.1237 = 10.073; lead-time demand 120 + 125 + 130 = 375;
-  // reorder point 385.07. The same numbers from base R are in the fixture.
-  const c = ref.safetyStock
-  const result = replenishmentFor(
-    { forecast: c.point.map((demand) => ({ demand })), residuals: summary(c.residuals) },
-    { leadTimePeriods: c.leadTime, serviceLevel: c.serviceLevel },
-  )
-
-  it('derives sigma_1 as the RMS of the one-step residuals', () => {
-    expect(approxEqual(oneStepRms(summary(c.residuals))!, c.rms, 1e-12)).toBe(true)
-    expect(oneStepRms(summary(c.residuals))).toBeCloseTo(3.5355, 4)
-  })
+describe('summed step variances with lead-time variability (Silver, Pyke & Peterson 1998, from memory)', () => {
+  // sigma = sqrt(E[L] sigma_d^2 + d^2 sigma_L^2), with E[L] sigma_d^2 taken as the forecast's own step
+  // variances summed over L + R. Worked by hand (the fixture has the same numbers from base R):
+  // c = 2.5 + 1 = 3.5 periods, weights 1, 1, 1, 0.5.
+  // coverDemand = 100 + 180 + 260 + 0.5 * 140 = 610; variances 100 + 144 + 196 + 0.5 * 256 = 568;
+  // d = 610 / 3.5 = 174.2857; d^2 * 0.5^2 = 7591.84; sigma = sqrt(568 + 7591.84) = 90.343;
+  // z(0.95) = 1.6449: z * sigma = 148.60 -> safety stock 149 (rounded up);
+  // reorder point (order-up-to level) = ceil(610 + 148.60) = 759.
+  const c = ref.summed
+  const opts = { leadTimePeriods: c.leadTime, reviewPeriods: c.review, leadTimeSdPeriods: c.leadTimeSd, serviceLevel: c.serviceLevel }
+  const r = computeReplenishment(points(c.point), c.sd, opts)
 
   it('matches the hand-computed case', () => {
-    expect(result.leadTimeDemand).toBe(375)
-    expect(result.sigma).toBeCloseTo(6.1237, 4)
-    expect(result.safetyStock).toBeCloseTo(10.073, 3)
-    expect(result.reorderPoint).toBeCloseTo(385.073, 3)
-    expect(result.formula).toBe('sigma1-sqrt-lead-time')
+    expect(r).toMatchObject({ leadTimeDemand: 100 + 180 + 0.5 * 260, coverDemand: 610, safetyStock: 149, reorderPoint: 759 })
+    expect(r.sigma).toBeCloseTo(90.343, 3)
+    expect(r.formula).toBe('summed-step-variance')
   })
 
-  it('matches base R to 1e-12 relative', () => {
-    expect(approxEqual(result.sigma!, c.sigma, 1e-12)).toBe(true)
-    expect(approxEqual(result.safetyStock!, c.safetyStock, 1e-12)).toBe(true)
-    expect(approxEqual(result.reorderPoint!, c.reorderPoint, 1e-12)).toBe(true)
+  it('matches base R to 1e-12 relative, including the row for an order placed in period 2', () => {
+    expect(approxEqual(r.sigma!, c.sigma, 1e-12)).toBe(true)
+    expect(r.reorderPoint).toBe(Math.ceil(c.rawReorderPoint))
+    // Rows for orders placed in periods 1..3: the interval (4 steps) fits three times in 6 periods.
+    expect(r.periods.map((p) => p.period)).toEqual(['2026-01', '2026-02', '2026-03'])
+    expect(r.periods[0]).toMatchObject({ coverDemand: 610, safetyStock: 149, reorderPoint: 759 })
+    expect(r.periods[1]!.coverDemand).toBe(c.coverDemand2)
+    expect(approxEqual(r.periods[1]!.sigma!, c.sigma2, 1e-12)).toBe(true)
   })
 
-  it('grows with the square root of the lead time and with the service level', () => {
-    const at = (leadTimePeriods: number, serviceLevel: number) =>
-      computeReplenishment([10, 10, 10, 10], 2, { leadTimePeriods, serviceLevel }).safetyStock!
-    expect(at(4, 0.95) / at(1, 0.95)).toBeCloseTo(2, 12)
-    expect(at(2, 0.99)).toBeGreaterThan(at(2, 0.95))
+  it('reduces to the fixed-lead-time formula sqrt(L) * sigma_1 when every step has sd sigma_1 and sigma_L = 0', () => {
+    // L = 4, sigma_1 = 2: sqrt(4 * 4) = 4; z(0.95) * 4 = 6.58 -> 7 units.
+    const flat = computeReplenishment(points([10, 10, 10, 10]), [2, 2, 2, 2], { leadTimePeriods: 4, serviceLevel: 0.95 })
+    expect(flat.sigma).toBeCloseTo(4, 12)
+    expect(flat.safetyStock).toBe(7)
+    expect(flat.reorderPoint).toBe(47)
+  })
+
+  it('rounds the order quantity up to the minimum order and whole packs', () => {
+    // Demand over the review period (1 period) = 100; minimum 120 -> 120; packs of 24 -> 5 packs = 120; of 50 -> 150.
+    expect(computeReplenishment(points(c.point), c.sd, { ...opts, minimumOrder: 120, packSize: 24 }).orderQuantity).toBe(120)
+    expect(computeReplenishment(points(c.point), c.sd, { ...opts, minimumOrder: 120, packSize: 50 }).orderQuantity).toBe(150)
+    // Without a minimum: 100 in packs of 12 -> 9 packs = 108.
+    expect(computeReplenishment(points(c.point), c.sd, { ...opts, packSize: 12 }).orderQuantity).toBe(108)
+  })
+
+  it('differs by season for a seasonal item: the peak month carries the larger reorder point', () => {
+    // A strongly seasonal history (garden hose: summer peak), two years, monthly.
+    const season = [20, 25, 60, 110, 180, 240, 250, 190, 100, 50, 25, 20]
+    const demand = [...season, ...season.map((v) => v * 1.1)]
+    const result = forecastSeries({ demand, frequency: 'month', firstPeriod: '2024-01', horizon: 12 })
+    const fig = replenishmentFor(result, { leadTimePeriods: 1, serviceLevel: 0.95 })
+    const byPeriod = new Map(fig.periods.map((p) => [p.period, p.reorderPoint!]))
+    expect(byPeriod.get('2026-07')!).toBeGreaterThan(byPeriod.get('2026-01')!)
   })
 })

@@ -122,3 +122,39 @@ describe('CSV helpers', () => {
     expect(textCell(' 12 pipes')).toBe(' 12 pipes')
   })
 })
+
+describe('CSV export with replenishment figures', () => {
+  let app: FastifyInstance
+  let gateway: InMemoryGatewayDouble
+  let runId: string
+  beforeAll(async () => {
+    gateway = new InMemoryGatewayDouble()
+    app = await build({ config: testConfig(), gateway })
+    const body = { ...REQUEST, replenishment: { leadTimePeriods: 1, serviceLevel: 0.95, packSize: 6 } }
+    runId = (await app.inject({ method: 'POST', url: '/v1/runs', headers: auth(KEY_GARDEN), payload: body })).json().id
+    const base = items()[0] as Extract<ResultItem, { model: string }>
+    const replenishment = {
+      leadTimePeriods: 1, reviewPeriods: 0, leadTimeSdPeriods: 0, serviceLevel: 0.95, minimumOrder: 0, packSize: 6,
+      leadTimeDemand: 10.25, coverDemand: 10.25, sigma: 1.5, z: 1.6448536269514715, safetyStock: 3, reorderPoint: 13,
+      orderQuantity: 12, formula: 'summed-step-variance' as const,
+      periods: [
+        { period: '2026-01', coverDemand: 10.25, sigma: 1.5, safetyStock: 3, reorderPoint: 13 },
+        { period: '2026-02', coverDemand: 0, sigma: 2, safetyStock: 4, reorderPoint: 4 },
+      ],
+    }
+    gateway.complete(runId, [{ ...base, replenishment }, items()[2]!])
+  })
+  afterAll(() => app.close())
+
+  it('adds the policy and per-period figures before failure, and keeps failed rows aligned', async () => {
+    const res = await app.inject({ url: `/v1/runs/${runId}/results`, headers: { ...auth(KEY_GARDEN), accept: 'text/csv' } })
+    const rows = parse(res.body, { columns: true }) as Record<string, string>[]
+    expect(Object.keys(rows[0]!).slice(10)).toEqual([
+      'leadTimePeriods', 'reviewPeriods', 'leadTimeSdPeriods', 'serviceLevel', 'coverDemand', 'safetyStock', 'reorderPoint',
+      'orderQuantity', 'minimumOrder', 'packSize', 'failure',
+    ])
+    expect(rows[0]).toMatchObject({ period: '2026-01', coverDemand: '10.25', safetyStock: '3', reorderPoint: '13', orderQuantity: '12', packSize: '6' })
+    expect(rows[1]).toMatchObject({ period: '2026-02', safetyStock: '4', reorderPoint: '4', failure: '' })
+    expect(rows[2]).toMatchObject({ sku: "'-SHOVEL, \"steel\"", safetyStock: '', failure: expect.stringContaining('series-too-short') })
+  })
+})

@@ -38,7 +38,7 @@ describe('POST /v1/history with CSV', () => {
     expect(res.statusCode).toBe(200)
     const report = res.json()
     expect(report).toMatchObject({
-      mode: 'append',
+      mode: 'add',
       frequency: 'month',
       rows: { accepted: 5, rejected: 4 },
       skus: { created: 2, updated: 0, rejected: 0 },
@@ -84,10 +84,10 @@ describe('POST /v1/history with CSV', () => {
     expect(await history('TWINE')).toMatchObject({ demand: [7, 1] })
   })
 
-  it('append adds new actuals after the stored ones and overwrites a period sent again', async () => {
+  it('overwrite adds new actuals after the stored ones and overwrites a period sent again', async () => {
     await put('SEED-MIX', { frequency: 'month', firstPeriod: '2025-01', demand: [3, 4, 5], tags: ['category:garden'] })
-    const res = await upload('?mode=append', 'text/csv', 'sku,period,demand\nSEED-MIX,2025-03,6\nSEED-MIX,2025-04,7\n')
-    expect(res.json().skus).toEqual({ created: 0, updated: 1, rejected: 0 })
+    const res = await upload('?mode=overwrite', 'text/csv', 'sku,period,demand\nSEED-MIX,2025-03,6\nSEED-MIX,2025-04,7\n')
+    expect(res.json().skus).toEqual({ created: 0, updated: 1, rejected: 0, alreadyApplied: 0, zeroed: 0 })
     expect(await history('SEED-MIX')).toMatchObject({ firstPeriod: '2025-01', demand: [3, 4, 6, 7], tags: ['category:garden'] })
   })
 
@@ -134,9 +134,15 @@ describe('POST /v1/history with NDJSON and JSON', () => {
       JSON.stringify({ sku: 'VEST-M', period: '2025-02-03', demand: null }),
       '',
     ].join('\n')
-    const res = await upload('', 'application/x-ndjson', body)
+    // Dated rows add and series overwrite by default: a mix needs the mode named, and nothing is stored.
+    const mixed = await upload('', 'application/x-ndjson', body)
+    expect(mixed.statusCode).toBe(400)
+    expect(mixed.json().errors).toEqual([{ path: 'mode', message: expect.stringContaining('mixes 2 dated row(s)') }])
+    expect(await history('BOOTS-42')).toBeNull()
+    const res = await upload('?mode=add', 'application/x-ndjson', body)
     expect(res.statusCode).toBe(200)
     expect(res.json()).toMatchObject({
+      mode: 'add',
       rows: { accepted: 3, rejected: 2 },
       errors: [
         { line: 4, reason: 'the line is not valid JSON' },
@@ -170,7 +176,7 @@ describe('POST /v1/history with NDJSON and JSON', () => {
     expect(await history('HOSE-25M')).toMatchObject({ firstPeriod: '2024-10', demand: [1, 2] })
   })
 
-  it('an append with another frequency rejects that SKU only, with its rows counted', async () => {
+  it('an overwrite with another frequency rejects that SKU only, with its rows counted', async () => {
     const res = await upload('?frequency=week', 'text/csv', 'sku,period,demand\nHOSE-25M,2025-01-06,1\nFRESH,2025-01-06,2\n')
     expect(res.json()).toMatchObject({
       rows: { accepted: 1, rejected: 1 },

@@ -46,7 +46,7 @@ const TARGETS: { method: 'POST' | 'PUT'; url: string; body: () => unknown }[] = 
   {
     method: 'POST',
     url: '/v1/history',
-    body: () => ({ mode: 'append', series: [{ sku: 'HOSE-02', firstPeriod: '2023-01', demand: [1, 2, 3], tags: ['site:north'] }] }),
+    body: () => ({ mode: 'overwrite', series: [{ sku: 'HOSE-02', firstPeriod: '2023-01', demand: [1, 2, 3], tags: ['site:north'] }] }),
   },
   { method: 'POST', url: '/v1/callbacks', body: () => ({ url: 'https://erp.example/hooks', events: ['run.succeeded'] }) },
   {

@@ -156,7 +156,7 @@ describe('the README walk-through through a generated client', () => {
 
   it('stores histories from CSV and one PUT, then reforecasts them by tag', async () => {
     const upload = await client.POST('/v1/history', {
-      params: { query: { frequency: 'month', mode: 'append' } },
+      params: { query: { frequency: 'month', mode: 'overwrite' } },
       body: 'sku,period,demand\nGRD-1001,2026-01-05,12\nGRD-1001,2026-01-19,7\n' as never,
       bodySerializer: (b) => b as string,
       headers: { 'content-type': 'text/csv' },

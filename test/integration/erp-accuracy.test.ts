@@ -105,7 +105,7 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     await app.inject({
       method: 'POST',
       url: '/v1/history?frequency=month',
-      payload: { mode: 'append', series: [{ sku: 'HOSE-BIASED', firstPeriod: '2026-01', demand: [130, 125, 140, 135, 120] }] },
+      payload: { mode: 'overwrite', series: [{ sku: 'HOSE-BIASED', firstPeriod: '2026-01', demand: [130, 125, 140, 135, 120] }] },
     })
     const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
     expect(acc).toMatchObject({ scoredPeriods: 5, trackingSignal: 5 })
@@ -118,7 +118,7 @@ describe('accuracy tracking', { timeout: 120_000 }, () => {
     await app.inject({
       method: 'POST',
       url: '/v1/history?frequency=month',
-      payload: { mode: 'append', series: [{ sku: 'HOSE-BIASED', firstPeriod: '2026-05', demand: [80] }] },
+      payload: { mode: 'overwrite', series: [{ sku: 'HOSE-BIASED', firstPeriod: '2026-05', demand: [80] }] },
     })
     const acc = (await app.inject({ url: '/v1/skus/HOSE-BIASED/accuracy' })).json()
     expect(acc.scoredPeriods).toBe(5)

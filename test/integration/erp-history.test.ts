@@ -65,7 +65,7 @@ describe('runs over stored histories', () => {
   beforeAll(async () => {
     // Bulk JSON upload of every series, then tags by PUT for a known split.
     const res = await app.inject({ method: 'POST', url: '/v1/history?mode=replace', headers: as(GARDEN), payload: { series } })
-    expect(res.json().skus).toEqual({ created: 10, updated: 0, rejected: 0 })
+    expect(res.json().skus).toEqual({ created: 10, updated: 0, rejected: 0, alreadyApplied: 0, zeroed: 0 })
     for (const [i, s] of series.entries()) {
       const put = await app.inject({
         method: 'PUT',
@@ -141,7 +141,7 @@ describe('runs over stored histories', () => {
     const sku = series[1]!.sku
     // The stored history ends 2025-06 (30 months from 2023-01); append July and August 2025 as daily rows.
     const csv = `sku,period,demand\n${sku},2025-07-03,40\n${sku},2025-07-21,2\n${sku},2025-08-11,17.5\n`
-    const up = await app.inject({ method: 'POST', url: '/v1/history?mode=append', headers: { ...as(GARDEN), 'content-type': 'text/csv' }, payload: csv })
+    const up = await app.inject({ method: 'POST', url: '/v1/history?mode=overwrite', headers: { ...as(GARDEN), 'content-type': 'text/csv' }, payload: csv })
     expect(up.json().rows).toEqual({ accepted: 3, rejected: 0 })
     const items = await finishedResults((await submit({ horizon: 2, scope: { skus: [sku] }, models: ['last-value'] })).json().id)
     const item = items.get(sku) as { forecast: { period: string; demand: number }[] }

@@ -40,13 +40,15 @@ describe('replenishment figures in run results', { timeout: 120_000 }, () => {
     for (const item of page.items as Forecast[]) {
       const r = item.replenishment!
       const ltd = item.forecast.slice(0, 3).reduce((a, p) => a + p.demand, 0)
-      // Stored figures keep 7 significant digits.
+      // Stored figures keep 7 significant digits; safety stock and reorder point are whole units, rounded up.
       expect(r.leadTimeDemand).toBeCloseTo(ltd, 3)
+      expect(r.coverDemand).toBeCloseTo(ltd, 3)
       expect(r.z).toBeCloseTo(1.6449, 4) // standard normal table, 95 %
       expect(r.sigma).toBeGreaterThan(0)
-      expect(r.safetyStock!).toBeCloseTo(r.z * r.sigma!, 3)
-      expect(r.reorderPoint!).toBeCloseTo(r.leadTimeDemand + r.safetyStock!, 3)
-      expect(r.formula).toBe('sigma1-sqrt-lead-time')
+      expect(r.safetyStock!).toBe(Math.ceil(r.z * r.sigma! - 1e-6))
+      expect(Math.abs(r.reorderPoint! - Math.ceil(r.coverDemand + r.z * r.sigma!))).toBeLessThanOrEqual(1)
+      expect(r.formula).toBe('summed-step-variance')
+      expect(r.periods.map((p) => p.period)).toEqual(item.forecast.slice(0, 4).map((p) => p.period))
     }
     const latest = (await app.inject({ url: '/v1/skus/MULCH-00003/forecast' })).json()
     expect(latest.replenishment.leadTimePeriods).toBe(3)
@@ -68,7 +70,7 @@ describe('replenishment figures in run results', { timeout: 120_000 }, () => {
     expect(res.json().errors).toEqual([
       {
         path: 'replenishment.leadTimePeriods',
-        message: 'leadTimePeriods (3) must not exceed the horizon (2): lead-time demand needs a forecast for every period of the lead time',
+        message: 'lead time plus review period (3 periods) must not exceed the horizon (2): the demand over them needs a forecast for every period',
       },
     ])
   })
@@ -111,11 +113,14 @@ describe('stored item codec keeps the figures', () => {
       warnings: [],
     } as Forecast
     const replenishment = {
-      leadTimePeriods: 1, serviceLevel: 0.95, leadTimeDemand: 10, sigma: 2.123456789, z: 1.6448536269514715,
-      safetyStock: 3.4927512345, reorderPoint: 13.4927512345, formula: 'sigma1-sqrt-lead-time',
+      leadTimePeriods: 0.3285421, reviewPeriods: 0, leadTimeSdPeriods: 0, serviceLevel: 0.95, minimumOrder: 0, packSize: 1,
+      leadTimeDemand: 3.285421234, coverDemand: 3.285421234, sigma: 2.123456789, z: 1.6448536269514715,
+      safetyStock: 4, reorderPoint: 7, orderQuantity: 10, formula: 'summed-step-variance',
+      periods: [{ period: '2026-01', coverDemand: 3.285421234, sigma: 2.123456789, safetyStock: 4, reorderPoint: 7 }],
     } as const
     const back = loadItem('RAKE-1', storeItem({ ...base, replenishment })) as Forecast
-    expect(back.replenishment).toEqual({ ...replenishment, sigma: 2.123457, safetyStock: 3.492751, reorderPoint: 13.49275 })
+    const periods = [{ ...replenishment.periods[0], coverDemand: 3.285421, sigma: 2.123457 }]
+    expect(back.replenishment).toEqual({ ...replenishment, leadTimeDemand: 3.285421, coverDemand: 3.285421, sigma: 2.123457, periods })
     expect(loadItem('RAKE-1', storeItem(base))).not.toHaveProperty('replenishment')
   })
 })

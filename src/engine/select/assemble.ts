@@ -125,6 +125,7 @@ export function assembleResult(
     residuals: residualSummary(prep.values, winner.fitted),
     forecast,
     intervalMethod: bounds.method,
+    stepSd: bounds.sd,
     candidates: selection.candidates,
     warnings,
     history: prep.history,

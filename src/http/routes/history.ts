@@ -3,15 +3,16 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { z } from 'zod'
 import { HistoryAccumulator } from '../../history/accumulator.js'
 import { readCsvUpload, UploadFormatError } from '../../history/csv-reader.js'
-import { commitUpload } from '../../history/ingest.js'
+import { commitUpload, defaultMode } from '../../history/ingest.js'
 import { withSkuQuota } from '../../history/quota.js'
 import { DEFAULT_QUOTA_SKUS_PER_TENANT } from '../../config.js'
+import { bucketOf } from '../../history/buckets.js'
+import { formatPeriod } from '../../engine/index.js'
 import { readNdjsonUpload } from '../../history/ndjson-reader.js'
 import { parseUploadSeries, UploadSeries } from '../../history/series-item.js'
 import { MAX_FIELD_ERRORS } from '../problem-mapping.js'
 import { fieldIssues, formatFieldPath, ProblemError } from '../../errors.js'
-import { JsonUpload, UploadQuery, UploadReportSchema } from '../../schemas/history.js'
-import { UPLOAD_MODES } from '../../history/types.js'
+import { JsonUpload, UploadMode, UploadQuery, UploadReportSchema } from '../../schemas/history.js'
 import { requireHistories } from '../plugins/history.js'
 import { IDEMPOTENT, WRITE } from './responses.js'
 
@@ -43,17 +44,29 @@ export function limitBytes(source: Readable, max: number): Readable {
  * one bad series does not reject the rest) and streams the other two.
  */
 function uploadBodies(): Record<string, unknown> {
-  const { $schema: _drop, ...json } = z.toJSONSchema(z.strictObject({ mode: z.enum(UPLOAD_MODES).optional(), series: z.array(UploadSeries).min(1) }), {
+  const { $schema: _drop, $defs: defs, ...json } = z.toJSONSchema(z.strictObject({ mode: UploadMode.optional(), series: z.array(UploadSeries).min(1) }), {
     io: 'input',
   })
   const text = (description: string) => ({ schema: { type: 'string', description } })
   const ndjson = text('One JSON object per line: a series { sku, frequency?, firstPeriod, demand, tags? } or a row { sku, period, demand }')
   return {
-    'application/json': { schema: json },
+    'application/json': { schema: inlineDefs(json, defs ?? {}) },
     'application/x-ndjson': ndjson,
     'application/ndjson': ndjson,
     'text/csv': text('A header row, then one sku,period,demand row per line (column names set by the query)'),
   }
+}
+
+/**
+ * The schema with each `#/$defs/<id>` reference replaced by its definition: this
+ * body sits inside the OpenAPI document, where a local `$defs` does not resolve.
+ */
+function inlineDefs(node: unknown, defs: Record<string, unknown>): unknown {
+  if (Array.isArray(node)) return node.map((n) => inlineDefs(n, defs))
+  if (typeof node !== 'object' || node === null) return node
+  const ref = (node as { $ref?: unknown }).$ref
+  if (typeof ref === 'string' && ref.startsWith('#/$defs/')) return inlineDefs(defs[ref.slice('#/$defs/'.length)], defs)
+  return Object.fromEntries(Object.entries(node).map(([k, v]) => [k, inlineDefs(v, defs)]))
 }
 
 /** POST /v1/history: bulk upsert of stored histories from JSON, NDJSON or CSV. */
@@ -77,7 +90,12 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           'A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label',
           '(2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU\'s first and last row without rows become 0.',
           'Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written',
-          'atomically, and a SKU without good rows keeps its stored history. Idempotency-Key is honoured.',
+          'atomically, and a SKU without good rows keeps its stored history.',
+          '`mode`: add (default for dated rows: transactions are added to the stored periods), overwrite (default for',
+          'period rows and series: each period sent replaces the stored one), replace (the whole history), or',
+          'replace-open-period (a month-to-date file: the one open period of every stored SKU of the frequency).',
+          'Resending is safe with Idempotency-Key (the same answer again) or `batch` (each SKU is written once per',
+          'batch id while it is remembered).',
         ].join(' '),
         querystring: UploadQuery,
         response: { 200: UploadReportSchema },
@@ -133,12 +151,57 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           else acc.addSeries(s.sku, s.incoming, { item })
         })
       }
+      if (mode === undefined) {
+        const resolved = defaultMode(acc.kinds)
+        if ('reason' in resolved) throw new ProblemError('validation-failed', resolved.reason, [{ path: 'mode', message: resolved.reason }])
+        mode = resolved.mode
+      }
+      let openPeriod: number | undefined
+      if (mode === 'replace-open-period') openPeriod = openPeriodOf(q.openPeriod, acc)
+      else if (q.openPeriod !== undefined) {
+        throw new ProblemError('validation-failed', 'openPeriod applies only to mode=replace-open-period', [
+          { path: 'openPeriod', message: `mode is ${mode}` },
+        ])
+      }
+      const feedBatch = q.batch === undefined ? undefined : { id: q.batch, ttlSeconds: app.config.uploadBatchTtlSeconds ?? DEFAULT_BATCH_TTL_SECONDS }
       const quota = app.config.quotaSkusPerTenant ?? DEFAULT_QUOTA_SKUS_PER_TENANT
-      const report = await commitUpload(acc, withSkuQuota(store, store, quota), request.tenant, mode ?? 'append')
+      const report = await commitUpload(acc, withSkuQuota(store, store, quota), request.tenant, mode, {
+        ...(feedBatch === undefined ? {} : { feedBatch }),
+        ...(openPeriod === undefined ? {} : { openPeriod }),
+      })
       request.log.info({ type, mode: report.mode, rows: report.rows, skus: report.skus }, 'history upload')
       return { ...report, errors: [...report.errors] }
     },
   )
+}
+
+/** Feed batch ids are remembered 35 days unless configured: a monthly feed's files stay known until the month after. */
+const DEFAULT_BATCH_TTL_SECONDS = 35 * 24 * 3600
+
+/**
+ * The open period of a replace-open-period upload: the one named, or else the
+ * one period all accepted rows fall in (a month-to-date file holds one).
+ * @throws ProblemError (400 naming openPeriod) when it is neither given nor evident
+ */
+function openPeriodOf(named: string | undefined, acc: HistoryAccumulator): number {
+  if (named !== undefined) {
+    const bucket = bucketOf(named, acc.frequency)
+    // A date is a day's own label; for coarser frequencies the open period is named by its label.
+    if ('reason' in bucket || (bucket.dated && acc.frequency !== 'day')) {
+      const message = 'reason' in bucket ? bucket.reason : `give a ${acc.frequency} period label, not a date`
+      throw new ProblemError('validation-failed', `openPeriod: ${message}`, [{ path: 'openPeriod', message }])
+    }
+    return bucket.ordinal
+  }
+  const span = acc.span
+  if (span === null || span.lo !== span.hi) {
+    const message =
+      span === null
+        ? 'the upload has no accepted rows to take the open period from; name it with openPeriod'
+        : `the rows span ${formatPeriod(span.lo, acc.frequency)}..${formatPeriod(span.hi, acc.frequency)}; name the open period with openPeriod`
+    throw new ProblemError('validation-failed', message, [{ path: 'openPeriod', message }])
+  }
+  return span.lo
 }
 
 export default routes

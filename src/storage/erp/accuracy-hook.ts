@@ -1,6 +1,7 @@
 import type { RedisClient } from '../redis.js'
 import type { PendingHistory } from '../../history/accumulator.js'
 import type { HistoryData } from '../../history/types.js'
+import type { WriteOutcome } from '../../history/ingest.js'
 import type { AccuracyStore, HistoryEntry } from './accuracy-store.js'
 import { HistoryStore } from '../histories/history-store.js'
 
@@ -29,19 +30,21 @@ export class AccuracyTrackingHistoryStore extends HistoryStore {
     tenant: string,
     batch: readonly PendingHistory[],
     merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
-  ): Promise<({ outcome: 'created' | 'updated' } | { reason: string })[]> {
+    opts?: Parameters<HistoryStore['apply']>[3],
+  ): Promise<WriteOutcome[]> {
     // What each SKU's history became (the merge result is what gets stored).
     const stored = new Map<string, HistoryData>()
     const results = await super.apply(tenant, batch, (current, pending) => {
       const merged = merge(current, pending)
       if ('data' in merged) stored.set(pending.sku, merged.data)
       return merged
-    })
+    }, opts)
     const entries: HistoryEntry[] = []
     batch.forEach((p, i) => {
       const r = results[i]
       const data = stored.get(p.sku)
-      if (r === undefined || !('outcome' in r) || !data) return
+      // A SKU its feed batch had already written was not written again: nothing new to score.
+      if (r === undefined || !('outcome' in r) || r.outcome === 'already-applied' || !data) return
       entries.push({ sku: p.sku, frequency: data.frequency, firstPeriod: data.firstPeriod, demand: data.demand })
     })
     try {

@@ -156,6 +156,16 @@ export class AccuracyStore {
     return `${this.base(tenant)}:p:${Buffer.from(sku, 'utf8').toString('base64url')}`
   }
 
+  /** Delete a SKU's accuracy records, summary and exception entry (its history was deleted). */
+  async forget(tenant: string, sku: string): Promise<void> {
+    // One command per key: the keys have no common hash tag, so a cluster may hold them on different slots.
+    await Promise.all([
+      this.redis.del(this.periodsKey(tenant, sku)),
+      this.redis.hdel(`${this.base(tenant)}:summary`, sku),
+      this.redis.zrem(`${this.base(tenant)}:exceptions`, sku),
+    ])
+  }
+
   /**
    * Rescores the SKUs whose histories were written (an upload, a closing): one
    * round trip finds the SKUs that have published forecasts; only those cost more.

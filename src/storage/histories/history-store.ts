@@ -3,19 +3,20 @@ import type { RedisClient } from '../redis.js'
 import { decodeJson } from '../decode.js'
 import { FREQUENCIES, formatPeriod, parsePeriod, type Frequency } from '../../engine/index.js'
 import type { PendingHistory } from '../../history/accumulator.js'
-import type { HistoryWriter } from '../../history/ingest.js'
+import type { FeedBatch, HistoryWriter, WriteOutcome } from '../../history/ingest.js'
 import type { HistoryData } from '../../history/types.js'
 import { decodeCursor, encodeCursor } from '../paging.js'
 import { isValidTenant } from '../keys.js'
-import type { RunScope } from '../../schemas/run.js'
+import { StockPolicy, type RunScope } from '../../schemas/run.js'
 
 /**
  * Stored demand histories per tenant, in Redis. Histories are master data: no TTL.
  *
  *   hist:{T}:data      hash  sku -> JSON array of demand per period (null = missing period)
- *   hist:{T}:meta      hash  sku -> JSON {f: frequency, s: firstPeriod, n: periodCount, t: tags, u: updatedAt, r: revision}
+ *   hist:{T}:meta      hash  sku -> JSON {f: frequency, s: firstPeriod, n: periodCount, t: tags, u: updatedAt, r: revision, p?: stock policy}
  *   hist:{T}:skus      zset  every SKU with a history, score 0 (ordered by ZRANGEBYLEX)
  *   hist:{T}:tag:<tag> zset  SKUs carrying the tag, score 0
+ *   hist:{T}:batch:<id> set  SKUs a feed batch has written (expires: a resent batch is not added twice)
  *
  * under `${prefix}:t:${tenant}:`. The tenant sits in a hash tag so one
  * SKU's write (a Lua script over data, meta, the index and tag sets) stays on
@@ -46,6 +47,7 @@ interface Meta {
   readonly t: readonly string[]
   readonly u: string
   readonly r: number
+  readonly p?: StockPolicy
 }
 
 /** A meta field as stored: frequency, first period, period count, tags, updated at, revision. */
@@ -56,6 +58,7 @@ const MetaRecord = z.object({
   t: z.array(z.string()),
   u: z.string(),
   r: z.number().int().min(0),
+  p: StockPolicy.optional(),
 })
 
 const decodeMeta = (sku: string, raw: string): Meta => decodeJson(MetaRecord, raw, `history meta of SKU ${sku}`)
@@ -74,23 +77,48 @@ function decodeDemand(sku: string, raw: string): (number | null)[] {
 }
 
 /**
- * KEYS: data, meta, skus, then nNew new-tag sets, then nOld old-tag sets.
- * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld.
- * Returns 1 when written, 0 when the meta changed since it was read.
+ * KEYS: data, meta, skus, then nNew new-tag sets, then nOld old-tag sets, then the batch set when a batch is given.
+ * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld, batch TTL in seconds ('' without a batch).
+ * Returns 1 when written, 0 when the meta changed since it was read, 2 when the batch already wrote this SKU.
+ * The batch check and mark sit in the same script as the write, so a batch resent after a partial failure
+ * adds exactly the SKUs it had not written yet.
  */
 const PUT_HISTORY = `
+local nNew = tonumber(ARGV[5])
+local nOld = tonumber(ARGV[6])
+local batchKey = nil
+if ARGV[7] ~= '' then
+  batchKey = KEYS[3 + nNew + nOld + 1]
+  if redis.call('SISMEMBER', batchKey, ARGV[1]) == 1 then return 2 end
+end
 local cur = redis.call('HGET', KEYS[2], ARGV[1])
 if (cur or '') ~= ARGV[2] then return 0 end
 redis.call('HSET', KEYS[1], ARGV[1], ARGV[4])
 redis.call('HSET', KEYS[2], ARGV[1], ARGV[3])
 redis.call('ZADD', KEYS[3], 0, ARGV[1])
-local nNew = tonumber(ARGV[5])
-local nOld = tonumber(ARGV[6])
 for i = 1, nOld do redis.call('ZREM', KEYS[3 + nNew + i], ARGV[1]) end
 for i = 1, nNew do redis.call('ZADD', KEYS[3 + i], 0, ARGV[1]) end
+if batchKey then
+  redis.call('SADD', batchKey, ARGV[1])
+  redis.call('EXPIRE', batchKey, tonumber(ARGV[7]))
+end
 return 1
 `
 const PUT_COMMAND = 'almanacPutHistory'
+
+/**
+ * KEYS: data, meta, skus, then the SKU's tag sets. ARGV: sku, expected meta.
+ * Returns 1 when deleted, 0 when the meta changed since it was read.
+ */
+const DELETE_HISTORY = `
+if (redis.call('HGET', KEYS[2], ARGV[1]) or '') ~= ARGV[2] then return 0 end
+redis.call('HDEL', KEYS[1], ARGV[1])
+redis.call('HDEL', KEYS[2], ARGV[1])
+redis.call('ZREM', KEYS[3], ARGV[1])
+for i = 4, #KEYS do redis.call('ZREM', KEYS[i], ARGV[1]) end
+return 1
+`
+const DELETE_COMMAND = 'almanacDeleteHistory'
 /** Rounds of read-merge-write per SKU before a SKU is reported as contended (with a short random pause between). */
 const MAX_ATTEMPTS = 10
 
@@ -100,6 +128,7 @@ export class HistoryStore implements HistoryWriter {
     private readonly opts: { readonly prefix: string; readonly now?: () => Date },
   ) {
     if (!(PUT_COMMAND in redis)) redis.defineCommand(PUT_COMMAND, { lua: PUT_HISTORY })
+    if (!(DELETE_COMMAND in redis)) redis.defineCommand(DELETE_COMMAND, { lua: DELETE_HISTORY })
   }
 
   private base(tenant: string): string {
@@ -109,7 +138,13 @@ export class HistoryStore implements HistoryWriter {
 
   private keys(tenant: string) {
     const base = this.base(tenant)
-    return { data: `${base}:data`, meta: `${base}:meta`, skus: `${base}:skus`, tag: (t: string) => `${base}:tag:${t}` }
+    return {
+      data: `${base}:data`,
+      meta: `${base}:meta`,
+      skus: `${base}:skus`,
+      tag: (t: string) => `${base}:tag:${t}`,
+      batch: (id: string) => `${base}:batch:${id}`,
+    }
   }
 
   async get(tenant: string, sku: string): Promise<StoredHistory | null> {
@@ -143,11 +178,28 @@ export class HistoryStore implements HistoryWriter {
     return out
   }
 
+  /**
+   * Delete one SKU's history, its place in the SKU index and its tag sets, atomically
+   * (retried if the SKU is written meanwhile).
+   * @returns false when the SKU had no history
+   */
+  async delete(tenant: string, sku: string): Promise<boolean> {
+    const k = this.keys(tenant)
+    for (let attempt = 0; attempt < MAX_ATTEMPTS; attempt++) {
+      const raw = await this.redis.hget(k.meta, sku)
+      if (raw === null) return false
+      const keys = [k.data, k.meta, k.skus, ...decodeMeta(sku, raw).t.map(k.tag)]
+      const run = (this.redis as unknown as Record<string, (...a: unknown[]) => Promise<unknown>>)[DELETE_COMMAND]!
+      if ((await run.call(this.redis, keys.length, ...keys, sku, raw)) === 1) return true
+    }
+    throw new Error(`the history of SKU ${sku} changed concurrently several times; retry the delete`)
+  }
+
   /** Replace one SKU's history; says whether it was created. */
   async put(tenant: string, sku: string, data: HistoryData): Promise<{ outcome: 'created' | 'updated'; history: StoredHistory }> {
     const pending = { sku, incoming: { frequency: data.frequency, startOrdinal: 0, demand: [] }, rows: 0, origin: {} }
     const [r] = await this.apply(tenant, [pending], () => ({ data }), { readValues: false })
-    if (!r || 'reason' in r) throw new Error(r ? r.reason : 'history not written')
+    if (!r || 'reason' in r || r.outcome === 'already-applied') throw new Error(r && 'reason' in r ? r.reason : 'history not written')
     return { outcome: r.outcome, history: (await this.get(tenant, sku))! }
   }
 
@@ -155,12 +207,15 @@ export class HistoryStore implements HistoryWriter {
     tenant: string,
     batch: readonly PendingHistory[],
     merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
-    opts: { readonly readValues?: boolean } = {},
-  ): Promise<({ outcome: 'created' | 'updated' } | { reason: string })[]> {
+    opts: { readonly readValues?: boolean; readonly feedBatch?: FeedBatch } = {},
+  ): Promise<WriteOutcome[]> {
     const k = this.keys(tenant)
+    const feed = opts.feedBatch
+    const batchKeys = feed === undefined ? [] : [k.batch(feed.id)]
+    const batchTtl = feed === undefined ? '' : String(Math.max(1, Math.floor(feed.ttlSeconds)))
     // A merge that replaces values needs only the metadata (tags, revision): skip reading the values.
     const readValues = opts.readValues ?? true
-    const results: ({ outcome: 'created' | 'updated' } | { reason: string })[] = new Array(batch.length)
+    const results: WriteOutcome[] = new Array(batch.length)
     let todo = batch.map((_, i) => i)
     for (let attempt = 0; attempt < MAX_ATTEMPTS && todo.length > 0; attempt++) {
       if (attempt > 0) await new Promise((r) => setTimeout(r, Math.random() * 5 * attempt))
@@ -183,10 +238,18 @@ export class HistoryStore implements HistoryWriter {
         }
         const oldMeta = rawMeta === null ? null : decodeMeta(p.sku, rawMeta)
         const d = merged.data
-        const meta: Meta = { f: d.frequency, s: d.firstPeriod, n: d.demand.length, t: d.tags, u: updatedAt, r: (oldMeta?.r ?? 0) + 1 }
+        const meta: Meta = {
+          f: d.frequency,
+          s: d.firstPeriod,
+          n: d.demand.length,
+          t: d.tags,
+          u: updatedAt,
+          r: (oldMeta?.r ?? 0) + 1,
+          ...(d.replenishment === undefined ? {} : { p: d.replenishment }),
+        }
         const oldTags = oldMeta?.t ?? []
-        const keys = [k.data, k.meta, k.skus, ...d.tags.map(k.tag), ...oldTags.map(k.tag)]
-        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length]
+        const keys = [k.data, k.meta, k.skus, ...d.tags.map(k.tag), ...oldTags.map(k.tag), ...batchKeys]
+        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length, batchTtl]
         ;(pipe as unknown as Record<string, (...a: unknown[]) => unknown>)[PUT_COMMAND]!(keys.length, ...keys, ...args)
         results[i] = { outcome: rawMeta === null ? 'created' : 'updated' }
         sent.push(i)
@@ -195,7 +258,8 @@ export class HistoryStore implements HistoryWriter {
       todo = []
       replies.forEach(([err, written], j) => {
         if (err) throw err
-        if (written !== 1) todo.push(sent[j]!)
+        if (written === 2) results[sent[j]!] = { outcome: 'already-applied' }
+        else if (written !== 1) todo.push(sent[j]!)
       })
     }
     for (const i of todo) results[i] = { reason: 'the history changed concurrently several times; retry the upload' }
@@ -278,7 +342,15 @@ export class HistoryStore implements HistoryWriter {
 function decode(sku: string, rawMeta: string | null, rawData: string | null): StoredHistory | null {
   if (rawMeta === null || rawData === null) return null
   const meta = decodeMeta(sku, rawMeta)
-  return { sku, frequency: meta.f, firstPeriod: meta.s, demand: decodeDemand(sku, rawData), tags: meta.t, updatedAt: meta.u }
+  return {
+    sku,
+    frequency: meta.f,
+    firstPeriod: meta.s,
+    demand: decodeDemand(sku, rawData),
+    tags: meta.t,
+    updatedAt: meta.u,
+    ...(meta.p === undefined ? {} : { replenishment: meta.p }),
+  }
 }
 
 function summary(sku: string, meta: Meta): HistorySummary {

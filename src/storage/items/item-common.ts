@@ -57,10 +57,38 @@ export function round(x: number, digits: number): number {
 export const r7 = (x: number) => round(x, 7)
 export const r4 = (x: number) => round(x, 4)
 
-export const REPLENISHMENT_FIELDS = ['leadTimePeriods', 'serviceLevel', 'leadTimeDemand', 'sigma', 'z', 'safetyStock', 'reorderPoint'] as const
+export const REPLENISHMENT_FIELDS = [
+  'leadTimePeriods',
+  'reviewPeriods',
+  'leadTimeSdPeriods',
+  'serviceLevel',
+  'minimumOrder',
+  'packSize',
+  'leadTimeDemand',
+  'coverDemand',
+  'sigma',
+  'z',
+  'safetyStock',
+  'reorderPoint',
+  'orderQuantity',
+] as const
 
-/** Options and z kept exactly; the figures to 7 significant digits like forecasts. */
-export const EXACT = new Set<string>(['leadTimePeriods', 'serviceLevel', 'z'])
+/** The fields of each `replenishment.periods` entry after its `period`. */
+export const REPLENISHMENT_PERIOD_FIELDS = ['coverDemand', 'sigma', 'safetyStock', 'reorderPoint'] as const
+
+/** Options, z and the whole-unit figures kept exactly; demands and sigma to 7 significant digits like forecasts. */
+export const EXACT = new Set<string>([
+  'leadTimePeriods',
+  'reviewPeriods',
+  'leadTimeSdPeriods',
+  'serviceLevel',
+  'minimumOrder',
+  'packSize',
+  'z',
+  'safetyStock',
+  'reorderPoint',
+  'orderQuantity',
+])
 
 /** A value as JSON.stringify writes it inside an array: undefined, NaN and Infinity as null. */
 export function jv(v: unknown): string {

@@ -1,5 +1,5 @@
 import { METRIC_NAMES, type Candidate, type ForecastInterval, type MetricSet, type ModelParams } from '../../engine/index.js'
-import { EXACT, POWERS_OF_TEN, REPLENISHMENT_FIELDS, decade, jv, r4, r7, round } from './item-common.js'
+import { EXACT, POWERS_OF_TEN, REPLENISHMENT_FIELDS, REPLENISHMENT_PERIOD_FIELDS, decade, jv, r4, round } from './item-common.js'
 import type { ResultItem } from '../../runs/contract.js'
 
 /**
@@ -98,16 +98,31 @@ export function servedBytes(item: ResultItem): Buffer {
     for (let i = 0; i < REPLENISHMENT_FIELDS.length; i++) {
       const k = REPLENISHMENT_FIELDS[i]!
       text(i === 0 ? `,"replenishment":{"${k}":` : `,"${k}":`)
-      const v = r[k]
-      if (v === null || EXACT.has(k) || typeof v !== 'number') value(v === null || EXACT.has(k) ? v : r7(v))
-      else rounded(v, 7)
+      figure(k, r[k])
     }
     text(',"formula":')
     value(r.formula)
-    text('}')
+    text(',"periods":[')
+    for (let j = 0; j < r.periods.length; j++) {
+      const p = r.periods[j]!
+      text(j === 0 ? '{"period":' : ',{"period":')
+      value(p.period)
+      for (const k of REPLENISHMENT_PERIOD_FIELDS) {
+        text(`,"${k}":`)
+        figure(k, p[k])
+      }
+      text('}')
+    }
+    text(']}')
   }
   text('}')
   return buf.subarray(0, pos)
+}
+
+/** A replenishment figure: exact when EXACT names it, else to 7 significant digits. */
+function figure(k: string, v: number | null): void {
+  if (v === null || EXACT.has(k) || typeof v !== 'number') value(v)
+  else rounded(v, 7)
 }
 
 const CANDIDATES_KEY = Buffer.from(',"candidates":[')

@@ -57,7 +57,13 @@ export async function createRunFromHistories(
       found++
       const through = args.closed?.[h.frequency]
       const open = through === undefined ? 0 : parsePeriod(h.firstPeriod, h.frequency) + h.demand.length - 1 - through
-      const series: ChunkSeriesItem = { sku: h.sku, firstPeriod: h.firstPeriod, demand: [...h.demand], frequency: h.frequency }
+      const series: ChunkSeriesItem = {
+        sku: h.sku,
+        firstPeriod: h.firstPeriod,
+        demand: [...h.demand],
+        frequency: h.frequency,
+        ...(h.replenishment === undefined ? {} : { replenishment: h.replenishment }),
+      }
       if (open > 0 && settings.openPeriods === 'include') chunk.push({ ...series, openPeriods: open })
       else if (open <= 0) chunk.push(series)
       else if (open < h.demand.length) chunk.push({ ...series, demand: series.demand.slice(0, h.demand.length - open) })

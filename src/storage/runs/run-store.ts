@@ -246,6 +246,12 @@ export class RunStore {
     return { items: stored.items.map(([sku, value]) => loadItem(sku, value)), nextCursor: stored.nextCursor }
   }
 
+  /** Forget a SKU's latest forecast (its history was deleted); the run's own results stay until they expire. */
+  async forgetLatest(tenant: string, sku: string): Promise<void> {
+    if (!isValidTenant(tenant)) return
+    await this.redis.hdel(latestKey(this.opts.prefix, tenant), sku)
+  }
+
   /**
    * The newest successful forecast of a SKU, or null when there is none or the
    * results of the run that made it have expired (retention).

@@ -28,12 +28,12 @@ const pending = (sku: string, start: string, demand: number[], tags?: string[]):
   rows: demand.length,
   origin: {},
 })
-const append = (current: Parameters<typeof mergeHistory>[0], p: PendingHistory) => mergeHistory(current, p.incoming, 'append')
+const overwrite = (current: Parameters<typeof mergeHistory>[0], p: PendingHistory) => mergeHistory(current, p.incoming, 'overwrite')
 
 describe('HistoryStore', () => {
-  it('concurrent appends to one SKU all land (the revision check retries the loser)', async () => {
-    await store.apply('garden', [pending('HOSE', '2025-01', [1])], append)
-    const writes = Array.from({ length: 5 }, (_, i) => store.apply('garden', [pending('HOSE', `2025-0${i + 2}`, [i + 2])], append))
+  it('concurrent overwrites to one SKU all land (the revision check retries the loser)', async () => {
+    await store.apply('garden', [pending('HOSE', '2025-01', [1])], overwrite)
+    const writes = Array.from({ length: 5 }, (_, i) => store.apply('garden', [pending('HOSE', `2025-0${i + 2}`, [i + 2])], overwrite))
     const results = await Promise.all(writes)
     for (const [r] of results) expect(r).toEqual({ outcome: 'updated' })
     expect((await store.get('garden', 'HOSE'))?.demand).toEqual([1, 2, 3, 4, 5, 6])
@@ -41,15 +41,15 @@ describe('HistoryStore', () => {
 
   it('a refused merge writes nothing for that SKU and the rest of the batch still lands', async () => {
     const weekly: PendingHistory = { sku: 'HOSE', incoming: { frequency: 'week', startOrdinal: 2800, demand: [1] }, rows: 1, origin: {} }
-    const [refused, created] = await store.apply('garden', [weekly, pending('RAKE', '2025-01', [4])], append)
+    const [refused, created] = await store.apply('garden', [weekly, pending('RAKE', '2025-01', [4])], overwrite)
     expect(refused).toHaveProperty('reason')
     expect(created).toEqual({ outcome: 'created' })
     expect((await store.get('garden', 'HOSE'))?.frequency).toBe('month')
   })
 
   it('keeps tag sets in step with the stored tags and tenants apart', async () => {
-    await store.apply('garden', [pending('GLOVE', '2025-01', [1], ['site:north', 'category:workwear'])], append)
-    await store.apply('garden', [pending('GLOVE', '2025-02', [2], ['site:south'])], append)
+    await store.apply('garden', [pending('GLOVE', '2025-01', [1], ['site:north', 'category:workwear'])], overwrite)
+    await store.apply('garden', [pending('GLOVE', '2025-02', [2], ['site:south'])], overwrite)
     const north = await store.list('garden', { limit: 10, tag: 'site:north' })
     const south = await store.list('garden', { limit: 10, tag: 'site:south' })
     expect(north.items).toEqual([])

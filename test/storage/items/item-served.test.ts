@@ -2,7 +2,7 @@ import { inflateRawSync } from 'node:zlib'
 import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { FREQUENCIES, METRIC_NAMES, MODEL_REGISTRY, forecastSeries, type MetricSet } from '../../../src/engine/index.js'
-import { EXACT, REPLENISHMENT_FIELDS } from '../../../src/storage/items/item-common.js'
+import { EXACT, REPLENISHMENT_FIELDS, REPLENISHMENT_PERIOD_FIELDS } from '../../../src/storage/items/item-common.js'
 import { loadItem, round, roundedJson, servedBody, servedItemJson, servedItemParts, storeItem, withoutCandidates } from '../../../src/storage/items/item-codec.js'
 import type { ForecastItem, ResultItem } from '../../../src/runs/contract.js'
 import { syntheticSeries } from '../../queue/fixtures.js'
@@ -20,6 +20,7 @@ function reference(sku: string, item: ResultItem): string {
   if ('failure' in item) return JSON.stringify({ sku, frequency: item.frequency, failure: { code: item.failure.code, message: item.failure.message } })
   const r7 = (x: number) => round(x, 7)
   const r4 = (x: number) => round(x, 4)
+  const fig = (k: string, v: number | null) => (v === null || EXACT.has(k) ? v : r7(v))
   const errors = (m: MetricSet) => ({
     ...Object.fromEntries(METRIC_NAMES.map((k) => [k, m[k] === null ? null : r4(m[k])])),
     ...(m.msis !== undefined ? { msis: m.msis === null ? null : r4(m.msis) } : {}),
@@ -51,7 +52,15 @@ function reference(sku: string, item: ResultItem): string {
     })),
     intervalMethod: item.intervalMethod,
     warnings: item.warnings.map((w) => ({ code: w.code, message: w.message })),
-    ...(r ? { replenishment: { ...Object.fromEntries(REPLENISHMENT_FIELDS.map((k) => [k, r[k] === null || EXACT.has(k) ? r[k] : r7(r[k])])), formula: r.formula } } : {}),
+    ...(r
+      ? {
+          replenishment: {
+            ...Object.fromEntries(REPLENISHMENT_FIELDS.map((k) => [k, fig(k, r[k])])),
+            formula: r.formula,
+            periods: r.periods.map((p) => ({ period: p.period, ...Object.fromEntries(REPLENISHMENT_PERIOD_FIELDS.map((k) => [k, fig(k, p[k])])) })),
+          },
+        }
+      : {}),
   })
 }
 
@@ -110,14 +119,24 @@ const forecastItem = fc
     warnings: fc.array(fc.record({ code: text, message: text }), { maxLength: 2 }),
     replenishment: fc.option(
       fc.record({
-        leadTimePeriods: fc.nat(),
+        leadTimePeriods: num,
+        reviewPeriods: num,
+        leadTimeSdPeriods: num,
         serviceLevel: num,
+        minimumOrder: num,
+        packSize: num,
         leadTimeDemand: num,
+        coverDemand: num,
         sigma: nullableNum,
         z: num,
         safetyStock: nullableNum,
         reorderPoint: nullableNum,
-        formula: fc.constant('sigma1-sqrt-lead-time'),
+        orderQuantity: num,
+        formula: fc.constant('summed-step-variance'),
+        periods: fc.array(
+          fc.record({ period: text, coverDemand: num, sigma: nullableNum, safetyStock: nullableNum, reorderPoint: nullableNum }),
+          { maxLength: 3 },
+        ),
       }),
       { nil: undefined },
     ),

@@ -153,12 +153,18 @@ function Candidates({ forecast }: { forecast: SkuForecast }) {
 const REPLENISHMENT_LABELS: Record<string, string> = {
   leadTimePeriods: 'Lead time (periods)',
   leadTimeDays: 'Lead time (days)',
+  reviewPeriods: 'Review period (periods)',
+  leadTimeSdPeriods: 'Lead-time spread (periods)',
   serviceLevel: 'Target service level',
+  minimumOrder: 'Minimum order',
+  packSize: 'Pack size',
   leadTimeDemand: 'Demand over the lead time',
-  sigma: 'Spread of lead-time demand (σ)',
+  coverDemand: 'Demand over lead time and review period',
+  sigma: 'Spread of that demand (σ)',
   z: 'Service factor (z)',
   safetyStock: 'Safety stock',
   reorderPoint: 'Reorder point',
+  orderQuantity: 'Order quantity',
   formula: 'Formula',
 }
 

@@ -28,7 +28,8 @@ export function Upload() {
   const [preview, setPreview] = useState<Preview | null>(null)
   const [mapping, setMapping] = useState<Record<Role, number>>({ sku: -1, period: -1, demand: -1 })
   const [frequency, setFrequency] = useState('month')
-  const [mode, setMode] = useState('append')
+  // '' leaves the mode to the rows: dated rows are added, period rows overwrite.
+  const [mode, setMode] = useState('')
   const [duplicates, setDuplicates] = useState('sum')
   const [dragging, setDragging] = useState(false)
   const [problem, setProblem] = useState('')
@@ -74,7 +75,8 @@ export function Upload() {
     }
     setBusy(true)
     setProblem('')
-    const q = new URLSearchParams({ frequency, mode, duplicates, delimiter: preview.delimiter })
+    const q = new URLSearchParams({ frequency, duplicates, delimiter: preview.delimiter })
+    if (mode !== '') q.set('mode', mode)
     for (const r of ROLES) q.set(r.param, preview.header[mapping[r.key]]!.trim())
     try {
       const answer = await request<UploadReport>(`/v1/history?${q}`, { method: 'POST', body: preview.file, contentType: 'text/csv' })
@@ -169,7 +171,9 @@ export function Upload() {
             <div class="field">
               <label for="upload-mode">Stored histories</label>
               <select id="upload-mode" value={mode} onChange={(e) => setMode((e.target as HTMLSelectElement).value)}>
-                <option value="append">add and overwrite the periods sent</option>
+                <option value="">as the rows say: dates add to periods, period rows overwrite</option>
+                <option value="add">add to the periods sent</option>
+                <option value="overwrite">overwrite the periods sent</option>
                 <option value="replace">replace each SKU’s whole history</option>
               </select>
             </div>

@@ -1,4 +1,5 @@
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
+import { z } from 'zod'
 import { formatPeriod, parsePeriod } from '../../../engine/index.js'
 import { ProblemError } from '../../../errors.js'
 import { firstPeriodLabel } from '../../../history/buckets.js'
@@ -10,7 +11,7 @@ import { HistoryBody, HistoryResource } from '../../../schemas/history.js'
 import { SkuParams } from '../../../schemas/params.js'
 import type { StoredHistory } from '../../../storage/histories/history-store.js'
 import { requireHistories } from '../../plugins/history.js'
-import { READ_ONE, WRITE } from '../responses.js'
+import { READ_ONE, WRITE, WRITE_ONE } from '../responses.js'
 
 /** A stored history as clients see it. */
 export function toHistoryResource(h: StoredHistory) {
@@ -22,6 +23,7 @@ export function toHistoryResource(h: StoredHistory) {
     periodCount: h.demand.length,
     demand: [...h.demand],
     tags: [...h.tags],
+    ...(h.replenishment === undefined ? {} : { replenishment: h.replenishment }),
     updatedAt: h.updatedAt,
   }
 }
@@ -47,7 +49,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     async (request, reply) => {
       const store = requireHistories(app)
       const { sku } = request.params
-      const { frequency, demand, tags } = request.body
+      const { frequency, demand, tags, replenishment } = request.body
       const firstPeriod = firstPeriodLabel(request.body.firstPeriod, frequency)
       let firstOrdinal: number
       try {
@@ -70,10 +72,45 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       if ('reason' in normalised) {
         throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'tags', message: normalised.reason }])
       }
-      const { outcome, history } = await store.put(request.tenant, sku, { frequency, firstPeriod, demand, tags: normalised.tags })
+      const { outcome, history } = await store.put(request.tenant, sku, {
+        frequency,
+        firstPeriod,
+        demand,
+        tags: normalised.tags,
+        ...(replenishment === undefined ? {} : { replenishment }),
+      })
       request.log.info({ sku, periodCount: demand.length, outcome }, 'history stored')
       if (outcome === 'created') reply.code(201).header('location', `/v1/skus/${encodeURIComponent(sku)}/history`)
       return toHistoryResource(history)
+    },
+  )
+
+  app.delete(
+    '/:sku/history',
+    {
+      schema: {
+        tags: ['histories'],
+        operationId: 'deleteSkuHistory',
+        'x-problems': WRITE_ONE,
+        summary: "Delete a SKU's stored history and its records",
+        description:
+          "Deletes the SKU's history and stock policy, its tags, its latest forecast and its accuracy records. " +
+          'Results of earlier runs stay under their run until they expire. 204 when deleted, 404 when the SKU had no history.',
+        params: SkuParams,
+        response: { 204: z.null().describe('Deleted') },
+      },
+    },
+    async (request, reply) => {
+      const { sku } = request.params
+      const store = requireHistories(app)
+      const notFound = () => new ProblemError('not-found', `No stored history for SKU ${sku}`)
+      if ((await store.missing(request.tenant, [sku])).length > 0) throw notFound()
+      // Records first, the history last: if a step fails, a retry still finds the SKU and finishes the job.
+      await Promise.all([app.gateway.forgetLatestForecast?.(request.tenant, sku), app.erp?.accuracy.forget(request.tenant, sku)])
+      if (!(await store.delete(request.tenant, sku))) throw notFound()
+      request.log.info({ sku }, 'history deleted')
+      reply.code(204)
+      return null
     },
   )
 

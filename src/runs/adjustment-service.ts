@@ -19,8 +19,8 @@ import { summariseValueAdded, valueAddedByAuthor, type ValueAddedRecord } from '
  * brings it is stored, right after its value added is recorded.
  */
 export interface AdjustmentDeps {
-  readonly store: Pick<AdjustmentStore, 'inForce' | 'inForceMany' | 'apply' | 'trail'>
-  readonly valueAdded: Pick<ValueAddedStore, 'record' | 'records'>
+  readonly store: Pick<AdjustmentStore, 'inForce' | 'inForceMany' | 'apply' | 'trail' | 'forget'>
+  readonly valueAdded: Pick<ValueAddedStore, 'record' | 'records' | 'forget'>
   /** The SKU's current forecast (the run gateway's). */
   latestForecast(tenant: string, sku: string): Promise<LatestForecast | null>
   /** Point forecasts per SKU, also after run results expired (the run store's). */
@@ -182,6 +182,11 @@ export class AdjustmentService {
     const periods = await this.deps.valueAdded.records(tenant, sku)
     if (periods.length === 0) return null
     return { sku, ...summariseValueAdded(periods), byAuthor: valueAddedByAuthor(periods), periods }
+  }
+
+  /** Forgets a SKU's adjustments in force and its value-added records (its history was deleted); the trail stays. */
+  async forget(tenant: string, sku: string): Promise<void> {
+    await Promise.all([this.deps.store.forget(tenant, sku), this.deps.valueAdded.forget(tenant, sku)])
   }
 
   /**

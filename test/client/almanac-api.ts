@@ -176,7 +176,7 @@ export interface paths {
         post?: never;
         /**
          * Delete a SKU's stored history and its records
-         * @description Deletes the SKU's history and stock policy, its tags, its latest forecast and its accuracy records. Results of earlier runs stay under their run until they expire. 204 when deleted, 404 when the SKU had no history.
+         * @description Deletes the SKU's history and stock policy, its tags, its latest and kept published forecasts, its accuracy records, its adjustments in force and their value-added records (the adjustment audit trail stays). Results of earlier runs stay under their run until they expire. 204 when deleted, 404 when the SKU had no history.
          */
         delete: operations["deleteSkuHistory"];
         options?: never;

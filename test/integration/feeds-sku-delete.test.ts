@@ -51,6 +51,10 @@ describe('DELETE /v1/skus/{sku}/history', { timeout: 120_000 }, () => {
     // The run's own results stay readable under the run until they expire.
     const page = (await app.inject({ url: `/v1/runs/${run.json().id}/results?sku=PRUNER-OLD` })).json()
     expect(page.items).toHaveLength(1)
+    // Created again under the same code, the SKU is never scored against the deleted SKU's published forecasts.
+    expect((await put('PRUNER-OLD', [...flat(40), 45])).statusCode).toBe(201)
+    expect((await app.inject({ url: '/v1/skus/PRUNER-OLD/accuracy' })).statusCode).toBe(404)
+    expect((await app.inject({ method: 'DELETE', url: '/v1/skus/PRUNER-OLD/history' })).statusCode).toBe(204)
     // Again: nothing left to delete.
     const again = await app.inject({ method: 'DELETE', url: '/v1/skus/PRUNER-OLD/history' })
     expect(again.statusCode).toBe(404)

@@ -114,6 +114,17 @@ export class AdjustmentStore {
     return { set: `${base}:set:${s}`, trail: `${base}:trail:${s}`, skus: `${base}:skus` }
   }
 
+  /**
+   * Forgets the adjustments in force for a SKU (its history was deleted), so a SKU created
+   * again under the same code starts without them. The audit trail stays: it is the record
+   * of what planners did.
+   */
+  async forget(tenant: string, sku: string): Promise<void> {
+    if (!isValidTenant(tenant)) return
+    const k = this.keys(tenant, sku)
+    await this.redis.multi().del(k.set).zrem(k.skus, sku).exec()
+  }
+
   /** The adjustments in force for a SKU, by period. */
   async inForce(tenant: string, sku: string): Promise<Map<string, StoredAdjustment>> {
     if (!isValidTenant(tenant)) return new Map()

@@ -57,6 +57,12 @@ export class ValueAddedStore {
     return `${this.opts.prefix}:t:${tenant}:fva:${Buffer.from(sku, 'utf8').toString('base64url')}`
   }
 
+  /** Forgets a SKU's value-added records (its history was deleted). */
+  async forget(tenant: string, sku: string): Promise<void> {
+    if (!isValidTenant(tenant)) return
+    await this.redis.del(this.key(tenant, sku))
+  }
+
   /** Records periods of one SKU (idempotent per period; a changed actual is a correction). */
   async record(tenant: string, sku: string, records: readonly ValueAddedRecord[]): Promise<{ added: number; corrected: number }> {
     if (records.length === 0) return { added: 0, corrected: 0 }

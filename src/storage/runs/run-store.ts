@@ -246,10 +246,14 @@ export class RunStore {
     return { items: stored.items.map(([sku, value]) => loadItem(sku, value)), nextCursor: stored.nextCursor }
   }
 
-  /** Forget a SKU's latest forecast (its history was deleted); the run's own results stay until they expire. */
+  /**
+   * Forget a SKU's latest forecast and its kept published forecasts (its history was deleted),
+   * so a SKU created again under the same code is never scored against them; the run's own
+   * results stay until they expire.
+   */
   async forgetLatest(tenant: string, sku: string): Promise<void> {
     if (!isValidTenant(tenant)) return
-    await this.redis.hdel(latestKey(this.opts.prefix, tenant), sku)
+    await this.redis.multi().hdel(latestKey(this.opts.prefix, tenant), sku).hdel(publishedKey(this.opts.prefix, tenant), sku).exec()
   }
 
   /**

@@ -56,6 +56,15 @@ describe('AdjustmentStore', () => {
     expect((await store.inForceMany('heating', ['SKU-7']))[0]!.size).toBe(0)
   })
 
+  it('forgets the adjustments in force of one SKU and keeps its trail', async () => {
+    await store.apply('garden', 'HOE', [{ period: '2026-04', expected: null, next: adj('2026-04', 3), entry: entry('2026-04') }])
+    await store.apply('garden', 'SPADE', [{ period: '2026-04', expected: null, next: adj('2026-04', 4), entry: entry('2026-04') }])
+    await store.forget('garden', 'HOE')
+    expect((await store.inForce('garden', 'HOE')).size).toBe(0)
+    expect((await store.inForceMany('garden', ['HOE', 'SPADE'])).map((m) => m.size)).toEqual([0, 1])
+    expect((await store.trail('garden', 'HOE', 10)).items).toHaveLength(1)
+  })
+
   it('refuses a cursor it did not issue', async () => {
     await expect(store.trail('garden', 'RAKE', 1, 'bm90LWEtY3Vyc29y.abcdefgh')).rejects.toThrow('cursor is not one this service issued')
   })

@@ -94,7 +94,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         'x-problems': WRITE_ONE,
         summary: "Delete a SKU's stored history and its records",
         description:
-          "Deletes the SKU's history and stock policy, its tags, its latest forecast and its accuracy records. " +
+          "Deletes the SKU's history and stock policy, its tags, its latest and kept published forecasts, its accuracy records, " +
+          'its adjustments in force and their value-added records (the adjustment audit trail stays). ' +
           'Results of earlier runs stay under their run until they expire. 204 when deleted, 404 when the SKU had no history.',
         params: SkuParams,
         response: { 204: z.null().describe('Deleted') },
@@ -106,7 +107,11 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       const notFound = () => new ProblemError('not-found', `No stored history for SKU ${sku}`)
       if ((await store.missing(request.tenant, [sku])).length > 0) throw notFound()
       // Records first, the history last: if a step fails, a retry still finds the SKU and finishes the job.
-      await Promise.all([app.gateway.forgetLatestForecast?.(request.tenant, sku), app.erp?.accuracy.forget(request.tenant, sku)])
+      await Promise.all([
+        app.gateway.forgetLatestForecast?.(request.tenant, sku),
+        app.erp?.accuracy.forget(request.tenant, sku),
+        app.adjustments?.forget(request.tenant, sku),
+      ])
       if (!(await store.delete(request.tenant, sku))) throw notFound()
       request.log.info({ sku }, 'history deleted')
       reply.code(204)

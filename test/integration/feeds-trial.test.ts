@@ -59,7 +59,7 @@ const put = (sku: string, demand: number[], tags: string[]) =>
 
 /** Today's feed: actuals per SKU from a first period (append replaces the periods sent). */
 const feed = (series: { sku: string; firstPeriod: string; demand: number[] }[]) =>
-  app.inject({ method: 'POST', url: '/v1/history?frequency=month', payload: { mode: 'append', series } })
+  app.inject({ method: 'POST', url: '/v1/history?frequency=month', payload: { mode: 'overwrite', series } })
 
 const close = (closedThrough: string) => app.inject({ method: 'PUT', url: '/v1/closed-periods/month', payload: { closedThrough } })
 

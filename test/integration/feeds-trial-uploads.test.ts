@@ -97,31 +97,46 @@ describe('feeds trial: uploads', () => {
     expect(run.statusCode).toBe(202)
     const runId = run.json().id as string
     type Figures = { leadTimePeriods: number; coverDemand: number; sigma: number; safetyStock: number; reorderPoint: number; orderQuantity: number }
-    const fleece = (await finishedItem(runId, 'FLEECE-JACKET-L')) as { frequency: string; replenishment: Figures }
+    type Point = { demand: number; intervals: { level: number; low: number; high: number }[] }
+    const fleece = (await finishedItem(runId, 'FLEECE-JACKET-L')) as { frequency: string; replenishment: Figures; forecast: Point[] }
+    // The step spreads are the ones the 95% band is drawn with: the model's own sd (10 at step 1), widened by the
+    // interval calibration (a t quantile for a short history, or the errors seen at rolling origins) by
+    // w = half-width of the 95% band at step 1 / (10 x z(97.5 %) = 1.959964). Safety stock and the band then agree.
+    const widening = (p: Point) => (p.intervals.find((i) => i.level === 95)!.high - p.demand) / (10 * 1.959964)
+    const wFleece = widening(fleece.forecast[0]!)
+    expect(wFleece).toBeGreaterThanOrEqual(1) // calibration only widens
 
     // Sigma = sqrt(LT * sigma_d^2 + d^2 * sigma_LT^2) (Silver, Pyke & Peterson 1998, from memory), with LT * sigma_d^2
-    // taken as the forecast's own step variances summed over the lead time. Calendar rule: a month is 365.25 / 12 = 30.4375 days.
+    // taken as the forecast's step variances summed over the lead time. Calendar rule: a month is 365.25 / 12 = 30.4375 days.
     // FLEECE-JACKET-L, monthly, forecast 110 per month:
     //   L = 45 / 30.4375 = 1.478439 months -> steps weighted 1 and 0.478439
     //   coverDemand = 110 + 0.478439 * 110 = 162.6283
-    //   summed variance = 100 * 1 + 0.478439 * 200 = 195.6879
+    //   summed variance = w^2 * (100 * 1 + 0.478439 * 200) = w^2 * 195.6879
     //   sigma_LT = 10 / 30.4375 = 0.328542 months, d = 162.6283 / 1.478439 = 110 -> d^2 sigma_LT^2 = 12100 * 0.107940 = 1306.073
-    //   sigma = sqrt(195.6879 + 1306.073) = 38.7526; z(95 %) = 1.644854 -> z sigma = 63.742
-    //   safetyStock = ceil(63.742) = 64; reorderPoint = ceil(162.6283 + 63.742) = ceil(226.371) = 227
+    //   sigma = sqrt(w^2 * 195.6879 + 1306.073) (38.7526 at w = 1); z(95 %) = 1.644854
+    //   safetyStock = ceil(z sigma); reorderPoint = ceil(162.6283 + z sigma)
+    const sigmaFleece = Math.sqrt(wFleece ** 2 * 195.6879 + 1306.073)
     expect(fleece.frequency).toBe('month')
     expect(fleece.replenishment.leadTimePeriods).toBeCloseTo(1.478439, 6)
     expect(fleece.replenishment.coverDemand).toBeCloseTo(162.6283, 3)
-    expect(fleece.replenishment.sigma).toBeCloseTo(38.7526, 3)
-    expect(fleece.replenishment).toMatchObject({ safetyStock: 64, reorderPoint: 227 })
+    expect(fleece.replenishment.sigma).toBeCloseTo(sigmaFleece, 2)
+    const fleeceStock = Math.ceil(1.644854 * sigmaFleece)
+    const fleeceReorder = Math.ceil(162.6283 + 1.644854 * sigmaFleece)
+    expect(fleece.replenishment).toMatchObject({ safetyStock: fleeceStock, reorderPoint: fleeceReorder })
 
     // GLOVES-WINTER, weekly, forecast 30 per week, reviewed weekly:
     //   L = 10 / 7 = 1.428571 weeks, R = 1 week -> c = 2.428571: steps weighted 1, 1, 0.428571
-    //   coverDemand = 30 * 2.428571 = 72.8571; summed variance = 100 + 200 + 0.428571 * 300 = 428.571 (sigma_LT = 0)
-    //   sigma = sqrt(428.571) = 20.7020 -> z sigma = 34.052 -> safetyStock 35; order-up-to level ceil(106.909) = 107
+    //   coverDemand = 30 * 2.428571 = 72.8571; summed variance = w^2 * (100 + 200 + 0.428571 * 300) = w^2 * 428.571 (sigma_LT = 0)
+    //   sigma = w * 20.7020 -> safetyStock = ceil(z sigma); order-up-to level = ceil(72.8571 + z sigma)
     //   orderQuantity: 30 per review period, raised to the minimum 50, in packs of 12 -> 5 packs = 60
-    const gloves = (await finishedItem(runId, 'GLOVES-WINTER')) as { replenishment: Figures }
-    expect(gloves.replenishment.sigma).toBeCloseTo(20.702, 3)
-    expect(gloves.replenishment).toMatchObject({ safetyStock: 35, reorderPoint: 107, orderQuantity: 60 })
+    const gloves = (await finishedItem(runId, 'GLOVES-WINTER')) as { replenishment: Figures; forecast: Point[] }
+    const sigmaGloves = widening(gloves.forecast[0]!) * 20.702
+    expect(gloves.replenishment.sigma).toBeCloseTo(sigmaGloves, 2)
+    expect(gloves.replenishment).toMatchObject({
+      safetyStock: Math.ceil(1.644854 * sigmaGloves),
+      reorderPoint: Math.ceil(72.8571 + 1.644854 * sigmaGloves),
+      orderQuantity: 60,
+    })
 
     // SOCKS-WOOL has no own lead time: the run's 1 month becomes 30.4375 / 7 = 4.348214 weeks, with a warning on the item.
     const socks = (await finishedItem(runId, 'SOCKS-WOOL')) as { replenishment: Figures; warnings: { code: string; message: string }[] }
@@ -132,7 +147,7 @@ describe('feeds trial: uploads', () => {
     const csv = await app.inject({ url: `/v1/runs/${runId}/results?sku=FLEECE-JACKET-L`, headers: { ...as, accept: 'text/csv' } })
     const [header, first] = csv.body.split('\r\n')
     const row = Object.fromEntries(header!.split(',').map((name, i) => [name, first!.split(',')[i]]))
-    expect(row).toMatchObject({ safetyStock: '64', reorderPoint: '227', serviceLevel: '0.95' })
+    expect(row).toMatchObject({ safetyStock: String(fleeceStock), reorderPoint: String(fleeceReorder), serviceLevel: '0.95' })
   })
 })
 

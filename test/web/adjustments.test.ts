@@ -1,8 +1,5 @@
-import { mkdtempSync, readFileSync, rmSync } from 'node:fs'
+import { readFileSync, rmSync } from 'node:fs'
 import { createRequire } from 'node:module'
-import { tmpdir } from 'node:os'
-import { join } from 'node:path'
-import { fileURLToPath } from 'node:url'
 import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { SMALL_DEMO_SKUS, loadDemo } from '../../demo/workbench.js'
@@ -12,6 +9,7 @@ import { HistoryStore } from '../../src/storage/histories/history-store.js'
 import { RunStore, runStoreOptions } from '../../src/storage/runs/run-store.js'
 import { sha256 } from '../http/gateway-double.js'
 import { startService, type TestService } from '../helpers/service.js'
+import { buildWorkbenchPages } from './pages.js'
 
 /**
  * Adjusting a forecast on the workbench's SKU page, in a real browser (Debian's
@@ -29,13 +27,7 @@ let baseUrl: string
 let browser: Browser
 
 beforeAll(async () => {
-  outDir = mkdtempSync(join(tmpdir(), 'almanac-web-adjust-'))
-  const { build } = await import('vite')
-  await build({
-    configFile: fileURLToPath(new URL('../../web/vite.config.ts', import.meta.url)),
-    build: { outDir, emptyOutDir: true },
-    logLevel: 'silent',
-  })
+  outDir = await buildWorkbenchPages('almanac-web-adjust-')
   service = await startService('web-adjustments', {
     config: { apiKeys: new Map([['garden', [sha256(KEY)]]]), chunkSize: 4, workerConcurrency: 1, rateLimitMax: 10_000 },
     appDeps: ({ redis, prefix, config }) => {

@@ -1,8 +1,5 @@
-import { readFileSync, mkdtempSync, rmSync } from 'node:fs'
+import { readFileSync, rmSync } from 'node:fs'
 import { createRequire } from 'node:module'
-import { tmpdir } from 'node:os'
-import { join } from 'node:path'
-import { fileURLToPath } from 'node:url'
 import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_RUN_SETTINGS, SMALL_DEMO_SKUS, loadDemo, type DemoRun } from '../../demo/workbench.js'
@@ -14,6 +11,7 @@ import { CHUNK_QUEUE } from '../../src/queue/names.js'
 import { HistoryStore } from '../../src/storage/histories/history-store.js'
 import { sha256 } from '../http/gateway-double.js'
 import { startService, type TestService } from '../helpers/service.js'
+import { buildWorkbenchPages } from './pages.js'
 
 /**
  * The workbench in a real browser (Debian's headless Chromium through playwright-core)
@@ -32,13 +30,7 @@ let browser: Browser
 let demoRun: DemoRun
 
 beforeAll(async () => {
-  outDir = mkdtempSync(join(tmpdir(), 'almanac-web-test-'))
-  const { build } = await import('vite')
-  await build({
-    configFile: fileURLToPath(new URL('../../web/vite.config.ts', import.meta.url)),
-    build: { outDir, emptyOutDir: true },
-    logLevel: 'silent',
-  })
+  outDir = await buildWorkbenchPages('almanac-web-test-')
   service = await startService('web-workbench', {
     config: { apiKeys: new Map([['garden', [sha256(KEY)]]]), chunkSize: 4, workerConcurrency: 1, rateLimitMax: 10_000 },
     appDeps: ({ redis, prefix }) => ({ histories: new HistoryStore(redis, { prefix }), workbenchRoot: outDir }),

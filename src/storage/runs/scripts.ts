@@ -90,6 +90,23 @@ return {'committed', st}
 `
 
 /**
+ * dropUncounted. KEYS: chunks, skus, items. ARGV: chunkIndex, then the chunk's SKUs.
+ * Undoes storeItems for a chunk whose commit found the run cancelled or failed
+ * in between (the chunk was not counted): removes its SKUs and items, so a
+ * cancelled run holds exactly the results it counted. A chunk counted by an
+ * earlier attempt keeps its results. Returns how many items were removed.
+ */
+const DROP_UNCOUNTED = `
+if redis.call('SISMEMBER', KEYS[1], ARGV[1]) == 1 then return 0 end
+local removed = 0
+for i = 2, #ARGV do
+  redis.call('ZREM', KEYS[2], ARGV[i])
+  removed = removed + redis.call('HDEL', KEYS[3], ARGV[i])
+end
+return removed
+`
+
+/**
  * endRun. KEYS: run, chunks, skus, items. ARGV: status ('cancelled'|'failed'),
  * nowIso, failure JSON ('' for none), resultTtl, recordTtl.
  * Ends a queued or running run; returns {statusAfter, statusBefore}, or nil
@@ -187,6 +204,8 @@ export interface RunScripts {
   storeItems(keys: readonly [string, string, string], args: readonly (string | number | Buffer)[]): Promise<[string, string]>
   /** [outcome, status before the call ('' when the run is missing)]. */
   commitChunk(keys: readonly [string, string], args: readonly (string | number)[]): Promise<[string, string]>
+  /** How many items of an uncounted chunk were removed. */
+  dropUncounted(keys: readonly [string, string, string], args: readonly (string | number)[]): Promise<number>
   /** [status after, status before], or null when the run does not exist. */
   endRun(keys: readonly [string, string, string, string], args: readonly (string | number)[]): Promise<[string, string] | null>
   updateLatest(key: string, args: readonly (string | number)[]): Promise<number>
@@ -204,6 +223,7 @@ export function defineRunScripts(redis: RedisClient): RunScripts {
     almanacStartChunk: [1, START_CHUNK],
     almanacStoreItems: [3, STORE_ITEMS],
     almanacCommitCounts: [2, COMMIT_CHUNK],
+    almanacDropUncounted: [3, DROP_UNCOUNTED],
     almanacEndRun: [4, END_RUN],
     almanacUpdateLatest: [1, UPDATE_LATEST],
     almanacPushPublished: [1, PUSH_PUBLISHED],
@@ -223,6 +243,7 @@ export function defineRunScripts(redis: RedisClient): RunScripts {
     },
     storeItems: async (keys, args) => strings(await cmd('almanacStoreItems')(...keys, ...args), 2, 'almanacStoreItems'),
     commitChunk: async (keys, args) => strings(await cmd('almanacCommitCounts')(...keys, ...args), 2, 'almanacCommitCounts'),
+    dropUncounted: async (keys, args) => countOf(await cmd('almanacDropUncounted')(...keys, ...args), 'almanacDropUncounted reply'),
     endRun: async (keys, args) => {
       const r = await cmd('almanacEndRun')(...keys, ...args)
       return r === null ? null : strings(r, 2, 'almanacEndRun')

@@ -1,6 +1,7 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { Redis } from 'ioredis'
 import { RunStore } from '../../../src/storage/runs/run-store.js'
+import type { RunScripts } from '../../../src/storage/runs/scripts.js'
 import { latestKey, runKeys } from '../../../src/storage/keys.js'
 import { storeItem } from '../../../src/storage/items/item-codec.js'
 import { type ResultItem } from '../../../src/runs/contract.js'
@@ -131,6 +132,27 @@ describe('RunStore', () => {
     expect((await store.getRun('acme', 'cancel-1'))?.progress.done).toBe(0)
     // Ending a run that already ended changes nothing.
     expect((await store.endRun('acme', 'cancel-1', 'failed', { code: 'chunk-failed', message: 'late' }, t0))?.status).toBe('cancelled')
+  })
+
+  it('removes the items of a chunk whose run was cancelled between storing and counting them', async () => {
+    // The race the cancel integration test can hit: the cancel lands after storeItems, before the count.
+    const racing = new RunStore(redis, { prefix, resultTtlSeconds: 600, recordTtlSeconds: 1200 })
+    const scripts = (racing as unknown as { scripts: RunScripts }).scripts
+    const storeItems = scripts.storeItems.bind(scripts)
+    scripts.storeItems = async (keys, args) => {
+      const reply = await storeItems(keys, args)
+      await racing.endRun('acme', 'race-1', 'cancelled', null, t0)
+      return reply
+    }
+    await store.createRun('acme', 'race-1', runRequest(syntheticSeries(4)), 2, t0)
+    const counted = okItems(['SKU-00000', 'SKU-00001'])
+    expect(await store.commitChunk('acme', 'race-1', 0, prepareItems(counted), tallyItems(counted, 'mase'), t0)).toBe('committed')
+    const late = okItems(['SKU-00002', 'SKU-00003'])
+    expect(await racing.commitChunk('acme', 'race-1', 1, prepareItems(late), tallyItems(late, 'mase'), t0)).toBe('cancelled')
+    const k = runKeys(prefix, 'acme', 'race-1')
+    expect((await store.getRun('acme', 'race-1'))?.progress.done).toBe(2)
+    expect((await redis.hkeys(k.items)).sort()).toEqual(['SKU-00000', 'SKU-00001'])
+    expect(await redis.zrange(k.skus, 0, -1)).toEqual(['SKU-00000', 'SKU-00001'])
   })
 
   it('moves a queued run to running when its first chunk starts', async () => {

@@ -154,11 +154,12 @@ export class RunStore {
    * Outcomes: 'committed' or 'finished' when this call counted the chunk
    * (finished: it was the run's last), 'duplicate' when it was counted before,
    * 'succeeded' when the run had already finished (so this chunk was counted),
-   * 'cancelled' | 'failed' | 'missing' when nothing was counted: items stored
-   * by this call before the run ended are removed again (dropUncounted), so a
-   * cancelled run holds exactly the results it counted. Latest-forecast records
-   * a publishing run wrote in that short window stay (they live outside the
-   * run's hash slot and are complete forecasts in themselves).
+   * 'cancelled' | 'failed' | 'missing' when nothing was counted. When the run
+   * ended between storing the items and counting them, a what-if run removes
+   * those items again (dropUncounted), so it holds exactly the results it
+   * counted; a publishing run keeps them, because in that short window the
+   * SKUs' latest records may already point at them (they live outside the
+   * run's hash slot, so the two cannot change in one step).
    */
   async commitChunk(
     tenant: string,
@@ -190,8 +191,9 @@ export class RunStore {
     ]
     for (const [model, n] of tally.wins) args.push(model, n)
     const [outcome, before] = await this.scripts.commitChunk([k.run, k.chunks], args)
-    if (outcome === 'cancelled' || outcome === 'failed') {
+    if (!publish && (outcome === 'cancelled' || outcome === 'failed')) {
       // Ended between storeItems and the count: the chunk is not counted, so its items go too.
+      // A publishing run keeps them: the SKUs' latest records may already point at them.
       await this.scripts.dropUncounted([k.chunks, k.skus, k.items], [chunkIndex, ...items.map((i) => i.sku)])
     }
     if (before === 'queued' && outcome === 'committed') await this.stats.moved('queued', 'running')

@@ -155,6 +155,22 @@ describe('RunStore', () => {
     expect(await redis.zrange(k.skus, 0, -1)).toEqual(['SKU-00000', 'SKU-00001'])
   })
 
+  it('keeps the items of a publishing run caught by the same race: they may already be the SKUs\' latest forecasts', async () => {
+    const racing = new RunStore(redis, { prefix, resultTtlSeconds: 600, recordTtlSeconds: 1200 })
+    const scripts = (racing as unknown as { scripts: RunScripts }).scripts
+    const storeItems = scripts.storeItems.bind(scripts)
+    scripts.storeItems = async (keys, args) => {
+      const reply = await storeItems(keys, args)
+      await racing.endRun('race', 'race-2', 'cancelled', null, t0)
+      return reply
+    }
+    await store.createRun('race', 'race-2', runRequest(syntheticSeries(2)), 2, t0)
+    const late = okItems(['SKU-00000', 'SKU-00001'], [5])
+    expect(await racing.commitChunk('race', 'race-2', 0, prepareItems(late), tallyItems(late, 'mase'), t0, true)).toBe('cancelled')
+    expect((await store.getRun('race', 'race-2'))?.progress.done).toBe(0)
+    expect((await store.latest('race', 'SKU-00000'))?.runId).toBe('race-2')
+  })
+
   it('moves a queued run to running when its first chunk starts', async () => {
     await store.createRun('acme', 'start-1', runRequest(syntheticSeries(2)), 2, t0)
     const started = await store.startChunk('acme', 'start-1', new Date(t0.getTime() + 1000))

@@ -151,3 +151,43 @@ export interface Problem {
   readonly detail?: string
   readonly errors?: readonly { readonly path: string; readonly message: string }[]
 }
+
+/** One scored period of GET /v1/skus/{sku}/accuracy. */
+export interface ScoredPeriod {
+  readonly period: string
+  readonly runId: string
+  readonly forecastDemand: number
+  readonly actualDemand: number
+  readonly deviation: number
+}
+
+/** GET /v1/skus/{sku}/accuracy (404 until a published forecast of the SKU has been scored). */
+export interface SkuAccuracy {
+  readonly sku: string
+  readonly scoredPeriods: number
+  readonly mae: number | null
+  readonly bias: number | null
+  readonly mape: number | null
+  readonly trackingSignal: number | null
+  readonly smoothedTrackingSignal: number | null
+  readonly flagged: boolean
+  readonly flaggedBy: readonly string[]
+  readonly trackingLimit: number
+  readonly lag: number | null
+  readonly periods: readonly ScoredPeriod[]
+}
+
+interface ErrorsBy {
+  readonly statistical: number | null
+  readonly final: number | null
+  readonly naive: number | null
+}
+
+/** GET /v1/skus/{sku}/value-added: forecast value added (404 until a period is scored). */
+export interface SkuValueAdded {
+  readonly scoredPeriods: number
+  readonly adjustedPeriods: number
+  readonly mae: ErrorsBy
+  readonly valueAdded: { readonly adjustments: number | null; readonly statistical: number | null; readonly final: number | null }
+  readonly byAuthor: readonly { readonly author: string; readonly adjustedPeriods: number; readonly valueAdded: { readonly adjustments: number | null } }[]
+}

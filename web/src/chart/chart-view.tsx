@@ -18,12 +18,20 @@ function Swatch({ level }: { level: BandLevel }) {
   return <canvas ref={ref} class="swatch" aria-hidden="true" />
 }
 
-function LineSwatch({ colour, dashed, squares }: { colour: string; dashed?: boolean; squares?: boolean }) {
+function LineSwatch({ colour, dashed, dotted, squares }: { colour: string; dashed?: boolean; dotted?: boolean; squares?: boolean }) {
   return (
     <svg class="swatch" viewBox="0 0 28 14" aria-hidden="true">
-      <line x1="1" y1="7" x2="27" y2="7" stroke={colour} stroke-width="2.5" stroke-dasharray={dashed ? '6 3' : undefined} />
+      <line x1="1" y1="7" x2="27" y2="7" stroke={colour} stroke-width="2.5" stroke-dasharray={dashed ? '6 3' : dotted ? '2 3' : undefined} />
       {dashed ? <circle cx="14" cy="7" r="3" fill="#fff" stroke={colour} stroke-width="1.5" /> : null}
       {squares ? <rect x="10" y="3" width="8" height="8" fill={colour} /> : null}
+    </svg>
+  )
+}
+
+function DiamondSwatch({ colour }: { colour: string }) {
+  return (
+    <svg class="swatch" viewBox="0 0 28 14" aria-hidden="true">
+      <path d="M14 2 L19 7 L14 12 L9 7 Z" fill="none" stroke={colour} stroke-width="2" />
     </svg>
   )
 }
@@ -84,6 +92,8 @@ export function ChartView({ input, describe, onDrawn }: Props) {
       data-history-points={drawn?.historyPoints}
       data-forecast-points={drawn?.forecastPoints}
       data-adjusted-points={drawn?.adjustedPoints}
+      data-past-points={drawn?.pastPoints}
+      data-what-if-points={drawn?.whatIfPoints}
       data-bands={drawn?.bands.map((b) => `${b.level}:${b.points}`).join(',')}
       data-holdout-periods={drawn?.holdoutPeriods}
       data-probes={drawn ? JSON.stringify(drawn.probes) : undefined}
@@ -110,6 +120,16 @@ export function ChartView({ input, describe, onDrawn }: Props) {
           {input.forecast.some((p) => p.adjusted !== undefined && p.adjusted !== null) ? (
             <li>
               <LineSwatch colour={CHART_COLOURS.adjusted} squares /> Adjusted forecast (solid line with squares, labelled “adjusted”)
+            </li>
+          ) : null}
+          {(input.past ?? []).some((v) => v !== null) ? (
+            <li>
+              <DiamondSwatch colour={CHART_COLOURS.past} /> Past forecast: what was forecast for a period that has happened (hollow diamonds)
+            </li>
+          ) : null}
+          {input.whatIf && input.whatIf.demand.length > 0 ? (
+            <li>
+              <LineSwatch colour={CHART_COLOURS.whatIf} dotted /> What-if: {input.whatIf.label}, not published (dotted line, labelled)
             </li>
           ) : null}
           {levels.map((level) => (

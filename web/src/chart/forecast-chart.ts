@@ -28,11 +28,18 @@ export interface ChartInput {
   }[]
   /** The `holdoutPeriods` periods before forecastStart were held back to score the models. */
   readonly holdoutPeriods: number
+  /**
+   * Past published forecasts against what happened: for each index of `periods`, the forecast a
+   * scored period was judged against (its accuracy record), or null.
+   */
+  readonly past?: readonly (number | null)[]
+  /** A what-if forecast by another model, from forecastStart on (never published). */
+  readonly whatIf?: { readonly label: string; readonly demand: readonly number[] } | null
 }
 
 /** Where a test (or a person) can look to see each drawn element: canvas (device) pixels from its top left. */
 export interface DrawnProbe {
-  readonly name: 'band-80' | 'band-95' | 'outside-bands' | 'holdout' | 'history' | 'adjusted'
+  readonly name: 'band-80' | 'band-95' | 'outside-bands' | 'holdout' | 'history' | 'adjusted' | 'past' | 'what-if'
   readonly x: number
   readonly y: number
 }
@@ -42,6 +49,10 @@ export interface DrawnSummary {
   readonly forecastPoints: number
   /** Adjusted periods drawn (the adjusted forecast's markers). */
   readonly adjustedPoints: number
+  /** Past published forecasts drawn (diamond markers over the history). */
+  readonly pastPoints: number
+  /** Points of the what-if forecast drawn (0 when none is shown). */
+  readonly whatIfPoints: number
   readonly bands: readonly { readonly level: BandLevel; readonly points: number }[]
   readonly holdoutPeriods: number
   readonly probes: readonly DrawnProbe[]
@@ -68,7 +79,17 @@ function compact(value: number): string {
  * Columns for uPlot: x, history, high/low of each band, the forecast (over the bands), then the
  * adjusted forecast when any period was adjusted (drawn last, over everything).
  */
-function columns(input: ChartInput): { data: uPlot.AlignedData; levels: BandLevel[]; adjusted: boolean } {
+interface Columns {
+  readonly data: uPlot.AlignedData
+  readonly levels: BandLevel[]
+  readonly adjusted: boolean
+  readonly past: boolean
+  readonly whatIf: boolean
+  readonly pastColumn: readonly (number | null)[]
+  readonly whatIfColumn: readonly (number | null)[]
+}
+
+function columns(input: ChartInput): Columns {
   const n = input.periods.length
   const h = input.history.length
   const f = input.forecastStart
@@ -83,8 +104,20 @@ function columns(input: ChartInput): { data: uPlot.AlignedData; levels: BandLeve
   }
   const adjusted = input.forecast.some((p) => p.adjusted !== undefined && p.adjusted !== null)
   const adjustedColumn: (number | null)[] = Array.from({ length: n }, (_, i) => (i >= f ? input.forecast[i - f]?.adjusted ?? null : null))
-  const data = [x, history, ...bandColumns, forecast, ...(adjusted ? [adjustedColumn] : [])] as uPlot.AlignedData
-  return { data, levels, adjusted }
+  const past = (input.past ?? []).some((v) => v !== null)
+  const pastColumn: (number | null)[] = Array.from({ length: n }, (_, i) => input.past?.[i] ?? null)
+  const whatIf = (input.whatIf?.demand.length ?? 0) > 0
+  const whatIfColumn: (number | null)[] = Array.from({ length: n }, (_, i) => (i >= f ? input.whatIf?.demand[i - f] ?? null : null))
+  const data = [
+    x,
+    history,
+    ...bandColumns,
+    forecast,
+    ...(adjusted ? [adjustedColumn] : []),
+    ...(past ? [pastColumn] : []),
+    ...(whatIf ? [whatIfColumn] : []),
+  ] as uPlot.AlignedData
+  return { data, levels, adjusted, past, whatIf, pastColumn, whatIfColumn }
 }
 
 /** Markers drawn as filled squares (uPlot draws circles by default). */
@@ -102,6 +135,25 @@ const squarePoints: uPlot.Series.Points.PathBuilder = (u, seriesIdx, idx0, idx1)
   return { stroke: fill, fill }
 }
 
+/** Hollow diamonds: past forecasts, told apart from the forecast's dots and the adjusted squares by shape. */
+const diamondPoints: uPlot.Series.Points.PathBuilder = (u, seriesIdx, idx0, idx1) => {
+  const stroke = new Path2D()
+  const r = 5.5 * uPlot.pxRatio
+  const values = u.data[seriesIdx]!
+  for (let i = idx0; i <= idx1; i++) {
+    const v = values[i]
+    if (v === null || v === undefined) continue
+    const x = u.valToPos(i, 'x', true)
+    const y = u.valToPos(v, 'y', true)
+    stroke.moveTo(x, y - r)
+    stroke.lineTo(x + r, y)
+    stroke.lineTo(x, y + r)
+    stroke.lineTo(x - r, y)
+    stroke.closePath()
+  }
+  return { stroke, fill: new Path2D() }
+}
+
 /** Period steps that read well for weekly, monthly and quarterly labels. */
 const PERIOD_STEPS = [1, 2, 3, 4, 6, 12, 13, 26, 52, 104, 156, 260, 520]
 
@@ -111,7 +163,7 @@ export function drawForecastChart(
   width: number,
   events: { onCursor(index: number | null): void; onDrawn(summary: DrawnSummary): void },
 ): ForecastChart {
-  const { data, levels, adjusted } = columns(input)
+  const { data, levels, adjusted, past, whatIf, pastColumn, whatIfColumn } = columns(input)
   const f = input.forecastStart
   const holdoutStart = Math.max(0, f - input.holdoutPeriods)
   const bandSeries: uPlot.Series[] = []
@@ -182,6 +234,16 @@ export function drawForecastChart(
       const y = u.valToPos(data[adjustedIndex]![firstAdjusted]!, 'y', true)
       ctx.fillText('adjusted', u.valToPos(firstAdjusted, 'x', true) + 7 * uPlot.pxRatio, y - 6 * uPlot.pxRatio)
     }
+    // So is the what-if line, at its last point.
+    if (whatIf && input.whatIf) {
+      const column = whatIfColumn
+      const lastAt = column.findLastIndex((v) => v !== null)
+      if (lastAt >= 0) {
+        ctx.textAlign = 'right'
+        ctx.fillStyle = CHART_COLOURS.whatIf
+        ctx.fillText(`what-if: ${input.whatIf.label}`, u.valToPos(lastAt, 'x', true) - 8 * uPlot.pxRatio, u.valToPos(column[lastAt]!, 'y', true) + 16 * uPlot.pxRatio)
+      }
+    }
     ctx.restore()
   }
 
@@ -226,10 +288,31 @@ export function drawForecastChart(
     if (lastHistory >= 0) at('history', lastHistory, input.history[lastHistory]!)
     const adjustedAt = adjusted ? data[adjustedIndex]!.findIndex((v) => v !== null && v !== undefined) : -1
     if (adjustedAt >= 0) at('adjusted', adjustedAt, data[adjustedIndex]![adjustedAt]!)
+    // The past forecast whose marker stands furthest from the history line, so a probe finds its stroke.
+    if (past) {
+      let far = -1
+      let farGap = -1
+      pastColumn.forEach((v, i) => {
+        const h = input.history[i]
+        if (v === null || h === null || h === undefined) return
+        const gap = Math.abs(py(v) - py(h))
+        if (gap > farGap) {
+          farGap = gap
+          far = i
+        }
+      })
+      if (far >= 0) probes.push({ name: 'past', x: px(far), y: py(pastColumn[far]!) - Math.round(5.5 * uPlot.pxRatio) })
+    }
+    if (whatIf) {
+      const at0 = whatIfColumn.findIndex((v) => v !== null)
+      if (at0 >= 0) at('what-if', at0, whatIfColumn[at0]!)
+    }
     return {
       historyPoints: input.history.filter((v) => v !== null).length,
       forecastPoints: input.forecast.length,
       adjustedPoints: input.forecast.filter((p) => p.adjusted !== undefined && p.adjusted !== null).length,
+      pastPoints: pastColumn.filter((v) => v !== null).length,
+      whatIfPoints: whatIfColumn.filter((v) => v !== null).length,
       bands: levels.map((level) => ({ level, points: input.forecast.filter((p) => p.bands[level] !== undefined).length })),
       holdoutPeriods: Math.min(input.holdoutPeriods, f),
       probes,
@@ -277,6 +360,29 @@ export function drawForecastChart(
               spanGaps: false,
               // Filled squares, unlike the forecast's hollow dots: the shape tells them apart.
               points: { show: true, size: 11, width: 0, stroke: CHART_COLOURS.adjusted, fill: CHART_COLOURS.adjusted, paths: squarePoints },
+            } satisfies uPlot.Series,
+          ]
+        : []),
+      ...(past
+        ? [
+            {
+              label: 'Past forecast',
+              stroke: CHART_COLOURS.past,
+              width: 2,
+              paths: () => null,
+              // Markers only: each is the forecast a period was scored against (its accuracy record).
+              points: { show: true, size: 11, width: 2, stroke: CHART_COLOURS.past, fill: 'transparent', paths: diamondPoints },
+            } satisfies uPlot.Series,
+          ]
+        : []),
+      ...(whatIf
+        ? [
+            {
+              label: 'What-if forecast',
+              stroke: CHART_COLOURS.whatIf,
+              width: 2,
+              dash: [2, 3],
+              points: { show: false },
             } satisfies uPlot.Series,
           ]
         : []),

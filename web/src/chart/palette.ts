@@ -10,6 +10,8 @@ export const CHART_COLOURS = {
   history: '#1b2a4a',
   forecast: '#9a3b0c',
   adjusted: '#0f6b63',
+  past: '#5b2a86',
+  whatIf: '#374151',
   band80: '#f0bf94',
   band95Base: '#fcebdc',
   band95Hatch: '#c9824a',

@@ -9,24 +9,40 @@ import { periodLabels } from '../periods'
 import { Link, hrefs } from '../router'
 import { useAsync } from '../use-async'
 import { SkuAdjustments } from './sku-adjustments'
-import type { Candidate, ForecastPoint, History, SkuForecast } from '../types'
+import { AccuracyRecord, ValueAdded } from './sku-accuracy'
+import { WhatIfPanel, forecastWithModel, type WhatIf } from './sku-what-if'
+import type { Candidate, ForecastPoint, History, SkuAccuracy, SkuForecast, SkuValueAdded } from '../types'
 
 interface SkuData {
   /** null when only a run with inline series has forecast the SKU. */
   readonly history: History | null
   readonly forecast: SkuForecast | null
+  /** null until a published forecast of the SKU has been scored. */
+  readonly accuracy: SkuAccuracy | null
+  /** Why the accuracy record could not be read (the rest of the page still shows). */
+  readonly accuracyError: string | null
+  /** Forecast value added; null until a period is scored or when it could not be read. */
+  readonly valueAdded: SkuValueAdded | null
+}
+
+function orNullOn404<T>(promise: Promise<T>): Promise<T | null> {
+  return promise.catch((err: unknown) => {
+    if (err instanceof ApiError && err.status === 404) return null
+    throw err
+  })
 }
 
 async function loadSku(sku: string, signal: AbortSignal): Promise<SkuData> {
-  const forecast = getJson<SkuForecast>(skuPath(sku, '/forecast'), signal).catch((err: unknown) => {
-    if (err instanceof ApiError && err.status === 404) return null
-    throw err
-  })
-  const history = await getJson<History>(skuPath(sku, '/history'), signal).catch((err: unknown) => {
-    if (err instanceof ApiError && err.status === 404) return null
-    throw err
-  })
-  const found = { history, forecast: await forecast }
+  const forecast = orNullOn404(getJson<SkuForecast>(skuPath(sku, '/forecast'), signal))
+  const accuracy = orNullOn404(getJson<SkuAccuracy>(skuPath(sku, '/accuracy'), signal)).then(
+    (value) => ({ value, error: null }),
+    (err: unknown) => ({ value: null, error: describeError(err) }),
+  )
+  // Value added is part of the accuracy record: when it cannot be read, the record says why.
+  const valueAdded = orNullOn404(getJson<SkuValueAdded>(skuPath(sku, '/value-added'), signal)).catch(() => null)
+  const history = await orNullOn404(getJson<History>(skuPath(sku, '/history'), signal))
+  const scored = await accuracy
+  const found = { history, forecast: await forecast, accuracy: scored.value, accuracyError: scored.error, valueAdded: await valueAdded }
   if (found.history === null && found.forecast === null) throw new ApiError(404, { detail: `No stored history or forecast for ${sku}` })
   return found
 }
@@ -36,8 +52,8 @@ function band(p: ForecastPoint, level: number) {
 }
 
 /** The chart's time line: the history's periods, then forecast periods past its end. */
-function chartInput(data: SkuData): ChartInput {
-  const { history, forecast } = data
+function chartInput(data: SkuData, whatIf: WhatIf | null): ChartInput {
+  const { history, forecast, accuracy } = data
   const labels =
     history === null
       ? []
@@ -47,7 +63,19 @@ function chartInput(data: SkuData): ChartInput {
   if (start < 0) start = labels.length
   const periods = [...labels.slice(0, start), ...points.map((p) => p.period)]
   for (let i = periods.length; i < labels.length; i++) periods.push(labels[i]!)
+  // Each scored period's forecast, at its place on the time line (periods outside it are left out).
+  const index = new Map(periods.map((p, i) => [p, i]))
+  const past: (number | null)[] = periods.map(() => null)
+  for (const scored of accuracy?.periods ?? []) {
+    const i = index.get(scored.period)
+    if (i !== undefined) past[i] = scored.forecastDemand
+  }
   return {
+    past,
+    whatIf:
+      whatIf?.state === 'done' && whatIf.item.forecast
+        ? { label: modelLabel(whatIf.model), demand: whatIf.item.forecast.map((p) => p.demand) }
+        : null,
     periods,
     history: history?.demand ?? [],
     forecastStart: start,
@@ -94,7 +122,7 @@ function Caution() {
   )
 }
 
-function Candidates({ forecast }: { forecast: SkuForecast }) {
+function Candidates({ forecast, onTry }: { forecast: SkuForecast; onTry: ((model: string) => void) | null }) {
   const candidates = forecast.candidates ?? []
   if (candidates.length === 0) return <p class="muted">This answer carries no candidates table.</p>
   const keys = errorKeys(candidates)
@@ -118,6 +146,7 @@ function Candidates({ forecast }: { forecast: SkuForecast }) {
               </th>
             ))}
             <th scope="col">Note</th>
+            {onTry ? <th scope="col">What-if</th> : null}
           </tr>
         </thead>
         <tbody>
@@ -141,6 +170,15 @@ function Candidates({ forecast }: { forecast: SkuForecast }) {
                   </td>
                 ))}
                 <td>{c.reason ?? ''}</td>
+                {onTry ? (
+                  <td>
+                    {!chosen && c.status === 'scored' ? (
+                      <button type="button" class="link-button" onClick={() => onTry(c.model)} aria-label={`Try ${modelLabel(c.model)} (what-if, not published)`}>
+                        Try
+                      </button>
+                    ) : null}
+                  </td>
+                ) : null}
               </tr>
             )
           })}
@@ -245,11 +283,20 @@ export function SkuPage({ sku }: { sku: string }) {
   // Bumped after an adjustment: the forecast is read again, and the page keeps showing the
   // figures it has meanwhile (so the form and the chart do not vanish while it loads).
   const [version, setVersion] = useState(0)
+  const [whatIf, setWhatIf] = useState<WhatIf | null>(null)
+  useEffect(() => setWhatIf(null), [sku])
   const loaded = useAsync((signal) => loadSku(sku, signal), [sku, version])
   const last = useRef<{ sku: string; data: SkuData } | null>(null)
   if (loaded.state === 'done') last.current = { sku, data: loaded.value }
   const data = loaded.state === 'done' ? loaded.value : loaded.state === 'loading' && last.current?.sku === sku ? last.current.data : null
-  const input = useMemo(() => (data ? chartInput(data) : null), [data])
+  const input = useMemo(() => (data ? chartInput(data, whatIf) : null), [data, whatIf])
+  const tryModel = async (model: string) => {
+    if (!data?.history || !data.forecast) return
+    setWhatIf({ state: 'loading', model })
+    const answer = await forecastWithModel(data.history, data.forecast, model)
+    // Only the newest request counts: a slower earlier answer must not replace it.
+    setWhatIf((current) => (current?.model === model ? answer : current))
+  }
 
   useEffect(() => {
     document.title = `${sku} · Almanac workbench`
@@ -308,17 +355,28 @@ export function SkuPage({ sku }: { sku: string }) {
             <p>This SKU has not been forecast yet (or its last results have expired). Its history is shown alone.</p>
           ) : (
             <>
-              <SkuForecastDetails forecast={data.forecast} />
+              {whatIf ? <WhatIfPanel whatIf={whatIf} published={data.forecast} onClose={() => setWhatIf(null)} /> : null}
+              <SkuForecastDetails forecast={data.forecast} onTry={data.history ? (m) => void tryModel(m) : null} />
               <SkuAdjustments sku={sku} forecast={data.forecast} onChanged={() => setVersion((v) => v + 1)} />
             </>
           )}
+          <section aria-labelledby="accuracy-heading">
+            <h2 id="accuracy-heading">Accuracy record</h2>
+            {data.accuracyError ? (
+              <p class="error">Could not read the accuracy record: {data.accuracyError}</p>
+            ) : (
+              <AccuracyRecord accuracy={data.accuracy} />
+            )}
+            <h3>Forecast value added</h3>
+            <ValueAdded added={data.valueAdded} />
+          </section>
         </>
       ) : null}
     </div>
   )
 }
 
-function SkuForecastDetails({ forecast }: { forecast: SkuForecast }) {
+function SkuForecastDetails({ forecast, onTry }: { forecast: SkuForecast; onTry: ((model: string) => void) | null }) {
   const choice = forecast.modelChoice
   return (
     <>
@@ -372,7 +430,7 @@ function SkuForecastDetails({ forecast }: { forecast: SkuForecast }) {
       </section>
       <section aria-labelledby="candidates-heading">
         <h2 id="candidates-heading">Candidates</h2>
-        <Candidates forecast={forecast} />
+        <Candidates forecast={forecast} onTry={onTry} />
       </section>
       <section aria-labelledby="replenishment-heading">
         <h2 id="replenishment-heading">Replenishment</h2>

@@ -80,6 +80,8 @@ export const ConfigSchema = z.object({
   AUTH_FAILURE_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
   /** Most SKUs with a stored history per tenant; uploads and PUTs past it are refused. */
   QUOTA_SKUS_PER_TENANT: intFromEnv(250_000, 1, 100_000_000),
+  /** Most bytes of stored history (demand and metadata) per tenant; 0: no quota. Writes that would grow past it are refused. */
+  QUOTA_STORED_BYTES_PER_TENANT: intFromEnv(2 * 1024 ** 3, 0, Number.MAX_SAFE_INTEGER),
   /** Most SKUs a schedule's scope.skus may name (larger selections: use tags or all). */
   SCHEDULE_MAX_SKUS: intFromEnv(1000, 1, 100_000),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
@@ -112,6 +114,7 @@ export function parseRedisNode(text: string): RedisNode | null {
 }
 
 export const DEFAULT_QUOTA_SKUS_PER_TENANT = 250_000
+export const DEFAULT_QUOTA_STORED_BYTES_PER_TENANT = 2 * 1024 ** 3
 export const DEFAULT_SCHEDULE_MAX_SKUS = 1000
 
 export interface Config {
@@ -163,6 +166,8 @@ export interface Config {
   readonly authFailureWindowMs?: number
   /** Most stored SKUs per tenant; default DEFAULT_QUOTA_SKUS_PER_TENANT when absent. */
   readonly quotaSkusPerTenant?: number
+  /** Most bytes of stored history per tenant (0: none); default DEFAULT_QUOTA_STORED_BYTES_PER_TENANT when absent. */
+  readonly quotaStoredBytesPerTenant?: number
   /** Most SKUs in a schedule's scope.skus; default DEFAULT_SCHEDULE_MAX_SKUS when absent. */
   readonly scheduleMaxSkus?: number
   readonly logLevel: z.infer<typeof ConfigSchema>['LOG_LEVEL']
@@ -296,6 +301,7 @@ export function loadConfig(
     authFailureMax: e.AUTH_FAILURE_MAX,
     authFailureWindowMs: e.AUTH_FAILURE_WINDOW_MS,
     quotaSkusPerTenant: e.QUOTA_SKUS_PER_TENANT,
+    quotaStoredBytesPerTenant: e.QUOTA_STORED_BYTES_PER_TENANT,
     scheduleMaxSkus: e.SCHEDULE_MAX_SKUS,
     logLevel: e.LOG_LEVEL,
     callbackAttempts: e.CALLBACK_ATTEMPTS,

@@ -5,6 +5,7 @@ import { createAdjustmentService } from './http/adjustment-services.js'
 import { defaultWorkbenchRoot } from './http/plugins/workbench.js'
 import { createServiceMetrics } from './http/metrics.js'
 import { createLogger } from './logger.js'
+import { DEFAULT_QUOTA_STORED_BYTES_PER_TENANT } from './config.js'
 import { createRunGateway } from './queue/gateway.js'
 import { closeSteps, type CloseStep } from './shutdown.js'
 import { configAndRedisOrExit, stopOnSignals } from './startup.js'
@@ -38,7 +39,7 @@ async function main(): Promise<void> {
   const adjustments = createAdjustmentService(config, apiRedis, gateway)
   const histories = new AccuracyTrackingHistoryStore(
     apiRedis,
-    { prefix: config.redisPrefix },
+    { prefix: config.redisPrefix, maxStoredBytes: config.quotaStoredBytesPerTenant ?? DEFAULT_QUOTA_STORED_BYTES_PER_TENANT },
     erp.services.accuracy,
     (err, tenant) => logger.warn({ err, tenant }, 'could not score actuals against the latest forecast'),
     (tenant, entries) => adjustments.historiesStored(tenant, entries),

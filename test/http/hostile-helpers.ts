@@ -20,6 +20,9 @@ export interface HostileApp {
   readonly app: FastifyInstance
   readonly gateway: RunMachinery
   readonly lines: string[]
+  /** The Redis the app uses, and its key prefix. */
+  readonly url: string
+  readonly prefix: string
   close(): Promise<void>
 }
 
@@ -37,7 +40,7 @@ export async function buildHostileApp(name: string, overrides: Partial<Config> =
     gateway,
     logger,
     rateLimitRedis: redis,
-    histories: new HistoryStore(redis, { prefix }),
+    histories: new HistoryStore(redis, { prefix, maxStoredBytes: config.quotaStoredBytesPerTenant ?? 0 }),
     idempotency: new IdempotencyStore(redis, { prefix }),
     erp: erp.services,
   })
@@ -45,6 +48,8 @@ export async function buildHostileApp(name: string, overrides: Partial<Config> =
     app,
     gateway,
     lines,
+    url,
+    prefix,
     async close() {
       await app.close()
       await erp.close()

@@ -17,6 +17,7 @@ import { StockPolicy, type RunScope } from '../../schemas/run.js'
  *   hist:{T}:skus      zset  every SKU with a history, score 0 (ordered by ZRANGEBYLEX)
  *   hist:{T}:tag:<tag> zset  SKUs carrying the tag, score 0
  *   hist:{T}:batch:<id> set  SKUs a feed batch has written (expires: a resent batch is not added twice)
+ *   hist:{T}:bytes     string  bytes of the data and meta fields held (the stored-bytes quota)
  *
  * under `${prefix}:t:${tenant}:`. The tenant sits in a hash tag so one
  * SKU's write (a Lua script over data, meta, the index and tag sets) stays on
@@ -77,27 +78,34 @@ function decodeDemand(sku: string, raw: string): (number | null)[] {
 }
 
 /**
- * KEYS: data, meta, skus, then nNew new-tag sets, then nOld old-tag sets, then the batch set when a batch is given.
- * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld, batch TTL in seconds ('' without a batch).
- * Returns 1 when written, 0 when the meta changed since it was read, 2 when the batch already wrote this SKU.
+ * KEYS: data, meta, skus, bytes, then nNew new-tag sets, then nOld old-tag sets, then the batch set when a batch is given.
+ * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld, batch TTL in seconds ('' without a batch),
+ * stored-bytes quota (0: none).
+ * Returns 1 when written, 0 when the meta changed since it was read, 2 when the batch already wrote this SKU,
+ * 3 when the write would grow the tenant's stored bytes past the quota (nothing written; a write that
+ * shrinks or keeps the size always passes, so a tenant over its quota can still correct and trim).
  * The batch check and mark sit in the same script as the write, so a batch resent after a partial failure
- * adds exactly the SKUs it had not written yet.
+ * adds exactly the SKUs it had not written yet; the byte count changes in the same step as the fields.
  */
 const PUT_HISTORY = `
 local nNew = tonumber(ARGV[5])
 local nOld = tonumber(ARGV[6])
 local batchKey = nil
 if ARGV[7] ~= '' then
-  batchKey = KEYS[3 + nNew + nOld + 1]
+  batchKey = KEYS[4 + nNew + nOld + 1]
   if redis.call('SISMEMBER', batchKey, ARGV[1]) == 1 then return 2 end
 end
 local cur = redis.call('HGET', KEYS[2], ARGV[1])
 if (cur or '') ~= ARGV[2] then return 0 end
+local delta = #ARGV[4] + #ARGV[3] - redis.call('HSTRLEN', KEYS[1], ARGV[1]) - #(cur or '')
+local quota = tonumber(ARGV[8])
+if quota > 0 and delta > 0 and tonumber(redis.call('GET', KEYS[4]) or '0') + delta > quota then return 3 end
+redis.call('INCRBY', KEYS[4], delta)
 redis.call('HSET', KEYS[1], ARGV[1], ARGV[4])
 redis.call('HSET', KEYS[2], ARGV[1], ARGV[3])
 redis.call('ZADD', KEYS[3], 0, ARGV[1])
-for i = 1, nOld do redis.call('ZREM', KEYS[3 + nNew + i], ARGV[1]) end
-for i = 1, nNew do redis.call('ZADD', KEYS[3 + i], 0, ARGV[1]) end
+for i = 1, nOld do redis.call('ZREM', KEYS[4 + nNew + i], ARGV[1]) end
+for i = 1, nNew do redis.call('ZADD', KEYS[4 + i], 0, ARGV[1]) end
 if batchKey then
   redis.call('SADD', batchKey, ARGV[1])
   redis.call('EXPIRE', batchKey, tonumber(ARGV[7]))
@@ -107,25 +115,44 @@ return 1
 const PUT_COMMAND = 'almanacPutHistory'
 
 /**
- * KEYS: data, meta, skus, then the SKU's tag sets. ARGV: sku, expected meta.
+ * KEYS: data, meta, skus, bytes, then the SKU's tag sets. ARGV: sku, expected meta.
  * Returns 1 when deleted, 0 when the meta changed since it was read.
  */
 const DELETE_HISTORY = `
 if (redis.call('HGET', KEYS[2], ARGV[1]) or '') ~= ARGV[2] then return 0 end
+redis.call('DECRBY', KEYS[4], redis.call('HSTRLEN', KEYS[1], ARGV[1]) + #ARGV[2])
 redis.call('HDEL', KEYS[1], ARGV[1])
 redis.call('HDEL', KEYS[2], ARGV[1])
 redis.call('ZREM', KEYS[3], ARGV[1])
-for i = 4, #KEYS do redis.call('ZREM', KEYS[i], ARGV[1]) end
+for i = 5, #KEYS do redis.call('ZREM', KEYS[i], ARGV[1]) end
 return 1
 `
 const DELETE_COMMAND = 'almanacDeleteHistory'
 /** Rounds of read-merge-write per SKU before a SKU is reported as contended (with a short random pause between). */
 const MAX_ATTEMPTS = 10
 
+/** Why a write was refused by the stored-bytes quota. */
+export function storedBytesQuotaReason(quota: number): string {
+  return `the tenant's stored histories would exceed ${quota} bytes (QUOTA_STORED_BYTES_PER_TENANT); delete SKUs or raise the quota`
+}
+
+/** A write refused by the stored-bytes quota (nothing was written). */
+export class StoredBytesQuotaError extends Error {}
+
+export interface HistoryStoreOptions {
+  readonly prefix: string
+  readonly now?: () => Date
+  /**
+   * Most bytes of history data and metadata one tenant may hold (0 or absent: no quota). Writes
+   * that would grow past it are refused; writes that shrink or keep the size always pass.
+   */
+  readonly maxStoredBytes?: number
+}
+
 export class HistoryStore implements HistoryWriter {
   constructor(
     private readonly redis: RedisClient,
-    private readonly opts: { readonly prefix: string; readonly now?: () => Date },
+    private readonly opts: HistoryStoreOptions,
   ) {
     if (!(PUT_COMMAND in redis)) redis.defineCommand(PUT_COMMAND, { lua: PUT_HISTORY })
     if (!(DELETE_COMMAND in redis)) redis.defineCommand(DELETE_COMMAND, { lua: DELETE_HISTORY })
@@ -142,6 +169,7 @@ export class HistoryStore implements HistoryWriter {
       data: `${base}:data`,
       meta: `${base}:meta`,
       skus: `${base}:skus`,
+      bytes: `${base}:bytes`,
       tag: (t: string) => `${base}:tag:${t}`,
       batch: (id: string) => `${base}:batch:${id}`,
     }
@@ -157,6 +185,12 @@ export class HistoryStore implements HistoryWriter {
     const k = this.keys(tenant)
     const [metas, datas] = await Promise.all([this.redis.hmget(k.meta, ...skus), this.redis.hmget(k.data, ...skus)])
     return skus.map((sku, i) => decode(sku, metas[i] ?? null, datas[i] ?? null))
+  }
+
+  /** Bytes of history data and metadata the tenant holds, as the stored-bytes quota counts them. */
+  async storedBytes(tenant: string): Promise<number> {
+    if (!isValidTenant(tenant)) return 0
+    return Math.max(0, Number((await this.redis.get(this.keys(tenant).bytes)) ?? 0))
   }
 
   /** How many SKUs of the tenant have a stored history. */
@@ -188,7 +222,7 @@ export class HistoryStore implements HistoryWriter {
     for (let attempt = 0; attempt < MAX_ATTEMPTS; attempt++) {
       const raw = await this.redis.hget(k.meta, sku)
       if (raw === null) return false
-      const keys = [k.data, k.meta, k.skus, ...decodeMeta(sku, raw).t.map(k.tag)]
+      const keys = [k.data, k.meta, k.skus, k.bytes, ...decodeMeta(sku, raw).t.map(k.tag)]
       const run = (this.redis as unknown as Record<string, (...a: unknown[]) => Promise<unknown>>)[DELETE_COMMAND]!
       if ((await run.call(this.redis, keys.length, ...keys, sku, raw)) === 1) return true
     }
@@ -199,6 +233,7 @@ export class HistoryStore implements HistoryWriter {
   async put(tenant: string, sku: string, data: HistoryData): Promise<{ outcome: 'created' | 'updated'; history: StoredHistory }> {
     const pending = { sku, incoming: { frequency: data.frequency, startOrdinal: 0, demand: [] }, rows: 0, origin: {} }
     const [r] = await this.apply(tenant, [pending], () => ({ data }), { readValues: false })
+    if (r && 'reason' in r && r.reason === storedBytesQuotaReason(this.opts.maxStoredBytes ?? 0)) throw new StoredBytesQuotaError(r.reason)
     if (!r || 'reason' in r || r.outcome === 'already-applied') throw new Error(r && 'reason' in r ? r.reason : 'history not written')
     return { outcome: r.outcome, history: (await this.get(tenant, sku))! }
   }
@@ -216,6 +251,7 @@ export class HistoryStore implements HistoryWriter {
     // A merge that replaces values needs only the metadata (tags, revision): skip reading the values.
     const readValues = opts.readValues ?? true
     const results: WriteOutcome[] = new Array(batch.length)
+    const quota = this.opts.maxStoredBytes ?? 0
     let todo = batch.map((_, i) => i)
     for (let attempt = 0; attempt < MAX_ATTEMPTS && todo.length > 0; attempt++) {
       if (attempt > 0) await new Promise((r) => setTimeout(r, Math.random() * 5 * attempt))
@@ -248,8 +284,8 @@ export class HistoryStore implements HistoryWriter {
           ...(d.replenishment === undefined ? {} : { p: d.replenishment }),
         }
         const oldTags = oldMeta?.t ?? []
-        const keys = [k.data, k.meta, k.skus, ...d.tags.map(k.tag), ...oldTags.map(k.tag), ...batchKeys]
-        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length, batchTtl]
+        const keys = [k.data, k.meta, k.skus, k.bytes, ...d.tags.map(k.tag), ...oldTags.map(k.tag), ...batchKeys]
+        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length, batchTtl, quota]
         ;(pipe as unknown as Record<string, (...a: unknown[]) => unknown>)[PUT_COMMAND]!(keys.length, ...keys, ...args)
         results[i] = { outcome: rawMeta === null ? 'created' : 'updated' }
         sent.push(i)
@@ -259,6 +295,7 @@ export class HistoryStore implements HistoryWriter {
       replies.forEach(([err, written], j) => {
         if (err) throw err
         if (written === 2) results[sent[j]!] = { outcome: 'already-applied' }
+        else if (written === 3) results[sent[j]!] = { reason: storedBytesQuotaReason(quota) }
         else if (written !== 1) todo.push(sent[j]!)
       })
     }

@@ -9,7 +9,7 @@ import { DEFAULT_QUOTA_SKUS_PER_TENANT } from '../../../config.js'
 import { normaliseTags } from '../../../history/tags.js'
 import { HistoryBody, HistoryResource } from '../../../schemas/history.js'
 import { SkuParams } from '../../../schemas/params.js'
-import type { StoredHistory } from '../../../storage/histories/history-store.js'
+import { StoredBytesQuotaError, type StoredHistory } from '../../../storage/histories/history-store.js'
 import { requireHistories } from '../../plugins/history.js'
 import { READ_ONE, WRITE, WRITE_ONE } from '../responses.js'
 
@@ -72,13 +72,18 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       if ('reason' in normalised) {
         throw new ProblemError('validation-failed', 'The request body has 1 invalid field', [{ path: 'tags', message: normalised.reason }])
       }
-      const { outcome, history } = await store.put(request.tenant, sku, {
-        frequency,
-        firstPeriod,
-        demand,
-        tags: normalised.tags,
-        ...(replenishment === undefined ? {} : { replenishment }),
-      })
+      const { outcome, history } = await store
+        .put(request.tenant, sku, {
+          frequency,
+          firstPeriod,
+          demand,
+          tags: normalised.tags,
+          ...(replenishment === undefined ? {} : { replenishment }),
+        })
+        .catch((err: unknown) => {
+          if (!(err instanceof StoredBytesQuotaError)) throw err
+          throw new ProblemError('limit-reached', `The history of SKU ${sku} was not stored: ${err.message}`, [{ path: 'demand', message: err.message }], {}, { dependsOnState: true })
+        })
       request.log.info({ sku, periodCount: demand.length, outcome }, 'history stored')
       if (outcome === 'created') reply.code(201).header('location', `/v1/skus/${encodeURIComponent(sku)}/history`)
       return toHistoryResource(history)

@@ -7,6 +7,7 @@ export { periodLabels, nextPeriods, parsePeriod, formatPeriod, isoWeeksInYear } 
 export { computeMetrics, maseScale } from './metrics.js'
 export { normalQuantile } from './intervals.js'
 export { MODEL_REGISTRY, findModel, type DemandClassification } from './models.js'
+export { THOROUGH_EXTRA, LISTABLE_MODELS, SEARCH } from './select/pools.js'
 export {
   computeReplenishment,
   replenishmentFor,

@@ -1,19 +1,52 @@
-import { DEFAULT_SEASON_LENGTH, MODEL_REGISTRY } from '../engine/index.js'
+import { DEFAULT_SEASON_LENGTH, MODEL_REGISTRY, SEARCH, THOROUGH_EXTRA } from '../engine/index.js'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 
 /**
+ * What one fit of a model costs, in fits of an average model of the default pool
+ * (which count 1). Measured with `bench/model-cost.ts` on M3 monthly series
+ * (bench/RESULTS.md, "Fit cost per model"), rounded: the state-space search fits
+ * many forms by maximum likelihood, the median combination fits its members, and
+ * auto-arima's stepwise search fits dozens of ARIMA models by Kalman filter.
+ */
+export const MODEL_COST_WEIGHTS: Readonly<Record<string, number>> = {
+  'optimised-theta': 10,
+  'dynamic-optimised-theta': 10,
+  'state-space-smoothing': 500,
+  'median-combination': 900,
+  'auto-arima': 10_000,
+}
+
+/** A model's weight: 1 for the default pool, MODEL_COST_WEIGHTS for the costlier ones. */
+export function modelCostWeight(model: string): number {
+  return MODEL_COST_WEIGHTS[model] ?? 1
+}
+
+const sumWeights = (models: readonly { readonly name: string }[]) => models.reduce((s, m) => s + modelCostWeight(m.name), 0)
+const DEFAULT_POOL_WEIGHT = sumWeights(MODEL_REGISTRY)
+const THOROUGH_POOL_WEIGHT = DEFAULT_POOL_WEIGHT + sumWeights(THOROUGH_EXTRA)
+
+/**
  * Estimated fitting work of one series: points x season length x holdout
- * origins x candidate models. Each candidate is fitted once per origin over
+ * origins x candidate models, each candidate weighted by its cost (a model of
+ * the default pool counts 1). Each candidate is fitted once per origin over
  * the history, and the seasonal ones start from a season-long window, so the
  * product tracks fitting time within a small factor (bench/RESULTS.md, "Fit
- * cost and time"). A unit, not a duration.
+ * cost and time"). The thorough search adds its extra models and at least its
+ * fewest holdout origins. A unit, not a duration.
  */
 export function seriesFitCost(settings: RunSettings, series: SeriesItem): number {
   const frequency = series.frequency ?? settings.frequency
   const seasonLength = series.seasonLength ?? settings.seasonLength ?? DEFAULT_SEASON_LENGTH[frequency]
-  // Unlisted models mean the default pool: the registry's models (model ids outside it are never fitted by default).
-  const candidates = settings.models?.length ?? MODEL_REGISTRY.length
-  return series.demand.length * seasonLength * settings.holdoutOrigins * candidates
+  const search = SEARCH[settings.modelSearch ?? 'fast']
+  const origins = Math.max(settings.holdoutOrigins, search.holdoutOrigins)
+  // Listed models are fitted whatever the search; unlisted, the search's pool.
+  const candidates =
+    settings.models !== undefined
+      ? settings.models.reduce((s, m) => s + modelCostWeight(m), 0)
+      : settings.modelSearch === 'thorough'
+        ? THOROUGH_POOL_WEIGHT
+        : DEFAULT_POOL_WEIGHT
+  return series.demand.length * seasonLength * origins * candidates
 }
 
 /** The fitting work of a whole request: the sum over its series. */

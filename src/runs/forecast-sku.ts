@@ -1,9 +1,9 @@
 import { EngineInputError, replenishmentFor, type ForecastResult, type Frequency, type SeriesInput } from '../engine/index.js'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 import type { ForecastItem, ResultItem } from './contract.js'
-import { PERIOD_SETTING_NOT_APPLIED, REPLENISHMENT_SKIPPED } from './failures.js'
-import { toSeriesInput } from './series-input.js'
-import { resolveStockPolicy, type ItemWarning } from './stock-policy.js'
+import { PERIOD_SETTING_CONVERTED, PERIOD_SETTING_NOT_APPLIED, REPLENISHMENT_SKIPPED } from './failures.js'
+import { convertedPeriods, toSeriesInput } from './series-input.js'
+import { DAYS_PER_PERIOD, resolveStockPolicy, type ItemWarning } from './stock-policy.js'
 
 /**
  * Forecasts one series. Input the engine rejects becomes an error item; any
@@ -27,19 +27,36 @@ export function forecastItem(
 }
 
 /**
- * A run-level seasonLength counts periods of the run's `frequency`: a SKU of
- * another frequency keeps its own default (52 weeks would make a monthly SKU
- * non-seasonal), and its item says so.
+ * Run-level counts of periods, for a SKU of another frequency than the run's: a
+ * seasonLength is not applied (52 weeks would make a monthly SKU non-seasonal:
+ * the SKU keeps its own default), horizon and holdoutPeriods are converted
+ * through days (series-input.ts). Each item says so.
  */
 function settingWarnings(settings: RunSettings, series: SeriesItem, frequency: Frequency): ItemWarning[] {
-  if (settings.seasonLength === undefined || series.seasonLength !== undefined || frequency === settings.frequency) return []
-  return [
-    {
+  if (frequency === settings.frequency) return []
+  const out: ItemWarning[] = []
+  if (settings.seasonLength !== undefined && series.seasonLength === undefined) {
+    out.push({
       code: PERIOD_SETTING_NOT_APPLIED,
       message: `seasonLength ${settings.seasonLength} counts ${settings.frequency} periods (the run's frequency); this ${frequency} SKU uses its own default`,
-    },
-  ]
+    })
+  }
+  const converted = convertedPeriods(settings, frequency)
+  const rule = `calendar rule: ${round4(DAYS_PER_PERIOD[settings.frequency])} days per ${settings.frequency}, ${round4(DAYS_PER_PERIOD[frequency])} per ${frequency}`
+  out.push({
+    code: PERIOD_SETTING_CONVERTED,
+    message: `horizon ${settings.horizon} counts ${settings.frequency} periods (the run's frequency); for this ${frequency} SKU it is ${converted.horizon} ${frequency} periods, rounded up (${rule})`,
+  })
+  if (settings.holdoutPeriods !== undefined && converted.holdoutPeriods !== undefined) {
+    out.push({
+      code: PERIOD_SETTING_CONVERTED,
+      message: `holdoutPeriods ${settings.holdoutPeriods} counts ${settings.frequency} periods; for this ${frequency} SKU it is ${converted.holdoutPeriods} ${frequency} periods, rounded (${rule})`,
+    })
+  }
+  return out
 }
+
+const round4 = (x: number) => Math.round(x * 1e4) / 1e4
 
 /**
  * Adds replenishment figures when the run asks for them, from the SKU's stock

@@ -155,10 +155,24 @@ export const CallbackUrl = z
   .describe('Called (signed POST) when the run ends; see /v1/callbacks for the signature')
 
 export const RunSettings = z.strictObject({
-  horizon: z.number().int().min(1).max(MAX_HORIZON).describe('Periods to forecast'),
+  horizon: z
+    .number()
+    .int()
+    .min(1)
+    .max(MAX_HORIZON)
+    .describe(
+      "Periods to forecast, of the run's frequency; for a SKU of another frequency converted through days (rounded up), " +
+        'with the warning period-setting-converted',
+    ),
   frequency: z.enum(FREQUENCIES).default('month'),
   seasonLength: SeasonLength.optional(),
-  holdoutPeriods: z.number().int().min(1).max(MAX_HORIZON).optional().describe('Periods held back to rank the candidates'),
+  holdoutPeriods: z
+    .number()
+    .int()
+    .min(1)
+    .max(MAX_HORIZON)
+    .optional()
+    .describe("Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded)"),
   holdoutOrigins: z.number().int().min(1).max(12).default(1).describe('Rolling forecast origins the holdout errors are averaged over'),
   rankBy: z.enum(METRIC_NAMES).default('mase').describe('The holdout error that ranks the candidates'),
   models: z.array(z.enum(MODEL_NAMES)).min(1).optional().describe('Candidates; default all the history allows'),

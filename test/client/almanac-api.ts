@@ -654,7 +654,7 @@ export interface components {
         };
         /** @description Run-level settings plus the series; per-series frequency and seasonLength override the run's */
         RunRequestInput: {
-            /** @description Periods to forecast */
+            /** @description Periods to forecast, of the run's frequency; for a SKU of another frequency converted through days (rounded up), with the warning period-setting-converted */
             horizon: number;
             /**
              * @default month
@@ -663,7 +663,7 @@ export interface components {
             frequency: "day" | "week" | "month" | "quarter" | "year";
             /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
             seasonLength?: number;
-            /** @description Periods held back to rank the candidates */
+            /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
             holdoutPeriods?: number;
             /**
              * @description Rolling forecast origins the holdout errors are averaged over
@@ -1122,7 +1122,7 @@ export interface components {
             /** @description ISO-8601 */
             finishedAt: string | null;
             settings: {
-                /** @description Periods to forecast */
+                /** @description Periods to forecast, of the run's frequency; for a SKU of another frequency converted through days (rounded up), with the warning period-setting-converted */
                 horizon: number;
                 /**
                  * @default month
@@ -1131,7 +1131,7 @@ export interface components {
                 frequency: "day" | "week" | "month" | "quarter" | "year";
                 /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
                 seasonLength?: number;
-                /** @description Periods held back to rank the candidates */
+                /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
                 holdoutPeriods?: number;
                 /**
                  * @description Rolling forecast origins the holdout errors are averaged over
@@ -1496,7 +1496,7 @@ export interface components {
             createdAt: string;
         };
         Schedule: {
-            /** @description Periods to forecast */
+            /** @description Periods to forecast, of the run's frequency; for a SKU of another frequency converted through days (rounded up), with the warning period-setting-converted */
             horizon: number;
             /**
              * @default month
@@ -1505,7 +1505,7 @@ export interface components {
             frequency: "day" | "week" | "month" | "quarter" | "year";
             /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
             seasonLength?: number;
-            /** @description Periods held back to rank the candidates */
+            /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
             holdoutPeriods?: number;
             /**
              * @description Rolling forecast origins the holdout errors are averaged over
@@ -1830,7 +1830,7 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": {
-                    /** @description Periods to forecast */
+                    /** @description Periods to forecast, of the run's frequency; for a SKU of another frequency converted through days (rounded up), with the warning period-setting-converted */
                     horizon: number;
                     /**
                      * @default month
@@ -1839,7 +1839,7 @@ export interface operations {
                     frequency?: "day" | "week" | "month" | "quarter" | "year";
                     /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
                     seasonLength?: number;
-                    /** @description Periods held back to rank the candidates */
+                    /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
                     holdoutPeriods?: number;
                     /**
                      * @description Rolling forecast origins the holdout errors are averaged over
@@ -3654,7 +3654,7 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": {
-                    /** @description Periods to forecast */
+                    /** @description Periods to forecast, of the run's frequency; for a SKU of another frequency converted through days (rounded up), with the warning period-setting-converted */
                     horizon: number;
                     /**
                      * @default month
@@ -3663,7 +3663,7 @@ export interface operations {
                     frequency?: "day" | "week" | "month" | "quarter" | "year";
                     /** @description Periods per season (1: no season); default by frequency: day 7, week 52, month 12, quarter 4, year 1 */
                     seasonLength?: number;
-                    /** @description Periods held back to rank the candidates */
+                    /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
                     holdoutPeriods?: number;
                     /**
                      * @description Rolling forecast origins the holdout errors are averaged over

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest'
-import { toSeriesInput } from '../../src/runs/series-input.js'
+import { convertedPeriods, toSeriesInput } from '../../src/runs/series-input.js'
 import { RunSettings } from '../../src/schemas/run.js'
 
 const settings = RunSettings.parse({ horizon: 6, frequency: 'month', seasonLength: 12, models: ['level-smoothing', 'trend-smoothing'] })
@@ -23,7 +23,22 @@ describe('toSeriesInput', () => {
 
   it('lets a series override frequency, firstPeriod and season length', () => {
     const input = toSeriesInput(settings, { sku: 'A', demand: [1], frequency: 'week', firstPeriod: '2024-W09', seasonLength: 4 })
-    expect(input).toMatchObject({ frequency: 'week', firstPeriod: '2024-W09', seasonLength: 4, horizon: 6 })
+    // The run's horizon of 6 months is converted: 6 x 30.4375 / 7 = 26.09 weeks, rounded up to 27.
+    expect(input).toMatchObject({ frequency: 'week', firstPeriod: '2024-W09', seasonLength: 4, horizon: 27 })
+  })
+
+  it('converts a run-level horizon and holdout for a series of another frequency through days (calendar rule)', () => {
+    // Hand arithmetic with 365.25 / 12 = 30.4375 days a month, 91.3125 a quarter, 7 a week.
+    const monthly = RunSettings.parse({ horizon: 12, holdoutPeriods: 3, frequency: 'month' })
+    // 12 months = 365.25 days = 52.18 weeks -> 53 (at least the span asked for); 3 months = 13.04 weeks -> 13.
+    expect(convertedPeriods(monthly, 'week')).toEqual({ horizon: 53, holdoutPeriods: 13 })
+    // 12 months are exactly 4 quarters; 3 months exactly 1.
+    expect(convertedPeriods(monthly, 'quarter')).toEqual({ horizon: 4, holdoutPeriods: 1 })
+    // 12 months are 1 year; 3 months a quarter of a year: the holdout keeps at least 1 period.
+    expect(convertedPeriods(monthly, 'year')).toEqual({ horizon: 1, holdoutPeriods: 1 })
+    expect(convertedPeriods(monthly, 'month')).toEqual({ horizon: 12, holdoutPeriods: 3 })
+    // Daily SKUs in a yearly run: capped at the most periods a request may ask for.
+    expect(convertedPeriods(RunSettings.parse({ horizon: 3, frequency: 'year' }), 'day')).toEqual({ horizon: 1000 })
   })
 
   it('leaves unset options absent so the engine applies its defaults', () => {

@@ -213,7 +213,10 @@ function weightedConformal(scores: Scores, p: number): number | null {
  * The multiplier k(p) of sd at central coverage p (0 < p < 1). Calibration only widens:
  * the rolling origins lie in the stretch the model was selected on, so their errors are
  * optimistic, and narrowing on them would promise too much. Where too few errors exist
- * for p, the weighted root mean square of the scores times the t quantile is used.
+ * for p (the conformal rank lies past the largest score), the weighted root mean square
+ * of the scores times the t quantile is used, but never less than the largest score:
+ * an interval at a level the errors cannot resolve is at least as wide as the worst
+ * error they showed (decided on the M3 training split, bench/RESULTS.md).
  */
 function multiplier(p: number, degreesOfFreedom: number | undefined, scores: Scores | null): number {
   const df = degreesOfFreedom
@@ -223,7 +226,7 @@ function multiplier(p: number, degreesOfFreedom: number | undefined, scores: Sco
   if (q !== null) return Math.max(base, q)
   let ss = 0
   for (let i = 0; i < scores.values.length; i++) ss += scores.weights[i]! * scores.values[i]! ** 2
-  return Math.max(base, Math.sqrt(ss / scores.totalWeight) * base)
+  return Math.max(base, Math.sqrt(ss / scores.totalWeight) * base, scores.values[scores.values.length - 1]!)
 }
 
 /** Bounds for every level and the requested quantiles; each interval contains its point and widens with level. */

@@ -134,6 +134,15 @@ describe('calibrated intervals', () => {
     const rms = Math.sqrt(Array.from({ length: 20 }, (_, i) => (i + 1) ** 2).reduce((a, b) => a + b, 0) / 20)
     expect(approxEqual(b.upper['99']![0]! - 100, rms * normalQuantile(0.995), 1e-12)).toBe(true)
   })
+  it('are never narrower than the largest standardised error when too few errors exist for the level', () => {
+    // 19 errors of 1 and one of 10 at step 1 against sd 1. 99%: no score reaches 0.99 * 1.05; the RMS
+    // times z is sqrt(119 / 20) * 2.5758 = 6.28, below the largest error seen, 10: the bound is 10.
+    const calibration = [...Array.from({ length: 19 }, () => ({ step: 1, error: 1 })), { step: 1, error: -10 }]
+    const b = buildIntervals({ ...sd1, levels: [99], calibration })
+    expect(Math.sqrt(119 / 20) * normalQuantile(0.995)).toBeLessThan(10)
+    expect(b.upper['99']![0]).toBe(110)
+    expect(b.lower['99']![0]).toBe(90)
+  })
   it('never narrow below the model spread', () => {
     const calibration = Array.from({ length: 20 }, () => ({ step: 1, error: 0.01 }))
     const b = buildIntervals({ ...sd1, calibration })

@@ -33,6 +33,7 @@ import { PROBLEM_CONTENT_TYPE } from '../errors.js'
 import type { ErpServices } from './erp-services.js'
 import erpPlugin from './plugins/erp.js'
 import accuracyRoutes from './routes/accuracy.js'
+import valueAddedRoutes from './routes/value-added.js'
 import accessRoutes from './routes/access.js'
 import workbenchPlugin from './plugins/workbench.js'
 import callbackRoutes from './routes/callbacks.js'
@@ -156,6 +157,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(skuAccuracyRoutes, { prefix: '/v1/skus' })
   await app.register(skuAdjustmentRoutes, { prefix: '/v1/skus' })
   await app.register(accuracyRoutes)
+  await app.register(valueAddedRoutes)
   await app.register(closedPeriodRoutes, { prefix: '/v1/closed-periods' })
   await app.register(accessRoutes)
   await app.register(workbenchPlugin, { root: deps.workbenchRoot ?? null })

@@ -184,6 +184,26 @@ export class AdjustmentService {
     return { sku, ...summariseValueAdded(periods), byAuthor: valueAddedByAuthor(periods), periods }
   }
 
+  /**
+   * Forecast value added pooled over SKUs (a tag's): every scored period of every SKU in
+   * one summary, and per author over the periods they adjusted, whichever SKU. `skus`
+   * counts the SKUs with at least one scored period.
+   */
+  async pooledValueAdded(tenant: string, skus: AsyncIterable<readonly string[]>) {
+    const all: ValueAddedRecord[] = []
+    let scored = 0
+    for await (const batch of skus) {
+      for (let i = 0; i < batch.length; i += PARALLEL) {
+        const lists = await Promise.all(batch.slice(i, i + PARALLEL).map((sku) => this.deps.valueAdded.records(tenant, sku)))
+        for (const list of lists) {
+          if (list.length > 0) scored++
+          for (const r of list) all.push(r)
+        }
+      }
+    }
+    return { skus: scored, ...summariseValueAdded(all), byAuthor: valueAddedByAuthor(all) }
+  }
+
   /** Forgets a SKU's adjustments in force and its value-added records (its history was deleted); the trail stays. */
   async forget(tenant: string, sku: string): Promise<void> {
     await Promise.all([this.deps.store.forget(tenant, sku), this.deps.valueAdded.forget(tenant, sku)])

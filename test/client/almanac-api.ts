@@ -560,6 +560,26 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/v1/value-added/by-tag": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Forecast value added pooled over the SKUs of a tag, and per planner
+         * @description Every scored period of every SKU carrying the tag, pooled: mean absolute errors of the naive, statistical and final (adjusted) forecasts and the value each step added, in demand units; byAuthor the same over the periods each planner adjusted. A pooled MAE weighs SKUs by their demand, so large SKUs dominate it. Reads every SKU of the tag, so it takes longer the larger the tag.
+         */
+        get: operations["getTagValueAdded"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/v1/closed-periods": {
         parameters: {
             query?: never;
@@ -1454,6 +1474,65 @@ export interface components {
             wape: number | null;
             /** @description SKUs whose own tracking signals flag them */
             flaggedSkus: number;
+        };
+        TagValueAdded: {
+            /** @description Periods scored: actual demand arrived for a forecast period */
+            scoredPeriods: number;
+            /** @description Of those, periods that had an adjustment */
+            adjustedPeriods: number;
+            /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods */
+            mae: {
+                statistical: number | null;
+                final: number | null;
+                naive: number | null;
+            };
+            /** @description Forecast value added, in demand units */
+            valueAdded: {
+                /** @description mae.statistical − mae.final: positive when the adjustments made the forecast better */
+                adjustments: number | null;
+                /** @description mae.naive − mae.statistical: positive when the model beat the naive forecast */
+                statistical: number | null;
+                /** @description mae.naive − mae.final */
+                final: number | null;
+            };
+            /** @description mae.final < mae.statistical; null with no adjusted period */
+            adjustmentsBeatStatistical: boolean | null;
+            /** @description mae.statistical < mae.naive; null with no scored period */
+            statisticalBeatsNaive: boolean | null;
+            /** @description mae.final < mae.naive; null with no scored period */
+            finalBeatsNaive: boolean | null;
+            tag: string;
+            /** @description SKUs of the tag with at least one scored period */
+            skus: number;
+            /** @description Per author, over the periods they adjusted in any SKU of the tag */
+            byAuthor: {
+                /** @description Periods scored: actual demand arrived for a forecast period */
+                scoredPeriods: number;
+                /** @description Of those, periods that had an adjustment */
+                adjustedPeriods: number;
+                /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods */
+                mae: {
+                    statistical: number | null;
+                    final: number | null;
+                    naive: number | null;
+                };
+                /** @description Forecast value added, in demand units */
+                valueAdded: {
+                    /** @description mae.statistical − mae.final: positive when the adjustments made the forecast better */
+                    adjustments: number | null;
+                    /** @description mae.naive − mae.statistical: positive when the model beat the naive forecast */
+                    statistical: number | null;
+                    /** @description mae.naive − mae.final */
+                    final: number | null;
+                };
+                /** @description mae.final < mae.statistical; null with no adjusted period */
+                adjustmentsBeatStatistical: boolean | null;
+                /** @description mae.statistical < mae.naive; null with no scored period */
+                statisticalBeatsNaive: boolean | null;
+                /** @description mae.final < mae.naive; null with no scored period */
+                finalBeatsNaive: boolean | null;
+                author: string;
+            }[];
         };
         Access: {
             /** @description true: every /v1 route needs Authorization: Bearer <key>; false: no keys are configured */
@@ -5220,6 +5299,80 @@ export interface operations {
                 };
                 content: {
                     "application/json": components["schemas"]["PooledAccuracy"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    getTagValueAdded: {
+        parameters: {
+            query: {
+                /** @description SKUs carrying this tag, e.g. category:garden */
+                tag: string;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["TagValueAdded"];
                 };
             };
             /** @description Bad request (bad-request); Validation failed (validation-failed) */

@@ -51,6 +51,7 @@ describe('OpenAPI document', () => {
       '/v1/skus/{sku}/forecast',
       '/v1/skus/{sku}/history',
       '/v1/skus/{sku}/value-added',
+      '/v1/value-added/by-tag',
     ])
     expect(doc.paths['/v1/runs'].post.responses['202']).toBeDefined()
     expect(doc.paths['/v1/runs/{runId}'].delete.responses['404'].content['application/problem+json']).toBeDefined()

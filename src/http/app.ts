@@ -34,6 +34,7 @@ import type { ErpServices } from './erp-services.js'
 import erpPlugin from './plugins/erp.js'
 import accuracyRoutes from './routes/accuracy.js'
 import valueAddedRoutes from './routes/value-added.js'
+import tagRoutes from './routes/tags.js'
 import accessRoutes from './routes/access.js'
 import workbenchPlugin from './plugins/workbench.js'
 import callbackRoutes from './routes/callbacks.js'
@@ -158,6 +159,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(skuAdjustmentRoutes, { prefix: '/v1/skus' })
   await app.register(accuracyRoutes)
   await app.register(valueAddedRoutes)
+  await app.register(tagRoutes)
   await app.register(closedPeriodRoutes, { prefix: '/v1/closed-periods' })
   await app.register(accessRoutes)
   await app.register(workbenchPlugin, { root: deps.workbenchRoot ?? null })

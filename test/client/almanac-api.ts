@@ -580,6 +580,26 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/v1/tags": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * List the tags of stored histories with their SKU counts
+         * @description Ordered by tag (byte order). A tag is listed while at least one stored history carries it; counts follow every history write and delete.
+         */
+        get: operations["listTags"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/v1/closed-periods": {
         parameters: {
             query?: never;
@@ -1533,6 +1553,15 @@ export interface components {
                 finalBeatsNaive: boolean | null;
                 author: string;
             }[];
+        };
+        TagPage: {
+            items: {
+                tag: string;
+                /** @description Stored SKUs carrying the tag */
+                skus: number;
+            }[];
+            /** @description null on the last page */
+            nextCursor: string | null;
         };
         Access: {
             /** @description true: every /v1 route needs Authorization: Bearer <key>; false: no keys are configured */
@@ -5373,6 +5402,82 @@ export interface operations {
                 };
                 content: {
                     "application/json": components["schemas"]["TagValueAdded"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    listTags: {
+        parameters: {
+            query?: {
+                /** @description Items per page (1..1000, default 100) */
+                limit?: number;
+                /** @description nextCursor of the previous page; a cursor this API did not issue is a 400 */
+                cursor?: string;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["TagPage"];
                 };
             };
             /** @description Bad request (bad-request); Validation failed (validation-failed) */

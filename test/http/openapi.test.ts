@@ -51,6 +51,7 @@ describe('OpenAPI document', () => {
       '/v1/skus/{sku}/forecast',
       '/v1/skus/{sku}/history',
       '/v1/skus/{sku}/value-added',
+      '/v1/tags',
       '/v1/value-added/by-tag',
     ])
     expect(doc.paths['/v1/runs'].post.responses['202']).toBeDefined()

@@ -1,6 +1,6 @@
 import { z } from 'zod'
 import type { RedisClient } from '../redis.js'
-import { decodeJson } from '../decode.js'
+import { countOf, decodeJson } from '../decode.js'
 import { FREQUENCIES, formatPeriod, parsePeriod, type Frequency } from '../../engine/index.js'
 import type { PendingHistory } from '../../history/accumulator.js'
 import type { FeedBatch, HistoryWriter, WriteOutcome } from '../../history/ingest.js'
@@ -18,6 +18,7 @@ import { StockPolicy, type RunScope } from '../../schemas/run.js'
  *   hist:{T}:tag:<tag> zset  SKUs carrying the tag, score 0
  *   hist:{T}:batch:<id> set  SKUs a feed batch has written (expires: a resent batch is not added twice)
  *   hist:{T}:bytes     string  bytes of the data and meta fields held (the stored-bytes quota)
+ *   hist:{T}:tags      hash  tag -> SKUs carrying it (a tag leaves when its last SKU does)
  *
  * under `${prefix}:t:${tenant}:`. The tenant sits in a hash tag so one
  * SKU's write (a Lua script over data, meta, the index and tag sets) stays on
@@ -78,9 +79,9 @@ function decodeDemand(sku: string, raw: string): (number | null)[] {
 }
 
 /**
- * KEYS: data, meta, skus, bytes, then nNew new-tag sets, then nOld old-tag sets, then the batch set when a batch is given.
+ * KEYS: data, meta, skus, bytes, tag counts, then nNew new-tag sets, then nOld old-tag sets, then the batch set when a batch is given.
  * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld, batch TTL in seconds ('' without a batch),
- * stored-bytes quota (0: none).
+ * stored-bytes quota (0: none), then the nNew new tags, then the nOld old tags (names of the sets, for the counts).
  * Returns 1 when written, 0 when the meta changed since it was read, 2 when the batch already wrote this SKU,
  * 3 when the write would grow the tenant's stored bytes past the quota (nothing written; a write that
  * shrinks or keeps the size always passes, so a tenant over its quota can still correct and trim).
@@ -92,7 +93,7 @@ local nNew = tonumber(ARGV[5])
 local nOld = tonumber(ARGV[6])
 local batchKey = nil
 if ARGV[7] ~= '' then
-  batchKey = KEYS[4 + nNew + nOld + 1]
+  batchKey = KEYS[5 + nNew + nOld + 1]
   if redis.call('SISMEMBER', batchKey, ARGV[1]) == 1 then return 2 end
 end
 local cur = redis.call('HGET', KEYS[2], ARGV[1])
@@ -104,8 +105,14 @@ redis.call('INCRBY', KEYS[4], delta)
 redis.call('HSET', KEYS[1], ARGV[1], ARGV[4])
 redis.call('HSET', KEYS[2], ARGV[1], ARGV[3])
 redis.call('ZADD', KEYS[3], 0, ARGV[1])
-for i = 1, nOld do redis.call('ZREM', KEYS[4 + nNew + i], ARGV[1]) end
-for i = 1, nNew do redis.call('ZADD', KEYS[4 + i], 0, ARGV[1]) end
+for i = 1, nOld do
+  if redis.call('ZREM', KEYS[5 + nNew + i], ARGV[1]) == 1 and redis.call('HINCRBY', KEYS[5], ARGV[8 + nNew + i], -1) <= 0 then
+    redis.call('HDEL', KEYS[5], ARGV[8 + nNew + i])
+  end
+end
+for i = 1, nNew do
+  if redis.call('ZADD', KEYS[5 + i], 0, ARGV[1]) == 1 then redis.call('HINCRBY', KEYS[5], ARGV[8 + i], 1) end
+end
 if batchKey then
   redis.call('SADD', batchKey, ARGV[1])
   redis.call('EXPIRE', batchKey, tonumber(ARGV[7]))
@@ -115,7 +122,7 @@ return 1
 const PUT_COMMAND = 'almanacPutHistory'
 
 /**
- * KEYS: data, meta, skus, bytes, then the SKU's tag sets. ARGV: sku, expected meta.
+ * KEYS: data, meta, skus, bytes, tag counts, then the SKU's tag sets. ARGV: sku, expected meta, then the SKU's tags.
  * Returns 1 when deleted, 0 when the meta changed since it was read.
  */
 const DELETE_HISTORY = `
@@ -124,7 +131,11 @@ redis.call('DECRBY', KEYS[4], redis.call('HSTRLEN', KEYS[1], ARGV[1]) + #ARGV[2]
 redis.call('HDEL', KEYS[1], ARGV[1])
 redis.call('HDEL', KEYS[2], ARGV[1])
 redis.call('ZREM', KEYS[3], ARGV[1])
-for i = 5, #KEYS do redis.call('ZREM', KEYS[i], ARGV[1]) end
+for i = 6, #KEYS do
+  if redis.call('ZREM', KEYS[i], ARGV[1]) == 1 and redis.call('HINCRBY', KEYS[5], ARGV[i - 3], -1) <= 0 then
+    redis.call('HDEL', KEYS[5], ARGV[i - 3])
+  end
+end
 return 1
 `
 const DELETE_COMMAND = 'almanacDeleteHistory'
@@ -170,6 +181,7 @@ export class HistoryStore implements HistoryWriter {
       meta: `${base}:meta`,
       skus: `${base}:skus`,
       bytes: `${base}:bytes`,
+      tagCounts: `${base}:tags`,
       tag: (t: string) => `${base}:tag:${t}`,
       batch: (id: string) => `${base}:batch:${id}`,
     }
@@ -191,6 +203,24 @@ export class HistoryStore implements HistoryWriter {
   async storedBytes(tenant: string): Promise<number> {
     if (!isValidTenant(tenant)) return 0
     return Math.max(0, Number((await this.redis.get(this.keys(tenant).bytes)) ?? 0))
+  }
+
+  /**
+   * The tenant's tags with how many stored SKUs carry each, ordered by tag (byte
+   * order), a page at a time. Read whole from one hash: tags are few next to SKUs.
+   * @throws CursorError on a cursor this service did not issue
+   */
+  async tags(tenant: string, page: { readonly limit: number; readonly cursor?: string }): Promise<{ items: { tag: string; skus: number }[]; nextCursor: string | null }> {
+    const after = page.cursor === undefined ? undefined : Buffer.from(decodeCursor(page.cursor))
+    if (!isValidTenant(tenant)) return { items: [], nextCursor: null }
+    const all = await this.redis.hgetall(this.keys(tenant).tagCounts)
+    const sorted = Object.entries(all)
+      .map(([tag, n]) => ({ tag, skus: countOf(n, `SKU count of tag ${tag}`) }))
+      .filter((t) => t.skus > 0 && (after === undefined || Buffer.compare(Buffer.from(t.tag), after) > 0))
+      .sort((a, b) => Buffer.compare(Buffer.from(a.tag), Buffer.from(b.tag)))
+    const items = sorted.slice(0, Math.max(1, Math.floor(page.limit)))
+    const last = items[items.length - 1]
+    return { items, nextCursor: sorted.length > items.length && last !== undefined ? encodeCursor(last.tag) : null }
   }
 
   /** How many SKUs of the tenant have a stored history. */
@@ -222,9 +252,10 @@ export class HistoryStore implements HistoryWriter {
     for (let attempt = 0; attempt < MAX_ATTEMPTS; attempt++) {
       const raw = await this.redis.hget(k.meta, sku)
       if (raw === null) return false
-      const keys = [k.data, k.meta, k.skus, k.bytes, ...decodeMeta(sku, raw).t.map(k.tag)]
+      const tags = decodeMeta(sku, raw).t
+      const keys = [k.data, k.meta, k.skus, k.bytes, k.tagCounts, ...tags.map(k.tag)]
       const run = (this.redis as unknown as Record<string, (...a: unknown[]) => Promise<unknown>>)[DELETE_COMMAND]!
-      if ((await run.call(this.redis, keys.length, ...keys, sku, raw)) === 1) return true
+      if ((await run.call(this.redis, keys.length, ...keys, sku, raw, ...tags)) === 1) return true
     }
     throw new Error(`the history of SKU ${sku} changed concurrently several times; retry the delete`)
   }
@@ -284,8 +315,8 @@ export class HistoryStore implements HistoryWriter {
           ...(d.replenishment === undefined ? {} : { p: d.replenishment }),
         }
         const oldTags = oldMeta?.t ?? []
-        const keys = [k.data, k.meta, k.skus, k.bytes, ...d.tags.map(k.tag), ...oldTags.map(k.tag), ...batchKeys]
-        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length, batchTtl, quota]
+        const keys = [k.data, k.meta, k.skus, k.bytes, k.tagCounts, ...d.tags.map(k.tag), ...oldTags.map(k.tag), ...batchKeys]
+        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length, batchTtl, quota, ...d.tags, ...oldTags]
         ;(pipe as unknown as Record<string, (...a: unknown[]) => unknown>)[PUT_COMMAND]!(keys.length, ...keys, ...args)
         results[i] = { outcome: rawMeta === null ? 'created' : 'updated' }
         sent.push(i)

@@ -93,7 +93,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
       return record
     },
 
-    async submitScope(tenant, settings, scope) {
+    async submitScope(tenant, settings, scope, origin = { kind: 'scope' }) {
       checkRunOptions(settings)
       const runId = randomUUID()
       const created = await createRunFromHistories(redis, runStoreOptions(config), histories, {
@@ -105,6 +105,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
         chunkSize: config.chunkSize,
         now: now(),
         closed: await closing.ordinals(tenant),
+        origin,
       })
       if (created === null) throw emptyScopeError(scope)
       if (created.openOnlySkus > 0) log.info({ tenant, runId, openOnlySkus: created.openOnlySkus }, 'SKUs with only open periods left out of the run')
@@ -113,6 +114,8 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
     },
 
     get: (tenant, runId) => store.getRun(tenant, runId),
+
+    listRuns: (tenant, filter, page) => store.listRuns(tenant, filter, page),
 
     results: (tenant, runId, page) => store.resultsPage(tenant, runId, page),
 

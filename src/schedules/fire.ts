@@ -10,8 +10,16 @@ import { RunInputError } from '../runs/input.js'
 export const FireJob = z.object({ tenant: z.string().min(1).max(64), scheduleId: z.string().min(1).max(64) })
 export type FireJob = z.infer<typeof FireJob>
 
-/** Submits a run for a schedule's scope and settings; `missingSkus`: SKUs of the scope without a stored history. */
-export type SubmitScheduled = (tenant: string, settings: RunSettings, scope: RunScope) => Promise<{ record: RunRecord; missingSkus: number }>
+/**
+ * Submits a run for a schedule's scope and settings, its origin naming the schedule;
+ * `missingSkus`: SKUs of the scope without a stored history.
+ */
+export type SubmitScheduled = (
+  tenant: string,
+  settings: RunSettings,
+  scope: RunScope,
+  scheduleId: string,
+) => Promise<{ record: RunRecord; missingSkus: number }>
 
 /** The `failure.code` of a firing that could not submit its run (docs/problems.md lists them). */
 export const FIRING_FAILURE_CODES = ['empty-scope', 'invalid-option', 'submit-failed'] as const
@@ -65,7 +73,7 @@ export function createFireHandler(deps: FireDeps) {
       }
     }
     try {
-      const { record, missingSkus } = await deps.submit(tenant, schedule.settings, schedule.scope)
+      const { record, missingSkus } = await deps.submit(tenant, schedule.settings, schedule.scope, scheduleId)
       await deps.schedules.recordSubmitted(tenant, scheduleId, record.id, missingSkus, now())
       log.info({ runId: record.id, series: record.progress.total, missingSkus }, 'scheduled run submitted')
       return { outcome: 'submitted', runId: record.id }

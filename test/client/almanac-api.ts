@@ -82,7 +82,11 @@ export interface paths {
             path?: never;
             cookie?: never;
         };
-        get?: never;
+        /**
+         * List the tenant's runs, newest first
+         * @description Filters: status, origin (what started the run: inline, scope, schedule), scheduleId, createdFrom (inclusive) and createdTo (exclusive). Runs are listed while their record is kept (twice the result retention). A page reads at most 5,000 runs while filters skip them, so it may hold fewer than limit runs, even none, before the end: follow nextCursor until it is null.
+         */
+        get: operations["listRuns"];
         put?: never;
         /**
          * Submit a forecast run
@@ -1103,6 +1107,16 @@ export interface components {
             frequency: "day" | "week" | "month" | "quarter" | "year";
             failure: components["schemas"]["Failure"];
         };
+        /** @description What started the run */
+        RunOrigin: {
+            /**
+             * @description inline: series sent with POST /v1/runs; scope: stored histories named with POST /v1/runs; schedule: a firing of a schedule
+             * @enum {string}
+             */
+            kind: "inline" | "scope" | "schedule";
+            /** @description The schedule that fired the run; present exactly when kind is schedule */
+            scheduleId?: string;
+        };
         Run: {
             id: string;
             /** @enum {string} */
@@ -1188,6 +1202,7 @@ export interface components {
             };
             /** @description The stored histories the run covers; null for a run over inline series */
             scope: components["schemas"]["Scope"] | null;
+            origin: components["schemas"]["RunOrigin"];
             /** @description Present once the run has succeeded */
             summary: {
                 /** @enum {string} */
@@ -1809,6 +1824,96 @@ export interface operations {
             /** @description Internal Server Error (internal) */
             500: {
                 headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    listRuns: {
+        parameters: {
+            query?: {
+                /** @description Items per page (1..1000, default 100) */
+                limit?: number;
+                /** @description nextCursor of the previous page; a cursor this API did not issue is a 400 */
+                cursor?: string;
+                /** @description Only runs with this status */
+                status?: "queued" | "running" | "succeeded" | "failed" | "cancelled";
+                /** @description Only runs started this way (inline, scope, schedule) */
+                origin?: "inline" | "scope" | "schedule";
+                /** @description Only runs fired by this schedule (implies origin schedule) */
+                scheduleId?: string;
+                /** @description Only runs created at or after this instant (ISO-8601) */
+                createdFrom?: string;
+                /** @description Only runs created before this instant (ISO-8601) */
+                createdTo?: string;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": {
+                        items: components["schemas"]["Run"][];
+                        /** @description Pass back as cursor for the next page; null on the last page */
+                        nextCursor: string | null;
+                    };
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
                     [name: string]: unknown;
                 };
                 content: {

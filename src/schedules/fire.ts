@@ -44,12 +44,13 @@ export type FireOutcome =
   | { readonly outcome: 'submitted'; readonly runId: string }
   | { readonly outcome: 'skipped'; readonly runId: string }
   | { readonly outcome: 'gone' }
+  | { readonly outcome: 'paused' }
   | { readonly outcome: 'failed'; readonly failure: Failure }
 
 /**
  * What happens when a schedule fires: submit a run over its scope, unless the
  * run the schedule started last is still queued or running (then skip, count
- * and log). SKUs of the scope deleted since the schedule was made are skipped
+ * and log), or the schedule is paused (then do nothing). SKUs of the scope deleted since the schedule was made are skipped
  * and counted. A failed submit is counted and logged; the next firing tries again.
  */
 export function createFireHandler(deps: FireDeps) {
@@ -62,6 +63,11 @@ export function createFireHandler(deps: FireDeps) {
       await deps.removeScheduler(tenant, scheduleId)
       log.info('schedule no longer exists: scheduler removed')
       return { outcome: 'gone' }
+    }
+    // Pausing removes the job scheduler; a firing already handed out meanwhile does nothing.
+    if (schedule.paused) {
+      log.info('schedule paused: firing ignored')
+      return { outcome: 'paused' }
     }
     const previous = schedule.firings.currentRunId
     if (previous !== null) {

@@ -349,7 +349,11 @@ export interface paths {
         delete: operations["deleteSchedule"];
         options?: never;
         head?: never;
-        patch?: never;
+        /**
+         * Change, pause or resume a schedule
+         * @description A JSON merge patch (RFC 7396) of the fields of the create body, one level deep: a field given replaces the stored one whole (scope and replenishment included); null removes an optional field so its default applies again. The result is checked exactly as a new schedule (SKUs of scope.skus only when scope is in the patch). "paused": true stops the firings (nextFireAt becomes null); "paused": false resumes them from the next slot after now: slots missed while paused are not fired. Firing counters and a run already started stay.
+         */
+        patch: operations["updateSchedule"];
         trace?: never;
     };
     "/v1/skus/{sku}/accuracy": {
@@ -762,6 +766,32 @@ export interface components {
             reason: string;
             /** @description Who: the planner, or the system sending it */
             author: string;
+        };
+        /** @description Fields of the create body to change, and paused. A field given replaces the stored one whole (scope and replenishment included); null removes an optional field so its default applies again. The result is checked exactly as a new schedule. */
+        SchedulePatchInput: {
+            horizon?: number | null;
+            frequency?: ("day" | "week" | "month" | "quarter" | "year") | null;
+            seasonLength?: number | null;
+            holdoutPeriods?: number | null;
+            holdoutOrigins?: number | null;
+            rankBy?: ("mae" | "rmse" | "mape" | "smape" | "mase" | "wape") | null;
+            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[] | null;
+            intervalLevels?: number[] | null;
+            quantiles?: number[] | null;
+            modelSearch?: ("fast" | "thorough") | null;
+            missingPeriods?: ("zero" | "interpolate") | null;
+            allowNegativeDemand?: boolean | null;
+            keepLeadingZeros?: boolean | null;
+            replenishment?: components["schemas"]["StockPolicyInput"] | null;
+            callbackUrl?: string | null;
+            publish?: boolean | null;
+            openPeriods?: ("exclude" | "include") | null;
+            name?: string | null;
+            cron?: string | null;
+            timeZone?: string | null;
+            scope?: components["schemas"]["ScopeInput"] | null;
+            /** @description true: the schedule stops firing; false: it fires again from the next slot on (slots missed while paused are not fired) */
+            paused?: boolean;
         };
         ClosePeriodInput: {
             /** @description The last closed period, e.g. 2026-03 for month: it and every earlier period are complete */
@@ -1579,9 +1609,11 @@ export interface components {
             cron: string;
             timeZone: string;
             scope: components["schemas"]["Scope"];
+            /** @description A paused schedule does not fire (PATCH with paused) */
+            paused: boolean;
             /** @description ISO-8601 */
             createdAt: string;
-            /** @description ISO-8601 */
+            /** @description ISO-8601; null while paused */
             nextFireAt: string | null;
             firings: {
                 /** @description Firings that submitted a run */
@@ -4021,6 +4053,110 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content?: never;
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    updateSchedule: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                scheduleId: string;
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": components["schemas"]["SchedulePatchInput"];
+            };
+        };
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["Schedule"];
+                };
             };
             /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
             400: {

@@ -144,6 +144,14 @@ export interface RunGateway {
   /** Cancel a queued or running run; a finished run is returned unchanged. */
   cancel(tenant: string, runId: string): Promise<RunRecord | null>
   latestForecast(tenant: string, sku: string): Promise<LatestForecast | null>
+  /**
+   * One step of a scan over the tenant's current published forecasts: cursor '0'
+   * starts it, and the returned cursor is '0' when it is done. A SKU may come twice
+   * (HSCAN); a SKU whose run's results expired is left out. Optional, as publishedOf.
+   */
+  scanPublished?(tenant: string, cursor: string, count: number): Promise<{ forecasts: LatestForecast[]; cursor: string }>
+  /** The current published forecasts of these SKUs, in order (null where none or expired). Optional: without them the bulk export answers 503. */
+  publishedOf?(tenant: string, skus: readonly string[]): Promise<(LatestForecast | null)[]>
   /** Forget a SKU's latest forecast (its history was deleted). Optional: gateways without stored forecasts leave it out. */
   forgetLatestForecast?(tenant: string, sku: string): Promise<void>
   /** Throws when Redis or the queue is not usable (readiness). */

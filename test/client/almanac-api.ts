@@ -163,6 +163,26 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/v1/forecasts/published": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Export every current published forecast (CSV or NDJSON)
+         * @description Streams one row per SKU and forecast period of every SKU's current published forecast, the same figures as GET /v1/skus/{sku}/forecast: sku, frequency, period, demand (statistical), the adjustment in force, finalDemand, interval bounds, model, runId, producedAt, and the replenishment figures when the forecast has them. Accept: text/csv gives CSV (comma delimiter, dot decimal, a header row; columns sku, frequency, period, demand, setDemand, changePercent, finalDemand, low<level>, high<level> per intervalLevels, model, runId, producedAt, then the replenishment columns of the results CSV, empty where none; text cells starting with = + - @ are prefixed with '); anything else gives NDJSON (application/x-ndjson), one PublishedForecastRow per line. Optional filters: tag, frequency. SKUs whose publishing run's results have expired are left out. Rows come in no stated order (by SKU with tag). Figures are estimates to review before ordering.
+         */
+        get: operations["exportPublishedForecasts"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/v1/skus/{sku}/history": {
         parameters: {
             query?: never;
@@ -1411,6 +1431,45 @@ export interface components {
             /** @description Rejections beyond the listed ones */
             errorsNotListed: number;
         };
+        /** @description One SKU and period of the published forecasts export (one NDJSON line) */
+        PublishedForecastRow: {
+            sku: string;
+            /** @enum {string} */
+            frequency: "day" | "week" | "month" | "quarter" | "year";
+            period: string;
+            /** @description Statistical point forecast of demand for the period (before adjustments) */
+            demand: number;
+            /** @description The adjustment in force for the period; null when none */
+            adjustment: components["schemas"]["AdjustmentOnPoint"] | null;
+            /** @description The demand to plan with: demand with the adjustment applied; equal to demand when none */
+            finalDemand: number;
+            /** @description Prediction intervals of the statistical forecast */
+            intervals: {
+                level: number;
+                low: number;
+                high: number;
+            }[];
+            /** @description The chosen model */
+            model: string;
+            /** @description The publishing run that made the forecast */
+            runId: string;
+            /** @description ISO-8601 */
+            producedAt: string;
+            /** @description The SKU's replenishment policy and figures for an order placed in the period; only when its forecast has them (see Replenishment) */
+            replenishment?: {
+                leadTimePeriods: number;
+                reviewPeriods: number;
+                leadTimeSdPeriods: number;
+                serviceLevel: number;
+                minimumOrder: number;
+                packSize: number;
+                orderQuantity: number;
+                /** @description For an order placed at the start of the period; null where the protection interval runs past the horizon */
+                coverDemand: number | null;
+                safetyStock: number | null;
+                reorderPoint: number | null;
+            };
+        };
         SkuAccuracy: {
             sku: string;
             /** @description Forecast periods scored against their actual demand */
@@ -2509,6 +2568,85 @@ export interface operations {
             /** @description Not found (not-found) */
             404: {
                 headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    exportPublishedForecasts: {
+        parameters: {
+            query?: {
+                /** @description Only SKUs whose stored history carries this tag */
+                tag?: string;
+                /** @description Only SKUs forecast at this frequency */
+                frequency?: "day" | "week" | "month" | "quarter" | "year";
+                /** @description CSV only: the interval levels given as low<level>, high<level> columns, e.g. 80,95 (default). NDJSON rows carry every level the run made */
+                intervalLevels?: string;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/x-ndjson": components["schemas"]["PublishedForecastRow"];
+                    "text/csv": string;
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
                     [name: string]: unknown;
                 };
                 content: {

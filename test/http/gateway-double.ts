@@ -101,6 +101,16 @@ export class InMemoryGatewayDouble implements RunGateway {
     return pageOf(runs, (r) => r.id, page.limit, page.cursor)
   }
 
+  /** The whole scan in one step (the real one pages with HSCAN). */
+  async scanPublished(tenant: string, _cursor: string, _count: number): Promise<{ forecasts: LatestForecast[]; cursor: string }> {
+    const forecasts = [...this.latest].filter(([key]) => key.startsWith(`${tenant}\u0000`)).map(([, f]) => f)
+    return { forecasts, cursor: '0' }
+  }
+
+  async publishedOf(tenant: string, skus: readonly string[]): Promise<(LatestForecast | null)[]> {
+    return skus.map((sku) => this.latest.get(`${tenant}\u0000${sku}`) ?? null)
+  }
+
   async latestForecast(tenant: string, sku: string): Promise<LatestForecast | null> {
     return this.latest.get(`${tenant}\u0000${sku}`) ?? null
   }

@@ -371,7 +371,7 @@ export interface paths {
         head?: never;
         /**
          * Change, pause or resume a schedule
-         * @description A JSON merge patch (RFC 7396) of the fields of the create body, one level deep: a field given replaces the stored one whole (scope and replenishment included); null removes an optional field so its default applies again. The result is checked exactly as a new schedule (SKUs of scope.skus only when scope is in the patch). "paused": true stops the firings (nextFireAt becomes null); "paused": false resumes them from the next slot after now: slots missed while paused are not fired. Firing counters and a run already started stay.
+         * @description A JSON merge patch (RFC 7396; application/json or application/merge-patch+json) of the fields of the create body, one level deep: a field given replaces the stored one whole (scope and replenishment included); null removes an optional field so its default applies again. The result is checked exactly as a new schedule (SKUs of scope.skus only when scope is in the patch). "paused": true stops the firings (nextFireAt becomes null); "paused": false resumes them from the next slot after now: slots missed while paused are not fired. Firing counters and a run already started stay.
          */
         patch: operations["updateSchedule"];
         trace?: never;
@@ -4284,6 +4284,7 @@ export interface operations {
         requestBody: {
             content: {
                 "application/json": components["schemas"]["SchedulePatchInput"];
+                "application/merge-patch+json": components["schemas"]["SchedulePatchInput"];
             };
         };
         responses: {

@@ -143,13 +143,26 @@ describe('runs ops', { timeout: 180_000 }, () => {
     const patched = await app.inject({ method: 'PATCH', url: `/v1/schedules/${scheduleId}`, payload: { name: null, horizon: 12, rankBy: 'wape' } })
     expect(patched.statusCode).toBe(200)
     expect(patched.json()).toMatchObject({ name: null, horizon: 12, rankBy: 'wape', replenishment: { leadTimePeriods: 2, serviceLevel: 0.95 }, paused: true })
-    const reset = (await app.inject({ method: 'PATCH', url: `/v1/schedules/${scheduleId}`, payload: { rankBy: null, replenishment: null } })).json()
+    // RFC 7396's own media type is taken too.
+    const reset = (
+      await app.inject({
+        method: 'PATCH',
+        url: `/v1/schedules/${scheduleId}`,
+        headers: { 'content-type': 'application/merge-patch+json' },
+        payload: JSON.stringify({ rankBy: null, replenishment: null }),
+      })
+    ).json()
     expect(reset.rankBy).toBe('mase')
     expect(reset).not.toHaveProperty('replenishment')
     const required = await app.inject({ method: 'PATCH', url: `/v1/schedules/${scheduleId}`, payload: { horizon: null } })
     expect(required.statusCode).toBe(400)
     expect(required.json().errors.map((e: { path: string }) => e.path)).toEqual(['horizon'])
     expect((await app.inject({ method: 'PATCH', url: '/v1/schedules/no-such-schedule', payload: { paused: true } })).statusCode).toBe(404)
+    const malformed = await app.inject({ method: 'PATCH', url: `/v1/schedules/${scheduleId}`, headers: { 'content-type': 'application/merge-patch+json' }, payload: '{"horizon":' })
+    expect(malformed.statusCode).toBe(400)
+    const plain = await app.inject({ method: 'PATCH', url: `/v1/schedules/${scheduleId}`, headers: { 'content-type': 'text/plain' }, payload: 'paused' })
+    expect(plain.statusCode).toBe(415)
+    expect(plain.json().detail).toBe('Send the body as application/json or application/merge-patch+json')
     // Back as the export test expects it.
     const back = await app.inject({ method: 'PATCH', url: `/v1/schedules/${scheduleId}`, payload: { horizon: 6, replenishment: { leadTimePeriods: 2, serviceLevel: 0.95 } } })
     expect(back.statusCode).toBe(200)

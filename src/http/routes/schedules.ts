@@ -94,6 +94,8 @@ function toResource(s: ScheduleView): Body {
   }
 }
 
+const MERGE_PATCH = 'application/merge-patch+json'
+
 const notFound = (id: string) => new ProblemError('not-found', `Schedule ${id} not found`)
 
 type CreateBody = z.infer<typeof ScheduleBody>
@@ -130,6 +132,12 @@ function asProblem(err: unknown): unknown {
 
 /** /v1/schedules: runs that start by themselves (e.g. every night) over stored histories. */
 const routes: FastifyPluginAsyncZod = async (app) => {
+  // RFC 7396's own media type for PATCH bodies, read as JSON (this plugin's routes only).
+  const parseJson = app.getDefaultJsonParser('error', 'error')
+  app.addContentTypeParser(MERGE_PATCH, { parseAs: 'string' }, (request, body, done) => {
+    void parseJson(request, body.toString(), done)
+  })
+
   app.post(
     '',
     {
@@ -209,7 +217,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         'x-problems': WRITE_ONE,
         summary: 'Change, pause or resume a schedule',
         description:
-          'A JSON merge patch (RFC 7396) of the fields of the create body, one level deep: a field given replaces the ' +
+          'A JSON merge patch (RFC 7396; application/json or application/merge-patch+json) of the fields of the create body, one level deep: a field given replaces the ' +
           'stored one whole (scope and replenishment included); null removes an optional field so its default applies ' +
           'again. The result is checked exactly as a new schedule (SKUs of scope.skus only when scope is in the patch). ' +
           '"paused": true stops the firings (nextFireAt becomes null); "paused": false resumes them from the next slot ' +
@@ -217,7 +225,9 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         params: ScheduleParams,
         body: SchedulePatch,
         response: { 200: ScheduleResource },
+        'x-requestBodies': { [MERGE_PATCH]: { schema: { $ref: '#/components/schemas/SchedulePatchInput' } } },
       },
+      config: { bodyTypes: ['application/json', MERGE_PATCH] },
     },
     async (request) => {
       const erp = requireErp(app)

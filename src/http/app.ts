@@ -25,6 +25,7 @@ import historyRoutes from './routes/history.js'
 import runRoutes from './routes/runs/index.js'
 import resultRoutes from './routes/runs/results.js'
 import skuRoutes from './routes/skus/forecast.js'
+import publishedRoutes from './routes/forecasts/published.js'
 import skuHistoryRoutes from './routes/skus/history.js'
 import skuListRoutes from './routes/skus/list.js'
 import { validatorCompiler } from './validation.js'
@@ -149,6 +150,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(runRoutes, { prefix: '/v1/runs' })
   await app.register(resultRoutes, { prefix: '/v1/runs' })
   await app.register(skuRoutes, { prefix: '/v1/skus' })
+  await app.register(publishedRoutes, { prefix: '/v1/forecasts' })
   await app.register(skuHistoryRoutes, { prefix: '/v1/skus' })
   await app.register(skuListRoutes, { prefix: '/v1/skus' })
   await app.register(historyRoutes, { prefix: '/v1/history' })

@@ -13,6 +13,7 @@ import { requestConnection } from '../storage/redis.js'
 import { createRunFromHistories } from '../storage/runs/history-runs.js'
 import { resultsPageJson } from '../storage/runs/result-pages.js'
 import { RunStore, runStoreOptions } from '../storage/runs/run-store.js'
+import { PublishedReads } from '../storage/runs/published-reads.js'
 import { FairShare } from '../storage/runs/fair-share.js'
 import { createRunEventEmitter } from '../callbacks/emitter.js'
 import { CHUNK_JOB, CHUNK_JOB_OPTIONS, CHUNK_QUEUE, chunkJobId, DEFAULT_EXPRESS_MAX_SERIES, EXPRESS_CHUNK_QUEUE } from './names.js'
@@ -35,6 +36,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
   const log = deps.logger.child({ component: 'run-gateway' })
   const redis = requestConnection(config, log, 'run-gateway')
   const store = new RunStore(redis, runStoreOptions(config))
+  const published = new PublishedReads(redis, config.redisPrefix)
   const queue = new Queue<ChunkJob>(CHUNK_QUEUE, { connection: redis, prefix: queuePrefix(config) })
   logErrors(queue, log, 'chunk queue')
   const expressQueue = new Queue<ChunkJob>(EXPRESS_CHUNK_QUEUE, { connection: redis, prefix: queuePrefix(config) })
@@ -93,7 +95,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
       return record
     },
 
-    async submitScope(tenant, settings, scope) {
+    async submitScope(tenant, settings, scope, origin = { kind: 'scope' }) {
       checkRunOptions(settings)
       const runId = randomUUID()
       const created = await createRunFromHistories(redis, runStoreOptions(config), histories, {
@@ -105,6 +107,7 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
         chunkSize: config.chunkSize,
         now: now(),
         closed: await closing.ordinals(tenant),
+        origin,
       })
       if (created === null) throw emptyScopeError(scope)
       if (created.openOnlySkus > 0) log.info({ tenant, runId, openOnlySkus: created.openOnlySkus }, 'SKUs with only open periods left out of the run')
@@ -113,6 +116,8 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
     },
 
     get: (tenant, runId) => store.getRun(tenant, runId),
+
+    listRuns: (tenant, filter, page) => store.listRuns(tenant, filter, page),
 
     results: (tenant, runId, page) => store.resultsPage(tenant, runId, page),
 
@@ -136,6 +141,20 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
     },
 
     latestForecast: (tenant, sku) => store.latest(tenant, sku),
+
+    async scanPublished(tenant, cursor, count) {
+      const scanned = await published.scanLatest(tenant, cursor, count)
+      const forecasts = await published.latestOf(tenant, scanned.records)
+      return { forecasts: forecasts.filter((f): f is NonNullable<typeof f> => f !== null), cursor: scanned.cursor }
+    },
+
+    async publishedOf(tenant, skus) {
+      const records = await published.latestRecords(tenant, skus)
+      const found = skus.flatMap((sku, i) => (records[i] ? [[sku, records[i]] as const] : []))
+      const forecasts = await published.latestOf(tenant, found)
+      const bySku = new Map(found.map(([sku], i) => [sku, forecasts[i] ?? null]))
+      return skus.map((sku) => bySku.get(sku) ?? null)
+    },
     forgetLatestForecast: (tenant, sku) => store.forgetLatest(tenant, sku),
 
     async ping() {

@@ -173,6 +173,12 @@ export class AdjustmentService {
     return adjustPoints(points, new Map([...current].map(([period, s]) => [period, s.adjustment])))
   }
 
+  /** The adjustments in force of many SKUs, by period, in the order asked (bulk export). */
+  async inForceMany(tenant: string, skus: readonly string[]): Promise<Map<string, Adjustment>[]> {
+    const sets = await this.deps.store.inForceMany(tenant, skus)
+    return sets.map((set) => new Map([...set].map(([period, s]) => [period, s.adjustment])))
+  }
+
   trail(tenant: string, sku: string, limit: number, cursor?: string) {
     return this.deps.store.trail(tenant, sku, limit, cursor)
   }

@@ -13,6 +13,16 @@ export type RunEvent = (typeof RUN_EVENTS)[number]
 export const RUN_STATUSES = ['queued', 'running', 'succeeded', 'failed', 'cancelled'] as const
 export type RunStatus = (typeof RUN_STATUSES)[number]
 
+/** What started a run: inline series, stored histories named by a scope, or a schedule's firing. */
+export const RUN_ORIGIN_KINDS = ['inline', 'scope', 'schedule'] as const
+export type RunOriginKind = (typeof RUN_ORIGIN_KINDS)[number]
+
+/** A run's origin; `scheduleId` is set exactly when `kind` is 'schedule'. */
+export interface RunOrigin {
+  readonly kind: RunOriginKind
+  readonly scheduleId?: string
+}
+
 export interface RunRecord {
   readonly id: string
   readonly tenant: string
@@ -26,6 +36,8 @@ export interface RunRecord {
   readonly settings: RunSettings
   /** The stored histories the run covers; null for a run over inline series. */
   readonly scope: RunScope | null
+  /** What started the run. */
+  readonly origin: RunOrigin
   /** Present once the run has succeeded. */
   readonly summary: RunSummary | null
   /** Why a run failed as a whole (a series the engine refused is a failed item instead). */
@@ -70,6 +82,23 @@ export interface ResultPage {
   readonly nextCursor: string | null
 }
 
+/** Which runs GET /v1/runs lists; every given filter must hold. */
+export interface RunListFilter {
+  readonly status?: RunStatus
+  readonly origin?: RunOriginKind
+  readonly scheduleId?: string
+  /** Created at or after this instant (ms since the epoch). */
+  readonly createdFromMs?: number
+  /** Created before this instant (ms since the epoch). */
+  readonly createdToMs?: number
+}
+
+/** A page of runs, newest first. */
+export interface RunPage {
+  readonly items: readonly RunRecord[]
+  readonly nextCursor: string | null
+}
+
 export interface LatestForecast {
   readonly runId: string
   readonly producedAt: string
@@ -86,10 +115,17 @@ export interface RunGateway {
   /**
    * Queue a run over stored histories, read in batches straight into chunk inputs.
    * Optional: gateways without stored histories leave it out (the route answers 503).
+   * `origin` defaults to { kind: 'scope' }; a schedule's firing passes { kind: 'schedule', scheduleId }.
    * @throws RunInputError('empty-scope') when the scope matches no history.
    */
-  submitScope?(tenant: string, settings: RunSettings, scope: RunScope): Promise<{ record: RunRecord; missingSkus: number }>
+  submitScope?(tenant: string, settings: RunSettings, scope: RunScope, origin?: RunOrigin): Promise<{ record: RunRecord; missingSkus: number }>
   get(tenant: string, runId: string): Promise<RunRecord | null>
+  /**
+   * The tenant's runs, newest first, filtered; a page may hold fewer than `limit` runs when
+   * the filters skip many (nextCursor null only at the end). Optional: without it GET /v1/runs answers 503.
+   * @throws CursorError on a cursor this service did not issue.
+   */
+  listRuns?(tenant: string, filter: RunListFilter, page: { readonly limit: number; readonly cursor?: string }): Promise<RunPage>
   results(
     tenant: string,
     runId: string,
@@ -108,6 +144,14 @@ export interface RunGateway {
   /** Cancel a queued or running run; a finished run is returned unchanged. */
   cancel(tenant: string, runId: string): Promise<RunRecord | null>
   latestForecast(tenant: string, sku: string): Promise<LatestForecast | null>
+  /**
+   * One step of a scan over the tenant's current published forecasts: cursor '0'
+   * starts it, and the returned cursor is '0' when it is done. A SKU may come twice
+   * (HSCAN); a SKU whose run's results expired is left out. Optional, as publishedOf.
+   */
+  scanPublished?(tenant: string, cursor: string, count: number): Promise<{ forecasts: LatestForecast[]; cursor: string }>
+  /** The current published forecasts of these SKUs, in order (null where none or expired). Optional: without them the bulk export answers 503. */
+  publishedOf?(tenant: string, skus: readonly string[]): Promise<(LatestForecast | null)[]>
   /** Forget a SKU's latest forecast (its history was deleted). Optional: gateways without stored forecasts leave it out. */
   forgetLatestForecast?(tenant: string, sku: string): Promise<void>
   /** Throws when Redis or the queue is not usable (readiness). */

@@ -10,8 +10,16 @@ import { RunInputError } from '../runs/input.js'
 export const FireJob = z.object({ tenant: z.string().min(1).max(64), scheduleId: z.string().min(1).max(64) })
 export type FireJob = z.infer<typeof FireJob>
 
-/** Submits a run for a schedule's scope and settings; `missingSkus`: SKUs of the scope without a stored history. */
-export type SubmitScheduled = (tenant: string, settings: RunSettings, scope: RunScope) => Promise<{ record: RunRecord; missingSkus: number }>
+/**
+ * Submits a run for a schedule's scope and settings, its origin naming the schedule;
+ * `missingSkus`: SKUs of the scope without a stored history.
+ */
+export type SubmitScheduled = (
+  tenant: string,
+  settings: RunSettings,
+  scope: RunScope,
+  scheduleId: string,
+) => Promise<{ record: RunRecord; missingSkus: number }>
 
 /** The `failure.code` of a firing that could not submit its run (docs/problems.md lists them). */
 export const FIRING_FAILURE_CODES = ['empty-scope', 'invalid-option', 'submit-failed'] as const
@@ -36,12 +44,13 @@ export type FireOutcome =
   | { readonly outcome: 'submitted'; readonly runId: string }
   | { readonly outcome: 'skipped'; readonly runId: string }
   | { readonly outcome: 'gone' }
+  | { readonly outcome: 'paused' }
   | { readonly outcome: 'failed'; readonly failure: Failure }
 
 /**
  * What happens when a schedule fires: submit a run over its scope, unless the
  * run the schedule started last is still queued or running (then skip, count
- * and log). SKUs of the scope deleted since the schedule was made are skipped
+ * and log), or the schedule is paused (then do nothing). SKUs of the scope deleted since the schedule was made are skipped
  * and counted. A failed submit is counted and logged; the next firing tries again.
  */
 export function createFireHandler(deps: FireDeps) {
@@ -55,6 +64,11 @@ export function createFireHandler(deps: FireDeps) {
       log.info('schedule no longer exists: scheduler removed')
       return { outcome: 'gone' }
     }
+    // Pausing removes the job scheduler; a firing already handed out meanwhile does nothing.
+    if (schedule.paused) {
+      log.info('schedule paused: firing ignored')
+      return { outcome: 'paused' }
+    }
     const previous = schedule.firings.currentRunId
     if (previous !== null) {
       const run = await deps.getRun(tenant, previous)
@@ -65,7 +79,7 @@ export function createFireHandler(deps: FireDeps) {
       }
     }
     try {
-      const { record, missingSkus } = await deps.submit(tenant, schedule.settings, schedule.scope)
+      const { record, missingSkus } = await deps.submit(tenant, schedule.settings, schedule.scope, scheduleId)
       await deps.schedules.recordSubmitted(tenant, scheduleId, record.id, missingSkus, now())
       log.info({ runId: record.id, series: record.progress.total, missingSkus }, 'scheduled run submitted')
       return { outcome: 'submitted', runId: record.id }

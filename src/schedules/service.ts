@@ -18,6 +18,11 @@ export interface ScheduleInput {
   readonly settings: RunSettings
 }
 
+/** A whole new definition of an existing schedule (the route merges the patch into the current one). */
+export interface ScheduleUpdate extends ScheduleInput {
+  readonly paused: boolean
+}
+
 export type ScheduleView = Schedule & { readonly nextFireAt: string | null }
 
 /** Refused input: one entry per offending field, paths relative to the body. */
@@ -51,18 +56,7 @@ export class ScheduleService {
    * most schedules allowed.
    */
   async create(tenant: string, input: ScheduleInput): Promise<ScheduleView | null> {
-    const errors = checkTiming(input.cron, input.timeZone, this.opts.minIntervalSeconds, this.now())
-    try {
-      checkRunOptions(input.settings)
-    } catch (err) {
-      if (!(err instanceof RunInputError)) throw err
-      errors.push({ path: err.field, message: err.message })
-    }
-    if ('skus' in input.scope) {
-      const bad = await scopeSkuErrors(input.scope.skus, (skus) => this.histories.missing(tenant, skus))
-      if (bad) errors.push(...bad.errors)
-    }
-    if (errors.length > 0) throw new ScheduleInputError(errors)
+    await this.check(tenant, input, true)
     const def = await this.store.create(
       tenant,
       { name: input.name ?? null, cron: input.cron.trim(), timeZone: input.timeZone, scope: input.scope, settings: input.settings },
@@ -70,16 +64,61 @@ export class ScheduleService {
     )
     if (def === null) return null
     try {
-      await this.queue().upsertJobScheduler(
-        schedulerId(tenant, def.id),
-        { pattern: def.cron, tz: def.timeZone },
-        { name: FIRE_JOB, data: { tenant, scheduleId: def.id }, opts: { removeOnComplete: 100, removeOnFail: 100, attempts: 1 } },
-      )
+      await this.schedule(tenant, def)
     } catch (err) {
       await this.store.remove(tenant, def.id)
       throw err
     }
     return this.view({ ...def, firings: noFirings() })
+  }
+
+  /**
+   * Replaces a schedule's definition, checked exactly as on create (the SKUs of
+   * `scope.skus` only when `scopeChanged`: a SKU deleted since must not block a
+   * pause), then pauses, moves or resumes its job scheduler. Pausing removes the
+   * scheduler; resuming makes it again from now on, so slots missed while paused
+   * are not fired. Firing counters stay. Null when there is no such schedule.
+   * @throws ScheduleInputError on a bad pattern, time zone, settings or scope.
+   */
+  async update(tenant: string, id: string, input: ScheduleUpdate, scopeChanged: boolean): Promise<ScheduleView | null> {
+    await this.check(tenant, input, scopeChanged)
+    const updated = await this.store.update(tenant, id, {
+      name: input.name ?? null,
+      cron: input.cron.trim(),
+      timeZone: input.timeZone,
+      scope: input.scope,
+      settings: input.settings,
+      paused: input.paused,
+    })
+    if (updated === null) return null
+    if (updated.paused) await this.queue().removeJobScheduler(schedulerId(tenant, id))
+    else await this.schedule(tenant, updated)
+    return this.view(updated)
+  }
+
+  /** @throws ScheduleInputError listing every bad field. */
+  private async check(tenant: string, input: ScheduleInput, checkSkus: boolean): Promise<void> {
+    const errors = checkTiming(input.cron, input.timeZone, this.opts.minIntervalSeconds, this.now())
+    try {
+      checkRunOptions(input.settings)
+    } catch (err) {
+      if (!(err instanceof RunInputError)) throw err
+      errors.push({ path: err.field, message: err.message })
+    }
+    if (checkSkus && 'skus' in input.scope) {
+      const bad = await scopeSkuErrors(input.scope.skus, (skus) => this.histories.missing(tenant, skus))
+      if (bad) errors.push(...bad.errors)
+    }
+    if (errors.length > 0) throw new ScheduleInputError(errors)
+  }
+
+  /** Creates or moves the schedule's BullMQ job scheduler (its next firing counts from now). */
+  private async schedule(tenant: string, def: Pick<Schedule, 'id' | 'cron' | 'timeZone'>): Promise<void> {
+    await this.queue().upsertJobScheduler(
+      schedulerId(tenant, def.id),
+      { pattern: def.cron, tz: def.timeZone },
+      { name: FIRE_JOB, data: { tenant, scheduleId: def.id }, opts: { removeOnComplete: 100, removeOnFail: 100, attempts: 1 } },
+    )
   }
 
   async get(tenant: string, id: string): Promise<ScheduleView | null> {
@@ -101,7 +140,7 @@ export class ScheduleService {
   }
 
   private view(s: Schedule): ScheduleView {
-    return { ...s, nextFireAt: nextFiring(s.cron, s.timeZone, this.now()) }
+    return { ...s, nextFireAt: s.paused ? null : nextFiring(s.cron, s.timeZone, this.now()) }
   }
 }
 

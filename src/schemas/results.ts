@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { AdjustmentView } from './adjustments.js'
 import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES } from '../engine/index.js'
 import { RunScope, RunSettings } from './run.js'
-import { RUN_STATUSES } from '../runs/contract.js'
+import { RUN_ORIGIN_KINDS, RUN_STATUSES } from '../runs/contract.js'
 
 /**
  * Response shapes of the v1 API. They mirror the types in runs/contract.ts and
@@ -164,6 +164,15 @@ export const ResultPageSchema = z.object({
   nextCursor: z.string().nullable().describe('null on the last page'),
 })
 
+export const RunOriginSchema = z
+  .object({
+    kind: z
+      .enum(RUN_ORIGIN_KINDS)
+      .describe('inline: series sent with POST /v1/runs; scope: stored histories named with POST /v1/runs; schedule: a firing of a schedule'),
+    scheduleId: z.string().optional().describe('The schedule that fired the run; present exactly when kind is schedule'),
+  })
+  .meta({ id: 'RunOrigin', description: 'What started the run' })
+
 export const RunResource = z
   .object({
     id: z.string(),
@@ -178,6 +187,7 @@ export const RunResource = z
     finishedAt: z.string().nullable().describe('ISO-8601'),
     settings: RunSettings,
     scope: RunScope.nullable().describe('The stored histories the run covers; null for a run over inline series'),
+    origin: RunOriginSchema,
     summary: z
       .object({
         rankBy: MetricName,

@@ -13,6 +13,9 @@
  *                             Only published runs write it.
  *   published          hash   sku -> the SKU's last N published records (same form as `latest`),
  *                             newest first, one per line; no TTL (accuracy at a fixed lag)
+ *   runs               zset   run id, score = the run's createdAt in ms (GET /v1/runs, newest
+ *                             first); written just before the run record, trimmed as records
+ *                             expire (run-index.ts); no TTL
  *
  * Redis Cluster (REDIS_CLUSTER_NODES): the run id sits in a hash tag (`{R}`), so
  * every key of one run hashes to one slot and the Lua scripts and MULTI that
@@ -63,6 +66,11 @@ export function runKeys(prefix: string, tenant: string, runId: string): RunKeys 
 
 export function latestKey(prefix: string, tenant: string): string {
   return `${tenantBase(prefix, tenant)}:latest`
+}
+
+/** The tenant's index of run ids by creation time (run-index.ts). */
+export function runIndexKey(prefix: string, tenant: string): string {
+  return `${tenantBase(prefix, tenant)}:runs`
 }
 
 export function publishedKey(prefix: string, tenant: string): string {

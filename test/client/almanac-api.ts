@@ -82,7 +82,11 @@ export interface paths {
             path?: never;
             cookie?: never;
         };
-        get?: never;
+        /**
+         * List the tenant's runs, newest first
+         * @description Filters: status, origin (what started the run: inline, scope, schedule), scheduleId, createdFrom (inclusive) and createdTo (exclusive). Runs are listed while their record is kept (twice the result retention). A page reads at most 5,000 runs while filters skip them, so it may hold fewer than limit runs, even none, before the end: follow nextCursor until it is null.
+         */
+        get: operations["listRuns"];
         put?: never;
         /**
          * Submit a forecast run
@@ -151,6 +155,26 @@ export interface paths {
          * @description The forecast of the newest publishing run (what-if runs never replace it). Each point carries the statistical demand (demand), the adjustment in force (adjustment) and the final demand to plan with (finalDemand); see /v1/skus/{sku}/adjustments. Figures are estimates to review before ordering. URL-encode the SKU (e.g. / as %2F). 404 when no run has published it yet, or when the results of the run that forecast it last have expired (result retention); accuracy tracking keeps its point forecast regardless.
          */
         get: operations["getSkuForecast"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/forecasts/published": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * Export every current published forecast (CSV or NDJSON)
+         * @description Streams one row per SKU and forecast period of every SKU's current published forecast, the same figures as GET /v1/skus/{sku}/forecast: sku, frequency, period, demand (statistical), the adjustment in force, finalDemand, interval bounds, model, runId, producedAt, and the replenishment figures when the forecast has them. Accept: text/csv gives CSV (comma delimiter, dot decimal, a header row; columns sku, frequency, period, demand, setDemand, changePercent, finalDemand, low<level>, high<level> per intervalLevels, model, runId, producedAt, then the replenishment columns of the results CSV, empty where none; text cells starting with = + - @ are prefixed with '); anything else gives NDJSON (application/x-ndjson), one PublishedForecastRow per line. Optional filters: tag, frequency. SKUs whose publishing run's results have expired are left out. Rows come in no stated order (by SKU with tag). Figures are estimates to review before ordering.
+         */
+        get: operations["exportPublishedForecasts"];
         put?: never;
         post?: never;
         delete?: never;
@@ -345,7 +369,11 @@ export interface paths {
         delete: operations["deleteSchedule"];
         options?: never;
         head?: never;
-        patch?: never;
+        /**
+         * Change, pause or resume a schedule
+         * @description A JSON merge patch (RFC 7396; application/json or application/merge-patch+json) of the fields of the create body, one level deep: a field given replaces the stored one whole (scope and replenishment included); null removes an optional field so its default applies again. The result is checked exactly as a new schedule (SKUs of scope.skus only when scope is in the patch). "paused": true stops the firings (nextFireAt becomes null); "paused": false resumes them from the next slot after now: slots missed while paused are not fired. Firing counters and a run already started stay.
+         */
+        patch: operations["updateSchedule"];
         trace?: never;
     };
     "/v1/skus/{sku}/accuracy": {
@@ -799,6 +827,32 @@ export interface components {
             /** @description Who: the planner, or the system sending it */
             author: string;
         };
+        /** @description Fields of the create body to change, and paused. A field given replaces the stored one whole (scope and replenishment included); null removes an optional field so its default applies again. The result is checked exactly as a new schedule. */
+        SchedulePatchInput: {
+            horizon?: number | null;
+            frequency?: ("day" | "week" | "month" | "quarter" | "year") | null;
+            seasonLength?: number | null;
+            holdoutPeriods?: number | null;
+            holdoutOrigins?: number | null;
+            rankBy?: ("mae" | "rmse" | "mape" | "smape" | "mase" | "wape") | null;
+            models?: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima")[] | null;
+            intervalLevels?: number[] | null;
+            quantiles?: number[] | null;
+            modelSearch?: ("fast" | "thorough") | null;
+            missingPeriods?: ("zero" | "interpolate") | null;
+            allowNegativeDemand?: boolean | null;
+            keepLeadingZeros?: boolean | null;
+            replenishment?: components["schemas"]["StockPolicyInput"] | null;
+            callbackUrl?: string | null;
+            publish?: boolean | null;
+            openPeriods?: ("exclude" | "include") | null;
+            name?: string | null;
+            cron?: string | null;
+            timeZone?: string | null;
+            scope?: components["schemas"]["ScopeInput"] | null;
+            /** @description true: the schedule stops firing; false: it fires again from the next slot on (slots missed while paused are not fired) */
+            paused?: boolean;
+        };
         ClosePeriodInput: {
             /** @description The last closed period, e.g. 2026-03 for month: it and every earlier period are complete */
             closedThrough: string;
@@ -1143,6 +1197,16 @@ export interface components {
             frequency: "day" | "week" | "month" | "quarter" | "year";
             failure: components["schemas"]["Failure"];
         };
+        /** @description What started the run */
+        RunOrigin: {
+            /**
+             * @description inline: series sent with POST /v1/runs; scope: stored histories named with POST /v1/runs; schedule: a firing of a schedule
+             * @enum {string}
+             */
+            kind: "inline" | "scope" | "schedule";
+            /** @description The schedule that fired the run; present exactly when kind is schedule */
+            scheduleId?: string;
+        };
         Run: {
             id: string;
             /** @enum {string} */
@@ -1228,6 +1292,7 @@ export interface components {
             };
             /** @description The stored histories the run covers; null for a run over inline series */
             scope: components["schemas"]["Scope"] | null;
+            origin: components["schemas"]["RunOrigin"];
             /** @description Present once the run has succeeded */
             summary: {
                 /** @enum {string} */
@@ -1405,6 +1470,45 @@ export interface components {
             }[];
             /** @description Rejections beyond the listed ones */
             errorsNotListed: number;
+        };
+        /** @description One SKU and period of the published forecasts export (one NDJSON line) */
+        PublishedForecastRow: {
+            sku: string;
+            /** @enum {string} */
+            frequency: "day" | "week" | "month" | "quarter" | "year";
+            period: string;
+            /** @description Statistical point forecast of demand for the period (before adjustments) */
+            demand: number;
+            /** @description The adjustment in force for the period; null when none */
+            adjustment: components["schemas"]["AdjustmentOnPoint"] | null;
+            /** @description The demand to plan with: demand with the adjustment applied; equal to demand when none */
+            finalDemand: number;
+            /** @description Prediction intervals of the statistical forecast */
+            intervals: {
+                level: number;
+                low: number;
+                high: number;
+            }[];
+            /** @description The chosen model */
+            model: string;
+            /** @description The publishing run that made the forecast */
+            runId: string;
+            /** @description ISO-8601 */
+            producedAt: string;
+            /** @description The SKU's replenishment policy and figures for an order placed in the period; only when its forecast has them (see Replenishment) */
+            replenishment?: {
+                leadTimePeriods: number;
+                reviewPeriods: number;
+                leadTimeSdPeriods: number;
+                serviceLevel: number;
+                minimumOrder: number;
+                packSize: number;
+                orderQuantity: number;
+                /** @description For an order placed at the start of the period; null where the protection interval runs past the horizon */
+                coverDemand: number | null;
+                safetyStock: number | null;
+                reorderPoint: number | null;
+            };
         };
         SkuAccuracy: {
             sku: string;
@@ -1672,9 +1776,11 @@ export interface components {
             cron: string;
             timeZone: string;
             scope: components["schemas"]["Scope"];
+            /** @description A paused schedule does not fire (PATCH with paused) */
+            paused: boolean;
             /** @description ISO-8601 */
             createdAt: string;
-            /** @description ISO-8601 */
+            /** @description ISO-8601; null while paused */
             nextFireAt: string | null;
             firings: {
                 /** @description Firings that submitted a run */
@@ -1917,6 +2023,96 @@ export interface operations {
             /** @description Internal Server Error (internal) */
             500: {
                 headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    listRuns: {
+        parameters: {
+            query?: {
+                /** @description Items per page (1..1000, default 100) */
+                limit?: number;
+                /** @description nextCursor of the previous page; a cursor this API did not issue is a 400 */
+                cursor?: string;
+                /** @description Only runs with this status */
+                status?: "queued" | "running" | "succeeded" | "failed" | "cancelled";
+                /** @description Only runs started this way (inline, scope, schedule) */
+                origin?: "inline" | "scope" | "schedule";
+                /** @description Only runs fired by this schedule (implies origin schedule) */
+                scheduleId?: string;
+                /** @description Only runs created at or after this instant (ISO-8601) */
+                createdFrom?: string;
+                /** @description Only runs created before this instant (ISO-8601) */
+                createdTo?: string;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": {
+                        items: components["schemas"]["Run"][];
+                        /** @description Pass back as cursor for the next page; null on the last page */
+                        nextCursor: string | null;
+                    };
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
                     [name: string]: unknown;
                 };
                 content: {
@@ -2480,6 +2676,85 @@ export interface operations {
             /** @description Not found (not-found) */
             404: {
                 headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    exportPublishedForecasts: {
+        parameters: {
+            query?: {
+                /** @description Only SKUs whose stored history carries this tag */
+                tag?: string;
+                /** @description Only SKUs forecast at this frequency */
+                frequency?: "day" | "week" | "month" | "quarter" | "year";
+                /** @description CSV only: the interval levels given as low<level>, high<level> columns, e.g. 80,95 (default). NDJSON rows carry every level the run made */
+                intervalLevels?: string;
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/x-ndjson": components["schemas"]["PublishedForecastRow"];
+                    "text/csv": string;
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
                     [name: string]: unknown;
                 };
                 content: {
@@ -4024,6 +4299,111 @@ export interface operations {
                     [name: string]: unknown;
                 };
                 content?: never;
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    updateSchedule: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                scheduleId: string;
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": components["schemas"]["SchedulePatchInput"];
+                "application/merge-patch+json": components["schemas"]["SchedulePatchInput"];
+            };
+        };
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["Schedule"];
+                };
             };
             /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
             400: {

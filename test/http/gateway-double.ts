@@ -2,7 +2,15 @@ import { createHash } from 'node:crypto'
 import type { Config } from '../../src/config.js'
 import type { RunRequest } from '../../src/schemas/run.js'
 import { pageOf } from '../../src/storage/paging.js'
-import { type LatestForecast, type ResultItem, type ResultPage, type RunGateway, type RunRecord } from '../../src/runs/contract.js'
+import {
+  type LatestForecast,
+  type ResultItem,
+  type ResultPage,
+  type RunGateway,
+  type RunListFilter,
+  type RunPage,
+  type RunRecord,
+} from '../../src/runs/contract.js'
 
 /**
  * TEST DOUBLE of the run machinery: keeps runs in a Map, never forecasts.
@@ -14,6 +22,8 @@ export class InMemoryGatewayDouble implements RunGateway {
   readonly items = new Map<string, ResultItem[]>()
   readonly latest = new Map<string, LatestForecast>()
   readonly submitted: { tenant: string; request: RunRequest }[] = []
+  /** The filters listRuns was called with. */
+  readonly listed: { tenant: string; filter: RunListFilter }[] = []
   pingError: Error | null = null
   statsCalls = 0
   private next = 1
@@ -31,6 +41,7 @@ export class InMemoryGatewayDouble implements RunGateway {
       finishedAt: null,
       settings,
       scope: null,
+      origin: { kind: 'inline' },
       summary: null,
       failure: null,
     }
@@ -78,6 +89,26 @@ export class InMemoryGatewayDouble implements RunGateway {
     const cancelled: RunRecord = { ...run, status: 'cancelled', finishedAt: '2026-01-05T08:00:03.000Z' }
     this.runs.set(runId, cancelled)
     return cancelled
+  }
+
+  /** The tenant's runs, last submitted first, filtered by status and origin only (the real filtering is tested against Redis). */
+  async listRuns(tenant: string, filter: RunListFilter, page: { limit: number; cursor?: string }): Promise<RunPage> {
+    this.listed.push({ tenant, filter })
+    const runs = [...this.runs.values()]
+      .filter((r) => r.tenant === tenant && (filter.status === undefined || r.status === filter.status))
+      .filter((r) => filter.origin === undefined || r.origin.kind === filter.origin)
+      .reverse()
+    return pageOf(runs, (r) => r.id, page.limit, page.cursor)
+  }
+
+  /** The whole scan in one step (the real one pages with HSCAN). */
+  async scanPublished(tenant: string, _cursor: string, _count: number): Promise<{ forecasts: LatestForecast[]; cursor: string }> {
+    const forecasts = [...this.latest].filter(([key]) => key.startsWith(`${tenant}\u0000`)).map(([, f]) => f)
+    return { forecasts, cursor: '0' }
+  }
+
+  async publishedOf(tenant: string, skus: readonly string[]): Promise<(LatestForecast | null)[]> {
+    return skus.map((sku) => this.latest.get(`${tenant}\u0000${sku}`) ?? null)
   }
 
   async latestForecast(tenant: string, sku: string): Promise<LatestForecast | null> {

@@ -35,6 +35,7 @@ describe('OpenAPI document', () => {
       '/v1/closed-periods',
       '/v1/closed-periods/{frequency}',
       '/v1/forecast',
+      '/v1/forecasts/published',
       '/v1/history',
       '/v1/runs',
       '/v1/runs/{runId}',
@@ -132,6 +133,8 @@ describe('OpenAPI operations', () => {
     expect(Object.keys(upload).sort()).toEqual(['application/json', 'application/ndjson', 'application/x-ndjson', 'text/csv'])
     expect(upload['application/json'].schema.properties.series.items.properties).toHaveProperty('firstPeriod')
     expect(Object.keys(doc.paths['/v1/runs/{runId}/results'].get.responses['200'].content).sort()).toEqual(['application/json', 'text/csv'])
+    expect(Object.keys(doc.paths['/v1/forecasts/published'].get.responses['200'].content).sort()).toEqual(['application/x-ndjson', 'text/csv'])
+    expect(Object.keys(doc.paths['/v1/schedules/{scheduleId}'].patch.requestBody.content).sort()).toEqual(['application/json', 'application/merge-patch+json'])
   })
 
   it('list only the problems a route can give: no body problems without a body, no 404 on lists', () => {

@@ -11,7 +11,7 @@ import type { Failure } from '../../runs/contract.js'
  * Overnight schedules per tenant.
  *
  *   sched:index        zset  schedule id, score = creation time in ms (listing order)
- *   sched:<id>         hash  def (JSON ScheduleDefinition), runId (current run), lastFiredAt,
+ *   sched:<id>         hash  def (JSON ScheduleDefinition, `paused` included), runId (current run), lastFiredAt,
  *                            submitted, skipped, failed, missingSkus (counters), lastFailure (JSON)
  *
  * under `${prefix}:t:${tenant}:`. Schedules are configuration: no TTL.
@@ -30,6 +30,7 @@ const DefinitionRecord = z.object({
   timeZone: z.string().min(1),
   scope: RunScope,
   settings: RunSettings,
+  paused: z.boolean(),
   createdAt: z.string(),
 })
 
@@ -40,6 +41,8 @@ export interface ScheduleDefinition {
   readonly timeZone: string
   readonly scope: Scope
   readonly settings: RunSettings
+  /** A paused schedule does not fire (its job scheduler is removed; the fire handler checks too). */
+  readonly paused: boolean
   readonly createdAt: string
 }
 
@@ -62,6 +65,9 @@ export interface Firings {
 export type Schedule = ScheduleDefinition & { readonly firings: Firings }
 
 export const MAX_SCHEDULES_PER_TENANT = 100
+
+/** HSET KEYS[1] def ARGV[1] when the hash exists; 1 when written. */
+const REPLACE_DEF = `if redis.call('EXISTS', KEYS[1]) == 0 then return 0 end redis.call('HSET', KEYS[1], 'def', ARGV[1]) return 1`
 
 /** ZADD ARGV[1] ARGV[2] unless the index already holds ARGV[3] members; 1 when added. */
 const CLAIM_PLACE = `if redis.call('ZCARD', KEYS[1]) >= tonumber(ARGV[3]) then return 0 end redis.call('ZADD', KEYS[1], ARGV[1], ARGV[2]) return 1`
@@ -95,9 +101,9 @@ export class ScheduleStore {
     return `${this.base(tenant)}:${id}`
   }
 
-  /** Stores a new schedule; null when the tenant has the maximum already. */
-  async create(tenant: string, def: Omit<ScheduleDefinition, 'id' | 'createdAt'>, now: Date): Promise<ScheduleDefinition | null> {
-    const full: ScheduleDefinition = { id: randomUUID(), ...def, createdAt: now.toISOString() }
+  /** Stores a new schedule, not paused; null when the tenant has the maximum already. */
+  async create(tenant: string, def: Omit<ScheduleDefinition, 'id' | 'createdAt' | 'paused'>, now: Date): Promise<ScheduleDefinition | null> {
+    const full: ScheduleDefinition = { id: randomUUID(), ...def, paused: false, createdAt: now.toISOString() }
     // The index entry is the claim on a place, counted and added in one script so concurrent
     // creates cannot all pass the check (the schedule's own hash lies on another cluster slot).
     const index = `${this.base(tenant)}:index`
@@ -109,6 +115,18 @@ export class ScheduleStore {
       throw err
     }
     return full
+  }
+
+  /**
+   * Replaces the definition of an existing schedule (its id and createdAt stay; the
+   * firing counters are untouched). Null when there is no such schedule.
+   */
+  async update(tenant: string, id: string, def: Omit<ScheduleDefinition, 'id' | 'createdAt'>): Promise<Schedule | null> {
+    const current = await this.get(tenant, id)
+    if (current === null) return null
+    const full: ScheduleDefinition = { id, ...def, createdAt: current.createdAt }
+    if ((await this.redis.eval(REPLACE_DEF, 1, this.key(tenant, id), JSON.stringify(full))) !== 1) return null
+    return { ...full, firings: current.firings }
   }
 
   async get(tenant: string, id: string): Promise<Schedule | null> {

@@ -7,14 +7,16 @@ import { RunStats } from './stats-store.js'
 import type { HistoryStore } from '../histories/history-store.js'
 import { runKeys } from '../keys.js'
 import type { RunStoreOptions } from './run-store.js'
-import type { RunRecord } from '../../runs/contract.js'
+import type { RunOrigin, RunRecord } from '../../runs/contract.js'
+import { RunIndex } from './run-index.js'
 
 /**
  * Create a run over stored histories: the scope is read page by page
  * (at most `chunkSize` histories at a time) and each full chunk is written as
  * a chunk input at once, so memory holds one chunk, never the whole
- * scope. The run record goes last, when the total is known; inputs of a
- * run that never got its record expire with the result TTL.
+ * scope. The run record goes last, when the total is known, just after its
+ * entry in the tenant's run index; inputs of a run that never got its record
+ * expire with the result TTL (and its index entry is skipped, then removed).
  * Each stored history becomes the series `{ sku, firstPeriod, demand, frequency }`,
  * exactly as if it had been sent inline, except for open periods (after the
  * tenant's closed-through period of its frequency, `closed`): they are cut off
@@ -37,6 +39,8 @@ export async function createRunFromHistories(
     readonly now: Date
     /** The tenant's closed-through period ordinals (closing-store.ts). */
     readonly closed?: ClosedOrdinals
+    /** What started the run; default { kind: 'scope' }. */
+    readonly origin?: RunOrigin
   },
 ): Promise<{ record: RunRecord; chunks: number; missingSkus: number; openOnlySkus: number } | null> {
   const { tenant, runId, settings, scope, chunkSize } = args
@@ -76,7 +80,8 @@ export async function createRunFromHistories(
   }
   if (chunk.length > 0) await flush()
   if (total === 0) return null
-  const fields = newRunFields({ id: runId, tenant, createdAt: args.now.toISOString(), total, chunks, settings, scope })
+  const fields = newRunFields({ id: runId, tenant, createdAt: args.now.toISOString(), total, chunks, settings, scope, origin: args.origin ?? { kind: 'scope' } })
+  await new RunIndex(redis, opts).add(tenant, runId, args.now.getTime())
   const results = await redis.multi().hset(k.run, fields).expire(k.run, opts.recordTtlSeconds).exec()
   for (const [err] of results ?? []) if (err) throw err
   await new RunStats(redis, opts.prefix).created()

@@ -2,7 +2,7 @@ import { z } from 'zod'
 import { FailureRecord, jsonOf, StoredValueError } from '../decode.js'
 import { MODEL_NAMES, type ModelName } from '../../engine/index.js'
 import { RunScope, RunSettings, toRunScope, type RunScope as Scope } from '../../schemas/run.js'
-import { RUN_STATUSES, type Failure, type RunRecord, type RunSummary } from '../../runs/contract.js'
+import { RUN_ORIGIN_KINDS, RUN_STATUSES, type Failure, type RunOrigin, type RunRecord, type RunSummary } from '../../runs/contract.js'
 
 /** Conversions between stored strings and the contract types. */
 
@@ -15,6 +15,7 @@ export function newRunFields(run: {
   chunks: number
   settings: RunSettings
   scope: Scope | null
+  origin: RunOrigin
 }): Record<string, string> {
   return {
     id: run.id,
@@ -28,12 +29,23 @@ export function newRunFields(run: {
     createdAt: run.createdAt,
     settings: JSON.stringify(run.settings),
     ...(run.scope === null ? {} : { scope: JSON.stringify(run.scope) }),
+    origin: encodeOrigin(run.origin),
     errSum: '0',
     errCount: '0',
   }
 }
 
 const Count = z.coerce.number().int().min(0)
+
+/** The stored `origin` field: `{ kind }`, plus `scheduleId` exactly for a schedule's run. */
+const OriginRecord = z
+  .strictObject({ kind: z.enum(RUN_ORIGIN_KINDS), scheduleId: z.string().min(1).max(64).optional() })
+  .refine((o) => (o.kind === 'schedule') === (o.scheduleId !== undefined), 'scheduleId is set exactly for a schedule')
+
+/** The `origin` field of a run hash. */
+export function encodeOrigin(origin: RunOrigin): string {
+  return JSON.stringify(origin.kind === 'schedule' ? { kind: origin.kind, scheduleId: origin.scheduleId } : { kind: origin.kind })
+}
 
 /** The run hash as stored (HGETALL): every value is a string; per-model counts are `win:<model>` fields. */
 const RunHash = z
@@ -49,6 +61,7 @@ const RunHash = z
     finishedAt: z.string().optional(),
     settings: jsonOf(RunSettings),
     scope: jsonOf(RunScope).optional(),
+    origin: jsonOf(OriginRecord),
     failure: jsonOf(FailureRecord).optional(),
     errSum: z.coerce.number(),
     errCount: Count,
@@ -74,6 +87,7 @@ export function decodeRunRecord(hash: Record<string, string>): RunRecord | null 
     finishedAt: h.finishedAt ?? null,
     settings: h.settings,
     scope: h.scope === undefined ? null : toRunScope(h.scope),
+    origin: h.origin.scheduleId === undefined ? { kind: h.origin.kind } : { kind: h.origin.kind, scheduleId: h.origin.scheduleId },
     summary: h.status === 'succeeded' ? decodeSummary(hash, h.settings, h.errSum, h.errCount) : null,
     failure: h.failure ?? null,
   }

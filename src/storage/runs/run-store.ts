@@ -20,7 +20,18 @@ import {
 } from '../items/latest-record.js'
 import { defineRunScripts, type RunScripts } from './scripts.js'
 import { RunStats } from './stats-store.js'
-import { RUN_STATUSES, type Failure, type LatestForecast, type ResultPage, type RunRecord, type RunStatus } from '../../runs/contract.js'
+import { RunIndex } from './run-index.js'
+import {
+  RUN_STATUSES,
+  type Failure,
+  type LatestForecast,
+  type ResultPage,
+  type RunListFilter,
+  type RunOrigin,
+  type RunPage,
+  type RunRecord,
+  type RunStatus,
+} from '../../runs/contract.js'
 import type { ChunkTally } from '../../runs/tally.js'
 
 /** Run record TTL relative to result retention: summaries outlive results. */
@@ -65,6 +76,8 @@ export class RunStore {
   private readonly scripts: RunScripts
   /** Service-wide counters for /metrics, updated after each status change (stats-store.ts). */
   readonly stats: RunStats
+  /** The tenant's runs by creation time (GET /v1/runs). */
+  readonly index: RunIndex
 
   constructor(
     private readonly redis: RedisClient,
@@ -72,6 +85,7 @@ export class RunStore {
   ) {
     this.scripts = defineRunScripts(redis)
     this.stats = new RunStats(redis, opts.prefix)
+    this.index = new RunIndex(redis, opts)
   }
 
   private keys(tenant: string, runId: string) {
@@ -79,8 +93,9 @@ export class RunStore {
   }
 
   /**
-   * Writes the run record and one input key per chunk in one transaction.
-   * The caller has checked the request (runs/input.ts: one series per SKU).
+   * Indexes the run (run-index.ts), then writes the run record and one input
+   * key per chunk in one transaction. The caller has checked the request
+   * (runs/input.ts: one series per SKU).
    */
   async createRun(
     tenant: string,
@@ -88,12 +103,14 @@ export class RunStore {
     request: RunRequest,
     chunkSize: number,
     now: Date,
+    origin: RunOrigin = { kind: 'inline' },
   ): Promise<{ record: RunRecord; chunks: number }> {
     const { series, ...settings } = request
     const chunks = Math.ceil(series.length / chunkSize)
     const k = this.keys(tenant, runId)
+    await this.index.add(tenant, runId, now.getTime())
     const tx = this.redis.multi()
-    const fields = newRunFields({ id: runId, tenant, createdAt: now.toISOString(), total: series.length, chunks, settings, scope: null })
+    const fields = newRunFields({ id: runId, tenant, createdAt: now.toISOString(), total: series.length, chunks, settings, scope: null, origin })
     tx.hset(k.run, fields)
     tx.expire(k.run, this.opts.recordTtlSeconds)
     for (let c = 0; c < chunks; c++) {
@@ -107,6 +124,14 @@ export class RunStore {
   async getRun(tenant: string, runId: string): Promise<RunRecord | null> {
     if (!isValidTenant(tenant) || !isValidRunId(runId)) return null
     return decodeRunRecord(await this.redis.hgetall(this.keys(tenant, runId).run))
+  }
+
+  /**
+   * The tenant's runs, newest first, filtered (run-index.ts).
+   * @throws CursorError on a cursor this service did not issue.
+   */
+  listRuns(tenant: string, filter: RunListFilter, page: { readonly limit: number; readonly cursor?: string }): Promise<RunPage> {
+    return this.index.page(tenant, filter, page.limit, page.cursor)
   }
 
   /** How many chunks the run was split into (0 when the run is unknown). */

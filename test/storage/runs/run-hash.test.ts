@@ -84,7 +84,7 @@ describe('cursors', () => {
 
 describe('decodeRunRecord', () => {
   const { series: _s, ...settings } = runRequest([])
-  const fields = newRunFields({ id: 'r1', tenant: 't', createdAt: '2026-01-01T00:00:00.000Z', total: 3, chunks: 1, settings, scope: null })
+  const fields = newRunFields({ id: 'r1', tenant: 't', createdAt: '2026-01-01T00:00:00.000Z', total: 3, chunks: 1, settings, scope: null, origin: { kind: 'inline' } })
 
   it('returns null for a missing run and refuses a hash that does not decode', () => {
     expect(decodeRunRecord({})).toBeNull()
@@ -94,10 +94,19 @@ describe('decodeRunRecord', () => {
   })
 
   it('keeps the scope of a run over stored histories and the failure of a failed run', () => {
-    const stored = newRunFields({ id: 'r2', tenant: 't', createdAt: '2026-01-01T00:00:00.000Z', total: 3, chunks: 1, settings, scope: { tags: ['category:garden'] } })
+    const stored = newRunFields({ id: 'r2', tenant: 't', createdAt: '2026-01-01T00:00:00.000Z', total: 3, chunks: 1, settings, scope: { tags: ['category:garden'] }, origin: { kind: 'schedule', scheduleId: 'nightly-1' } })
     const failed = { ...stored, status: 'failed', failure: '{"code":"chunk-failed","message":"chunk 0 failed"}' }
     expect(decodeRunRecord(failed)).toMatchObject({ scope: { tags: ['category:garden'] }, failure: { code: 'chunk-failed', message: 'chunk 0 failed' } })
     expect(decodeRunRecord(fields)).toMatchObject({ scope: null, failure: null })
+  })
+
+  it('keeps the origin, with a scheduleId exactly for a schedule\'s run, and refuses one that does not decode', () => {
+    const scheduled = newRunFields({ id: 'r3', tenant: 't', createdAt: '2026-01-01T00:00:00.000Z', total: 3, chunks: 1, settings, scope: { all: true }, origin: { kind: 'schedule', scheduleId: 's-1' } })
+    expect(decodeRunRecord(scheduled)?.origin).toEqual({ kind: 'schedule', scheduleId: 's-1' })
+    expect(decodeRunRecord(fields)?.origin).toEqual({ kind: 'inline' })
+    expect(() => decodeRunRecord({ ...fields, origin: '{"kind":"schedule"}' })).toThrow(/run record r1 does not decode: origin/)
+    expect(() => decodeRunRecord({ ...fields, origin: '{"kind":"scope","scheduleId":"s-1"}' })).toThrow(/origin/)
+    expect(() => decodeRunRecord({ ...fields, origin: '{"kind":"upload"}' })).toThrow(/origin/)
   })
 
   it('gives no summary before the run succeeds', () => {

@@ -3,12 +3,14 @@ import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { ProblemError } from '../../../errors.js'
 import { RunIdParams } from '../../../schemas/params.js'
 import { RunResource } from '../../../schemas/results.js'
+import { pageSchema } from '../../../schemas/params.js'
+import { RunListQuery } from '../../../schemas/run-list.js'
 import { RunSubmission, toRunScope } from '../../../schemas/run.js'
 import { parseRunSubmissionFast } from '../../../schemas/series-check.js'
 import { validatorCompiler } from '../../validation.js'
 import type { RunRecord } from '../../../runs/contract.js'
 import { submitStoredScope } from '../../run-scope.js'
-import { IDEMPOTENT, READ_ONE, WRITE, WRITE_ONE } from '../responses.js'
+import { IDEMPOTENT, READ, READ_ONE, WRITE, WRITE_ONE } from '../responses.js'
 
 /** The run as clients see it: the record without its tenant. */
 export function toRunResource(run: RunRecord): Omit<RunRecord, 'tenant'> {
@@ -60,6 +62,41 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       request.log.info({ runId: run.id, series: run.progress.total, stored: series === undefined }, 'run submitted')
       reply.code(202).header('location', `/v1/runs/${encodeURIComponent(run.id)}`)
       return toRunResource(run)
+    },
+  )
+
+  app.get(
+    '',
+    {
+      schema: {
+        tags: ['runs'],
+        operationId: 'listRuns',
+        'x-problems': READ,
+        summary: "List the tenant's runs, newest first",
+        description:
+          'Filters: status, origin (what started the run: inline, scope, schedule), scheduleId, createdFrom (inclusive) and ' +
+          'createdTo (exclusive). Runs are listed while their record is kept (twice the result retention). A page reads ' +
+          'at most 5,000 runs while filters skip them, so it may hold fewer than limit runs, even none, before the end: ' +
+          'follow nextCursor until it is null.',
+        querystring: RunListQuery,
+        response: { 200: pageSchema(RunResource) },
+      },
+    },
+    async (request) => {
+      if (!app.gateway.listRuns) throw new ProblemError('not-ready', 'Listing runs is not configured on this server')
+      const { limit, cursor, status, origin, scheduleId, createdFrom, createdTo } = request.query
+      const page = await app.gateway.listRuns(
+        request.tenant,
+        {
+          ...(status === undefined ? {} : { status }),
+          ...(origin === undefined ? {} : { origin }),
+          ...(scheduleId === undefined ? {} : { scheduleId }),
+          ...(createdFrom === undefined ? {} : { createdFromMs: Date.parse(createdFrom) }),
+          ...(createdTo === undefined ? {} : { createdToMs: Date.parse(createdTo) }),
+        },
+        { limit, ...(cursor === undefined ? {} : { cursor }) },
+      )
+      return { items: page.items.map(toRunResource), nextCursor: page.nextCursor }
     },
   )
 

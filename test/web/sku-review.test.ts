@@ -2,7 +2,7 @@ import { readFileSync, rmSync } from 'node:fs'
 import { createRequire } from 'node:module'
 import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { SMALL_DEMO_SKUS, loadDemo } from '../../demo/workbench.js'
+import { SMALL_DEMO_SKUS, demoTags, loadDemo } from '../../demo/workbench.js'
 import { launchBrowser, type Browser } from '../../scripts/workbench/browser.js'
 import { createAdjustmentService } from '../../src/http/adjustment-services.js'
 import { AccuracyTrackingHistoryStore } from '../../src/storage/erp/accuracy-hook.js'
@@ -202,3 +202,34 @@ describe('the SKU page looks back and aside', () => {
     await page.close()
   })
 })
+
+describe('the overview pools a tag', () => {
+  it('shows the accuracy and value added of a chosen tag as GET /v1/accuracy/by-tag and /v1/value-added/by-tag compute them', async () => {
+    const tag = demoTags(SKU)[0]!
+    const pooled = (await service.app.inject({ url: `/v1/accuracy/by-tag?tag=${encodeURIComponent(tag)}`, headers: auth })).json()
+    expect(pooled.scoredPeriods).toBe(2)
+    const page = await signedInPage('/app/')
+    const figures = page.getByTestId('tag-figures')
+    await figures.waitFor()
+    await page.getByLabel('Tag', { exact: true }).selectOption(tag)
+    const summary = page.getByTestId('tag-accuracy')
+    await summary.filter({ hasText: 'Periods scored2' }).waitFor()
+    const precise = new Intl.NumberFormat('en', { maximumFractionDigits: 3 })
+    expect(await summary.textContent()).toContain(`WAPE %${precise.format(pooled.wape)}`)
+    const added = (await service.app.inject({ url: `/v1/value-added/by-tag?tag=${encodeURIComponent(tag)}`, headers: auth })).json()
+    const statisticalRow = figures.locator('[data-testid=value-added] tbody tr').filter({ hasText: 'Statistical' })
+    expect(await statisticalRow.locator('td').first().textContent()).toBe(precise.format(added.mae.statistical))
+    // At lag 1 only forecasts made one period before are scored: the figures change with the choice.
+    const atLag = (await service.app.inject({ url: `/v1/accuracy/by-tag?tag=${encodeURIComponent(tag)}&lag=1`, headers: auth })).json()
+    await page.getByLabel('Forecasts scored').selectOption('1')
+    await summary.filter({ hasText: `Periods scored${atLag.scoredPeriods}` }).waitFor()
+    // No serious or critical accessibility violations (axe-core) with the figures shown.
+    await page.evaluate(readFileSync(require.resolve('axe-core/axe.min.js'), 'utf8'))
+    const violations = (await page.evaluate(`axe.run().then((result) => result.violations.map((v) => ({
+      id: v.id, impact: v.impact, nodes: v.nodes.map((n) => n.target.join(' ')).slice(0, 3),
+    })))`)) as { id: string; impact: string; nodes: string[] }[]
+    expect(violations.filter((v) => v.impact === 'serious' || v.impact === 'critical')).toEqual([])
+    await page.close()
+  })
+})
+

@@ -25,6 +25,8 @@ export interface Run {
     readonly meanHoldoutError: number | null
   } | null
   readonly failure?: Failure | null
+  /** What started the run (GET /v1/runs). */
+  readonly origin?: { readonly kind: 'inline' | 'scope' | 'schedule'; readonly scheduleId?: string }
 }
 
 export interface SkuSummary {
@@ -190,4 +192,22 @@ export interface SkuValueAdded {
   readonly mae: ErrorsBy
   readonly valueAdded: { readonly adjustments: number | null; readonly statistical: number | null; readonly final: number | null }
   readonly byAuthor: readonly { readonly author: string; readonly adjustedPeriods: number; readonly valueAdded: { readonly adjustments: number | null } }[]
+}
+
+/** GET /v1/accuracy/by-tag. */
+export interface TagAccuracy {
+  readonly tag: string
+  readonly lag: number | null
+  readonly skus: number
+  readonly scoredPeriods: number
+  readonly mae: number | null
+  readonly bias: number | null
+  readonly wape: number | null
+  readonly flaggedSkus: number
+}
+
+/** GET /v1/value-added/by-tag. */
+export interface TagValueAdded extends SkuValueAdded {
+  readonly tag: string
+  readonly skus: number
 }

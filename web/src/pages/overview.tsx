@@ -1,39 +1,73 @@
 import { useEffect, useState } from 'preact/hooks'
-import { ApiError, describeError, getJson, skuPath } from '../api'
+import { describeError, getJson } from '../api'
+import { formatNumber, formatTime } from '../format'
 import { Link, hrefs, navigate } from '../router'
 import { followRun, followedRuns, unfollowRun } from '../run-poll'
 import { useAsync } from '../use-async'
-import type { Page, SkuForecast, SkuSummary } from '../types'
-import { RunCard } from './run-card'
+import type { Page, Run, SkuSummary } from '../types'
+import { RunCard, StatusBadge } from './run-card'
+import { TagFigures } from './tag-figures'
 
-/** How many SKUs the overview looks at to find the latest run. */
-const SAMPLE = 10
+/** Recent runs listed on the overview (GET /v1/runs, newest first). */
+const RECENT = 6
 
-interface LatestRun {
-  readonly runId: string | null
+interface LatestRuns {
+  readonly runs: readonly Run[]
   readonly storedSkus: number
 }
 
-/**
- * The API has no list of runs yet: the latest run is the one that produced the
- * newest forecast among the first SAMPLE stored SKUs.
- */
-async function findLatestRun(signal: AbortSignal): Promise<LatestRun> {
-  const page = await getJson<Page<SkuSummary>>(`/v1/skus?limit=${SAMPLE}`, signal)
-  let best: { runId: string; producedAt: string } | null = null
-  for (const item of page.items) {
-    try {
-      const f = await getJson<SkuForecast>(skuPath(item.sku, '/forecast?view=compact'), signal)
-      if (best === null || f.producedAt > best.producedAt) best = { runId: f.runId, producedAt: f.producedAt }
-    } catch (err) {
-      if (!(err instanceof ApiError && err.status === 404)) throw err
-    }
-  }
-  return { runId: best?.runId ?? null, storedSkus: page.items.length }
+async function findLatestRuns(signal: AbortSignal): Promise<LatestRuns> {
+  const [runs, skus] = await Promise.all([
+    getJson<Page<Run>>(`/v1/runs?limit=${RECENT}`, signal),
+    getJson<Page<SkuSummary>>('/v1/skus?limit=1', signal),
+  ])
+  return { runs: runs.items, storedSkus: skus.items.length }
+}
+
+const ORIGIN_LABELS: Record<string, string> = { inline: 'series sent with the run', scope: 'stored histories', schedule: 'schedule' }
+
+/** The runs before the newest: status, what started them, when, progress; each links to its page. */
+function RecentRuns({ runs }: { runs: readonly Run[] }) {
+  if (runs.length === 0) return null
+  return (
+    <div class="table-wrap">
+      <table class="data" data-testid="recent-runs">
+        <caption>Earlier runs, newest first</caption>
+        <thead>
+          <tr>
+            <th scope="col">Run</th>
+            <th scope="col">Status</th>
+            <th scope="col">Started by</th>
+            <th scope="col">Submitted</th>
+            <th scope="col" class="num">SKUs done</th>
+          </tr>
+        </thead>
+        <tbody>
+          {runs.map((r) => (
+            <tr key={r.id}>
+              <th scope="row">
+                <Link href={hrefs.run(r.id)} class="mono">
+                  {r.id.slice(0, 8)}
+                </Link>
+              </th>
+              <td>
+                <StatusBadge status={r.status} />
+              </td>
+              <td>{r.origin ? (ORIGIN_LABELS[r.origin.kind] ?? r.origin.kind) : '–'}</td>
+              <td>{formatTime(r.createdAt)}</td>
+              <td class="num">
+                {formatNumber(r.progress.done)} of {formatNumber(r.progress.total)}
+              </td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  )
 }
 
 export function Overview() {
-  const latest = useAsync(findLatestRun, [])
+  const latest = useAsync(findLatestRuns, [])
   const [followed, setFollowed] = useState(followedRuns)
   const [runIdText, setRunIdText] = useState('')
   const [idProblem, setIdProblem] = useState('')
@@ -50,7 +84,7 @@ export function Overview() {
     setFollowed(followRun(id))
   }
 
-  const latestId = latest.state === 'done' ? latest.value.runId : null
+  const latestId = latest.state === 'done' ? (latest.value.runs[0]?.id ?? null) : null
   return (
     <>
       <h1 tabIndex={-1}>Overview</h1>
@@ -65,12 +99,21 @@ export function Overview() {
         ) : null}
         {latest.state === 'done' && latest.value.storedSkus > 0 && latestId === null ? (
           <p>
-            Histories are stored but none has been forecast yet. Submit a run (<code>POST /v1/runs</code>) and follow it here by
-            its id.
+            Histories are stored but no run is on record (runs are kept for the result retention). Submit a run (<code>POST /v1/runs</code>)
+            and follow it here by its id.
           </p>
         ) : null}
         {latestId ? <RunCard runId={latestId} title="Run" /> : null}
-        <p class="muted small">The latest run is the one that produced the newest forecast among your first {SAMPLE} SKUs.</p>
+        {latest.state === 'done' ? <RecentRuns runs={latest.value.runs.slice(1)} /> : null}
+      </section>
+
+      <section aria-labelledby="by-tag-heading">
+        <h2 id="by-tag-heading">Accuracy and value added by tag</h2>
+        <p class="muted small">
+          Published forecasts of the tag's SKUs against what happened, pooled. Figures describe the past; review them before relying on a
+          forecast for an order.
+        </p>
+        <TagFigures />
       </section>
 
       <section aria-labelledby="followed-heading">

@@ -352,6 +352,18 @@ export class AccuracyStore {
     return { items, nextCursor }
   }
 
+  /** Up to `n` flagged SKUs after `after` (byte order; null: from the start), for the worklist. */
+  async flaggedAfter(tenant: string, after: string | null, n: number): Promise<string[]> {
+    if (!isValidTenant(tenant)) return []
+    return this.redis.zrangebylex(`${this.base(tenant)}:exceptions`, after === null ? '-' : `(${after}`, '+', 'LIMIT', 0, n)
+  }
+
+  /** How many SKUs are flagged (snoozed ones included). */
+  async flaggedCount(tenant: string): Promise<number> {
+    if (!isValidTenant(tenant)) return 0
+    return this.redis.zcard(`${this.base(tenant)}:exceptions`)
+  }
+
   /**
    * Acknowledges or snoozes a flagged SKU. A snooze lasts until a newer
    * forecast of the SKU is published; an acknowledgement until the SKU leaves

@@ -66,10 +66,10 @@ function ReviewControls({ item, onDone }: { item: WorklistItem; onDone: (message
         Note for {item.sku}
       </label>
       <input id={id} value={note} placeholder="Note" maxLength={2000} onInput={(e) => setNote((e.target as HTMLInputElement).value)} />
-      <button type="button" disabled={busy} onClick={() => send('acknowledge')} aria-label={`Acknowledge ${item.sku}`}>
+      <button type="button" disabled={busy} onClick={() => void send('acknowledge')} aria-label={`Acknowledge ${item.sku}`}>
         <Icon name="check" /> Acknowledge
       </button>
-      <button type="button" disabled={busy} onClick={() => send('snooze')} aria-label={`Snooze ${item.sku}`}>
+      <button type="button" disabled={busy} onClick={() => void send('snooze')} aria-label={`Snooze ${item.sku}`}>
         <Icon name="clock" /> Snooze
       </button>
       {problem ? (

@@ -1,4 +1,5 @@
-import type { AccuracyStore, Review, ReviewState } from '../storage/erp/accuracy-store.js'
+import type { AccuracyStore } from '../storage/erp/accuracy-store.js'
+import type { Review, ReviewState } from './review.js'
 import type { RunStore } from '../storage/runs/run-store.js'
 import type { StoredWorklistEntry, WorklistStore } from '../storage/worklist/worklist-store.js'
 import { decodeCursor, encodeCursor } from '../storage/paging.js'

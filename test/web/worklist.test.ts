@@ -49,7 +49,8 @@ afterAll(async () => {
   if (outDir) rmSync(outDir, { recursive: true, force: true })
 })
 
-const api = async (path: string) => (await fetch(`${baseUrl}${path}`)).json()
+// eslint-disable-next-line @typescript-eslint/no-explicit-any -- JSON bodies checked by the expectations below
+const api = async (path: string): Promise<any> => (await fetch(`${baseUrl}${path}`)).json()
 
 async function openWorklist(path = '/app/worklist'): Promise<Page> {
   const page = await browser.context.newPage()

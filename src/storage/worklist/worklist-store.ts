@@ -2,7 +2,7 @@ import { z } from 'zod'
 import type { RedisClient } from '../redis.js'
 import { countOf, decodeJson, FailureRecord } from '../decode.js'
 import { isValidTenant } from '../keys.js'
-import { REVIEW_STATES, type Review } from '../erp/accuracy-store.js'
+import { REVIEW_STATES, type Review } from '../../runs/review.js'
 import { RUN_KINDS, type RunKind, type WorklistEntry } from '../../runs/worklist.js'
 
 /**

@@ -22,18 +22,18 @@ function detailOf(item: WorklistItem, kind: WorklistKind): string {
   switch (kind) {
     case 'biased': {
       const ts = item.trackingSignal
-      return ts ? `tracking signal ${ts.trackingSignal?.toFixed(1) ?? '–'} over ${ts.scoredPeriods} scored periods` : ''
+      return ts ? `tracking signal ${ts.trackingSignal?.toFixed(1) ?? '–'} over ${ts.scoredPeriods} scored period${ts.scoredPeriods === 1 ? '' : 's'}` : ''
     }
     case 'large-change': {
       const c = item.change
       if (!c) return ''
       const moved = c.ratio === null ? 'up from zero' : `${c.ratio > 0 ? '+' : ''}${(c.ratio * 100).toFixed(0)} %`
-      return `${moved} against the previous forecast over ${c.commonPeriods} periods`
+      return `${moved} against the previous forecast over ${c.commonPeriods} period${c.commonPeriods === 1 ? '' : 's'} in common`
     }
     case 'failed':
       return item.failure ? `${item.failure.code}: ${item.failure.message}` : ''
     case 'short-history':
-      return item.historyLength === null ? '' : `${item.historyLength} periods of history`
+      return item.historyLength === null ? '' : `${item.historyLength} period${item.historyLength === 1 ? '' : 's'} of history`
   }
 }
 
@@ -159,7 +159,7 @@ export function Worklist({ kind }: { kind: string }) {
               {items.map((item) => (
                 <tr key={item.sku} data-sku={item.sku}>
                   <th scope="row">
-                    <Link href={hrefs.sku(item.sku)} class="mono">
+                    <Link href={hrefs.sku(item.sku)} class="mono nowrap">
                       {item.sku}
                     </Link>
                   </th>

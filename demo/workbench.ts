@@ -97,3 +97,33 @@ export async function loadDemo(baseUrl: string, skus: readonly string[], headers
   await uploadDemo(baseUrl, demoSeries(skus), headers)
   return runDemo(baseUrl, skus, headers)
 }
+
+/**
+ * Two SKUs for the worklist, in the same scenario: a garden planter launched six
+ * months ago (a short history) and a heating spare part set up in the ERP with no
+ * recorded demand yet (every period missing, so its fit fails).
+ */
+export const WORKLIST_DEMO_SERIES: readonly DemoSeries[] = [
+  { sku: 'GRD-8101', firstPeriod: '2025-07', demand: [14, 22, 19, 25, 31, 28] },
+  { sku: 'HTG-8102', firstPeriod: '2025-07', demand: [null, null, null, null, null, null] },
+]
+
+interface StoredHistory {
+  readonly firstPeriod: string
+  readonly demand: readonly (number | null)[]
+  readonly tags: readonly string[]
+}
+
+/**
+ * The month's actuals arrive for a SKU and run above its published forecast by
+ * `factor` in each of the first `periods` forecast months, so its tracking signal
+ * flags it (|TS| = periods >= 4 when every error has one sign).
+ */
+export async function arriveBiasedActuals(baseUrl: string, sku: string, headers: Record<string, string> = {}, factor = 1.4, periods = 5): Promise<void> {
+  const path = `/v1/skus/${encodeURIComponent(sku)}`
+  const forecast = await call<{ forecast: { period: string; demand: number }[] }>(baseUrl, `${path}/forecast?view=compact`, {}, headers)
+  const history = await call<StoredHistory>(baseUrl, `${path}/history`, {}, headers)
+  const actuals = forecast.forecast.slice(0, periods).map((p) => Math.round(p.demand * factor) + 1)
+  const body = { frequency: 'month', firstPeriod: history.firstPeriod, demand: [...history.demand, ...actuals], tags: history.tags }
+  await call(baseUrl, `${path}/history`, { method: 'PUT', body: JSON.stringify(body) }, headers)
+}

@@ -95,6 +95,8 @@ export const ConfigSchema = z.object({
   SCHEDULE_MIN_INTERVAL_SECONDS: intFromEnv(300, 1, 86_400),
   /** Published forecasts kept per SKU, newest first, for accuracy at a fixed lag (docs/feeds.md). */
   PUBLISHED_FORECASTS_KEPT: intFromEnv(12, 1, 120),
+  /** Worklist: a newly published forecast whose summed common periods moved this many percent or more is a large change (docs/workbench.md). */
+  WORKLIST_CHANGE_PERCENT: intFromEnv(25, 1, 1000),
   /** How long a feed batch id of a history upload is remembered, so a resent batch is not added twice. */
   UPLOAD_BATCH_TTL_SECONDS: intFromEnv(35 * 24 * 3600, 60, 366 * 24 * 3600),
 })
@@ -183,6 +185,8 @@ export interface Config {
   readonly scheduleMinIntervalSeconds?: number
   /** Published forecasts kept per SKU for accuracy at a fixed lag; default 12 when absent. */
   readonly publishedForecastsKept?: number
+  /** Worklist large-change threshold in percent; default 25 (our default, not a standard) when absent. */
+  readonly worklistChangePercent?: number
   /** How long a history upload's feed batch id is remembered (default 35 days). */
   readonly uploadBatchTtlSeconds?: number
 }
@@ -310,6 +314,7 @@ export function loadConfig(
     callbackAllowPrivateNetworks: e.CALLBACK_ALLOW_PRIVATE_NETWORKS,
     scheduleMinIntervalSeconds: e.SCHEDULE_MIN_INTERVAL_SECONDS,
     publishedForecastsKept: e.PUBLISHED_FORECASTS_KEPT,
+    worklistChangePercent: e.WORKLIST_CHANGE_PERCENT,
     uploadBatchTtlSeconds: e.UPLOAD_BATCH_TTL_SECONDS,
   }
 }

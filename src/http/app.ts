@@ -36,6 +36,7 @@ import erpPlugin from './plugins/erp.js'
 import accuracyRoutes from './routes/accuracy.js'
 import valueAddedRoutes from './routes/value-added.js'
 import tagRoutes from './routes/tags.js'
+import worklistRoutes from './routes/worklist.js'
 import accessRoutes from './routes/access.js'
 import workbenchPlugin from './plugins/workbench.js'
 import callbackRoutes from './routes/callbacks.js'
@@ -162,6 +163,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(accuracyRoutes)
   await app.register(valueAddedRoutes)
   await app.register(tagRoutes)
+  await app.register(worklistRoutes)
   await app.register(closedPeriodRoutes, { prefix: '/v1/closed-periods' })
   await app.register(accessRoutes)
   await app.register(workbenchPlugin, { root: deps.workbenchRoot ?? null })

@@ -12,6 +12,7 @@ import { ScheduleStore } from '../storage/erp/schedule-store.js'
 import { HistoryStore } from '../storage/histories/history-store.js'
 import { CallbackStore } from '../storage/erp/callback-store.js'
 import { ClosingStore } from '../storage/erp/closing-store.js'
+import { WorklistService } from '../runs/worklist-service.js'
 
 /** What the HTTP routes of the ERP features (callbacks, deliveries, schedules, accuracy) use. */
 export interface ErpServices {
@@ -20,6 +21,8 @@ export interface ErpServices {
   readonly schedules: ScheduleService
   readonly accuracy: AccuracyStore
   readonly closing: ClosingStore
+  /** The planners' exception worklist (runs/worklist-service.ts). */
+  readonly worklist: WorklistService
 }
 
 /**
@@ -43,6 +46,7 @@ export function createErpServices(
     }
     return queue
   }
+  const accuracy = new AccuracyStore(redis, runs, closing, { prefix })
   return {
     services: {
       callbacks: new CallbackStore(redis, prefix),
@@ -50,8 +54,9 @@ export function createErpServices(
       schedules: new ScheduleService(new ScheduleStore(redis, prefix), new HistoryStore(redis, { prefix }), scheduleQueue, {
         minIntervalSeconds: opts.minIntervalSeconds ?? config.scheduleMinIntervalSeconds ?? DEFAULT_MIN_INTERVAL_SECONDS,
       }),
-      accuracy: new AccuracyStore(redis, runs, closing, { prefix }),
+      accuracy,
       closing,
+      worklist: new WorklistService({ worklist: runs.worklist, accuracy, runs }),
     },
     close: async () => {
       await (queue as Queue<FireJob> | null)?.close()

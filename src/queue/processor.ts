@@ -4,6 +4,8 @@ import type { Logger } from '../logger.js'
 import { forecastItem } from '../runs/forecast-sku.js'
 import { withOpenPeriodsWarning } from '../runs/open-periods.js'
 import { ChunkTallier } from '../runs/tally.js'
+import { itemSignals, type WorklistSignals } from '../runs/worklist.js'
+import { recordWorklist } from '../runs/worklist-service.js'
 import { prepareItem, type PreparedItem } from '../storage/items/prepared-item.js'
 import type { CommitOutcome, RunStore } from '../storage/runs/run-store.js'
 import { CHUNK_QUEUE } from './names.js'
@@ -67,16 +69,22 @@ export function createChunkProcessor(deps: ChunkProcessorDeps) {
     const tallier = new ChunkTallier(run.settings.rankBy)
     // Each item is tallied and encoded as soon as it is fitted: only its bytes wait for the commit (prepared-item.ts).
     const items: PreparedItem[] = []
+    const signals: WorklistSignals[] = []
     for (const s of series) {
       const t0 = performance.now()
       const item = withOpenPeriodsWarning(forecastItem(deps.forecast, run.settings, s), s.openPeriods)
       fitSeconds.push((performance.now() - t0) / 1000)
       tallier.add(item)
       items.push(prepareItem(item))
+      signals.push(itemSignals(item, s.demand.length))
     }
     const computeMs = Math.round(performance.now() - started)
     const tally = tallier.tally()
-    const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now(), run.settings.publish === true)
+    // The planners' worklist follows each published chunk (runs/worklist-service.ts); idempotent like the commit.
+    const afterPublish = async (createdAtMs: number) => {
+      await recordWorklist({ runs: store, worklist: store.worklist }, tenant, runId, createdAtMs, signals, store.worklistChangePercent)
+    }
+    const outcome = await store.commitChunk(tenant, runId, chunkIndex, items, tally, now(), run.settings.publish === true, afterPublish)
     // Counted once per chunk: only the call whose commit took the items (a retried chunk is not counted twice).
     if (outcome === 'committed' || outcome === 'finished') await store.stats.recordFits(fitSeconds, tally.failed)
     // Before the input is deleted, so a failed emit retries the chunk (the commit is then a no-op).

@@ -628,6 +628,86 @@ export interface paths {
         patch?: never;
         trace?: never;
     };
+    "/v1/worklist": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * SKUs that need a planner's look, and why
+         * @description Ordered by SKU. biased: the tracking signal flags the forecasts (see GET /v1/accuracy/exceptions); large-change: the newest published forecast's summed common periods moved by WORKLIST_CHANGE_PERCENT (default 25 %, our default, not a standard) or more from the previous published forecast; failed: the newest publishing run could not forecast the SKU; short-history: the published forecast carries the warning short-history. Each is a prompt to review the forecast before ordering on it, not a verdict. Snoozed SKUs are left out unless includeSnoozed=true, so a page may hold fewer than limit items.
+         */
+        get: operations["listWorklist"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/worklist/counts": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        /**
+         * SKUs on the worklist per kind
+         * @description Snoozed SKUs included; a SKU of two kinds counts under both. biased: the tracking signal flags the forecasts (see GET /v1/accuracy/exceptions); large-change: the newest published forecast's summed common periods moved by WORKLIST_CHANGE_PERCENT (default 25 %, our default, not a standard) or more from the previous published forecast; failed: the newest publishing run could not forecast the SKU; short-history: the published forecast carries the warning short-history.
+         */
+        get: operations["countWorklist"];
+        put?: never;
+        post?: never;
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/worklist/{sku}/acknowledge": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        /**
+         * Acknowledge a SKU on the worklist, with a note
+         * @description Marks the SKU as seen, whatever its kinds; it stays listed with the note. Either lasts until a newer run publishes (or fails) the SKU. A biased SKU's accuracy exception gets the same review. 404 when the SKU is not on the worklist.
+         */
+        post: operations["acknowledgeWorklistItem"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
+    "/v1/worklist/{sku}/snooze": {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        get?: never;
+        put?: never;
+        /**
+         * Snooze a SKU on the worklist until its next run
+         * @description Hides the SKU from the worklist, whatever its kinds. Either lasts until a newer run publishes (or fails) the SKU. A biased SKU's accuracy exception gets the same review. 404 when the SKU is not on the worklist.
+         */
+        post: operations["snoozeWorklistItem"];
+        delete?: never;
+        options?: never;
+        head?: never;
+        patch?: never;
+        trace?: never;
+    };
     "/v1/closed-periods": {
         parameters: {
             query?: never;
@@ -827,6 +907,8 @@ export interface components {
             /** @description Who: the planner, or the system sending it */
             author: string;
         };
+        /** @enum {string} */
+        WorklistKindInput: "biased" | "large-change" | "failed" | "short-history";
         /** @description Fields of the create body to change, and paused. A field given replaces the stored one whole (scope and replenishment included); null removes an optional field so its default applies again. The result is checked exactly as a new schedule. */
         SchedulePatchInput: {
             horizon?: number | null;
@@ -1666,6 +1748,57 @@ export interface components {
             }[];
             /** @description null on the last page */
             nextCursor: string | null;
+        };
+        /** @enum {string} */
+        WorklistKind: "biased" | "large-change" | "failed" | "short-history";
+        WorklistReview: {
+            /**
+             * @description acknowledged: seen, stays listed with the note; snoozed: hidden unless includeSnoozed
+             * @enum {string}
+             */
+            state: "acknowledged" | "snoozed";
+            note: string;
+            /** @description When it was acknowledged or snoozed */
+            at: string;
+            /** @description The run it was made on: the review ends when a newer run publishes (or fails) the SKU */
+            runId: string | null;
+        };
+        WorklistItem: {
+            sku: string;
+            /** @description Why the SKU is listed; one or more */
+            kinds: components["schemas"]["WorklistKind"][];
+            /** @description For biased: the accuracy summary that flags the SKU */
+            trackingSignal: {
+                trackingSignal: number | null;
+                smoothedTrackingSignal: number | null;
+                scoredPeriods: number;
+                flaggedBy: string[];
+            } | null;
+            /** @description For large-change */
+            change: {
+                /** @description (new sum − previous sum) / |previous sum| over the common periods; null from a previous sum of 0 */
+                ratio: number | null;
+                /** @description The run of the previous published forecast */
+                previousRunId: string | null;
+                /** @description Periods both forecasts cover */
+                commonPeriods: number;
+            } | null;
+            /** @description For failed: the result item's failure (message cut to 300 characters) */
+            failure: {
+                code: string;
+                message: string;
+            } | null;
+            /** @description For short-history: periods of the history the run fitted */
+            historyLength: number | null;
+            /** @description The publishing run that decided large-change, failed and short-history; null for a SKU only biased */
+            runId: string | null;
+            review: components["schemas"]["WorklistReview"] | null;
+        };
+        WorklistCounts: {
+            biased: number;
+            "large-change": number;
+            failed: number;
+            "short-history": number;
         };
         Access: {
             /** @description true: every /v1 route needs Authorization: Bearer <key>; false: no keys are configured */
@@ -5874,6 +6007,382 @@ export interface operations {
                 headers: {
                     /** @description Bearer */
                     "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    listWorklist: {
+        parameters: {
+            query?: {
+                /** @description Items per page (1..1000, default 100) */
+                limit?: number;
+                /** @description nextCursor of the previous page; a cursor this API did not issue is a 400 */
+                cursor?: string;
+                kind?: components["schemas"]["WorklistKindInput"];
+                /** @description Also list snoozed SKUs */
+                includeSnoozed?: "true" | "false";
+            };
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": {
+                        items: components["schemas"]["WorklistItem"][];
+                        /** @description Pass back as cursor for the next page; null on the last page */
+                        nextCursor: string | null;
+                    };
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    countWorklist: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path?: never;
+            cookie?: never;
+        };
+        requestBody?: never;
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["WorklistCounts"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    acknowledgeWorklistItem: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": {
+                    /**
+                     * @description Why, for the next planner (up to 2000 characters)
+                     * @default
+                     */
+                    note?: string;
+                };
+            };
+        };
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["WorklistItem"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Too many requests (rate-limited) */
+            429: {
+                headers: {
+                    /** @description Seconds until the tenant may send again */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Internal Server Error (internal) */
+            500: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Service not ready (not-ready) */
+            503: {
+                headers: {
+                    /** @description Seconds to wait before retrying, when Redis is unreachable */
+                    "Retry-After"?: number;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+        };
+    };
+    snoozeWorklistItem: {
+        parameters: {
+            query?: never;
+            header?: never;
+            path: {
+                /** @description Stock-keeping unit code, unique within the tenant */
+                sku: string;
+            };
+            cookie?: never;
+        };
+        requestBody: {
+            content: {
+                "application/json": {
+                    /**
+                     * @description Why, for the next planner (up to 2000 characters)
+                     * @default
+                     */
+                    note?: string;
+                };
+            };
+        };
+        responses: {
+            /** @description OK */
+            200: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/json": components["schemas"]["WorklistItem"];
+                };
+            };
+            /** @description Bad request (bad-request); Validation failed (validation-failed); Malformed JSON (malformed-json) */
+            400: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unauthorized (unauthorized) */
+            401: {
+                headers: {
+                    /** @description Bearer */
+                    "WWW-Authenticate"?: string;
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Not found (not-found) */
+            404: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Payload too large (payload-too-large) */
+            413: {
+                headers: {
+                    [name: string]: unknown;
+                };
+                content: {
+                    "application/problem+json": components["schemas"]["Problem"];
+                };
+            };
+            /** @description Unsupported media type (unsupported-media-type) */
+            415: {
+                headers: {
                     [name: string]: unknown;
                 };
                 content: {

@@ -54,6 +54,10 @@ describe('OpenAPI document', () => {
       '/v1/skus/{sku}/value-added',
       '/v1/tags',
       '/v1/value-added/by-tag',
+      '/v1/worklist',
+      '/v1/worklist/counts',
+      '/v1/worklist/{sku}/acknowledge',
+      '/v1/worklist/{sku}/snooze',
     ])
     expect(doc.paths['/v1/runs'].post.responses['202']).toBeDefined()
     expect(doc.paths['/v1/runs/{runId}'].delete.responses['404'].content['application/problem+json']).toBeDefined()

@@ -80,6 +80,29 @@ describe('chunk processor', () => {
     expect((await store.getRun('acme', 'p-3'))?.progress.done).toBe(0)
   })
 
+  it('a publishing chunk records the worklist once: a retried chunk changes nothing, the next run clears what no longer holds', async () => {
+    const long = syntheticSeries(1, 36, 'GLOVE')[0]!
+    const series = [long, { sku: 'SEED-NEW', demand: [4, 5, 6, 5] }, { sku: 'HOSE-NEG', demand: [3, -2, 4, 5, 6, 4, 5, 3, 4, 5, 6, 4] }]
+    await store.createRun('acme', 'p-4', runRequest(series, { publish: true }), 3, new Date(1_000))
+    const k = runKeys(prefix, 'acme', 'p-4')
+    const input = await redis.get(k.input(0))
+    const process = processor()
+    expect(await process(job('p-4', 0))).toMatchObject({ outcome: 'finished', failed: 1 })
+    const listed = async () => Object.fromEntries((await store.worklist.entries('acme', series.map((s) => s.sku))).map((e) => [e!.sku, [e!.runId, e!.kinds]]))
+    const first = { [long.sku]: ['p-4', []], 'SEED-NEW': ['p-4', ['short-history']], 'HOSE-NEG': ['p-4', ['failed']] }
+    expect(await listed()).toEqual(first)
+    // The same chunk again, as after a crash before its input was deleted.
+    await redis.set(k.input(0), input!)
+    expect(await process(job('p-4', 0))).toMatchObject({ outcome: 'succeeded' })
+    expect(await listed()).toEqual(first)
+    expect(await store.worklist.counts('acme')).toEqual({ 'large-change': 0, failed: 1, 'short-history': 1 })
+    // A newer run with the negative value corrected: HOSE-NEG leaves the list; the same demand is no large change.
+    const fixed = series.map((s) => (s.sku === 'HOSE-NEG' ? { ...s, demand: s.demand.map((v) => Math.abs(v!)) } : s))
+    await store.createRun('acme', 'p-5', runRequest(fixed, { publish: true }), 3, new Date(2_000))
+    expect(await process(job('p-5', 0))).toMatchObject({ outcome: 'finished', failed: 0 })
+    expect(await listed()).toEqual({ [long.sku]: ['p-5', []], 'SEED-NEW': ['p-5', ['short-history']], 'HOSE-NEG': ['p-5', []] })
+  })
+
   it('refuses job data of the wrong shape without retrying', async () => {
     const bad = { id: 'x', data: { tenant: 'acme' } } as unknown as Job
     await expect(processor()(bad)).rejects.toMatchObject({ name: 'UnrecoverableError' })

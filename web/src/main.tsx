@@ -8,6 +8,7 @@ import { SignIn } from './pages/sign-in'
 import { SkuList } from './pages/sku-list'
 import { SkuPage } from './pages/sku-page'
 import { Upload } from './pages/upload'
+import { Worklist } from './pages/worklist'
 import { Link, hrefs, useRoute, type Route } from './router'
 
 type Access = { state: 'checking' } | { state: 'failed'; message: string } | { state: 'ready'; keyRequired: boolean }
@@ -18,6 +19,7 @@ const TITLES: Record<Route['page'], string> = {
   skus: 'SKUs',
   sku: 'SKU',
   upload: 'Upload',
+  worklist: 'Worklist',
   'not-found': 'Not found',
 }
 
@@ -33,6 +35,8 @@ function Page({ route }: { route: Route }) {
       return <SkuPage sku={route.sku} />
     case 'upload':
       return <Upload />
+    case 'worklist':
+      return <Worklist kind={route.kind} />
     case 'not-found':
       return (
         <>
@@ -45,7 +49,7 @@ function Page({ route }: { route: Route }) {
   }
 }
 
-function NavLink({ href, current, icon, children }: { href: string; current: boolean; icon: 'overview' | 'list' | 'upload'; children: string }) {
+function NavLink({ href, current, icon, children }: { href: string; current: boolean; icon: 'overview' | 'list' | 'upload' | 'flag'; children: string }) {
   return (
     <Link href={href} class="nav-link" aria-current={current ? 'page' : undefined}>
       <Icon name={icon} /> {children}
@@ -111,6 +115,9 @@ function App() {
           </NavLink>
           <NavLink href={hrefs.skus()} current={route.page === 'skus' || route.page === 'sku'} icon="list">
             SKUs
+          </NavLink>
+          <NavLink href={hrefs.worklist()} current={route.page === 'worklist'} icon="flag">
+            Worklist
           </NavLink>
           <NavLink href={hrefs.upload()} current={route.page === 'upload'} icon="upload">
             Upload

@@ -14,6 +14,7 @@ export type Route =
   | { readonly page: 'skus'; readonly prefix: string; readonly tag: string }
   | { readonly page: 'sku'; readonly sku: string }
   | { readonly page: 'upload' }
+  | { readonly page: 'worklist'; readonly kind: string }
   | { readonly page: 'not-found'; readonly path: string }
 
 export function parseRoute(pathname: string, search: string): Route {
@@ -22,6 +23,7 @@ export function parseRoute(pathname: string, search: string): Route {
   if (path === '' || path === '/') return { page: 'overview' }
   if (path === '/skus' || path === '/skus/') return { page: 'skus', prefix: query.get('prefix') ?? '', tag: query.get('tag') ?? '' }
   if (path === '/upload') return { page: 'upload' }
+  if (path === '/worklist' || path === '/worklist/') return { page: 'worklist', kind: query.get('kind') ?? '' }
   const sku = /^\/skus\/(.+)$/.exec(path)
   if (sku) return { page: 'sku', sku: decodeURIComponent(sku[1]!) }
   const run = /^\/runs\/([A-Za-z0-9_-]+)$/.exec(path)
@@ -41,6 +43,7 @@ export const hrefs = {
   },
   sku: (sku: string) => `${BASE}/skus/${encodeURIComponent(sku)}`,
   upload: () => `${BASE}/upload`,
+  worklist: (kind = '') => `${BASE}/worklist${kind ? `?kind=${encodeURIComponent(kind)}` : ''}`,
 }
 
 const listeners = new Set<() => void>()

@@ -211,3 +211,25 @@ export interface TagValueAdded extends SkuValueAdded {
   readonly tag: string
   readonly skus: number
 }
+
+export type WorklistKind = 'biased' | 'large-change' | 'failed' | 'short-history'
+export const WORKLIST_KINDS: readonly WorklistKind[] = ['biased', 'large-change', 'failed', 'short-history']
+
+export interface WorklistReview {
+  readonly state: 'acknowledged' | 'snoozed'
+  readonly note: string
+  readonly at: string
+}
+
+/** GET /v1/worklist items. */
+export interface WorklistItem {
+  readonly sku: string
+  readonly kinds: readonly WorklistKind[]
+  readonly trackingSignal: { readonly trackingSignal: number | null; readonly smoothedTrackingSignal: number | null; readonly scoredPeriods: number } | null
+  readonly change: { readonly ratio: number | null; readonly commonPeriods: number } | null
+  readonly failure: Failure | null
+  readonly historyLength: number | null
+  readonly review: WorklistReview | null
+}
+
+export type WorklistCounts = Readonly<Record<WorklistKind, number>>

@@ -62,6 +62,7 @@ export default fp(
           { name: 'runs', description: 'Asynchronous forecast runs for many SKUs: submit, poll, page the results, cancel' },
           { name: 'histories', description: 'Stored demand histories: one SKU at a time or bulk uploads (JSON, NDJSON, CSV)' },
           { name: 'accuracy', description: 'How forecasts did once actual demand arrived' },
+          { name: 'worklist', description: 'What needs a planner\'s look: biased, largely changed, failed and short-history SKUs' },
           { name: 'schedules', description: 'Runs that start by themselves over stored histories' },
           { name: 'callbacks', description: 'Signed notifications when runs end, and their delivery log' },
           { name: 'operations', description: 'Liveness and readiness' },

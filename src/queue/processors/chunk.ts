@@ -24,6 +24,7 @@ export const SandboxContext = z.object({
   resultTtlSeconds: z.number().int().positive(),
   recordTtlSeconds: z.number().int().positive(),
   publishedKept: z.number().int().positive().optional(),
+  worklistChangePercent: z.number().int().positive().optional(),
   logLevel: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']),
   /** Niceness of this thread; absent: FITTING_NICENESS (the express lane's thread runs nicer to small runs). */
   niceness: z.number().int().min(0).max(19).optional(),
@@ -41,6 +42,7 @@ const store = new RunStore(redis, {
   resultTtlSeconds: ctx.resultTtlSeconds,
   recordTtlSeconds: ctx.recordTtlSeconds,
   ...(ctx.publishedKept === undefined ? {} : { publishedKept: ctx.publishedKept }),
+  ...(ctx.worklistChangePercent === undefined ? {} : { worklistChangePercent: ctx.worklistChangePercent }),
 })
 
 const events = createRunEventEmitter(redis, ctx.queuePrefix, logger)

@@ -12,6 +12,7 @@ import {
   type TrackingOptions,
 } from '../../engine/index.js'
 import { decodeCursor, encodeCursor } from '../paging.js'
+import { REVIEW_STATES, type Review, type ReviewState } from '../../runs/review.js'
 import { isValidTenant } from '../keys.js'
 import type { PublishedPoints } from '../items/latest-record.js'
 import type { RunStore } from '../runs/run-store.js'
@@ -87,8 +88,7 @@ export interface ScoredRecord {
   readonly deviation: number
 }
 
-export const REVIEW_STATES = ['acknowledged', 'snoozed'] as const
-export type ReviewState = (typeof REVIEW_STATES)[number]
+export { REVIEW_STATES, type Review, type ReviewState } from '../../runs/review.js'
 
 const ReviewRecord = z.object({
   state: z.enum(REVIEW_STATES),
@@ -97,7 +97,6 @@ const ReviewRecord = z.object({
   /** The SKU's newest published run when it was snoozed: the snooze ends when a newer one is published. */
   runId: z.string().nullable(),
 })
-export type Review = z.infer<typeof ReviewRecord>
 
 export type SkuAccuracy = AccuracySummary & { readonly sku: string; readonly updatedAt: string }
 export type ExceptionItem = SkuAccuracy & { readonly review: Review | null }
@@ -350,6 +349,18 @@ export class AccuracyStore {
       items.push({ ...decodeJson(SkuAccuracyRecord, json, 'accuracy summary'), review })
     })
     return { items, nextCursor }
+  }
+
+  /** Up to `n` flagged SKUs after `after` (byte order; null: from the start), for the worklist. */
+  async flaggedAfter(tenant: string, after: string | null, n: number): Promise<string[]> {
+    if (!isValidTenant(tenant)) return []
+    return this.redis.zrangebylex(`${this.base(tenant)}:exceptions`, after === null ? '-' : `(${after}`, '+', 'LIMIT', 0, n)
+  }
+
+  /** How many SKUs are flagged (snoozed ones included). */
+  async flaggedCount(tenant: string): Promise<number> {
+    if (!isValidTenant(tenant)) return 0
+    return this.redis.zcard(`${this.base(tenant)}:exceptions`)
   }
 
   /**

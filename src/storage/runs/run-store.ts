@@ -33,17 +33,22 @@ import {
   type RunStatus,
 } from '../../runs/contract.js'
 import type { ChunkTally } from '../../runs/tally.js'
+import { WorklistStore } from '../worklist/worklist-store.js'
+import { DEFAULT_CHANGE_PERCENT } from '../../runs/worklist.js'
 
 /** Run record TTL relative to result retention: summaries outlive results. */
 export const RECORD_TTL_FACTOR = 2
 
 /** Retention settings of the run store, from config (RESULT_RETENTION_SECONDS). */
-export function runStoreOptions(config: Pick<Config, 'redisPrefix' | 'resultRetentionSeconds' | 'publishedForecastsKept'>): RunStoreOptions {
+export function runStoreOptions(
+  config: Pick<Config, 'redisPrefix' | 'resultRetentionSeconds' | 'publishedForecastsKept' | 'worklistChangePercent'>,
+): RunStoreOptions {
   return {
     prefix: config.redisPrefix,
     resultTtlSeconds: config.resultRetentionSeconds,
     recordTtlSeconds: config.resultRetentionSeconds * RECORD_TTL_FACTOR,
     publishedKept: config.publishedForecastsKept ?? DEFAULT_PUBLISHED_KEPT,
+    worklistChangePercent: config.worklistChangePercent ?? DEFAULT_CHANGE_PERCENT,
   }
 }
 
@@ -58,6 +63,8 @@ export interface RunStoreOptions {
   readonly recordTtlSeconds: number
   /** Published forecasts kept per SKU (accuracy at a fixed lag); default DEFAULT_PUBLISHED_KEPT. */
   readonly publishedKept?: number
+  /** Large-change threshold of the worklist in percent (WORKLIST_CHANGE_PERCENT); default DEFAULT_CHANGE_PERCENT. */
+  readonly worklistChangePercent?: number
 }
 
 export const COMMIT_OUTCOMES = ['committed', 'finished', 'duplicate', 'missing', 'cancelled', 'failed', 'succeeded'] as const
@@ -78,6 +85,8 @@ export class RunStore {
   readonly stats: RunStats
   /** The tenant's runs by creation time (GET /v1/runs). */
   readonly index: RunIndex
+  /** The run-decided part of the planners' worklist, written after a publishing chunk (runs/worklist-service.ts). */
+  readonly worklist: WorklistStore
 
   constructor(
     private readonly redis: RedisClient,
@@ -86,6 +95,12 @@ export class RunStore {
     this.scripts = defineRunScripts(redis)
     this.stats = new RunStats(redis, opts.prefix)
     this.index = new RunIndex(redis, opts)
+    this.worklist = new WorklistStore(redis, { prefix: opts.prefix })
+  }
+
+  /** The worklist's large-change threshold in percent (runs/worklist.ts). */
+  get worklistChangePercent(): number {
+    return this.opts.worklistChangePercent ?? DEFAULT_CHANGE_PERCENT
   }
 
   private keys(tenant: string, runId: string) {
@@ -195,13 +210,21 @@ export class RunStore {
     now: Date,
     /** The run's `publish` setting; a what-if run (false) writes no latest or published record. */
     publish = false,
+    /**
+     * Runs after a publishing chunk's forecasts are published, before the chunk is counted
+     * (the worklist); given the run's createdAt. Must be idempotent: a retried chunk runs it again.
+     */
+    afterPublish?: (createdAtMs: number) => Promise<void>,
   ): Promise<CommitOutcome> {
     const k = this.keys(tenant, runId)
     const stored: (string | number | Buffer)[] = [this.opts.resultTtlSeconds]
     for (const item of items) stored.push(item.sku, item.stored)
     const [step, createdAt] = await this.scripts.storeItems([k.run, k.skus, k.items], stored)
     if (step !== 'stored' && step !== 'succeeded') return oneOf(COMMIT_OUTCOMES, step, 'storeItems outcome')
-    if (publish) await this.updateLatest(tenant, runId, Date.parse(createdAt), now, items)
+    if (publish) {
+      await this.updateLatest(tenant, runId, Date.parse(createdAt), now, items)
+      await afterPublish?.(Date.parse(createdAt))
+    }
     if (step === 'succeeded') return 'succeeded'
     const args: (string | number)[] = [
       chunkIndex,
@@ -282,13 +305,14 @@ export class RunStore {
   }
 
   /**
-   * Forget a SKU's latest forecast and its kept published forecasts (its history was deleted),
+   * Forget a SKU's latest forecast, its kept published forecasts and its worklist entry (its history was deleted),
    * so a SKU created again under the same code is never scored against them; the run's own
    * results stay until they expire.
    */
   async forgetLatest(tenant: string, sku: string): Promise<void> {
     if (!isValidTenant(tenant)) return
     await this.redis.multi().hdel(latestKey(this.opts.prefix, tenant), sku).hdel(publishedKey(this.opts.prefix, tenant), sku).exec()
+    await this.worklist.forget(tenant, sku)
   }
 
   /**

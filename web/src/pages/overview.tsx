@@ -1,12 +1,13 @@
 import { useEffect, useState } from 'preact/hooks'
-import { describeError, getJson } from '../api'
+import { ApiError, describeError, getJson } from '../api'
 import { formatNumber, formatTime } from '../format'
 import { Link, hrefs, navigate } from '../router'
 import { followRun, followedRuns, unfollowRun } from '../run-poll'
 import { useAsync } from '../use-async'
-import type { Page, Run, SkuSummary } from '../types'
+import { WORKLIST_KINDS, type Page, type Run, type SkuSummary, type WorklistCounts } from '../types'
 import { RunCard, StatusBadge } from './run-card'
 import { TagFigures } from './tag-figures'
+import { KIND_LABELS } from './worklist'
 
 /** Recent runs listed on the overview (GET /v1/runs, newest first). */
 const RECENT = 6
@@ -66,6 +67,43 @@ function RecentRuns({ runs }: { runs: readonly Run[] }) {
   )
 }
 
+/** What needs attention: SKUs on the worklist per kind, each linking to the filtered worklist. */
+function Attention() {
+  const counts = useAsync((signal) => getJson<WorklistCounts>('/v1/worklist/counts', signal), [])
+  return (
+    <section aria-labelledby="attention-heading">
+      <h2 id="attention-heading">Needs attention</h2>
+      {counts.state === 'loading' ? <p class="muted">Counting…</p> : null}
+      {counts.state === 'failed' && counts.error instanceof ApiError && counts.error.status === 503 ? (
+        <p class="muted">This server keeps no worklist (its accuracy services are not configured).</p>
+      ) : null}
+      {counts.state === 'failed' && !(counts.error instanceof ApiError && counts.error.status === 503) ? (
+        <p class="error" role="alert">
+          Could not count the worklist: {describeError(counts.error)}
+        </p>
+      ) : null}
+      {counts.state === 'done' ? (
+        <dl class="figures" data-testid="attention">
+          {WORKLIST_KINDS.map((k) => (
+            <div key={k} class={counts.value[k] > 0 ? 'figure-alert' : undefined}>
+              <dt>{KIND_LABELS[k]}</dt>
+              <dd>
+                <Link href={hrefs.worklist(k)} data-kind={k}>
+                  {formatNumber(counts.value[k])} SKU{counts.value[k] === 1 ? '' : 's'}
+                </Link>
+              </dd>
+            </div>
+          ))}
+        </dl>
+      ) : null}
+      <p class="muted small">
+        Biased: the tracking signal flags the forecasts. Large change: the newest forecast moved from the previous one. Failed
+        fit: the last run could not forecast the SKU. Short history: a new product, too few periods to check the model.
+      </p>
+    </section>
+  )
+}
+
 export function Overview() {
   const latest = useAsync(findLatestRuns, [])
   const [followed, setFollowed] = useState(followedRuns)
@@ -88,6 +126,7 @@ export function Overview() {
   return (
     <>
       <h1 tabIndex={-1}>Overview</h1>
+      <Attention />
       <section aria-labelledby="latest-heading">
         <h2 id="latest-heading">Latest run</h2>
         {latest.state === 'loading' ? <p class="muted">Looking for the latest forecast run…</p> : null}

@@ -16,6 +16,8 @@ import historyPlugin from './plugins/history.js'
 import idempotencyPlugin from './plugins/idempotency.js'
 import metricsPlugin from './plugins/metrics.js'
 import rateLimitPlugin from './plugins/rate-limit.js'
+import requestEncodingPlugin from './plugins/request-encoding.js'
+import responseEncodingPlugin from './plugins/response-encoding.js'
 import swaggerPlugin from './plugins/swagger.js'
 import forecastRoutes from './routes/forecast.js'
 import syncFitsPlugin from './plugins/sync-fits.js'
@@ -139,9 +141,13 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   await app.register(metricsPlugin)
   await app.register(authPlugin, { redis: deps.rateLimitRedis })
   await app.register(rateLimitPlugin, { redis: deps.rateLimitRedis })
+  // After auth and the rate limit (onRequest): only a known, counted request's body is decompressed.
+  await app.register(requestEncodingPlugin)
   await app.register(historyPlugin, { histories: deps.histories })
   await app.register(idempotencyPlugin, { store: deps.idempotency })
   await app.register(etagPlugin)
+  // After the ETag plugin: the tag is computed on the plain body, then the body is compressed.
+  await app.register(responseEncodingPlugin)
   await app.register(erpPlugin, { erp: deps.erp })
   await app.register(adjustmentsPlugin, { adjustments: deps.adjustments })
 

@@ -50,7 +50,10 @@ function operations(doc: OpenApiDoc): OpenApiOperation[] {
   return Object.values(paths ?? {}).flatMap((item) => Object.values(item))
 }
 
-/** Conditional reads (`x-etag`) and Idempotency-Key (routes whose problems include its two), as parameters and headers. */
+/**
+ * Conditional reads (`x-etag`), Idempotency-Key (routes whose problems include its two) and
+ * Content-Encoding (routes that take a body), as parameters and headers.
+ */
 export function protocolHeaders(doc: OpenApiDoc): OpenApiDoc {
   for (const op of operations(doc)) {
     const responses = (op.responses ??= {})
@@ -60,7 +63,7 @@ export function protocolHeaders(doc: OpenApiDoc): OpenApiDoc {
         ...(op.parameters ?? []),
         { in: 'header', name: 'If-None-Match', required: false, description: 'ETag of a copy you hold: 304 when unchanged', schema: { type: 'string' } },
       ]
-      for (const s of success) responses[s]!.headers = { ...responses[s]!.headers, ETag: header('Strong tag of this answer\'s body') }
+      for (const s of success) responses[s]!.headers = { ...responses[s]!.headers, ETag: header('Tag of this answer\'s body: strong, or its weak form W/"..." when the answer is gzip-compressed') }
       responses['304'] = { description: 'Not modified: If-None-Match matches the current ETag (no body)', headers: { ETag: header('The current tag') } }
     }
     if (op['x-problems']?.includes('idempotency-key-in-use')) {
@@ -79,6 +82,20 @@ export function protocolHeaders(doc: OpenApiDoc): OpenApiDoc {
       for (const s of success) {
         responses[s]!.headers = { ...responses[s]!.headers, 'Almanac-Reused-Answer': header('true when this is the stored answer to an earlier request with the same Idempotency-Key') }
       }
+    }
+    if (op.requestBody !== undefined || op['x-requestBodies'] !== undefined) {
+      op.parameters = [
+        ...(op.parameters ?? []),
+        {
+          in: 'header',
+          name: 'Content-Encoding',
+          required: false,
+          description:
+            'gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the ' +
+            'decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415',
+          schema: { type: 'string', enum: ['gzip', 'x-gzip', 'identity'] },
+        },
+      ]
     }
     delete op['x-etag']
   }

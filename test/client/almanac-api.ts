@@ -2083,7 +2083,10 @@ export interface operations {
     forecastSeries: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path?: never;
             cookie?: never;
         };
@@ -2260,6 +2263,8 @@ export interface operations {
             header?: {
                 /** @description Any 1-255 visible ASCII characters. The same key with the same request answers the first answer again (with Almanac-Reused-Answer: true); with another request it is a 422; while the first is in flight a 409 */
                 "Idempotency-Key"?: string;
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
             };
             path?: never;
             cookie?: never;
@@ -2471,7 +2476,7 @@ export interface operations {
             /** @description OK */
             200: {
                 headers: {
-                    /** @description Strong tag of this answer's body */
+                    /** @description Tag of this answer's body: strong, or its weak form W/"..." when the answer is gzip-compressed */
                     ETag?: string;
                     [name: string]: unknown;
                 };
@@ -2769,7 +2774,7 @@ export interface operations {
             /** @description OK */
             200: {
                 headers: {
-                    /** @description Strong tag of this answer's body */
+                    /** @description Tag of this answer's body: strong, or its weak form W/"..." when the answer is gzip-compressed */
                     ETag?: string;
                     [name: string]: unknown;
                 };
@@ -2945,7 +2950,7 @@ export interface operations {
             /** @description OK */
             200: {
                 headers: {
-                    /** @description Strong tag of this answer's body */
+                    /** @description Tag of this answer's body: strong, or its weak form W/"..." when the answer is gzip-compressed */
                     ETag?: string;
                     [name: string]: unknown;
                 };
@@ -3027,7 +3032,10 @@ export interface operations {
     putSkuHistory: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path: {
                 /** @description Stock-keeping unit code, unique within the tenant */
                 sku: string;
@@ -3367,6 +3375,8 @@ export interface operations {
             header?: {
                 /** @description Any 1-255 visible ASCII characters. The same key with the same request answers the first answer again (with Almanac-Reused-Answer: true); with another request it is a 422; while the first is in flight a 409 */
                 "Idempotency-Key"?: string;
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
             };
             path?: never;
             cookie?: never;
@@ -3691,7 +3701,10 @@ export interface operations {
     createCallback: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path?: never;
             cookie?: never;
         };
@@ -4163,7 +4176,10 @@ export interface operations {
     createSchedule: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path?: never;
             cookie?: never;
         };
@@ -4981,7 +4997,10 @@ export interface operations {
     adjustSkuForecast: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path: {
                 /** @description Stock-keeping unit code, unique within the tenant */
                 sku: string;
@@ -5106,7 +5125,10 @@ export interface operations {
     putSkuAdjustment: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path: {
                 /** @description Stock-keeping unit code, unique within the tenant */
                 sku: string;
@@ -5601,7 +5623,10 @@ export interface operations {
     acknowledgeAccuracyException: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path: {
                 /** @description Stock-keeping unit code, unique within the tenant */
                 sku: string;
@@ -5712,7 +5737,10 @@ export interface operations {
     snoozeAccuracyException: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path: {
                 /** @description Stock-keeping unit code, unique within the tenant */
                 sku: string;
@@ -6496,7 +6524,10 @@ export interface operations {
     closePeriod: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path: {
                 frequency: "day" | "week" | "month" | "quarter" | "year";
             };

@@ -44,7 +44,7 @@ describe('GET /v1/runs/{runId}/results as CSV', () => {
     const res = await csv()
     expect(res.statusCode).toBe(200)
     expect(res.headers['content-type']).toBe('text/csv; charset=utf-8')
-    expect(res.headers.vary).toBe('accept')
+    expect(res.headers.vary).toBe('accept, Accept-Encoding')
     const rows = parse(res.body, { columns: true }) as Record<string, string>[]
     expect(Object.keys(rows[0]!)).toEqual([
       'sku', 'period', 'demand', 'low80', 'high80', 'low95', 'high95', 'model', 'rankBy', 'holdoutError', 'failure',

@@ -42,6 +42,9 @@ supply shocks and new competitors are not in that data. Review every forecast
 Small batches: \`POST /v1/forecast\` answers at once. Large batches:
 \`POST /v1/runs\`, then poll the run and page its results.
 
+Bodies may be sent gzip-compressed (\`Content-Encoding: gzip\`); answers are
+gzip-compressed for clients that send \`Accept-Encoding: gzip\`.
+
 Errors are RFC 9457 problem details (\`${PROBLEM_CONTENT_TYPE}\`) with a
 \`type\` under ${PROBLEM_BASE_URI}; validation failures list each offending
 field as \`series[3].demand[2]\`.`

@@ -13,6 +13,13 @@ const boolFromEnv = (def: boolean) =>
     .default(def ? 'true' : 'false')
     .transform((v) => v === 'true' || v === '1')
 
+/**
+ * Default requests per tenant per minute. A dashboard polling 50 runs once a
+ * second is 3,000 a minute even if every answer changed (unchanged ones, 304,
+ * are not counted at all); twice that leaves room for the tenant's other calls.
+ */
+export const DEFAULT_RATE_LIMIT_MAX = 6000
+
 export const ConfigSchema = z.object({
   PORT: intFromEnv(8080, 0, 65535),
   /** Default depends on whether API keys are configured (see loadConfig). */
@@ -72,8 +79,8 @@ export const ConfigSchema = z.object({
   METRICS_CACHE_MS: intFromEnv(5000, 0, 300_000),
   /** When set, GET /metrics needs `Authorization: Bearer <this token>` (at least 16 characters). */
   METRICS_TOKEN: z.string().min(16).optional(),
-  /** Requests per tenant per window. */
-  RATE_LIMIT_MAX: intFromEnv(600, 1, 1_000_000),
+  /** Requests per tenant per window (304 answers and static files are not counted). */
+  RATE_LIMIT_MAX: intFromEnv(DEFAULT_RATE_LIMIT_MAX, 1, 1_000_000),
   RATE_LIMIT_WINDOW_MS: intFromEnv(60_000, 1000, 3_600_000),
   /** Failed authentications per client address per window before further attempts get 429. */
   AUTH_FAILURE_MAX: intFromEnv(20, 1, 1_000_000),

@@ -27,7 +27,7 @@ describe('loadConfig', () => {
     expect(c.apiKeys.size).toBe(0)
     expect(c.bodyLimitBytes).toBe(64 * 1024 * 1024)
     expect(c.syncMaxSeries).toBe(100)
-    expect(c.rateLimitMax).toBe(600)
+    expect(c.rateLimitMax).toBe(6000)
     expect(c.rateLimitWindowMs).toBe(60_000)
     expect(c.runWorker).toBe(true)
   })

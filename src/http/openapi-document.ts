@@ -1,4 +1,4 @@
-import type { Config } from '../config.js'
+import { DEFAULT_RATE_LIMIT_MAX, type Config } from '../config.js'
 import type { RunGateway } from '../runs/contract.js'
 import { build } from './app.js'
 
@@ -15,7 +15,7 @@ const DOC_CONFIG: Config = {
   resultRetentionSeconds: 3600,
   bodyLimitBytes: 64 * 1024 * 1024,
   syncMaxSeries: 100,
-  rateLimitMax: 600,
+  rateLimitMax: DEFAULT_RATE_LIMIT_MAX,
   rateLimitWindowMs: 60_000,
   logLevel: 'silent',
 }

@@ -1,4 +1,4 @@
-import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest'
 import { createHash } from 'node:crypto'
 import type { FastifyInstance } from 'fastify'
 import { Redis } from 'ioredis'
@@ -6,6 +6,7 @@ import { build } from '../../src/http/app.js'
 import type { RunGateway } from '../../src/runs/contract.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../helpers/redis.js'
 import { runsTestConfig } from '../queue/fixtures.js'
+import { InMemoryGatewayDouble } from '../http/gateway-double.js'
 
 // Rate-limit counts kept in a real Redis and shared by two app instances (two API processes).
 const sha256 = (s: string) => createHash('sha256').update(s, 'utf8').digest('hex')
@@ -74,5 +75,32 @@ describe('rate limit in Redis', () => {
   it('keeps its counters under the service key prefix', async () => {
     const keys = await redis.keys(`${prefix}:rate-limit:*`)
     expect(keys.sort()).toEqual([`${prefix}:rate-limit:tenant:garden`, `${prefix}:rate-limit:tenant:heating`])
+  })
+})
+
+describe('304 answers and the Redis counts', () => {
+  it('refunds a 304 in Redis, so polling with If-None-Match leaves the budget as it was', async () => {
+    const gateway = new InMemoryGatewayDouble()
+    const config = runsTestConfig(url, `${prefix}-poll`, { apiKeys: new Map([['garden', [sha256(KEY)]]]), rateLimitMax: 4, rateLimitWindowMs: 30_000 })
+    const app = await build({ config, gateway, rateLimitRedis: redis })
+    try {
+      const headers = { authorization: `Bearer ${KEY}` }
+      const posted = await app.inject({ method: 'POST', url: '/v1/runs', headers, payload: { horizon: 1, series: [{ sku: 'RAKE', demand: [1, 2, 3] }] } })
+      expect(posted.statusCode).toBe(202)
+      const first = await app.inject({ url: `/v1/runs/${posted.json().id}`, headers })
+      expect(first.statusCode).toBe(200)
+      const counter = `${prefix}-poll:rate-limit:tenant:garden`
+      expect(await redis.get(counter)).toBe('2')
+      for (let i = 0; i < 8; i++) {
+        const poll = await app.inject({ url: `/v1/runs/${posted.json().id}`, headers: { ...headers, 'if-none-match': first.headers.etag as string } })
+        expect(poll.statusCode).toBe(304)
+      }
+      // onResponse runs after the answer is sent: wait for the last refund to land.
+      await vi.waitFor(async () => expect(await redis.get(counter)).toBe('2'))
+      expect(Number(await redis.pttl(counter))).toBeGreaterThan(0)
+    } finally {
+      await app.close()
+      await deleteKeys(url, `${prefix}-poll`)
+    }
   })
 })

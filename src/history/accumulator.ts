@@ -1,6 +1,7 @@
 import { MAX_ABS_VALUE, MAX_POINTS_PER_SERIES } from '../schemas/run.js'
 import type { Frequency } from '../engine/index.js'
 import { ErrorCollector } from './errors.js'
+import { normaliseTags } from './tags.js'
 import type { DuplicatePolicy, IncomingHistory, Origin } from './types.js'
 
 interface RowGroup {
@@ -8,6 +9,8 @@ interface RowGroup {
   readonly cells: Map<number, number>
   rows: number
   readonly firstLine: number | undefined
+  /** Tags the SKU's rows carried (a tags column or field); null when none of its rows carried any. */
+  tags: Set<string> | null
 }
 
 interface SeriesEntry {
@@ -29,6 +32,7 @@ export interface PendingHistory {
  * summed into buckets of one frequency (`duplicates: 'sum'`) or the last row of
  * a bucket wins (`'last'`); whole series are kept as given. Memory grows with
  * the distinct SKU-buckets of the upload, not with its size in bytes.
+ * Rows may carry tags: a SKU's tags become all the tags of its rows.
  * A SKU comes either as one series or as rows; a conflicting later item is rejected.
  */
 export class HistoryAccumulator {
@@ -64,7 +68,11 @@ export class HistoryAccumulator {
     if (hi > this.hi) this.hi = hi
   }
 
-  addRow(sku: string, ordinal: number, demand: number, origin: Origin, dated = false): void {
+  /**
+   * One long-layout row. `tags` (already validated): the row's tags, added to
+   * the SKU's; a SKU whose rows carry none keeps its stored tags.
+   */
+  addRow(sku: string, ordinal: number, demand: number, origin: Origin, dated = false, tags?: readonly string[]): void {
     const series = this.seriesBySku.get(sku)
     if (series) {
       this.errors.add({ ...origin, sku, reason: `SKU was already given as a whole series${where(series.origin)}` })
@@ -72,12 +80,16 @@ export class HistoryAccumulator {
     }
     let group = this.rowGroups.get(sku)
     if (!group) {
-      group = { cells: new Map(), rows: 0, firstLine: origin.line }
+      group = { cells: new Map(), rows: 0, firstLine: origin.line, tags: null }
       this.rowGroups.set(sku, group)
     }
     const before = group.cells.get(ordinal)
     group.cells.set(ordinal, this.opts.duplicates === 'sum' && before !== undefined ? before + demand : demand)
     group.rows++
+    if (tags !== undefined && tags.length > 0) {
+      group.tags ??= new Set()
+      for (const tag of tags) group.tags.add(tag)
+    }
     if (dated) this.rowKinds.dated++
     else this.rowKinds.period++
     this.widen(ordinal, ordinal)
@@ -135,7 +147,17 @@ export class HistoryAccumulator {
         this.errors.add({ ...origin, sku, reason: `a ${this.opts.frequency} total is larger than ${MAX_ABS_VALUE} in size` }, group.rows)
         continue
       }
-      yield { sku, incoming: { frequency: this.opts.frequency, startOrdinal: lo, demand }, rows: group.rows, origin }
+      let tags: string[] | undefined
+      if (group.tags !== null) {
+        const t = normaliseTags([...group.tags])
+        if ('reason' in t) {
+          this.errors.add({ ...origin, sku, column: 'tags', reason: `the rows' tags together: ${t.reason}` }, group.rows)
+          continue
+        }
+        tags = t.tags
+      }
+      const incoming = { frequency: this.opts.frequency, startOrdinal: lo, demand, ...(tags === undefined ? {} : { tags }) }
+      yield { sku, incoming, rows: group.rows, origin }
     }
     this.rowGroups.clear()
     this.seriesBySku.clear()

@@ -2,7 +2,7 @@ import type { Readable } from 'node:stream'
 import { CsvError, parse } from 'csv-parse'
 import type { HistoryAccumulator } from './accumulator.js'
 import { bucketOf } from './buckets.js'
-import { parseDemand, parseSku } from './cells.js'
+import { parseDemand, parseSku, parseTagsCell, type DecimalSeparator } from './cells.js'
 
 export interface CsvLayout {
   /** One character: `,`, `;` or a tab. */
@@ -11,6 +11,10 @@ export interface CsvLayout {
   readonly skuColumn: string
   readonly periodColumn: string
   readonly demandColumn: string
+  /** `comma`: demand cells are written `1,5` (the delimiter must then be `;` or a tab). Default `point`. */
+  readonly decimalSeparator?: DecimalSeparator
+  /** Header name of an optional column of tags (`category:garden|site:north`); absent: no tags column. */
+  readonly tagsColumn?: string
 }
 
 /** The upload as a whole cannot be read (e.g. a required column is missing). */
@@ -34,7 +38,8 @@ const MAX_RECORD_CHARS = 64 * 1024
  * records are parsed and aggregated as the bytes arrive (RFC 4180 quoting by csv-parse).
  * Each bad row is recorded with its line number, column and reason; good rows are kept.
  * A row with more cells than the header is refused: an unquoted `1,000` would otherwise
- * lose its thousands.
+ * lose its thousands. Demand uses the layout's decimal separator; a tags column, when
+ * named, gives each row's tags (separated by `|`).
  * A record the parser cannot delimit (over-long, or broken quoting) refuses the whole
  * upload: past such a record csv-parse cannot tell where the next one starts, and
  * skipping would drop the following rows without counting them.
@@ -64,7 +69,7 @@ async function readRecords(
   layout: CsvLayout,
   acc: HistoryAccumulator,
 ): Promise<void> {
-  let columns: { sku: number; period: number; demand: number } | null = null
+  let columns: { sku: number; period: number; demand: number; tags: number } | null = null
   let names: readonly string[] = []
   for await (const entry of records) {
     const { record, info } = entry
@@ -75,6 +80,7 @@ async function readRecords(
         sku: findColumn(names, layout.skuColumn, 'skuColumn'),
         period: findColumn(names, layout.periodColumn, 'periodColumn'),
         demand: findColumn(names, layout.demandColumn, 'demandColumn'),
+        tags: layout.tagsColumn === undefined ? -1 : findColumn(names, layout.tagsColumn, 'tagsColumn'),
       }
       continue
     }
@@ -100,12 +106,18 @@ async function readRecords(
       acc.errors.add({ line, column: names[columns.period], sku: sku.sku, reason: bucket.reason })
       continue
     }
-    const demand = parseDemand(record[columns.demand]!)
+    const demand = parseDemand(record[columns.demand]!, layout.decimalSeparator)
     if ('reason' in demand) {
       acc.errors.add({ line, column: names[columns.demand], sku: sku.sku, reason: demand.reason })
       continue
     }
-    acc.addRow(sku.sku, bucket.ordinal, demand.value, { line }, bucket.dated)
+    // A short row that stops before the tags column carries no tags.
+    const tags = columns.tags < 0 ? { tags: [] } : parseTagsCell(record[columns.tags] ?? '')
+    if ('reason' in tags) {
+      acc.errors.add({ line, column: names[columns.tags], sku: sku.sku, reason: tags.reason })
+      continue
+    }
+    acc.addRow(sku.sku, bucket.ordinal, demand.value, { line }, bucket.dated, tags.tags)
   }
   if (columns === null) throw new UploadFormatError('the CSV upload is empty: expected a header row', 'body')
 }

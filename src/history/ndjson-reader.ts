@@ -5,6 +5,10 @@ import { bucketOf } from './buckets.js'
 import { parseDemand, parseSku } from './cells.js'
 import { parseUploadSeries } from './series-item.js'
 import { UploadFormatError } from './csv-reader.js'
+import { normaliseTags } from './tags.js'
+
+/** The fields of a row line; `tags` optional. */
+const ROW_FIELDS = new Set(['sku', 'period', 'demand', 'tags'])
 
 /** Longest accepted NDJSON line (a series of 10,000 values fits easily). */
 const MAX_LINE_CHARS = 4 * 1024 * 1024
@@ -12,8 +16,8 @@ const MAX_LINE_CHARS = 4 * 1024 * 1024
 /**
  * Read NDJSON (one JSON object per line) into the accumulator, line by line as
  * bytes arrive. A line is either a whole series `{ sku, frequency?, firstPeriod,
- * demand, tags? }` or one row `{ sku, period, demand }` (period as in CSV:
- * a date or a period label). Blank lines are skipped; bad lines are recorded.
+ * demand, tags? }` or one row `{ sku, period, demand, tags? }` (period as in CSV:
+ * a date or a period label; a SKU's tags become all the tags of its rows). Blank lines are skipped; bad lines are recorded.
  * @throws UploadFormatError on a line longer than 4 MiB
  */
 export async function readNdjsonUpload(source: Readable, acc: HistoryAccumulator): Promise<void> {
@@ -53,9 +57,9 @@ function handleLine(raw: string, line: number, acc: HistoryAccumulator): void {
     else acc.addSeries(s.sku, s.incoming, { line })
     return
   }
-  const row = value as { sku?: unknown; period?: unknown; demand?: unknown }
+  const row = value as { sku?: unknown; period?: unknown; demand?: unknown; tags?: unknown }
   for (const key of Object.keys(row)) {
-    if (key !== 'sku' && key !== 'period' && key !== 'demand') return acc.errors.add({ line, column: key, reason: `unknown field ${JSON.stringify(key)}; a row has sku, period and demand` })
+    if (!ROW_FIELDS.has(key)) return acc.errors.add({ line, column: key, reason: `unknown field ${JSON.stringify(key)}; a row has sku, period, demand and tags` })
   }
   if (typeof row.sku !== 'string') return acc.errors.add({ line, column: 'sku', reason: 'sku must be a string' })
   const sku = parseSku(row.sku)
@@ -69,5 +73,11 @@ function handleLine(raw: string, line: number, acc: HistoryAccumulator): void {
       ? parseDemand(String(row.demand))
       : { reason: 'demand must be a number' }
   if ('reason' in demand) return acc.errors.add({ line, column: 'demand', sku: sku.sku, reason: demand.reason })
-  acc.addRow(sku.sku, bucket.ordinal, demand.value, { line }, bucket.dated)
+  let tags: string[] = []
+  if (row.tags !== undefined) {
+    const t = Array.isArray(row.tags) ? normaliseTags(row.tags) : { reason: 'tags must be an array of strings' }
+    if ('reason' in t) return acc.errors.add({ line, column: 'tags', sku: sku.sku, reason: t.reason })
+    tags = t.tags
+  }
+  acc.addRow(sku.sku, bucket.ordinal, demand.value, { line }, bucket.dated, tags)
 }

@@ -1,4 +1,5 @@
 import type { ForecastItem, ResultItem, ResultPage, RunRecord } from '../runs/contract.js'
+import { CSV_DELIMITERS, type CsvDialect } from '../schemas/csv-dialect.js'
 
 /**
  * Run results as CSV (RFC 4180, CRLF line ends, a header row): one row per
@@ -23,7 +24,14 @@ import type { ForecastItem, ResultItem, ResultPage, RunRecord } from '../runs/co
  * text cell (sku, model, failure) starting with `=`, `+`, `-`, `@` (after any
  * leading whitespace), tab or CR is prefixed with `'`. Numeric cells are written as numbers and never changed,
  * so `-3.5` stays a negative number.
+ *
+ * Dialect (query `delimiter`, `decimalSeparator`): the field delimiter is a
+ * comma, semicolon or tab, and numbers may use a decimal comma (`1,5`; with a
+ * semicolon or tab delimiter only). Numbers never carry thousands separators.
  */
+
+/** Comma-delimited, decimal point: RFC 4180 as most tools read it. */
+export const DEFAULT_CSV_DIALECT: CsvDialect = { delimiter: 'comma', decimalSeparator: 'point' }
 
 /** Results read per round trip while streaming. */
 export const CSV_PAGE_SIZE = 500
@@ -50,15 +58,21 @@ export function prefersCsv(accept: string | undefined): boolean {
  */
 const FORMULA_START = /^(?:[\t\r]|\s*[=+\-@])/
 
-/** A text cell: neutralised against formula injection, quoted when needed. */
+/**
+ * A text cell: neutralised against formula injection, quoted when it holds a
+ * quote, a line break, a comma or a semicolon (any delimiter, so a cell reads
+ * the same whichever one a spreadsheet guesses) or a tab.
+ */
 export function textCell(value: string): string {
   const safe = FORMULA_START.test(value) ? `'${value}` : value
-  return /[",\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe
+  return /[",;\t\r\n]/.test(safe) ? `"${safe.replace(/"/g, '""')}"` : safe
 }
 
-/** A numeric cell; empty for null or a non-finite value. */
-export function numberCell(value: number | null | undefined): string {
-  return typeof value === 'number' && Number.isFinite(value) ? String(value) : ''
+/** A numeric cell, with a decimal comma if asked; empty for null or a non-finite value. */
+export function numberCell(value: number | null | undefined, dialect: CsvDialect = DEFAULT_CSV_DIALECT): string {
+  if (typeof value !== 'number' || !Number.isFinite(value)) return ''
+  const text = String(value)
+  return dialect.decimalSeparator === 'comma' ? text.replace('.', ',') : text
 }
 
 /** The interval levels of a run, ascending (the columns low<L>, high<L>). */
@@ -84,13 +98,14 @@ function replenishmentColumns(run: RunRecord): readonly string[] {
   return run.settings.replenishment ? REPLENISHMENT_COLUMNS : []
 }
 
-export function csvHeader(run: RunRecord): string {
+export function csvHeader(run: RunRecord, dialect: CsvDialect = DEFAULT_CSV_DIALECT): string {
   const bounds = levelsOf(run).flatMap((l) => [`low${l}`, `high${l}`])
-  return ['sku', 'period', 'demand', ...bounds, 'model', 'rankBy', 'holdoutError', ...replenishmentColumns(run), 'failure'].join(',') + '\r\n'
+  const names = ['sku', 'period', 'demand', ...bounds, 'model', 'rankBy', 'holdoutError', ...replenishmentColumns(run), 'failure']
+  return names.join(CSV_DELIMITERS[dialect.delimiter]) + '\r\n'
 }
 
 /** The replenishment cells of one row: the SKU's policy, and the figures for an order placed in `period`. */
-function replenishmentCells(item: ForecastItem, period: string, run: RunRecord): string[] {
+function replenishmentCells(item: ForecastItem, period: string, run: RunRecord, dialect: CsvDialect): string[] {
   if (!run.settings.replenishment) return []
   const r = item.replenishment
   if (!r) return REPLENISHMENT_COLUMNS.map(() => '')
@@ -107,36 +122,38 @@ function replenishmentCells(item: ForecastItem, period: string, run: RunRecord):
     minimumOrder: r.minimumOrder,
     packSize: r.packSize,
   }
-  return REPLENISHMENT_COLUMNS.map((c) => numberCell(cells[c]))
+  return REPLENISHMENT_COLUMNS.map((c) => numberCell(cells[c], dialect))
 }
 
 /** The CSV rows of one result item. */
-export function itemRows(item: ResultItem, run: RunRecord): string {
+export function itemRows(item: ResultItem, run: RunRecord, dialect: CsvDialect = DEFAULT_CSV_DIALECT): string {
+  const sep = CSV_DELIMITERS[dialect.delimiter]
+  const num = (value: number | null | undefined) => numberCell(value, dialect)
   const levels = levelsOf(run)
   const rankBy = run.settings.rankBy
   if ('failure' in item) {
     const empty = new Array(2 + levels.length * 2 + 3 + replenishmentColumns(run).length).fill('')
-    return [textCell(item.sku), ...empty, textCell(`${item.failure.code}: ${item.failure.message}`)].join(',') + '\r\n'
+    return [textCell(item.sku), ...empty, textCell(`${item.failure.code}: ${item.failure.message}`)].join(sep) + '\r\n'
   }
-  const holdout = item.modelChoice.method === 'holdout' ? numberCell(item.holdoutErrors?.[rankBy]) : ''
+  const holdout = item.modelChoice.method === 'holdout' ? num(item.holdoutErrors?.[rankBy]) : ''
   let out = ''
   for (const point of item.forecast) {
     const bounds = levels.flatMap((l) => {
       const iv = point.intervals.find((i) => i.level === l)
-      return [numberCell(iv?.low), numberCell(iv?.high)]
+      return [num(iv?.low), num(iv?.high)]
     })
     out +=
       [
         textCell(item.sku),
         textCell(point.period),
-        numberCell(point.demand),
+        num(point.demand),
         ...bounds,
         textCell(item.model),
         rankBy,
         holdout,
-        ...replenishmentCells(item, point.period, run),
+        ...replenishmentCells(item, point.period, run, dialect),
         '',
-      ].join(',') +
+      ].join(sep) +
       '\r\n'
   }
   return out
@@ -149,14 +166,15 @@ export function itemRows(item: ResultItem, run: RunRecord): string {
 export async function* runResultsCsv(
   run: RunRecord,
   page: (cursor: string | undefined) => Promise<ResultPage | null>,
+  dialect: CsvDialect = DEFAULT_CSV_DIALECT,
 ): AsyncGenerator<string> {
-  yield csvHeader(run)
+  yield csvHeader(run, dialect)
   let cursor: string | undefined
   for (;;) {
     const p = await page(cursor)
     if (p === null) return
     let chunk = ''
-    for (const item of p.items) chunk += itemRows(item, run)
+    for (const item of p.items) chunk += itemRows(item, run, dialect)
     if (chunk !== '') yield chunk
     if (p.nextCursor === null) return
     cursor = p.nextCursor

@@ -3,6 +3,7 @@ import { FREQUENCIES } from '../engine/index.js'
 import { BATCH_ID_PATTERN, DUPLICATE_POLICIES, MAX_TAGS, TAG_PATTERN, UPLOAD_MODES } from '../history/types.js'
 import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, StockPolicy } from './run.js'
 import { PageQuery, pageSchema } from './params.js'
+import { CsvDialectQuery } from './csv-dialect.js'
 
 /** Request and response shapes of the stored-history routes. */
 
@@ -86,8 +87,10 @@ export const UploadQuery = z.object({
   skuColumn: ColumnName.default('sku').describe('CSV header of the SKU column'),
   periodColumn: ColumnName.default('period').describe('CSV header of the date or period column'),
   demandColumn: ColumnName.default('demand').describe('CSV header of the demand column'),
-  delimiter: z.enum(['comma', 'semicolon', 'tab']).default('comma').describe('CSV field separator'),
-})
+  tagsColumn: ColumnName.optional().describe(
+    'CSV header of a column of tags, separated by | (category:garden|site:north); a SKU gets all the tags of its rows. Absent: no tags column',
+  ),
+}).extend(CsvDialectQuery.shape)
 
 export const JsonUpload = z.strictObject({
   mode: UploadMode.optional(),

@@ -1,5 +1,6 @@
 import { z } from 'zod'
 import { Sku } from './run.js'
+import { CsvDialectQuery } from './csv-dialect.js'
 
 /** Path and query parameters of the v1 routes. */
 
@@ -52,4 +53,6 @@ export const ViewQuery = z.object({
 
 export const ResultsQuery = PageQuery.extend({
   sku: Sku.optional().describe('Only the result of this SKU'),
-}).extend(ViewQuery.shape)
+})
+  .extend(ViewQuery.shape)
+  .extend(CsvDialectQuery.shape)

@@ -132,7 +132,7 @@ export interface paths {
         };
         /**
          * Page through the results of a run
-         * @description Pass nextCursor back as cursor for the next page; nextCursor is null on the last page. With Accept: text/csv the whole run (or the one `sku`) streams as CSV instead, one row per SKU and forecast period: sku, period, demand, low<level>, high<level> (per interval level), model, rankBy, holdoutError, failure (limit, cursor and view are then ignored). Text cells starting with = + - @ are prefixed with '. view=compact leaves out each item's candidates.
+         * @description Pass nextCursor back as cursor for the next page; nextCursor is null on the last page. With Accept: text/csv the whole run (or the one `sku`) streams as CSV instead, one row per SKU and forecast period: sku, period, demand, low<level>, high<level> (per interval level), model, rankBy, holdoutError, failure (limit, cursor and view are then ignored). Text cells starting with = + - @ are prefixed with '. delimiter (comma, semicolon, tab) and decimalSeparator (point, or comma for 1,5 with a semicolon or tab delimiter) set the CSV dialect; JSON answers ignore them. view=compact leaves out each item's candidates.
          */
         get: operations["listRunResults"];
         put?: never;
@@ -239,7 +239,7 @@ export interface paths {
         put?: never;
         /**
          * Upload demand histories in bulk (JSON, NDJSON or CSV)
-         * @description Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`; application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand" }`; text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn, periodColumn, demandColumn; other columns ignored). CSV and NDJSON are read as a stream. A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label (2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU's first and last row without rows become 0. Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written atomically, and a SKU without good rows keeps its stored history. `mode`: add (default for dated rows: transactions are added to the stored periods), overwrite (default for period rows and series: each period sent replaces the stored one), replace (the whole history), or replace-open-period (a month-to-date file: the one open period of every stored SKU of the frequency). Resending is safe with Idempotency-Key (the same answer again) or `batch` (each SKU is written once per batch id while it is remembered).
+         * @description Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`; application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand", "tags"? }`; text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn, periodColumn, demandColumn; other columns ignored), with `delimiter` and `decimalSeparator` (`1,5` with decimalSeparator=comma, which needs a semicolon or tab delimiter; thousands separators are refused), and an optional tags column named by tagsColumn (tags separated by `|`). A SKU's tags become all the tags of its rows; a SKU whose rows carry none keeps its stored tags. CSV and NDJSON are read as a stream; gzip bodies (Content-Encoding: gzip) are decompressed as they arrive. A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label (2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU's first and last row without rows become 0. Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written atomically, and a SKU without good rows keeps its stored history. `mode`: add (default for dated rows: transactions are added to the stored periods), overwrite (default for period rows and series: each period sent replaces the stored one), replace (the whole history), or replace-open-period (a month-to-date file: the one open period of every stored SKU of the frequency). Resending is safe with Idempotency-Key (the same answer again) or `batch` (each SKU is written once per batch id while it is remembered).
          */
         post: operations["uploadHistories"];
         delete?: never;
@@ -2667,6 +2667,10 @@ export interface operations {
                 sku?: string;
                 /** @description full: every field; compact: every field but candidates (the per-model table), for clients that only read the forecast */
                 view?: "full" | "compact";
+                /** @description CSV field separator */
+                delimiter?: "comma" | "semicolon" | "tab";
+                /** @description How CSV numbers write their fraction: point (1.5) or comma (1,5; needs delimiter semicolon or tab). Thousands separators are never used */
+                decimalSeparator?: "point" | "comma";
             };
             header?: never;
             path: {
@@ -3369,8 +3373,12 @@ export interface operations {
                 periodColumn?: string;
                 /** @description CSV header of the demand column */
                 demandColumn?: string;
+                /** @description CSV header of a column of tags, separated by | (category:garden|site:north); a SKU gets all the tags of its rows. Absent: no tags column */
+                tagsColumn?: string;
                 /** @description CSV field separator */
                 delimiter?: "comma" | "semicolon" | "tab";
+                /** @description How CSV numbers write their fraction: point (1.5) or comma (1,5; needs delimiter semicolon or tab). Thousands separators are never used */
+                decimalSeparator?: "point" | "comma";
             };
             header?: {
                 /** @description Any 1-255 visible ASCII characters. The same key with the same request answers the first answer again (with Almanac-Reused-Answer: true); with another request it is a 422; while the first is in flight a 409 */

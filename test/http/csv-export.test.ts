@@ -1,6 +1,7 @@
 import fc from 'fast-check'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { parse } from 'csv-parse/sync'
+import { gunzipSync } from 'node:zlib'
 import type { FastifyInstance } from 'fastify'
 import { build } from '../../src/http/app.js'
 import { prefersCsv, textCell } from '../../src/http/csv-export.js'
@@ -87,6 +88,65 @@ describe('GET /v1/runs/{runId}/results as CSV', () => {
   })
 })
 
+describe('CSV export dialects and gzip', () => {
+  let app: FastifyInstance
+  let runId: string
+  beforeAll(async () => {
+    const gateway = new InMemoryGatewayDouble()
+    app = await build({ config: testConfig(), gateway })
+    runId = (await app.inject({ method: 'POST', url: '/v1/runs', headers: auth(KEY_GARDEN), payload: REQUEST })).json().id
+    gateway.complete(runId, items())
+  })
+  afterAll(() => app.close())
+  const get = (query: string, headers: Record<string, string> = {}) =>
+    app.inject({ url: `/v1/runs/${runId}/results${query}`, headers: { ...auth(KEY_GARDEN), accept: 'text/csv', ...headers } })
+
+  it('writes semicolons and decimal commas, and reads back to the same numbers', async () => {
+    const plain = parse((await get('')).body, { columns: true }) as Record<string, string>[]
+    const res = await get('?delimiter=semicolon&decimalSeparator=comma')
+    expect(res.statusCode).toBe(200)
+    const lines = res.body.split('\r\n')
+    expect(lines[0]).toBe('sku;period;demand;low80;high80;low95;high95;model;rankBy;holdoutError;failure')
+    // 10.25 and -7.125 from the fixture, with a decimal comma; -3.5 stays a number (no formula prefix).
+    expect(lines[1]).toMatch(/^HOSE-25M;2026-01;10,25;8;12;7;13;/)
+    expect(lines[2]).toMatch(/^HOSE-25M;2026-02;-3,5;-6;-1;-7,125;0;/)
+    const rows = parse(res.body, { columns: true, delimiter: ';' }) as Record<string, string>[]
+    expect(rows.map((r) => r.sku)).toEqual(plain.map((r) => r.sku))
+    rows.forEach((r, i) => {
+      for (const column of ['demand', 'low80', 'high80', 'low95', 'high95']) {
+        const value = r[column]!
+        expect(value).not.toContain('.')
+        expect(value === '' ? '' : Number(value.replace(',', '.'))).toBe(plain[i]![column] === '' ? '' : Number(plain[i]![column]))
+      }
+    })
+  })
+
+  it('writes tabs, quoting a text cell that holds a delimiter of any kind', async () => {
+    const res = await get('?delimiter=tab')
+    const lines = res.body.split('\r\n')
+    expect(lines[0]!.split('\t')).toHaveLength(11)
+    expect(lines[1]).toMatch(/^HOSE-25M\t2026-01\t10.25\t/)
+    expect(res.body).toContain(`"'-SHOVEL, ""steel"""`)
+    const rows = parse(res.body, { columns: true, delimiter: '\t' }) as Record<string, string>[]
+    expect(rows.at(-1)).toMatchObject({ sku: `'-SHOVEL, "steel"`, failure: 'series-too-short: level-smoothing needs 2 periods, has 1' })
+  })
+
+  it('refuses a comma delimiter with a decimal comma, naming decimalSeparator', async () => {
+    const res = await get('?decimalSeparator=comma')
+    expect(res.statusCode).toBe(400)
+    expect(res.json()).toMatchObject({ errors: [{ path: 'decimalSeparator', message: 'a decimal comma needs delimiter=semicolon or delimiter=tab' }] })
+  })
+
+  it('streams the export gzip-compressed for Accept-Encoding: gzip', async () => {
+    const plain = await get('?delimiter=semicolon&decimalSeparator=comma')
+    const zipped = await get('?delimiter=semicolon&decimalSeparator=comma', { 'accept-encoding': 'gzip' })
+    expect(zipped.statusCode).toBe(200)
+    expect(zipped.headers['content-encoding']).toBe('gzip')
+    expect(zipped.headers.vary).toBe('accept, Accept-Encoding')
+    expect(gunzipSync(zipped.rawPayload).toString('utf8')).toBe(plain.body)
+  })
+})
+
 describe('CSV helpers', () => {
   it('prefersCsv follows q-values', () => {
     expect(prefersCsv('text/csv')).toBe(true)
@@ -102,10 +162,12 @@ describe('CSV helpers', () => {
       "'+1",
       "'-1",
       "'@SUM(A1)",
-      "'\tx",
+      `"'\tx"`, // quoted: a tab may be the delimiter
       `"'\rx"`,
     ])
     expect(textCell('a,"b"')).toBe('"a,""b"""')
+    // Any delimiter the export may use is quoted, whichever one the file has.
+    expect(textCell('a;b')).toBe('"a;b"')
     expect(textCell('HOSE-25M')).toBe('HOSE-25M')
   })
 

@@ -14,10 +14,10 @@ import { MAX_FIELD_ERRORS } from '../problem-mapping.js'
 import { fieldIssues, formatFieldPath, ProblemError } from '../../errors.js'
 import { JsonUpload, UploadMode, UploadQuery, UploadReportSchema } from '../../schemas/history.js'
 import { requireHistories } from '../plugins/history.js'
+import { checkCsvDialect, CSV_DELIMITERS } from '../../schemas/csv-dialect.js'
 import { IDEMPOTENT, WRITE } from './responses.js'
 
 const STREAMED_TYPES = ['text/csv', 'application/x-ndjson', 'application/ndjson']
-const DELIMITERS = { comma: ',', semicolon: ';', tab: '\t' } as const
 
 /**
  * Counts bytes on their way through and fails the stream with a 413 problem
@@ -48,12 +48,14 @@ function uploadBodies(): Record<string, unknown> {
     io: 'input',
   })
   const text = (description: string) => ({ schema: { type: 'string', description } })
-  const ndjson = text('One JSON object per line: a series { sku, frequency?, firstPeriod, demand, tags? } or a row { sku, period, demand }')
+  const ndjson = text('One JSON object per line: a series { sku, frequency?, firstPeriod, demand, tags? } or a row { sku, period, demand, tags? }')
   return {
     'application/json': { schema: inlineDefs(json, defs ?? {}) },
     'application/x-ndjson': ndjson,
     'application/ndjson': ndjson,
-    'text/csv': text('A header row, then one sku,period,demand row per line (column names set by the query)'),
+    'text/csv': text(
+      'A header row, then one sku,period,demand row per line, optionally with a tags column (column names, delimiter and decimal separator set by the query)',
+    ),
   }
 }
 
@@ -84,9 +86,13 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         summary: 'Upload demand histories in bulk (JSON, NDJSON or CSV)',
         description: [
           'Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`;',
-          'application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand" }`;',
+          'application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand", "tags"? }`;',
           'text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn,',
-          'periodColumn, demandColumn; other columns ignored). CSV and NDJSON are read as a stream.',
+          'periodColumn, demandColumn; other columns ignored), with `delimiter` and `decimalSeparator` (`1,5` with',
+          'decimalSeparator=comma, which needs a semicolon or tab delimiter; thousands separators are refused), and an',
+          'optional tags column named by tagsColumn (tags separated by `|`). A SKU\'s tags become all the tags of its rows;',
+          'a SKU whose rows carry none keeps its stored tags. CSV and NDJSON are read as a stream; gzip bodies',
+          '(Content-Encoding: gzip) are decompressed as they arrive.',
           'A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label',
           '(2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU\'s first and last row without rows become 0.',
           'Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written',
@@ -106,6 +112,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     async (request, reply) => {
       const store = requireHistories(app)
       const q = request.query
+      checkCsvDialect(q)
       const acc = new HistoryAccumulator({ frequency: q.frequency, duplicates: q.duplicates })
       const type = (request.headers['content-type'] ?? '').split(';')[0]!.trim().toLowerCase()
       let mode = q.mode
@@ -119,8 +126,9 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         const source = limitBytes(request.body as Readable, app.config.bodyLimitBytes)
         try {
           if (type === 'text/csv') {
-            const { skuColumn, periodColumn, demandColumn } = q
-            await readCsvUpload(source, { delimiter: DELIMITERS[q.delimiter], skuColumn, periodColumn, demandColumn }, acc)
+            const { skuColumn, periodColumn, demandColumn, tagsColumn, decimalSeparator } = q
+            const layout = { delimiter: CSV_DELIMITERS[q.delimiter], skuColumn, periodColumn, demandColumn, decimalSeparator }
+            await readCsvUpload(source, tagsColumn === undefined ? layout : { ...layout, tagsColumn }, acc)
           } else {
             await readNdjsonUpload(source, acc)
           }

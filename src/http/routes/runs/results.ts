@@ -6,6 +6,7 @@ import { ResultPageSchema, type ResultPageBody } from '../../../schemas/results.
 import { runNotFound } from './index.js'
 import { compactItem } from '../../../runs/views.js'
 import { READ_ONE } from '../responses.js'
+import { checkCsvDialect } from '../../../schemas/csv-dialect.js'
 
 /** GET /v1/runs/{runId}/results: one page of per-SKU results. */
 const routes: FastifyPluginAsyncZod = async (app) => {
@@ -22,6 +23,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           'With Accept: text/csv the whole run (or the one `sku`) streams as CSV instead, one row per SKU and ' +
           'forecast period: sku, period, demand, low<level>, high<level> (per interval level), model, rankBy, holdoutError, ' +
           'failure (limit, cursor and view are then ignored). Text cells starting with = + - @ are prefixed with \'. ' +
+          'delimiter (comma, semicolon, tab) and decimalSeparator (point, or comma for 1,5 with a semicolon or tab ' +
+          'delimiter) set the CSV dialect; JSON answers ignore them. ' +
           'view=compact leaves out each item\'s candidates.',
         params: RunIdParams,
         querystring: ResultsQuery,
@@ -43,7 +46,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     },
     async (request, reply) => {
       const { runId } = request.params
-      const { limit, cursor, sku, view } = request.query
+      const { limit, cursor, sku, view, delimiter, decimalSeparator } = request.query
+      checkCsvDialect({ delimiter, decimalSeparator })
       reply.header('vary', 'accept') // JSON or CSV by the Accept header
       if (prefersCsv(request.headers.accept)) {
         const run = await app.gateway.get(request.tenant, runId)
@@ -51,7 +55,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         const pages = (next: string | undefined) => app.gateway.results(request.tenant, runId, { limit: CSV_PAGE_SIZE, cursor: next, sku })
         reply.type('text/csv; charset=utf-8').header('content-disposition', `attachment; filename="run-${runId}.csv"`)
         // A stream bypasses the JSON serializer; the cast only satisfies the typed reply.
-        return reply.send(Readable.from(runResultsCsv(run, pages)) as unknown as ResultPageBody)
+        return reply.send(Readable.from(runResultsCsv(run, pages, { delimiter, decimalSeparator })) as unknown as ResultPageBody)
       }
       if (app.gateway.resultsJson) {
         // The page's JSON text straight from the stored items (the serializer passes a Buffer through).

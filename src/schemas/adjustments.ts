@@ -139,7 +139,7 @@ const ErrorsBy = z.object({
 export const ValueAddedSummary = z.object({
   scoredPeriods: z.number().int().min(0).describe('Periods scored: actual demand arrived for a forecast period'),
   adjustedPeriods: z.number().int().min(0).describe('Of those, periods that had an adjustment'),
-  mae: ErrorsBy.describe('Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods'),
+  mae: ErrorsBy.describe('Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods, in demand units'),
   valueAdded: z
     .object({
       adjustments: z.number().nullable().describe('mae.statistical − mae.final: positive when the adjustments made the forecast better'),

@@ -132,7 +132,7 @@ export interface paths {
         };
         /**
          * Page through the results of a run
-         * @description Pass nextCursor back as cursor for the next page; nextCursor is null on the last page. With Accept: text/csv the whole run (or the one `sku`) streams as CSV instead, one row per SKU and forecast period: sku, period, demand, low<level>, high<level> (per interval level), model, rankBy, holdoutError, failure (limit, cursor and view are then ignored). Text cells starting with = + - @ are prefixed with '. delimiter (comma, semicolon, tab) and decimalSeparator (point, or comma for 1,5 with a semicolon or tab delimiter) set the CSV dialect; JSON answers ignore them. view=compact leaves out each item's candidates.
+         * @description Pass nextCursor back as cursor for the next page; nextCursor is null on the last page. With Accept: text/csv the whole run (or the one `sku`) streams as CSV instead, one row per SKU and forecast period: sku, period, demand, low<level>, high<level> (per interval level), model, rankBy, holdoutError, failure (limit, cursor and view are then ignored). Text cells starting with = + - @ are prefixed with '. holdoutError is in the unit of rankBy (percent for mape, smape and wape; demand units for mae and rmse; unitless for mase). delimiter (comma, semicolon, tab) and decimalSeparator (point, or comma for 1,5 with a semicolon or tab delimiter) set the CSV dialect; JSON answers ignore them. view=compact leaves out each item's candidates.
          */
         get: operations["listRunResults"];
         put?: never;
@@ -1060,7 +1060,7 @@ export interface components {
             scoredPeriods: number;
             /** @description Of those, periods that had an adjustment */
             adjustedPeriods: number;
-            /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods */
+            /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods, in demand units */
             mae: {
                 statistical: number | null;
                 final: number | null;
@@ -1088,7 +1088,7 @@ export interface components {
                 scoredPeriods: number;
                 /** @description Of those, periods that had an adjustment */
                 adjustedPeriods: number;
-                /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods */
+                /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods, in demand units */
                 mae: {
                     statistical: number | null;
                     final: number | null;
@@ -1596,15 +1596,15 @@ export interface components {
             sku: string;
             /** @description Forecast periods scored against their actual demand */
             scoredPeriods: number;
-            /** @description Mean absolute error */
+            /** @description Mean absolute error, in demand units */
             mae: number | null;
-            /** @description Mean deviation, actual − forecast demand: positive means demand above the forecast */
+            /** @description Mean deviation, actual − forecast demand, in demand units: positive means demand above the forecast */
             bias: number | null;
             /** @description Mean absolute percentage error over non-zero actuals, in percent; null if none */
             mape: number | null;
-            /** @description Sum of deviations / MAE */
+            /** @description Sum of deviations / MAE, unitless */
             trackingSignal: number | null;
-            /** @description Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, in [-1, 1] */
+            /** @description Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, unitless, in [-1, 1] */
             smoothedTrackingSignal: number | null;
             /** @description flaggedBy is not empty */
             flagged: boolean;
@@ -1624,7 +1624,7 @@ export interface components {
                 /** @description The point forecast the period was scored against */
                 forecastDemand: number;
                 actualDemand: number;
-                /** @description actualDemand − forecastDemand */
+                /** @description actualDemand − forecastDemand, in demand units */
                 deviation: number;
             }[];
         };
@@ -1644,15 +1644,15 @@ export interface components {
             sku: string;
             /** @description Forecast periods scored against their actual demand */
             scoredPeriods: number;
-            /** @description Mean absolute error */
+            /** @description Mean absolute error, in demand units */
             mae: number | null;
-            /** @description Mean deviation, actual − forecast demand: positive means demand above the forecast */
+            /** @description Mean deviation, actual − forecast demand, in demand units: positive means demand above the forecast */
             bias: number | null;
             /** @description Mean absolute percentage error over non-zero actuals, in percent; null if none */
             mape: number | null;
-            /** @description Sum of deviations / MAE */
+            /** @description Sum of deviations / MAE, unitless */
             trackingSignal: number | null;
-            /** @description Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, in [-1, 1] */
+            /** @description Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, unitless, in [-1, 1] */
             smoothedTrackingSignal: number | null;
             /** @description flaggedBy is not empty */
             flagged: boolean;
@@ -1672,9 +1672,9 @@ export interface components {
             /** @description SKUs of the tag with at least one scored period */
             skus: number;
             scoredPeriods: number;
-            /** @description Mean absolute error over every scored period of every SKU */
+            /** @description Mean absolute error over every scored period of every SKU, in demand units */
             mae: number | null;
-            /** @description Mean deviation (actual − forecast) */
+            /** @description Mean deviation (actual − forecast), in demand units */
             bias: number | null;
             /** @description 100 · sum |deviation| / sum |actual|, in percent; null when every actual is 0 */
             wape: number | null;

@@ -46,8 +46,8 @@ const PooledSchema = z
     lag: z.number().int().nullable(),
     skus: z.number().int().min(0).describe('SKUs of the tag with at least one scored period'),
     scoredPeriods: z.number().int().min(0),
-    mae: z.number().nullable().describe('Mean absolute error over every scored period of every SKU'),
-    bias: z.number().nullable().describe('Mean deviation (actual − forecast)'),
+    mae: z.number().nullable().describe('Mean absolute error over every scored period of every SKU, in demand units'),
+    bias: z.number().nullable().describe('Mean deviation (actual − forecast), in demand units'),
     wape: z.number().nullable().describe('100 · sum |deviation| / sum |actual|, in percent; null when every actual is 0'),
     flaggedSkus: z.number().int().min(0).describe('SKUs whose own tracking signals flag them'),
   })

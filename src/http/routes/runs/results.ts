@@ -23,6 +23,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           'With Accept: text/csv the whole run (or the one `sku`) streams as CSV instead, one row per SKU and ' +
           'forecast period: sku, period, demand, low<level>, high<level> (per interval level), model, rankBy, holdoutError, ' +
           'failure (limit, cursor and view are then ignored). Text cells starting with = + - @ are prefixed with \'. ' +
+          'holdoutError is in the unit of rankBy (percent for mape, smape and wape; demand units for mae and rmse; unitless for mase). ' +
           'delimiter (comma, semicolon, tab) and decimalSeparator (point, or comma for 1,5 with a semicolon or tab ' +
           'delimiter) set the CSV dialect; JSON answers ignore them. ' +
           'view=compact leaves out each item\'s candidates.',

@@ -11,14 +11,14 @@ export const AccuracySummarySchema = z
   .object({
     sku: z.string(),
     scoredPeriods: z.number().int().min(0).describe('Forecast periods scored against their actual demand'),
-    mae: z.number().nullable().describe('Mean absolute error'),
-    bias: z.number().nullable().describe('Mean deviation, actual − forecast demand: positive means demand above the forecast'),
+    mae: z.number().nullable().describe('Mean absolute error, in demand units'),
+    bias: z.number().nullable().describe('Mean deviation, actual − forecast demand, in demand units: positive means demand above the forecast'),
     mape: z.number().nullable().describe('Mean absolute percentage error over non-zero actuals, in percent; null if none'),
-    trackingSignal: z.number().nullable().describe('Sum of deviations / MAE'),
+    trackingSignal: z.number().nullable().describe('Sum of deviations / MAE, unitless'),
     smoothedTrackingSignal: z
       .number()
       .nullable()
-      .describe("Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, in [-1, 1]"),
+      .describe("Trigg's smoothed tracking signal (1964): smoothed deviation / smoothed absolute deviation, weight 0.1, unitless, in [-1, 1]"),
     flagged: z.boolean().describe('flaggedBy is not empty'),
     flaggedBy: z
       .array(z.enum(['tracking-signal', 'smoothed-tracking-signal']))
@@ -37,7 +37,7 @@ const ScoredPeriodSchema = z.object({
   runId: z.string().describe('Published run whose forecast was scored'),
   forecastDemand: z.number().describe('The point forecast the period was scored against'),
   actualDemand: z.number(),
-  deviation: z.number().describe('actualDemand − forecastDemand'),
+  deviation: z.number().describe('actualDemand − forecastDemand, in demand units'),
 })
 
 const SkuAccuracy = AccuracySummarySchema.extend({

@@ -50,6 +50,25 @@ describe('gzip request bodies', () => {
     expect(await stored('GZ-GLOVE')).toMatchObject({ firstPeriod: '2025-03', demand: [2, 3] })
   })
 
+  it('replays a gzip upload by Idempotency-Key: the key covers the decompressed body', async () => {
+    const csv = 'sku,period,demand\r\nGZ-LADDER,2025-01-03,2\r\n'
+    const send = (payload: Buffer | string, encoding?: string) =>
+      h.app.inject({
+        method: 'POST',
+        url: '/v1/history',
+        headers: { ...auth(KEY_GARDEN), 'content-type': 'text/csv', 'idempotency-key': 'gz-ladder-1', ...(encoding ? { 'content-encoding': encoding } : {}) },
+        payload,
+      })
+    const first = await send(gz(csv), 'gzip')
+    expect(first.statusCode).toBe(200)
+    const again = await send(gz(csv), 'gzip')
+    expect(again.headers['almanac-reused-answer']).toBe('true')
+    const plain = await send(csv)
+    expect(plain.headers['almanac-reused-answer']).toBe('true')
+    // Added once (mode add for dated rows), not three times.
+    expect(await stored('GZ-LADDER')).toMatchObject({ demand: [2] })
+  })
+
   it('refuses a gzip bomb with 413 naming the limit, for JSON and streamed bodies alike, storing nothing', async () => {
     // 8 MiB of blanks compress to about 8 KiB: far below the limit on the wire, 128 times it once inflated.
     const bomb = gzipSync(Buffer.alloc(8 * 1024 * 1024, ' '))

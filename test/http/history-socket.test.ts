@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { connect, type Socket } from 'node:net'
+import { constants as zlibConstants, createGzip } from 'node:zlib'
 import { Redis } from 'ioredis'
 import type { FastifyInstance } from 'fastify'
 import { build } from '../../src/http/app.js'
@@ -97,5 +98,42 @@ describe('POST /v1/history on a real socket', () => {
     const { received, sent } = await endlessUpload('article,date,qty\n')
     if (received !== '') expect(Number(/^HTTP\/1\.1 (\d{3})/.exec(received)?.[1])).toBe(400)
     expect(sent).toBeLessThan(LIMIT * 20)
+  })
+
+  it('stops inflating an endless gzip CSV body at the limit: 413, connection closed, nothing stored', async () => {
+    const socket = connect(port, '127.0.0.1')
+    sockets.push(socket)
+    let received = ''
+    const closed = new Promise<void>((done) => {
+      socket.on('data', (d) => (received += d.toString('latin1')))
+      socket.on('close', () => done())
+      socket.on('error', () => done())
+    })
+    await new Promise((r) => socket.once('connect', r))
+    socket.write(
+      `POST /v1/history HTTP/1.1\r\nHost: 127.0.0.1\r\nAuthorization: Bearer ${KEY_GARDEN}\r\n` +
+        'Content-Type: text/csv\r\nContent-Encoding: gzip\r\nTransfer-Encoding: chunked\r\nConnection: keep-alive\r\n\r\n',
+    )
+    const gzip = createGzip({ flush: zlibConstants.Z_SYNC_FLUSH })
+    gzip.on('data', (chunk: Buffer) => {
+      if (!socket.destroyed) socket.write(Buffer.concat([Buffer.from(`${chunk.length.toString(16)}\r\n`), chunk, Buffer.from('\r\n')]))
+    })
+    gzip.write('sku,period,demand\n')
+    const piece = 'GZ-ENDLESS,2025-01-01,1\n'.repeat(200)
+    let inflated = 0
+    // 100x the limit once decompressed if the server read it all.
+    while (inflated < LIMIT * 100 && received === '' && !socket.destroyed) {
+      gzip.write(piece)
+      inflated += piece.length
+      await pause(1)
+    }
+    gzip.destroy()
+    await closed
+    if (received !== '') {
+      expect(Number(/^HTTP\/1\.1 (\d{3})/.exec(received)?.[1])).toBe(413)
+      expect(received).toContain(`larger than ${LIMIT} bytes once decompressed`)
+    }
+    expect(inflated).toBeLessThan(LIMIT * 20)
+    expect(await new HistoryStore(redis, { prefix }).get('garden', 'GZ-ENDLESS')).toBeNull()
   })
 })

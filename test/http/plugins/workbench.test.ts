@@ -1,11 +1,14 @@
 import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
+import { gunzipSync } from 'node:zlib'
 import { join } from 'node:path'
 import type { FastifyInstance } from 'fastify'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { build } from '../../../src/http/app.js'
 import { defaultWorkbenchRoot } from '../../../src/http/plugins/workbench.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, auth, testConfig } from '../gateway-double.js'
+
+const BIG_SCRIPT = Array.from({ length: 400 }, (_, i) => `export const row${i} = 'garden hose ${i}'`).join('\n')
 
 // A stand-in build output: the plugin serves whatever vite wrote; the pages themselves are tested in a browser (test/web).
 let root: string
@@ -18,6 +21,7 @@ beforeAll(async () => {
   mkdirSync(join(root, 'assets'))
   writeFileSync(join(root, 'index.html'), '<!doctype html><title>workbench</title>')
   writeFileSync(join(root, 'assets', 'main-1a2b3c.js'), 'console.log(1)')
+  writeFileSync(join(root, 'assets', 'big-4d5e6f.js'), BIG_SCRIPT)
   writeFileSync(join(tmpdir(), 'almanac-workbench-outside.txt'), 'not served')
   app = await build({ config: testConfig({ rateLimitMax: 2 }), gateway: new InMemoryGatewayDouble(), workbenchRoot: root })
   unbuilt = await build({ config: testConfig(), gateway: new InMemoryGatewayDouble(), workbenchRoot: join(root, 'missing') })
@@ -95,3 +99,21 @@ describe('GET /access', () => {
     expect((await app.inject({ url: '/access', headers: auth(KEY_GARDEN) })).statusCode).toBe(200)
   })
 })
+
+describe('workbench files and gzip', () => {
+  it('sends a large asset gzip-compressed to a client that accepts it, a small one as it is, and never counts them', async () => {
+    // Budget 2 for this app: more than two files would be refused if they counted.
+    for (let i = 0; i < 3; i++) {
+      const big = await app.inject({ url: '/app/assets/big-4d5e6f.js', headers: { 'accept-encoding': 'gzip' } })
+      expect(big.statusCode).toBe(200)
+      expect(big.headers['content-encoding']).toBe('gzip')
+      expect(big.headers.vary).toMatch(/accept-encoding/i)
+      expect(gunzipSync(big.rawPayload).toString('utf8')).toBe(BIG_SCRIPT)
+    }
+    const small = await app.inject({ url: '/app/assets/main-1a2b3c.js', headers: { 'accept-encoding': 'gzip' } })
+    expect(small.statusCode).toBe(200)
+    expect(small.headers['content-encoding']).toBeUndefined()
+    expect(small.body).toBe('console.log(1)')
+  })
+})
+

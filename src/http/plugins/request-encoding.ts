@@ -19,7 +19,8 @@ export function gunzipBounded(source: Readable, maxBytes: number): Readable & { 
     transform(chunk: Buffer, _enc, done) {
       out += chunk.length
       if (out > maxBytes) {
-        // Stop inflating at once: a small gzip bomb must not cost the CPU (or memory) of its full size.
+        // Stop reading and inflating at once: a small gzip bomb must not cost the CPU (or memory) of its full size.
+        source.removeListener('data', countEncoded)
         source.unpipe(gunzip)
         gunzip.destroy()
         done(tooLarge(maxBytes))
@@ -27,9 +28,10 @@ export function gunzipBounded(source: Readable, maxBytes: number): Readable & { 
     },
   }) as Transform & { receivedEncodedLength: number }
   bounded.receivedEncodedLength = 0
-  source.on('data', (chunk: Buffer) => {
+  function countEncoded(chunk: Buffer): void {
     bounded.receivedEncodedLength += chunk.length
-  })
+  }
+  source.on('data', countEncoded)
   source.on('error', (err) => bounded.destroy(err))
   gunzip.on('error', (err) => {
     const problem =
@@ -40,6 +42,9 @@ export function gunzipBounded(source: Readable, maxBytes: number): Readable & { 
           ], { connection: 'close' })
     bounded.destroy(problem)
   })
+  // The reader (fastify's body parser, or an upload's stream) gets the error too; this one only keeps
+  // an unread stream's failure from becoming an uncaught exception.
+  bounded.on('error', () => {})
   source.pipe(gunzip).pipe(bounded)
   return bounded
 }
@@ -71,13 +76,24 @@ export default fp(
           { connection: 'close' },
         )
       }
-      if (!hasBody(request.headers)) return payload
+      if (!hasBody(request.method, request.headers)) return payload
       return gunzipBounded(payload, request.routeOptions.bodyLimit ?? app.config.bodyLimitBytes)
     })
   },
   { name: 'request-encoding', dependencies: ['config'] },
 )
 
-function hasBody(headers: Readonly<Record<string, unknown>>): boolean {
-  return headers['transfer-encoding'] !== undefined || Number(headers['content-length'] ?? 0) > 0
+/** Methods fastify never reads a body for. */
+const BODYLESS = new Set(['GET', 'HEAD', 'TRACE'])
+
+/**
+ * True when fastify will read a body, as it decides (a content type, chunked
+ * transfer or a non-zero length on a method that may carry one). An empty body
+ * is empty in any coding, so it is left as it is.
+ */
+function hasBody(method: string, headers: Readonly<Record<string, unknown>>): boolean {
+  if (BODYLESS.has(method)) return false
+  const length = headers['content-length']
+  if (length === '0') return false
+  return headers['content-type'] !== undefined || headers['transfer-encoding'] !== undefined || length !== undefined
 }

@@ -2,11 +2,12 @@ import type { LatestForecast, RunGateway } from '../runs/contract.js'
 import type { PublishedRow, PublishedSource } from '../runs/published-export.js'
 import type { AdjustmentService } from '../runs/adjustment-service.js'
 import type { HistoryStore } from '../storage/histories/history-store.js'
-import { numberCell, REPLENISHMENT_COLUMNS, textCell } from './csv-export.js'
+import { DEFAULT_CSV_DIALECT, numberCell, REPLENISHMENT_COLUMNS, textCell } from './csv-export.js'
+import { CSV_DELIMITERS, type CsvDialect } from '../schemas/csv-dialect.js'
 
 /**
- * GET /v1/forecasts/published as text: CSV (RFC 4180, CRLF, comma delimiter,
- * dot decimal, a header row) or NDJSON (one JSON row per line), written one
+ * GET /v1/forecasts/published as text: CSV (RFC 4180, CRLF, a header row; comma
+ * delimiter and dot decimal unless the dialect says otherwise, as in csv-export.ts) or NDJSON (one JSON row per line), written one
  * batch of SKUs at a time. CSV columns:
  *
  *   sku, frequency, period, demand, setDemand, changePercent, finalDemand,
@@ -20,50 +21,52 @@ import { numberCell, REPLENISHMENT_COLUMNS, textCell } from './csv-export.js'
 /** SKUs read per round trip. */
 export const EXPORT_BATCH = 500
 
-export function publishedCsvHeader(levels: readonly number[]): string {
+export function publishedCsvHeader(levels: readonly number[], dialect: CsvDialect = DEFAULT_CSV_DIALECT): string {
   const bounds = levels.flatMap((l) => [`low${l}`, `high${l}`])
   return (
     ['sku', 'frequency', 'period', 'demand', 'setDemand', 'changePercent', 'finalDemand', ...bounds, 'model', 'runId', 'producedAt', ...REPLENISHMENT_COLUMNS].join(
-      ',',
+      CSV_DELIMITERS[dialect.delimiter],
     ) + '\r\n'
   )
 }
 
-export function publishedCsvRow(row: PublishedRow, levels: readonly number[]): string {
+export function publishedCsvRow(row: PublishedRow, levels: readonly number[], dialect: CsvDialect = DEFAULT_CSV_DIALECT): string {
+  const num = (value: number | null | undefined) => numberCell(value, dialect)
   const a = row.adjustment
   const bounds = levels.flatMap((l) => {
     const iv = row.intervals.find((i) => i.level === l)
-    return [numberCell(iv?.low), numberCell(iv?.high)]
+    return [num(iv?.low), num(iv?.high)]
   })
   const r = row.replenishment
-  const replenishment = REPLENISHMENT_COLUMNS.map((c) => numberCell(r?.[c]))
+  const replenishment = REPLENISHMENT_COLUMNS.map((c) => num(r?.[c]))
   return (
     [
       textCell(row.sku),
       row.frequency,
       textCell(row.period),
-      numberCell(row.demand),
-      numberCell(a !== null && 'setDemand' in a ? a.setDemand : null),
-      numberCell(a !== null && 'changePercent' in a ? a.changePercent : null),
-      numberCell(row.finalDemand),
+      num(row.demand),
+      num(a !== null && 'setDemand' in a ? a.setDemand : null),
+      num(a !== null && 'changePercent' in a ? a.changePercent : null),
+      num(row.finalDemand),
       ...bounds,
       textCell(row.model),
       textCell(row.runId),
       textCell(row.producedAt),
       ...replenishment,
-    ].join(',') + '\r\n'
+    ].join(CSV_DELIMITERS[dialect.delimiter]) + '\r\n'
   )
 }
 
 /** The export as text chunks, one per batch of SKUs. */
 export async function* publishedText(
   rows: AsyncIterable<readonly PublishedRow[]>,
-  format: { readonly kind: 'csv'; readonly levels: readonly number[] } | { readonly kind: 'ndjson' },
+  format: { readonly kind: 'csv'; readonly levels: readonly number[]; readonly dialect?: CsvDialect } | { readonly kind: 'ndjson' },
 ): AsyncGenerator<string> {
-  if (format.kind === 'csv') yield publishedCsvHeader(format.levels)
+  const dialect = format.kind === 'csv' ? (format.dialect ?? DEFAULT_CSV_DIALECT) : DEFAULT_CSV_DIALECT
+  if (format.kind === 'csv') yield publishedCsvHeader(format.levels, dialect)
   for await (const batch of rows) {
     let chunk = ''
-    for (const row of batch) chunk += format.kind === 'csv' ? publishedCsvRow(row, format.levels) : JSON.stringify(row) + '\n'
+    for (const row of batch) chunk += format.kind === 'csv' ? publishedCsvRow(row, format.levels, dialect) : JSON.stringify(row) + '\n'
     if (chunk !== '') yield chunk
   }
 }

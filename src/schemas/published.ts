@@ -2,6 +2,7 @@ import { z } from 'zod'
 import { FREQUENCIES } from '../engine/index.js'
 import { AdjustmentView } from './adjustments.js'
 import { Tag } from './history.js'
+import { CsvDialectQuery } from './csv-dialect.js'
 
 /** GET /v1/forecasts/published: the bulk export of every current published forecast. */
 
@@ -14,7 +15,7 @@ export const PublishedQuery = z.object({
     .refine((v) => v.split(',').every((l) => Number(l) > 0), 'each level must be above 0 and below 100')
     .default('80,95')
     .describe('CSV only: the interval levels given as low<level>, high<level> columns, e.g. 80,95 (default). NDJSON rows carry every level the run made'),
-})
+}).extend(CsvDialectQuery.shape)
 
 export const PublishedRowSchema = z
   .object({

@@ -172,7 +172,7 @@ export interface paths {
         };
         /**
          * Export every current published forecast (CSV or NDJSON)
-         * @description Streams one row per SKU and forecast period of every SKU's current published forecast, the same figures as GET /v1/skus/{sku}/forecast: sku, frequency, period, demand (statistical), the adjustment in force, finalDemand, interval bounds, model, runId, producedAt, and the replenishment figures when the forecast has them. Accept: text/csv gives CSV (comma delimiter, dot decimal, a header row; columns sku, frequency, period, demand, setDemand, changePercent, finalDemand, low<level>, high<level> per intervalLevels, model, runId, producedAt, then the replenishment columns of the results CSV, empty where none; text cells starting with = + - @ are prefixed with '); anything else gives NDJSON (application/x-ndjson), one PublishedForecastRow per line. Optional filters: tag, frequency. SKUs whose publishing run's results have expired are left out. Rows come in no stated order (by SKU with tag). Figures are estimates to review before ordering.
+         * @description Streams one row per SKU and forecast period of every SKU's current published forecast, the same figures as GET /v1/skus/{sku}/forecast: sku, frequency, period, demand (statistical), the adjustment in force, finalDemand, interval bounds, model, runId, producedAt, and the replenishment figures when the forecast has them. Accept: text/csv gives CSV (a header row; comma delimiter and dot decimal unless delimiter and decimalSeparator say otherwise, as in the results export; columns sku, frequency, period, demand, setDemand, changePercent, finalDemand, low<level>, high<level> per intervalLevels, model, runId, producedAt, then the replenishment columns of the results CSV, empty where none; text cells starting with = + - @ are prefixed with '); anything else gives NDJSON (application/x-ndjson), one PublishedForecastRow per line. Optional filters: tag, frequency. SKUs whose publishing run's results have expired are left out. Rows come in no stated order (by SKU with tag). Figures are estimates to review before ordering.
          */
         get: operations["exportPublishedForecasts"];
         put?: never;
@@ -1686,7 +1686,7 @@ export interface components {
             scoredPeriods: number;
             /** @description Of those, periods that had an adjustment */
             adjustedPeriods: number;
-            /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods */
+            /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods, in demand units */
             mae: {
                 statistical: number | null;
                 final: number | null;
@@ -1716,7 +1716,7 @@ export interface components {
                 scoredPeriods: number;
                 /** @description Of those, periods that had an adjustment */
                 adjustedPeriods: number;
-                /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods */
+                /** @description Mean absolute error of the statistical, final and naive (last value) forecasts over the scored periods, in demand units */
                 mae: {
                     statistical: number | null;
                     final: number | null;
@@ -2866,6 +2866,10 @@ export interface operations {
                 frequency?: "day" | "week" | "month" | "quarter" | "year";
                 /** @description CSV only: the interval levels given as low<level>, high<level> columns, e.g. 80,95 (default). NDJSON rows carry every level the run made */
                 intervalLevels?: string;
+                /** @description CSV field separator */
+                delimiter?: "comma" | "semicolon" | "tab";
+                /** @description How CSV numbers write their fraction: point (1.5) or comma (1,5; needs delimiter semicolon or tab). Thousands separators are never used */
+                decimalSeparator?: "point" | "comma";
             };
             header?: never;
             path?: never;
@@ -4540,7 +4544,10 @@ export interface operations {
     updateSchedule: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path: {
                 scheduleId: string;
             };

@@ -72,6 +72,21 @@ describe('published CSV and NDJSON', () => {
     expect(publishedCsvRow(withStock, [80])).toBe('GLOVE-L,month,2026-05,-2.5,,,-2.5,-5,0,last-value,run-7,2026-03-02T02:00:05.000Z,2,0,0,0.95,,7,,24,0,12\r\n')
   })
 
+  it('writes the dialect asked for: semicolons and decimal commas, or tabs', async () => {
+    const withStock: PublishedRow = {
+      ...row, sku: 'GLOVE-L', adjustment: null, finalDemand: -2.5,
+      replenishment: { leadTimePeriods: 2, reviewPeriods: 0, leadTimeSdPeriods: 0, serviceLevel: 0.95, minimumOrder: 0, packSize: 12, orderQuantity: 24, coverDemand: null, safetyStock: 7.5, reorderPoint: null },
+    }
+    const euro = { delimiter: 'semicolon', decimalSeparator: 'comma' } as const
+    expect(publishedCsvRow(withStock, [80], euro)).toBe('GLOVE-L;month;2026-05;-2,5;;;-2,5;-5;0;last-value;run-7;2026-03-02T02:00:05.000Z;2;0;0;0,95;;7,5;;24;0;12\r\n')
+    expect(publishedCsvHeader([80], euro)).toMatch(/^sku;frequency;period;demand;setDemand;changePercent;finalDemand;low80;high80;model;/)
+    async function* rows() {
+      yield [withStock]
+    }
+    const tabbed = (await collect(publishedText(rows(), { kind: 'csv', levels: [80], dialect: { delimiter: 'tab', decimalSeparator: 'point' } }))).join('')
+    expect(tabbed.split('\r\n')[1]).toBe('GLOVE-L\tmonth\t2026-05\t-2.5\t\t\t-2.5\t-5\t0\tlast-value\trun-7\t2026-03-02T02:00:05.000Z\t2\t0\t0\t0.95\t\t7.5\t\t24\t0\t12')
+  })
+
   it('streams NDJSON one row per line, nothing for no rows', async () => {
     async function* rows() {
       yield [row]

@@ -1,4 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
+import { gunzipSync } from 'node:zlib'
 import type { FastifyInstance } from 'fastify'
 import { build } from '../../../../src/http/app.js'
 import { InMemoryGatewayDouble, KEY_GARDEN, KEY_HEATING, auth, forecastItemFixture, testConfig } from '../../gateway-double.js'
@@ -30,6 +31,23 @@ describe('GET /v1/forecasts/published', () => {
     expect(lines[2]!.startsWith("'-GLOVE-L,month,2026-01,10,,,10,7,13,last-value,run-1,")).toBe(true)
     // Another tenant sees none of them.
     expect((await app.inject({ url: '/v1/forecasts/published', headers: auth(KEY_HEATING) })).body).toBe('')
+  })
+
+  it('takes the CSV dialect of the results export, refuses a comma delimiter with a decimal comma, and streams gzip', async () => {
+    const euro = await app.inject({
+      url: '/v1/forecasts/published?intervalLevels=95&delimiter=semicolon&decimalSeparator=comma',
+      headers: { ...auth(KEY_GARDEN), accept: 'text/csv' },
+    })
+    expect(euro.statusCode).toBe(200)
+    const lines = euro.body.split('\r\n')
+    expect(lines[0]!.startsWith('sku;frequency;period;demand;')).toBe(true)
+    expect(lines[1]!.startsWith('HOSE-25M;month;2026-01;10;;;10;7;13;last-value;run-1;')).toBe(true)
+    const bad = await app.inject({ url: '/v1/forecasts/published?decimalSeparator=comma', headers: { ...auth(KEY_GARDEN), accept: 'text/csv' } })
+    expect(bad.statusCode).toBe(400)
+    expect(bad.json().errors[0].path).toBe('decimalSeparator')
+    const zipped = await app.inject({ url: '/v1/forecasts/published', headers: { ...auth(KEY_GARDEN), 'accept-encoding': 'gzip' } })
+    expect(zipped.headers['content-encoding']).toBe('gzip')
+    expect(gunzipSync(zipped.rawPayload).toString('utf8').trim().split('\n')).toHaveLength(2)
   })
 
   it('refuses bad filters naming each field; a tag needs the history store (503 without)', async () => {

@@ -169,6 +169,30 @@ describe('gzip answers', () => {
     expect(plainAgain.headers.etag).toBe(strong)
   })
 
+  it('stores the plain answer for Idempotency-Key replays: the replay is compressed for this client, plain for another', async () => {
+    // 40 bad rows: the report lists each, well above the compression floor.
+    const csv = ['sku,period,demand', ...Array.from({ length: 40 }, (_, i) => `GZ-REPLAY-${i},2025-01,not-a-number`)].join('\n')
+    const send = (headers: Record<string, string>) =>
+      h.app.inject({
+        method: 'POST',
+        url: '/v1/history',
+        headers: { ...auth(KEY_GARDEN), 'content-type': 'text/csv', 'idempotency-key': 'gz-replay-1', ...headers },
+        payload: csv,
+      })
+    const first = await send({ 'accept-encoding': 'gzip' })
+    expect(first.statusCode).toBe(200)
+    expect(first.headers['content-encoding']).toBe('gzip')
+    const report = JSON.parse(gunzipSync(first.rawPayload).toString('utf8'))
+    expect(report.rows).toEqual({ accepted: 0, rejected: 40 })
+    const replay = await send({ 'accept-encoding': 'gzip' })
+    expect(replay.headers['almanac-reused-answer']).toBe('true')
+    expect(JSON.parse(gunzipSync(replay.rawPayload).toString('utf8'))).toEqual(report)
+    const plain = await send({})
+    expect(plain.headers['almanac-reused-answer']).toBe('true')
+    expect(plain.headers['content-encoding']).toBeUndefined()
+    expect(plain.json()).toEqual(report)
+  })
+
   it('leaves small answers, refused gzip and HEAD alone', async () => {
     await h.app.inject({ method: 'PUT', url: '/v1/skus/GZ-SMALL/history', headers: auth(KEY_GARDEN), payload: { frequency: 'month', firstPeriod: '2025-01', demand: [1] } })
     const small = await get('/v1/skus/GZ-SMALL/history', { 'accept-encoding': 'gzip' })

@@ -33,14 +33,10 @@ export function gunzipBounded(source: Readable, maxBytes: number): Readable & { 
   }
   source.on('data', countEncoded)
   source.on('error', (err) => bounded.destroy(err))
+  // Corrupt gzip: the rest of the body cannot be read as the client meant it, so the connection closes too.
   gunzip.on('error', (err) => {
-    const problem =
-      err instanceof ProblemError
-        ? err
-        : new ProblemError('bad-request', `The gzip body cannot be decompressed (${err.message})`, [
-            { path: 'Content-Encoding', message: 'the body is not valid gzip data' },
-          ], { connection: 'close' })
-    bounded.destroy(problem)
+    const errors = [{ path: 'Content-Encoding', message: 'the body is not valid gzip data' }]
+    bounded.destroy(new ProblemError('bad-request', `The gzip body cannot be decompressed (${err.message})`, errors, { connection: 'close' }))
   })
   // The reader (fastify's body parser, or an upload's stream) gets the error too; this one only keeps
   // an unread stream's failure from becoming an uncaught exception.

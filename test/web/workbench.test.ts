@@ -235,6 +235,22 @@ describe('workbench in the browser', () => {
     await page.close()
   })
 
+  it('uploads a semicolon file with decimal commas and a tags column, guessing both from the file', async () => {
+    const page = await signedInPage('/app/upload')
+    const csv = ['sku;period;demand;tags', 'HTG-4101;2025-10;12,5;category:heating|site:north', 'HTG-4101;2025-11;7,25;site:north'].join('\n')
+    await page.locator('#upload-file').setInputFiles({ name: 'pellets.csv', mimeType: 'text/csv', buffer: Buffer.from(csv) })
+    await page.getByTestId('upload-preview').waitFor()
+    expect(await page.getByLabel('Separator').inputValue()).toBe('semicolon')
+    expect(await page.getByLabel('Decimal mark').inputValue()).toBe('comma')
+    expect(await page.getByLabel('Tags column').inputValue()).toBe('3')
+    await page.getByRole('button', { name: 'Upload pellets.csv' }).click()
+    await page.getByTestId('upload-report').waitFor()
+    expect(await page.getByTestId('rows-accepted').textContent()).toBe('2')
+    const stored = await service.app.inject({ url: '/v1/skus/HTG-4101/history', headers: auth })
+    expect(stored.json()).toMatchObject({ firstPeriod: '2025-10', demand: [12.5, 7.25], tags: ['category:heating', 'site:north'] })
+    await page.close()
+  })
+
   it('keyboard only: from the overview to a SKU’s forecast figures, with the focus always visible', async () => {
     const page = await signedInPage()
     interface Focused {

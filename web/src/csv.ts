@@ -69,3 +69,17 @@ export function guessColumn(header: readonly string[], names: readonly string[])
   }
   return -1
 }
+
+export type DecimalSeparator = 'point' | 'comma'
+
+/**
+ * Comma when the delimiter is not a comma and some cell of the rows reads as a
+ * number with a decimal comma (`12,5`) while none has a decimal point; point otherwise.
+ */
+export function guessDecimalSeparator(rows: readonly (readonly string[])[], delimiter: Delimiter): DecimalSeparator {
+  if (delimiter === 'comma') return 'point'
+  const cells = rows.flat().map((c) => c.trim())
+  const comma = cells.some((c) => /^[+-]?\d+,\d+$/.test(c))
+  const point = cells.some((c) => /^[+-]?\d+\.\d+$/.test(c))
+  return comma && !point ? 'comma' : 'point'
+}

@@ -1,6 +1,6 @@
 import { useRef, useState } from 'preact/hooks'
 import { describeError, request } from '../api'
-import { DELIMITER_CHARS, guessColumn, guessDelimiter, parseRows, type Delimiter } from '../csv'
+import { DELIMITER_CHARS, guessColumn, guessDecimalSeparator, guessDelimiter, parseRows, type DecimalSeparator, type Delimiter } from '../csv'
 import { formatNumber } from '../format'
 import { Icon } from '../icons'
 import { Link, hrefs } from '../router'
@@ -16,10 +16,13 @@ const ROLES = [
   { key: 'demand', label: 'Demand', param: 'demandColumn', names: ['demand', 'quantity', 'qty', 'units', 'sales'] },
 ] as const
 type Role = (typeof ROLES)[number]['key']
+/** Header names taken for the optional tags column (tags separated by |). */
+const TAG_COLUMN_NAMES = ['tags', 'labels']
 
 interface Preview {
   readonly file: File
   readonly delimiter: Delimiter
+  readonly decimalSeparator: DecimalSeparator
   readonly header: string[]
   readonly rows: string[][]
 }
@@ -27,6 +30,8 @@ interface Preview {
 export function Upload() {
   const [preview, setPreview] = useState<Preview | null>(null)
   const [mapping, setMapping] = useState<Record<Role, number>>({ sku: -1, period: -1, demand: -1 })
+  // -1: no tags column.
+  const [tagsColumn, setTagsColumn] = useState(-1)
   const [frequency, setFrequency] = useState('month')
   // '' leaves the mode to the rows: dated rows are added, period rows overwrite.
   const [mode, setMode] = useState('')
@@ -48,7 +53,8 @@ export function Upload() {
       setProblem(`${file.name} has no header row.`)
       return
     }
-    setPreview({ file, delimiter: d, header, rows })
+    setPreview({ file, delimiter: d, decimalSeparator: guessDecimalSeparator(rows, d), header, rows })
+    setTagsColumn(guessColumn(header, TAG_COLUMN_NAMES))
     setMapping({
       sku: guessColumn(header, ROLES[0].names),
       period: guessColumn(header, ROLES[1].names),
@@ -64,7 +70,8 @@ export function Upload() {
   }
 
   const missing = ROLES.filter((r) => mapping[r.key] < 0).map((r) => r.label)
-  const clash = new Set(Object.values(mapping).filter((i) => i >= 0)).size < ROLES.filter((r) => mapping[r.key] >= 0).length
+  const chosen = [...Object.values(mapping), tagsColumn].filter((i) => i >= 0)
+  const clash = new Set(chosen).size < chosen.length
 
   const onUpload = async (e: Event) => {
     e.preventDefault()
@@ -75,8 +82,9 @@ export function Upload() {
     }
     setBusy(true)
     setProblem('')
-    const q = new URLSearchParams({ frequency, duplicates, delimiter: preview.delimiter })
+    const q = new URLSearchParams({ frequency, duplicates, delimiter: preview.delimiter, decimalSeparator: preview.decimalSeparator })
     if (mode !== '') q.set('mode', mode)
+    if (tagsColumn >= 0) q.set('tagsColumn', preview.header[tagsColumn]!.trim())
     for (const r of ROLES) q.set(r.param, preview.header[mapping[r.key]]!.trim())
     try {
       const answer = await request<UploadReport>(`/v1/history?${q}`, { method: 'POST', body: preview.file, contentType: 'text/csv' })
@@ -89,13 +97,15 @@ export function Upload() {
     }
   }
 
-  const roleOf = (col: number) => ROLES.find((r) => mapping[r.key] === col)
+  const roleOf = (col: number): { readonly label: string } | undefined =>
+    ROLES.find((r) => mapping[r.key] === col) ?? (col === tagsColumn ? { label: 'Tags' } : undefined)
   return (
     <>
       <h1 tabIndex={-1}>Upload histories</h1>
       <p>
         A CSV file in long layout: one row per SKU and period (a date or a label such as 2025-03, 2025-W09, 2025-Q2), with its
-        demand. Rows are summed into the chosen frequency. Nothing is stored until you press Upload.
+        demand, and optionally a column of tags separated by | (category:garden|site:north). Rows are summed into the chosen
+        frequency. Nothing is stored until you press Upload.
       </p>
       <div
         class={`dropzone ${dragging ? 'dragging' : ''}`}
@@ -156,6 +166,31 @@ export function Upload() {
                 <option value="comma">comma ,</option>
                 <option value="semicolon">semicolon ;</option>
                 <option value="tab">tab</option>
+              </select>
+            </div>
+            <div class="field">
+              <label for="upload-decimal">Decimal mark</label>
+              <select
+                id="upload-decimal"
+                value={preview.decimalSeparator}
+                onChange={(e) => setPreview({ ...preview, decimalSeparator: (e.target as HTMLSelectElement).value as DecimalSeparator })}
+              >
+                <option value="point">point 1.5</option>
+                {/* A comma cannot mark decimals in a comma-separated file. */}
+                <option value="comma" disabled={preview.delimiter === 'comma'}>
+                  comma 1,5
+                </option>
+              </select>
+            </div>
+            <div class="field">
+              <label for="upload-tags">Tags column</label>
+              <select id="upload-tags" value={String(tagsColumn)} onChange={(e) => setTagsColumn(Number((e.target as HTMLSelectElement).value))}>
+                <option value="-1">(none)</option>
+                {preview.header.map((h, i) => (
+                  <option key={i} value={String(i)}>
+                    {h || `column ${i + 1}`}
+                  </option>
+                ))}
               </select>
             </div>
             <div class="field">

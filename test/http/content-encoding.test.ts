@@ -125,6 +125,9 @@ describe('gzip request bodies', () => {
       expect(res.json()).toMatchObject({ type: 'https://almanac.example/problems/unsupported-media-type', errors: [{ path: 'Content-Encoding' }] })
     }
     expect((await post('/v1/history', 'text/csv', csv, 'identity')).statusCode).toBe(200)
+    // A request without a body has nothing to decode.
+    const read = await h.app.inject({ url: '/v1/skus/GZ-RAKE/history', headers: { ...auth(KEY_GARDEN), 'content-encoding': 'br' } })
+    expect(read.statusCode).toBe(200)
   })
 })
 

@@ -55,7 +55,7 @@ function tooLarge(maxBytes: number): ProblemError {
  * Request bodies sent with `Content-Encoding: gzip` are decompressed as a
  * stream before any parser sees them (JSON bodies and streamed CSV/NDJSON
  * uploads alike), bounded by the route's body limit in decompressed bytes.
- * `identity` is the same as no header; any other coding is a 415 naming the header.
+ * `identity` is the same as no header; any other coding on a body is a 415 naming the header.
  */
 export default fp(
   async (app) => {
@@ -63,7 +63,8 @@ export default fp(
       const header = request.headers['content-encoding']
       if (header === undefined) return payload
       const coding = header.trim().toLowerCase()
-      if (coding === '' || coding === 'identity') return payload
+      // Without a body there is nothing to decode, whatever the header says.
+      if (coding === '' || coding === 'identity' || !hasBody(request.method, request.headers)) return payload
       if (!GZIP.has(coding)) {
         throw new ProblemError(
           'unsupported-media-type',
@@ -72,7 +73,6 @@ export default fp(
           { connection: 'close' },
         )
       }
-      if (!hasBody(request.method, request.headers)) return payload
       return gunzipBounded(payload, request.routeOptions.bodyLimit ?? app.config.bodyLimitBytes)
     })
   },

@@ -15,7 +15,8 @@ export interface WorklistItem {
     readonly scoredPeriods: number
     readonly flaggedBy: string[]
   } | null
-  readonly change: { readonly ratio: number | null; readonly previousRunId: string | null; readonly commonPeriods: number } | null
+  /** `percent`: the change in percent, like WORKLIST_CHANGE_PERCENT (the stored entry keeps the ratio). */
+  readonly change: { readonly percent: number | null; readonly previousRunId: string | null; readonly commonPeriods: number } | null
   readonly failure: { readonly code: string; readonly message: string } | null
   readonly historyLength: number | null
   /** The publishing run that decided the SKU's run kinds; null for a SKU only biased. */
@@ -139,7 +140,9 @@ export class WorklistService {
 
 function changeOf(entry: StoredWorklistEntry | null): WorklistItem['change'] {
   if (entry === null || !entry.kinds.includes('large-change')) return null
-  return { ratio: entry.changeRatio, previousRunId: entry.previousRunId, commonPeriods: entry.commonPeriods }
+  // toPrecision(12): 0.6 * 100 is 60.00000000000001 in binary floating point; twelve digits are far more than a sum carries.
+  const percent = entry.changeRatio === null ? null : Number((entry.changeRatio * 100).toPrecision(12))
+  return { percent, previousRunId: entry.previousRunId, commonPeriods: entry.commonPeriods }
 }
 
 /**

@@ -1769,15 +1769,17 @@ export interface components {
             kinds: components["schemas"]["WorklistKind"][];
             /** @description For biased: the accuracy summary that flags the SKU */
             trackingSignal: {
+                /** @description Sum of deviations / MAE, unitless */
                 trackingSignal: number | null;
+                /** @description Trigg's smoothed tracking signal, unitless, in [-1, 1] */
                 smoothedTrackingSignal: number | null;
                 scoredPeriods: number;
                 flaggedBy: string[];
             } | null;
             /** @description For large-change */
             change: {
-                /** @description (new sum − previous sum) / |previous sum| over the common periods; null from a previous sum of 0 */
-                ratio: number | null;
+                /** @description 100 · (new sum − previous sum) / |previous sum| over the common periods, in percent (like WORKLIST_CHANGE_PERCENT); null from a previous sum of 0 */
+                percent: number | null;
                 /** @description The run of the previous published forecast */
                 previousRunId: string | null;
                 /** @description Periods both forecasts cover */
@@ -6246,7 +6248,10 @@ export interface operations {
     acknowledgeWorklistItem: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path: {
                 /** @description Stock-keeping unit code, unique within the tenant */
                 sku: string;
@@ -6357,7 +6362,10 @@ export interface operations {
     snoozeWorklistItem: {
         parameters: {
             query?: never;
-            header?: never;
+            header?: {
+                /** @description gzip: the body is gzip-compressed; it is decompressed as it arrives and the body limit counts the decompressed bytes (413 past it). Corrupt gzip is a 400, any other coding a 415 */
+                "Content-Encoding"?: "gzip" | "x-gzip" | "identity";
+            };
             path: {
                 /** @description Stock-keeping unit code, unique within the tenant */
                 sku: string;

@@ -85,7 +85,8 @@ describe('the worklist', { timeout: 120_000 }, () => {
     expect(glove.trackingSignal).toMatchObject({ scoredPeriods: 5, trackingSignal: 5 })
     const rake = page.items[2]!
     expect(rake).toMatchObject({ runId: second, change: { previousRunId: first, commonPeriods: 6 } })
-    expect((rake.change as { ratio: number }).ratio).toBeCloseTo(0.6, 6)
+    // In percent, like WORKLIST_CHANGE_PERCENT: +60 % (above).
+    expect((rake.change as { percent: number }).percent).toBeCloseTo(60, 4)
     expect((await app.inject({ url: '/v1/worklist/counts' })).json()).toEqual({ biased: 1, 'large-change': 1, failed: 1, 'short-history': 1 })
   })
 

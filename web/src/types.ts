@@ -226,7 +226,7 @@ export interface WorklistItem {
   readonly sku: string
   readonly kinds: readonly WorklistKind[]
   readonly trackingSignal: { readonly trackingSignal: number | null; readonly smoothedTrackingSignal: number | null; readonly scoredPeriods: number } | null
-  readonly change: { readonly ratio: number | null; readonly commonPeriods: number } | null
+  readonly change: { readonly percent: number | null; readonly commonPeriods: number } | null
   readonly failure: Failure | null
   readonly historyLength: number | null
   readonly review: WorklistReview | null

@@ -30,8 +30,8 @@ const WorklistItemSchema = z
     kinds: z.array(WorklistKind).min(1).describe('Why the SKU is listed; one or more'),
     trackingSignal: z
       .object({
-        trackingSignal: z.number().nullable(),
-        smoothedTrackingSignal: z.number().nullable(),
+        trackingSignal: z.number().nullable().describe('Sum of deviations / MAE, unitless'),
+        smoothedTrackingSignal: z.number().nullable().describe("Trigg's smoothed tracking signal, unitless, in [-1, 1]"),
         scoredPeriods: z.number().int().min(0),
         flaggedBy: z.array(z.string()),
       })
@@ -39,7 +39,10 @@ const WorklistItemSchema = z
       .describe('For biased: the accuracy summary that flags the SKU'),
     change: z
       .object({
-        ratio: z.number().nullable().describe('(new sum − previous sum) / |previous sum| over the common periods; null from a previous sum of 0'),
+        percent: z
+          .number()
+          .nullable()
+          .describe('100 · (new sum − previous sum) / |previous sum| over the common periods, in percent (like WORKLIST_CHANGE_PERCENT); null from a previous sum of 0'),
         previousRunId: z.string().nullable().describe('The run of the previous published forecast'),
         commonPeriods: z.number().int().min(0).describe('Periods both forecasts cover'),
       })

@@ -27,7 +27,7 @@ function detailOf(item: WorklistItem, kind: WorklistKind): string {
     case 'large-change': {
       const c = item.change
       if (!c) return ''
-      const moved = c.ratio === null ? 'up from zero' : `${c.ratio > 0 ? '+' : ''}${(c.ratio * 100).toFixed(0)} %`
+      const moved = c.percent === null ? 'up from zero' : `${c.percent > 0 ? '+' : ''}${c.percent.toFixed(0)} %`
       return `${moved} against the previous forecast over ${c.commonPeriods} period${c.commonPeriods === 1 ? '' : 's'} in common`
     }
     case 'failed':

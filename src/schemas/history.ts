@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { ClosingReportSchema } from './closing.js'
 import { FREQUENCIES } from '../engine/index.js'
 import { BATCH_ID_PATTERN, DUPLICATE_POLICIES, MAX_TAGS, TAG_PATTERN, UPLOAD_MODES } from '../history/types.js'
 import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, StockPolicy } from './run.js'
@@ -79,6 +80,12 @@ export const UploadQuery = z.object({
   openPeriod: PeriodLabel.optional().describe(
     'replace-open-period: the open period (e.g. 2026-12); default the one period every row falls in',
   ),
+  closeThrough: PeriodLabel.optional().describe(
+    'After the upload is stored, close the frequency\'s periods through this one, as PUT /v1/closed-periods/{frequency} ' +
+      'does (zero-demand SKUs carried forward, every history of the frequency rescored): a feed that sends a month\'s ' +
+      'last file moves the closed-through period itself. Checked before anything is stored: a period behind the ' +
+      'closed-through one is a 409 period-closed',
+  ),
   frequency: z.enum(FREQUENCIES).default('month').describe('Bucket of stored histories; dated rows are summed into it (week = ISO week)'),
   duplicates: z
     .enum(DUPLICATE_POLICIES)
@@ -119,6 +126,7 @@ export const UploadReportSchema = z
       alreadyApplied: z.number().int().min(0).describe('SKUs this batch id had already written: left as they were'),
       zeroed: z.number().int().min(0).describe('replace-open-period: stored SKUs left out of the upload, set to 0 in the open period'),
     }),
+    closing: ClosingReportSchema.optional().describe('With closeThrough: what closing the periods did'),
     errors: z.array(UploadErrorSchema).describe('The first 1000 rejections'),
     errorsNotListed: z.number().int().min(0).describe('Rejections beyond the listed ones'),
   })

@@ -239,7 +239,7 @@ export interface paths {
         put?: never;
         /**
          * Upload demand histories in bulk (JSON, NDJSON or CSV)
-         * @description Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`; application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand", "tags"? }`; text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn, periodColumn, demandColumn; other columns ignored), with `delimiter` and `decimalSeparator` (`1,5` with decimalSeparator=comma, which needs a semicolon or tab delimiter; thousands separators are refused), and an optional tags column named by tagsColumn (tags separated by `|`). A SKU's tags become all the tags of its rows; a SKU whose rows carry none keeps its stored tags. CSV and NDJSON are read as a stream; gzip bodies (Content-Encoding: gzip) are decompressed as they arrive. A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label (2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU's first and last row without rows become 0. Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written atomically, and a SKU without good rows keeps its stored history. `mode`: add (default for dated rows: transactions are added to the stored periods), overwrite (default for period rows and series: each period sent replaces the stored one), replace (the whole history), or replace-open-period (a month-to-date file: the one open period of every stored SKU of the frequency). Resending is safe with Idempotency-Key (the same answer again) or `batch` (each SKU is written once per batch id while it is remembered).
+         * @description Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`; application/x-ndjson, one object per line, either a series as above or a row `{ "sku", "period", "demand", "tags"? }`; text/csv, long layout: a header row, then one `sku,period,demand` row per line (names set by skuColumn, periodColumn, demandColumn; other columns ignored), with `delimiter` and `decimalSeparator` (`1,5` with decimalSeparator=comma, which needs a semicolon or tab delimiter; thousands separators are refused), and an optional tags column named by tagsColumn (tags separated by `|`). A SKU's tags become all the tags of its rows; a SKU whose rows carry none keeps its stored tags. CSV and NDJSON are read as a stream; gzip bodies (Content-Encoding: gzip) are decompressed as they arrive. A period is a date (2024-03-05; summed into the `frequency` buckets, week = ISO week) or a period label (2024-03, 2024-W09, 2024-Q2, 2024). Buckets between a SKU's first and last row without rows become 0. Bad rows are reported (line, column, reason; first 1000 listed) and the good ones kept; a SKU is written atomically, and a SKU without good rows keeps its stored history. `mode`: add (default for dated rows: transactions are added to the stored periods), overwrite (default for period rows and series: each period sent replaces the stored one), replace (the whole history), or replace-open-period (a month-to-date file: the one open period of every stored SKU of the frequency). Resending is safe with Idempotency-Key (the same answer again) or `batch` (each SKU is written once per batch id while it is remembered). `closeThrough` closes the periods of `frequency` through the one given once the upload is stored (the answer's `closing`), so the feed moves the closed-through period itself.
          */
         post: operations["uploadHistories"];
         delete?: never;
@@ -1501,6 +1501,22 @@ export interface components {
             /** @description ISO-8601 */
             producedAt: string;
         };
+        ClosingReport: {
+            /** @enum {string} */
+            frequency: "day" | "week" | "month" | "quarter" | "year";
+            closedThrough: string;
+            /** @description The closed-through period before this call */
+            previous: string | null;
+            /**
+             * @description unchanged: it was already closed through this period (the walk ran again)
+             * @enum {string}
+             */
+            outcome: "moved" | "unchanged";
+            /** @description Stored histories of the frequency looked at (and rescored) */
+            checkedSkus: number;
+            /** @description Histories carried forward to closedThrough with zero demand */
+            advancedSkus: number;
+        };
         History: {
             sku: string;
             /** @enum {string} */
@@ -1539,6 +1555,8 @@ export interface components {
                 /** @description replace-open-period: stored SKUs left out of the upload, set to 0 in the open period */
                 zeroed: number;
             };
+            /** @description With closeThrough: what closing the periods did */
+            closing?: components["schemas"]["ClosingReport"];
             /** @description The first 1000 rejections */
             errors: {
                 /** @description 1-based line of a CSV or NDJSON upload */
@@ -1943,22 +1961,6 @@ export interface components {
                 quarter?: string;
                 year?: string;
             };
-        };
-        ClosingReport: {
-            /** @enum {string} */
-            frequency: "day" | "week" | "month" | "quarter" | "year";
-            closedThrough: string;
-            /** @description The closed-through period before this call */
-            previous: string | null;
-            /**
-             * @description unchanged: it was already closed through this period (the walk ran again)
-             * @enum {string}
-             */
-            outcome: "moved" | "unchanged";
-            /** @description Stored histories of the frequency looked at (and rescored) */
-            checkedSkus: number;
-            /** @description Histories carried forward to closedThrough with zero demand */
-            advancedSkus: number;
         };
     };
     responses: never;
@@ -3369,6 +3371,8 @@ export interface operations {
                 batch?: string;
                 /** @description replace-open-period: the open period (e.g. 2026-12); default the one period every row falls in */
                 openPeriod?: string;
+                /** @description After the upload is stored, close the frequency's periods through this one, as PUT /v1/closed-periods/{frequency} does (zero-demand SKUs carried forward, every history of the frequency rescored): a feed that sends a month's last file moves the closed-through period itself. Checked before anything is stored: a period behind the closed-through one is a 409 period-closed */
+                closeThrough?: string;
                 /** @description Bucket of stored histories; dated rows are summed into it (week = ISO week) */
                 frequency?: "day" | "week" | "month" | "quarter" | "year";
                 /** @description Several rows for one SKU and bucket: sum them (default) or keep the last */
@@ -3471,7 +3475,7 @@ export interface operations {
                     "application/problem+json": components["schemas"]["Problem"];
                 };
             };
-            /** @description Idempotency key in use (idempotency-key-in-use) */
+            /** @description Idempotency key in use (idempotency-key-in-use); A later period is closed (period-closed) */
             409: {
                 headers: {
                     [name: string]: unknown;

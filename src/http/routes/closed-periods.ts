@@ -7,6 +7,7 @@ import { PeriodLabel } from '../../schemas/run.js'
 import { requireErp } from '../plugins/erp.js'
 import { requireHistories } from '../plugins/history.js'
 import { READ, WRITE } from './responses.js'
+import { ClosingReportSchema } from '../../schemas/closing.js'
 
 const ClosedPeriods = z
   .object({
@@ -22,16 +23,6 @@ const CloseBody = z
   })
   .meta({ id: 'ClosePeriod' })
 
-const ClosingReportSchema = z
-  .object({
-    frequency: z.enum(FREQUENCIES),
-    closedThrough: z.string(),
-    previous: z.string().nullable().describe('The closed-through period before this call'),
-    outcome: z.enum(['moved', 'unchanged']).describe('unchanged: it was already closed through this period (the walk ran again)'),
-    checkedSkus: z.number().int().min(0).describe('Stored histories of the frequency looked at (and rescored)'),
-    advancedSkus: z.number().int().min(0).describe('Histories carried forward to closedThrough with zero demand'),
-  })
-  .meta({ id: 'ClosingReport' })
 
 /** /v1/closed-periods: the tenant's closed-through period per frequency. */
 const routes: FastifyPluginAsyncZod = async (app) => {

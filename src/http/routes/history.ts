@@ -7,7 +7,9 @@ import { commitUpload, defaultMode } from '../../history/ingest.js'
 import { withSkuQuota } from '../../history/quota.js'
 import { DEFAULT_QUOTA_SKUS_PER_TENANT } from '../../config.js'
 import { bucketOf } from '../../history/buckets.js'
-import { formatPeriod } from '../../engine/index.js'
+import { formatPeriod, parsePeriod, type Frequency } from '../../engine/index.js'
+import { closePeriod } from '../../history/close-period.js'
+import { requireErp } from '../plugins/erp.js'
 import { readNdjsonUpload } from '../../history/ndjson-reader.js'
 import { parseUploadSeries, UploadSeries } from '../../history/series-item.js'
 import { MAX_FIELD_ERRORS } from '../problem-mapping.js'
@@ -82,7 +84,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       schema: {
         tags: ['histories'],
         operationId: 'uploadHistories',
-        'x-problems': [...WRITE, ...IDEMPOTENT],
+        'x-problems': [...WRITE, ...IDEMPOTENT, 'period-closed'],
         summary: 'Upload demand histories in bulk (JSON, NDJSON or CSV)',
         description: [
           'Content types: application/json `{ "mode"?, "series": [{ "sku", "frequency"?, "firstPeriod", "demand", "tags"? }] }`;',
@@ -101,7 +103,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
           'period rows and series: each period sent replaces the stored one), replace (the whole history), or',
           'replace-open-period (a month-to-date file: the one open period of every stored SKU of the frequency).',
           'Resending is safe with Idempotency-Key (the same answer again) or `batch` (each SKU is written once per',
-          'batch id while it is remembered).',
+          'batch id while it is remembered). `closeThrough` closes the periods of `frequency` through the one given once',
+          'the upload is stored (the answer\'s `closing`), so the feed moves the closed-through period itself.',
         ].join(' '),
         querystring: UploadQuery,
         response: { 200: UploadReportSchema },
@@ -113,6 +116,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       const store = requireHistories(app)
       const q = request.query
       checkCsvDialect(q)
+      // Checked before anything is read or stored: a bad or backward closing refuses the whole upload.
+      if (q.closeThrough !== undefined) await checkCloseThrough(app, request.tenant, q.frequency, q.closeThrough)
       const acc = new HistoryAccumulator({ frequency: q.frequency, duplicates: q.duplicates })
       const type = (request.headers['content-type'] ?? '').split(';')[0]!.trim().toLowerCase()
       let mode = q.mode
@@ -178,9 +183,48 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         ...(openPeriod === undefined ? {} : { openPeriod }),
       })
       request.log.info({ type, mode: report.mode, rows: report.rows, skus: report.skus }, 'history upload')
-      return { ...report, errors: [...report.errors] }
+      if (q.closeThrough === undefined) return { ...report, errors: [...report.errors] }
+      const erp = requireErp(app)
+      const closing = await closePeriod({ histories: store, closing: erp.closing, accuracy: erp.accuracy }, request.tenant, q.frequency, q.closeThrough)
+      if (closing.outcome === 'behind') {
+        // Another request closed further meanwhile: the upload is stored; say so rather than pretend it closed.
+        throw new ProblemError(
+          'period-closed',
+          `The upload was stored, but ${q.frequency} periods were closed through ${closing.previous} meanwhile; closing only moves forward`,
+          undefined,
+          {},
+          { dependsOnState: true },
+        )
+      }
+      request.log.info({ frequency: q.frequency, closedThrough: closing.closedThrough, advanced: closing.advancedSkus }, 'periods closed by upload')
+      return { ...report, errors: [...report.errors], closing: { ...closing, outcome: closing.outcome } }
     },
   )
+}
+
+/**
+ * closeThrough must be a period label of the upload's frequency, not behind the
+ * tenant's closed-through period, and the server must keep closing records.
+ * @throws ProblemError 400 naming closeThrough, 409 period-closed, or 503 not-ready
+ */
+async function checkCloseThrough(app: Parameters<FastifyPluginAsyncZod>[0], tenant: string, frequency: Frequency, label: string): Promise<void> {
+  let ordinal: number
+  try {
+    ordinal = parsePeriod(label, frequency)
+  } catch (err) {
+    const message = `is not a ${frequency} period: ${(err as Error).message}`
+    throw new ProblemError('validation-failed', `closeThrough ${message}`, [{ path: 'closeThrough', message }])
+  }
+  const current = (await requireErp(app).closing.ordinals(tenant))[frequency]
+  if (current !== undefined && ordinal < current) {
+    throw new ProblemError(
+      'period-closed',
+      `${frequency} periods are already closed through ${formatPeriod(current, frequency)}; closing only moves forward (nothing was stored)`,
+      undefined,
+      {},
+      { dependsOnState: true },
+    )
+  }
 }
 
 /** Feed batch ids are remembered 35 days unless configured: a monthly feed's files stay known until the month after. */

@@ -138,6 +138,7 @@ try {
     ['exception + failed=false + tag', 'exception=true&failed=false&tag=category:garden&limit=50'],
     // Few matches and no small set to walk: each request stops at MAX_EXAMINED rows (the bound).
     ['sparse: minError=2.49 (about 0.2%)', 'minError=2.49&limit=50'],
+    ['sort=error, model (largest error first)', 'sort=error&model=theta&limit=50'],
   ]
   if (deep !== null) queries.push(['model, common, 1,000 deep (limit 200)', `model=level-smoothing&limit=200&cursor=${deep}`])
   let worstP95 = 0

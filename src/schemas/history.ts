@@ -66,12 +66,19 @@ export const SkuListQuery = PageQuery.extend({
     .describe('The holdout error minError and maxError compare (default mase); only SKUs whose run ranked by it match'),
   minError: ErrorBound.optional().describe('Only SKUs whose chosen model has at least this holdout error (errorMeasure)'),
   maxError: ErrorBound.optional().describe('Only SKUs whose chosen model has at most this holdout error (errorMeasure)'),
+  sort: z
+    .enum(['sku', 'error'])
+    .default('sku')
+    .describe(
+      'sku (default): by SKU, byte order. error: by holdout error on errorMeasure, largest first (ties in reverse SKU order), ' +
+        'only SKUs that have one; its cursor is its own',
+    ),
 }).superRefine((q, ctx) => {
   if (q.minError !== undefined && q.maxError !== undefined && q.minError > q.maxError) {
     ctx.addIssue({ code: 'custom', path: ['minError'], message: 'must not exceed maxError' })
   }
-  if (q.errorMeasure !== undefined && q.minError === undefined && q.maxError === undefined) {
-    ctx.addIssue({ code: 'custom', path: ['errorMeasure'], message: 'needs minError or maxError' })
+  if (q.errorMeasure !== undefined && q.minError === undefined && q.maxError === undefined && q.sort !== 'error') {
+    ctx.addIssue({ code: 'custom', path: ['errorMeasure'], message: 'needs minError, maxError or sort=error' })
   }
 })
 

@@ -3308,6 +3308,8 @@ export interface operations {
                 minError?: number;
                 /** @description Only SKUs whose chosen model has at most this holdout error (errorMeasure) */
                 maxError?: number;
+                /** @description sku (default): by SKU, byte order. error: by holdout error on errorMeasure, largest first (ties in reverse SKU order), only SKUs that have one; its cursor is its own */
+                sort?: "sku" | "error";
             };
             header?: never;
             path?: never;

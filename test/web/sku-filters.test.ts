@@ -111,6 +111,22 @@ describe('SKU list filters', { timeout: 60_000 }, () => {
     await page.close()
   })
 
+  it('orders by holdout error, largest first, as GET /v1/skus?sort=error does', async () => {
+    const expected = (await api('/v1/skus?sort=error&limit=50')).items.map((i) => i.sku)
+    expect(expected.length).toBeGreaterThan(1)
+    const page = await signedInPage('/app/skus')
+    await page.locator('[data-testid=sku-list-status][data-state=done]').waitFor()
+    await page.getByLabel('Order').selectOption('error')
+    await page.locator('[data-testid=sku-list-status][data-state=done][data-filters="sort=error"]').waitFor()
+    const rows = page.locator('[data-testid=sku-table] tbody tr')
+    expect(await rows.locator('th a').allTextContents()).toEqual(expected)
+    const errors = (await rows.locator('td.num').evaluateAll((tds) => tds.map((td) => td.textContent))).filter((t) => t?.includes('MASE'))
+    const values = errors.map((t) => Number(t!.split(' ')[0]!.replace(/,/g, '')))
+    expect(values.length).toBe(expected.length)
+    expect(values).toEqual([...values].sort((a, b) => b - a))
+    await page.close()
+  })
+
   it('is reachable by keyboard and has no serious or critical accessibility violations (axe-core)', async () => {
     const page = await signedInPage('/app/skus?minError=0.5')
     await page.locator('[data-testid=sku-list-status][data-state=done][data-filters="minError=0.5"]').waitFor()

@@ -13,9 +13,11 @@ export interface SkuQuery {
   readonly errorMeasure: string
   readonly failed: boolean
   readonly exception: boolean
+  /** '' (by SKU) or 'error' (largest holdout error first, on errorMeasure). */
+  readonly sort: string
 }
 
-export const EMPTY_QUERY: SkuQuery = { prefix: '', tag: '', model: '', warning: '', minError: '', errorMeasure: 'mase', failed: false, exception: false }
+export const EMPTY_QUERY: SkuQuery = { prefix: '', tag: '', model: '', warning: '', minError: '', errorMeasure: 'mase', failed: false, exception: false, sort: '' }
 
 /**
  * Model ids the service chooses from (the API's `model` enum). A test
@@ -97,6 +99,7 @@ export function parseSkuQuery(query: URLSearchParams): SkuQuery {
     errorMeasure: query.get('errorMeasure') ?? 'mase',
     failed: query.get('failed') === 'true',
     exception: query.get('exception') === 'true',
+    sort: query.get('sort') === 'error' ? 'error' : '',
   }
 }
 
@@ -112,9 +115,11 @@ export function skuQueryParams(q: Partial<SkuQuery>): URLSearchParams {
   text('model', q.model)
   text('warning', q.warning)
   text('minError', q.minError)
-  if (q.minError?.trim() && q.errorMeasure && q.errorMeasure !== 'mase') out.set('errorMeasure', q.errorMeasure)
+  const errorUsed = Boolean(q.minError?.trim()) || q.sort === 'error'
+  if (errorUsed && q.errorMeasure && q.errorMeasure !== 'mase') out.set('errorMeasure', q.errorMeasure)
   if (q.failed) out.set('failed', 'true')
   if (q.exception) out.set('exception', 'true')
+  if (q.sort === 'error') out.set('sort', 'error')
   return out
 }
 

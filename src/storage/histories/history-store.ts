@@ -8,6 +8,7 @@ import type { HistoryData } from '../../history/types.js'
 import { decodeCursor, encodeCursor } from '../paging.js'
 import { exceptionsKey, isValidTenant } from '../keys.js'
 import { findSkus, type SkuFilter } from '../skus/sku-list.js'
+import { findSkusByError } from '../skus/sku-list-by-error.js'
 import { summaryKeys } from '../skus/sku-summary-store.js'
 import { decodeSummaryRecord } from '../skus/summary-record.js'
 import type { SkuSummary } from '../../runs/sku-summary.js'
@@ -346,22 +347,19 @@ export class HistoryStore implements HistoryWriter {
    * One page of history summaries ordered by SKU (byte order), optionally only
    * SKUs carrying `tag` and/or starting with `prefix`, and by their newest
    * published outcome (model, warning, failed, holdout error) or the exception
-   * list (skus/sku-list.ts: a filtered page may hold fewer than `limit` items).
+   * list (skus/sku-list.ts: a filtered page may hold fewer than `limit` items);
+   * `sort: 'error'` orders by holdout error instead, largest first (skus/sku-list-by-error.ts).
    * Each item carries its published summary when it has one.
    * @throws CursorError on a cursor this service did not issue
    */
   async list(
     tenant: string,
-    page: { readonly limit: number; readonly cursor?: string } & SkuFilter,
+    page: { readonly limit: number; readonly cursor?: string; readonly sort?: 'sku' | 'error' } & SkuFilter,
   ): Promise<{ items: ListedSku[]; nextCursor: string | null }> {
     const k = this.keys(tenant)
     const summaries = summaryKeys(this.opts.prefix, tenant)
-    const found = await findSkus(
-      this.redis,
-      { skus: k.skus, tag: k.tag, exceptions: exceptionsKey(this.opts.prefix, tenant), summaries },
-      page,
-      page,
-    )
+    const find = page.sort === 'error' ? findSkusByError : findSkus
+    const found = await find(this.redis, { skus: k.skus, tag: k.tag, exceptions: exceptionsKey(this.opts.prefix, tenant), summaries }, page, page)
     const skus = found.skus
     const [metas, records] =
       skus.length > 0 ? await Promise.all([this.redis.hmget(k.meta, ...skus), this.redis.hmget(summaries.all, ...skus)]) : [[], []]

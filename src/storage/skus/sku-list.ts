@@ -1,6 +1,6 @@
 import type { MetricName, ModelName } from '../../engine/index.js'
 import type { RedisClient } from '../redis.js'
-import { decodeCursor, encodeCursor } from '../paging.js'
+import { CursorError, decodeCursor, encodeCursor } from '../paging.js'
 import { decodeSummaryRecord } from './summary-record.js'
 import type { SummaryKeys } from './sku-summary-store.js'
 
@@ -40,7 +40,7 @@ export interface SkuListKeys {
 /** Rows of the walked set one request examines at most (keeps a sparse filter's request short). */
 export const MAX_EXAMINED = 10_000
 /** Rows read per batch when conditions are checked. */
-const BATCH = 1_000
+export const BATCH = 1_000
 
 /** True when a filter needs the summaries (a model, warning, failed or error condition). */
 export function needsSummaries(f: SkuFilter): boolean {
@@ -59,7 +59,12 @@ export async function findSkus(
 ): Promise<{ skus: string[]; nextCursor: string | null }> {
   const prefix = filter.prefix
   let min: string = prefix === undefined ? '-' : `[${prefix}`
-  if (page.cursor !== undefined) min = `(${decodeCursor(page.cursor)}`
+  if (page.cursor !== undefined) {
+    const after = decodeCursor(page.cursor)
+    // A cursor of the list by error (error and SKU on two lines) does not page the list by SKU.
+    if (after.includes('\n')) throw new CursorError()
+    min = `(${after}`
+  }
   const max: string | Buffer = prefix === undefined ? '+' : Buffer.concat([Buffer.from(`[${prefix}`), Buffer.from([0xff])])
   const limit = Math.max(1, Math.floor(page.limit))
 
@@ -112,7 +117,7 @@ export async function findSkus(
 }
 
 /** Per SKU of the batch: does it meet every condition the walked set does not already guarantee? */
-async function matches(
+export async function matches(
   redis: RedisClient,
   k: SkuListKeys,
   f: SkuFilter,

@@ -9,6 +9,7 @@ import { prepareItems } from '../../../src/storage/items/prepared-item.js'
 import { exceptionsKey } from '../../../src/storage/keys.js'
 import { RunStore } from '../../../src/storage/runs/run-store.js'
 import { MAX_EXAMINED } from '../../../src/storage/skus/sku-list.js'
+import { CursorError } from '../../../src/storage/paging.js'
 import { summaryKeys } from '../../../src/storage/skus/sku-summary-store.js'
 import { runRequest, syntheticSeries } from '../../queue/fixtures.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../../helpers/redis.js'
@@ -182,6 +183,35 @@ describe('HistoryStore.list with filters', () => {
       ['WRK-000', { runId: 'list-1', model: 'croston', warnings: ['short-history'], failed: false, error: { measure: 'mase', value: 0 } }],
       ['WRK-001', { runId: 'list-1', model: 'theta', warnings: [], failed: false, error: { measure: 'mase', value: 0.1 } }],
     ])
+  })
+
+  it('sort=error lists SKUs with an error, largest first, filtered and paged on its own cursor', async () => {
+    const byErrorDesc = (keep: (i: number) => boolean) => expected((i) => i % 3 !== 2 && keep(i)).reverse()
+    expect(await all({ limit: 4, sort: 'error' })).toEqual(byErrorDesc(() => true))
+    expect(await all({ limit: 3, sort: 'error', minError: 2, maxError: 4 })).toEqual(byErrorDesc((i) => i >= 20 && i <= 40))
+    expect(await all({ limit: 2, sort: 'error', model: 'theta', tag: 'site:south', exception: false })).toEqual(
+      byErrorDesc((i) => i >= 30 && i % 2 === 1 && i !== 31),
+    )
+    expect(await all({ limit: 2, sort: 'error', prefix: 'WRK-01' })).toEqual(byErrorDesc((i) => i >= 10 && i < 20))
+    expect(await all({ limit: 2, sort: 'error', errorMeasure: 'mape' })).toEqual([])
+    // The two orders do not share cursors.
+    const bySku = await histories.list(T, { limit: 1 })
+    await expect(histories.list(T, { limit: 1, sort: 'error', cursor: bySku.nextCursor! })).rejects.toThrow(CursorError)
+    const byError = await histories.list(T, { limit: 1, sort: 'error' })
+    await expect(histories.list(T, { limit: 1, cursor: byError.nextCursor! })).rejects.toThrow(CursorError)
+  })
+
+  it('sort=error: equal errors in reverse SKU order; a SKU that moves between pages does not stop the walk', async () => {
+    await storeHistories(['TIE-A', 'TIE-B', 'TIE-C'])
+    await commit('ties-1', '2026-02-01T01:00:00Z', [ok('TIE-A', 'theta', 99), ok('TIE-B', 'theta', 99), ok('TIE-C', 'theta', 99)])
+    const first = await histories.list(T, { limit: 1, sort: 'error' })
+    expect(first.items.map((i) => i.sku)).toEqual(['TIE-C'])
+    const second = await histories.list(T, { limit: 1, sort: 'error', cursor: first.nextCursor! })
+    expect(second.items.map((i) => i.sku)).toEqual(['TIE-B'])
+    // TIE-B's error drops before the next page: the page still continues with TIE-A.
+    await commit('ties-2', '2026-02-01T02:00:00Z', [ok('TIE-B', 'theta', 0.01)])
+    const third = await histories.list(T, { limit: 1, sort: 'error', cursor: second.nextCursor! })
+    expect(third.items.map((i) => i.sku)).toEqual(['TIE-A'])
   })
 
   it(`stops after ${MAX_EXAMINED} rows without a match and hands back a cursor to go on from`, async () => {

@@ -69,7 +69,7 @@ export function SkuList({ query }: { query: SkuQuery }) {
   const next = page.state === 'done' ? page.value.body.nextCursor : null
   const pageNumber = cursors.length
   const filtered = skuQueryKey(query) !== ''
-  const outcomeFiltered = query.model || query.warning || query.minError || query.failed || query.exception
+  const outcomeFiltered = query.model || query.warning || query.minError || query.failed || query.exception || query.sort
   return (
     <>
       <h1 tabIndex={-1}>SKUs</h1>
@@ -171,6 +171,13 @@ export function SkuList({ query }: { query: SkuQuery }) {
           </label>
         </fieldset>
         <div class="field">
+          <label for="sku-sort">Order</label>
+          <select id="sku-sort" value={draft.sort} onChange={(e) => onChoose({ ...draft, sort: (e.target as HTMLSelectElement).value })}>
+            <option value="">By SKU</option>
+            <option value="error">Largest holdout error first</option>
+          </select>
+        </div>
+        <div class="field">
           <label for="sku-limit">Per page</label>
           <select id="sku-limit" value={String(limit)} onChange={(e) => setLimit(Number((e.target as HTMLSelectElement).value))}>
             {PAGE_SIZES.map((n) => (
@@ -189,7 +196,8 @@ export function SkuList({ query }: { query: SkuQuery }) {
       </form>
       <p id="sku-error-help" class="muted small">
         The holdout error of the model each SKU's newest published run chose, on the measure that run ranked by (MASE unless it
-        asked for another). Model, warning, error and failed reflect that run; they are estimates to review before ordering.
+        asked for another); the threshold and the order by error use the measure chosen beside it, and list only SKUs ranked by
+        it. Model, warning, error and failed reflect that run; they are estimates to review before ordering.
       </p>
 
       <p
@@ -303,5 +311,6 @@ function describeQuery(q: SkuQuery): string {
   if (q.minError) parts.push(` with ${measureLabel(q.errorMeasure)} at least ${q.minError}`)
   if (q.failed) parts.push(' whose forecast failed')
   if (q.exception) parts.push(' on the exception list')
-  return parts.join(',')
+  const text = parts.join(',')
+  return q.sort === 'error' ? `${text}, largest ${measureLabel(q.errorMeasure)} first` : text
 }

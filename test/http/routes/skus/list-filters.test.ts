@@ -86,6 +86,13 @@ describe('GET /v1/skus filters', () => {
     expect(await walk('errorMeasure=mape&minError=0')).toEqual([])
   })
 
+  it('sort=error pages by holdout error, largest first, with the filters', async () => {
+    const forecast = (i: number) => i % 4 !== 3
+    expect(await walk('sort=error&limit=5')).toEqual(where(forecast).reverse())
+    expect(await walk('sort=error&tag=category:garden&model=theta&limit=2')).toEqual(where((i) => forecast(i) && i < 12 && i % 2 === 1).reverse())
+    expect(await walk('sort=error&errorMeasure=mase&maxError=1&limit=3')).toEqual(where((i) => forecast(i) && i <= 8).reverse())
+  })
+
   it('each item carries its published summary', async () => {
     const body = (await h.app.inject({ url: '/v1/skus?prefix=GRD-100&limit=4', headers })).json()
     expect(body.items.map((i: { sku: string; published: unknown }) => [i.sku, i.published])).toEqual([
@@ -107,6 +114,7 @@ describe('GET /v1/skus filters', () => {
       ['minError=2&maxError=1', 'minError'],
       ['errorMeasure=mase', 'errorMeasure'],
       ['errorMeasure=accuracy&minError=1', 'errorMeasure'],
+      ['sort=model', 'sort'],
     ]
     for (const [query, field] of cases) {
       const res = await h.app.inject({ url: `/v1/skus?${query}`, headers })

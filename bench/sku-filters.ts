@@ -117,6 +117,16 @@ try {
       `in ${((performance.now() - started) / 1000).toFixed(1)} s\n`,
   )
 
+  // Memory of the summaries and their index sets (what publishing adds per SKU).
+  let summaryBytes = 0
+  let scan = '0'
+  do {
+    const [next, keys] = await redis.scan(scan, 'MATCH', `${summaries.keys(TENANT).base}:*`, 'COUNT', 1000)
+    scan = next
+    for (const key of keys) summaryBytes += Number(await redis.call('MEMORY', 'USAGE', key, 'SAMPLES', '0'))
+  } while (scan !== '0')
+  process.stdout.write(`summaries and index sets: ${(summaryBytes / SKU_COUNT).toFixed(0)} B per SKU (MEMORY USAGE)\n`)
+
   // 2. Time each filter.
   const get = async (q: string) => {
     const r = await fetch(`${baseUrl}/v1/skus?${q}`)

@@ -9,7 +9,9 @@ import type { SummaryKeys } from './sku-summary-store.js'
  * ordered by SKU (byte order). The most selective index set in the cursor's
  * range (fewest members, ZLEXCOUNT) is walked with ZRANGEBYLEX in batches; the
  * other conditions are checked in bulk per batch (ZMSCORE on the history, tag
- * and exception sets, one HMGET of the summaries). A request stops at `limit`
+ * and exception sets, one HMGET of the summaries). An error range has no set in
+ * SKU order; when few SKUs fall in it they are read whole (ZRANGEBYSCORE),
+ * sorted and walked instead. A request stops at `limit`
  * matches or after MAX_EXAMINED rows of the walked set, whichever comes first,
  * and then returns a cursor to go on from: a page may hold fewer than `limit`
  * items (even none) while nextCursor is not null.
@@ -41,6 +43,8 @@ export interface SkuListKeys {
 export const MAX_EXAMINED = 10_000
 /** Rows read per batch when conditions are checked. */
 export const BATCH = 1_000
+/** Most SKUs in an error range that are read whole and sorted instead of walking a set in SKU order. */
+export const MAX_FEW_IN_ERROR_RANGE = 5_000
 
 /** True when a filter needs the summaries (a model, warning, failed or error condition). */
 export function needsSummaries(f: SkuFilter): boolean {
@@ -77,13 +81,24 @@ export async function findSkus(
   if (filter.warning !== undefined) bySummary.push(k.summaries.warning(filter.warning))
   if (filter.failed === true) bySummary.push(k.summaries.failed)
   const within = [...byMembership, ...bySummary]
-  const counts = within.length === 1 ? [0] : await Promise.all(within.map((key) => redis.zlexcount(key, min, max)))
-  const driver = within[counts.indexOf(Math.min(...counts))]!
+  const errorRange = filter.minError !== undefined || filter.maxError !== undefined
+  const counts = within.length === 1 && !errorRange ? [0] : await Promise.all(within.map((key) => redis.zlexcount(key, min, max)))
+  let driver = within[counts.indexOf(Math.min(...counts))]!
+  // An error range has no set in SKU order; when few SKUs fall in it, they are read whole and
+  // sorted, and the walk covers only them.
+  const few = errorRange ? await errorRangeIfFew(redis, k, filter, Math.min(...counts), page.cursor, prefix) : null
+  if (few !== null) driver = ''
   // Summary sets need no membership check: the summary itself is checked.
   const members = byMembership.filter((key) => key !== driver)
   const absent = filter.exception === false ? [k.exceptions] : []
   const summaries = needsSummaries(filter)
   const unchecked = members.length === 0 && absent.length === 0 && !summaries
+  let taken = 0
+  const read = async (size: number): Promise<string[]> => {
+    if (few === null) return redis.zrangebylex(driver, min, max, 'LIMIT', 0, size)
+    taken += size
+    return few.slice(taken - size, taken)
+  }
 
   const out: string[] = []
   let examined = 0
@@ -92,7 +107,7 @@ export async function findSkus(
   let exhausted = false
   while (out.length < limit && examined < MAX_EXAMINED) {
     const size = unchecked ? limit - out.length + 1 : Math.min(BATCH, MAX_EXAMINED - examined)
-    const batch = await redis.zrangebylex(driver, min, max, 'LIMIT', 0, size)
+    const batch = await read(size)
     exhausted = batch.length < size
     if (batch.length === 0) break
     const keep = await matches(redis, k, filter, batch, members, absent, summaries)
@@ -114,6 +129,32 @@ export async function findSkus(
   if (more) nextCursor = encodeCursor(out[out.length - 1]!)
   else if (!exhausted && last !== undefined) nextCursor = encodeCursor(last)
   return { skus: out, nextCursor }
+}
+
+/**
+ * The SKUs whose error on the filter's measure lies in its range, after the cursor and with the
+ * prefix, in byte order; null when more than MAX_FEW_IN_ERROR_RANGE SKUs (or more than the
+ * smallest set to walk) have an error in the range, so reading them whole would not pay.
+ */
+async function errorRangeIfFew(
+  redis: RedisClient,
+  k: SkuListKeys,
+  f: SkuFilter,
+  smallestSet: number,
+  cursor: string | undefined,
+  prefix: string | undefined,
+): Promise<string[] | null> {
+  const key = k.summaries.error(f.errorMeasure ?? 'mase')
+  const lo = f.minError === undefined ? '-inf' : String(f.minError)
+  const hi = f.maxError === undefined ? '+inf' : String(f.maxError)
+  const n = await redis.zcount(key, lo, hi)
+  if (n > MAX_FEW_IN_ERROR_RANGE || n >= smallestSet) return null
+  const after = cursor === undefined ? null : Buffer.from(decodeCursor(cursor))
+  return (await redis.zrangebyscore(key, lo, hi))
+    .map((sku) => Buffer.from(sku))
+    .filter((b) => (after === null || Buffer.compare(b, after) > 0) && (prefix === undefined || b.subarray(0, Buffer.byteLength(prefix)).equals(Buffer.from(prefix))))
+    .sort(Buffer.compare)
+    .map((b) => b.toString())
 }
 
 /** Per SKU of the batch: does it meet every condition the walked set does not already guarantee? */

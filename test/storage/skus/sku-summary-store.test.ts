@@ -9,7 +9,7 @@ import { prepareItems } from '../../../src/storage/items/prepared-item.js'
 import { exceptionsKey } from '../../../src/storage/keys.js'
 import { RunStore } from '../../../src/storage/runs/run-store.js'
 import { MAX_EXAMINED } from '../../../src/storage/skus/sku-list.js'
-import { CursorError } from '../../../src/storage/paging.js'
+import { CursorError, encodeCursor } from '../../../src/storage/paging.js'
 import { summaryKeys } from '../../../src/storage/skus/sku-summary-store.js'
 import { runRequest, syntheticSeries } from '../../queue/fixtures.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from '../../helpers/redis.js'
@@ -228,5 +228,10 @@ describe('HistoryStore.list with filters', () => {
     expect(second.nextCursor).toBeNull()
     // Walking the model set instead (the most selective) finds it at once.
     expect((await histories.list(T, { limit: 10, prefix: 'ZZZ-', model: 'croston' })).items.map((i) => i.sku)).toEqual([last])
+    // So does an error range that few SKUs fall in: they are read whole, not walked through every SKU.
+    const few = await histories.list(T, { limit: 10, prefix: 'ZZZ-', minError: 2.95, maxError: 3.05 })
+    expect([few.items.map((i) => i.sku), few.nextCursor]).toEqual([[last], null])
+    const after = await histories.list(T, { limit: 10, prefix: 'ZZZ-', minError: 2.95, cursor: encodeCursor(last) })
+    expect([after.items, after.nextCursor]).toEqual([[], null])
   })
 })

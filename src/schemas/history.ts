@@ -64,8 +64,12 @@ export const SkuListQuery = PageQuery.extend({
     .enum(METRIC_NAMES)
     .optional()
     .describe('The holdout error minError and maxError compare (default mase); only SKUs whose run ranked by it match'),
-  minError: ErrorBound.optional().describe('Only SKUs whose chosen model has at least this holdout error (errorMeasure)'),
-  maxError: ErrorBound.optional().describe('Only SKUs whose chosen model has at most this holdout error (errorMeasure)'),
+  minError: ErrorBound.optional().describe(
+    'Only SKUs whose chosen model has at least this holdout error, in the unit of errorMeasure (mape, smape, wape in percent; mae, rmse in demand units; mase unitless)',
+  ),
+  maxError: ErrorBound.optional().describe(
+    'Only SKUs whose chosen model has at most this holdout error, in the unit of errorMeasure (mape, smape, wape in percent; mae, rmse in demand units; mase unitless)',
+  ),
   sort: z
     .enum(['sku', 'error'])
     .default('sku')
@@ -90,7 +94,10 @@ export const PublishedSummarySchema = z
     warnings: z.array(z.string()).describe('Warning codes of the item (docs/warnings.md)'),
     failed: z.boolean().describe('The run could not forecast the SKU (its earlier published forecast, if any, is still served)'),
     error: z
-      .object({ measure: z.enum(METRIC_NAMES), value: z.number() })
+      .object({
+        measure: z.enum(METRIC_NAMES),
+        value: z.number().describe("In the measure's unit: mape, smape, wape in percent; mae, rmse in demand units; mase unitless"),
+      })
       .nullable()
       .describe("The chosen model's holdout error named by the run's rankBy; null without a holdout"),
   })

@@ -1527,6 +1527,7 @@ export interface components {
             error: {
                 /** @enum {string} */
                 measure: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
+                /** @description In the measure's unit: mape, smape, wape in percent; mae, rmse in demand units; mase unitless */
                 value: number;
             } | null;
         };
@@ -3304,9 +3305,9 @@ export interface operations {
                 exception?: "true" | "false";
                 /** @description The holdout error minError and maxError compare (default mase); only SKUs whose run ranked by it match */
                 errorMeasure?: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
-                /** @description Only SKUs whose chosen model has at least this holdout error (errorMeasure) */
+                /** @description Only SKUs whose chosen model has at least this holdout error, in the unit of errorMeasure (mape, smape, wape in percent; mae, rmse in demand units; mase unitless) */
                 minError?: number;
-                /** @description Only SKUs whose chosen model has at most this holdout error (errorMeasure) */
+                /** @description Only SKUs whose chosen model has at most this holdout error, in the unit of errorMeasure (mape, smape, wape in percent; mae, rmse in demand units; mase unitless) */
                 maxError?: number;
                 /** @description sku (default): by SKU, byte order. error: by holdout error on errorMeasure, largest first (ties in reverse SKU order), only SKUs that have one; its cursor is its own */
                 sort?: "sku" | "error";

@@ -312,9 +312,10 @@ export class RunStore {
   }
 
   /**
-   * Forget a SKU's latest forecast, its kept published forecasts and its worklist entry (its history was deleted),
-   * so a SKU created again under the same code is never scored against them; the run's own
-   * results stay until they expire.
+   * Forget a SKU's latest forecast, its kept published forecasts, its worklist entry and its
+   * published summary with its place in the SKU list's index sets (its history was deleted),
+   * so a SKU created again under the same code is never scored against or listed by them; the
+   * run's own results stay until they expire.
    */
   async forgetLatest(tenant: string, sku: string): Promise<void> {
     if (!isValidTenant(tenant)) return

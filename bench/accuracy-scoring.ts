@@ -42,7 +42,7 @@ async function seed(): Promise<void> {
     for (let b = 0; b < skus.length; b += BATCH) {
       const items = skus.slice(b, b + BATCH).map((sku, j) => {
         const forecast = Array.from({ length: 12 }, (_, h) => ({ period: formatPeriod(first + origin + h, 'month'), demand: 25 + ((b + j + h) % 5) }))
-        const item: PreparedItem = { sku, stored: Buffer.alloc(0), points: encodePoints(forecast) }
+        const item: PreparedItem = { sku, stored: Buffer.alloc(0), points: encodePoints(forecast), summary: '' }
         return item
       })
       await runs.updateLatest(tenant, `run-${origin}`, 1_000_000 + origin, new Date(), items)

@@ -49,7 +49,7 @@ async function publish(runId: string, createdAtMs: number, level: (i: number) =>
   for (let b = 0; b < skus.length; b += CHUNK) {
     const part = skus.slice(b, b + CHUNK)
     const sig = part.map((sku, j) => signals(sku, b + j))
-    const items: PreparedItem[] = part.map((sku, j) => ({ sku, stored: Buffer.alloc(0), points: sig[j]!.failure ? null : points(level(b + j)) }))
+    const items: PreparedItem[] = part.map((sku, j) => ({ sku, stored: Buffer.alloc(0), points: sig[j]!.failure ? null : points(level(b + j)), summary: '' }))
     await runs.updateLatest(tenant, runId, createdAtMs, new Date(), items)
     const t0 = performance.now()
     await recordWorklist({ runs, worklist: runs.worklist }, tenant, runId, createdAtMs, sig, runs.worklistChangePercent)

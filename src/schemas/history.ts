@@ -1,6 +1,7 @@
 import { z } from 'zod'
 import { ClosingReportSchema } from './closing.js'
-import { FREQUENCIES } from '../engine/index.js'
+import { FREQUENCIES, METRIC_NAMES, MODEL_NAMES } from '../engine/index.js'
+import { WARNING_CODE_PATTERN } from '../runs/sku-summary.js'
 import { BATCH_ID_PATTERN, DUPLICATE_POLICIES, MAX_TAGS, TAG_PATTERN, UPLOAD_MODES } from '../history/types.js'
 import { DemandValue, MAX_POINTS_PER_SERIES, PeriodLabel, StockPolicy } from './run.js'
 import { PageQuery, pageSchema } from './params.js'
@@ -39,6 +40,70 @@ export const HistoryResource = z
   })
   .meta({ id: 'History' })
 
+const ErrorBound = z.coerce.number().finite().min(0)
+
+export const SkuListQuery = PageQuery.extend({
+  tag: Tag.optional().describe('Only SKUs carrying this tag'),
+  prefix: z.string().min(1).max(200).optional().describe('Only SKUs starting with this text'),
+  model: z.enum(MODEL_NAMES).optional().describe('Only SKUs whose newest published forecast chose this model'),
+  warning: z
+    .string()
+    .regex(WARNING_CODE_PATTERN, 'must be a warning code such as short-history (docs/warnings.md)')
+    .optional()
+    .describe('Only SKUs whose newest published forecast carries this warning code (docs/warnings.md)'),
+  failed: z
+    .enum(['true', 'false'])
+    .transform((v) => v === 'true')
+    .optional()
+    .describe('true: only SKUs the newest publishing run could not forecast; false: only SKUs it did forecast'),
+  exception: z
+    .enum(['true', 'false'])
+    .transform((v) => v === 'true')
+    .optional()
+    .describe('true: only SKUs on the accuracy exception list (GET /v1/accuracy/exceptions); false: only SKUs not on it'),
+  errorMeasure: z
+    .enum(METRIC_NAMES)
+    .optional()
+    .describe('The holdout error minError and maxError compare (default mase); only SKUs whose run ranked by it match'),
+  minError: ErrorBound.optional().describe(
+    'Only SKUs whose chosen model has at least this holdout error, in the unit of errorMeasure (mape, smape, wape in percent; mae, rmse in demand units; mase unitless)',
+  ),
+  maxError: ErrorBound.optional().describe(
+    'Only SKUs whose chosen model has at most this holdout error, in the unit of errorMeasure (mape, smape, wape in percent; mae, rmse in demand units; mase unitless)',
+  ),
+  sort: z
+    .enum(['sku', 'error'])
+    .default('sku')
+    .describe(
+      'sku (default): by SKU, byte order. error: by holdout error on errorMeasure, largest first (ties in reverse SKU order), ' +
+        'only SKUs that have one; its cursor is its own',
+    ),
+}).superRefine((q, ctx) => {
+  if (q.minError !== undefined && q.maxError !== undefined && q.minError > q.maxError) {
+    ctx.addIssue({ code: 'custom', path: ['minError'], message: 'must not exceed maxError' })
+  }
+  if (q.errorMeasure !== undefined && q.minError === undefined && q.maxError === undefined && q.sort !== 'error') {
+    ctx.addIssue({ code: 'custom', path: ['errorMeasure'], message: 'needs minError, maxError or sort=error' })
+  }
+})
+
+/** A SKU's newest published outcome, as the SKU list shows and filters it. */
+export const PublishedSummarySchema = z
+  .object({
+    runId: z.string().describe('The publishing run'),
+    model: z.enum(MODEL_NAMES).nullable().describe('The chosen model; null when the item failed'),
+    warnings: z.array(z.string()).describe('Warning codes of the item (docs/warnings.md)'),
+    failed: z.boolean().describe('The run could not forecast the SKU (its earlier published forecast, if any, is still served)'),
+    error: z
+      .object({
+        measure: z.enum(METRIC_NAMES),
+        value: z.number().describe("In the measure's unit: mape, smape, wape in percent; mae, rmse in demand units; mase unitless"),
+      })
+      .nullable()
+      .describe("The chosen model's holdout error named by the run's rankBy; null without a holdout"),
+  })
+  .meta({ id: 'PublishedSummary' })
+
 export const HistorySummarySchema = z.object({
   sku: z.string(),
   frequency: z.enum(FREQUENCIES),
@@ -47,11 +112,7 @@ export const HistorySummarySchema = z.object({
   periodCount: z.number().int().min(1),
   tags: z.array(z.string()),
   updatedAt: z.string(),
-})
-
-export const SkuListQuery = PageQuery.extend({
-  tag: Tag.optional().describe('Only SKUs carrying this tag'),
-  prefix: z.string().min(1).max(200).optional().describe('Only SKUs starting with this text'),
+  published: PublishedSummarySchema.optional().describe("The SKU's newest published outcome; absent until a publishing run includes it"),
 })
 
 export const SkuListPage = pageSchema(HistorySummarySchema)

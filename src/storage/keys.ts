@@ -64,6 +64,16 @@ export function runKeys(prefix: string, tenant: string, runId: string): RunKeys 
   }
 }
 
+/** Where the accuracy records of a tenant start (erp/accuracy-store.ts lays out the keys under it). */
+export function accuracyBase(prefix: string, tenant: string): string {
+  return `${tenantBase(prefix, tenant)}:acc`
+}
+
+/** The tenant's exception list (zset of SKUs flagged by a tracking signal, score 0; erp/accuracy-store.ts). */
+export function exceptionsKey(prefix: string, tenant: string): string {
+  return `${accuracyBase(prefix, tenant)}:exceptions`
+}
+
 export function latestKey(prefix: string, tenant: string): string {
   return `${tenantBase(prefix, tenant)}:latest`
 }

@@ -217,7 +217,7 @@ export interface paths {
         };
         /**
          * List SKUs with a stored history
-         * @description Ordered by SKU (byte order). Filter by tag and/or SKU prefix; pass nextCursor back as cursor for the next page.
+         * @description Ordered by SKU (byte order); pass nextCursor back as cursor for the next page. Filters combine: tag, SKU prefix, and the newest published outcome of each SKU (model, warning, failed, holdout error) or the accuracy exception list. A filtered page examines a bounded number of SKUs, so it may hold fewer than limit items (even none) while nextCursor is not null; only a null nextCursor means the end. Each item carries `published` once a publishing run included the SKU.
          */
         get: operations["listSkus"];
         put?: never;
@@ -1529,6 +1529,23 @@ export interface components {
             replenishment?: components["schemas"]["StockPolicy"];
             /** @description ISO-8601 */
             updatedAt: string;
+        };
+        PublishedSummary: {
+            /** @description The publishing run */
+            runId: string;
+            /** @description The chosen model; null when the item failed */
+            model: ("last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima") | null;
+            /** @description Warning codes of the item (docs/warnings.md) */
+            warnings: string[];
+            /** @description The run could not forecast the SKU (its earlier published forecast, if any, is still served) */
+            failed: boolean;
+            /** @description The chosen model's holdout error named by the run's rankBy; null without a holdout */
+            error: {
+                /** @enum {string} */
+                measure: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
+                /** @description In the measure's unit: mape, smape, wape in percent; mae, rmse in demand units; mase unitless */
+                value: number;
+            } | null;
         };
         UploadReport: {
             /**
@@ -3280,6 +3297,22 @@ export interface operations {
                 tag?: string;
                 /** @description Only SKUs starting with this text */
                 prefix?: string;
+                /** @description Only SKUs whose newest published forecast chose this model */
+                model?: "last-value" | "last-season" | "moving-average" | "level-smoothing" | "linear-trend" | "trend-smoothing" | "damped-trend-smoothing" | "level-smoothing-season-averages" | "linear-trend-season-averages" | "linear-trend-season-ratios" | "trend-smoothing-additive-season" | "trend-smoothing-multiplicative-season" | "damped-trend-smoothing-additive-season" | "damped-trend-smoothing-multiplicative-season" | "level-smoothing-additive-season" | "level-smoothing-multiplicative-season" | "croston" | "croston-bias-corrected" | "theta" | "optimised-theta" | "dynamic-optimised-theta" | "state-space-smoothing" | "median-combination" | "auto-arima";
+                /** @description Only SKUs whose newest published forecast carries this warning code (docs/warnings.md) */
+                warning?: string;
+                /** @description true: only SKUs the newest publishing run could not forecast; false: only SKUs it did forecast */
+                failed?: "true" | "false";
+                /** @description true: only SKUs on the accuracy exception list (GET /v1/accuracy/exceptions); false: only SKUs not on it */
+                exception?: "true" | "false";
+                /** @description The holdout error minError and maxError compare (default mase); only SKUs whose run ranked by it match */
+                errorMeasure?: "mae" | "rmse" | "mape" | "smape" | "mase" | "wape";
+                /** @description Only SKUs whose chosen model has at least this holdout error, in the unit of errorMeasure (mape, smape, wape in percent; mae, rmse in demand units; mase unitless) */
+                minError?: number;
+                /** @description Only SKUs whose chosen model has at most this holdout error, in the unit of errorMeasure (mape, smape, wape in percent; mae, rmse in demand units; mase unitless) */
+                maxError?: number;
+                /** @description sku (default): by SKU, byte order. error: by holdout error on errorMeasure, largest first (ties in reverse SKU order), only SKUs that have one; its cursor is its own */
+                sort?: "sku" | "error";
             };
             header?: never;
             path?: never;
@@ -3303,6 +3336,7 @@ export interface operations {
                             periodCount: number;
                             tags: string[];
                             updatedAt: string;
+                            published?: components["schemas"]["PublishedSummary"];
                         }[];
                         /** @description Pass back as cursor for the next page; null on the last page */
                         nextCursor: string | null;

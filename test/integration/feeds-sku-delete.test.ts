@@ -38,6 +38,10 @@ describe('DELETE /v1/skus/{sku}/history', { timeout: 120_000 }, () => {
     expect((await put('PRUNER-OLD', [...flat(40), 45], ['category:garden'])).statusCode).toBe(200)
     expect((await put('PRUNER-NEW', [...flat(60), 55], ['category:garden'])).statusCode).toBe(200)
     expect((await app.inject({ url: '/v1/skus/PRUNER-OLD/accuracy' })).statusCode).toBe(200)
+    // The publishing run summarised both SKUs for the SKU list's filters.
+    const forecast = (await app.inject({ url: '/v1/skus?failed=false' })).json()
+    expect(forecast.items.map((i: { sku: string }) => i.sku)).toEqual(['PRUNER-NEW', 'PRUNER-OLD'])
+    const model = forecast.items[1].published.model as string
 
     const del = await app.inject({ method: 'DELETE', url: '/v1/skus/PRUNER-OLD/history' })
     expect(del.statusCode).toBe(204)
@@ -54,6 +58,10 @@ describe('DELETE /v1/skus/{sku}/history', { timeout: 120_000 }, () => {
     // Created again under the same code, the SKU is never scored against the deleted SKU's published forecasts.
     expect((await put('PRUNER-OLD', [...flat(40), 45])).statusCode).toBe(201)
     expect((await app.inject({ url: '/v1/skus/PRUNER-OLD/accuracy' })).statusCode).toBe(404)
+    // Nor does it inherit the deleted SKU's published summary: no filter on it lists the new SKU.
+    const listed = (await app.inject({ url: '/v1/skus?prefix=PRUNER-OLD' })).json()
+    expect(listed.items.map((i: { sku: string; published?: unknown }) => [i.sku, i.published])).toEqual([['PRUNER-OLD', undefined]])
+    expect((await app.inject({ url: `/v1/skus?model=${model}&prefix=PRUNER-OLD` })).json().items).toEqual([])
     expect((await app.inject({ method: 'DELETE', url: '/v1/skus/PRUNER-OLD/history' })).statusCode).toBe(204)
     // Again: nothing left to delete.
     const again = await app.inject({ method: 'DELETE', url: '/v1/skus/PRUNER-OLD/history' })

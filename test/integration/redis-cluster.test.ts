@@ -164,6 +164,16 @@ describe('Redis Cluster (3 primaries)', { timeout: 120_000 }, () => {
     expect(acc.body).toMatchObject({ sku: 'HOSE-A', scoredPeriods: 5, mae: 30, bias: 30, trackingSignal: 5, flagged: true })
     const exceptions = await call('/v1/accuracy/exceptions')
     expect(exceptions.body.items.map((i: { sku: string }) => i.sku)).toEqual(['HOSE-A'])
+    // The run's published summaries (one script per chunk over the tenant's summary sets, one hash tag),
+    // filtered together with the exception list, which lies in another slot.
+    const warned = await call('/v1/skus?warning=constant-series&failed=false')
+    expect(warned.body.items.map((i: { sku: string; published: { runId: string } }) => [i.sku, i.published.runId])).toEqual([
+      ['HOSE-A', runId],
+      ['HOSE-B', runId],
+      ['HOSE-C', runId],
+    ])
+    const flaggedToo = await call('/v1/skus?warning=constant-series&exception=true')
+    expect(flaggedToo.body.items.map((i: { sku: string }) => i.sku)).toEqual(['HOSE-A'])
 
     // A schedule's hash and the tenant's schedule index lie in different slots.
     const created = await call('/v1/schedules', {

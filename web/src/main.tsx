@@ -30,7 +30,7 @@ function Page({ route }: { route: Route }) {
     case 'run':
       return <RunPage runId={route.runId} />
     case 'skus':
-      return <SkuList prefix={route.prefix} tag={route.tag} />
+      return <SkuList query={route.query} />
     case 'sku':
       return <SkuPage sku={route.sku} />
     case 'upload':

@@ -1,5 +1,6 @@
 import type { ComponentChildren, JSX } from 'preact'
 import { useEffect, useState } from 'preact/hooks'
+import { parseSkuQuery, skuQueryParams, type SkuQuery } from './sku-filters'
 
 /**
  * A small history-API router: every page has its own URL under /app/, so links
@@ -11,7 +12,7 @@ export const BASE = '/app'
 export type Route =
   | { readonly page: 'overview' }
   | { readonly page: 'run'; readonly runId: string }
-  | { readonly page: 'skus'; readonly prefix: string; readonly tag: string }
+  | { readonly page: 'skus'; readonly query: SkuQuery }
   | { readonly page: 'sku'; readonly sku: string }
   | { readonly page: 'upload' }
   | { readonly page: 'worklist'; readonly kind: string }
@@ -21,7 +22,7 @@ export function parseRoute(pathname: string, search: string): Route {
   const path = pathname.startsWith(BASE) ? pathname.slice(BASE.length) : pathname
   const query = new URLSearchParams(search)
   if (path === '' || path === '/') return { page: 'overview' }
-  if (path === '/skus' || path === '/skus/') return { page: 'skus', prefix: query.get('prefix') ?? '', tag: query.get('tag') ?? '' }
+  if (path === '/skus' || path === '/skus/') return { page: 'skus', query: parseSkuQuery(query) }
   if (path === '/upload') return { page: 'upload' }
   if (path === '/worklist' || path === '/worklist/') return { page: 'worklist', kind: query.get('kind') ?? '' }
   const sku = /^\/skus\/(.+)$/.exec(path)
@@ -34,11 +35,8 @@ export function parseRoute(pathname: string, search: string): Route {
 export const hrefs = {
   overview: () => `${BASE}/`,
   run: (runId: string) => `${BASE}/runs/${encodeURIComponent(runId)}`,
-  skus: (prefix = '', tag = '') => {
-    const q = new URLSearchParams()
-    if (prefix) q.set('prefix', prefix)
-    if (tag) q.set('tag', tag)
-    const s = q.toString()
+  skus: (prefix = '', tag = '', more: Partial<SkuQuery> = {}) => {
+    const s = skuQueryParams({ ...more, prefix, tag }).toString()
     return `${BASE}/skus${s ? `?${s}` : ''}`
   },
   sku: (sku: string) => `${BASE}/skus/${encodeURIComponent(sku)}`,

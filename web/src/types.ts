@@ -37,6 +37,16 @@ export interface SkuSummary {
   readonly periodCount: number
   readonly tags: readonly string[]
   readonly updatedAt: string
+  /** The SKU's newest published outcome (GET /v1/skus only). */
+  readonly published?: PublishedSummary
+}
+
+export interface PublishedSummary {
+  readonly runId: string
+  readonly model: string | null
+  readonly warnings: readonly string[]
+  readonly failed: boolean
+  readonly error: { readonly measure: string; readonly value: number } | null
 }
 
 export interface Page<T> {

@@ -13,7 +13,7 @@ import {
 } from '../../engine/index.js'
 import { decodeCursor, encodeCursor } from '../paging.js'
 import { REVIEW_STATES, type Review, type ReviewState } from '../../runs/review.js'
-import { isValidTenant } from '../keys.js'
+import { accuracyBase, isValidTenant } from '../keys.js'
 import type { PublishedPoints } from '../items/latest-record.js'
 import type { RunStore } from '../runs/run-store.js'
 import type { ClosedOrdinals, ClosingStore } from './closing-store.js'
@@ -147,8 +147,7 @@ export class AccuracyStore {
   }
 
   private base(tenant: string): string {
-    if (!isValidTenant(tenant)) throw new Error(`invalid tenant for a Redis key: ${JSON.stringify(tenant)}`)
-    return `${this.opts.prefix}:t:${tenant}:acc`
+    return accuracyBase(this.opts.prefix, tenant)
   }
 
   private periodsKey(tenant: string, sku: string): string {

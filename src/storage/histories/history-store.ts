@@ -6,7 +6,12 @@ import type { PendingHistory } from '../../history/accumulator.js'
 import type { FeedBatch, HistoryWriter, WriteOutcome } from '../../history/ingest.js'
 import type { HistoryData } from '../../history/types.js'
 import { decodeCursor, encodeCursor } from '../paging.js'
-import { isValidTenant } from '../keys.js'
+import { exceptionsKey, isValidTenant } from '../keys.js'
+import { findSkus, type SkuFilter } from '../skus/sku-list.js'
+import { findSkusByError } from '../skus/sku-list-by-error.js'
+import { summaryKeys } from '../skus/sku-summary-store.js'
+import { decodeSummaryRecord } from '../skus/summary-record.js'
+import type { SkuSummary } from '../../runs/sku-summary.js'
 import { StockPolicy, type RunScope } from '../../schemas/run.js'
 
 /**
@@ -41,6 +46,10 @@ export interface HistorySummary {
   readonly updatedAt: string
 }
 
+/** A history summary in the SKU list, with the SKU's newest published outcome when it has one. */
+export interface ListedSku extends HistorySummary {
+  readonly published?: SkuSummary & { readonly runId: string }
+}
 
 interface Meta {
   readonly f: Frequency
@@ -336,31 +345,32 @@ export class HistoryStore implements HistoryWriter {
 
   /**
    * One page of history summaries ordered by SKU (byte order), optionally only
-   * SKUs carrying `tag` and/or starting with `prefix`.
+   * SKUs carrying `tag` and/or starting with `prefix`, and by their newest
+   * published outcome (model, warning, failed, holdout error) or the exception
+   * list (skus/sku-list.ts: a filtered page may hold fewer than `limit` items);
+   * `sort: 'error'` orders by holdout error instead, largest first (skus/sku-list-by-error.ts).
+   * Each item carries its published summary when it has one.
    * @throws CursorError on a cursor this service did not issue
    */
   async list(
     tenant: string,
-    page: { readonly limit: number; readonly cursor?: string; readonly tag?: string; readonly prefix?: string },
-  ): Promise<{ items: HistorySummary[]; nextCursor: string | null }> {
+    page: { readonly limit: number; readonly cursor?: string; readonly sort?: 'sku' | 'error' } & SkuFilter,
+  ): Promise<{ items: ListedSku[]; nextCursor: string | null }> {
     const k = this.keys(tenant)
-    const index = page.tag === undefined ? k.skus : k.tag(page.tag)
-    let min: string | Buffer = page.prefix === undefined ? '-' : `[${page.prefix}`
-    if (page.cursor !== undefined) {
-      min = `(${decodeCursor(page.cursor)}`
-    }
-    const max: string | Buffer = page.prefix === undefined ? '+' : Buffer.concat([Buffer.from(`[${page.prefix}`), Buffer.from([0xff])])
-    const limit = Math.max(1, Math.floor(page.limit))
-    const skus = await this.redis.zrangebylex(index, min, max, 'LIMIT', 0, limit + 1)
-    const pageSkus = skus.slice(0, limit)
-    const metas = pageSkus.length > 0 ? await this.redis.hmget(k.meta, ...pageSkus) : []
-    const items: HistorySummary[] = []
-    pageSkus.forEach((sku, i) => {
+    const summaries = summaryKeys(this.opts.prefix, tenant)
+    const find = page.sort === 'error' ? findSkusByError : findSkus
+    const found = await find(this.redis, { skus: k.skus, tag: k.tag, exceptions: exceptionsKey(this.opts.prefix, tenant), summaries }, page, page)
+    const skus = found.skus
+    const [metas, records] =
+      skus.length > 0 ? await Promise.all([this.redis.hmget(k.meta, ...skus), this.redis.hmget(summaries.all, ...skus)]) : [[], []]
+    const items: ListedSku[] = []
+    skus.forEach((sku, i) => {
       const raw = metas[i]
-      if (raw != null) items.push(summary(sku, decodeMeta(sku, raw)))
+      if (raw == null) return
+      const record = records[i] == null ? null : decodeSummaryRecord(sku, records[i]!)
+      items.push({ ...summary(sku, decodeMeta(sku, raw)), ...(record === null ? {} : { published: { runId: record.runId, ...record.summary } }) })
     })
-    const last = pageSkus[pageSkus.length - 1]
-    return { items, nextCursor: skus.length > limit && last !== undefined ? encodeCursor(last) : null }
+    return { items, nextCursor: found.nextCursor }
   }
 
   /**

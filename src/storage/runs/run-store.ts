@@ -20,6 +20,7 @@ import {
 } from '../items/latest-record.js'
 import { defineRunScripts, type RunScripts } from './scripts.js'
 import { RunStats } from './stats-store.js'
+import { SkuSummaryStore } from '../skus/sku-summary-store.js'
 import { RunIndex } from './run-index.js'
 import {
   RUN_STATUSES,
@@ -87,6 +88,8 @@ export class RunStore {
   readonly index: RunIndex
   /** The run-decided part of the planners' worklist, written after a publishing chunk (runs/worklist-service.ts). */
   readonly worklist: WorklistStore
+  /** Each SKU's summary of its newest published outcome, for the SKU list's filters. */
+  readonly summaries: SkuSummaryStore
 
   constructor(
     private readonly redis: RedisClient,
@@ -96,6 +99,7 @@ export class RunStore {
     this.stats = new RunStats(redis, opts.prefix)
     this.index = new RunIndex(redis, opts)
     this.worklist = new WorklistStore(redis, { prefix: opts.prefix })
+    this.summaries = new SkuSummaryStore(redis, { prefix: opts.prefix })
   }
 
   /** The worklist's large-change threshold in percent (runs/worklist.ts). */
@@ -188,7 +192,9 @@ export class RunStore {
    * when the run publishes make them the latest forecast of their SKUs
    * (updateLatest; a what-if run leaves that alone), then count the
    * chunk and finish the run when it was the last (commitChunk script, guarded
-   * per chunk index). A run thus reads 'succeeded' only after every SKU's
+   * per chunk index). A publishing run also writes each SKU's summary for the
+   * SKU list (SkuSummaryStore.publish, failed items included) right after the
+   * latest records. A run thus reads 'succeeded' only after every SKU's
    * result and latest record are written; a retry after a crash between the
    * steps rewrites the same items and records and counts the chunk once.
    * Outcomes: 'committed' or 'finished' when this call counted the chunk
@@ -223,6 +229,7 @@ export class RunStore {
     if (step !== 'stored' && step !== 'succeeded') return oneOf(COMMIT_OUTCOMES, step, 'storeItems outcome')
     if (publish) {
       await this.updateLatest(tenant, runId, Date.parse(createdAt), now, items)
+      await this.summaries.publish(tenant, runId, Date.parse(createdAt), items)
       await afterPublish?.(Date.parse(createdAt))
     }
     if (step === 'succeeded') return 'succeeded'
@@ -305,14 +312,16 @@ export class RunStore {
   }
 
   /**
-   * Forget a SKU's latest forecast, its kept published forecasts and its worklist entry (its history was deleted),
-   * so a SKU created again under the same code is never scored against them; the run's own
-   * results stay until they expire.
+   * Forget a SKU's latest forecast, its kept published forecasts, its worklist entry and its
+   * published summary with its place in the SKU list's index sets (its history was deleted),
+   * so a SKU created again under the same code is never scored against or listed by them; the
+   * run's own results stay until they expire.
    */
   async forgetLatest(tenant: string, sku: string): Promise<void> {
     if (!isValidTenant(tenant)) return
     await this.redis.multi().hdel(latestKey(this.opts.prefix, tenant), sku).hdel(publishedKey(this.opts.prefix, tenant), sku).exec()
     await this.worklist.forget(tenant, sku)
+    await this.summaries.forget(tenant, sku)
   }
 
   /**

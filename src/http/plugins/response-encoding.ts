@@ -1,10 +1,17 @@
 import { pipeline, type Readable } from 'node:stream'
 import { promisify } from 'node:util'
-import { createGzip, gzip } from 'node:zlib'
+import { constants, createGzip, gzip } from 'node:zlib'
 import fp from 'fastify-plugin'
 import type { FastifyReply } from 'fastify'
 
 const gzipAsync = promisify(gzip)
+
+/**
+ * zlib's fastest level: answers are made per request (result pages, exports), so the API's
+ * CPU matters more than the last bytes: level 1 about halved what compressing the result
+ * pages cost the API in bench:e2e (bench/RESULTS.md, "End to end").
+ */
+const GZIP_OPTIONS = { level: constants.Z_BEST_SPEED }
 
 /**
  * Bodies smaller than this go out as they are: below about a kilobyte the gzip
@@ -84,7 +91,7 @@ export default fp(
         if (size < MIN_COMPRESSED_BYTES) return payload
         addVary(reply)
         if (!wantsGzip) return payload
-        const body = await gzipAsync(payload)
+        const body = await gzipAsync(payload, GZIP_OPTIONS)
         reply.header('content-encoding', 'gzip').removeHeader('content-length')
         weakenEtag(reply)
         return body
@@ -97,7 +104,7 @@ export default fp(
       reply.header('content-encoding', 'gzip').removeHeader('content-length')
       weakenEtag(reply)
       // pipeline: an error in the source (e.g. Redis down mid-export) destroys the gzip stream, and fastify ends the answer.
-      return pipeline(payload, createGzip(), () => {})
+      return pipeline(payload, createGzip(GZIP_OPTIONS), () => {})
     })
   },
   { name: 'response-encoding' },

@@ -4,7 +4,7 @@
  * 12-point holdout, the winner refitted on the full history, 80% and 95%
  * intervals), horizon 12, on one thread.
  *
- * Usage: npm run bench:engine [-- --series 10000 --reps 3 --seed 7 --by-model --json]
+ * Usage: npm run bench:engine [-- --series 10000 --reps 3 --seed 7 --mode fast|thorough --by-model --json]
  * Target (from the product issue): at least 2,000 series per second per core.
  * The machine is shared and noisy: read the median and the spread, not one run.
  */
@@ -21,6 +21,10 @@ const SEED = positiveIntOption('seed', 7)
 const LENGTH = 60
 const HORIZON = 12
 const TARGET = 2_000
+const modeAt = process.argv.indexOf('--mode')
+const modeArg = modeAt >= 0 ? process.argv[modeAt + 1] : 'fast'
+if (modeArg !== 'fast' && modeArg !== 'thorough') throw new Error('--mode must be fast or thorough')
+const MODE: 'fast' | 'thorough' = modeArg
 const out = (line = ''): void => { process.stdout.write(line + '\n') }
 
 const set = syntheticSet(SEED, SERIES, LENGTH)
@@ -37,7 +41,7 @@ function pass(count: number): { ms: number; cpuMs: number; winners: Map<ModelNam
   const cpuBefore = process.cpuUsage()
   const began = performance.now()
   for (let i = 0; i < count; i++) {
-    const result = forecastSeries({ demand: set[i]!.values, frequency: 'month', horizon: HORIZON })
+    const result = forecastSeries({ demand: set[i]!.values, frequency: 'month', horizon: HORIZON, modelSearch: MODE })
     winners.set(result.model, (winners.get(result.model) ?? 0) + 1)
     if (i % 250 === 0) sampleMemory()
   }
@@ -84,7 +88,7 @@ if (process.argv.includes('--json')) {
   out(JSON.stringify(report, null, 2))
 } else {
   const f = (v: number, d = 0): string => v.toLocaleString('en-US', { maximumFractionDigits: d, minimumFractionDigits: d })
-  out(`Engine benchmark: ${f(SERIES)} monthly series x ${LENGTH} points, horizon ${HORIZON}, default settings, one thread`)
+  out(`Engine benchmark: ${f(SERIES)} monthly series x ${LENGTH} points, horizon ${HORIZON}, default settings, modelSearch ${MODE}, one thread`)
   out(`Node ${report.node}, ${report.cpu}, load average ${report.loadAverage1m.toFixed(2)}`)
   out(`series/s: median ${f(report.seriesPerSecond.median)} (min ${f(report.seriesPerSecond.min)}, max ${f(report.seriesPerSecond.max)}) over ${REPS} repetitions after warm-up`)
   out(`series per CPU second: median ${f(report.seriesPerCpuSecond.median)} (min ${f(report.seriesPerCpuSecond.min)}, max ${f(report.seriesPerCpuSecond.max)}) (process user + system time)`)

@@ -61,7 +61,8 @@ const RunHash = z
     finishedAt: z.string().optional(),
     settings: jsonOf(RunSettings),
     scope: jsonOf(RunScope).optional(),
-    origin: jsonOf(OriginRecord),
+    // Absent on runs stored before runs recorded their origin (an upgrade): read below from their scope.
+    origin: jsonOf(OriginRecord).optional(),
     failure: jsonOf(FailureRecord).optional(),
     errSum: z.coerce.number(),
     errCount: Count,
@@ -87,7 +88,12 @@ export function decodeRunRecord(hash: Record<string, string>): RunRecord | null 
     finishedAt: h.finishedAt ?? null,
     settings: h.settings,
     scope: h.scope === undefined ? null : toRunScope(h.scope),
-    origin: h.origin.scheduleId === undefined ? { kind: h.origin.kind } : { kind: h.origin.kind, scheduleId: h.origin.scheduleId },
+    origin:
+      h.origin === undefined
+        ? { kind: h.scope === undefined ? 'inline' : 'scope' }
+        : h.origin.scheduleId === undefined
+          ? { kind: h.origin.kind }
+          : { kind: h.origin.kind, scheduleId: h.origin.scheduleId },
     summary: h.status === 'succeeded' ? decodeSummary(hash, h.settings, h.errSum, h.errCount) : null,
     failure: h.failure ?? null,
   }

@@ -107,6 +107,11 @@ describe('decodeRunRecord', () => {
     expect(() => decodeRunRecord({ ...fields, origin: '{"kind":"schedule"}' })).toThrow(/run record r1 does not decode: origin/)
     expect(() => decodeRunRecord({ ...fields, origin: '{"kind":"scope","scheduleId":"s-1"}' })).toThrow(/origin/)
     expect(() => decodeRunRecord({ ...fields, origin: '{"kind":"upload"}' })).toThrow(/origin/)
+    // A run stored before runs recorded their origin (an upgrade) reads as inline, or scope when it has one.
+    const { origin: _inline, ...olderInline } = fields
+    expect(decodeRunRecord(olderInline)?.origin).toEqual({ kind: 'inline' })
+    const { origin: _scheduled, ...olderScheduled } = scheduled
+    expect(decodeRunRecord(olderScheduled)?.origin).toEqual({ kind: 'scope' })
   })
 
   it('gives no summary before the run succeeds', () => {

@@ -54,11 +54,22 @@ interface Scenario {
 
 const sleep = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms))
 
+/** The last body's UTF-8 bytes: encoded before the probe starts, so encoding tens of MB never delays the probe here. */
+let lastBody: string | null = null
+let lastBytes: Buffer = Buffer.alloc(0)
+function bytesOf(body: string): Buffer {
+  if (body !== lastBody) {
+    lastBody = body
+    lastBytes = Buffer.from(body, 'utf8')
+  }
+  return lastBytes
+}
+
 async function send(ctx: Ctx, method: string, path: string, key: string, body: string, contentType = 'application/json') {
   const res = await fetch(`${ctx.baseUrl}${path}`, {
     method,
     headers: { authorization: `Bearer ${key}`, 'content-type': contentType },
-    body,
+    body: bytesOf(body),
   })
   const text = await res.text()
   return { status: res.status, text }
@@ -284,6 +295,7 @@ async function main(): Promise<void> {
       if (only !== null && !only.has(scenario.finding)) continue
       process.stdout.write(`finding ${scenario.finding}: ${scenario.name} ... `)
       const body = scenario.prepare?.() ?? ''
+      bytesOf(body)
       resetPeakRss(api.child.pid)
       const p = probe(baseUrl)
       let outcome: Outcome | { answer: string }

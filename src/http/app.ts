@@ -22,6 +22,8 @@ import swaggerPlugin from './plugins/swagger.js'
 import forecastRoutes from './routes/forecast.js'
 import syncFitsPlugin from './plugins/sync-fits.js'
 import type { SyncFitter } from './sync-fits/pool.js'
+import bodyThreadsPlugin from './plugins/body-threads.js'
+import { LARGE_JSON_BYTES, LargeJsonBody, type BodyThreads } from './body-threads/pool.js'
 import healthRoutes from './routes/health.js'
 import historyRoutes from './routes/history.js'
 import runRoutes from './routes/runs/index.js'
@@ -62,6 +64,8 @@ export interface AppDeps {
   readonly metrics?: ServiceMetrics
   /** Fits POST /v1/forecast's series; default a worker-thread pool the app opens and closes. */
   readonly syncFits?: SyncFitter
+  /** Parses large run bodies; default one worker thread the app opens and closes. */
+  readonly bodyThreads?: BodyThreads
   /** Stored demand histories; without it the history routes answer 503. */
   readonly histories?: HistoryStore
   /** Idempotency-Key answers; without it a request carrying the header gets 503. */
@@ -122,9 +126,12 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   // content type and nothing else); routes that need a body reject it by schema.
   const parseJson = app.getDefaultJsonParser('error', 'error')
   app.removeContentTypeParser('application/json')
-  app.addContentTypeParser('application/json', { parseAs: 'string' }, (request, body, done) => {
-    if (body === '') done(null, undefined)
-    else void parseJson(request, body.toString(), done)
+  app.addContentTypeParser('application/json', { parseAs: 'buffer' }, (request, body, done) => {
+    if (body.length === 0) done(null, undefined)
+    // A large body of a route that opts in is parsed on a thread by its handler: parsing tens of
+    // megabytes here would hold every other request (and the health probe) for up to a second.
+    else if (body.length >= LARGE_JSON_BYTES && request.routeOptions.config?.largeJsonOnThread === true) done(null, new LargeJsonBody(body as Buffer))
+    else void parseJson(request, body.toString('utf8'), done)
   })
   app.addHook('onRequest', async (request, reply) => {
     reply.header('x-request-id', request.id)
@@ -153,6 +160,7 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
 
   await app.register(healthRoutes)
   await app.register(syncFitsPlugin, { fitter: deps.syncFits })
+  await app.register(bodyThreadsPlugin, { threads: deps.bodyThreads })
   await app.register(forecastRoutes)
   await app.register(runRoutes, { prefix: '/v1/runs' })
   await app.register(resultRoutes, { prefix: '/v1/runs' })

@@ -23,17 +23,27 @@ export const validatorCompiler: FastifySchemaCompiler<$ZodType> =
   (data) => {
     const result = boundedSafeParse(schema, data, MAX_FIELD_ERRORS)
     if (result.success) return { value: result.data }
-    const issues: FieldIssues = result.issues.map(({ path, message, code }) => ({
-      keyword: code,
-      instancePath: `/${path.map(String).join('/')}`,
-      schemaPath: '',
-      params: {},
-      message,
-      fieldPath: path,
-    }))
-    if (result.more) issues.truncated = true
-    return { error: issues }
+    return { error: fieldIssues(result.issues, result.more) }
   }
+
+/** Bounded-parse issues as the error handler reads them; `more` when validation stopped before the end. */
+export function fieldIssues(found: readonly { readonly path: readonly PropertyKey[]; readonly message: string; readonly code: string }[], more: boolean): FieldIssues {
+  const issues: FieldIssues = found.map(({ path, message, code }) => ({
+    keyword: code,
+    instancePath: `/${path.map(String).join('/')}`,
+    schemaPath: '',
+    params: {},
+    message,
+    fieldPath: path,
+  }))
+  if (more) issues.truncated = true
+  return issues
+}
+
+/** The error fastify throws for a body its validator refused, for a body validated elsewhere (a thread). */
+export function bodyValidationError(issues: FieldIssues): Error & { validation: FieldIssues; validationContext: 'body'; statusCode: 400 } {
+  return Object.assign(new Error('body validation failed'), { validation: issues, validationContext: 'body' as const, statusCode: 400 as const })
+}
 
 export function isFieldIssue(v: unknown): v is FieldIssue {
   return typeof v === 'object' && v !== null && Array.isArray((v as FieldIssue).fieldPath)

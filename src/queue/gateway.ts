@@ -95,6 +95,16 @@ export function createRunGateway(config: Config, deps: { readonly logger: Logger
       return record
     },
 
+    chunkSize: config.chunkSize,
+
+    async submitPrepared(tenant, settings, total, inputs) {
+      const runId = randomUUID()
+      // Inline series are a what-if unless the caller asks to publish them.
+      const { record, chunks } = await store.createRunFromInputs(tenant, runId, { ...settings, publish: settings.publish ?? false }, total, inputs, now())
+      await enqueueChunks(tenant, runId, chunks, total)
+      return record
+    },
+
     async submitScope(tenant, settings, scope, origin = { kind: 'scope' }) {
       checkRunOptions(settings)
       const runId = randomUUID()

@@ -113,6 +113,14 @@ export interface RunGateway {
   /** Validated request in, queued run out. Splits the series into chunk jobs. */
   submit(tenant: string, request: RunRequest): Promise<RunRecord>
   /**
+   * submit for inline series already checked (checkRunOptions, checkUniqueSkus,
+   * checkInlineOptions) and cut into chunk inputs of `chunkSize` series by the caller
+   * (a large body, on a thread): `total` series in `inputs`.
+   */
+  submitPrepared?(tenant: string, settings: RunSettings, total: number, inputs: readonly string[]): Promise<RunRecord>
+  /** Series per chunk input, for callers of submitPrepared. */
+  readonly chunkSize?: number
+  /**
    * Queue a run over stored histories, read in batches straight into chunk inputs.
    * Optional: gateways without stored histories leave it out (the route answers 503).
    * `origin` defaults to { kind: 'scope' }; a schedule's firing passes { kind: 'schedule', scheduleId }.

@@ -1,3 +1,4 @@
+import { LargeJsonBody } from '../body-threads/pool.js'
 import { createHash, type Hash } from 'node:crypto'
 import { Readable, Transform } from 'node:stream'
 import fp from 'fastify-plugin'
@@ -68,7 +69,7 @@ export default fp<{ store?: IdempotencyStore }>(
       if (existing?.state === 'done') {
         const digest = streamed
           ? await drainInto(hash, request.body as Readable, app.config.bodyLimitBytes)
-          : hash.update(JSON.stringify(request.body ?? null)).digest('hex')
+          : hash.update(bodyText(request.body)).digest('hex')
         if (digest !== existing.hash) throw reused()
         return replay(reply, existing)
       }
@@ -85,7 +86,7 @@ export default fp<{ store?: IdempotencyStore }>(
       const state: IdempotencyState = { key, lease, renewal, hash: null, settled: false, replayable: true }
       request.idempotency = state
       if (!streamed) {
-        state.hash = hash.update(JSON.stringify(request.body ?? null)).digest('hex')
+        state.hash = hash.update(bodyText(request.body)).digest('hex')
         return
       }
       const source = request.body as Readable
@@ -188,3 +189,8 @@ const reused = () =>
   new ProblemError('idempotency-key-reused', 'This Idempotency-Key was used with a different request (method, URL or body)')
 
 export type { FastifyRequest }
+
+/** What a JSON body is hashed as: its bytes when it was left unparsed (a large body, parsed on a thread), else the parsed value. */
+function bodyText(body: unknown): string | Buffer {
+  return body instanceof LargeJsonBody ? body.bytes : JSON.stringify(body ?? null)
+}

@@ -125,16 +125,33 @@ export class RunStore {
     origin: RunOrigin = { kind: 'inline' },
   ): Promise<{ record: RunRecord; chunks: number }> {
     const { series, ...settings } = request
-    const chunks = Math.ceil(series.length / chunkSize)
+    const inputs: string[] = []
+    for (let c = 0; c * chunkSize < series.length; c++) inputs.push(JSON.stringify(series.slice(c * chunkSize, (c + 1) * chunkSize)))
+    return this.createRunFromInputs(tenant, runId, settings, series.length, inputs, now, origin)
+  }
+
+  /**
+   * createRun with the chunk inputs already made (JSON arrays of at most chunkSize
+   * series each, as createRun writes them): a large body is cut on a thread
+   * (http/body-threads), so the API never holds its series as objects.
+   */
+  async createRunFromInputs(
+    tenant: string,
+    runId: string,
+    settings: RunSettings,
+    total: number,
+    inputs: readonly string[],
+    now: Date,
+    origin: RunOrigin = { kind: 'inline' },
+  ): Promise<{ record: RunRecord; chunks: number }> {
+    const chunks = inputs.length
     const k = this.keys(tenant, runId)
     await this.index.add(tenant, runId, now.getTime())
     const tx = this.redis.multi()
-    const fields = newRunFields({ id: runId, tenant, createdAt: now.toISOString(), total: series.length, chunks, settings, scope: null, origin })
+    const fields = newRunFields({ id: runId, tenant, createdAt: now.toISOString(), total, chunks, settings, scope: null, origin })
     tx.hset(k.run, fields)
     tx.expire(k.run, this.opts.recordTtlSeconds)
-    for (let c = 0; c < chunks; c++) {
-      tx.set(k.input(c), JSON.stringify(series.slice(c * chunkSize, (c + 1) * chunkSize)), 'EX', this.opts.resultTtlSeconds)
-    }
+    inputs.forEach((input, c) => tx.set(k.input(c), input, 'EX', this.opts.resultTtlSeconds))
     await execOrThrow(tx)
     await this.stats.created()
     return { record: decodeRunRecord(fields)!, chunks }

@@ -7,7 +7,10 @@ import { pageSchema } from '../../../schemas/params.js'
 import { RunListQuery } from '../../../schemas/run-list.js'
 import { RunSubmission, toRunScope } from '../../../schemas/run.js'
 import { parseRunSubmissionFast } from '../../../schemas/series-check.js'
-import { validatorCompiler } from '../../validation.js'
+import { bodyValidationError, fieldIssues, validatorCompiler } from '../../validation.js'
+import { LargeJsonBody } from '../../body-threads/pool.js'
+import { RunInputError } from '../../../runs/input.js'
+import type { FastifyInstance } from 'fastify'
 import type { RunRecord } from '../../../runs/contract.js'
 import { submitStoredScope } from '../../run-scope.js'
 import { IDEMPOTENT, READ, READ_ONE, WRITE, WRITE_ONE } from '../responses.js'
@@ -20,6 +23,34 @@ export function toRunResource(run: RunRecord): Omit<RunRecord, 'tenant'> {
 
 export function runNotFound(runId: string): ProblemError {
   return new ProblemError('not-found', `Run ${runId} not found`)
+}
+
+/**
+ * A large run body, parsed, validated and cut into chunk inputs on the body
+ * thread: every answer is the one the body would get on the event loop
+ * (malformed JSON, each invalid field, a refused option), but the API never holds
+ * its series as objects.
+ */
+async function submitLargeBody(app: FastifyInstance, tenant: string, body: LargeJsonBody): Promise<RunRecord> {
+  const chunkSize = app.gateway.chunkSize
+  if (!app.gateway.submitPrepared || chunkSize === undefined) throw new ProblemError('not-ready', 'Large run bodies are not configured on this server')
+  const outcome = await app.bodyThreads.prepareRun({ bytes: body.bytes, chunkSize })
+  switch (outcome.kind) {
+    case 'malformed':
+      throw new ProblemError('malformed-json', 'The request body is not valid JSON')
+    case 'invalid':
+      throw bodyValidationError(fieldIssues(outcome.issues, outcome.more))
+    case 'refused':
+      throw new RunInputError('invalid-option', outcome.message, outcome.field)
+    case 'scope': {
+      const { scope, series: _none, ...settings } = outcome.body
+      checkCallbackUrl(app, settings.callbackUrl, 'callbackUrl')
+      return submitStoredScope(app, tenant, settings, toRunScope(scope!))
+    }
+    case 'inline':
+      checkCallbackUrl(app, outcome.settings.callbackUrl, 'callbackUrl')
+      return app.gateway.submitPrepared(tenant, outcome.settings, outcome.total, outcome.chunks)
+  }
 }
 
 /** /v1/runs: submit, read and cancel asynchronous runs. */
@@ -41,18 +72,28 @@ const routes: FastifyPluginAsyncZod = async (app) => {
         body: RunSubmission,
         response: { 202: RunResource },
       },
-      config: { idempotency: true },
+      // A body of LARGE_JSON_BYTES or more arrives unparsed and is parsed, validated and cut on a thread (below).
+      config: { idempotency: true, largeJsonOnThread: true },
       // Inline series are checked by a plain loop (same outcome as the schema); any body it cannot vouch for goes through zod.
       validatorCompiler: (route) => {
         const full = validatorCompiler(route as unknown as Parameters<typeof validatorCompiler>[0])
         if (route.httpPart !== 'body') return full
         return (data) => {
+          if (data instanceof LargeJsonBody) return { value: data }
           const fast = parseRunSubmissionFast(data)
           return fast === null ? full(data) : { value: fast }
         }
       },
     },
     async (request, reply) => {
+      const raw: unknown = request.body
+      if (raw instanceof LargeJsonBody) {
+        const bodyBytes = raw.bytes.length // read before the bytes move to the thread
+        const run = await submitLargeBody(app, request.tenant, raw)
+        request.log.info({ runId: run.id, series: run.progress.total, stored: run.scope !== null, bodyBytes }, 'run submitted')
+        reply.code(202).header('location', `/v1/runs/${encodeURIComponent(run.id)}`)
+        return toRunResource(run)
+      }
       const { series, scope, ...settings } = request.body
       checkCallbackUrl(app, settings.callbackUrl, 'callbackUrl')
       // The schema lets exactly one of series and scope through.

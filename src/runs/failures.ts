@@ -24,8 +24,11 @@ export const PERIOD_SETTING_CONVERTED = 'period-setting-converted'
 /** A run-level setting counted in periods of the run's frequency was not applied to a SKU of another frequency. */
 export const PERIOD_SETTING_NOT_APPLIED = 'period-setting-not-applied'
 
+/** A new product's forecast was blended with its peers' level (runs/peer-levels.ts). */
+export const PEER_LEVEL_BLENDED = 'peer-level-blended'
+
 /** Warning codes the service adds to result items beside the engine's own (docs/warnings.md). */
-export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED, OPEN_PERIODS_FITTED, PERIOD_SETTING_CONVERTED, PERIOD_SETTING_NOT_APPLIED] as const
+export const SERVICE_WARNING_CODES = [REPLENISHMENT_SKIPPED, OPEN_PERIODS_FITTED, PERIOD_SETTING_CONVERTED, PERIOD_SETTING_NOT_APPLIED, PEER_LEVEL_BLENDED] as const
 
 /** `failure.code` of a series whose synchronous fit ran past SYNC_SERIES_TIMEOUT_MS (its thread was ended). */
 export const FIT_TIME_LIMIT = 'fit-time-limit'

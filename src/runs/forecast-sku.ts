@@ -1,7 +1,8 @@
 import { EngineInputError, replenishmentFor, type ForecastResult, type Frequency, type SeriesInput } from '../engine/index.js'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 import type { ForecastItem, ResultItem } from './contract.js'
-import { PERIOD_SETTING_CONVERTED, PERIOD_SETTING_NOT_APPLIED, REPLENISHMENT_SKIPPED } from './failures.js'
+import { PEER_LEVEL_BLENDED, PERIOD_SETTING_CONVERTED, PERIOD_SETTING_NOT_APPLIED, REPLENISHMENT_SKIPPED } from './failures.js'
+import { blendWithPeers, NEW_PRODUCT_PERIODS, ownWeight, type PeerLevel } from './peer-levels.js'
 import { convertedPeriods, toSeriesInput } from './series-input.js'
 import { DAYS_PER_PERIOD, resolveStockPolicy, type ItemWarning } from './stock-policy.js'
 
@@ -12,13 +13,15 @@ import { DAYS_PER_PERIOD, resolveStockPolicy, type ItemWarning } from './stock-p
 export function forecastItem(
   forecast: (input: SeriesInput) => ForecastResult,
   settings: RunSettings,
-  series: SeriesItem,
+  series: SeriesItem & { readonly peerLevel?: PeerLevel | undefined },
 ): ResultItem {
   const input = toSeriesInput(settings, series)
   try {
-    const result = forecast(input)
+    const own = forecast(input)
+    const peer = series.peerLevel !== undefined && series.demand.length < NEW_PRODUCT_PERIODS ? series.peerLevel : undefined
+    const result = peer ? blendWithPeers(own, peer, series.demand.length, settings.allowNegativeDemand) : own
     const item = toResultItem(series.sku, input.frequency, result)
-    const notes = settingWarnings(settings, series, input.frequency)
+    const notes = [...settingWarnings(settings, series, input.frequency), ...(peer ? [peerWarning(peer, series.demand.length)] : [])]
     return withReplenishment(notes.length === 0 ? item : { ...item, warnings: [...item.warnings, ...notes] }, result, settings, series)
   } catch (err) {
     if (err instanceof EngineInputError) return { sku: series.sku, frequency: input.frequency, failure: { code: err.code, message: err.message } }
@@ -57,6 +60,16 @@ function settingWarnings(settings: RunSettings, series: SeriesItem, frequency: F
 }
 
 const round4 = (x: number) => Math.round(x * 1e4) / 1e4
+
+function peerWarning(peer: PeerLevel, n: number): ItemWarning {
+  const w = ownWeight(n)
+  return {
+    code: PEER_LEVEL_BLENDED,
+    message:
+      `a new product (${n} periods): its forecast is blended with the level of ${peer.peers} SKUs tagged ${peer.tag} ` +
+      `(median recent demand ${round4(peer.level)}), weight ${round4(w)} on its own forecast and ${round4(1 - w)} on theirs`,
+  }
+}
 
 /**
  * Adds replenishment figures when the run asks for them, from the SKU's stock

@@ -54,8 +54,11 @@ export function emptyScopeError(scope: { readonly skus: readonly string[] } | { 
  * Settings that only mean something for stored histories.
  * @throws RunInputError naming `openPeriods` on a run over inline series.
  */
-export function checkInlineOptions(settings: Pick<RunRequest, 'openPeriods'>): void {
+export function checkInlineOptions(settings: Pick<RunRequest, 'openPeriods' | 'newProductPeers'>): void {
   if (settings.openPeriods !== undefined) {
     throw new RunInputError('invalid-option', 'openPeriods applies to stored histories (scope); inline series are fitted as sent', 'openPeriods')
+  }
+  if (settings.newProductPeers !== undefined) {
+    throw new RunInputError('invalid-option', 'newProductPeers needs stored histories (scope): inline series carry no tags', 'newProductPeers')
   }
 }

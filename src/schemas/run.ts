@@ -136,6 +136,8 @@ export type SeriesItem = z.infer<typeof SeriesItem>
  */
 export const ChunkSeriesItem = SeriesItem.extend({
   openPeriods: z.number().int().min(1).optional(),
+  /** A new product's peer level (runs/peer-levels.ts), when the run asked for newProductPeers and enough peers exist. */
+  peerLevel: z.object({ tag: z.string(), level: z.number(), peers: z.number().int().min(1) }).optional(),
 })
 export type ChunkSeriesItem = z.infer<typeof ChunkSeriesItem>
 
@@ -205,6 +207,19 @@ export const RunSettings = z.strictObject({
       'true: the results become the SKUs\' published forecasts (served at /v1/skus/{sku}/forecast, scored against ' +
         'actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) ' +
         'and schedules, false for inline series.',
+    ),
+  newProductPeers: z
+    .strictObject({
+      tagPrefix: z
+        .string()
+        .min(1)
+        .max(64)
+        .describe('Peers are the SKUs sharing the SKU\'s first tag with this prefix, e.g. "category:"'),
+    })
+    .optional()
+    .describe(
+      'New products (fewer than 10 periods) are blended with the median recent level of SKUs sharing their tag, weighted ' +
+        'n / (n + 6) on their own forecast, with the warning peer-level-blended (at least 3 peers). Only for stored histories.',
     ),
   openPeriods: z
     .enum(['exclude', 'include'])

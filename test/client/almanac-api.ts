@@ -860,6 +860,11 @@ export interface components {
             callbackUrl?: string;
             /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
             publish?: boolean;
+            /** @description New products (fewer than 10 periods) are blended with the median recent level of SKUs sharing their tag, weighted n / (n + 6) on their own forecast, with the warning peer-level-blended (at least 3 peers). Only for stored histories. */
+            newProductPeers?: {
+                /** @description Peers are the SKUs sharing the SKU's first tag with this prefix, e.g. "category:" */
+                tagPrefix: string;
+            };
             /**
              * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
              * @enum {string}
@@ -927,6 +932,10 @@ export interface components {
             replenishment?: components["schemas"]["StockPolicyInput"] | null;
             callbackUrl?: string | null;
             publish?: boolean | null;
+            newProductPeers?: {
+                /** @description Peers are the SKUs sharing the SKU's first tag with this prefix, e.g. "category:" */
+                tagPrefix: string;
+            } | null;
             openPeriods?: ("exclude" | "include") | null;
             name?: string | null;
             cron?: string | null;
@@ -1366,6 +1375,11 @@ export interface components {
                 callbackUrl?: string;
                 /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
                 publish?: boolean;
+                /** @description New products (fewer than 10 periods) are blended with the median recent level of SKUs sharing their tag, weighted n / (n + 6) on their own forecast, with the warning peer-level-blended (at least 3 peers). Only for stored histories. */
+                newProductPeers?: {
+                    /** @description Peers are the SKUs sharing the SKU's first tag with this prefix, e.g. "category:" */
+                    tagPrefix: string;
+                };
                 /**
                  * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
                  * @enum {string}
@@ -1936,6 +1950,11 @@ export interface components {
             callbackUrl?: string;
             /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
             publish?: boolean;
+            /** @description New products (fewer than 10 periods) are blended with the median recent level of SKUs sharing their tag, weighted n / (n + 6) on their own forecast, with the warning peer-level-blended (at least 3 peers). Only for stored histories. */
+            newProductPeers?: {
+                /** @description Peers are the SKUs sharing the SKU's first tag with this prefix, e.g. "category:" */
+                tagPrefix: string;
+            };
             /**
              * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
              * @enum {string}
@@ -2350,6 +2369,11 @@ export interface operations {
                     callbackUrl?: string;
                     /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
                     publish?: boolean;
+                    /** @description New products (fewer than 10 periods) are blended with the median recent level of SKUs sharing their tag, weighted n / (n + 6) on their own forecast, with the warning peer-level-blended (at least 3 peers). Only for stored histories. */
+                    newProductPeers?: {
+                        /** @description Peers are the SKUs sharing the SKU's first tag with this prefix, e.g. "category:" */
+                        tagPrefix: string;
+                    };
                     /**
                      * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
                      * @enum {string}
@@ -4295,6 +4319,11 @@ export interface operations {
                     callbackUrl?: string;
                     /** @description true: the results become the SKUs' published forecasts (served at /v1/skus/{sku}/forecast, scored against actuals); false: a what-if run, readable only under the run. Default: true for stored histories (scope) and schedules, false for inline series. */
                     publish?: boolean;
+                    /** @description New products (fewer than 10 periods) are blended with the median recent level of SKUs sharing their tag, weighted n / (n + 6) on their own forecast, with the warning peer-level-blended (at least 3 peers). Only for stored histories. */
+                    newProductPeers?: {
+                        /** @description Peers are the SKUs sharing the SKU's first tag with this prefix, e.g. "category:" */
+                        tagPrefix: string;
+                    };
                     /**
                      * @description Stored periods after the tenant's closed-through period of their frequency: exclude (default) leaves them out of the fit; include fits them with the warning open-periods-fitted. Only for stored histories.
                      * @enum {string}

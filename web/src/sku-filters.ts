@@ -65,6 +65,7 @@ export const WARNING_OPTIONS = [
   'model-unavailable',
   'no-intervals',
   'open-periods-fitted',
+  'peer-level-blended',
   'period-setting-converted',
   'period-setting-not-applied',
   'rank-by-undefined',

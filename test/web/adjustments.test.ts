@@ -1,5 +1,4 @@
-import { readFileSync, rmSync } from 'node:fs'
-import { createRequire } from 'node:module'
+import { rmSync } from 'node:fs'
 import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { SMALL_DEMO_SKUS, loadDemo } from '../../demo/workbench.js'
@@ -9,7 +8,7 @@ import { HistoryStore } from '../../src/storage/histories/history-store.js'
 import { RunStore, runStoreOptions } from '../../src/storage/runs/run-store.js'
 import { sha256 } from '../http/gateway-double.js'
 import { startService, type TestService } from '../helpers/service.js'
-import { buildWorkbenchPages } from './pages.js'
+import { buildWorkbenchPages, axeViolations, chartPatch, signedInPage as signInto } from './pages.js'
 
 /**
  * Adjusting a forecast on the workbench's SKU page, in a real browser (Debian's
@@ -19,7 +18,6 @@ import { buildWorkbenchPages } from './pages.js'
 
 const KEY = 'garden-planner-key-0123456789'
 const auth = { authorization: `Bearer ${KEY}` }
-const require = createRequire(import.meta.url)
 
 let outDir: string
 let service: TestService
@@ -52,14 +50,7 @@ afterAll(async () => {
   if (outDir) rmSync(outDir, { recursive: true, force: true })
 })
 
-async function signedInPage(path: string): Promise<Page> {
-  const page = await browser.context.newPage()
-  await page.goto(`${baseUrl}${path}`)
-  await page.getByLabel('API key').fill(KEY)
-  await page.getByRole('button', { name: 'Sign in' }).click()
-  await page.locator('main h1').first().waitFor()
-  return page
-}
+const signedInPage = (path?: string) => signInto(browser, baseUrl, KEY, path)
 
 /** Waits until the form's outcome line holds `text`, then returns the whole line. */
 async function outcome(page: Page, text: string): Promise<string | null> {
@@ -68,17 +59,8 @@ async function outcome(page: Page, text: string): Promise<string | null> {
   return line.textContent()
 }
 
-type Rgba = readonly [number, number, number, number]
 
-async function patch(page: Page, x: number, y: number): Promise<Rgba[]> {
-  return (await page.evaluate(`(() => {
-    const canvas = document.querySelector('[data-testid=sku-chart] canvas')
-    const data = canvas.getContext('2d').getImageData(${x - 3}, ${y - 3}, 7, 7).data
-    const out = []
-    for (let i = 0; i < data.length; i += 4) out.push([data[i], data[i + 1], data[i + 2], data[i + 3]])
-    return out
-  })()`)) as Rgba[]
-}
+const patch = (page: Page, x: number, y: number) => chartPatch(page, x, y, 3)
 
 describe('adjusting a forecast on the SKU page', () => {
   it('adjusts two periods with a reason: the chart draws the adjusted forecast, the API serves the final values, the trail lists the change', async () => {
@@ -151,14 +133,10 @@ describe('adjusting a forecast on the SKU page', () => {
   })
 
   it('has no serious or critical accessibility violations (axe-core) with adjustments and the trail shown', async () => {
-    const axeSource = readFileSync(require.resolve('axe-core/axe.min.js'), 'utf8')
     const page = await signedInPage('/app/skus/GRD-1002')
     await page.locator('[data-testid=adjustment-trail]').waitFor()
     await page.locator('summary').click() // the forecast table with its final column too
-    await page.evaluate(axeSource)
-    const violations = (await page.evaluate(`axe.run().then((result) => result.violations.map((v) => ({
-      id: v.id, impact: v.impact, nodes: v.nodes.map((n) => n.target.join(' ')).slice(0, 3),
-    })))`)) as { id: string; impact: string; nodes: string[] }[]
+    const violations = await axeViolations(page)
     expect(violations.filter((v) => v.impact === 'serious' || v.impact === 'critical')).toEqual([])
     await page.close()
   })

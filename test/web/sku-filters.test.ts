@@ -1,6 +1,4 @@
 import { readFileSync, rmSync } from 'node:fs'
-import { createRequire } from 'node:module'
-import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { SMALL_DEMO_SKUS, loadDemo } from '../../demo/workbench.js'
 import { launchBrowser, type Browser } from '../../scripts/workbench/browser.js'
@@ -9,7 +7,7 @@ import { HistoryStore } from '../../src/storage/histories/history-store.js'
 import { MODEL_OPTIONS, WARNING_OPTIONS } from '../../web/src/sku-filters.js'
 import { sha256 } from '../http/gateway-double.js'
 import { startService, type TestService } from '../helpers/service.js'
-import { buildWorkbenchPages } from './pages.js'
+import { buildWorkbenchPages, axeViolations, signedInPage as signInto } from './pages.js'
 
 /**
  * The SKU list's filters in a real browser (Debian's headless Chromium through
@@ -20,7 +18,6 @@ import { buildWorkbenchPages } from './pages.js'
 
 const KEY = 'garden-planner-key-0123456789'
 const auth = { authorization: `Bearer ${KEY}` }
-const require = createRequire(import.meta.url)
 
 let outDir: string
 let service: TestService
@@ -57,14 +54,7 @@ afterAll(async () => {
   if (outDir) rmSync(outDir, { recursive: true, force: true })
 })
 
-async function signedInPage(path: string): Promise<Page> {
-  const page = await browser.context.newPage()
-  await page.goto(`${baseUrl}${path}`)
-  await page.getByLabel('API key').fill(KEY)
-  await page.getByRole('button', { name: 'Sign in' }).click()
-  await page.locator('main h1').first().waitFor()
-  return page
-}
+const signedInPage = (path?: string) => signInto(browser, baseUrl, KEY, path)
 
 const codesIn = (markdown: string) => [...markdown.matchAll(/^\| `([a-z0-9-]+)` \|/gm)].map((m) => m[1]!)
 
@@ -135,11 +125,7 @@ describe('SKU list filters', { timeout: 60_000 }, () => {
     await page.getByLabel('Model').focus()
     await page.keyboard.press('ArrowDown')
     await page.locator('[data-testid=sku-list-status][data-state=done][data-filters^="model="]').waitFor()
-    await page.evaluate(readFileSync(require.resolve('axe-core/axe.min.js'), 'utf8'))
-    const violations = (await page.evaluate(`axe.run().then((r) => r.violations.map((v) => ({ id: v.id, impact: v.impact })))`)) as {
-      id: string
-      impact: string
-    }[]
+    const violations = await axeViolations(page)
     expect(violations.filter((v) => v.impact === 'serious' || v.impact === 'critical')).toEqual([])
     await page.close()
   })

@@ -1,15 +1,11 @@
-import { readFileSync, rmSync } from 'node:fs'
-import { createRequire } from 'node:module'
+import { rmSync } from 'node:fs'
 import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { SMALL_DEMO_SKUS, demoTags, loadDemo } from '../../demo/workbench.js'
 import { launchBrowser, type Browser } from '../../scripts/workbench/browser.js'
-import { createAdjustmentService } from '../../src/http/adjustment-services.js'
-import { AccuracyTrackingHistoryStore } from '../../src/storage/erp/accuracy-hook.js'
-import { RunStore, runStoreOptions } from '../../src/storage/runs/run-store.js'
 import { sha256 } from '../http/gateway-double.js'
-import { startService, type TestService } from '../helpers/service.js'
-import { buildWorkbenchPages } from './pages.js'
+import { planningDeps, startService, type TestService } from '../helpers/service.js'
+import { buildWorkbenchPages, axeViolations, chartPatch, signedInPage as signInto, type Rgba } from './pages.js'
 
 /**
  * The SKU page's look back and look aside, in a real browser (Debian's headless
@@ -22,7 +18,6 @@ import { buildWorkbenchPages } from './pages.js'
 
 const KEY = 'garden-planner-key-0123456789'
 const auth = { authorization: `Bearer ${KEY}` }
-const require = createRequire(import.meta.url)
 const SKU = 'GRD-1002'
 
 let outDir: string
@@ -36,24 +31,13 @@ beforeAll(async () => {
   service = await startService('web-review', {
     erp: true,
     config: { apiKeys: new Map([['garden', [sha256(KEY)]]]), chunkSize: 4, workerConcurrency: 1, rateLimitMax: 10_000 },
-    appDeps: ({ redis, prefix, config, erp }) => {
-      const runs = new RunStore(redis, runStoreOptions(config))
-      const adjustments = createAdjustmentService(config, redis, { latestForecast: (t, s) => runs.latest(t, s) })
-      return {
-        // Uploads score the published forecasts they bring actuals for and record value added, as in production (server.ts).
-        histories: new AccuracyTrackingHistoryStore(
-          redis,
-          { prefix },
-          erp!.services.accuracy,
-          (err) => {
-            throw err
-          },
-          (tenant, entries) => adjustments.historiesStored(tenant, entries),
-        ),
-        workbenchRoot: outDir,
-        adjustments,
-      }
-    },
+    // Uploads score the published forecasts they bring actuals for and record value added, as in production (server.ts).
+    appDeps: (ctx) => ({
+      ...planningDeps(ctx, (err) => {
+        throw err
+      }),
+      workbenchRoot: outDir,
+    }),
   })
   baseUrl = await service.app.listen({ port: 0, host: '127.0.0.1' })
   const run = await loadDemo(baseUrl, SMALL_DEMO_SKUS, auth)
@@ -82,26 +66,10 @@ afterAll(async () => {
   if (outDir) rmSync(outDir, { recursive: true, force: true })
 })
 
-async function signedInPage(path: string): Promise<Page> {
-  const page = await browser.context.newPage()
-  await page.goto(`${baseUrl}${path}`)
-  await page.getByLabel('API key').fill(KEY)
-  await page.getByRole('button', { name: 'Sign in' }).click()
-  await page.locator('main h1').first().waitFor()
-  return page
-}
+const signedInPage = (path?: string) => signInto(browser, baseUrl, KEY, path)
 
-type Rgba = readonly [number, number, number, number]
 
-async function patch(page: Page, x: number, y: number): Promise<Rgba[]> {
-  return (await page.evaluate(`(() => {
-    const canvas = document.querySelector('[data-testid=sku-chart] canvas')
-    const data = canvas.getContext('2d').getImageData(${x - 4}, ${y - 4}, 9, 9).data
-    const out = []
-    for (let i = 0; i < data.length; i += 4) out.push([data[i], data[i + 1], data[i + 2], data[i + 3]])
-    return out
-  })()`)) as Rgba[]
-}
+const patch = (page: Page, x: number, y: number) => chartPatch(page, x, y, 4)
 
 const near = (rgb: readonly number[], tolerance: number) => (p: Rgba) => p[3] === 255 && rgb.every((v, i) => Math.abs(v - p[i]!) <= tolerance)
 
@@ -188,16 +156,12 @@ describe('the SKU page looks back and aside', () => {
   })
 
   it('has no serious or critical accessibility violations (axe-core) with the what-if and the accuracy record shown', async () => {
-    const axeSource = readFileSync(require.resolve('axe-core/axe.min.js'), 'utf8')
     const page = await signedInPage(`/app/skus/${SKU}`)
     await page.locator('[data-testid=sku-chart][data-probes]').waitFor()
     await page.getByRole('button', { name: /\(what-if, not published\)$/ }).first().click()
     await page.getByTestId('what-if-table').waitFor()
     for (const summary of await page.locator('summary').all()) await summary.click()
-    await page.evaluate(axeSource)
-    const violations = (await page.evaluate(`axe.run().then((result) => result.violations.map((v) => ({
-      id: v.id, impact: v.impact, nodes: v.nodes.map((n) => n.target.join(' ')).slice(0, 3),
-    })))`)) as { id: string; impact: string; nodes: string[] }[]
+    const violations = await axeViolations(page)
     expect(violations.filter((v) => v.impact === 'serious' || v.impact === 'critical')).toEqual([])
     await page.close()
   })
@@ -224,10 +188,7 @@ describe('the overview pools a tag', () => {
     await page.getByLabel('Forecasts scored').selectOption('1')
     await summary.filter({ hasText: `Periods scored${atLag.scoredPeriods}` }).waitFor()
     // No serious or critical accessibility violations (axe-core) with the figures shown.
-    await page.evaluate(readFileSync(require.resolve('axe-core/axe.min.js'), 'utf8'))
-    const violations = (await page.evaluate(`axe.run().then((result) => result.violations.map((v) => ({
-      id: v.id, impact: v.impact, nodes: v.nodes.map((n) => n.target.join(' ')).slice(0, 3),
-    })))`)) as { id: string; impact: string; nodes: string[] }[]
+    const violations = await axeViolations(page)
     expect(violations.filter((v) => v.impact === 'serious' || v.impact === 'critical')).toEqual([])
     await page.close()
   })

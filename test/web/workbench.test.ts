@@ -1,5 +1,4 @@
-import { readFileSync, rmSync } from 'node:fs'
-import { createRequire } from 'node:module'
+import { rmSync } from 'node:fs'
 import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { DEMO_RUN_SETTINGS, SMALL_DEMO_SKUS, loadDemo, type DemoRun } from '../../demo/workbench.js'
@@ -11,7 +10,7 @@ import { CHUNK_QUEUE } from '../../src/queue/names.js'
 import { HistoryStore } from '../../src/storage/histories/history-store.js'
 import { sha256 } from '../http/gateway-double.js'
 import { startService, type TestService } from '../helpers/service.js'
-import { buildWorkbenchPages } from './pages.js'
+import { buildWorkbenchPages, axeViolations, chartPatch, signedInPage as signInto, type Rgba } from './pages.js'
 
 /**
  * The workbench in a real browser (Debian's headless Chromium through playwright-core)
@@ -21,7 +20,6 @@ import { buildWorkbenchPages } from './pages.js'
 
 const KEY = 'garden-planner-key-0123456789'
 const auth = { authorization: `Bearer ${KEY}` }
-const require = createRequire(import.meta.url)
 
 let outDir: string
 let service: TestService
@@ -48,37 +46,14 @@ afterAll(async () => {
   if (outDir) rmSync(outDir, { recursive: true, force: true })
 })
 
-/** A fresh tab that has passed the sign-in form once (the key then lives in its sessionStorage). */
-async function signedInPage(path = '/app/'): Promise<Page> {
-  const page = await browser.context.newPage()
-  await page.goto(`${baseUrl}${path}`)
-  await page.getByLabel('API key').fill(KEY)
-  await page.getByRole('button', { name: 'Sign in' }).click()
-  await page.locator('main h1').first().waitFor()
-  return page
-}
+const signedInPage = (path?: string) => signInto(browser, baseUrl, KEY, path)
 
 type Rgb = readonly [number, number, number]
-type Rgba = readonly [number, number, number, number]
 const hex = (h: string): Rgb => [1, 3, 5].map((i) => parseInt(h.slice(i, i + 2), 16)) as unknown as Rgb
 /** An opaque pixel within `tolerance` of `b` in each channel. */
 const near = (a: Rgba, b: Rgb, tolerance = 14) => a[3] === 255 && b.every((v, i) => Math.abs(v - a[i]!) <= tolerance)
 
-/*
- * Code that runs in the page is passed as text: this file is type-checked for Node,
- * without the browser's types.
- */
-
-/** The canvas pixels of a 7 x 7 patch centred on (x, y), in canvas pixels. */
-async function patch(page: Page, x: number, y: number): Promise<Rgba[]> {
-  return (await page.evaluate(`(() => {
-    const canvas = document.querySelector('[data-testid=sku-chart] canvas')
-    const data = canvas.getContext('2d').getImageData(${x - 3}, ${y - 3}, 7, 7).data
-    const out = []
-    for (let i = 0; i < data.length; i += 4) out.push([data[i], data[i + 1], data[i + 2], data[i + 3]])
-    return out
-  })()`)) as Rgba[]
-}
+const patch = (page: Page, x: number, y: number) => chartPatch(page, x, y, 3)
 
 const share = (pixels: readonly Rgba[], colour: string, tolerance?: number) =>
   pixels.filter((p) => near(p, hex(colour), tolerance)).length / pixels.length
@@ -310,13 +285,8 @@ describe('workbench in the browser', () => {
   })
 
   it('has no serious or critical accessibility violations (axe-core) on any page', async () => {
-    const axeSource = readFileSync(require.resolve('axe-core/axe.min.js'), 'utf8')
     const check = async (page: Page, label: string) => {
-      // Evaluated through the debugging protocol, so the page's CSP (script-src 'self') still holds for the page itself.
-      await page.evaluate(axeSource)
-      const violations = (await page.evaluate(`axe.run().then((result) => result.violations.map((v) => ({
-        id: v.id, impact: v.impact, nodes: v.nodes.map((n) => n.target.join(' ')).slice(0, 3),
-      })))`)) as { id: string; impact: string; nodes: string[] }[]
+      const violations = await axeViolations(page)
       const bad = violations.filter((v) => v.impact === 'serious' || v.impact === 'critical')
       expect(bad, `${label}: ${JSON.stringify(bad)}`).toEqual([])
     }

@@ -1,12 +1,11 @@
-import { readFileSync, rmSync } from 'node:fs'
-import { createRequire } from 'node:module'
+import { rmSync } from 'node:fs'
 import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { SMALL_DEMO_SKUS, WORKLIST_DEMO_SERIES, arriveBiasedActuals, demoSeries, runDemo, uploadDemo, type DemoRun } from '../../demo/workbench.js'
 import { launchBrowser, type Browser } from '../../scripts/workbench/browser.js'
 import { AccuracyTrackingHistoryStore } from '../../src/storage/erp/accuracy-hook.js'
 import { startService, type TestService } from '../helpers/service.js'
-import { buildWorkbenchPages } from './pages.js'
+import { buildWorkbenchPages, axeViolations } from './pages.js'
 
 /**
  * The worklist page in a real browser (Debian's Chromium through playwright-core)
@@ -14,7 +13,6 @@ import { buildWorkbenchPages } from './pages.js'
  * in which one SKU fails and one is short, then actuals that make one biased.
  */
 
-const require = createRequire(import.meta.url)
 const BIASED = 'WRK-3001'
 const [SHORT, FAILED] = WORKLIST_DEMO_SERIES.map((s) => s.sku) as [string, string]
 
@@ -125,13 +123,9 @@ describe('the worklist in the browser', () => {
   })
 
   it('has no serious or critical accessibility violations (axe-core)', async () => {
-    const axeSource = readFileSync(require.resolve('axe-core/axe.min.js'), 'utf8')
     for (const path of ['/app/worklist', '/app/worklist?kind=biased']) {
       const page = await openWorklist(path)
-      await page.evaluate(axeSource)
-      const violations = (await page.evaluate(`axe.run().then((result) => result.violations.map((v) => ({
-        id: v.id, impact: v.impact, nodes: v.nodes.map((n) => n.target.join(' ')).slice(0, 3),
-      })))`)) as { id: string; impact: string; nodes: string[] }[]
+      const violations = await axeViolations(page)
       const bad = violations.filter((v) => v.impact === 'serious' || v.impact === 'critical')
       expect(bad, `${path}: ${JSON.stringify(bad)}`).toEqual([])
       await page.close()

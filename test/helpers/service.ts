@@ -6,6 +6,9 @@ import { createLogger } from '../../src/logger.js'
 import { createRunGateway, type RunMachinery } from '../../src/queue/gateway.js'
 import { startProcessWorkers, type ProcessWorkers } from '../../src/worker-main.js'
 import { createErpServices } from '../../src/http/erp-services.js'
+import { createAdjustmentService } from '../../src/http/adjustment-services.js'
+import { AccuracyTrackingHistoryStore } from '../../src/storage/erp/accuracy-hook.js'
+import { RunStore, runStoreOptions } from '../../src/storage/runs/run-store.js'
 import { runsTestConfig } from '../queue/fixtures.js'
 import { deleteKeys, redisUrlForTests, uniquePrefix } from './redis.js'
 
@@ -88,4 +91,20 @@ export async function startService(name: string, options: ServiceOptions = {}): 
     await close().catch(() => undefined)
     throw err
   }
+}
+
+/**
+ * App dependencies as production wires them (server.ts) for a service started with
+ * `erp: true`: stored histories whose uploads score the published forecasts and record
+ * forecast value added, and the adjustment service over the run store's latest forecasts.
+ * Errors of the scoring hook go to `onError`.
+ */
+export function planningDeps(ctx: ServiceContext, onError: (err: unknown) => void): Partial<AppDeps> {
+  if (!ctx.erp) throw new Error('planningDeps needs a service started with erp: true')
+  const runs = new RunStore(ctx.redis, runStoreOptions(ctx.config))
+  const adjustments = createAdjustmentService(ctx.config, ctx.redis, { latestForecast: (t, s) => runs.latest(t, s) })
+  const histories = new AccuracyTrackingHistoryStore(ctx.redis, { prefix: ctx.prefix }, ctx.erp.services.accuracy, onError, (tenant, entries) =>
+    adjustments.historiesStored(tenant, entries),
+  )
+  return { adjustments, histories }
 }

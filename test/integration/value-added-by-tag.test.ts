@@ -1,10 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import type { FastifyInstance } from 'fastify'
-import { AccuracyTrackingHistoryStore } from '../../src/storage/erp/accuracy-hook.js'
-import { createAdjustmentService } from '../../src/http/adjustment-services.js'
-import { RunStore, runStoreOptions } from '../../src/storage/runs/run-store.js'
-import type { AdjustmentService } from '../../src/runs/adjustment-service.js'
-import { startService, type TestService } from '../helpers/service.js'
+import { planningDeps, startService, type TestService } from '../helpers/service.js'
 import { waitFor } from '../queue/fixtures.js'
 
 // Forecast value added pooled over a tag and per planner (issue 15): two garden SKUs adjusted by two
@@ -18,20 +14,7 @@ beforeAll(async () => {
   service = await startService('value-added-by-tag', {
     config: { chunkSize: 5, workerConcurrency: 1 },
     erp: true,
-    appDeps: (ctx) => {
-      const runs = new RunStore(ctx.redis, runStoreOptions(ctx.config))
-      const adjustments: AdjustmentService = createAdjustmentService(ctx.config, ctx.redis, { latestForecast: (t, s) => runs.latest(t, s) })
-      return {
-        adjustments,
-        histories: new AccuracyTrackingHistoryStore(
-          ctx.redis,
-          { prefix: ctx.prefix },
-          ctx.erp!.services.accuracy,
-          (err) => hookErrors.push(err),
-          (tenant, entries) => adjustments.historiesStored(tenant, entries),
-        ),
-      }
-    },
+    appDeps: (ctx) => planningDeps(ctx, (err) => hookErrors.push(err)),
   })
   app = service.app
 })

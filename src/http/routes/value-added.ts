@@ -6,7 +6,7 @@ import { requireAdjustments } from '../plugins/adjustments.js'
 import { requireHistories } from '../plugins/history.js'
 import { READ } from './responses.js'
 
-/** Stored histories read at a time when pooling a tag. */
+/** SKU names read at a time when pooling a tag. */
 const POOL_BATCH = 500
 
 const TagQuery = z.object({
@@ -40,12 +40,8 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     },
     async (request) => {
       const { tag } = request.query
-      const histories = requireHistories(app)
-      const adjustments = requireAdjustments(app)
-      async function* skusOfTag() {
-        for await (const batch of histories.select(request.tenant, { tags: [tag] }, POOL_BATCH)) yield batch.map((h) => h.sku)
-      }
-      return { tag, ...(await adjustments.pooledValueAdded(request.tenant, skusOfTag())) }
+      const skus = requireHistories(app).skusOfTag(request.tenant, tag, POOL_BATCH)
+      return { tag, ...(await requireAdjustments(app).pooledValueAdded(request.tenant, skus)) }
     },
   )
 }

@@ -373,6 +373,19 @@ export class HistoryStore implements HistoryWriter {
     return { items, nextCursor: found.nextCursor }
   }
 
+  /** The SKUs carrying `tag`, by SKU, in batches of at most `batchSize` names (the tag's index only, no history read). */
+  async *skusOfTag(tenant: string, tag: string, batchSize: number): AsyncGenerator<string[]> {
+    const key = this.keys(tenant).tag(tag)
+    const size = Math.max(1, Math.floor(batchSize))
+    let min = '-'
+    for (;;) {
+      const skus = await this.redis.zrangebylex(key, min, '+', 'LIMIT', 0, size)
+      if (skus.length > 0) yield skus
+      if (skus.length < size) return
+      min = `(${skus[skus.length - 1]}`
+    }
+  }
+
   /**
    * The histories of the scope in batches of at most `batchSize`, read page by
    * page (never the whole scope at once). SKUs in `skus` without a history are skipped.

@@ -120,39 +120,38 @@ function columns(input: ChartInput): Columns {
   return { data, levels, adjusted, past, whatIf, pastColumn, whatIfColumn }
 }
 
-/** Markers drawn as filled squares (uPlot draws circles by default). */
-const squarePoints: uPlot.Series.Points.PathBuilder = (u, seriesIdx, idx0, idx1) => {
-  const fill = new Path2D()
-  const size = 9 * uPlot.pxRatio
-  const values = u.data[seriesIdx]!
-  for (let i = idx0; i <= idx1; i++) {
-    const v = values[i]
-    if (v === null || v === undefined) continue
-    const x = u.valToPos(i, 'x', true)
-    const y = u.valToPos(v, 'y', true)
-    fill.rect(x - size / 2, y - size / 2, size, size)
+/**
+ * A marker path builder: `shape` adds one marker at (x, y) in canvas pixels to the path;
+ * filled markers fill it, hollow ones stroke it only (uPlot draws circles by default).
+ */
+function markerPoints(shape: (path: Path2D, x: number, y: number) => void, filled: boolean): uPlot.Series.Points.PathBuilder {
+  return (u, seriesIdx, idx0, idx1) => {
+    const path = new Path2D()
+    const values = u.data[seriesIdx]!
+    for (let i = idx0; i <= idx1; i++) {
+      const v = values[i]
+      if (v === null || v === undefined) continue
+      shape(path, u.valToPos(i, 'x', true), u.valToPos(v, 'y', true))
+    }
+    return { stroke: path, fill: filled ? path : new Path2D() }
   }
-  return { stroke: fill, fill }
 }
 
+/** Filled squares: the adjusted forecast. */
+const squarePoints = markerPoints((path, x, y) => {
+  const size = 9 * uPlot.pxRatio
+  path.rect(x - size / 2, y - size / 2, size, size)
+}, true)
+
 /** Hollow diamonds: past forecasts, told apart from the forecast's dots and the adjusted squares by shape. */
-const diamondPoints: uPlot.Series.Points.PathBuilder = (u, seriesIdx, idx0, idx1) => {
-  const stroke = new Path2D()
+const diamondPoints = markerPoints((path, x, y) => {
   const r = 5.5 * uPlot.pxRatio
-  const values = u.data[seriesIdx]!
-  for (let i = idx0; i <= idx1; i++) {
-    const v = values[i]
-    if (v === null || v === undefined) continue
-    const x = u.valToPos(i, 'x', true)
-    const y = u.valToPos(v, 'y', true)
-    stroke.moveTo(x, y - r)
-    stroke.lineTo(x + r, y)
-    stroke.lineTo(x, y + r)
-    stroke.lineTo(x - r, y)
-    stroke.closePath()
-  }
-  return { stroke, fill: new Path2D() }
-}
+  path.moveTo(x, y - r)
+  path.lineTo(x + r, y)
+  path.lineTo(x, y + r)
+  path.lineTo(x - r, y)
+  path.closePath()
+}, false)
 
 /** Period steps that read well for weekly, monthly and quarterly labels. */
 const PERIOD_STEPS = [1, 2, 3, 4, 6, 12, 13, 26, 52, 104, 156, 260, 520]

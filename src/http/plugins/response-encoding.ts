@@ -8,8 +8,8 @@ const gzipAsync = promisify(gzip)
 
 /**
  * zlib's fastest level: answers are made per request (result pages, exports), so the API's
- * CPU matters more than the last bytes: level 1 about halved what compressing the result
- * pages cost the API in bench:e2e (bench/RESULTS.md, "End to end").
+ * CPU matters more than the last bytes (the cost of each level in bench:e2e: bench/RESULTS.md,
+ * "End to end").
  */
 const GZIP_OPTIONS = { level: constants.Z_BEST_SPEED }
 

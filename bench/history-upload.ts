@@ -8,6 +8,10 @@
  * Invented data (daily rows of 500 SKUs summed into months), for measuring only.
  *
  *   REDIS_URL=redis://127.0.0.1:6379 npm run bench:history -- 200000 800000 1600000
+ *   REDIS_URL=redis://127.0.0.1:6379 npm run bench:history -- --skus 500000 500000
+ * --skus N: N distinct SKUs a day (default 500); with N as large as the rows, every
+ * row is its own SKU, the case whose memory grew with the upload until uploads
+ * were staged in Redis past UPLOAD_SPILL_BYTES.
  */
 import { randomBytes } from 'node:crypto'
 import { Readable } from 'node:stream'
@@ -18,11 +22,14 @@ import { HistoryStore } from '../src/storage/histories/history-store.js'
 import type { RunGateway } from '../src/runs/contract.js'
 import { deletePrefix } from './e2e-redis.js'
 
-const sizes = process.argv.slice(2).map(Number).filter((n) => n > 0)
+const args = process.argv.slice(2)
+const skusAt = args.indexOf('--skus')
+const SKUS = skusAt >= 0 ? Number(args.splice(skusAt, 2)[1]) : 500
+if (!Number.isInteger(SKUS) || SKUS < 1) throw new Error('--skus must be a positive integer')
+const sizes = args.map(Number).filter((n) => n > 0)
 const rowCounts = sizes.length > 0 ? sizes : [200_000, 800_000, 1_600_000]
 const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'
 const prefix = `bench-history-${randomBytes(4).toString('hex')}`
-const SKUS = 500
 
 const config: Config = {
   port: 0,
@@ -51,7 +58,14 @@ function* csv(rows: number): Generator<string> {
   for (let d = 0; d < days; d++) {
     const date = new Date(Date.UTC(2000, 0, 1) + d * 86_400_000).toISOString().slice(0, 10)
     let chunk = ''
-    for (let i = 0; i < SKUS && d * SKUS + i < rows; i++) chunk += `B-${i},${date},${(i + d) % 7}\n`
+    for (let i = 0; i < SKUS && d * SKUS + i < rows; i++) {
+      chunk += `B-${i},${date},${(i + d) % 7}\n`
+      // Chunks of at most 5,000 rows, as a client would send them (and so a day of many SKUs is not one huge string).
+      if ((i + 1) % 5000 === 0) {
+        yield chunk
+        chunk = ''
+      }
+    }
     yield chunk
   }
 }

@@ -20,6 +20,9 @@ const boolFromEnv = (def: boolean) =>
  */
 export const DEFAULT_RATE_LIMIT_MAX = 6000
 
+/** 8 MiB: uploads up to a few hundred thousand rows never touch Redis staging. */
+export const DEFAULT_UPLOAD_SPILL_BYTES = 8 * 1024 * 1024
+
 export const ConfigSchema = z.object({
   PORT: intFromEnv(8080, 0, 65535),
   /** Default depends on whether API keys are configured (see loadConfig). */
@@ -89,6 +92,8 @@ export const ConfigSchema = z.object({
   QUOTA_SKUS_PER_TENANT: intFromEnv(250_000, 1, 100_000_000),
   /** Most bytes of stored history (demand and metadata) per tenant; 0: no quota. Writes that would grow past it are refused. */
   QUOTA_STORED_BYTES_PER_TENANT: intFromEnv(2 * 1024 ** 3, 0, Number.MAX_SAFE_INTEGER),
+  /** Bytes of a streamed upload's rows held in the API's memory before they are staged in Redis. */
+  UPLOAD_SPILL_BYTES: intFromEnv(DEFAULT_UPLOAD_SPILL_BYTES, 64 * 1024, 1024 ** 3),
   /** Most SKUs a schedule's scope.skus may name (larger selections: use tags or all). */
   SCHEDULE_MAX_SKUS: intFromEnv(1000, 1, 100_000),
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
@@ -196,6 +201,8 @@ export interface Config {
   readonly worklistChangePercent?: number
   /** How long a history upload's feed batch id is remembered (default 35 days). */
   readonly uploadBatchTtlSeconds?: number
+  /** Bytes of a streamed upload's rows held in memory before staging in Redis; default DEFAULT_UPLOAD_SPILL_BYTES. */
+  readonly uploadSpillBytes?: number
 }
 
 export class ConfigError extends Error {
@@ -323,6 +330,7 @@ export function loadConfig(
     publishedForecastsKept: e.PUBLISHED_FORECASTS_KEPT,
     worklistChangePercent: e.WORKLIST_CHANGE_PERCENT,
     uploadBatchTtlSeconds: e.UPLOAD_BATCH_TTL_SECONDS,
+    uploadSpillBytes: e.UPLOAD_SPILL_BYTES,
   }
 }
 

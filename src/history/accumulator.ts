@@ -18,6 +18,15 @@ interface SeriesEntry {
   readonly origin: Origin
 }
 
+/** A SKU's rows as gathered so far: bucket ordinal and demand pairs, flattened, in the order first seen. */
+export interface GatheredGroup {
+  readonly cells: readonly number[]
+  readonly rows: number
+  readonly firstLine: number | undefined
+  /** null: none of the rows carried tags. */
+  readonly tags: readonly string[] | null
+}
+
 /** What one SKU of an upload brings, ready to merge with the stored history. */
 export interface PendingHistory {
   readonly sku: string
@@ -40,6 +49,8 @@ export class HistoryAccumulator {
   private readonly seriesBySku = new Map<string, SeriesEntry>()
   /** Accepted rows whose period was a date (transactions) / a period label (period totals); series count as period rows. */
   private rowKinds = { dated: 0, period: 0 }
+  /** SKU-periods held: row buckets plus series points (what memory grows with). */
+  private cells = 0
   /** Lowest and highest bucket ordinal of everything accepted so far. */
   private lo = Infinity
   private hi = -Infinity
@@ -84,6 +95,7 @@ export class HistoryAccumulator {
       this.rowGroups.set(sku, group)
     }
     const before = group.cells.get(ordinal)
+    if (before === undefined) this.cells++
     group.cells.set(ordinal, this.opts.duplicates === 'sum' && before !== undefined ? before + demand : demand)
     group.rows++
     if (tags !== undefined && tags.length > 0) {
@@ -103,8 +115,75 @@ export class HistoryAccumulator {
       return
     }
     this.seriesBySku.set(sku, { incoming, origin })
+    this.cells += incoming.demand.length
     this.rowKinds.period++
     this.widen(incoming.startOrdinal, incoming.startOrdinal + incoming.demand.length - 1)
+  }
+
+  /**
+   * Rows gathered elsewhere for one SKU (a staged upload's earlier stretch of
+   * the file, see staged-upload.ts), merged as if its rows came again: buckets
+   * summed or replaced by the duplicate policy, tags added, rows counted. A SKU
+   * already given as a series refuses the whole group as one error at its first line.
+   */
+  addGroup(sku: string, group: GatheredGroup): void {
+    const origin: Origin = group.firstLine === undefined ? {} : { line: group.firstLine }
+    const series = this.seriesBySku.get(sku)
+    if (series) {
+      this.errors.add({ ...origin, sku, reason: `SKU was already given as a whole series${where(series.origin)}` }, group.rows)
+      return
+    }
+    let mine = this.rowGroups.get(sku)
+    if (!mine) {
+      mine = { cells: new Map(), rows: 0, firstLine: group.firstLine, tags: null }
+      this.rowGroups.set(sku, mine)
+    }
+    for (let i = 0; i < group.cells.length; i += 2) {
+      const ordinal = group.cells[i]!
+      const demand = group.cells[i + 1]!
+      const before = mine.cells.get(ordinal)
+      if (before === undefined) this.cells++
+      mine.cells.set(ordinal, this.opts.duplicates === 'sum' && before !== undefined ? before + demand : demand)
+      this.widen(ordinal, ordinal)
+    }
+    mine.rows += group.rows
+    if (group.tags !== null) {
+      mine.tags ??= new Set()
+      for (const tag of group.tags) mine.tags.add(tag)
+    }
+  }
+
+  /**
+   * Hand over everything gathered, as it stands (no checks: `drain` makes them
+   * once every part of a SKU is together), and start empty. Errors, kinds and
+   * span stay.
+   */
+  *handOver(): Generator<{ sku: string } & ({ series: IncomingHistory; origin: Origin } | { group: GatheredGroup })> {
+    for (const [sku, entry] of this.seriesBySku) yield { sku, series: entry.incoming, origin: entry.origin }
+    for (const [sku, g] of this.rowGroups) {
+      const cells: number[] = []
+      for (const [ordinal, demand] of g.cells) cells.push(ordinal, demand)
+      yield { sku, group: { cells, rows: g.rows, firstLine: g.firstLine, tags: g.tags === null ? null : [...g.tags] } }
+    }
+    this.rowGroups.clear()
+    this.seriesBySku.clear()
+    this.cells = 0
+  }
+
+  /** How the SKU came so far: as rows, as a series, or not at all. */
+  holds(sku: string): 'rows' | 'series' | null {
+    if (this.seriesBySku.has(sku)) return 'series'
+    return this.rowGroups.has(sku) ? 'rows' : null
+  }
+
+  /** SKU-periods held now (row buckets plus series points). */
+  get heldCells(): number {
+    return this.cells
+  }
+
+  /** The whole upload as one part (GatheredUpload): an accumulator holds every SKU in memory. */
+  async *parts(): AsyncIterable<HistoryAccumulator> {
+    yield this
   }
 
   /** SKUs gathered so far. */
@@ -161,6 +240,7 @@ export class HistoryAccumulator {
     }
     this.rowGroups.clear()
     this.seriesBySku.clear()
+    this.cells = 0
   }
 }
 

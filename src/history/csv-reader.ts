@@ -1,6 +1,6 @@
 import type { Readable } from 'node:stream'
 import { CsvError, parse } from 'csv-parse'
-import type { HistoryAccumulator } from './accumulator.js'
+import type { UploadSink } from './staged-upload.js'
 import { bucketOf } from './buckets.js'
 import { parseDemand, parseSku, parseTagsCell, type DecimalSeparator } from './cells.js'
 
@@ -46,7 +46,7 @@ const MAX_RECORD_CHARS = 64 * 1024
  * @throws UploadFormatError when the header lacks a required column, the file is empty
  *   or a record cannot be delimited
  */
-export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: HistoryAccumulator): Promise<void> {
+export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: UploadSink): Promise<void> {
   const parser = parse({
     delimiter: layout.delimiter,
     bom: true,
@@ -67,7 +67,7 @@ export async function readCsvUpload(source: Readable, layout: CsvLayout, acc: Hi
 async function readRecords(
   records: AsyncIterable<{ record: string[]; info: { lines: number } }>,
   layout: CsvLayout,
-  acc: HistoryAccumulator,
+  acc: UploadSink,
 ): Promise<void> {
   let columns: { sku: number; period: number; demand: number; tags: number } | null = null
   let names: readonly string[] = []
@@ -118,6 +118,8 @@ async function readRecords(
       continue
     }
     acc.addRow(sku.sku, bucket.ordinal, demand.value, { line }, bucket.dated, tags.tags)
+    // A staged upload may be appending a spill: wait for it rather than buffer another.
+    if (acc.settle !== undefined) await acc.settle()
   }
   if (columns === null) throw new UploadFormatError('the CSV upload is empty: expected a header row', 'body')
 }

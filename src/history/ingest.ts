@@ -1,5 +1,6 @@
 import { formatPeriod, type Frequency } from '../engine/index.js'
-import type { HistoryAccumulator, PendingHistory } from './accumulator.js'
+import type { PendingHistory } from './accumulator.js'
+import type { GatheredUpload } from './staged-upload.js'
 import { mergeHistory, zeroPeriod } from './merge.js'
 import type { HistoryData, UploadError, UploadMode } from './types.js'
 
@@ -74,9 +75,9 @@ export function defaultMode(kinds: { readonly dated: number; readonly period: nu
 /** SKUs written per round trip. */
 const WRITE_BATCH = 500
 
-/** Merge every gathered SKU into the store and report what was accepted and refused. */
+/** Merge every gathered SKU into the store, a part at a time, and report what was accepted and refused. */
 export async function commitUpload(
-  acc: HistoryAccumulator,
+  upload: GatheredUpload,
   writer: HistoryWriter,
   tenant: string,
   mode: UploadMode,
@@ -84,10 +85,12 @@ export async function commitUpload(
 ): Promise<UploadReport> {
   const open = opts.openPeriod
   if (mode === 'replace-open-period' && open === undefined) throw new Error('replace-open-period needs the open period')
+  const errors = upload.errors
   let accepted = 0
   let created = 0
   let updated = 0
   let alreadyApplied = 0
+  let rejected = 0
   const sent = new Set<string>()
   const merge = (current: HistoryData | null, p: PendingHistory) => {
     if (open !== undefined) {
@@ -107,7 +110,7 @@ export async function commitUpload(
     results.forEach((r, i) => {
       const p = batch[i]!
       if ('reason' in r) {
-        acc.errors.add({ ...p.origin, sku: p.sku, reason: r.reason }, p.rows)
+        errors.add({ ...p.origin, sku: p.sku, reason: r.reason }, p.rows)
         return
       }
       accepted += p.rows
@@ -117,26 +120,28 @@ export async function commitUpload(
     })
     batch = []
   }
-  const errorCount = () => acc.errors.listed.length + acc.errors.notListed
-  // From here on every new error is one refused SKU (too long while draining, or refused by the merge).
-  const rowErrors = errorCount()
-  for (const pending of acc.drain()) {
-    if (open !== undefined) sent.add(pending.sku)
-    batch.push(pending)
-    if (batch.length >= WRITE_BATCH) await flush()
+  const errorCount = () => errors.listed.length + errors.notListed
+  for await (const part of upload.parts()) {
+    // From here on every new error of the part is one refused SKU (too long while draining, or refused by the merge).
+    const before = errorCount()
+    for (const pending of part.drain()) {
+      if (open !== undefined) sent.add(pending.sku)
+      batch.push(pending)
+      if (batch.length >= WRITE_BATCH) await flush()
+    }
+    if (batch.length > 0) await flush()
+    rejected += errorCount() - before
   }
-  if (batch.length > 0) await flush()
-  const rejected = errorCount() - rowErrors
-  const zeroed = open === undefined ? 0 : await zeroLeftOut(writer, tenant, acc, open, sent)
+  const zeroed = open === undefined ? 0 : await zeroLeftOut(writer, tenant, upload, open, sent)
   return {
     mode,
-    frequency: acc.frequency,
+    frequency: upload.frequency,
     ...(opts.feedBatch === undefined ? {} : { batch: opts.feedBatch.id }),
-    ...(open === undefined ? {} : { openPeriod: formatPeriod(open, acc.frequency) }),
-    rows: { accepted, rejected: acc.errors.rejectedRows },
+    ...(open === undefined ? {} : { openPeriod: formatPeriod(open, upload.frequency) }),
+    rows: { accepted, rejected: errors.rejectedRows },
     skus: { created, updated, rejected, alreadyApplied, zeroed },
-    errors: acc.errors.listed,
-    errorsNotListed: acc.errors.notListed,
+    errors: errors.listed,
+    errorsNotListed: errors.notListed,
   }
 }
 
@@ -147,7 +152,7 @@ export async function commitUpload(
  * end before the open period are left alone: moving them forward is closing a period.
  * @returns how many SKUs were set to 0
  */
-async function zeroLeftOut(writer: HistoryWriter, tenant: string, acc: HistoryAccumulator, open: number, sent: ReadonlySet<string>): Promise<number> {
+async function zeroLeftOut(writer: HistoryWriter, tenant: string, acc: GatheredUpload, open: number, sent: ReadonlySet<string>): Promise<number> {
   let zeroed = 0
   const merge = (current: HistoryData | null, p: PendingHistory): { data: HistoryData } | { reason: string } => {
     const data = current === null || current.frequency !== acc.frequency ? null : zeroPeriod(current, open)

@@ -1,6 +1,6 @@
 import { StringDecoder } from 'node:string_decoder'
 import type { Readable } from 'node:stream'
-import type { HistoryAccumulator } from './accumulator.js'
+import type { UploadSink } from './staged-upload.js'
 import { bucketOf } from './buckets.js'
 import { parseDemand, parseSku } from './cells.js'
 import { parseUploadSeries } from './series-item.js'
@@ -20,7 +20,7 @@ const MAX_LINE_CHARS = 4 * 1024 * 1024
  * a date or a period label; a SKU's tags become all the tags of its rows). Blank lines are skipped; bad lines are recorded.
  * @throws UploadFormatError on a line longer than 4 MiB
  */
-export async function readNdjsonUpload(source: Readable, acc: HistoryAccumulator): Promise<void> {
+export async function readNdjsonUpload(source: Readable, acc: UploadSink): Promise<void> {
   const decoder = new StringDecoder('utf8')
   let pending = ''
   let line = 0
@@ -31,13 +31,15 @@ export async function readNdjsonUpload(source: Readable, acc: HistoryAccumulator
       handleLine(pending.slice(0, nl), ++line, acc)
       pending = pending.slice(nl + 1)
     }
+    if (acc.settle !== undefined) await acc.settle()
     if (pending.length > MAX_LINE_CHARS) throw new UploadFormatError(`line ${line + 1} is longer than ${MAX_LINE_CHARS} characters`, 'body')
   }
   pending += decoder.end()
   if (pending.length > 0) handleLine(pending, line + 1, acc)
+  if (acc.settle !== undefined) await acc.settle()
 }
 
-function handleLine(raw: string, line: number, acc: HistoryAccumulator): void {
+function handleLine(raw: string, line: number, acc: UploadSink): void {
   const text = raw.endsWith('\r') ? raw.slice(0, -1) : raw
   if (text.trim() === '') return
   let value: unknown

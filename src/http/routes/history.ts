@@ -2,10 +2,11 @@ import { Transform, type Readable } from 'node:stream'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { z } from 'zod'
 import { HistoryAccumulator } from '../../history/accumulator.js'
+import { STAGED_PARTS, StagedUpload } from '../../history/staged-upload.js'
 import { readCsvUpload, UploadFormatError } from '../../history/csv-reader.js'
 import { commitUpload, defaultMode } from '../../history/ingest.js'
 import { withSkuQuota } from '../../history/quota.js'
-import { DEFAULT_QUOTA_SKUS_PER_TENANT } from '../../config.js'
+import { DEFAULT_QUOTA_SKUS_PER_TENANT, DEFAULT_UPLOAD_SPILL_BYTES } from '../../config.js'
 import { bucketOf } from '../../history/buckets.js'
 import { formatPeriod, parsePeriod, type Frequency } from '../../engine/index.js'
 import { closePeriod } from '../../history/close-period.js'
@@ -118,86 +119,96 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       checkCsvDialect(q)
       // Checked before anything is read or stored: a bad or backward closing refuses the whole upload.
       if (q.closeThrough !== undefined) await checkCloseThrough(app, request.tenant, q.frequency, q.closeThrough)
-      const acc = new HistoryAccumulator({ frequency: q.frequency, duplicates: q.duplicates })
       const type = (request.headers['content-type'] ?? '').split(';')[0]!.trim().toLowerCase()
-      let mode = q.mode
-      if (STREAMED_TYPES.includes(type)) {
-        const declared = Number(request.headers['content-length'] ?? 0)
-        if (declared > app.config.bodyLimitBytes) {
-          throw new ProblemError('payload-too-large', `The upload is larger than ${app.config.bodyLimitBytes} bytes`, undefined, {
-            connection: 'close',
+      const gathering = { frequency: q.frequency, duplicates: q.duplicates }
+      // Streamed bodies go through Redis past a few MiB, so their memory does not grow with their size.
+      const limits = { parts: STAGED_PARTS, spillBytes: app.config.uploadSpillBytes ?? DEFAULT_UPLOAD_SPILL_BYTES }
+      const staged = STREAMED_TYPES.includes(type) ? new StagedUpload(gathering, store.uploadStaging(request.tenant), limits) : null
+      const acc = staged ?? new HistoryAccumulator(gathering)
+      try {
+        let mode = q.mode
+        if (staged !== null) {
+          const declared = Number(request.headers['content-length'] ?? 0)
+          if (declared > app.config.bodyLimitBytes) {
+            throw new ProblemError('payload-too-large', `The upload is larger than ${app.config.bodyLimitBytes} bytes`, undefined, {
+              connection: 'close',
+            })
+          }
+          const source = limitBytes(request.body as Readable, app.config.bodyLimitBytes)
+          try {
+            if (type === 'text/csv') {
+              const { skuColumn, periodColumn, demandColumn, tagsColumn, decimalSeparator } = q
+              const layout = { delimiter: CSV_DELIMITERS[q.delimiter], skuColumn, periodColumn, demandColumn, decimalSeparator }
+              await readCsvUpload(source, tagsColumn === undefined ? layout : { ...layout, tagsColumn }, acc)
+            } else {
+              await readNdjsonUpload(source, acc)
+            }
+          } catch (err) {
+            // The rest of the body was not read: close rather than let the server drain it.
+            reply.header('connection', 'close')
+            if (err instanceof UploadFormatError) {
+              throw new ProblemError('validation-failed', err.message, [{ path: err.field, message: err.message }])
+            }
+            throw err
+          }
+        } else {
+          const body = JsonUpload.safeParse(request.body)
+          if (!body.success) {
+            const issues = fieldIssues(body.error.issues)
+            const errors = issues.slice(0, MAX_FIELD_ERRORS).map((i) => ({ path: formatFieldPath(i.path, 'body'), message: i.message }))
+            throw new ProblemError('validation-failed', `The request body has ${issues.length} invalid field(s)`, errors)
+          }
+          if (mode !== undefined && body.data.mode !== undefined && mode !== body.data.mode) {
+            throw new ProblemError('validation-failed', 'mode differs between the query string and the body', [
+              { path: 'mode', message: `query says ${mode}, body says ${body.data.mode}` },
+            ])
+          }
+          mode = body.data.mode ?? mode
+          body.data.series.forEach((value, item) => {
+            const s = parseUploadSeries(value, q.frequency)
+            if ('reason' in s) acc.errors.add({ item, ...s, column: `series[${item}].${s.column}` })
+            else acc.addSeries(s.sku, s.incoming, { item })
           })
         }
-        const source = limitBytes(request.body as Readable, app.config.bodyLimitBytes)
-        try {
-          if (type === 'text/csv') {
-            const { skuColumn, periodColumn, demandColumn, tagsColumn, decimalSeparator } = q
-            const layout = { delimiter: CSV_DELIMITERS[q.delimiter], skuColumn, periodColumn, demandColumn, decimalSeparator }
-            await readCsvUpload(source, tagsColumn === undefined ? layout : { ...layout, tagsColumn }, acc)
-          } else {
-            await readNdjsonUpload(source, acc)
-          }
-        } catch (err) {
-          // The rest of the body was not read: close rather than let the server drain it.
-          reply.header('connection', 'close')
-          if (err instanceof UploadFormatError) {
-            throw new ProblemError('validation-failed', err.message, [{ path: err.field, message: err.message }])
-          }
-          throw err
+        if (mode === undefined) {
+          const resolved = defaultMode(acc.kinds)
+          if ('reason' in resolved) throw new ProblemError('validation-failed', resolved.reason, [{ path: 'mode', message: resolved.reason }])
+          mode = resolved.mode
         }
-      } else {
-        const body = JsonUpload.safeParse(request.body)
-        if (!body.success) {
-          const issues = fieldIssues(body.error.issues)
-          const errors = issues.slice(0, MAX_FIELD_ERRORS).map((i) => ({ path: formatFieldPath(i.path, 'body'), message: i.message }))
-          throw new ProblemError('validation-failed', `The request body has ${issues.length} invalid field(s)`, errors)
-        }
-        if (mode !== undefined && body.data.mode !== undefined && mode !== body.data.mode) {
-          throw new ProblemError('validation-failed', 'mode differs between the query string and the body', [
-            { path: 'mode', message: `query says ${mode}, body says ${body.data.mode}` },
+        let openPeriod: number | undefined
+        if (mode === 'replace-open-period') openPeriod = openPeriodOf(q.openPeriod, acc)
+        else if (q.openPeriod !== undefined) {
+          throw new ProblemError('validation-failed', 'openPeriod applies only to mode=replace-open-period', [
+            { path: 'openPeriod', message: `mode is ${mode}` },
           ])
         }
-        mode = body.data.mode ?? mode
-        body.data.series.forEach((value, item) => {
-          const s = parseUploadSeries(value, q.frequency)
-          if ('reason' in s) acc.errors.add({ item, ...s, column: `series[${item}].${s.column}` })
-          else acc.addSeries(s.sku, s.incoming, { item })
+        const feedBatch = q.batch === undefined ? undefined : { id: q.batch, ttlSeconds: app.config.uploadBatchTtlSeconds ?? DEFAULT_BATCH_TTL_SECONDS }
+        const quota = app.config.quotaSkusPerTenant ?? DEFAULT_QUOTA_SKUS_PER_TENANT
+        const report = await commitUpload(acc, withSkuQuota(store, store, quota), request.tenant, mode, {
+          ...(feedBatch === undefined ? {} : { feedBatch }),
+          ...(openPeriod === undefined ? {} : { openPeriod }),
         })
+        const stagedParts = staged?.partsStaged ?? 0
+        request.log.info({ type, mode: report.mode, rows: report.rows, skus: report.skus, stagedParts }, 'history upload')
+        if (q.closeThrough === undefined) return { ...report, errors: [...report.errors] }
+        const erp = requireErp(app)
+        const closing = await closePeriod({ histories: store, closing: erp.closing, accuracy: erp.accuracy }, request.tenant, q.frequency, q.closeThrough)
+        if (closing.outcome === 'behind') {
+          // Another request closed further meanwhile: the upload is stored; say so rather than pretend it closed.
+          throw new ProblemError(
+            'period-closed',
+            `The upload was stored, but ${q.frequency} periods were closed through ${closing.previous} meanwhile; closing only moves forward`,
+            undefined,
+            {},
+            { dependsOnState: true },
+          )
+        }
+        request.log.info({ frequency: q.frequency, closedThrough: closing.closedThrough, advanced: closing.advancedSkus }, 'periods closed by upload')
+        return { ...report, errors: [...report.errors], closing: { ...closing, outcome: closing.outcome } }
+      } finally {
+        // Whatever was staged is written or refused by now.
+        await staged?.discard()
       }
-      if (mode === undefined) {
-        const resolved = defaultMode(acc.kinds)
-        if ('reason' in resolved) throw new ProblemError('validation-failed', resolved.reason, [{ path: 'mode', message: resolved.reason }])
-        mode = resolved.mode
-      }
-      let openPeriod: number | undefined
-      if (mode === 'replace-open-period') openPeriod = openPeriodOf(q.openPeriod, acc)
-      else if (q.openPeriod !== undefined) {
-        throw new ProblemError('validation-failed', 'openPeriod applies only to mode=replace-open-period', [
-          { path: 'openPeriod', message: `mode is ${mode}` },
-        ])
-      }
-      const feedBatch = q.batch === undefined ? undefined : { id: q.batch, ttlSeconds: app.config.uploadBatchTtlSeconds ?? DEFAULT_BATCH_TTL_SECONDS }
-      const quota = app.config.quotaSkusPerTenant ?? DEFAULT_QUOTA_SKUS_PER_TENANT
-      const report = await commitUpload(acc, withSkuQuota(store, store, quota), request.tenant, mode, {
-        ...(feedBatch === undefined ? {} : { feedBatch }),
-        ...(openPeriod === undefined ? {} : { openPeriod }),
-      })
-      request.log.info({ type, mode: report.mode, rows: report.rows, skus: report.skus }, 'history upload')
-      if (q.closeThrough === undefined) return { ...report, errors: [...report.errors] }
-      const erp = requireErp(app)
-      const closing = await closePeriod({ histories: store, closing: erp.closing, accuracy: erp.accuracy }, request.tenant, q.frequency, q.closeThrough)
-      if (closing.outcome === 'behind') {
-        // Another request closed further meanwhile: the upload is stored; say so rather than pretend it closed.
-        throw new ProblemError(
-          'period-closed',
-          `The upload was stored, but ${q.frequency} periods were closed through ${closing.previous} meanwhile; closing only moves forward`,
-          undefined,
-          {},
-          { dependsOnState: true },
-        )
-      }
-      request.log.info({ frequency: q.frequency, closedThrough: closing.closedThrough, advanced: closing.advancedSkus }, 'periods closed by upload')
-      return { ...report, errors: [...report.errors], closing: { ...closing, outcome: closing.outcome } }
     },
   )
 }
@@ -235,7 +246,7 @@ const DEFAULT_BATCH_TTL_SECONDS = 35 * 24 * 3600
  * one period all accepted rows fall in (a month-to-date file holds one).
  * @throws ProblemError (400 naming openPeriod) when it is neither given nor evident
  */
-function openPeriodOf(named: string | undefined, acc: HistoryAccumulator): number {
+function openPeriodOf(named: string | undefined, acc: { readonly frequency: Frequency; readonly span: { readonly lo: number; readonly hi: number } | null }): number {
   if (named !== undefined) {
     const bucket = bucketOf(named, acc.frequency)
     // A date is a day's own label; for coarser frequencies the open period is named by its label.

@@ -1,3 +1,4 @@
+import { randomUUID } from 'node:crypto'
 import { z } from 'zod'
 import type { RedisClient } from '../redis.js'
 import { countOf, decodeJson } from '../decode.js'
@@ -5,6 +6,8 @@ import { FREQUENCIES, formatPeriod, parsePeriod, type Frequency } from '../../en
 import type { PendingHistory } from '../../history/accumulator.js'
 import type { FeedBatch, HistoryWriter, WriteOutcome } from '../../history/ingest.js'
 import type { HistoryData } from '../../history/types.js'
+import type { UploadStaging } from '../../history/staged-upload.js'
+import { RedisUploadStaging } from './upload-staging.js'
 import { decodeCursor, encodeCursor } from '../paging.js'
 import { exceptionsKey, isValidTenant } from '../keys.js'
 import { findSkus, type SkuFilter } from '../skus/sku-list.js'
@@ -24,6 +27,7 @@ import { StockPolicy, type RunScope } from '../../schemas/run.js'
  *   hist:{T}:batch:<id> set  SKUs a feed batch has written (expires: a resent batch is not added twice)
  *   hist:{T}:bytes     string  bytes of the data and meta fields held (the stored-bytes quota)
  *   hist:{T}:tags      hash  tag -> SKUs carrying it (a tag leaves when its last SKU does)
+ *   hist:{T}:stage:<upload>:<part> list  a large upload's rows while it arrives (upload-staging.ts; expires)
  *
  * under `${prefix}:t:${tenant}:`. The tenant sits in a hash tag so one
  * SKU's write (a Lua script over data, meta, the index and tag sets) stays on
@@ -194,6 +198,11 @@ export class HistoryStore implements HistoryWriter {
       tag: (t: string) => `${base}:tag:${t}`,
       batch: (id: string) => `${base}:batch:${id}`,
     }
+  }
+
+  /** A staging area for one streamed upload of the tenant (its rows wait there until the body is read). */
+  uploadStaging(tenant: string): UploadStaging {
+    return new RedisUploadStaging(this.redis, this.base(tenant), randomUUID())
   }
 
   async get(tenant: string, sku: string): Promise<StoredHistory | null> {

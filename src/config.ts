@@ -106,6 +106,12 @@ export const ConfigSchema = z.object({
   WORKLIST_CHANGE_PERCENT: intFromEnv(25, 1, 1000),
   /** How long a feed batch id of a history upload is remembered, so a resent batch is not added twice. */
   UPLOAD_BATCH_TTL_SECONDS: intFromEnv(35 * 24 * 3600, 60, 366 * 24 * 3600),
+  // Idle-history retention (issue 14, finding 9; src/retention/).
+  /**
+   * Days after its last write (PUT, upload, a closing carrying it forward) a SKU's history and
+   * records are removed; 0: kept forever. Off by default: histories are an ERP's master data.
+   */
+  HISTORY_IDLE_DAYS: intFromEnv(0, 0, 36_500),
 })
 
 /** One seed node of a Redis Cluster. */
@@ -196,6 +202,9 @@ export interface Config {
   readonly worklistChangePercent?: number
   /** How long a history upload's feed batch id is remembered (default 35 days). */
   readonly uploadBatchTtlSeconds?: number
+  // Idle-history retention (src/retention/).
+  /** Days without a write after which a SKU is removed; 0 or absent: kept forever. */
+  readonly historyIdleDays?: number
 }
 
 export class ConfigError extends Error {
@@ -323,6 +332,7 @@ export function loadConfig(
     publishedForecastsKept: e.PUBLISHED_FORECASTS_KEPT,
     worklistChangePercent: e.WORKLIST_CHANGE_PERCENT,
     uploadBatchTtlSeconds: e.UPLOAD_BATCH_TTL_SECONDS,
+    historyIdleDays: e.HISTORY_IDLE_DAYS,
   }
 }
 

@@ -19,7 +19,7 @@ export const MS_PER_DAY = 86_400_000
 /** SKUs per tenant per step: one round trip of candidates, as uploads write 500 SKUs per round trip. */
 export const RETENTION_BATCH = 500
 
-/** Records of this many SKUs are forgotten at once (each forget is a few small commands). */
+/** SKUs deleted, and records forgotten, this many at once: each is a few small commands, so round trips dominate. */
 const PARALLEL = 16
 
 export interface RetentionDeps {
@@ -69,11 +69,14 @@ export async function sweepTenantStep(deps: RetentionDeps, tenant: string, opts:
   const gone: string[] = []
   let removed = 0
   let kept = 0
-  for (const sku of idle) {
-    const outcome = await deps.histories.deleteIfIdle(tenant, sku, cutoff)
-    if (outcome === 'written') kept++
-    else gone.push(sku)
-    if (outcome === 'deleted') removed++
+  for (let i = 0; i < idle.length; i += PARALLEL) {
+    const part = idle.slice(i, i + PARALLEL)
+    const outcomes = await Promise.all(part.map((sku) => deps.histories.deleteIfIdle(tenant, sku, cutoff)))
+    outcomes.forEach((outcome, j) => {
+      if (outcome === 'written') kept++
+      else gone.push(part[j]!)
+      if (outcome === 'deleted') removed++
+    })
   }
   await forgetAll(deps, tenant, gone)
   return { removed, kept, more: left.length >= size || backfilling || idle.length >= size }

@@ -111,6 +111,12 @@ export const ConfigSchema = z.object({
   WORKLIST_CHANGE_PERCENT: intFromEnv(25, 1, 1000),
   /** How long a feed batch id of a history upload is remembered, so a resent batch is not added twice. */
   UPLOAD_BATCH_TTL_SECONDS: intFromEnv(35 * 24 * 3600, 60, 366 * 24 * 3600),
+  // Idle-history retention (issue 14, finding 9; src/retention/).
+  /**
+   * Days after its last write (PUT, upload, a closing carrying it forward) a SKU's history and
+   * records are removed; 0: kept forever. Off by default: histories are an ERP's master data.
+   */
+  HISTORY_IDLE_DAYS: intFromEnv(0, 0, 36_500),
 })
 
 /** One seed node of a Redis Cluster. */
@@ -203,6 +209,9 @@ export interface Config {
   readonly uploadBatchTtlSeconds?: number
   /** Bytes of a streamed upload's rows held in memory before staging in Redis; default DEFAULT_UPLOAD_SPILL_BYTES. */
   readonly uploadSpillBytes?: number
+  // Idle-history retention (src/retention/).
+  /** Days without a write after which a SKU is removed; 0 or absent: kept forever. */
+  readonly historyIdleDays?: number
 }
 
 export class ConfigError extends Error {
@@ -331,6 +340,7 @@ export function loadConfig(
     worklistChangePercent: e.WORKLIST_CHANGE_PERCENT,
     uploadBatchTtlSeconds: e.UPLOAD_BATCH_TTL_SECONDS,
     uploadSpillBytes: e.UPLOAD_SPILL_BYTES,
+    historyIdleDays: e.HISTORY_IDLE_DAYS,
   }
 }
 

@@ -5,6 +5,7 @@ import { startCallbackWorker } from './callbacks/worker.js'
 import { createLogger, type Logger } from './logger.js'
 import { createRunGateway } from './queue/gateway.js'
 import { startChunkWorker } from './queue/worker.js'
+import { startRetentionWorker } from './retention/worker.js'
 import { submitViaGateway } from './schedules/submit.js'
 import { startScheduleWorker } from './schedules/worker.js'
 import { closeSteps } from './shutdown.js'
@@ -19,9 +20,10 @@ export interface ProcessWorkers {
 
 /**
  * The one place that decides which workers a process runs: the chunk worker
- * (fitting, on worker threads), the callback worker (deliveries) and the
+ * (fitting, on worker threads), the callback worker (deliveries), the
  * schedule worker (firings, which submit runs through a gateway of their
- * own). `npm run worker` runs them; `npm start` too, beside the API, unless
+ * own) and the idle-history retention sweep (off unless HISTORY_IDLE_DAYS).
+ * `npm run worker` runs them; `npm start` too, beside the API, unless
  * RUN_WORKER=false.
  */
 export function startProcessWorkers(config: Config, logger: Logger): ProcessWorkers {
@@ -32,6 +34,7 @@ export function startProcessWorkers(config: Config, logger: Logger): ProcessWork
     submit: submitViaGateway(scheduleGateway),
     getRun: (tenant, runId) => scheduleGateway.get(tenant, runId),
   })
+  const retention = startRetentionWorker(config, logger)
   return {
     concurrency: chunks.concurrency,
     close: () =>
@@ -40,6 +43,7 @@ export function startProcessWorkers(config: Config, logger: Logger): ProcessWork
         ['schedule worker', () => schedules.close()],
         ['schedule run gateway', () => scheduleGateway.close()],
         ['callback worker', () => callbacks.close()],
+        ['retention worker', () => retention.close()],
       ]),
   }
 }

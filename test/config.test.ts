@@ -127,4 +127,15 @@ describe('loadConfig', () => {
     expect(load({ REDIS_CLUSTER_NODES: 'redis-a:7000', REDIS_URL: 'redis://redis-a:7000/0' }).redisClusterNodes).toHaveLength(1)
     expect(load({ REDIS_URL: 'redis://127.0.0.1:6379/2' }).redisUrl).toBe('redis://127.0.0.1:6379/2')
   })
+
+  it('HISTORY_IDLE_DAYS: off (0) by default, whole days up to 100 years, anything else refused by name', () => {
+    expect(load({}).historyIdleDays).toBe(0)
+    expect(load({ HISTORY_IDLE_DAYS: '400' }).historyIdleDays).toBe(400)
+    expect(load({ HISTORY_IDLE_DAYS: '36500' }).historyIdleDays).toBe(36_500)
+    for (const bad of ['-1', 'ten', '1.5', '36501']) {
+      const problems = problemsOf(() => load({ HISTORY_IDLE_DAYS: bad }))
+      expect(problems).toHaveLength(1)
+      expect(problems[0]).toMatch(/^HISTORY_IDLE_DAYS: /)
+    }
+  })
 })

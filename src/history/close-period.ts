@@ -2,6 +2,7 @@ import type { WriteOutcome } from './ingest.js'
 import { formatPeriod, parsePeriod, type Frequency } from '../engine/index.js'
 import type { PendingHistory } from './accumulator.js'
 import type { HistoryData } from './types.js'
+import { MAX_POINTS_PER_SERIES } from '../schemas/run.js'
 
 /**
  * Closing a period: every stored history of the frequency that ends before it
@@ -18,6 +19,9 @@ export function extendWithZeros(current: HistoryData | null, frequency: Frequenc
   if (current.frequency !== frequency) return { reason: `the history is by ${current.frequency}` }
   const last = parsePeriod(current.firstPeriod, frequency) + current.demand.length - 1
   if (last >= throughOrdinal) return { reason: `the history already reaches ${formatPeriod(throughOrdinal, frequency)}` }
+  // The bound of every history write (merge.ts): without it, closings would grow a history, and its accuracy records, for ever.
+  const length = current.demand.length + throughOrdinal - last
+  if (length > MAX_POINTS_PER_SERIES) return { reason: `the history would hold ${length} periods; at most ${MAX_POINTS_PER_SERIES}` }
   return { data: { ...current, demand: [...current.demand, ...new Array<number>(throughOrdinal - last).fill(0)] } }
 }
 
@@ -44,6 +48,7 @@ export interface ClosingDeps {
       tenant: string,
       batch: readonly PendingHistory[],
       merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
+      opts: { readonly carriedForward: true },
     ): Promise<readonly WriteOutcome[]>
   }
   readonly closing: {
@@ -96,6 +101,8 @@ export async function closePeriod(deps: ClosingDeps, tenant: string, frequency: 
             if ('data' in merged) extended.set(pending.sku, merged.data)
             return merged
           },
+          // Zeros for a closed period are not news from the ERP: a SKU with nothing but closings stays idle.
+          { carriedForward: true },
         )
         advancedSkus += results.filter((r) => 'outcome' in r).length
       }

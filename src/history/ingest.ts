@@ -25,8 +25,12 @@ export interface HistoryWriter {
     tenant: string,
     batch: readonly PendingHistory[],
     merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
-    /** readValues false: `current.values` may be empty (the merge replaces them). */
-    opts?: { readonly readValues?: boolean; readonly feedBatch?: FeedBatch },
+    /**
+     * readValues false: `current.values` may be empty (the merge replaces them).
+     * carriedForward: the write only carries the history forward (a closing's zeros),
+     * so it leaves the SKU's last-write time, which idle-history retention reads, as it was.
+     */
+    opts?: { readonly readValues?: boolean; readonly feedBatch?: FeedBatch; readonly carriedForward?: boolean },
   ): Promise<readonly WriteOutcome[]>
   /** Every stored history of the tenant, a page at a time (replace-open-period visits the SKUs left out). */
   select(tenant: string, scope: { readonly all: true }, batchSize: number): AsyncIterable<readonly (HistoryData & { readonly sku: string })[]>

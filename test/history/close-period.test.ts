@@ -20,4 +20,11 @@ describe('closing a period: carrying histories forward', () => {
     expect(extendWithZeros({ ...history, frequency: 'week', firstPeriod: '2025-W40' }, 'month', march)).toEqual({ reason: 'the history is by week' })
     expect(extendWithZeros(null, 'month', march)).toEqual({ reason: 'the history was deleted meanwhile' })
   })
+
+  it('never carries a history past the 10,000 periods a history may hold (docs/limits.md)', () => {
+    const long = { ...history, firstPeriod: '1200-01', demand: Array.from({ length: 9_998 }, () => 1) }
+    const last = parsePeriod('1200-01', 'month') + 9_997
+    expect(extendWithZeros(long, 'month', last + 2)).toHaveProperty('data.demand.length', 10_000)
+    expect(extendWithZeros(long, 'month', last + 3)).toEqual({ reason: 'the history would hold 10001 periods; at most 10000' })
+  })
 })

@@ -2,6 +2,7 @@ import { z } from 'zod'
 import type { RedisClient } from '../redis.js'
 import { countOf, decodeJson, finiteOf } from '../decode.js'
 import { isValidTenant } from '../keys.js'
+import { MAX_POINTS_PER_SERIES } from '../../schemas/run.js'
 import type { ValueAddedRecord } from '../../runs/value-added.js'
 
 /**
@@ -14,12 +15,27 @@ import type { ValueAddedRecord } from '../../runs/value-added.js'
  * forecasts in force when its actual first arrived; a corrected actual
  * replaces only the actual (as the accuracy records do), so an adjustment
  * made later can never rewrite how an earlier one was judged.
+ *
+ * Unlike the accuracy records these do not follow the stored history, so
+ * they would gain one period with every period closed, for ever: a SKU keeps
+ * its newest VALUE_ADDED_PERIODS_KEPT periods and the oldest go.
  */
 
-/** KEYS: records. ARGV: triples (period, actual, forecasts JSON). Returns {added, corrected}. */
+/**
+ * Periods of value added kept per SKU: as many as a stored history can hold
+ * (MAX_POINTS_PER_SERIES), so value added never reaches further back than a
+ * history could, and a monthly SKU never loses one in practice.
+ */
+export const VALUE_ADDED_PERIODS_KEPT = MAX_POINTS_PER_SERIES
+
+/**
+ * KEYS: records. ARGV: periods kept, then triples (period, actual, forecasts JSON).
+ * Returns {added, corrected}. Past the periods kept, the oldest periods (labels of
+ * one frequency sort as text) are deleted in the same step.
+ */
 const RECORD = `
 local added, corrected = 0, 0
-for i = 1, #ARGV, 3 do
+for i = 2, #ARGV, 3 do
   local cur = redis.call('HGET', KEYS[1], ARGV[i])
   if not cur then
     redis.call('HSET', KEYS[1], ARGV[i], ARGV[i + 1] .. '|' .. ARGV[i + 2])
@@ -31,6 +47,12 @@ for i = 1, #ARGV, 3 do
       corrected = corrected + 1
     end
   end
+end
+local excess = redis.call('HLEN', KEYS[1]) - tonumber(ARGV[1])
+if excess > 0 then
+  local periods = redis.call('HKEYS', KEYS[1])
+  table.sort(periods)
+  for i = 1, excess do redis.call('HDEL', KEYS[1], periods[i]) end
 end
 return {added, corrected}
 `
@@ -47,7 +69,11 @@ const Forecasts = z.object({
 export class ValueAddedStore {
   constructor(
     private readonly redis: RedisClient,
-    private readonly opts: { readonly prefix: string },
+    private readonly opts: {
+      readonly prefix: string
+      /** Periods kept per SKU (the newest); VALUE_ADDED_PERIODS_KEPT when absent. */
+      readonly periodsKept?: number
+    },
   ) {
     if (!(COMMAND in redis)) redis.defineCommand(COMMAND, { numberOfKeys: 1, lua: RECORD })
   }
@@ -66,7 +92,7 @@ export class ValueAddedStore {
   /** Records periods of one SKU (idempotent per period; a changed actual is a correction). */
   async record(tenant: string, sku: string, records: readonly ValueAddedRecord[]): Promise<{ added: number; corrected: number }> {
     if (records.length === 0) return { added: 0, corrected: 0 }
-    const args: string[] = []
+    const args: string[] = [String(Math.max(1, Math.floor(this.opts.periodsKept ?? VALUE_ADDED_PERIODS_KEPT)))]
     for (const r of records) {
       const { runId, statisticalDemand, finalDemand, naiveDemand, author } = r
       args.push(r.period, String(r.actualDemand), JSON.stringify({ runId, statisticalDemand, finalDemand, naiveDemand, author }))

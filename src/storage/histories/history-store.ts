@@ -28,12 +28,51 @@ import { StockPolicy, type RunScope } from '../../schemas/run.js'
  *   hist:{T}:bytes     string  bytes of the data and meta fields held (the stored-bytes quota)
  *   hist:{T}:tags      hash  tag -> SKUs carrying it (a tag leaves when its last SKU does)
  *   hist:{T}:stage:<upload>:<part> list  a large upload's rows while it arrives (upload-staging.ts; expires)
+ *   hist:{T}:written   zset  sku -> when its history was last written, in ms (PUT and uploads; a
+ *                            closing's carry-forward leaves it); idle-history retention reads it
+ *   hist:{T}:written-backfill string  the last SKU given a `written` entry by the backfill of
+ *                            histories stored before that index existed; 'done' once complete
+ *   hist:{T}:removed   set   SKUs whose history retention deleted but whose records (latest
+ *                            forecast, accuracy, adjustments) are not forgotten yet
  *
  * under `${prefix}:t:${tenant}:`. The tenant sits in a hash tag so one
  * SKU's write (a Lua script over data, meta, the index and tag sets) stays on
  * one slot of a cluster. A write is atomic per SKU and checks the revision it
  * read (optimistic concurrency), so concurrent uploads never lose a write.
  */
+
+/** The Redis keys of one tenant's histories (layout above). */
+export interface HistoryKeys {
+  readonly data: string
+  readonly meta: string
+  readonly skus: string
+  readonly bytes: string
+  readonly tagCounts: string
+  readonly written: string
+  readonly writtenBackfill: string
+  readonly removed: string
+  tag(tag: string): string
+  batch(id: string): string
+  stage(upload: string, part: number): string
+}
+
+export function historyKeys(prefix: string, tenant: string): HistoryKeys {
+  if (!isValidTenant(tenant)) throw new Error(`invalid tenant for a Redis key: ${JSON.stringify(tenant)}`)
+  const base = `${prefix}:t:${tenant}:hist:{${tenant}}`
+  return {
+    data: `${base}:data`,
+    meta: `${base}:meta`,
+    skus: `${base}:skus`,
+    bytes: `${base}:bytes`,
+    tagCounts: `${base}:tags`,
+    written: `${base}:written`,
+    writtenBackfill: `${base}:written-backfill`,
+    removed: `${base}:removed`,
+    tag: (t: string) => `${base}:tag:${t}`,
+    batch: (id: string) => `${base}:batch:${id}`,
+    stage: (upload: string, part: number) => `${base}:stage:${upload}:${part}`,
+  }
+}
 
 export interface StoredHistory extends HistoryData {
   readonly sku: string
@@ -92,14 +131,16 @@ function decodeDemand(sku: string, raw: string): (number | null)[] {
 }
 
 /**
- * KEYS: data, meta, skus, bytes, tag counts, then nNew new-tag sets, then nOld old-tag sets, then the batch set when a batch is given.
+ * KEYS: data, meta, skus, bytes, tag counts, then nNew new-tag sets, then nOld old-tag sets, then the batch set when a batch is given,
+ * then the last-write index (always last).
  * ARGV: sku, expected meta ('' when absent), new meta, demand JSON, nNew, nOld, batch TTL in seconds ('' without a batch),
- * stored-bytes quota (0: none), then the nNew new tags, then the nOld old tags (names of the sets, for the counts).
+ * stored-bytes quota (0: none), then the nNew new tags, then the nOld old tags (names of the sets, for the counts),
+ * then the write time in ms (always last; '' for a carry-forward, which leaves the last-write time as it was).
  * Returns 1 when written, 0 when the meta changed since it was read, 2 when the batch already wrote this SKU,
  * 3 when the write would grow the tenant's stored bytes past the quota (nothing written; a write that
  * shrinks or keeps the size always passes, so a tenant over its quota can still correct and trim).
  * The batch check and mark sit in the same script as the write, so a batch resent after a partial failure
- * adds exactly the SKUs it had not written yet; the byte count changes in the same step as the fields.
+ * adds exactly the SKUs it had not written yet; the byte count and the last-write time change in the same step as the fields.
  */
 const PUT_HISTORY = `
 local nNew = tonumber(ARGV[5])
@@ -118,6 +159,7 @@ redis.call('INCRBY', KEYS[4], delta)
 redis.call('HSET', KEYS[1], ARGV[1], ARGV[4])
 redis.call('HSET', KEYS[2], ARGV[1], ARGV[3])
 redis.call('ZADD', KEYS[3], 0, ARGV[1])
+if ARGV[#ARGV] ~= '' then redis.call('ZADD', KEYS[#KEYS], tonumber(ARGV[#ARGV]), ARGV[1]) end
 for i = 1, nOld do
   if redis.call('ZREM', KEYS[5 + nNew + i], ARGV[1]) == 1 and redis.call('HINCRBY', KEYS[5], ARGV[8 + nNew + i], -1) <= 0 then
     redis.call('HDEL', KEYS[5], ARGV[8 + nNew + i])
@@ -135,18 +177,28 @@ return 1
 const PUT_COMMAND = 'almanacPutHistory'
 
 /**
- * KEYS: data, meta, skus, bytes, tag counts, then the SKU's tag sets. ARGV: sku, expected meta, then the SKU's tags.
- * Returns 1 when deleted, 0 when the meta changed since it was read.
+ * KEYS: data, meta, skus, bytes, tag counts, last-write index, removed set, then the SKU's tag sets.
+ * ARGV: sku, expected meta, idle cutoff in ms ('' for a delete on request), then the SKU's tags.
+ * Returns 1 when deleted, 0 when the meta changed since it was read, 2 when a cutoff is given and the SKU
+ * was written after it or has no last-write time (retention never deletes on missing data). A retention
+ * delete also lists the SKU in the removed set in the same step, so its records are forgotten even if
+ * the process stops right after.
  */
 const DELETE_HISTORY = `
 if (redis.call('HGET', KEYS[2], ARGV[1]) or '') ~= ARGV[2] then return 0 end
+if ARGV[3] ~= '' then
+  local written = redis.call('ZSCORE', KEYS[6], ARGV[1])
+  if not written or tonumber(written) > tonumber(ARGV[3]) then return 2 end
+  redis.call('SADD', KEYS[7], ARGV[1])
+end
 redis.call('DECRBY', KEYS[4], redis.call('HSTRLEN', KEYS[1], ARGV[1]) + #ARGV[2])
 redis.call('HDEL', KEYS[1], ARGV[1])
 redis.call('HDEL', KEYS[2], ARGV[1])
 redis.call('ZREM', KEYS[3], ARGV[1])
-for i = 6, #KEYS do
-  if redis.call('ZREM', KEYS[i], ARGV[1]) == 1 and redis.call('HINCRBY', KEYS[5], ARGV[i - 3], -1) <= 0 then
-    redis.call('HDEL', KEYS[5], ARGV[i - 3])
+redis.call('ZREM', KEYS[6], ARGV[1])
+for i = 8, #KEYS do
+  if redis.call('ZREM', KEYS[i], ARGV[1]) == 1 and redis.call('HINCRBY', KEYS[5], ARGV[i - 4], -1) <= 0 then
+    redis.call('HDEL', KEYS[5], ARGV[i - 4])
   end
 end
 return 1
@@ -182,27 +234,15 @@ export class HistoryStore implements HistoryWriter {
     if (!(DELETE_COMMAND in redis)) redis.defineCommand(DELETE_COMMAND, { lua: DELETE_HISTORY })
   }
 
-  private base(tenant: string): string {
-    if (!isValidTenant(tenant)) throw new Error(`invalid tenant for a Redis key: ${JSON.stringify(tenant)}`)
-    return `${this.opts.prefix}:t:${tenant}:hist:{${tenant}}`
-  }
-
-  private keys(tenant: string) {
-    const base = this.base(tenant)
-    return {
-      data: `${base}:data`,
-      meta: `${base}:meta`,
-      skus: `${base}:skus`,
-      bytes: `${base}:bytes`,
-      tagCounts: `${base}:tags`,
-      tag: (t: string) => `${base}:tag:${t}`,
-      batch: (id: string) => `${base}:batch:${id}`,
-    }
+  private keys(tenant: string): HistoryKeys {
+    return historyKeys(this.opts.prefix, tenant)
   }
 
   /** A staging area for one streamed upload of the tenant (its rows wait there until the body is read). */
   uploadStaging(tenant: string): UploadStaging {
-    return new RedisUploadStaging(this.redis, this.base(tenant), randomUUID())
+    const upload = randomUUID()
+    const stage = this.keys(tenant).stage
+    return new RedisUploadStaging(this.redis, (part) => stage(upload, part))
   }
 
   async get(tenant: string, sku: string): Promise<StoredHistory | null> {
@@ -266,14 +306,33 @@ export class HistoryStore implements HistoryWriter {
    * @returns false when the SKU had no history
    */
   async delete(tenant: string, sku: string): Promise<boolean> {
+    return (await this.deleteWhen(tenant, sku, '')) === 'deleted'
+  }
+
+  /**
+   * Retention: delete one SKU's history as delete() does, but only if its last write
+   * (the `written` index) is at or before `cutoffMs`, checked in the same script as the
+   * delete, so a write that lands between the sweep's read and this call wins. The SKU
+   * joins the removed set in that step (retention/sweep.ts then forgets its records).
+   * @returns 'deleted'; 'written' when it was written after the cutoff or has no last-write
+   * time; 'gone' when it had no history
+   */
+  async deleteIfIdle(tenant: string, sku: string, cutoffMs: number): Promise<'deleted' | 'written' | 'gone'> {
+    return this.deleteWhen(tenant, sku, String(Math.floor(cutoffMs)))
+  }
+
+  private async deleteWhen(tenant: string, sku: string, cutoff: string): Promise<'deleted' | 'written' | 'gone'> {
     const k = this.keys(tenant)
     for (let attempt = 0; attempt < MAX_ATTEMPTS; attempt++) {
       const raw = await this.redis.hget(k.meta, sku)
-      if (raw === null) return false
-      const tags = decodeMeta(sku, raw).t
-      const keys = [k.data, k.meta, k.skus, k.bytes, k.tagCounts, ...tags.map(k.tag)]
+      if (raw === null && cutoff === '') return 'gone'
+      const tags = raw === null ? [] : decodeMeta(sku, raw).t
+      const keys = [k.data, k.meta, k.skus, k.bytes, k.tagCounts, k.written, k.removed, ...tags.map(k.tag)]
       const run = (this.redis as unknown as Record<string, (...a: unknown[]) => Promise<unknown>>)[DELETE_COMMAND]!
-      if ((await run.call(this.redis, keys.length, ...keys, sku, raw, ...tags)) === 1) return true
+      const outcome = await run.call(this.redis, keys.length, ...keys, sku, raw ?? '', cutoff, ...tags)
+      // Without a history the script only drops a last-write time left without one (and lists the SKU so any stray records go too).
+      if (outcome === 1) return raw === null ? 'gone' : 'deleted'
+      if (outcome === 2) return 'written'
     }
     throw new Error(`the history of SKU ${sku} changed concurrently several times; retry the delete`)
   }
@@ -291,7 +350,7 @@ export class HistoryStore implements HistoryWriter {
     tenant: string,
     batch: readonly PendingHistory[],
     merge: (current: HistoryData | null, pending: PendingHistory) => { data: HistoryData } | { reason: string },
-    opts: { readonly readValues?: boolean; readonly feedBatch?: FeedBatch } = {},
+    opts: { readonly readValues?: boolean; readonly feedBatch?: FeedBatch; readonly carriedForward?: boolean } = {},
   ): Promise<WriteOutcome[]> {
     const k = this.keys(tenant)
     const feed = opts.feedBatch
@@ -311,7 +370,8 @@ export class HistoryStore implements HistoryWriter {
       ])
       const pipe = this.redis.pipeline()
       const sent: number[] = []
-      const updatedAt = (this.opts.now?.() ?? new Date()).toISOString()
+      const writtenAt = this.opts.now?.() ?? new Date()
+      const updatedAt = writtenAt.toISOString()
       todo.forEach((i, j) => {
         const p = batch[i]!
         const rawMeta = metas[j] ?? null
@@ -333,8 +393,11 @@ export class HistoryStore implements HistoryWriter {
           ...(d.replenishment === undefined ? {} : { p: d.replenishment }),
         }
         const oldTags = oldMeta?.t ?? []
-        const keys = [k.data, k.meta, k.skus, k.bytes, k.tagCounts, ...d.tags.map(k.tag), ...oldTags.map(k.tag), ...batchKeys]
-        const args = [p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length, batchTtl, quota, ...d.tags, ...oldTags]
+        const keys = [k.data, k.meta, k.skus, k.bytes, k.tagCounts, ...d.tags.map(k.tag), ...oldTags.map(k.tag), ...batchKeys, k.written]
+        const args = [
+          p.sku, rawMeta ?? '', JSON.stringify(meta), JSON.stringify(d.demand), d.tags.length, oldTags.length, batchTtl, quota,
+          ...d.tags, ...oldTags, opts.carriedForward === true ? '' : writtenAt.getTime(),
+        ]
         ;(pipe as unknown as Record<string, (...a: unknown[]) => unknown>)[PUT_COMMAND]!(keys.length, ...keys, ...args)
         results[i] = { outcome: rawMeta === null ? 'created' : 'updated' }
         sent.push(i)

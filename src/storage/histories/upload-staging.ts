@@ -8,21 +8,16 @@ import type { RedisClient } from '../redis.js'
 export const STAGING_TTL_SECONDS = 3600
 
 /**
- * An upload's staging area in Redis: one list per part, `${base}:stage:${uploadId}:${part}`
+ * An upload's staging area in Redis: one list per part, `hist:{T}:stage:<upload>:<part>`
  * under the tenant's history keys (one hash tag, so a pipeline over the parts stays on
  * one slot of a cluster). Each list holds the part's text chunks in append order.
  */
 export class RedisUploadStaging implements UploadStaging {
   constructor(
     private readonly redis: RedisClient,
-    /** The tenant's history key base, e.g. `almanac:t:acme:hist:{acme}`. */
-    private readonly base: string,
-    private readonly uploadId: string,
+    /** The key of one part of this upload. */
+    private readonly key: (part: number) => string,
   ) {}
-
-  private key(part: number): string {
-    return `${this.base}:stage:${this.uploadId}:${part}`
-  }
 
   async append(chunks: ReadonlyMap<number, string>): Promise<void> {
     const pipeline = this.redis.pipeline()

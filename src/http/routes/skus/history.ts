@@ -1,3 +1,4 @@
+import type { FastifyInstance } from 'fastify'
 import type { FastifyPluginAsyncZod } from 'fastify-type-provider-zod'
 import { z } from 'zod'
 import { formatPeriod, parsePeriod } from '../../../engine/index.js'
@@ -7,11 +8,22 @@ import { lastPeriodOf } from '../../../history/period-range.js'
 import { skuQuotaReason } from '../../../history/quota.js'
 import { DEFAULT_QUOTA_SKUS_PER_TENANT } from '../../../config.js'
 import { normaliseTags } from '../../../history/tags.js'
+import { forgetSkuRecords, type SkuRecordStores } from '../../../history/sku-records.js'
 import { HistoryBody, HistoryResource } from '../../../schemas/history.js'
 import { SkuParams } from '../../../schemas/params.js'
 import { StoredBytesQuotaError, type StoredHistory } from '../../../storage/histories/history-store.js'
 import { requireHistories } from '../../plugins/history.js'
 import { READ_ONE, WRITE, WRITE_ONE } from '../responses.js'
+
+/** The stores of the app that keep records per SKU (history/sku-records.ts). */
+function skuRecordStores(app: FastifyInstance): SkuRecordStores {
+  const { gateway, erp, adjustments } = app
+  return {
+    ...(gateway.forgetLatestForecast === undefined ? {} : { forgetLatestForecast: (t, s) => gateway.forgetLatestForecast!(t, s) }),
+    ...(erp == null ? {} : { forgetAccuracy: (t, s) => erp.accuracy.forget(t, s) }),
+    ...(adjustments == null ? {} : { forgetAdjustments: (t, s) => adjustments.forget(t, s) }),
+  }
+}
 
 /** A stored history as clients see it. */
 export function toHistoryResource(h: StoredHistory) {
@@ -112,11 +124,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
       const notFound = () => new ProblemError('not-found', `No stored history for SKU ${sku}`)
       if ((await store.missing(request.tenant, [sku])).length > 0) throw notFound()
       // Records first, the history last: if a step fails, a retry still finds the SKU and finishes the job.
-      await Promise.all([
-        app.gateway.forgetLatestForecast?.(request.tenant, sku),
-        app.erp?.accuracy.forget(request.tenant, sku),
-        app.adjustments?.forget(request.tenant, sku),
-      ])
+      await forgetSkuRecords(skuRecordStores(app), request.tenant, sku)
       if (!(await store.delete(request.tenant, sku))) throw notFound()
       request.log.info({ sku }, 'history deleted')
       reply.code(204)

@@ -57,6 +57,9 @@ export const STAGED_PARTS = 64
 const BYTES_PER_SKU = 250
 const BYTES_PER_CELL = 40
 
+/** SKUs encoded between two turns of the event loop while a stretch is staged. */
+const SPLIT_SLICE = 2000
+
 /**
  * An upload read as a stream whose memory does not grow with its size. Rows
  * are gathered (summed per SKU and period) in a HistoryAccumulator as before;
@@ -80,8 +83,10 @@ const BYTES_PER_CELL = 40
 export class StagedUpload implements UploadSink, GatheredUpload {
   readonly errors = new ErrorCollector()
   private current: HistoryAccumulator
-  /** Parts with chunks in the staging area. */
+  /** Parts with chunks in the staging area (or on their way there). */
   private readonly spilled = new Set<number>()
+  /** True from the first spill on (the staging itself may still be under way). */
+  private spills = false
   private staged = 0
   private appending: Promise<void> = Promise.resolve()
   /** Kinds and span of the stretches already spilled. */
@@ -119,13 +124,13 @@ export class StagedUpload implements UploadSink, GatheredUpload {
   }
 
   addRow(sku: string, ordinal: number, demand: number, origin: Origin, dated = false, tags?: readonly string[]): void {
-    if (this.spilled.size > 0 && this.current.holds(sku) === 'series') this.spill()
+    if (this.spills && this.current.holds(sku) === 'series') this.spill()
     this.current.addRow(sku, ordinal, demand, origin, dated, tags)
     if (this.heldBytes() >= this.limits.spillBytes) this.spill()
   }
 
   addSeries(sku: string, incoming: IncomingHistory, origin: Origin): void {
-    if (this.spilled.size > 0 && this.current.holds(sku) !== null) this.spill()
+    if (this.spills && this.current.holds(sku) !== null) this.spill()
     this.current.addSeries(sku, incoming, origin)
     if (this.heldBytes() >= this.limits.spillBytes) this.spill()
   }
@@ -141,12 +146,12 @@ export class StagedUpload implements UploadSink, GatheredUpload {
 
   async *parts(): AsyncIterable<HistoryAccumulator> {
     await this.settle()
-    if (this.spilled.size === 0) {
+    if (!this.spills) {
       yield this.current
       return
     }
     // The last stretch stays in memory, split like the others.
-    const last = this.split(this.current)
+    const last = await this.split(this.current)
     for (let part = 0; part < this.limits.parts; part++) {
       const acc = this.accumulator()
       const chunks = this.spilled.has(part) ? await this.staging.read(part) : []
@@ -174,38 +179,54 @@ export class StagedUpload implements UploadSink, GatheredUpload {
     return this.current.size * BYTES_PER_SKU + this.current.heldCells * BYTES_PER_CELL
   }
 
-  /** What `acc` holds as text lines per part; empties it. */
-  private split(acc: HistoryAccumulator): Map<number, string[]> {
+  /**
+   * What `acc` holds as text lines per part; empties it. Gives the event loop a
+   * turn every SPLIT_SLICE SKUs, so a stretch of tens of thousands of SKUs does
+   * not hold up other requests while it is encoded.
+   */
+  private async split(acc: HistoryAccumulator): Promise<Map<number, string[]>> {
     const lines = new Map<number, string[]>()
+    let n = 0
     for (const item of acc.handOver()) {
       const part = partOf(item.sku, this.limits.parts)
       const line = 'series' in item ? `s\t${JSON.stringify([item.sku, item.series, item.origin])}` : `g\t${JSON.stringify([item.sku, item.group])}`
       const list = lines.get(part)
       if (list) list.push(line)
       else lines.set(part, [line])
+      if (++n % SPLIT_SLICE === 0) await new Promise<void>((resolve) => setImmediate(resolve))
     }
     return lines
   }
 
+  /**
+   * Start afresh and stage what was gathered. The staging runs behind the
+   * readers, who wait for it in settle() before they take more rows.
+   */
   private spill(): void {
-    const kinds = this.current.kinds
+    const full = this.current
+    const kinds = full.kinds
     this.spilledKinds = { dated: this.spilledKinds.dated + kinds.dated, period: this.spilledKinds.period + kinds.period }
-    const span = this.current.span
+    const span = full.span
     if (span !== null) {
       this.lo = Math.min(this.lo, span.lo)
       this.hi = Math.max(this.hi, span.hi)
     }
+    this.spills = true
+    // A fresh accumulator: the old one's kinds and span were counted above.
+    this.current = this.accumulator()
+    this.appending = this.appending.then(() => this.stage(full))
+    // Awaited in settle(); marked handled here so a failed append waits there instead of crashing the process.
+    this.appending.catch(() => undefined)
+  }
+
+  private async stage(full: HistoryAccumulator): Promise<void> {
     const chunks = new Map<number, string>()
-    for (const [part, lines] of this.split(this.current)) {
+    for (const [part, lines] of await this.split(full)) {
       chunks.set(part, lines.join('\n'))
       if (!this.spilled.has(part)) this.staged++
       this.spilled.add(part)
     }
-    // A fresh accumulator: the old one's kinds and span were counted above.
-    this.current = this.accumulator()
-    this.appending = this.appending.then(() => this.staging.append(chunks))
-    // Awaited in settle(); marked handled here so a failed append waits there instead of crashing the process.
-    this.appending.catch(() => undefined)
+    await this.staging.append(chunks)
   }
 }
 

@@ -215,6 +215,31 @@ describe('forecastSeries with test doubles: output', () => {
     expect(approxEqual((high(long.forecast[0]!, 95) - 100) / 2, 2.228139, 1e-5)).toBe(true)
   })
 
+  it('floors a trend winner at the random walk spread on histories without a season, not with one', () => {
+    // An exact line 10, 12, ..., 32 and a trend-family double that continues it, claiming sd 1.
+    // Rolling-origin errors are 0, so calibration does not widen. Yearly (no season): the floor
+    // is the last-value method's spread sigma sqrt(h), sigma = RMS of the one-step differences
+    // (all 2) = 2: the random walk's h-step standard deviation (Hyndman & Athanasopoulos,
+    // Forecasting: principles and practice, benchmark methods, from memory). The half-width is
+    // the t quantile with 11 residuals - 1 parameter = 10 df (R: qt(0.975, 10) = 2.228139) times
+    // 2 sqrt(h). Quarterly (season 4), 12 points: no floor, so 2.228139 times the model's sd 1.
+    const line = Array.from({ length: 12 }, (_, t) => 10 + 2 * t)
+    const trend = fakeSpec({
+      name: 'linear-trend',
+      family: 'trend',
+      forecast: (s, h) => Array.from({ length: h }, (_, i) => s[s.length - 1]! + 2 * (i + 1)),
+      variance: (h) => new Array(h).fill(1),
+    })
+    const yearly = forecastSeriesWith({ demand: line, frequency: 'year', firstPeriod: '2010', horizon: 4 }, withFakes(trend))
+    expect(yearly.forecast.map((p) => p.demand)).toEqual([34, 36, 38, 40])
+    // Tolerance 1e-5 relative: the t quantile's Cornish-Fisher expansion at 10 df (intervals.test.ts).
+    yearly.forecast.forEach((p, i) => {
+      expect(approxEqual(high(p, 95) - p.demand, 2.228139 * 2 * Math.sqrt(i + 1), 1e-5)).toBe(true)
+    })
+    const quarterly = forecastSeriesWith({ ...series, demand: line, horizon: 4 }, withFakes(trend))
+    quarterly.forecast.forEach((p) => expect(approxEqual(high(p, 95) - p.demand, 2.228139, 1e-5)).toBe(true))
+  })
+
   it('summarises residuals and reports fitted values with null where undefined', () => {
     const r = forecastSeriesWith({ ...series, demand: [1, 3, 2, 4] }, withFakes(fakeLast()))
     expect(r.fitted).toEqual([null, 1, 3, 2])

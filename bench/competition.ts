@@ -4,11 +4,12 @@
  * bench/data/m3/PROTOCOL.md beside the statsmodels reference results (baselines.md).
  *
  * Usage: npm run bench:competition [-- --mode fast|thorough] [--limit N]
- *        [--freq year|quarter|month|other] [--split test|train] [--json]
+ *        [--freq year|quarter|month|other] [--split test|train] [--by-step] [--json]
  *  --split train  scores on the last h values of each training part (the test values
  *                 are never read): the split to make decisions on. References there are
  *                 Naive2 (computed by the protocol); M3's test split is the check.
  *  --limit N      about N series spread evenly over the selection (every k-th).
+ *  --by-step      also prints the engine's interval coverage per horizon step and frequency.
  * Single-threaded on purpose (shared cores); seconds per series are wall time per fit.
  */
 import { forecastSeries, type ForecastResult, type SeriesInput } from '../src/engine/index.js'
@@ -17,6 +18,7 @@ import { positiveIntOption } from './cli.js'
 import { loadM3, loadReference, M3_FREQUENCIES, REFERENCE_METHODS, spread, trainingSplit, type M3Frequency, type M3Series, type ReferenceMethod } from './competition-data.js'
 import { naive2 } from './competition-naive2.js'
 import { aggregate, bootstrapInterval, owa, scoreSeries, type Aggregate, type Forecast, type SeriesScore } from './competition-scoring.js'
+import { printStepCoverage, stepCoverage } from './competition-steps.js'
 import { printTargets } from './competition-targets.js'
 
 const out = (line = ''): void => { process.stdout.write(line + '\n') }
@@ -40,6 +42,7 @@ if (freqOption !== undefined && !(M3_FREQUENCIES as readonly string[]).includes(
 }
 const limit = process.argv.includes('--limit') ? positiveIntOption('limit', 1) : Infinity
 const asJson = process.argv.includes('--json')
+const byStep = process.argv.includes('--by-step')
 
 /** M3's "other" series have no calendar: fitted as yearly data with no season (m = 1). */
 function engineInput(s: M3Series): SeriesInput {
@@ -67,6 +70,7 @@ function asForecast(result: ForecastResult): Forecast {
 
 interface Row {
   readonly series: M3Series
+  readonly forecast: Forecast
   readonly engine: SeriesScore
   readonly seconds: number
   readonly model: string
@@ -93,7 +97,8 @@ for (const s of selected) {
   } else {
     refs.naive2 = scoreSeries(s.train, s.test, s.seasonLength, naive2(s.train, s.seasonLength, s.h))
   }
-  rows.push({ series: s, engine: scoreSeries(s.train, s.test, s.seasonLength, asForecast(result)), seconds, model: result.model, references: refs })
+  const forecast = asForecast(result)
+  rows.push({ series: s, forecast, engine: scoreSeries(s.train, s.test, s.seasonLength, forecast), seconds, model: result.model, references: refs })
 }
 const totalSeconds = (performance.now() - startedAll) / 1000
 
@@ -191,6 +196,13 @@ if (asJson) {
   out()
   out(`Chosen models: ${[...tally].sort((a, b) => b[1] - a[1]).map(([m, c]) => `${m} ${c}`).join(', ')}`)
   out()
+  if (byStep) {
+    for (const [group, members] of groups) {
+      if (group === 'all' || members.length === 0) continue
+      printStepCoverage(out, stepCoverage(group, members.map((r) => ({ test: r.series.test, forecast: r.forecast }))))
+      out()
+    }
+  }
   printTargets(out, summaries, rows.map((r) => ({ engine: r.engine, references: r.references })), split)
 }
 

@@ -18,9 +18,9 @@
  * inside the history (select/calibrate.ts): the split-conformal quantile of |error| / sd
  * (Vovk, Gammerman & Shafer 2005; Lei, G'Sell, Rinaldo, Tibshirani & Wasserman 2018, from
  * memory), in the spirit of the empirical intervals of Williams & Goodman (1971). Where
- * too few errors exist for level p, the spread ratio (root mean square of the standardised
- * errors) times the t quantile is used instead. A `floor` per step (the naive method's
- * spread for histories too short to tell models apart) bounds sd from below.
+ * too few errors exist for level p, the small-sample predictive quantile stands in for it
+ * (see `multiplier`). A `floor` per step (the naive method's spread for histories too
+ * short to tell models apart) bounds sd from below.
  *
  * A quantile tau is the bound of the central interval at level |2 tau - 1| on its side,
  * so quantiles and intervals agree. Unless negatives are allowed, values below zero are
@@ -164,8 +164,15 @@ export function modelSpread(
   return { method: 'empirical', sd }
 }
 
-/** Fewest calibration errors for a calibrated interval; fewer and the model's spread stands. */
-export const MIN_CALIBRATION_ERRORS = 5
+/**
+ * Fewest rolling origins for a calibrated interval; with fewer the model's spread stands.
+ * With one origin the predictive t quantile below would have 1 degree of freedom (a
+ * Cauchy law, 12.7 at 95%); from two on it is finite and its width says how little the
+ * origins tell. Two origins rather than the earlier five errors: the short yearly
+ * histories of the M3 training split (8 to 13 points) then get calibrated intervals too
+ * (bench/RESULTS.md, "Yearly intervals").
+ */
+export const MIN_CALIBRATION_ORIGINS = 2
 
 /** Standardised errors |error| / sd[step], ascending, each weighted 1 / (errors at its step). */
 interface Scores {
@@ -173,6 +180,8 @@ interface Scores {
   readonly weights: readonly number[]
   /** Number of steps with errors (the sum of the weights). */
   readonly totalWeight: number
+  /** Rolling origins behind the scores: each origin forecasts step 1, so the scores at step 1. */
+  readonly origins: number
 }
 
 function standardised(errors: IntervalInput['calibration'], sd: readonly number[]): Scores | null {
@@ -185,9 +194,10 @@ function standardised(errors: IntervalInput['calibration'], sd: readonly number[
     kept.push({ z: Math.abs(error) / s, step })
     perStep.set(step, (perStep.get(step) ?? 0) + 1)
   }
-  if (kept.length < MIN_CALIBRATION_ERRORS) return null
+  const origins = perStep.get(1) ?? 0
+  if (origins < MIN_CALIBRATION_ORIGINS) return null
   kept.sort((a, b) => a.z - b.z)
-  return { values: kept.map((k) => k.z), weights: kept.map((k) => 1 / perStep.get(k.step)!), totalWeight: perStep.size }
+  return { values: kept.map((k) => k.z), weights: kept.map((k) => 1 / perStep.get(k.step)!), totalWeight: perStep.size, origins }
 }
 
 /**
@@ -212,11 +222,22 @@ function weightedConformal(scores: Scores, p: number): number | null {
 /**
  * The multiplier k(p) of sd at central coverage p (0 < p < 1). Calibration only widens:
  * the rolling origins lie in the stretch the model was selected on, so their errors are
- * optimistic, and narrowing on them would promise too much. Where too few errors exist
- * for p (the conformal rank lies past the largest score), the weighted root mean square
- * of the scores times the t quantile is used, but never less than the largest score:
- * an interval at a level the errors cannot resolve is at least as wide as the worst
- * error they showed (decided on the M3 training split, bench/RESULTS.md).
+ * optimistic, and narrowing on them would promise too much.
+ *
+ * Where too few errors exist for p (the conformal rank lies past the largest score; with
+ * the default five origins this is the rule at 95%), k is the predictive quantile of a new
+ * score from a small normal sample with unknown spread:
+ *   k = s * t_nu((1 + p) / 2),   s^2 = weighted mean of the squared scores,   nu = origins.
+ * If the scores are N(0, c^2), a new score divided by s follows Student's t with nu degrees
+ * of freedom (the mean is known to be 0, so none is spent on it): the classical
+ * prediction interval for a future observation (Hahn & Meeker 1991, Statistical
+ * Intervals, ch. 4; Geisser 1993, Predictive Inference; both from memory). nu counts
+ * origins, not errors: the errors of one origin at its several steps share that fit's
+ * level and slope mistakes, so they are one draw of the spread rather than several. With
+ * few origins (short histories) the quantile is wide, as the conformal method, which gives
+ * no finite bound there, says it should be. Never less than the largest score either: an
+ * interval at a level the errors cannot resolve is at least as wide as the worst error
+ * they showed (both decided on the M3 training split, bench/RESULTS.md).
  */
 function multiplier(p: number, degreesOfFreedom: number | undefined, scores: Scores | null): number {
   const df = degreesOfFreedom
@@ -226,7 +247,8 @@ function multiplier(p: number, degreesOfFreedom: number | undefined, scores: Sco
   if (q !== null) return Math.max(base, q)
   let ss = 0
   for (let i = 0; i < scores.values.length; i++) ss += scores.weights[i]! * scores.values[i]! ** 2
-  return Math.max(base, Math.sqrt(ss / scores.totalWeight) * base, scores.values[scores.values.length - 1]!)
+  const predictive = Math.sqrt(ss / scores.totalWeight) * studentQuantile(0.5 + p / 2, scores.origins)
+  return Math.max(base, predictive, scores.values[scores.values.length - 1]!)
 }
 
 /** Bounds for every level and the requested quantiles; each interval contains its point and widens with level. */

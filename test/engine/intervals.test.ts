@@ -2,6 +2,7 @@ import { readFileSync } from 'node:fs'
 import { describe, expect, it } from 'vitest'
 import { buildIntervals, conformalQuantile, normalQuantile, studentQuantile } from '../../src/engine/intervals.js'
 import { approxEqual } from '../../src/engine/numeric.js'
+import { createRandom, normalDraw } from '../../scripts/seeded-random.js'
 
 // Source: base R 4.2.2 stats::qnorm (make.R beside the JSON).
 const qnorm = JSON.parse(readFileSync(new URL('./fixtures/r-front/front.json', import.meta.url), 'utf8')).qnorm as {
@@ -130,9 +131,61 @@ describe('calibrated intervals', () => {
     expect(b.lower['80']![1]).toBe(83)
     // 95%: weight 0.95 * 1.05 = 0.9975 is reached by the largest score, 20.
     expect(b.upper['95']![0]).toBe(120)
-    // 99%: 0.99 * 1.05 > 1, no score reaches it: the RMS of the scores times z.
+    // 99%: 0.99 * 1.05 > 1, no score reaches it: the RMS of the scores times the t quantile
+    // with 20 degrees of freedom, one per origin (every error here is a step-1 error).
+    // Source: scipy 1.10.1 (Debian python3-scipy), scipy.stats.t.ppf(0.995, 20) = 2.845339709776814.
+    // Tolerance 1e-5 relative: the Cornish-Fisher expansion's measured error at 20 df (1e-6), rounded up.
     const rms = Math.sqrt(Array.from({ length: 20 }, (_, i) => (i + 1) ** 2).reduce((a, b) => a + b, 0) / 20)
-    expect(approxEqual(b.upper['99']![0]! - 100, rms * normalQuantile(0.995), 1e-12)).toBe(true)
+    expect(approxEqual(b.upper['99']![0]! - 100, rms * 2.845339709776814, 1e-5)).toBe(true)
+  })
+  it('use the predictive t quantile with one degree of freedom per origin when the origins are too few for the level', () => {
+    // Three origins with sd 1 at both steps: step-1 errors 2, -1, 2 (one per origin), step-2
+    // errors -2, 1 (the two origins that reached step 2). Worked by hand: weights 1/3 at step 1,
+    // 1/2 at step 2, total 2; s^2 = ((4 + 1 + 4) / 3 + (4 + 1) / 2) / 2 = 2.75.
+    // 95%: the weighted conformal rank needs 0.95 * (2 + 1/2) = 2.375 > 2: none. k = s * t_3(0.975),
+    // scipy 1.10.1 scipy.stats.t.ppf(0.975, 3) * sqrt(2.75) = 5.2774901550403674 (Hahn & Meeker
+    // 1991's prediction interval for a new observation, from memory), above the largest score 2.
+    // Tolerance 1.5e-3 relative: the Cornish-Fisher expansion's measured error at 3 df (1.2e-3).
+    const calibration = [
+      { step: 1, error: 2 }, { step: 1, error: -1 }, { step: 2, error: -2 }, { step: 1, error: 2 }, { step: 2, error: 1 },
+    ]
+    const b = buildIntervals({ ...sd1, levels: [80, 95], calibration })
+    expect(b.method).toBe('calibrated')
+    for (const i of [0, 1]) {
+      expect(approxEqual(b.upper['95']![i]! - 100, 5.2774901550403674, 1.5e-3)).toBe(true)
+      expect(approxEqual(100 - b.lower['95']![i]!, 5.2774901550403674, 1.5e-3)).toBe(true)
+    }
+    // 80%: cumulative weights of the sorted scores 1, 1, 2, 2, 2 are 1/3, 5/6, 7/6, 3/2, 2; the
+    // target 0.8 * 2.5 = 2 is reached by the last: the conformal quantile 2 stands.
+    expect(b.upper['80']![0]).toBe(102)
+  })
+  it('keep the model spread with a single origin, and calibrate from two', () => {
+    const one = buildIntervals({ ...sd1, calibration: [{ step: 1, error: 9 }, { step: 2, error: 9 }] })
+    expect(one.method).toBe('analytical')
+    expect(approxEqual(one.upper['95']![0]! - 100, normalQuantile(0.975), 1e-15)).toBe(true)
+    // Two origins, errors 3 and -3 at step 1: s = 3, t_2(0.975) = 4.302652729911275 (scipy 1.10.1
+    // scipy.stats.t.ppf(0.975, 2); the closed form for 2 df, sqrt(2 * 0.95^2 / (1 - 0.95^2)),
+    // gives 4.302652729749464, 4e-11 from scipy's numerical inversion), so the bound is 100 + 12.908.
+    // Tolerance 1e-10 relative: that gap, rounded up.
+    const two = buildIntervals({ ...sd1, calibration: [{ step: 1, error: 3 }, { step: 1, error: -3 }] })
+    expect(two.method).toBe('calibrated')
+    expect(approxEqual(two.upper['95']![0]! - 100, 3 * 4.302652729911275, 1e-10)).toBe(true)
+  })
+  it('cover a new error at the promised rate when the standardised errors are normal (seeded simulation)', () => {
+    // If the scores are N(0, c^2), a new score over s is Student t with nu = origins degrees of
+    // freedom, so the 95% bound holds 95% whatever c (the t law of a normal ratio; Hahn & Meeker
+    // 1991, from memory). 20,000 trials of 4 origins at one step, c = 10 (so the model spread
+    // never binds): the share covered is 0.95 within 0.006 (about 4 binomial standard errors).
+    const random = createRandom(20261205)
+    const trials = 20000
+    let covered = 0
+    for (let k = 0; k < trials; k++) {
+      const calibration = Array.from({ length: 4 }, () => ({ step: 1, error: 10 * normalDraw(random) }))
+      const b = buildIntervals({ point: [0], levels: [95], variance: [1], residuals: [], allowNegative: true, calibration })
+      const next = 10 * normalDraw(random)
+      if (next >= b.lower['95']![0]! && next <= b.upper['95']![0]!) covered++
+    }
+    expect(Math.abs(covered / trials - 0.95)).toBeLessThan(0.006)
   })
   it('are never narrower than the largest standardised error when too few errors exist for the level', () => {
     // 19 errors of 1 and one of 10 at step 1 against sd 1. 99%: no score reaches 0.99 * 1.05; the RMS

@@ -89,6 +89,24 @@ describe('forecastSeries with test doubles: the candidates', () => {
     expect(forecastSeriesWith(series, withFakes(a, b, c)).model).toBe('theta')
   })
 
+  it('lets the holdout winner stand without a season, and AICc choose among the leaders with one', () => {
+    // Eleven 10s then 11. Holdout of the last period: last-value forecasts 10 (error 1), the
+    // "add one" double 11 (error 0), so the double leads. In sample the double errs by 1 at
+    // every step and last-value only at the last: AICc, N ln(SSE / N) + 2k + 2k(k + 1) / (N - k - 1)
+    // over the 11 fitted periods (Hurvich & Tsai 1989), worked by hand: 11 ln(1/11) + 2 + 4/9 = -23.9
+    // for last-value (SSE 1, k = 1) and 11 ln(10/11) + 6 + 24/7 = 8.4 for the double (SSE 10,
+    // k = 3): last-value. Yearly:
+    // the holdout winner stands (shortlist.ts, shortlistSize); quarterly: AICc decides.
+    const step = [...new Array(11).fill(10), 11]
+    const addOne = fakeSpec({ name: 'linear-trend', family: 'trend', complexity: 2, forecast: (s, h) => Array.from({ length: h }, (_, i) => s[s.length - 1]! + i + 1) })
+    const yearly = forecastSeriesWith({ demand: step, frequency: 'year', firstPeriod: '2010', horizon: 2 }, withFakes(fakeLast(), addOne))
+    expect(yearly.modelChoice.holdoutPeriods).toBe(1)
+    expect(yearly.model).toBe('linear-trend')
+    const quarterly = forecastSeriesWith({ ...series, demand: step, horizon: 2, holdoutPeriods: 1 }, withFakes(fakeLast(), addOne))
+    expect(quarterly.candidates[0]!.model).toBe('last-value')
+    expect(quarterly.model).toBe('last-value')
+  })
+
   it('scores on the holdout with the metric asked for', () => {
     const r = forecastSeriesWith({ ...series, holdoutPeriods: 3, rankBy: 'rmse' }, withFakes(fakeMean('level-smoothing')))
     const v = history
@@ -213,6 +231,31 @@ describe('forecastSeries with test doubles: output', () => {
     // inside the model's spread, so calibration does not widen: t quantile, 10 df (R: qt(0.975, 10) = 2.228139).
     expect(long.intervalMethod).toBe('calibrated')
     expect(approxEqual((high(long.forecast[0]!, 95) - 100) / 2, 2.228139, 1e-5)).toBe(true)
+  })
+
+  it('floors a trend winner at the random walk spread on histories without a season, not with one', () => {
+    // An exact line 10, 12, ..., 32 and a trend-family double that continues it, claiming sd 1.
+    // Rolling-origin errors are 0, so calibration does not widen. Yearly (no season): the floor
+    // is the last-value method's spread sigma sqrt(h), sigma = RMS of the one-step differences
+    // (all 2) = 2: the random walk's h-step standard deviation (Hyndman & Athanasopoulos,
+    // Forecasting: principles and practice, benchmark methods, from memory). The half-width is
+    // the t quantile with 11 residuals - 1 parameter = 10 df (R: qt(0.975, 10) = 2.228139) times
+    // 2 sqrt(h). Quarterly (season 4), 12 points: no floor, so 2.228139 times the model's sd 1.
+    const line = Array.from({ length: 12 }, (_, t) => 10 + 2 * t)
+    const trend = fakeSpec({
+      name: 'linear-trend',
+      family: 'trend',
+      forecast: (s, h) => Array.from({ length: h }, (_, i) => s[s.length - 1]! + 2 * (i + 1)),
+      variance: (h) => new Array(h).fill(1),
+    })
+    const yearly = forecastSeriesWith({ demand: line, frequency: 'year', firstPeriod: '2010', horizon: 4 }, withFakes(trend))
+    expect(yearly.forecast.map((p) => p.demand)).toEqual([34, 36, 38, 40])
+    // Tolerance 1e-5 relative: the t quantile's Cornish-Fisher expansion at 10 df (intervals.test.ts).
+    yearly.forecast.forEach((p, i) => {
+      expect(approxEqual(high(p, 95) - p.demand, 2.228139 * 2 * Math.sqrt(i + 1), 1e-5)).toBe(true)
+    })
+    const quarterly = forecastSeriesWith({ ...series, demand: line, horizon: 4 }, withFakes(trend))
+    quarterly.forecast.forEach((p) => expect(approxEqual(high(p, 95) - p.demand, 2.228139, 1e-5)).toBe(true))
   })
 
   it('summarises residuals and reports fitted values with null where undefined', () => {

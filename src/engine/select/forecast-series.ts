@@ -23,7 +23,7 @@ import { checkedForecast, evaluateHoldout, evaluateInSample, skipped, withInterv
 import { MIN_TRAINING, planHoldout } from './holdout.js'
 import { rankEvaluations, shortlistFirst } from './rank.js'
 import { seasonalityVerdict, type SeasonalityVerdict } from './seasonality.js'
-import { orderByCriterion, parameterCount, shortlistSize } from './shortlist.js'
+import { orderByCriterion, parameterCount, SHORTLIST_SIZE } from './shortlist.js'
 import { calibrationErrors } from './calibrate.js'
 import { LISTABLE_MODELS, SEARCH, THOROUGH_EXTRA } from './pools.js'
 import { SHORT_HISTORY } from '../prepare.js'
@@ -208,9 +208,9 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
     })
   }
 
-  // Refit the best candidates on the whole history: the first shortlistSize that refit
-  // (several for holdout selection with a season, else one); then pick by AICc.
-  const want = shortlistSize(method, m)
+  // Refit the best candidates on the whole history: the first SHORTLIST_SIZE that refit
+  // (holdout selection), or only the first (in-sample selection); then pick by AICc.
+  const want = method === 'holdout' ? SHORTLIST_SIZE : 1
   const refits: { index: number; winner: Winner; complexity: number }[] = []
   const residualCount = (fitted: readonly number[]): number => fitted.reduce((c, f) => (Number.isFinite(f) ? c + 1 : c), 0)
   for (const i of ranking.order) {

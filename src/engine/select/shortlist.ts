@@ -3,8 +3,7 @@
  *
  * One holdout of one season is a small sample: the holdout ranking of close candidates
  * is largely noise. So selection refits the best SHORTLIST_SIZE candidates by holdout
- * score on the whole history (the winner is refitted anyway; histories with a season only,
- * see shortlistSize) and picks the one with the
+ * score on the whole history (the winner is refitted anyway) and picks the one with the
  * lowest corrected Akaike information criterion of its in-sample one-step errors,
  *   AICc = N ln(SSE / N) + 2k + 2k(k + 1) / (N - k - 1),   k = complexity + 1
  * (the Gaussian likelihood with the error variance as one more parameter; Hurvich and
@@ -32,22 +31,6 @@ import { approxEqual } from '../numeric.js'
 import type { ModelParams, ModelSpec } from '../types.js'
 
 export const SHORTLIST_SIZE = 3
-
-/**
- * How many holdout leaders are refitted and compared by AICc: SHORTLIST_SIZE for histories
- * with a season, 1 (the holdout winner stands) without one. On the M3 training split's 819
- * series without a season (yearly and other, 8 to 35 points) the criterion's final choice
- * hurt: pooled OWA 0.925 with it against 0.893 without, yearly MASE 3.591 against 3.433,
- * other 2.184 against 2.176 (other's sMAPE 4.28 against 4.56 the other way), and 95%
- * coverage 0.924 against 0.932 (bench/RESULTS.md, "Yearly intervals"). On so few points
- * the criterion's penalty 2k + 2k(k + 1) / (N - k - 1) is large and favours the last value
- * (chosen for 275 of the 645 yearly training parts with the criterion, 123 without),
- * whose flat line misses the trends the holdout saw. In-sample selection refits one model
- * whatever the season.
- */
-export function shortlistSize(method: 'holdout' | 'in-sample', seasonLength: number): number {
-  return method === 'holdout' && seasonLength > 1 ? SHORTLIST_SIZE : 1
-}
 
 export interface ShortlistFit {
   /** In-sample one-step fitted values on the whole history (NaN where undefined). */

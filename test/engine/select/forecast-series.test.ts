@@ -89,24 +89,6 @@ describe('forecastSeries with test doubles: the candidates', () => {
     expect(forecastSeriesWith(series, withFakes(a, b, c)).model).toBe('theta')
   })
 
-  it('lets the holdout winner stand without a season, and AICc choose among the leaders with one', () => {
-    // Eleven 10s then 11. Holdout of the last period: last-value forecasts 10 (error 1), the
-    // "add one" double 11 (error 0), so the double leads. In sample the double errs by 1 at
-    // every step and last-value only at the last: AICc, N ln(SSE / N) + 2k + 2k(k + 1) / (N - k - 1)
-    // over the 11 fitted periods (Hurvich & Tsai 1989), worked by hand: 11 ln(1/11) + 2 + 4/9 = -23.9
-    // for last-value (SSE 1, k = 1) and 11 ln(10/11) + 6 + 24/7 = 8.4 for the double (SSE 10,
-    // k = 3): last-value. Yearly:
-    // the holdout winner stands (shortlist.ts, shortlistSize); quarterly: AICc decides.
-    const step = [...new Array(11).fill(10), 11]
-    const addOne = fakeSpec({ name: 'linear-trend', family: 'trend', complexity: 2, forecast: (s, h) => Array.from({ length: h }, (_, i) => s[s.length - 1]! + i + 1) })
-    const yearly = forecastSeriesWith({ demand: step, frequency: 'year', firstPeriod: '2010', horizon: 2 }, withFakes(fakeLast(), addOne))
-    expect(yearly.modelChoice.holdoutPeriods).toBe(1)
-    expect(yearly.model).toBe('linear-trend')
-    const quarterly = forecastSeriesWith({ ...series, demand: step, horizon: 2, holdoutPeriods: 1 }, withFakes(fakeLast(), addOne))
-    expect(quarterly.candidates[0]!.model).toBe('last-value')
-    expect(quarterly.model).toBe('last-value')
-  })
-
   it('scores on the holdout with the metric asked for', () => {
     const r = forecastSeriesWith({ ...series, holdoutPeriods: 3, rankBy: 'rmse' }, withFakes(fakeMean('level-smoothing')))
     const v = history

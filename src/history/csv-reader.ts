@@ -29,6 +29,14 @@ export class UploadFormatError extends Error {
   }
 }
 
+/** CSV records read between two turns of the event loop (a few milliseconds of work). */
+const RECORDS_PER_TURN = 2000
+
+/** Resolves on the event loop's next turn, after pending I/O and timers. */
+export function nextTurn(): Promise<void> {
+  return new Promise((resolve) => setImmediate(resolve))
+}
+
 /** Longest accepted CSV record in characters: guards against a wrong delimiter swallowing a file. */
 const MAX_RECORD_CHARS = 64 * 1024
 
@@ -71,7 +79,10 @@ async function readRecords(
 ): Promise<void> {
   let columns: { sku: number; period: number; demand: number; tags: number } | null = null
   let names: readonly string[] = []
+  let read = 0
   for await (const entry of records) {
+    // Records already parsed are handed over in microtasks, which never let other requests in: give them a turn.
+    if (++read % RECORDS_PER_TURN === 0) await nextTurn()
     const { record, info } = entry
     const line = info.lines
     if (columns === null) {

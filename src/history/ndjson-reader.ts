@@ -4,7 +4,7 @@ import type { UploadSink } from './staged-upload.js'
 import { bucketOf } from './buckets.js'
 import { parseDemand, parseSku } from './cells.js'
 import { parseUploadSeries } from './series-item.js'
-import { UploadFormatError } from './csv-reader.js'
+import { nextTurn, UploadFormatError } from './csv-reader.js'
 import { normaliseTags } from './tags.js'
 
 /** The fields of a row line; `tags` optional. */
@@ -32,6 +32,8 @@ export async function readNdjsonUpload(source: Readable, acc: UploadSink): Promi
       pending = pending.slice(nl + 1)
     }
     if (acc.settle !== undefined) await acc.settle()
+    // Chunks already buffered are handed over in microtasks, which never let other requests in: give them a turn.
+    await nextTurn()
     if (pending.length > MAX_LINE_CHARS) throw new UploadFormatError(`line ${line + 1} is longer than ${MAX_LINE_CHARS} characters`, 'body')
   }
   pending += decoder.end()

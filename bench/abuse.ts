@@ -19,6 +19,7 @@
  *   npm run bench:abuse -- --only 1,10    some of them (by finding number)
  *   npm run bench:abuse -- --chunk-size 50   the service's CHUNK_SIZE (default: the service default)
  */
+import { fork } from 'node:child_process'
 import { writeFileSync } from 'node:fs'
 import { Redis } from 'ioredis'
 import { freePort } from './e2e-port.js'
@@ -222,28 +223,40 @@ const SCENARIOS: readonly Scenario[] = [
   },
 ]
 
-/** GET /healthz one after another until stopped; returns each latency in ms. */
+/**
+ * The probe's loop, run in a process of its own: sending a body of tens of MB
+ * from this process would otherwise delay the probe's own requests and answers
+ * here, and that delay would be counted against the service.
+ */
+const PROBE_SCRIPT = `
+const latencies = []
+let running = true
+process.on('message', () => { running = false })
+;(async () => {
+  while (running) {
+    const t = performance.now()
+    try {
+      const res = await fetch(process.argv[1] + '/healthz', { signal: AbortSignal.timeout(60000) })
+      await res.text()
+    } catch {}
+    latencies.push(performance.now() - t)
+    await new Promise((r) => setTimeout(r, 10))
+  }
+  process.send(latencies, () => process.exit(0))
+})()
+`
+
+/** GET /healthz one after another, from a child process, until stopped; returns each latency in ms (a timed-out probe counts with its full time). */
 function probe(baseUrl: string): { stop: () => Promise<number[]> } {
-  const latencies: number[] = []
-  let running = true
-  const loop = (async () => {
-    while (running) {
-      const t = performance.now()
-      try {
-        const res = await fetch(`${baseUrl}/healthz`, { signal: AbortSignal.timeout(60_000) })
-        await res.text()
-      } catch {
-        // a timed-out probe counts with its full time
-      }
-      latencies.push(performance.now() - t)
-      await sleep(10)
-    }
-  })()
+  const child = fork('-e', [PROBE_SCRIPT, baseUrl], { execArgv: [], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] })
+  const result = new Promise<number[]>((resolve, reject) => {
+    child.once('message', (m) => resolve(m as number[]))
+    child.once('error', reject)
+  })
   return {
     stop: async () => {
-      running = false
-      await loop
-      return latencies
+      child.send('stop')
+      return result
     },
   }
 }

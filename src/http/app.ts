@@ -24,6 +24,7 @@ import syncFitsPlugin from './plugins/sync-fits.js'
 import type { SyncFitter } from './sync-fits/pool.js'
 import bodyThreadsPlugin from './plugins/body-threads.js'
 import { LARGE_JSON_BYTES, LargeJsonBody, type BodyThreads } from './body-threads/pool.js'
+import { readBodyBlocks } from './body-threads/read-blocks.js'
 import healthRoutes from './routes/health.js'
 import historyRoutes from './routes/history.js'
 import runRoutes from './routes/runs/index.js'
@@ -126,12 +127,17 @@ export async function build(deps: AppDeps): Promise<FastifyInstance> {
   // content type and nothing else); routes that need a body reject it by schema.
   const parseJson = app.getDefaultJsonParser('error', 'error')
   app.removeContentTypeParser('application/json')
-  app.addContentTypeParser('application/json', { parseAs: 'buffer' }, (request, body, done) => {
-    if (body.length === 0) done(null, undefined)
-    // A large body of a route that opts in is parsed on a thread by its handler: parsing tens of
-    // megabytes here would hold every other request (and the health probe) for up to a second.
-    else if (body.length >= LARGE_JSON_BYTES && request.routeOptions.config?.largeJsonOnThread === true) done(null, new LargeJsonBody(body as Buffer))
-    else void parseJson(request, body.toString('utf8'), done)
+  app.addContentTypeParser('application/json', (request, payload, done) => {
+    readBodyBlocks(request, payload, request.routeOptions.bodyLimit ?? config.bodyLimitBytes).then(
+      ({ blocks, length }) => {
+        if (length === 0) done(null, undefined)
+        // A large body of a route that opts in is parsed on a thread by its handler: parsing tens of
+        // megabytes here would hold every other request (and the health probe) for up to a second.
+        else if (length >= LARGE_JSON_BYTES && request.routeOptions.config?.largeJsonOnThread === true) done(null, new LargeJsonBody(blocks))
+        else void parseJson(request, (blocks.length === 1 ? blocks[0]! : Buffer.concat(blocks, length)).toString('utf8'), done)
+      },
+      (err: Error) => done(err, undefined),
+    )
   })
   app.addHook('onRequest', async (request, reply) => {
     reply.header('x-request-id', request.id)

@@ -4,14 +4,14 @@ import type { RunBodyOutcome, RunBodyTask } from './run-body-thread.js'
 /** Bodies of at least this many bytes are parsed on a thread by the routes that opt in (`largeJsonOnThread`). */
 export const LARGE_JSON_BYTES = 1024 * 1024
 
-/** A JSON body left unparsed by the API's parser, as its bytes, for a pool thread (routes with `largeJsonOnThread`). */
+/** A JSON body left unparsed by the API's parser, as its bytes in blocks (read-blocks.ts), for a pool thread (routes with `largeJsonOnThread`). */
 export class LargeJsonBody {
-  constructor(readonly bytes: Buffer) {}
+  constructor(readonly blocks: readonly Buffer[]) {}
 }
 
 /** Parses and prepares large request bodies off the event loop. */
 export interface BodyThreads {
-  /** The body's bytes move to the thread (transferred when they own their memory): do not read them afterwards. */
+  /** The body's blocks move to the thread (transferred when they own their memory): do not read them afterwards. */
   prepareRun(task: RunBodyTask): Promise<RunBodyOutcome>
   close(): Promise<void>
 }
@@ -38,11 +38,11 @@ export function createBodyThreads(): BodyThreads {
   })
   return {
     prepareRun: (task) => {
-      // Handed over without a copy when the bytes own their whole buffer (a large body does: Buffer.concat),
-      // so the event loop does not copy tens of megabytes; a view into a shared buffer is copied.
-      const b = task.bytes
-      const owns = b.byteOffset === 0 && b.byteLength === b.buffer.byteLength && b.buffer instanceof ArrayBuffer
-      return pool.run(task, owns ? { transferList: [b.buffer as ArrayBuffer] } : {}) as Promise<RunBodyOutcome>
+      // Each block is handed over without a copy when it owns its whole buffer (a block of read-blocks.ts
+      // does), so the event loop does not copy tens of megabytes; a view into a shared buffer is copied.
+      const owned = task.blocks.filter((b) => b.byteOffset === 0 && b.byteLength === b.buffer.byteLength && b.buffer instanceof ArrayBuffer)
+      const transferList = owned.map((b) => b.buffer as ArrayBuffer)
+      return pool.run(task, transferList.length > 0 ? { transferList } : {}) as Promise<RunBodyOutcome>
     },
     close: () => pool.destroy(),
   }

@@ -7,8 +7,8 @@ import { parseRunSubmissionFast } from '../../schemas/series-check.js'
 
 /** A large POST /v1/runs body, as posted to a pool thread (body-pool.ts). */
 export interface RunBodyTask {
-  /** The body's UTF-8 bytes. */
-  readonly bytes: Uint8Array
+  /** The body's UTF-8 bytes, in blocks (a character may straddle two). */
+  readonly blocks: readonly Uint8Array[]
   readonly chunkSize: number
 }
 
@@ -30,6 +30,14 @@ export type RunBodyOutcome =
   /** Inline series, checked and already cut into the chunk inputs the run store writes (RunStore.createRun's format). */
   | { readonly kind: 'inline'; readonly settings: RunSettings; readonly total: number; readonly chunks: string[] }
 
+/** The blocks as one string; the decoder keeps a character split between blocks whole. */
+export function decodeBlocks(blocks: readonly Uint8Array[]): string {
+  const decoder = new TextDecoder()
+  let text = ''
+  for (const block of blocks) text += decoder.decode(block, { stream: true })
+  return text + decoder.decode()
+}
+
 /**
  * Runs on a pool thread: parses a large run body (with the same prototype-poisoning
  * rule as the API's JSON parser), validates it as the route does (the plain fast
@@ -40,7 +48,7 @@ export type RunBodyOutcome =
 export default function prepareRunBody(task: RunBodyTask): RunBodyOutcome {
   let data: unknown
   try {
-    data = sjson.parse(new TextDecoder().decode(task.bytes), undefined, { protoAction: 'error', constructorAction: 'error' })
+    data = sjson.parse(decodeBlocks(task.blocks), undefined, { protoAction: 'error', constructorAction: 'error' })
   } catch {
     return { kind: 'malformed' }
   }

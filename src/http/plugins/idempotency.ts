@@ -69,7 +69,7 @@ export default fp<{ store?: IdempotencyStore }>(
       if (existing?.state === 'done') {
         const digest = streamed
           ? await drainInto(hash, request.body as Readable, app.config.bodyLimitBytes)
-          : hash.update(bodyText(request.body)).digest('hex')
+          : hashBody(hash, request.body).digest('hex')
         if (digest !== existing.hash) throw reused()
         return replay(reply, existing)
       }
@@ -86,7 +86,7 @@ export default fp<{ store?: IdempotencyStore }>(
       const state: IdempotencyState = { key, lease, renewal, hash: null, settled: false, replayable: true }
       request.idempotency = state
       if (!streamed) {
-        state.hash = hash.update(bodyText(request.body)).digest('hex')
+        state.hash = hashBody(hash, request.body).digest('hex')
         return
       }
       const source = request.body as Readable
@@ -190,7 +190,9 @@ const reused = () =>
 
 export type { FastifyRequest }
 
-/** What a JSON body is hashed as: its bytes when it was left unparsed (a large body, parsed on a thread), else the parsed value. */
-function bodyText(body: unknown): string | Buffer {
-  return body instanceof LargeJsonBody ? body.bytes : JSON.stringify(body ?? null)
+/** Hash a JSON body: its bytes when it was left unparsed (a large body, parsed on a thread), else the parsed value. */
+function hashBody(hash: Hash, body: unknown): Hash {
+  if (!(body instanceof LargeJsonBody)) return hash.update(JSON.stringify(body ?? null))
+  for (const block of body.blocks) hash.update(block)
+  return hash
 }

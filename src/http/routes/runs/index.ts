@@ -34,7 +34,7 @@ export function runNotFound(runId: string): ProblemError {
 async function submitLargeBody(app: FastifyInstance, tenant: string, body: LargeJsonBody): Promise<RunRecord> {
   const chunkSize = app.gateway.chunkSize
   if (!app.gateway.submitPrepared || chunkSize === undefined) throw new ProblemError('not-ready', 'Large run bodies are not configured on this server')
-  const outcome = await app.bodyThreads.prepareRun({ bytes: body.bytes, chunkSize })
+  const outcome = await app.bodyThreads.prepareRun({ blocks: body.blocks, chunkSize })
   switch (outcome.kind) {
     case 'malformed':
       throw new ProblemError('malformed-json', 'The request body is not valid JSON')
@@ -88,7 +88,7 @@ const routes: FastifyPluginAsyncZod = async (app) => {
     async (request, reply) => {
       const raw: unknown = request.body
       if (raw instanceof LargeJsonBody) {
-        const bodyBytes = raw.bytes.length // read before the bytes move to the thread
+        const bodyBytes = raw.blocks.reduce((n, b) => n + b.length, 0) // read before the blocks move to the thread
         const run = await submitLargeBody(app, request.tenant, raw)
         request.log.info({ runId: run.id, series: run.progress.total, stored: run.scope !== null, bodyBytes }, 'run submitted')
         reply.code(202).header('location', `/v1/runs/${encodeURIComponent(run.id)}`)

@@ -138,4 +138,14 @@ describe('loadConfig', () => {
       expect(problems[0]).toMatch(/^HISTORY_IDLE_DAYS: /)
     }
   })
+
+  it('UPLOAD_SPILL_BYTES: 8 MiB by default, 64 KiB to 1 GiB, anything else refused by name', () => {
+    expect(load({}).uploadSpillBytes).toBe(8 * 1024 * 1024)
+    expect(load({ UPLOAD_SPILL_BYTES: '65536' }).uploadSpillBytes).toBe(65_536)
+    for (const bad of ['1000', 'lots', '2147483648']) {
+      const problems = problemsOf(() => load({ UPLOAD_SPILL_BYTES: bad }))
+      expect(problems).toHaveLength(1)
+      expect(problems[0]).toMatch(/^UPLOAD_SPILL_BYTES: /)
+    }
+  })
 })

@@ -117,7 +117,7 @@ export interface RunGateway {
    * checkInlineOptions) and cut into chunk inputs of `chunkSize` series by the caller
    * (a large body, on a thread): `total` series in `inputs`.
    */
-  submitPrepared?(tenant: string, settings: RunSettings, total: number, inputs: readonly string[]): Promise<RunRecord>
+  submitPrepared?(tenant: string, settings: RunSettings, total: number, inputs: readonly (string | Uint8Array)[]): Promise<RunRecord>
   /** Series per chunk input, for callers of submitPrepared. */
   readonly chunkSize?: number
   /**

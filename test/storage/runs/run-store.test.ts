@@ -51,6 +51,19 @@ describe('RunStore', () => {
     expect(ttl).toBeGreaterThan(590)
   })
 
+  it('writes prepared inputs of several MiB (strings or UTF-8 bytes) over several round trips, each read back as sent', async () => {
+    // Invented series, about 700 KiB per input: 6 inputs need three 2 MiB write batches.
+    const inputs = Array.from({ length: 6 }, (_, c) =>
+      Array.from({ length: 5000 }, (_, i) => ({ sku: `MULCH-${c}-${i}`, demand: Array.from({ length: 12 }, (_, t) => (i * 7 + t * 13) % 97) })),
+    )
+    const encoded = inputs.map((input, c) => (c % 2 === 0 ? JSON.stringify(input) : new TextEncoder().encode(JSON.stringify(input))))
+    const { series: _one, ...settings } = runRequest(syntheticSeries(1))
+    const { chunks } = await store.createRunFromInputs('acme', 'prepared-1', settings, 30_000, encoded, t0)
+    expect(chunks).toBe(6)
+    for (let c = 0; c < 6; c++) expect(await store.readChunkInput('acme', 'prepared-1', c)).toEqual(inputs[c])
+    expect(await store.getRun('acme', 'prepared-1')).toMatchObject({ status: 'queued', progress: { total: 30_000 } })
+  })
+
   it('counts a chunk committed twice only once, and finishes on the last chunk', async () => {
     await store.createRun('acme', 'idem-1', runRequest(syntheticSeries(4)), 2, t0)
     const first = errorItems(['SKU-00000', 'SKU-00001'])

@@ -18,11 +18,10 @@ import { randomBytes } from 'node:crypto'
 import { Readable } from 'node:stream'
 import { gzipSync } from 'node:zlib'
 import { Redis } from 'ioredis'
-import type { Config } from '../src/config.js'
 import { build } from '../src/http/app.js'
 import { HistoryStore } from '../src/storage/histories/history-store.js'
-import type { RunGateway } from '../src/runs/contract.js'
 import { deletePrefix } from './e2e-redis.js'
+import { benchConfig, noRunGateway } from './in-process-app.js'
 
 const MIB = 1024 * 1024
 const sizes = process.argv.slice(2).map(Number).filter((n) => n > 0)
@@ -31,26 +30,8 @@ const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'
 const prefix = `bench-gzip-${randomBytes(4).toString('hex')}`
 const LIMIT = 64 * MIB
 
-const config: Config = {
-  port: 0,
-  host: '127.0.0.1',
-  redisUrl,
-  redisPrefix: prefix,
-  apiKeys: new Map(),
-  chunkSize: 500,
-  workerConcurrency: 1,
-  runWorker: false,
-  resultRetentionSeconds: 3600,
-  bodyLimitBytes: LIMIT,
-  syncMaxSeries: 100,
-  rateLimitMax: 1_000_000,
-  rateLimitWindowMs: 60_000,
-  logLevel: 'silent',
-}
-const unused = (): never => {
-  throw new Error('the gzip benchmark never calls the run gateway')
-}
-const gateway: RunGateway = { submit: unused, get: unused, results: unused, cancel: unused, latestForecast: unused, ping: unused, stats: unused }
+const config = benchConfig(redisUrl, prefix, { bodyLimitBytes: LIMIT })
+const gateway = noRunGateway('gzip')
 
 /** One gzip member: 16 MiB of `fill` once inflated. */
 const member = (fill: string) => gzipSync(Buffer.alloc(16 * MIB, fill), { level: 9 })

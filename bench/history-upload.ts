@@ -16,11 +16,10 @@
 import { randomBytes } from 'node:crypto'
 import { Readable } from 'node:stream'
 import { Redis } from 'ioredis'
-import type { Config } from '../src/config.js'
 import { build } from '../src/http/app.js'
 import { HistoryStore } from '../src/storage/histories/history-store.js'
-import type { RunGateway } from '../src/runs/contract.js'
 import { deletePrefix } from './e2e-redis.js'
+import { benchConfig, noRunGateway } from './in-process-app.js'
 
 const args = process.argv.slice(2)
 const skusAt = args.indexOf('--skus')
@@ -31,26 +30,8 @@ const rowCounts = sizes.length > 0 ? sizes : [200_000, 800_000, 1_600_000]
 const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'
 const prefix = `bench-history-${randomBytes(4).toString('hex')}`
 
-const config: Config = {
-  port: 0,
-  host: '127.0.0.1',
-  redisUrl,
-  redisPrefix: prefix,
-  apiKeys: new Map(),
-  chunkSize: 500,
-  workerConcurrency: 1,
-  runWorker: false,
-  resultRetentionSeconds: 3600,
-  bodyLimitBytes: 1024 * 1024 * 1024,
-  syncMaxSeries: 100,
-  rateLimitMax: 1_000_000,
-  rateLimitWindowMs: 60_000,
-  logLevel: 'silent',
-}
-const unused = (): never => {
-  throw new Error('the history benchmark never calls the run gateway')
-}
-const gateway: RunGateway = { submit: unused, get: unused, results: unused, cancel: unused, latestForecast: unused, ping: unused, stats: unused }
+const config = benchConfig(redisUrl, prefix, { bodyLimitBytes: 1024 * 1024 * 1024 })
+const gateway = noRunGateway('history')
 
 function* csv(rows: number): Generator<string> {
   yield 'sku,period,demand\n'

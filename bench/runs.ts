@@ -21,26 +21,17 @@ import { runKeys } from '../src/storage/keys.js'
 import { RunSettings, type SeriesItem } from '../src/schemas/run.js'
 import { SHAPES, createRandom, syntheticSeries } from './synthetic.js'
 import { deletePrefix } from './e2e-redis.js'
+import { benchConfig } from './in-process-app.js'
 
 const count = Number(process.argv[2] ?? 5000)
 const redisUrl = process.env.REDIS_URL ?? 'redis://127.0.0.1:6379'
 const prefix = `bench-runs-${randomBytes(4).toString('hex')}`
-const config: Config = {
-  port: 0,
-  host: '127.0.0.1',
-  redisUrl,
-  redisPrefix: prefix,
-  apiKeys: new Map(),
+const config = benchConfig(redisUrl, prefix, {
   chunkSize: Number(process.env.CHUNK_SIZE ?? 500),
   workerConcurrency: Number(process.env.WORKER_CONCURRENCY ?? 0),
-  runWorker: false,
-  resultRetentionSeconds: 3600,
-  bodyLimitBytes: 64 * 1024 * 1024,
-  syncMaxSeries: 100,
   rateLimitMax: 1000,
-  rateLimitWindowMs: 60_000,
   logLevel: (process.env.LOG_LEVEL as Config['logLevel'] | undefined) ?? 'warn',
-}
+})
 
 const random = createRandom(20260301)
 const series: SeriesItem[] = Array.from({ length: count }, (_, i) => ({

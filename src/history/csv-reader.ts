@@ -1,6 +1,6 @@
 import type { Readable } from 'node:stream'
 import { CsvError, parse } from 'csv-parse'
-import type { UploadSink } from './staged-upload.js'
+import { pauseBetweenStretches, type UploadSink } from './staged-upload.js'
 import { bucketOf } from './buckets.js'
 import { parseDemand, parseSku, parseTagsCell, type DecimalSeparator } from './cells.js'
 
@@ -29,13 +29,8 @@ export class UploadFormatError extends Error {
   }
 }
 
-/** CSV records read between two turns of the event loop (a few milliseconds of work). */
+/** CSV records read between two pauses (a few milliseconds of work). */
 const RECORDS_PER_TURN = 2000
-
-/** Resolves on the event loop's next turn, after pending I/O and timers. */
-export function nextTurn(): Promise<void> {
-  return new Promise((resolve) => setImmediate(resolve))
-}
 
 /** Longest accepted CSV record in characters: guards against a wrong delimiter swallowing a file. */
 const MAX_RECORD_CHARS = 64 * 1024
@@ -81,8 +76,7 @@ async function readRecords(
   let names: readonly string[] = []
   let read = 0
   for await (const entry of records) {
-    // Records already parsed are handed over in microtasks, which never let other requests in: give them a turn.
-    if (++read % RECORDS_PER_TURN === 0) await nextTurn()
+    if (++read % RECORDS_PER_TURN === 0) await pauseBetweenStretches(acc)
     const { record, info } = entry
     const line = info.lines
     if (columns === null) {
@@ -129,8 +123,6 @@ async function readRecords(
       continue
     }
     acc.addRow(sku.sku, bucket.ordinal, demand.value, { line }, bucket.dated, tags.tags)
-    // A staged upload may be appending a spill: wait for it rather than buffer another.
-    if (acc.settle !== undefined) await acc.settle()
   }
   if (columns === null) throw new UploadFormatError('the CSV upload is empty: expected a header row', 'body')
 }

@@ -1,10 +1,10 @@
 import { StringDecoder } from 'node:string_decoder'
 import type { Readable } from 'node:stream'
-import type { UploadSink } from './staged-upload.js'
+import { pauseBetweenStretches, type UploadSink } from './staged-upload.js'
 import { bucketOf } from './buckets.js'
 import { parseDemand, parseSku } from './cells.js'
 import { parseUploadSeries } from './series-item.js'
-import { nextTurn, UploadFormatError } from './csv-reader.js'
+import { UploadFormatError } from './csv-reader.js'
 import { normaliseTags } from './tags.js'
 
 /** The fields of a row line; `tags` optional. */
@@ -31,14 +31,11 @@ export async function readNdjsonUpload(source: Readable, acc: UploadSink): Promi
       handleLine(pending.slice(0, nl), ++line, acc)
       pending = pending.slice(nl + 1)
     }
-    if (acc.settle !== undefined) await acc.settle()
-    // Chunks already buffered are handed over in microtasks, which never let other requests in: give them a turn.
-    await nextTurn()
+    await pauseBetweenStretches(acc)
     if (pending.length > MAX_LINE_CHARS) throw new UploadFormatError(`line ${line + 1} is longer than ${MAX_LINE_CHARS} characters`, 'body')
   }
   pending += decoder.end()
   if (pending.length > 0) handleLine(pending, line + 1, acc)
-  if (acc.settle !== undefined) await acc.settle()
 }
 
 function handleLine(raw: string, line: number, acc: UploadSink): void {

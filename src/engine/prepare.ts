@@ -109,6 +109,10 @@ function validateOptions(input: SeriesInput): void {
     input.models.forEach((m, i) => {
       if (!MODEL_NAMES.includes(m)) throw option(`unknown model "${m}"`, `models[${i}]`)
     })
+    const members = input.models.filter((m) => m !== 'shortlist-combination')
+    if (members.length < input.models.length && new Set(members).size < 2) {
+      throw option('shortlist-combination combines the best of the other listed models: list at least two more, or leave models unset', 'models')
+    }
   }
   if (input.intervalLevels !== undefined) {
     if (input.intervalLevels.length > ENGINE_LIMITS.maxLevels) {

@@ -52,6 +52,7 @@ export const MODEL_NAMES = [
   'state-space-smoothing',
   'median-combination',
   'auto-arima',
+  'shortlist-combination',
 ] as const
 export type ModelName = (typeof MODEL_NAMES)[number]
 
@@ -201,6 +202,11 @@ export interface ModelChoice {
   readonly rankBy: MetricName
   readonly holdoutPeriods: number
   readonly holdoutOrigins: number
+  /**
+   * For model 'shortlist-combination' only: the models averaged, with their families (the
+   * AICc pick first; the candidates table lists them right after the combination).
+   */
+  readonly members?: readonly { readonly model: ModelName; readonly family: ModelFamily }[]
 }
 
 export interface ForecastResult {

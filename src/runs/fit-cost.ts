@@ -1,4 +1,4 @@
-import { DEFAULT_SEASON_LENGTH, MODEL_REGISTRY, SEARCH, THOROUGH_EXTRA } from '../engine/index.js'
+import { DEFAULT_SEASON_LENGTH, MODEL_REGISTRY, SEARCH, SHORTLIST_COMBINATION, THOROUGH_EXTRA } from '../engine/index.js'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
 
 /**
@@ -16,8 +16,12 @@ export const MODEL_COST_WEIGHTS: Readonly<Record<string, number>> = {
   'auto-arima': 10_000,
 }
 
-/** A model's weight: 1 for the default pool, MODEL_COST_WEIGHTS for the costlier ones. */
+/**
+ * A model's weight: 1 for the default pool, MODEL_COST_WEIGHTS for the costlier ones, 0
+ * for 'shortlist-combination' (the mean of models already fitted, no fit of its own).
+ */
 export function modelCostWeight(model: string): number {
+  if (model === SHORTLIST_COMBINATION) return 0
   return MODEL_COST_WEIGHTS[model] ?? 1
 }
 

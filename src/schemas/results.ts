@@ -128,6 +128,10 @@ export const ForecastItem = z
       rankBy: MetricName,
       holdoutPeriods: z.number().int().min(0),
       holdoutOrigins: z.number().int().min(0),
+      members: z
+        .array(z.object({ model: ModelName, family: ModelFamily }))
+        .optional()
+        .describe("Only for model 'shortlist-combination': the models averaged, the AICc pick first"),
     }),
     holdoutErrors: HoldoutErrors.nullable(),
     candidates: z

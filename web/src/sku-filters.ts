@@ -48,6 +48,7 @@ export const MODEL_OPTIONS = [
   'state-space-smoothing',
   'median-combination',
   'auto-arima',
+  'shortlist-combination',
 ] as const
 
 /** Warning codes of docs/warnings.md (the same test keeps them in step). */

@@ -14,6 +14,7 @@ import type {
   ForecastResult,
   MetricName,
   MetricSet,
+  ModelChoice,
   ModelFamily,
   ModelName,
   ModelParams,
@@ -42,6 +43,7 @@ export interface SelectionSummary {
   readonly holdoutOrigins: number
   readonly holdoutErrors: MetricSet | null
   readonly candidates: readonly Candidate[]
+  readonly members?: ModelChoice['members']
 }
 
 function residualSummary(values: readonly number[], fitted: readonly number[]): ForecastResult['residuals'] {
@@ -116,6 +118,7 @@ export function assembleResult(
       rankBy: selection.rankBy,
       holdoutPeriods: selection.holdoutPeriods,
       holdoutOrigins: selection.holdoutOrigins,
+      ...(selection.members ? { members: selection.members } : {}),
     },
     holdoutErrors: selection.holdoutErrors,
     fitted: prep.values.map((_, t) => {

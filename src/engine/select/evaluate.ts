@@ -18,6 +18,12 @@ export interface Evaluation {
   /** Parameters of the fit at the latest origin (starting point for the refit). */
   readonly params?: ModelParams
   /**
+   * The holdout's forecasts per origin (origin k trains on y[0 .. n - holdout - k)), and
+   * on demand each fit's own spread: what a combination of candidates is scored from
+   * (select/combine.ts).
+   */
+  readonly holdout?: { readonly forecasts: readonly (readonly number[])[]; readonly spreads: () => (readonly number[] | null)[] }
+  /**
    * The holdout's interval measures (msis, pinball), averaged over the origins, from each
    * fit's own spread. Computed on demand: the spread of a model without a variance formula
    * needs its in-sample residuals, which cost about as much as the fit.
@@ -100,13 +106,22 @@ export function evaluateHoldout(
       if (k === 0) params = fit.params
     }
     const metrics = averageMetrics(sets)
+    let spreadCache: (number[] | null)[] | undefined
+    const spreads = (): (number[] | null)[] => (spreadCache ??= kept.map((o) => ownSpread(o.fit, o.train, holdout)))
     const intervalScores = (): { msis: number | null; pinball: number | null } => {
-      const each = kept.map((o) => intervalMetrics(o.actual, o.forecast, ownSpread(o.fit, o.train, holdout), o.train, seasonLength))
+      const sds = spreads()
+      const each = kept.map((o, k) => intervalMetrics(o.actual, o.forecast, sds[k]!, o.train, seasonLength))
       const avg = (key: 'msis' | 'pinball'): number | null =>
         each.every((x) => x[key] !== null) ? each.reduce((a, x) => a + x[key]!, 0) / each.length : null
       return { msis: avg('msis'), pinball: avg('pinball') }
     }
-    return { entry: { model: spec.name, family: spec.family, status: 'scored', holdoutErrors: metrics }, metrics, params, intervalScores }
+    return {
+      entry: { model: spec.name, family: spec.family, status: 'scored', holdoutErrors: metrics },
+      metrics,
+      params,
+      intervalScores,
+      holdout: { forecasts: kept.map((o) => o.forecast), spreads },
+    }
   } catch (err) {
     return failure(spec, err)
   }

@@ -105,6 +105,7 @@ function isResultItem(v: unknown, sku: string): v is ResultItem {
     isText(c.rankBy) &&
     isNumber(c.holdoutPeriods) &&
     isNumber(c.holdoutOrigins) &&
+    (c.members === undefined || isListOf(c.members, (m) => isObject(m) && isText(m.model) && isText(m.family))) &&
     (v.holdoutErrors === null || isObject(v.holdoutErrors)) &&
     isListOf(v.candidates, isCandidate) &&
     isListOf(v.forecast, isPoint) &&

@@ -49,6 +49,17 @@ export function servedBytes(item: ResultItem): Buffer {
   value(c.holdoutPeriods)
   text(',"holdoutOrigins":')
   value(c.holdoutOrigins)
+  if (c.members !== undefined) {
+    text(',"members":[')
+    for (let i = 0; i < c.members.length; i++) {
+      text(i > 0 ? ',{"model":' : '{"model":')
+      value(c.members[i]!.model)
+      text(',"family":')
+      value(c.members[i]!.family)
+      text('}')
+    }
+    text(']')
+  }
   text('},"holdoutErrors":')
   errors(item.holdoutErrors)
   text(',"candidates":[')

@@ -21,7 +21,10 @@ function mase(actual: readonly number[], forecast: readonly number[], history: r
   return actual.reduce((s, y, i) => s + Math.abs(y - forecast[i]!), 0) / actual.length / scale
 }
 
-const isSeasonal = (r: ForecastResult): boolean => r.family === 'seasonal' || r.family === 'seasonal-trend'
+const seasonalFamily = (f: string): boolean => f === 'seasonal' || f === 'seasonal-trend'
+/** A seasonal model, or the shortlist's mean of seasonal models only (a mean with a flat member would damp the season). */
+const isSeasonal = (r: ForecastResult): boolean =>
+  r.modelChoice.members ? r.modelChoice.members.every((m) => seasonalFamily(m.family)) : seasonalFamily(r.family)
 
 describe('seasonal SKUs with 36-47 months of history', () => {
   const results = skus.map((s) => forecastSeries({ demand: s.history, frequency: 'month', horizon: 12 }))

@@ -34,7 +34,13 @@ function reference(sku: string, item: ResultItem): string {
     model: item.model,
     family: item.family,
     params: Object.fromEntries(Object.entries(item.params).map(([k, v]) => [k, typeof v === 'number' ? r7(v) : v.map(r7)])),
-    modelChoice: { method: c.method, rankBy: c.rankBy, holdoutPeriods: c.holdoutPeriods, holdoutOrigins: c.holdoutOrigins },
+    modelChoice: {
+      method: c.method,
+      rankBy: c.rankBy,
+      holdoutPeriods: c.holdoutPeriods,
+      holdoutOrigins: c.holdoutOrigins,
+      ...(c.members ? { members: c.members.map((m) => ({ model: m.model, family: m.family })) } : {}),
+    },
     holdoutErrors: item.holdoutErrors === null ? null : errors(item.holdoutErrors),
     candidates: item.candidates.map((e) => ({
       model: e.model,
@@ -105,12 +111,16 @@ const forecastItem = fc
       fc.constantFrom('levelWeight', 'trendWeight', 'seasonWeight', 'damping', 'level', 'seasonFactors', 'window'),
       fc.oneof(num, fc.array(num, { maxLength: 4 })),
     ),
-    modelChoice: fc.record({
-      method: fc.constantFrom('holdout', 'in-sample', 'none'),
-      rankBy: fc.constantFrom(...METRIC_NAMES),
-      holdoutPeriods: fc.nat(),
-      holdoutOrigins: fc.nat(),
-    }),
+    modelChoice: fc.record(
+      {
+        method: fc.constantFrom('holdout', 'in-sample', 'none'),
+        rankBy: fc.constantFrom(...METRIC_NAMES),
+        holdoutPeriods: fc.nat(),
+        holdoutOrigins: fc.nat(),
+        members: fc.array(fc.record({ model: modelName, family }), { minLength: 2, maxLength: 3 }),
+      },
+      { requiredKeys: ['method', 'rankBy', 'holdoutPeriods', 'holdoutOrigins'] },
+    ),
     holdoutErrors: fc.option(errorSet, { nil: null }),
     candidates: fc.array(candidate, { maxLength: 4 }),
     levels,

@@ -25,8 +25,15 @@ import type { Candidate, MetricName, MetricSet } from '../types.js'
 import type { Evaluation } from './evaluate.js'
 
 export interface CombinedHoldout {
+  /** The point measures (the candidate row's holdoutErrors). */
   readonly metrics: MetricSet
   readonly entry: Candidate
+  /**
+   * The point measures with MSIS and pinball added, on demand: the members' own spreads
+   * cost about a fit each for models without a variance formula, so they are worked out
+   * only for the chosen model, as for single models (evaluate.ts).
+   */
+  readonly withIntervalScores: () => MetricSet
 }
 
 /**
@@ -53,21 +60,24 @@ export function combinedHoldout(
     forecasts.push(f)
     sets.push(computeMetrics(values.slice(end, end + holdout), f, values.slice(0, end), seasonLength))
   }
-  const point = averageMetrics(sets)
-  const score = point[metric]
+  const metrics = averageMetrics(sets)
+  const score = metrics[metric]
   if (score === null || !Number.isFinite(score)) return null
-  const spreads = members.map((e) => e.holdout!.spreads())
-  const each = forecasts.map((f, k) => {
-    const sds = spreads.map((s) => s[k])
-    const sd = sds.every((s): s is readonly number[] => s !== null) ? meanForecast(sds) : null
-    const end = n - holdout - k
-    return intervalMetrics(values.slice(end, end + holdout), f, sd, values.slice(0, end), seasonLength)
-  })
-  const avg = (key: 'msis' | 'pinball'): number | null =>
-    each.every((x) => x[key] !== null) ? each.reduce((a, x) => a + x[key]!, 0) / each.length : null
-  const metrics: MetricSet = { ...point, msis: avg('msis'), pinball: avg('pinball') }
+  const withIntervalScores = (): MetricSet => {
+    const spreads = members.map((e) => e.holdout!.spreads())
+    const each = forecasts.map((f, k) => {
+      const sds = spreads.map((s) => s[k])
+      const sd = sds.every((s): s is readonly number[] => s !== null) ? meanForecast(sds) : null
+      const end = n - holdout - k
+      return intervalMetrics(values.slice(end, end + holdout), f, sd, values.slice(0, end), seasonLength)
+    })
+    const avg = (key: 'msis' | 'pinball'): number | null =>
+      each.every((x) => x[key] !== null) ? each.reduce((a, x) => a + x[key]!, 0) / each.length : null
+    return { ...metrics, msis: avg('msis'), pinball: avg('pinball') }
+  }
   return {
     metrics,
     entry: { model: SHORTLIST_COMBINATION, family: COMBINATION_FAMILY, status: 'scored', holdoutErrors: metrics, score },
+    withIntervalScores,
   }
 }

@@ -317,11 +317,14 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
         : null
     if (pooled && combined) {
       winner = pooled
-      holdoutErrors = combined.metrics
-      candidates = [combined.entry, ...candidates]
+      holdoutErrors = combined.withIntervalScores()
+      candidates = [{ ...combined.entry, holdoutErrors }, ...candidates]
       members = pool.map((r) => ({ model: specs[r.index]!.name, family: specs[r.index]!.family }))
     } else {
-      if (combined) candidates = [...candidates.slice(0, shortlist.length), combined.entry, ...candidates.slice(shortlist.length)]
+      if (combined) {
+        const row = SEARCH[prep.modelSearch].intervalScoresForAll ? { ...combined.entry, holdoutErrors: combined.withIntervalScores() } : combined.entry
+        candidates = [...candidates.slice(0, shortlist.length), row, ...candidates.slice(shortlist.length)]
+      }
       const calibration = calibrationErrors(spec, prep.values, m, prep.horizon, winner.params, budget)
       winner = { ...winner, calibration, floor: needsFloor(n, spec.family, m) ? naiveSpread(prep.values, prep.horizon) : undefined }
     }

@@ -25,7 +25,7 @@ import { checkedForecast, evaluateHoldout, evaluateInSample, skipped, withInterv
 import { MIN_TRAINING, planHoldout } from './holdout.js'
 import { rankEvaluations, shortlistFirst } from './rank.js'
 import { seasonalityVerdict, type SeasonalityVerdict } from './seasonality.js'
-import { orderByCriterion, parameterCount, SHORTLIST_SIZE } from './shortlist.js'
+import { isSeasonalFit, orderByCriterion, parameterCount, SHORTLIST_SIZE } from './shortlist.js'
 import { calibrationErrors, type CalibrationBudget } from './calibrate.js'
 import { combinedHoldout } from './combine.js'
 import { combineFits, COMBINATION_FAMILY, SHORTLIST_COMBINATION } from '../combination/shortlist-combination.js'
@@ -307,7 +307,7 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
     winner = chosen.winner
     // The shortlist's mean, scored on the same holdout, replaces the pick when no worse there (select/combine.ts).
     const combinable = models.combineShortlist === true && method === 'holdout' && !intermittent && shortlist.length >= 2 && (prep.models === undefined || prep.models.includes(SHORTLIST_COMBINATION))
-    const seasonalFit = (r: (typeof shortlist)[number]): boolean => specs[r.index]!.seasonal || 'seasonFactors' in r.fit.params || 'seasonOffsets' in r.fit.params
+    const seasonalFit = (r: (typeof shortlist)[number]): boolean => isSeasonalFit(specs[r.index]!, r.fit.params)
     const pool = shortlist.filter((r) => seasonalFit(r) === seasonalFit(chosen))
     const combined = combinable && pool.length >= 2 ? combinedHoldout(pool.map((r) => evaluations[r.index]!), prep.values, m, plan.holdout, ranking.metric) : null
     const pickScore = evaluations[chosen.index]!.metrics?.[ranking.metric]

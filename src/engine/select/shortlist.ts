@@ -44,8 +44,12 @@ export interface ShortlistFit {
  * (Theta after de-seasonalising), since specs count those states as one.
  */
 export function parameterCount(spec: ModelSpec, params: ModelParams, seasonLength: number): number {
-  const seasonal = spec.seasonal || 'seasonFactors' in params || 'seasonOffsets' in params
-  return spec.complexity + (seasonal && seasonLength > 1 ? seasonLength - 1 : 0)
+  return spec.complexity + (isSeasonalFit(spec, params) && seasonLength > 1 ? seasonLength - 1 : 0)
+}
+
+/** A seasonal model, or a fit that reports seasonal factors or terms (Theta after de-seasonalising). */
+export function isSeasonalFit(spec: ModelSpec, params: ModelParams): boolean {
+  return spec.seasonal || 'seasonFactors' in params || 'seasonOffsets' in params
 }
 
 /** AICc of each fit over the periods where all have fitted values; null when undefined for any. */

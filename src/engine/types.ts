@@ -53,6 +53,7 @@ export const MODEL_NAMES = [
   'median-combination',
   'auto-arima',
   'shortlist-combination',
+  'last-value-drift',
 ] as const
 export type ModelName = (typeof MODEL_NAMES)[number]
 
@@ -105,6 +106,11 @@ export interface ModelSpec {
   readonly seasonal: boolean
   /** Needs strictly positive data (multiplicative seasonality). */
   readonly requiresPositive: boolean
+  /**
+   * In the default pool only for frequencies without a season (season length 1); a request
+   * that lists the model in `models` gets it at any season length. Absent: always.
+   */
+  readonly defaultOnlyWithoutSeason?: boolean
   /** Minimum training length for this season length. */
   minLength(seasonLength: number): number
   /** @throws EngineInputError on input it cannot fit (callers skip the model with the reason). */

@@ -25,6 +25,7 @@ export const EMPTY_QUERY: SkuQuery = { prefix: '', tag: '', model: '', warning: 
  */
 export const MODEL_OPTIONS = [
   'last-value',
+  'last-value-drift',
   'last-season',
   'moving-average',
   'level-smoothing',

@@ -42,7 +42,8 @@ export interface CandidateSet {
 
 /**
  * The requested models; by default every registered model except the intermittent-demand
- * ones, or, when demand is intermittent, only those.
+ * ones, or, when demand is intermittent, only those, and without the models marked
+ * `defaultOnlyWithoutSeason` when the season length is above 1.
  *
  * Why only those: the demand categories of Syntetos, Boylan & Croston (2005) exist to pick
  * the method by category; and on intermittent demand the median period is often zero, so
@@ -55,11 +56,13 @@ export function candidateModels(
   registry: readonly ModelSpec[],
   requested: readonly ModelName[] | undefined,
   intermittent: boolean,
+  seasonLength: number,
 ): CandidateSet {
   if (requested === undefined) {
     const isIntermittent = (s: ModelSpec): boolean => INTERMITTENT_MODELS.includes(s.name)
     const specialised = registry.filter(isIntermittent)
-    const specs = intermittent && specialised.length > 0 ? specialised : registry.filter((s) => !isIntermittent(s))
+    const pool = registry.filter((s) => !(s.defaultOnlyWithoutSeason === true && seasonLength > 1))
+    const specs = intermittent && specialised.length > 0 ? specialised : pool.filter((s) => !isIntermittent(s))
     return { specs, unavailable: [] }
   }
   const specs = registry.filter((s) => requested.includes(s.name))

@@ -212,7 +212,7 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
         ? [...models.registry, ...models.thoroughExtra]
         : models.registry
   const listed = prep.models?.filter((name) => name !== SHORTLIST_COMBINATION)
-  const { specs, unavailable } = candidateModels(registry, listed, intermittent)
+  const { specs, unavailable } = candidateModels(registry, listed, intermittent, m)
   if (unavailable.length > 0) {
     warnings.push({ code: 'model-unavailable', message: `not available in this build: ${unavailable.join(', ')}` })
   }

@@ -18,7 +18,7 @@ const value = fc.oneof(
 
 describe('every trend, seasonal and intermittent model', () => {
   it('has a unique name, a non-negative complexity and a sensible minimum length', () => {
-    expect(new Set(specs.map((s) => s.name)).size).toBe(10)
+    expect(new Set(specs.map((s) => s.name)).size).toBe(11)
     for (const s of specs) {
       expect(s.complexity).toBeGreaterThanOrEqual(0)
       expect(s.minLength(4)).toBeGreaterThanOrEqual(1)

@@ -9,7 +9,7 @@ describe('last-value', () => {
   })
 
   it('is listed in trendModels with complexity 0', () => {
-    expect(trendModels.map((s) => s.name)).toEqual(['last-value', 'moving-average', 'linear-trend', 'theta'])
+    expect(trendModels.map((s) => s.name)).toEqual(['last-value', 'moving-average', 'linear-trend', 'theta', 'last-value-drift'])
     expect(naive.complexity).toBe(0)
   })
 

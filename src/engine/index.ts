@@ -8,6 +8,7 @@ export { computeMetrics, maseScale } from './metrics.js'
 export { normalQuantile } from './intervals.js'
 export { MODEL_REGISTRY, findModel, type DemandClassification } from './models.js'
 export { THOROUGH_EXTRA, LISTABLE_MODELS, SEARCH } from './select/pools.js'
+export { defaultHoldoutOrigins } from './select/holdout.js'
 export { SHORTLIST_COMBINATION } from './combination/shortlist-combination.js'
 export {
   computeReplenishment,

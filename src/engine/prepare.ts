@@ -12,6 +12,7 @@
  */
 import { EngineInputError } from './errors.js'
 import { isConstant } from './numeric.js'
+import { defaultHoldoutOrigins } from './select/holdout.js'
 import { SEARCH } from './select/pools.js'
 import { periodLabels } from './periods.js'
 import {
@@ -232,8 +233,11 @@ export function prepareSeries(input: SeriesInput): PreparedSeries {
     quantiles: [...new Set(input.quantiles ?? [])].sort((a, b) => a - b),
     modelSearch: input.modelSearch ?? 'fast',
     allowNegativeDemand,
-    // A search's origins are a minimum: the service's settings always carry holdoutOrigins (default 1).
-    holdoutOrigins: Math.max(input.holdoutOrigins ?? 1, SEARCH[input.modelSearch ?? 'fast'].holdoutOrigins),
+    // A search's origins are a minimum; unset, the horizon's count without a season, else 1 (holdout.ts).
+    holdoutOrigins: Math.max(
+      input.holdoutOrigins ?? defaultHoldoutOrigins(seasonLength, input.horizon, ENGINE_LIMITS.maxOrigins),
+      SEARCH[input.modelSearch ?? 'fast'].holdoutOrigins,
+    ),
     requestedOrigins: input.holdoutOrigins ?? 1,
     offset: trimmed,
     flat,

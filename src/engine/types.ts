@@ -136,7 +136,7 @@ export interface SeriesInput {
   readonly missingPeriods?: 'zero' | 'interpolate'
   readonly allowNegativeDemand?: boolean
   readonly keepLeadingZeros?: boolean
-  /** Rolling forecast origins used in selection. Default 1. */
+  /** Rolling forecast origins used in selection. Default: the horizon's count (at most 12) for a season length of 1, else 1. */
   readonly holdoutOrigins?: number
   /** Quantiles in (0, 1) to report per forecast point, e.g. [0.5, 0.9, 0.95]; at most 20. */
   readonly quantiles?: readonly number[]

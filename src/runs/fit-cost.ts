@@ -1,5 +1,6 @@
-import { DEFAULT_SEASON_LENGTH, MODEL_REGISTRY, SEARCH, SHORTLIST_COMBINATION, THOROUGH_EXTRA } from '../engine/index.js'
+import { DEFAULT_SEASON_LENGTH, ENGINE_LIMITS, MODEL_REGISTRY, SEARCH, SHORTLIST_COMBINATION, THOROUGH_EXTRA, defaultHoldoutOrigins } from '../engine/index.js'
 import type { RunSettings, SeriesItem } from '../schemas/run.js'
+import { convertedPeriods } from './series-input.js'
 
 /**
  * What one fit of a model costs, in fits of an average model of the default pool
@@ -42,7 +43,8 @@ export function seriesFitCost(settings: RunSettings, series: SeriesItem): number
   const frequency = series.frequency ?? settings.frequency
   const seasonLength = series.seasonLength ?? settings.seasonLength ?? DEFAULT_SEASON_LENGTH[frequency]
   const search = SEARCH[settings.modelSearch ?? 'fast']
-  const origins = Math.max(settings.holdoutOrigins, search.holdoutOrigins)
+  const horizon = convertedPeriods(settings, frequency).horizon
+  const origins = Math.max(settings.holdoutOrigins ?? defaultHoldoutOrigins(seasonLength, horizon, ENGINE_LIMITS.maxOrigins), search.holdoutOrigins)
   // Listed models are fitted whatever the search; unlisted, the search's pool.
   const candidates =
     settings.models !== undefined

@@ -37,8 +37,8 @@ export function toSeriesInput(settings: RunSettings, item: SeriesItem): SeriesIn
     missingPeriods: settings.missingPeriods,
     allowNegativeDemand: settings.allowNegativeDemand,
     keepLeadingZeros: settings.keepLeadingZeros,
-    holdoutOrigins: settings.holdoutOrigins,
   }
+  if (settings.holdoutOrigins !== undefined) input.holdoutOrigins = settings.holdoutOrigins
   // A run-level seasonLength counts periods of the run's frequency: other frequencies keep their default.
   const frequency = item.frequency ?? settings.frequency
   const seasonLength = item.seasonLength ?? (frequency === settings.frequency ? settings.seasonLength : undefined)

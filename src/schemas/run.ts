@@ -175,7 +175,16 @@ export const RunSettings = z.strictObject({
     .max(MAX_HORIZON)
     .optional()
     .describe("Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded)"),
-  holdoutOrigins: z.number().int().min(1).max(12).default(1).describe('Rolling forecast origins the holdout errors are averaged over'),
+  holdoutOrigins: z
+    .number()
+    .int()
+    .min(1)
+    .max(12)
+    .optional()
+    .describe(
+      'Rolling forecast origins the holdout errors are averaged over. Default: for a season length of 1 (yearly) the horizon, at most 12, ' +
+        'each origin one period earlier with a one-period holdout; otherwise 1',
+    ),
   rankBy: z.enum(METRIC_NAMES).default('mase').describe('The holdout error that ranks the candidates'),
   models: z.array(z.enum(MODEL_NAMES)).min(1).optional().describe('Candidates; default all the history allows'),
   intervalLevels: z

@@ -813,11 +813,8 @@ export interface components {
             seasonLength?: number;
             /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
             holdoutPeriods?: number;
-            /**
-             * @description Rolling forecast origins the holdout errors are averaged over
-             * @default 1
-             */
-            holdoutOrigins: number;
+            /** @description Rolling forecast origins the holdout errors are averaged over. Default: for a season length of 1 (yearly) the horizon, at most 12, each origin one period earlier with a one-period holdout; otherwise 1 */
+            holdoutOrigins?: number;
             /**
              * @description The holdout error that ranks the candidates
              * @default mase
@@ -1335,11 +1332,8 @@ export interface components {
                 seasonLength?: number;
                 /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
                 holdoutPeriods?: number;
-                /**
-                 * @description Rolling forecast origins the holdout errors are averaged over
-                 * @default 1
-                 */
-                holdoutOrigins: number;
+                /** @description Rolling forecast origins the holdout errors are averaged over. Default: for a season length of 1 (yearly) the horizon, at most 12, each origin one period earlier with a one-period holdout; otherwise 1 */
+                holdoutOrigins?: number;
                 /**
                  * @description The holdout error that ranks the candidates
                  * @default mase
@@ -1917,11 +1911,8 @@ export interface components {
             seasonLength?: number;
             /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
             holdoutPeriods?: number;
-            /**
-             * @description Rolling forecast origins the holdout errors are averaged over
-             * @default 1
-             */
-            holdoutOrigins: number;
+            /** @description Rolling forecast origins the holdout errors are averaged over. Default: for a season length of 1 (yearly) the horizon, at most 12, each origin one period earlier with a one-period holdout; otherwise 1 */
+            holdoutOrigins?: number;
             /**
              * @description The holdout error that ranks the candidates
              * @default mase
@@ -2337,10 +2328,7 @@ export interface operations {
                     seasonLength?: number;
                     /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
                     holdoutPeriods?: number;
-                    /**
-                     * @description Rolling forecast origins the holdout errors are averaged over
-                     * @default 1
-                     */
+                    /** @description Rolling forecast origins the holdout errors are averaged over. Default: for a season length of 1 (yearly) the horizon, at most 12, each origin one period earlier with a one-period holdout; otherwise 1 */
                     holdoutOrigins?: number;
                     /**
                      * @description The holdout error that ranks the candidates
@@ -4287,10 +4275,7 @@ export interface operations {
                     seasonLength?: number;
                     /** @description Periods held back to rank the candidates, of the run's frequency (converted like horizon, rounded) */
                     holdoutPeriods?: number;
-                    /**
-                     * @description Rolling forecast origins the holdout errors are averaged over
-                     * @default 1
-                     */
+                    /** @description Rolling forecast origins the holdout errors are averaged over. Default: for a season length of 1 (yearly) the horizon, at most 12, each origin one period earlier with a one-period holdout; otherwise 1 */
                     holdoutOrigins?: number;
                     /**
                      * @description The holdout error that ranks the candidates

@@ -9,6 +9,9 @@ describe('fit cost: points x season length x holdout origins x candidates', () =
   it('uses the frequency default season and the default pool of models when none are listed', () => {
     // Monthly: season 12 by default; one origin by default.
     expect(seriesFitCost(settings(), { sku: 'A', demand: [1, 2, 3, 4] })).toBe(4 * 12 * 1 * MODEL_REGISTRY.length)
+    // Yearly (no season): as many origins as the horizon has periods (engine/select/holdout.ts).
+    expect(seriesFitCost(settings({ frequency: 'year' }), { sku: 'A', demand: [1, 2, 3, 4, 5] })).toBe(5 * 1 * 3 * MODEL_REGISTRY.length)
+    expect(seriesFitCost(settings({ frequency: 'year', holdoutOrigins: 1 }), { sku: 'A', demand: [1, 2, 3, 4, 5] })).toBe(5 * MODEL_REGISTRY.length)
   })
 
   it('takes the series settings over the run settings', () => {

@@ -17,8 +17,9 @@ describe('toSeriesInput', () => {
       missingPeriods: 'zero',
       allowNegativeDemand: false,
       keepLeadingZeros: false,
-      holdoutOrigins: 1,
     })
+    // Unset, the engine decides the origins per series (select/holdout.ts, defaultHoldoutOrigins); set, they pass through.
+    expect(toSeriesInput(RunSettings.parse({ horizon: 6, frequency: 'year', holdoutOrigins: 2 }), { sku: 'A', demand: [1] }).holdoutOrigins).toBe(2)
   })
 
   it('lets a series override frequency, firstPeriod and season length', () => {

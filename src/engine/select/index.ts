@@ -1,4 +1,4 @@
 /** Model selection and the forecastSeries entry point. */
 export { forecastSeries, forecastSeriesWith, type EngineModels } from './forecast-series.js'
-export { defaultHoldout, planHoldout, type HoldoutPlan } from './holdout.js'
+export { defaultHoldout, defaultHoldoutOrigins, planHoldout, type HoldoutPlan } from './holdout.js'
 export { rankEvaluations, TIE_TOLERANCE } from './rank.js'

@@ -20,7 +20,7 @@ const engine = (combineShortlist: boolean, ...registry: ModelSpec[]): EngineMode
 
 // A level near 100 whose last year sits near 108 (invented for the mechanics).
 const history = [100, 96, 104, 99, 101, 97, 103, 100, 98, 102, 108, 107, 109, 108]
-const base: SeriesInput = { demand: history, frequency: 'quarter', horizon: 4, holdoutPeriods: 4, seasonLength: 1 }
+const base: SeriesInput = { demand: history, frequency: 'quarter', horizon: 4, holdoutPeriods: 4, seasonLength: 1, holdoutOrigins: 1 }
 
 /** MASE of a constant forecast c on the last 4 points, scaled by the training part's one-step naive MAE (m = 1). */
 function maseOfConstant(c: number): number {

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest'
-import { defaultHoldout, planHoldout } from '../../../src/engine/select/holdout.js'
+import { forecastSeries } from '../../../src/engine/index.js'
+import { defaultHoldout, defaultHoldoutOrigins, planHoldout } from '../../../src/engine/select/holdout.js'
 
 describe('defaultHoldout (our rule: min(horizon, m), leaving the largest trainable requirement)', () => {
   it('is min(horizon, seasonLength) when the history is long', () => {
@@ -30,5 +31,35 @@ describe('planHoldout', () => {
   it('reduces origins first, then the holdout, and says so', () => {
     expect(planHoldout(10, 3, 1, 6, 4, [2])).toEqual({ holdout: 6, origins: 3, reduced: true })
     expect(planHoldout(5, 3, 1, 6, 1, [2])).toEqual({ holdout: 3, origins: 1, reduced: true })
+  })
+})
+
+describe('defaultHoldoutOrigins (our rule, decided on the M3 training split: bench/RESULTS.md)', () => {
+  it('is the horizon, at most the cap, without a season, and 1 with one', () => {
+    expect(defaultHoldoutOrigins(1, 6, 12)).toBe(6)
+    expect(defaultHoldoutOrigins(1, 20, 12)).toBe(12)
+    expect(defaultHoldoutOrigins(1, 1, 12)).toBe(1)
+    expect(defaultHoldoutOrigins(4, 8, 12)).toBe(1)
+    expect(defaultHoldoutOrigins(12, 18, 12)).toBe(1)
+  })
+
+  it('applies when a request sets no origins; a set count stands; a short history gets fewer, without a warning', () => {
+    // Invented yearly demand of a distributor's heating line.
+    const demand = [120, 131, 128, 140, 152, 149, 163, 170, 168, 181, 190, 188, 201, 210]
+    const chosen = (extra: object) => {
+      const r = forecastSeries({ demand, frequency: 'year', horizon: 4, ...extra })
+      if ('failure' in r) throw new Error('expected a forecast')
+      return r
+    }
+    const byDefault = chosen({})
+    expect(byDefault.modelChoice).toMatchObject({ method: 'holdout', holdoutPeriods: 1, holdoutOrigins: 4 })
+    expect(chosen({ holdoutOrigins: 1 }).modelChoice.holdoutOrigins).toBe(1)
+    const short = forecastSeries({ demand: demand.slice(0, 5), frequency: 'year', horizon: 4 })
+    if ('failure' in short) throw new Error('expected a forecast')
+    expect(short.modelChoice.holdoutOrigins).toBeLessThan(4)
+    expect(short.warnings.map((w) => w.code)).not.toContain('holdout-reduced')
+    const monthly = forecastSeries({ demand: Array.from({ length: 36 }, (_, t) => 50 + (t % 12) * 4), frequency: 'month', horizon: 6 })
+    if ('failure' in monthly) throw new Error('expected a forecast')
+    expect(monthly.modelChoice.holdoutOrigins).toBe(1)
   })
 })

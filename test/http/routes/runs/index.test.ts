@@ -57,7 +57,6 @@ describe('/v1/runs', () => {
       missingPeriods: 'zero',
       allowNegativeDemand: false,
       keepLeadingZeros: false,
-      holdoutOrigins: 1,
     })
     const sent = gateway.submitted.at(-1)!
     expect(sent.tenant).toBe('garden')

@@ -2,10 +2,8 @@
  * Writes src/storage/items/item-structure-dictionary.ts: the preset DEFLATE
  * dictionary of stored result items (item-codec.ts). Run it when the served
  * JSON of a result item changes shape (field names, model ids, warning
- * texts). Items already in Redis can only be read with the dictionary they
- * were written with, so first keep the current one for reading: copy it to
- * item-structure-dictionary-<its format>.ts, list it in item-codec.ts's
- * FORMAT_DICTIONARIES and raise ITEM_FORMAT.
+ * texts); items already in Redis can only be read with the dictionary they
+ * were written with, so a new one makes them unreadable.
  *
  * Every item compressed pays for hashing the dictionary into DEFLATE's tables,
  * and numbers are never repeated from one item to the next, so the dictionary
@@ -68,8 +66,7 @@ writeFileSync(
  * (its size and what it saves: bench/RESULTS.md, "Stored result items").
  * Items in Redis can only be read with the bytes they were written with:
  * regenerate it with the script (never edit it) when the served structure
- * changes, after keeping this one for reading under its format number
- * (item-codec.ts, ITEM_FORMAT).
+ * changes, knowing that items stored before become unreadable.
  */
 export const STRUCTURE_DICTIONARY: Buffer = Buffer.from(
   [

@@ -2,7 +2,6 @@ import { constants, deflateRawSync, inflateRawSync } from 'node:zlib'
 import { FREQUENCIES } from '../../engine/index.js'
 import { StoredValueError } from '../decode.js'
 import { STRUCTURE_DICTIONARY } from './item-structure-dictionary.js'
-import { STRUCTURE_DICTIONARY_FORMAT_1 } from './item-structure-dictionary-1.js'
 import { servedBytes, withoutCandidates } from './item-served.js'
 import type { ResultItem } from '../../runs/contract.js'
 
@@ -10,18 +9,10 @@ export { round } from './item-common.js'
 export { roundedJson, servedBody, withoutCandidates } from './item-served.js'
 
 /**
- * The bytes kept in Redis per result item: a format byte, then the item's
- * served JSON without its sku (item-served.ts) as raw DEFLATE (RFC 1951) with
- * the preset dictionary STRUCTURE_DICTIONARY (the served structure without
- * numbers), through zlib's public one-shot calls.
- *
- * The format byte is (format << 3) | 7. Its low three bits would be a first
- * block with BFINAL set and BTYPE 11, which RFC 1951 (3.2.3) reserves, so no
- * DEFLATE stream starts with it: the items of format 1, written before the
- * byte existed (a bare stream with the dictionary of contract 1.0), are told
- * apart by their first byte and stay readable until they expire with result
- * retention. A new dictionary is a new format: FORMAT_DICTIONARIES keeps every
- * dictionary an item in Redis may have been written with.
+ * The bytes kept in Redis per result item: the item's served JSON without its
+ * sku (item-served.ts), raw DEFLATE (RFC 1951) with the preset dictionary
+ * STRUCTURE_DICTIONARY (the served structure without numbers), through
+ * zlib's public one-shot calls.
  *
  * Level 5 and Z_FILTERED: items are short and mostly digits, and these
  * settings gave the smallest items for their time (bench/RESULTS.md, "Stored
@@ -30,16 +21,7 @@ export { roundedJson, servedBody, withoutCandidates } from './item-served.js'
  */
 export const ITEM_DEFLATE_OPTIONS = { dictionary: STRUCTURE_DICTIONARY, level: 5, strategy: constants.Z_FILTERED } as const
 
-/** The format storeItem writes: 2 since 2026-12-05 (dictionary regenerated with the shortlist's mean). */
-export const ITEM_FORMAT = 2
-
-/** The dictionary of each format with a format byte that an item in Redis may have (format 1 has none). */
-const FORMAT_DICTIONARIES: ReadonlyMap<number, Buffer> = new Map([[ITEM_FORMAT, STRUCTURE_DICTIONARY]])
-
-const FORMAT_BYTE = (ITEM_FORMAT << 3) | 7
-
-/** True when `first`, the first byte of a stored item, is a format byte rather than the start of a DEFLATE stream. */
-export const isFormatByte = (first: number): boolean => (first & 7) === 7
+const INFLATE_OPTIONS = { dictionary: STRUCTURE_DICTIONARY } as const
 
 export function storeItem(item: ResultItem): Buffer {
   return storeServed(servedBytes(item))
@@ -47,23 +29,12 @@ export function storeItem(item: ResultItem): Buffer {
 
 /** The stored bytes of an item's served JSON (servedBytes(item)): storeItem in two steps. */
 export function storeServed(served: Buffer): Buffer {
-  const stream = deflateRawSync(served, ITEM_DEFLATE_OPTIONS)
-  const out = Buffer.allocUnsafe(stream.length + 1)
-  out[0] = FORMAT_BYTE
-  stream.copy(out, 1)
-  return out
+  return deflateRawSync(served, ITEM_DEFLATE_OPTIONS)
 }
 
-/**
- * The served JSON of a stored item without its sku: `{"model":...}` or `{"error":...}`.
- * @throws StoredValueError for a format byte of a format this code does not know.
- */
+/** The served JSON of a stored item without its sku: `{"model":...}` or `{"error":...}`. */
 export function servedOf(stored: Buffer): Buffer {
-  if (stored.length === 0 || !isFormatByte(stored[0]!)) return inflateRawSync(stored, { dictionary: STRUCTURE_DICTIONARY_FORMAT_1 })
-  const format = stored[0]! >> 3
-  const dictionary = FORMAT_DICTIONARIES.get(format)
-  if (dictionary === undefined) throw new StoredValueError(`stored result item of unknown format ${format}`)
-  return inflateRawSync(stored.subarray(1), { dictionary })
+  return inflateRawSync(stored, INFLATE_OPTIONS)
 }
 
 /** Which fields a served item carries: all, or all but `candidates` (`?view=compact`). */

@@ -5,8 +5,7 @@
  * (its size and what it saves: bench/RESULTS.md, "Stored result items").
  * Items in Redis can only be read with the bytes they were written with:
  * regenerate it with the script (never edit it) when the served structure
- * changes, after keeping this one for reading under its format number
- * (item-codec.ts, ITEM_FORMAT).
+ * changes, knowing that items stored before become unreadable.
  */
 export const STRUCTURE_DICTIONARY: Buffer = Buffer.from(
   [

@@ -1,10 +1,6 @@
-import { readFileSync } from 'node:fs'
-import { deflateRawSync } from 'node:zlib'
-import fc from 'fast-check'
 import { describe, expect, it } from 'vitest'
 import { forecastSeries } from '../../../src/engine/index.js'
-import { ITEM_DEFLATE_OPTIONS, isFormatByte, loadItem, servedBody, servedItemJson, servedOf, storeItem } from '../../../src/storage/items/item-codec.js'
-import { StoredValueError } from '../../../src/storage/decode.js'
+import { loadItem, servedBody, storeItem } from '../../../src/storage/items/item-codec.js'
 import { ForecastItem } from '../../../src/schemas/results.js'
 import type { ResultItem } from '../../../src/runs/contract.js'
 import { syntheticSeries } from '../../queue/fixtures.js'
@@ -72,52 +68,5 @@ describe('stored result items', () => {
 
   it('keep the sku out of the stored bytes (it is the hash field)', () => {
     for (const item of engineItems()) expect(storeItem(item).includes(item.sku)).toBe(false)
-  })
-})
-
-interface StoredFixture {
-  readonly items: readonly { readonly sku: string; readonly stored: string; readonly served: string }[]
-}
-
-describe('stored item formats', () => {
-  it('start with the byte of the current format', () => {
-    for (const item of engineItems()) {
-      const stored = storeItem(item)
-      expect(isFormatByte(stored[0]!)).toBe(true)
-      expect(stored[0]! >> 3).toBe(2)
-    }
-  })
-
-  it('read items of format 1 as the code before the format byte stored and served them', () => {
-    // Written by commit 012fbdb (the fixture names it); a bare DEFLATE stream with the contract 1.0 dictionary.
-    const fixture = JSON.parse(readFileSync(new URL('../../fixtures/stored-items/format-1.json', import.meta.url), 'utf8')) as StoredFixture
-    expect(fixture.items.length).toBeGreaterThanOrEqual(3)
-    for (const { sku, stored, served } of fixture.items) {
-      const bytes = Buffer.from(stored, 'base64')
-      expect(isFormatByte(bytes[0]!)).toBe(false)
-      expect(servedItemJson(sku, bytes).toString('utf8')).toBe(served)
-      const item = loadItem(sku, bytes)
-      // Written again, the item is format 2 and serves the same JSON.
-      expect(servedItemJson(sku, storeItem(item)).toString('utf8')).toBe(served)
-    }
-  })
-
-  it('never take the first byte of a DEFLATE stream for a format byte (RFC 1951 3.2.3 reserves BTYPE 11)', () => {
-    fc.assert(
-      fc.property(fc.uint8Array({ maxLength: 3000 }), fc.integer({ min: 0, max: 9 }), (bytes, level) => {
-        expect(isFormatByte(deflateRawSync(bytes, { ...ITEM_DEFLATE_OPTIONS, level })[0]!)).toBe(false)
-        expect(isFormatByte(deflateRawSync(bytes)[0]!)).toBe(false)
-      }),
-      { numRuns: 300 },
-    )
-  })
-
-  it('refuse a format byte of a format the code does not know, naming it', () => {
-    const stored = storeItem(engineItems()[0]!)
-    const unknown = Buffer.from(stored)
-    unknown[0] = (9 << 3) | 7
-    expect(() => servedOf(unknown)).toThrow(StoredValueError)
-    expect(() => servedOf(unknown)).toThrow(/format 9/)
-    expect(() => loadItem('SKU-00000', unknown)).toThrow(StoredValueError)
   })
 })

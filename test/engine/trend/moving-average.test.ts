@@ -24,6 +24,14 @@ describe('moving-average', () => {
     expect(fit.params.window).toBe(3)
     expect(fit.forecast(2)).toEqual([10, 10])
     expect(fit.fitted.slice(0, 4)).toEqual([NaN, NaN, NaN, 10])
+    // Variance: the one-step errors 0, 4, -4 (five times each, t = 3..17) have mean square 32/3,
+    // the same at every step (mean method, Hyndman and Athanasopoulos, FPP 3rd ed. 5.5, from memory).
+    expect(fit.forecastVariance!(3).map((v) => +v.toFixed(12))).toEqual(new Array(3).fill(+(32 / 3).toFixed(12)))
+  })
+
+  it('has no variance with fewer than two one-step errors', () => {
+    expect(fitMovingAverage([1, 2, 3, 4], 3).forecastVariance).toBeUndefined()
+    expect(fitMovingAverage([1, 2, 3, 4, 6], 3).forecastVariance!(2)).toEqual([6.5, 6.5]) // errors 4 - 2 and 6 - 3: (4 + 9) / 2
   })
 
   it('follows a level shift with the shortest window', () => {

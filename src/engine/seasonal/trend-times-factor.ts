@@ -7,6 +7,12 @@
  *                       R `stats::decompose(type = "multiplicative")` (`decomposeClassical`).
  * Fitted values are the in-sample line times the factor. Needs two full seasons
  * (common practice) and data where no factor is zero.
+ *
+ * Forecast-error variance: the OLS prediction variance of the line on the de-seasonalised
+ * scale, sigma^2 (1 + 1/n + (t - tMean)^2 / Sxx) with sigma^2 = SSE / (n - 2) (as for
+ * 'linear-trend', trend/linear-trend.ts), times the square of the step's factor, the factors
+ * taken as known. Without it the engine's fallback sigma_1 sqrt(h) applied (bench/RESULTS.md,
+ * "Variances of the season-averages models").
  */
 import type { FitContext, ModelFit, ModelName, ModelSpec } from '../types.js'
 import { checkFinite, checkHorizon, checkSeasonLength, checkSeries } from '../trend/guards.js'
@@ -23,11 +29,11 @@ export function fitTrendTimesFactor(
   const m = factors.length
   const adjusted = new Array<number>(n)
   for (let t = 0; t < n; t++) adjusted[t] = series[t]! / factors[t % m]!
-  const { slope, intercept } = fitTrendOnIndex(adjusted)
+  const { slope, intercept, xMean, sxx, sse } = fitTrendOnIndex(adjusted)
   const fitted = new Array<number>(n)
   for (let t = 0; t < n; t++) fitted[t] = (intercept + slope * (t + 1)) * factors[t % m]!
   checkFinite(fitted, model)
-  return {
+  const fit: ModelFit = {
     model,
     params: { slope, intercept, seasonFactors: factors.slice() },
     fitted,
@@ -35,6 +41,22 @@ export function fitTrendTimesFactor(
       checkHorizon(horizon)
       const out = new Array<number>(horizon)
       for (let h = 1; h <= horizon; h++) out[h - 1] = (intercept + slope * (n + h)) * factors[(n + h - 1) % m]!
+      checkFinite(out, model)
+      return out
+    },
+  }
+  if (n < 3) return fit
+  const sigma2 = sse / (n - 2)
+  checkFinite([sigma2], model)
+  return {
+    ...fit,
+    forecastVariance(horizon: number): number[] {
+      checkHorizon(horizon)
+      const out = new Array<number>(horizon)
+      for (let h = 1; h <= horizon; h++) {
+        const d = n + h - xMean
+        out[h - 1] = sigma2 * (1 + 1 / n + (d * d) / sxx) * factors[(n + h - 1) % m]! ** 2
+      }
       checkFinite(out, model)
       return out
     },

@@ -39,6 +39,23 @@ describe('level-smoothing-season-averages', () => {
     fit.forecast(r.horizon).forEach((v, i) => expect(approxEqual(v, r.seasonalIndex.forecast[i]!, 1e-12)).toBe(true))
   })
 
+  // Source: R stats::predict.HoltWinters(prediction.interval = TRUE) on the same fit
+  // (scripts/fixtures/r_decompose.R): the growth of the variance with h, 1 + (h - 1) alpha^2.
+  // R's one-step variance is var(residuals) (centred); ours is their mean square, worked out
+  // here from the fit's own one-step errors.
+  it('has the SES variance on the adjusted scale, times the factor squared', () => {
+    const fit = fitSeasonalIndex(r.series, 12, r.seasonalIndex.alpha)
+    const factors = fit.params.seasonFactors as number[]
+    const n = r.series.length
+    let ss = 0
+    for (let t = 1; t < n; t++) ss += ((r.series[t]! - fit.fitted[t]!) / factors[t % 12]!) ** 2
+    const sigma2 = ss / (n - 1)
+    const ours = fit.forecastVariance!(r.horizon).map((v, i) => v / factors[(n + i) % 12]! ** 2)
+    expect(approxEqual(ours[0]!, sigma2, 1e-12)).toBe(true)
+    const theirs = r.seasonalIndex.adjustedVariance
+    ours.forEach((v, i) => expect(approxEqual(v / ours[0]!, theirs[i]! / theirs[0]!, 1e-12), `step ${i + 1}`).toBe(true))
+  })
+
   it('estimates an alpha no worse than any point of a fine grid', () => {
     const fit = seasonalIndex.fit(r.series, { seasonLength: 12 })
     expectSane(fit, r.series.length)

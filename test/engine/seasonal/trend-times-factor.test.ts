@@ -58,6 +58,8 @@ describe('decomposition and decomposition-cma', () => {
     expect(approxEqual(fit.params.slope as number, r.decomposition.slope, 1e-12)).toBe(true)
     expect(approxEqual(fit.params.intercept as number, r.decomposition.intercept, 1e-12)).toBe(true)
     close(fit.forecast(r.horizon), r.decomposition.forecast, 1e-12)
+    // R predict.lm(se.fit = TRUE): se.fit^2 + sigma^2 on the adjusted scale, times the factor squared.
+    close(fit.forecastVariance!(r.horizon), r.decomposition.forecastVariance, 1e-9)
   })
 
   // Source: R decompose(type = "multiplicative") factors and lm(x / seasonal ~ t) on
@@ -68,5 +70,6 @@ describe('decomposition and decomposition-cma', () => {
     expect(approxEqual(fit.params.slope as number, r.decompositionCma.slope, 1e-12)).toBe(true)
     expect(approxEqual(fit.params.intercept as number, r.decompositionCma.intercept, 1e-12)).toBe(true)
     close(fit.forecast(r.horizon), r.decompositionCma.forecast, 1e-12)
+    close(fit.forecastVariance!(r.horizon), r.decompositionCma.forecastVariance, 1e-9)
   })
 })

@@ -52,10 +52,8 @@ export function medianOf(values: readonly number[]): number {
 /** Damped trend smoothing on the Theta-style seasonally adjusted series, re-seasonalised. */
 export function fitAdjustedDamped(series: readonly number[], seasonLength: number): ModelFit {
   const m = seasonLength
-  const { adjusted, figure, multiplicative } = applyAdjustment(series, thetaSeasonalAdjustment(series, m), m)
+  const { adjusted, multiplicative, factor, reseason } = applyAdjustment(series, thetaSeasonalAdjustment(series, m), m)
   const inner = fitSmoothing({ name: 'damped-trend-smoothing', trend: 'damped', seasonal: null }, adjusted, { seasonLength: 1 })
-  const factor = (i: number): number => (figure.length === 0 ? (multiplicative ? 1 : 0) : figure[i % m]!)
-  const reseason = (v: number, i: number): number => (multiplicative ? v * factor(i) : v + factor(i))
   const n = series.length
   return {
     model: 'damped-trend-smoothing',

@@ -7,13 +7,9 @@
  * Point forecast at step h:   f_h = (1 / K) sum_k f_{k,h}   over the K members.
  * Fitted values:               the mean of the members' one-step fitted values, where
  *                              every member has one.
- * Variance (the shape of the spread over the steps, before calibration):
- *                              the mean of the members' h-step variances when every
- *                              member has them; otherwise none, and the spread comes from
- *                              the combination's own one-step residuals.
- * The intervals are then calibrated on the combination itself: select/calibrate.ts
- * refits every member at the rolling origins and scores the mean, so the combination's
- * bands say how the mean errs, not how one member does.
+ * Intervals:                   no variance of its own; the AICc pick's calibrated bands,
+ *                              centred on the mean (select/forecast-series.ts,
+ *                              combinedWinner, which says why).
  *
  * Why the mean of a few good models: combining forecasts of different models is more
  * accurate on average than picking one, because the pick is made on a short, noisy

@@ -46,6 +46,15 @@ export interface SelectionSummary {
   readonly members?: ModelChoice['members']
 }
 
+/** The one-step in-sample residuals, actual minus fitted, where the fit has a value. */
+export function inSampleResiduals(values: readonly number[], fitted: readonly number[]): number[] {
+  const residuals: number[] = []
+  fitted.forEach((f, t) => {
+    if (Number.isFinite(f) && t < values.length) residuals.push(values[t]! - f)
+  })
+  return residuals
+}
+
 function residualSummary(values: readonly number[], fitted: readonly number[]): ForecastResult['residuals'] {
   const r: number[] = []
   fitted.forEach((f, t) => {
@@ -74,10 +83,7 @@ export function assembleResult(
       message: `${winner.model} forecast negative demand for some periods; those forecasts were raised to zero`,
     })
   }
-  const residuals: number[] = []
-  winner.fitted.forEach((f, t) => {
-    if (Number.isFinite(f) && t < n) residuals.push(prep.values[t]! - f)
-  })
+  const residuals = inSampleResiduals(prep.values, winner.fitted)
   const bounds = buildIntervals({
     point,
     levels: prep.levels,

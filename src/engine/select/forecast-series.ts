@@ -19,7 +19,7 @@ import { EngineInputError } from '../errors.js'
 import { MODEL_REGISTRY, classifyDemand, type DemandClassification } from '../models.js'
 import { prepareSeries, type PreparedSeries } from '../prepare.js'
 import type { EngineWarning, ForecastResult, ModelFit, ModelSpec, SeriesInput } from '../types.js'
-import { assembleResult, naiveWinner, type SelectionSummary, type Winner } from './assemble.js'
+import { assembleResult, inSampleResiduals, naiveWinner, type SelectionSummary, type Winner } from './assemble.js'
 import { candidateModels, lengthReason, requiredLength, structuralReason } from './candidates.js'
 import { checkedForecast, evaluateHoldout, evaluateInSample, skipped, withIntervalScores, type Evaluation } from './evaluate.js'
 import { MIN_TRAINING, planHoldout } from './holdout.js'
@@ -153,6 +153,21 @@ function needsFloor(n: number, family: ModelSpec['family'], seasonLength: number
   return n < SHORT_HISTORY || (family === 'trend' && seasonLength <= 1)
 }
 
+/** The pick's calibration errors and floor: what its bands are built from, whether centred on it or on the mean. */
+function pickBands(
+  spec: ModelSpec,
+  pick: Winner,
+  values: readonly number[],
+  m: number,
+  horizon: number,
+  budget: CalibrationBudget,
+): Pick<Winner, 'calibration' | 'floor'> {
+  return {
+    calibration: calibrationErrors(spec, values, m, horizon, pick.params, budget),
+    floor: needsFloor(values.length, spec.family, m) ? naiveSpread(values, horizon) : undefined,
+  }
+}
+
 /**
  * The shortlist's combination as the winner (select/combine.ts): its point forecast and
  * fitted values are the mean of the members' refits; its bands are the AICc pick's,
@@ -176,11 +191,7 @@ function combinedWinner(
   horizon: number,
   budget: CalibrationBudget,
 ): Winner | null {
-  const residuals: number[] = []
-  pick.fitted.forEach((f, t) => {
-    if (Number.isFinite(f) && t < values.length) residuals.push(values[t]! - f)
-  })
-  const spread = modelSpread(horizon, pick.variance, residuals)
+  const spread = modelSpread(horizon, pick.variance, inSampleResiduals(values, pick.fitted))
   if (spread.method === 'none') return null
   const fit = combineFits(members, values)
   return {
@@ -191,8 +202,7 @@ function combinedWinner(
     point: checkedForecast(fit, horizon),
     variance: spread.sd.map((sd) => sd * sd),
     degreesOfFreedom: pick.degreesOfFreedom,
-    calibration: calibrationErrors(pickSpec, values, m, horizon, pick.params, budget),
-    floor: needsFloor(values.length, pickSpec.family, m) ? naiveSpread(values, horizon) : undefined,
+    ...pickBands(pickSpec, pick, values, m, horizon, budget),
   }
 }
 
@@ -325,8 +335,7 @@ export function forecastSeriesWith(input: SeriesInput, models: EngineModels): Fo
         const row = SEARCH[prep.modelSearch].intervalScoresForAll ? { ...combined.entry, holdoutErrors: combined.withIntervalScores() } : combined.entry
         candidates = [...candidates.slice(0, shortlist.length), row, ...candidates.slice(shortlist.length)]
       }
-      const calibration = calibrationErrors(spec, prep.values, m, prep.horizon, winner.params, budget)
-      winner = { ...winner, calibration, floor: needsFloor(n, spec.family, m) ? naiveSpread(prep.values, prep.horizon) : undefined }
+      winner = { ...winner, ...pickBands(spec, winner, prep.values, m, prep.horizon, budget) }
     }
   }
   return assembleResult(

@@ -29,12 +29,10 @@ export function fitOptimisedTheta(
   }
   const n = series.length
   const m = seasonLength
-  const { figure, multiplicative, adjusted } = applyAdjustment(series, thetaSeasonalAdjustment(series, m), m)
+  const { figure, multiplicative, adjusted, factor, reseason } = applyAdjustment(series, thetaSeasonalAdjustment(series, m), m)
   const p = options.params ?? estimateTheta(adjusted, dynamic)
   const inner = new Array<number>(n)
   const run = runTheta(adjusted, p, dynamic, inner)
-  const factor = (index: number): number => (figure.length === 0 ? (multiplicative ? 1 : 0) : figure[index % m]!)
-  const reseason = (v: number, index: number): number => (multiplicative ? v * factor(index) : v + factor(index))
   const fitted = inner.map((v, t) => reseason(v, t))
   const sigma2 = run.sse / n
   checkFinite([p.alpha, p.theta, p.startLevel, run.level, run.intercept, run.slope, sigma2], name)

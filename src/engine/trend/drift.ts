@@ -32,9 +32,7 @@ export function fitDrift(series: readonly number[], seasonLength: number): Model
   checkSeries(series, NAME, 2)
   const n = series.length
   const m = seasonLength
-  const { figure, multiplicative, adjusted } = applyAdjustment(series, thetaSeasonalAdjustment(series, m), m)
-  const factor = (index: number): number => (figure.length === 0 ? (multiplicative ? 1 : 0) : figure[index % m]!)
-  const reseason = (value: number, index: number): number => (multiplicative ? value * factor(index) : value + factor(index))
+  const { figure, multiplicative, adjusted, factor, reseason } = applyAdjustment(series, thetaSeasonalAdjustment(series, m), m)
   const last = adjusted[n - 1]!
   const drift = (last - adjusted[0]!) / (n - 1)
   const fitted = new Array<number>(n)

@@ -78,12 +78,19 @@ export function thetaSeasonalAdjustment(series: readonly number[], seasonLength:
   return { figure, multiplicative }
 }
 
-/** The series with the figure divided out (multiplicative) or subtracted (additive). */
-export function applyAdjustment(
-  series: readonly number[],
-  adjustment: ThetaAdjustment,
-  seasonLength: number,
-): { figure: readonly number[]; multiplicative: boolean; adjusted: number[] } {
+export interface AppliedAdjustment extends ThetaAdjustment {
+  readonly adjusted: number[]
+  /** The seasonal term at period index i (1 or 0 without a figure). */
+  factor(index: number): number
+  /** A value of the adjusted scale at period index i put back on the series' scale. */
+  reseason(value: number, index: number): number
+}
+
+/**
+ * The series with the figure divided out (multiplicative) or subtracted (additive), and
+ * the way back for fitted values and forecasts.
+ */
+export function applyAdjustment(series: readonly number[], adjustment: ThetaAdjustment, seasonLength: number): AppliedAdjustment {
   const { figure, multiplicative } = adjustment
   const m = seasonLength
   const adjusted = new Array<number>(series.length)
@@ -91,7 +98,9 @@ export function applyAdjustment(
     if (figure.length === 0) adjusted[t] = series[t]!
     else adjusted[t] = multiplicative ? series[t]! / figure[t % m]! : series[t]! - figure[t % m]!
   }
-  return { figure, multiplicative, adjusted }
+  const factor = (index: number): number => (figure.length === 0 ? (multiplicative ? 1 : 0) : figure[index % m]!)
+  const reseason = (value: number, index: number): number => (multiplicative ? value * factor(index) : value + factor(index))
+  return { figure, multiplicative, adjusted, factor, reseason }
 }
 
 export function fitTheta(series: readonly number[], seasonLength: number, options: ThetaOptions = {}): ModelFit {
@@ -103,16 +112,12 @@ export function fitTheta(series: readonly number[], seasonLength: number, option
   const n = series.length
   const m = seasonLength
   const adjustment = seasonalAdjustment === 'auto' ? thetaSeasonalAdjustment(series, m) : NO_ADJUSTMENT
-  const { figure, multiplicative, adjusted } = applyAdjustment(series, adjustment, m)
+  const { figure, multiplicative, adjusted, reseason } = applyAdjustment(series, adjustment, m)
   const slope = fitTrendOnIndex(adjusted).slope
   const drift = slope / 2
   const alpha = fixedAlpha ?? minimiseOnInterval((a) => levelSse(adjusted, a), THETA_ALPHA_MIN, 1)
   const path = levels(adjusted, alpha)
   const level = path[n - 1]!
-  const reseason = (value: number, index: number): number => {
-    if (figure.length === 0) return value
-    return multiplicative ? value * figure[index % m]! : value + figure[index % m]!
-  }
   // (1 - (1 - alpha)^k) / alpha, the drift multiplier for h = 1 from origin k.
   const fitted = new Array<number>(n)
   fitted[0] = NaN

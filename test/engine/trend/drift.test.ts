@@ -20,6 +20,15 @@ function fromReferenceVariance(reference: readonly number[], n: number): number[
   return reference.map((v, i) => v * ((n - 1) / (n - 2)) * (1 + (i + 1) / (n - 1)))
 }
 
+/** Drift and forecasts to 1e-9, variances (converted as above) to 1e-7. */
+function expectLikeReference(values: readonly number[], ref: { drift: number; forecast: readonly number[]; forecastVariance: readonly number[] }, horizon: number): void {
+  const fit = fitDrift(values, 1)
+  relClose(fit.params.drift as number, ref.drift, 1e-9)
+  fit.forecast(horizon).forEach((v, i) => relClose(v, ref.forecast[i]!, 1e-9))
+  const ours = fit.forecastVariance!(horizon)
+  fromReferenceVariance(ref.forecastVariance, values.length).forEach((v, i) => relClose(ours[i]!, v, 1e-7))
+}
+
 describe('last-value-drift', () => {
   it('rejects empty, non-finite and one-point input', () => {
     expectInputGuards(drift, 1)
@@ -56,27 +65,13 @@ describe('last-value-drift', () => {
   // M3 training parts and Nile (fixture from scripts/fixtures/statsmodels_drift.py).
   it('matches statsmodels ARIMA(0,1,0) with a time trend: drift, forecasts and variances', () => {
     expect(sm.cases.length).toBe(7)
-    for (const c of sm.cases) {
-      const n = c.values.length
-      const fit = fitDrift(c.values, 1)
-      relClose(fit.params.drift as number, c.drift, 1e-9)
-      fit.forecast(sm.horizon).forEach((v, i) => relClose(v, c.forecast[i]!, 1e-9))
-      const ours = fit.forecastVariance!(sm.horizon)
-      fromReferenceVariance(c.forecastVariance, n).forEach((v, i) => relClose(ours[i]!, v, 1e-7))
-    }
+    for (const c of sm.cases) expectLikeReference(c.values, c, sm.horizon)
   })
 
   // Source: base R 4.2 stats::arima(order = c(0, 1, 0), xreg = 1..n, method = "ML") and predict,
   // on datasets::LakeHuron and datasets::WWWusage (fixture from scripts/fixtures/r_drift.R).
   it('matches base R arima with the time index as regressor', () => {
-    for (const c of [r.LakeHuron, r.WWWusage]) {
-      const n = c.series.length
-      const fit = fitDrift(c.series, 1)
-      relClose(fit.params.drift as number, c.drift, 1e-9)
-      fit.forecast(r.horizon).forEach((v, i) => relClose(v, c.forecast[i]!, 1e-9))
-      const ours = fit.forecastVariance!(r.horizon)
-      fromReferenceVariance(c.forecastVariance, n).forEach((v, i) => relClose(ours[i]!, v, 1e-7))
-    }
+    for (const c of [r.LakeHuron, r.WWWusage]) expectLikeReference(c.series, c, r.horizon)
   })
 
   it('puts a season back when the history has one (listed for monthly data)', () => {

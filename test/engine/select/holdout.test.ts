@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest'
 import { forecastSeries } from '../../../src/engine/index.js'
 import { defaultHoldout, defaultHoldoutOrigins, planHoldout } from '../../../src/engine/select/holdout.js'
+import lm from '../fixtures/r/lm-trend.json' with { type: 'json' }
+import air from '../fixtures/r/decompose-airpassengers.json' with { type: 'json' }
 
 describe('defaultHoldout (our rule: min(horizon, m), leaving the largest trainable requirement)', () => {
   it('is min(horizon, seasonLength) when the history is long', () => {
@@ -44,8 +46,8 @@ describe('defaultHoldoutOrigins (our rule, decided on the M3 training split: ben
   })
 
   it('applies when a request sets no origins; a set count stands; a short history gets fewer, without a warning', () => {
-    // Invented yearly demand of a distributor's heating line.
-    const demand = [120, 131, 128, 140, 152, 149, 163, 170, 168, 181, 190, 188, 201, 210]
+    // Public data: Nile (R datasets, yearly) and AirPassengers (monthly), from the R fixtures.
+    const demand = lm.Nile.series
     const chosen = (extra: object) => {
       const r = forecastSeries({ demand, frequency: 'year', horizon: 4, ...extra })
       if ('failure' in r) throw new Error('expected a forecast')
@@ -58,7 +60,7 @@ describe('defaultHoldoutOrigins (our rule, decided on the M3 training split: ben
     if ('failure' in short) throw new Error('expected a forecast')
     expect(short.modelChoice.holdoutOrigins).toBeLessThan(4)
     expect(short.warnings.map((w) => w.code)).not.toContain('holdout-reduced')
-    const monthly = forecastSeries({ demand: Array.from({ length: 36 }, (_, t) => 50 + (t % 12) * 4), frequency: 'month', horizon: 6 })
+    const monthly = forecastSeries({ demand: air.series, frequency: 'month', horizon: 6 })
     if ('failure' in monthly) throw new Error('expected a forecast')
     expect(monthly.modelChoice.holdoutOrigins).toBe(1)
   })

@@ -6,6 +6,7 @@ import { drift, fitDrift } from '../../../src/engine/trend/drift.js'
 import { trendModels } from '../../../src/engine/trend/index.js'
 import sm from '../fixtures/statsmodels_drift/drift.json' with { type: 'json' }
 import r from '../fixtures/r/arima-drift.json' with { type: 'json' }
+import air from '../fixtures/r/decompose-airpassengers.json' with { type: 'json' }
 import { expectInputGuards, expectSane } from './spec-checks.js'
 
 const relClose = (actual: number, expected: number, tol: number) =>
@@ -75,20 +76,23 @@ describe('last-value-drift', () => {
   })
 
   it('puts a season back when the history has one (listed for monthly data)', () => {
-    // Invented: a rising monthly series whose July is twice its January.
-    const y = Array.from({ length: 48 }, (_, t) => (100 + t) * (1 + 0.5 * Math.sin((2 * Math.PI * t) / 12)))
+    // Public data: AirPassengers (R datasets, via the R fixture), monthly, rising, peaking in summer.
+    const y = air.series
+    const n = y.length
     const fit = fitDrift(y, 12)
     expect(fit.params.seasonFactors).toHaveLength(12)
-    const fc = expectSane(fit, 48, 12)
+    const fc = expectSane(fit, n, 12)
     const peak = (v: readonly number[]) => v.indexOf(Math.max(...v))
-    expect(peak(fc)).toBe(peak(y.slice(36)))
-    expect(fc[peak(fc)]!).toBeGreaterThan(y[36 + peak(fc)]!)
+    expect(peak(fc)).toBe(peak(y.slice(n - 12)))
+    // Not a flat line: the year ahead swings as the last year did, within a quarter of its range.
+    const range = (v: readonly number[]) => Math.max(...v) - Math.min(...v)
+    expect(Math.abs(range(fc) - range(y.slice(n - 12))) / range(y.slice(n - 12))).toBeLessThan(0.25)
   })
 
   it('is a candidate of yearly series by default and not of monthly ones', () => {
-    // Invented demand of a regional distributor: a yearly line of work boots and a monthly one.
-    const yearly = forecastSeries({ demand: [410, 432, 455, 470, 498, 515, 540, 552, 580, 601], frequency: 'year', horizon: 3 })
-    const monthly = forecastSeries({ demand: Array.from({ length: 36 }, (_, t) => 200 + 3 * t + (t % 5)), frequency: 'month', horizon: 6 })
+    // Public data: LakeHuron (R datasets, yearly) and AirPassengers (monthly), from the R fixtures.
+    const yearly = forecastSeries({ demand: r.LakeHuron.series, frequency: 'year', horizon: 3 })
+    const monthly = forecastSeries({ demand: air.series, frequency: 'month', horizon: 6 })
     if ('failure' in yearly || 'failure' in monthly) throw new Error('expected forecasts')
     expect(yearly.candidates.some((c) => c.model === 'last-value-drift' && c.status === 'scored')).toBe(true)
     expect(monthly.candidates.some((c) => c.model === 'last-value-drift')).toBe(false)
